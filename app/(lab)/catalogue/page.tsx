@@ -1,0 +1,7 @@
+import { PlannedPlace } from "@/components/shell/planned-place";
+import { requirePageAccess } from "@/lib/auth/page";
+
+export default async function Page() {
+  await requirePageAccess("catalogue:read");
+  return <PlannedPlace title="Catalogue" />;
+}

@@ -1,0 +1,23 @@
+import localFont from "next/font/local";
+
+// Fonts ship with the app from npm packages: nothing is fetched at build or run time.
+export const sans = localFont({
+  src: "../node_modules/@fontsource-variable/public-sans/files/public-sans-latin-wght-normal.woff2",
+  variable: "--font-sans",
+  weight: "100 900",
+  display: "swap",
+});
+
+export const display = localFont({
+  src: "../node_modules/@fontsource-variable/fraunces/files/fraunces-latin-full-normal.woff2",
+  variable: "--font-display",
+  weight: "100 900",
+  display: "swap",
+});
+
+export const mono = localFont({
+  src: "../node_modules/@fontsource-variable/jetbrains-mono/files/jetbrains-mono-latin-wght-normal.woff2",
+  variable: "--font-mono",
+  weight: "100 800",
+  display: "swap",
+});

@@ -1,0 +1,28 @@
+import type { ButtonHTMLAttributes } from "react";
+import { cx } from "./cx";
+
+const variants = {
+  primary: "bg-shellac text-white hover:bg-shellac-deep shadow-sm",
+  secondary: "bg-white text-ink border border-paper-edge hover:border-ink-faint",
+  quiet: "text-ink-soft hover:text-ink hover:bg-paper-deep",
+  danger: "bg-white text-alarm border border-alarm/40 hover:bg-alarm-wash",
+} as const;
+
+export function Button({
+  variant = "primary",
+  size = "md",
+  className,
+  ...props
+}: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: keyof typeof variants; size?: "sm" | "md" }) {
+  return (
+    <button
+      className={cx(
+        "inline-flex items-center justify-center gap-2 rounded-md font-medium transition-colors disabled:cursor-not-allowed disabled:opacity-50",
+        size === "sm" ? "h-8 px-3 text-sm" : "h-10 px-4 text-sm",
+        variants[variant],
+        className,
+      )}
+      {...props}
+    />
+  );
+}

@@ -1,0 +1,16 @@
+import { Kysely, PostgresDialect } from "kysely";
+import pg from "pg";
+import type { Database } from "./types";
+
+// BIGINT counts come back as strings by default; every count we keep fits a double.
+pg.types.setTypeParser(20, (v) => Number(v));
+
+/**
+ * Builds a Kysely instance. The app uses the single instance in db/index.ts; scripts,
+ * the worker and tests (which run outside Next.js) call this with their own URL.
+ */
+export function createDb(databaseUrl: string, max = 10): Kysely<Database> {
+  return new Kysely<Database>({
+    dialect: new PostgresDialect({ pool: new pg.Pool({ connectionString: databaseUrl, max }) }),
+  });
+}

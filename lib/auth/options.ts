@@ -1,0 +1,41 @@
+import "server-only";
+import type { NextAuthOptions } from "next-auth";
+import CredentialsProvider from "next-auth/providers/credentials";
+import { env } from "../env";
+import { isRole } from "./roles";
+import { checkCredentials } from "./sign-in";
+
+export const authOptions: NextAuthOptions = {
+  secret: env().NEXTAUTH_SECRET,
+  session: { strategy: "jwt", maxAge: 12 * 3600 },
+  pages: { signIn: "/sign-in", error: "/sign-in" },
+  providers: [
+    CredentialsProvider({
+      name: "E-mail and password",
+      credentials: { email: { type: "email" }, password: { type: "password" } },
+      async authorize(credentials, req) {
+        const forwarded = req?.headers?.["x-forwarded-for"];
+        const ip = (Array.isArray(forwarded) ? forwarded[0] : forwarded)?.split(",")[0]?.trim() ?? null;
+        // A thrown error's message reaches the sign-in form as `error`.
+        const user = await checkCredentials({ email: credentials?.email, password: credentials?.password }, ip);
+        return { id: user.id, email: user.email, name: user.name, role: user.role };
+      },
+    }),
+  ],
+  callbacks: {
+    jwt({ token, user }) {
+      if (user) {
+        token.uid = user.id;
+        token.role = (user as { role?: string }).role;
+      }
+      return token;
+    },
+    session({ session, token }) {
+      if (session.user && typeof token.uid === "string") {
+        session.user.id = token.uid;
+        session.user.role = isRole(token.role) ? token.role : undefined;
+      }
+      return session;
+    },
+  },
+};

@@ -1,0 +1,19 @@
+import type { Action } from "./permissions";
+
+/**
+ * Every API route and method with the action it requires ("public" for none). The
+ * route wrapper (lib/http/route.ts) reads its own entry, and the route-access test
+ * fails for a route file whose method is missing here or lets a role in that the
+ * permission table keeps out.
+ */
+export const routeAccess = {
+  "GET /api/health": "public",
+  "GET /api/auth/[...nextauth]": "public",
+  "POST /api/auth/[...nextauth]": "public",
+  "GET /api/me": "lab:enter",
+  "GET /api/users": "people:read",
+  "GET /api/people-changes": "people:read",
+  "GET /api/outbox": "outbox:read",
+} as const satisfies Record<string, Action | "public">;
+
+export type RouteKey = keyof typeof routeAccess;

@@ -1,0 +1,31 @@
+import "server-only";
+import { getServerSession } from "next-auth";
+import { db } from "../../db";
+import { AppError } from "../http/errors";
+import { authOptions } from "./options";
+import { type Action, actions, can } from "./permissions";
+import { roleLabels } from "./roles";
+import type { SessionUser } from "./session-user";
+
+/**
+ * The signed-in person, read afresh from the database on every request: a role change
+ * or a deactivation takes effect at the next request, whatever the session cookie says.
+ */
+export async function currentUser(): Promise<SessionUser | null> {
+  const session = await getServerSession(authOptions);
+  const id = session?.user?.id;
+  if (!id) return null;
+  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active"]).where("id", "=", id).executeTakeFirst();
+  if (!user || !user.active) return null;
+  return { id: user.id, email: user.email, name: user.name, role: user.role };
+}
+
+/** The one server-side permission check: every route handler and server action calls it. */
+export async function requirePermission(action: Action): Promise<SessionUser> {
+  const user = await currentUser();
+  if (!user) throw new AppError("unauthenticated", 401, "Sign in to continue.");
+  if (!can(user.role, action)) {
+    throw new AppError("forbidden", 403, `As ${roleLabels[user.role].toLowerCase()} you may not ${actions[action]}.`);
+  }
+  return user;
+}

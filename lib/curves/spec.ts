@@ -1,0 +1,132 @@
+/**
+ * Validation and resolution of a CurveSpec: every corner in every unit, the
+ * time constant the filter uses, and clear refusals naming the parameter.
+ */
+import { CORNER_NAMES, CurveError } from "./types";
+import type { CornerInput, CornerName, CurveSpec, ReferenceLevel, ResolvedCorner, ResolvedCurve } from "./types";
+import { db10kToUs, hzToUs, usToDb10k, usToHz } from "./units";
+
+export const DEFAULT_REFERENCE: ReferenceLevel = { hz: 1000, db: 0 };
+
+/** 44.1 kHz is the lowest rate whose band reaches 20 kHz with room for a transition; 384 kHz the highest a lab transfers at. */
+export const MIN_SAMPLE_RATE_HZ = 44_100;
+export const MAX_SAMPLE_RATE_HZ = 384_000;
+export const MIN_REFERENCE_HZ = 10;
+export const MAX_REFERENCE_HZ = 30_000;
+
+function isFiniteNumber(x: unknown): x is number {
+  return typeof x === "number" && Number.isFinite(x);
+}
+
+function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number): ResolvedCorner | null {
+  if (typeof input !== "object" || input === null) {
+    throw new CurveError(name, `${name}: expected { unit, value }.`);
+  }
+  const { unit, value } = input;
+  if (unit !== "hz" && unit !== "us" && unit !== "db10k") {
+    throw new CurveError(name, `${name}: unit must be "hz", "us" or "db10k", got ${JSON.stringify(unit)}.`);
+  }
+  if (unit === "db10k" && name !== "rolloff") {
+    throw new CurveError(name, `${name}: dB at 10 kHz is only a way to give the rolloff; use "hz" or "us".`);
+  }
+  if (!isFiniteNumber(value)) {
+    throw new CurveError(name, `${name}: value must be a finite number, got ${String(value)}.`);
+  }
+  if (unit === "db10k") {
+    if (value < 0) {
+      throw new CurveError(name, `${name}: attenuation at 10 kHz must be 0 dB or more (0 dB means no rolloff), got ${value}.`);
+    }
+    if (value === 0) return null;
+    if (value > 60) {
+      throw new CurveError(name, `${name}: ${value} dB at 10 kHz is beyond any playback curve (limit 60 dB).`);
+    }
+  } else if (value <= 0) {
+    throw new CurveError(name, `${name}: ${unit === "hz" ? "frequency" : "time constant"} must be greater than 0, got ${value}.`);
+  }
+  const tauUs = unit === "hz" ? hzToUs(value) : unit === "us" ? value : db10kToUs(value);
+  if (!(tauUs > 0) || !Number.isFinite(tauUs)) {
+    throw new CurveError(name, `${name}: value ${value} ${unit} gives no usable time constant.`);
+  }
+  const filterTauUs = tauUs / speedRatio;
+  const corner: ResolvedCorner = {
+    parameter: name,
+    entered: { unit, value },
+    tauUs,
+    hz: usToHz(tauUs),
+    filterTauUs,
+    filterHz: usToHz(filterTauUs),
+  };
+  if (name === "rolloff") corner.db10k = usToDb10k(tauUs);
+  return corner;
+}
+
+/**
+ * Validate a spec and return every corner in all units. Throws CurveError naming
+ * the parameter at fault.
+ */
+export function resolveCurve(spec: CurveSpec): ResolvedCurve {
+  if (typeof spec !== "object" || spec === null) throw new CurveError("spec", "Curve spec must be an object.");
+
+  const speedRatio = spec.speedRatio ?? 1;
+  if (!isFiniteNumber(speedRatio) || speedRatio <= 0) {
+    throw new CurveError("speedRatio", `speedRatio (transfer speed / cut speed) must be a number greater than 0, got ${String(speedRatio)}.`);
+  }
+  if (speedRatio < 0.1 || speedRatio > 10) {
+    throw new CurveError("speedRatio", `speedRatio ${speedRatio} is outside 0.1–10; check the transfer and cut speeds.`);
+  }
+
+  const reference = spec.reference ?? DEFAULT_REFERENCE;
+  if (typeof reference !== "object" || reference === null) {
+    throw new CurveError("reference", "reference must be { hz, db }.");
+  }
+  if (!isFiniteNumber(reference.hz) || reference.hz < MIN_REFERENCE_HZ || reference.hz > MAX_REFERENCE_HZ) {
+    throw new CurveError("reference.hz", `Reference frequency must be between ${MIN_REFERENCE_HZ} Hz and ${MAX_REFERENCE_HZ} Hz, got ${String(reference.hz)}.`);
+  }
+  if (!isFiniteNumber(reference.db) || Math.abs(reference.db) > 60) {
+    throw new CurveError("reference.db", `Reference gain must be a finite number of dB within ±60, got ${String(reference.db)}.`);
+  }
+
+  const corners = {} as Record<CornerName, ResolvedCorner | null>;
+  for (const name of CORNER_NAMES) {
+    const input = spec[name];
+    corners[name] = input == null ? null : resolveCorner(name, input, speedRatio);
+  }
+  const { turnover, shelf, highpass } = corners;
+
+  if (shelf && !turnover) {
+    throw new CurveError("shelf", "A shelf ends the bass boost that a turnover starts: give a turnover too, or remove the shelf for a flat-bass curve.");
+  }
+  if (shelf && turnover && !(shelf.tauUs > turnover.tauUs)) {
+    throw new CurveError(
+      "shelf",
+      `The shelf time constant (${shelf.tauUs.toFixed(2)} µs, ${shelf.hz.toFixed(2)} Hz) must be longer than the turnover's (${turnover.tauUs.toFixed(2)} µs, ${turnover.hz.toFixed(2)} Hz): the shelf frequency must be below the turnover.`,
+    );
+  }
+  if (turnover && !shelf && !highpass) {
+    throw new CurveError(
+      "shelf",
+      "A turnover with neither a shelf nor a high-pass has unbounded bass gain; add a low-frequency shelf (e.g. 3180 µs) or a rumble high-pass (e.g. 7950 µs).",
+    );
+  }
+
+  return {
+    spec,
+    ...corners,
+    reference: { hz: reference.hz, db: reference.db },
+    speedRatio,
+    flatBass: !turnover && !shelf,
+  };
+}
+
+/** Throws CurveError("sampleRateHz") unless 44 100 ≤ rate ≤ 384 000. */
+export function validateSampleRate(sampleRateHz: number): void {
+  if (!isFiniteNumber(sampleRateHz)) {
+    throw new CurveError("sampleRateHz", `Sample rate must be a number, got ${String(sampleRateHz)}.`);
+  }
+  if (sampleRateHz < MIN_SAMPLE_RATE_HZ) {
+    throw new CurveError("sampleRateHz", `Sample rate ${sampleRateHz} Hz cannot carry 20 kHz with a transition band; use at least ${MIN_SAMPLE_RATE_HZ} Hz.`);
+  }
+  if (sampleRateHz > MAX_SAMPLE_RATE_HZ) {
+    throw new CurveError("sampleRateHz", `Sample rate ${sampleRateHz} Hz is above the supported ${MAX_SAMPLE_RATE_HZ} Hz.`);
+  }
+}

@@ -1,0 +1,21 @@
+import type { Action } from "./auth/permissions";
+
+export interface NavItem {
+  href: string;
+  label: string;
+  action: Action;
+  blurb: string;
+  icon: "home" | "shelf" | "curve" | "bench" | "review" | "audit" | "people" | "mail";
+}
+
+/** The lab's places; each person sees those their role may use (the server checks again). */
+export const navItems: NavItem[] = [
+  { href: "/", label: "Overview", action: "lab:enter", blurb: "Your day in the lab", icon: "home" },
+  { href: "/catalogue", label: "Catalogue", action: "catalogue:read", blurb: "Accessions, discs and sides", icon: "shelf" },
+  { href: "/curves", label: "Curves", action: "curves:read", blurb: "Playback curve library and workbench", icon: "curve" },
+  { href: "/bench", label: "Transfer bench", action: "bench:use", blurb: "Choose curves, upload transfers, render", icon: "bench" },
+  { href: "/review", label: "Review", action: "review:decide", blurb: "Approve or return sides", icon: "review" },
+  { href: "/audit", label: "Audit", action: "audit:read", blurb: "Provenance, fixity and exports", icon: "audit" },
+  { href: "/people", label: "People", action: "people:read", blurb: "Invitations, roles and access", icon: "people" },
+  { href: "/outbox", label: "Outbox", action: "outbox:read", blurb: "Mail the lab has sent", icon: "mail" },
+];

@@ -1,0 +1,103 @@
+import "server-only";
+import { sql, type Transaction } from "kysely";
+import { db } from "../../db";
+import type { Database } from "../../db/types";
+import type { SessionUser } from "../auth/session-user";
+import { AppError } from "../http/errors";
+import { changeRoleSchema, setActiveSchema } from "../validation/people";
+import { recordPeopleChange } from "./changes";
+
+async function activeAdminCount(trx: Transaction<Database>): Promise<number> {
+  const row = await trx
+    .selectFrom("users")
+    .select(sql<number>`count(*)::int`.as("n"))
+    .where("role", "=", "admin")
+    .where("active", "=", true)
+    .executeTakeFirstOrThrow();
+  return row.n;
+}
+
+export async function changeRole(actor: SessionUser, input: { userId: unknown; role: unknown }): Promise<void> {
+  const { userId, role } = changeRoleSchema.parse(input);
+  await db.transaction().execute(async (trx) => {
+    // Serialise role changes so two admins cannot demote each other at once.
+    await sql`LOCK TABLE users IN SHARE ROW EXCLUSIVE MODE`.execute(trx);
+    const user = await trx.selectFrom("users").select(["id", "email", "role", "active"]).where("id", "=", userId).executeTakeFirst();
+    if (!user) throw new AppError("not_found", 404, "No such person.");
+    if (user.role === role) return;
+    if (user.role === "admin" && user.active && (await activeAdminCount(trx)) <= 1) {
+      throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
+    }
+    await trx.updateTable("users").set({ role, updated_at: sql`now()` }).where("id", "=", userId).execute();
+    await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: userId, subjectEmail: user.email, kind: "role_changed", detail: { from: user.role, to: role } });
+  });
+}
+
+/** Deactivation takes effect at the person's next request: every check reads `active` afresh. */
+export async function setActive(actor: SessionUser, input: { userId: unknown; active: unknown }): Promise<void> {
+  const { userId, active } = setActiveSchema.parse(input);
+  await db.transaction().execute(async (trx) => {
+    await sql`LOCK TABLE users IN SHARE ROW EXCLUSIVE MODE`.execute(trx);
+    const user = await trx.selectFrom("users").select(["id", "email", "role", "active"]).where("id", "=", userId).executeTakeFirst();
+    if (!user) throw new AppError("not_found", 404, "No such person.");
+    if (user.active === active) return;
+    if (!active && userId === actor.id) throw new AppError("conflict", 409, "You cannot deactivate your own account.");
+    if (!active && user.role === "admin" && (await activeAdminCount(trx)) <= 1) {
+      throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
+    }
+    await trx.updateTable("users").set({ active, updated_at: sql`now()` }).where("id", "=", userId).execute();
+    await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: userId, subjectEmail: user.email, kind: active ? "reactivated" : "deactivated" });
+  });
+}
+
+export interface PersonRow {
+  id: string;
+  email: string;
+  name: string;
+  role: SessionUser["role"];
+  active: boolean;
+  createdAt: Date;
+  lastSignInAt: Date | null;
+}
+
+export async function listPeople(): Promise<PersonRow[]> {
+  return db
+    .selectFrom("users")
+    .select((eb) => [
+      "users.id",
+      "users.email",
+      "users.name",
+      "users.role",
+      "users.active",
+      "users.created_at as createdAt",
+      eb
+        .selectFrom("sign_in_attempts")
+        .select(sql<Date>`max(at)`.as("at"))
+        .whereRef("sign_in_attempts.email", "=", "users.email")
+        .where("succeeded", "=", true)
+        .as("lastSignInAt"),
+    ])
+    .orderBy("users.name")
+    .execute();
+}
+
+export async function listOpenInvitations() {
+  return db
+    .selectFrom("invitations")
+    .select(["id", "email", "role", "expires_at as expiresAt", "created_at as createdAt"])
+    .where("accepted_at", "is", null)
+    .where("revoked_at", "is", null)
+    .where("expires_at", ">", sql<Date>`now()`)
+    .orderBy("created_at", "desc")
+    .execute();
+}
+
+export async function listPeopleChanges(limit = 100) {
+  return db
+    .selectFrom("people_changes")
+    .leftJoin("users as actor", "actor.id", "people_changes.actor_id")
+    .select(["people_changes.id", "people_changes.kind", "people_changes.subject_email as subjectEmail", "people_changes.detail", "people_changes.at", "actor.name as actorName"])
+    .orderBy("people_changes.at", "desc")
+    .limit(limit)
+    .execute();
+}

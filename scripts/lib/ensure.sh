@@ -1,0 +1,45 @@
+# Installs what the two commands need and the machine lacks. Sourced by start.sh and test.sh.
+# Debian packages come from apt (as root, or through sudo); npm packages from the lockfile.
+
+as_root() {
+  if [ "$(id -u)" = "0" ]; then "$@"; elif command -v sudo >/dev/null; then sudo "$@"; else
+    echo "[rillbook] need root (or sudo) to run: $*" >&2; return 1; fi
+}
+
+apt_updated=""
+apt_install() {
+  # $@: Debian package names
+  if [ -z "$apt_updated" ]; then
+    echo "[rillbook] apt-get update"
+    as_root apt-get update -qq >/dev/null
+    apt_updated=1
+  fi
+  echo "[rillbook] installing Debian packages: $*"
+  as_root env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "$@" >/dev/null
+}
+
+ensure_postgres() {
+  if [ -n "${DATABASE_URL:-}" ] && [ "${1:-}" != "always" ]; then return 0; fi
+  if ! ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1; then
+    apt_install postgresql
+  fi
+}
+
+ensure_test_tools() {
+  local missing=()
+  [ -x /usr/bin/chromium ] || missing+=(chromium)
+  command -v sox >/dev/null || missing+=(sox)
+  command -v xmllint >/dev/null || missing+=(libxml2-utils)
+  if ! python3 -c 'import scipy.signal' >/dev/null 2>&1 && ! /usr/bin/python3 -c 'import scipy.signal' >/dev/null 2>&1; then
+    missing+=(python3-scipy)
+  fi
+  if [ ${#missing[@]} -gt 0 ]; then apt_install "${missing[@]}"; fi
+}
+
+ensure_node_modules() {
+  # Reinstall when node_modules is missing or older than the lockfile.
+  if [ ! -d node_modules ] || [ ! -f node_modules/.package-lock.json ] || [ package-lock.json -nt node_modules/.package-lock.json ]; then
+    echo "[rillbook] installing npm packages (npm ci)"
+    npm ci --no-audit --no-fund --loglevel=error
+  fi
+}

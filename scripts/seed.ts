@@ -1,0 +1,12 @@
+import { createDb } from "../db/client";
+import { seed } from "../db/seed";
+import { env } from "../lib/env";
+
+const db = createDb(env().DATABASE_URL, 2);
+seed(db)
+  .then((r) => console.log(r.usersAdded ? `seeded the demo lab (${r.usersAdded} people)` : "demo lab already seeded"))
+  .catch((err) => {
+    console.error(err);
+    process.exitCode = 1;
+  })
+  .finally(() => db.destroy());

@@ -1,0 +1,2 @@
+// Empty stand-in for the `server-only` guard under vitest (see vitest.config.ts).
+export {};

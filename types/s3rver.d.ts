@@ -1,0 +1,19 @@
+declare module "s3rver" {
+  interface BucketConfig {
+    name: string;
+    configs?: Array<string | Buffer>;
+  }
+  interface S3rverOptions {
+    address?: string;
+    port?: number;
+    directory: string;
+    silent?: boolean;
+    resetOnClose?: boolean;
+    configureBuckets?: BucketConfig[];
+  }
+  export default class S3rver {
+    constructor(options: S3rverOptions);
+    run(): Promise<{ address: string; port: number }>;
+    close(): Promise<void>;
+  }
+}

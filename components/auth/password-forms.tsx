@@ -15,7 +15,7 @@ export function NewPasswordForm({ action, token, askName, submitLabel }: { actio
     <form action={formAction} className="space-y-5" noValidate data-testid="new-password-form">
       {state && !state.ok ? <Notice tone="error" title="Not saved">{state.message}</Notice> : null}
       <input type="hidden" name="token" value={token} />
-      {askName ? <TextField id="name" label="Your name" autoComplete="name" errors={f.name} required /> : null}
+      {askName ? <TextField id="name" label="Your name" autoComplete="name" errors={f.name} defaultValue={state?.values?.name} required /> : null}
       <TextField id="password" type="password" label="Password" autoComplete="new-password" hint="At least 12 characters. A few unrelated words make a strong one." errors={f.password} required />
       <TextField id="confirm" type="password" label="The same password again" autoComplete="new-password" errors={f.confirm} required />
       {f.token ? <Notice tone="error">{f.token.join(" ")}</Notice> : null}
@@ -32,7 +32,7 @@ export function ResetRequestForm({ action }: { action: Action }) {
     <form action={formAction} className="space-y-5" noValidate data-testid="reset-request-form">
       {state?.ok ? <Notice tone="success" title="Check your mail">{state.message}</Notice> : null}
       {state && !state.ok && !state.fields ? <Notice tone="error">{state.message}</Notice> : null}
-      <TextField id="email" type="email" label="E-mail" autoComplete="username" errors={state?.fields?.email} required />
+      <TextField id="email" type="email" label="E-mail" autoComplete="username" errors={state?.fields?.email} defaultValue={state?.values?.email} required />
       <Button type="submit" className="w-full" disabled={pending}>
         {pending ? "Sending…" : "Send me a link"}
       </Button>

@@ -32,7 +32,7 @@ export function SignInForm() {
 
   return (
     <form onSubmit={onSubmit} className="space-y-5" noValidate data-testid="sign-in-form">
-      {error ? <Notice tone="error" title="Not signed in">{error}</Notice> : null}
+      {error ? <Notice tone="error" title="Not signed in" testId="sign-in-error">{error}</Notice> : null}
       {params.get("reset") === "done" ? <Notice tone="success" title="Password changed">Sign in with your new password.</Notice> : null}
       {params.get("welcome") ? <Notice tone="success" title="Your account is ready">Sign in with the password you just chose.</Notice> : null}
       <TextField id="email" name="email" type="email" label="E-mail" autoComplete="username" required autoFocus />

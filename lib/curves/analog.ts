@@ -3,7 +3,12 @@
  *
  *   H(s) = K · (1 + s·τt) / ((1 + s·τs)(1 + s·τr)) · [s·τh / (1 + s·τh)] · [1 + s·τu]
  *
- * evaluated factor by factor in time-constant form, which keeps full precision
+ * A curve with a turnover but no shelf has τs → ∞: the shelf factor becomes an
+ * integrator 1/(s·τs) (bass boost all the way to DC). Validation only lets that
+ * through with a high-pass, whose s·τh cancels the integrator, leaving
+ * K'·(1 + s·τt)/((1 + s·τh)(1 + s·τr)): the high-pass pole ends the bass boost.
+ *
+ * Evaluated factor by factor in time-constant form, which keeps full precision
  * at every frequency, and also given in zero/pole/gain form (rad/s) with the
  * usual convention H(s) = k · Π(s − zᵢ) / Π(s − pⱼ).
  */
@@ -20,8 +25,11 @@ export interface AnalogModel {
   zeroTausS: number[];
   /** Time constants (s) of the 1/(1 + s·τ) factors: shelf, rolloff, high-pass pole. */
   poleTausS: number[];
-  /** High-pass time constant (s) of the s·τh factor, or null. */
-  highpassTauS: number | null;
+  /**
+   * Time constant (s) of the s·τh numerator factor (zero at DC), or null: present
+   * for a high-pass unless a missing shelf's integrator cancels it.
+   */
+  dcZeroTauS: number | null;
   /** K of the time-constant form, set so the gain at reference.hz equals reference.db. */
   gainK: number;
   /** Zeros in rad/s (real; 0 for the high-pass). */
@@ -70,8 +78,11 @@ export function buildAnalogModel(curve: ResolvedCurve): AnalogModel {
   if (curve.rolloff) poleTausS.push(curve.rolloff.filterTauUs * 1e-6);
   const highpassTauS = curve.highpass ? curve.highpass.filterTauUs * 1e-6 : null;
   if (highpassTauS !== null) poleTausS.push(highpassTauS);
+  // No shelf under a turnover: integrator 1/s, cancelled by the high-pass's s (validated).
+  const integrator = curve.turnover !== null && curve.shelf === null;
+  const dcZeroTauS = integrator ? null : highpassTauS;
 
-  const ref = factorResponse(zeroTausS, poleTausS, highpassTauS, curve.reference.hz);
+  const ref = factorResponse(zeroTausS, poleTausS, dcZeroTauS, curve.reference.hz);
   const gainK = dbToLinear(curve.reference.db) / Math.sqrt(ref.mag2);
 
   // (1 + sτ) = τ·(s + 1/τ): zero at −1/τ, factor τ into the gain; likewise for poles.
@@ -80,11 +91,11 @@ export function buildAnalogModel(curve: ResolvedCurve): AnalogModel {
   let k = gainK;
   for (const t of zeroTausS) k *= t;
   for (const t of poleTausS) k /= t;
-  if (highpassTauS !== null) {
+  if (dcZeroTauS !== null) {
     zerosRadS.push(0);
-    k *= highpassTauS;
+    k *= dcZeroTauS;
   }
-  return { curve, zeroTausS, poleTausS, highpassTauS, gainK, zerosRadS, polesRadS, k };
+  return { curve, zeroTausS, poleTausS, dcZeroTauS, gainK, zerosRadS, polesRadS, k };
 }
 
 /** Resolve (validate) a spec and build its analog model. */
@@ -94,13 +105,13 @@ export function analogModel(spec: CurveSpec): AnalogModel {
 
 /** Normalised gain (dB) at one frequency. */
 export function analogGainDb(model: AnalogModel, hz: number): number {
-  const r = factorResponse(model.zeroTausS, model.poleTausS, model.highpassTauS, hz);
+  const r = factorResponse(model.zeroTausS, model.poleTausS, model.dcZeroTauS, hz);
   return 10 * Math.log10(r.mag2) + 20 * Math.log10(model.gainK);
 }
 
 /** Phase (rad, continuous, not wrapped) at one frequency. */
 export function analogPhaseRad(model: AnalogModel, hz: number): number {
-  return factorResponse(model.zeroTausS, model.poleTausS, model.highpassTauS, hz).phaseRad;
+  return factorResponse(model.zeroTausS, model.poleTausS, model.dcZeroTauS, hz).phaseRad;
 }
 
 export interface AnalogResponse {
@@ -117,7 +128,7 @@ export function analogResponse(model: AnalogModel, frequenciesHz: ArrayLike<numb
   const kDb = 20 * Math.log10(model.gainK);
   for (let i = 0; i < frequenciesHz.length; i++) {
     const hz = frequenciesHz[i];
-    const r = factorResponse(model.zeroTausS, model.poleTausS, model.highpassTauS, hz);
+    const r = factorResponse(model.zeroTausS, model.poleTausS, model.dcZeroTauS, hz);
     const mag = model.gainK * Math.sqrt(r.mag2);
     out.hz.push(hz);
     out.gainDb.push(10 * Math.log10(r.mag2) + kDb);
@@ -131,7 +142,7 @@ export function analogResponse(model: AnalogModel, frequenciesHz: ArrayLike<numb
 /** Fill re/im with the normalised complex response (fast path for the filter designers). */
 export function analogComplexInto(model: AnalogModel, frequenciesHz: ArrayLike<number>, re: Float64Array, im: Float64Array): void {
   for (let i = 0; i < frequenciesHz.length; i++) {
-    const r = factorResponse(model.zeroTausS, model.poleTausS, model.highpassTauS, frequenciesHz[i]);
+    const r = factorResponse(model.zeroTausS, model.poleTausS, model.dcZeroTauS, frequenciesHz[i]);
     const mag = model.gainK * Math.sqrt(r.mag2);
     re[i] = mag * Math.cos(r.phaseRad);
     im[i] = mag * Math.sin(r.phaseRad);

@@ -2,7 +2,8 @@
  * Straight-line (Bode asymptote) description of a curve: each (1 + sτ) factor
  * contributes 0 dB/decade below 1/(2πτ) and ±20 dB/decade above (20·log10 of
  * ωτ per decade of ω); s·τh contributes +20 dB/decade everywhere, which its own
- * pole cancels above the high-pass corner.
+ * pole cancels above the high-pass corner (a turnover without a shelf has an
+ * integrator instead, which that s cancels: see analog.ts).
  */
 import type { AnalogModel } from "./analog";
 import type { CornerName } from "./types";
@@ -45,11 +46,11 @@ export function asymptotes(model: AnalogModel): Asymptotes {
     let db = 20 * Math.log10(model.gainK);
     for (const t of model.zeroTausS) db += 20 * Math.log10(Math.max(1, w * t));
     for (const t of model.poleTausS) db -= 20 * Math.log10(Math.max(1, w * t));
-    if (model.highpassTauS !== null) db += 20 * Math.log10(w * model.highpassTauS);
+    if (model.dcZeroTauS !== null) db += 20 * Math.log10(w * model.dcZeroTauS);
     return db;
   };
 
-  let slope = curve.highpass ? 20 : 0;
+  let slope = model.dcZeroTauS !== null ? 20 : 0;
   const segments: AsymptoteSegment[] = [];
   const corners: AsymptoteCorner[] = [];
   let from: number | null = null;

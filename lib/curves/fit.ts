@@ -96,7 +96,7 @@ function cornerTauUs(spec: CurveSpec, name: CornerName): number | null {
 function symmetricEigen(a: number[][]): { min: number; max: number; minVector: number[] } {
   const n = a.length;
   const m = a.map((r) => r.slice());
-  const v = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
+  const v: number[][] = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
   for (let sweep = 0; sweep < 60; sweep++) {
     let off = 0;
     for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) off += m[i][j] * m[i][j];
@@ -198,13 +198,15 @@ export function fitCurve(request: FitRequest): FitResult {
     const tau = (n: CornerName) => (spec[n] ? (spec[n] as { value: number }).value / speedRatio : null);
     const zeroTausS = [tau("turnover"), tau("ultrasonic")].filter((t): t is number => t !== null).map((t) => t * 1e-6);
     const hp = tau("highpass");
+    const integrator = spec.turnover != null && spec.shelf == null;
     const poleTausS = [tau("shelf"), tau("rolloff"), hp].filter((t): t is number => t !== null).map((t) => t * 1e-6);
     const w = (hz: number) => 2 * Math.PI * hz;
     const raw = (hz: number) => {
       let db = 0;
       for (const t of zeroTausS) db += 10 * Math.log10(1 + (w(hz) * t) ** 2);
       for (const t of poleTausS) db -= 10 * Math.log10(1 + (w(hz) * t) ** 2);
-      if (hp !== null) db += 20 * Math.log10(w(hz) * hp * 1e-6);
+      // s·τh, unless a missing shelf's integrator cancels it (analog.ts).
+      if (hp !== null && !integrator) db += 20 * Math.log10(w(hz) * hp * 1e-6);
       return db;
     };
     const refDb = raw(reference.hz);
@@ -256,8 +258,8 @@ export function fitCurve(request: FitRequest): FitResult {
   const names: FitParameter[] = [...cornerNames, ...(fitLevel ? (["levelOffset"] as FitParameter[]) : [])];
   cols.forEach((c, j) => {
     const maxAbs = Math.max(...c.map(Math.abs));
-    // Changing ln τ by 1 (τ × 2.7) moves no point by 0.01 dB: the points say nothing about it.
-    if (maxAbs < 0.01) {
+    // Changing ln τ by 1 (τ × 2.7) moves no point by 0.05 dB: the points say nothing about it.
+    if (maxAbs < 0.05) {
       throw new CurveError(names[j], `The points do not constrain the ${names[j]}: changing it barely moves the curve at any given frequency.`);
     }
   });

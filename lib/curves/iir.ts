@@ -273,7 +273,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
   const grid = mergeGrids(logPart, linPart);
   const n = grid.length;
 
-  const highpass = model.highpassTauS !== null;
+  const highpass = model.dcZeroTauS !== null;
   const biquads = 2;
   const problem: FitProblem = {
     cosW: new Float64Array(n),
@@ -300,15 +300,9 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
   // Matched-z start: analog root s → digital root e^{sT}. Spare roots start
   // near the origin, at distinct places so their Jacobian columns differ.
   const zeroRoots = model.zeroTausS.map((t) => Math.exp(-T / t));
-  const nonHpPoleTaus = model.poleTausS.filter((t) => t !== model.highpassTauS || !highpass);
-  if (highpass) {
-    // remove exactly one occurrence of the high-pass pole
-    const idx = model.poleTausS.indexOf(model.highpassTauS as number);
-    nonHpPoleTaus.length = 0;
-    model.poleTausS.forEach((t, i) => {
-      if (i !== idx) nonHpPoleTaus.push(t);
-    });
-  }
+  // With a DC zero the high-pass pole gets its own first-order section; it is
+  // the last entry of poleTausS (analog.ts).
+  const nonHpPoleTaus = highpass ? model.poleTausS.slice(0, -1) : model.poleTausS.slice();
   const poleRoots = nonHpPoleTaus.map((t) => Math.exp(-T / t));
   const spareZeros = [-0.3, 0.2, -0.1, 0.1];
   const spareRootsPoles = [-0.2, 0.3, -0.05, 0.05];
@@ -327,7 +321,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
     params[3 + 4 * b] = p1;
     params[4 + 4 * b] = p2;
   }
-  if (highpass) params[np - 1] = Math.atanh(Math.exp(-T / (model.highpassTauS as number)));
+  if (highpass) params[np - 1] = Math.atanh(Math.exp(-T / (model.dcZeroTauS as number)));
   const scratch = new Float64Array(n);
   evaluate(problem, params, scratch, null);
   let offset = 0;

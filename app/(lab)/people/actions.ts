@@ -11,7 +11,7 @@ export async function inviteAction(_prev: ActionState, form: FormData): Promise<
     const actor = await requirePermission("people:manage");
     await invitePerson(actor, { email: v.email, role: v.role });
     return `Invitation sent to ${v.email.trim().toLowerCase()}. The link works once, for 72 hours.`;
-  });
+  }, { email: v.email ?? "", role: v.role ?? "" });
   revalidatePath("/people");
   return state;
 }

@@ -17,7 +17,7 @@ export default async function PeoplePage() {
           <PeopleTable currentUserId={user.id} />
           <PeopleChanges />
         </div>
-        <Panel title="Invite someone">
+        <Panel title="Invite someone" className="self-start">
           <InviteForm />
         </Panel>
       </div>

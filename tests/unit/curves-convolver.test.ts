@@ -1,0 +1,48 @@
+import { describe, expect, it } from "vitest";
+import { convolveDirect, StreamingConvolver } from "@/lib/curves";
+
+function prng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = Math.imul(a ^ (a >>> 15), a | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
+  };
+}
+
+describe("streaming convolver", () => {
+  it.each([[1], [7], [300], [1000]])("chunked output equals one-shot direct convolution (%i taps)", (tapCount) => {
+    const rand = prng(tapCount);
+    const taps = Float64Array.from({ length: tapCount }, rand);
+    const signal = Float64Array.from({ length: 5000 }, rand);
+    const direct = convolveDirect(signal, taps);
+    const conv = new StreamingConvolver(taps);
+    const out: number[] = [];
+    let pos = 0;
+    const sizes = [1, 2, 3, 17, 64, conv.blockSize, conv.blockSize + 5, 999, 4];
+    for (let i = 0; pos < signal.length; i++) {
+      const n = Math.min(sizes[i % sizes.length], signal.length - pos);
+      const chunk = conv.process(signal.subarray(pos, pos + n));
+      expect(chunk.length).toBe(n);
+      out.push(...chunk);
+      pos += n;
+    }
+    out.push(...conv.flush());
+    expect(out.length).toBe(direct.length);
+    let scale = 0;
+    for (const v of direct) scale = Math.max(scale, Math.abs(v));
+    for (let i = 0; i < direct.length; i++) {
+      // Float64 FFT round-off grows like log2(N)·ε relative to the signal scale.
+      expect(Math.abs(out[i] - direct[i])).toBeLessThan(1e-12 * scale * Math.max(1, tapCount));
+    }
+  });
+
+  it("starts over after reset", () => {
+    const conv = new StreamingConvolver([0.5, 0.25]);
+    conv.process([1, 1, 1]);
+    conv.reset();
+    const out = conv.process([1, 0, 0]);
+    [0.5, 0.25, 0].forEach((v, i) => expect(out[i]).toBeCloseTo(v, 12));
+  });
+});

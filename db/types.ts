@@ -82,7 +82,29 @@ export interface OutboxTable {
   sent_at: Timestamp | null;
 }
 
+export interface CurvePresetsTable {
+  id: Generated<string>;
+  name: string;
+  current_version: Generated<number>;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+}
+
+export interface CurvePresetVersionsTable {
+  preset_id: string;
+  version: number;
+  name: string;
+  /** The CurveSpec of lib/curves, as JSON. */
+  spec: Json;
+  notes: Generated<string>;
+  change_note: string;
+  created_by: string | null;
+  created_at: DefaultTimestamp;
+}
+
 export interface Database {
+  curve_presets: CurvePresetsTable;
+  curve_preset_versions: CurvePresetVersionsTable;
   users: UsersTable;
   invitations: InvitationsTable;
   password_resets: PasswordResetsTable;

@@ -14,6 +14,13 @@ export const routeAccess = {
   "GET /api/users": "people:read",
   "GET /api/people-changes": "people:read",
   "GET /api/outbox": "outbox:read",
+  "GET /api/curves/presets": "curves:read",
+  "POST /api/curves/presets": "curves:edit",
+  "GET /api/curves/presets/[id]": "curves:read",
+  "PATCH /api/curves/presets/[id]": "curves:edit",
+  "GET /api/curves/presets/[id]/versions": "curves:read",
+  "POST /api/curves/response": "curves:read",
+  "POST /api/curves/fit": "curves:read",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

@@ -220,7 +220,7 @@ function levenbergMarquardt(p: FitProblem, params: Float64Array, maxIterations: 
           lambda = Math.max(lambda / 5, 1e-12);
           accepted = true;
           evaluate(p, params, model, jac);
-          if (relGain < 1e-7) return it + 1;
+          if (relGain < 1e-6) return it + 1;
           break;
         }
       }
@@ -331,7 +331,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
   let iterations = levenbergMarquardt(problem, params, 80);
   // Lawson passes: weight each point by its current error so the largest
   // errors shrink, moving from least squares towards minimax.
-  for (let pass = 0; pass < 3; pass++) {
+  for (let pass = 0; pass < 2; pass++) {
     evaluate(problem, params, scratch, null);
     let sum = 0;
     for (let i = 0; i < n; i++) {
@@ -339,7 +339,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
       sum += problem.weight[i];
     }
     for (let i = 0; i < n; i++) problem.weight[i] *= n / sum;
-    iterations += levenbergMarquardt(problem, params, 15);
+    iterations += levenbergMarquardt(problem, params, 10);
   }
 
   // Assemble the sections; the overall gain goes into the first one.

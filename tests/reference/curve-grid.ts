@@ -4,8 +4,8 @@
  * high-pass, no shelf with high-pass), plus the published curves and
  * ultrasonic-zero cases. 205 curves.
  */
-import type { CurveSpec } from "@/lib/curves";
-import { BS1928_COARSE_SPEC, IEC_HIGHPASS_SPEC, RIAA_SPEC } from "@/lib/curves";
+import type { CurveSpec } from "../../lib/curves";
+import { BS1928_COARSE_SPEC, IEC_HIGHPASS_SPEC, RIAA_SPEC } from "../../lib/curves";
 
 export const COMMON_RATES_HZ = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000];
 

@@ -1,0 +1,16 @@
+import { type CurveSpec, fitCurve } from "@/lib/curves";
+import { route } from "@/lib/http/route";
+import { asCurveAppError } from "@/lib/presets/curve-check";
+import { fitRequestSchema } from "@/lib/validation/curves";
+
+export const dynamic = "force-dynamic";
+
+/** Fits the chosen parameters to (Hz, dB) points; answers 422 when the points cannot determine them. */
+export const POST = route("POST /api/curves/fit", async (req) => {
+  const body = fitRequestSchema.parse(await req.json().catch(() => ({})));
+  try {
+    return { fit: fitCurve({ points: body.points, kind: body.kind, fit: body.fit, initial: body.initial as CurveSpec, levelOffsetDb: body.levelOffsetDb }) };
+  } catch (err) {
+    throw asCurveAppError(err, "fit");
+  }
+});

@@ -1,0 +1,109 @@
+import "server-only";
+import { sql } from "kysely";
+import { db } from "../../db";
+import type { CurveSpec } from "../curves";
+import type { SessionUser } from "../auth/session-user";
+import { AppError } from "../http/errors";
+import { createPresetSchema, updatePresetSchema } from "../validation/curves";
+import { checkSpec } from "./curve-check";
+
+export interface PresetVersion {
+  presetId: string;
+  version: number;
+  name: string;
+  spec: CurveSpec;
+  notes: string;
+  changeNote: string;
+  createdAt: Date;
+  createdBy: string | null;
+}
+
+export interface PresetSummary extends PresetVersion {
+  id: string;
+  currentVersion: number;
+}
+
+function presetQuery() {
+  return db
+    .selectFrom("curve_presets as p")
+    .innerJoin("curve_preset_versions as v", (j) => j.onRef("v.preset_id", "=", "p.id").onRef("v.version", "=", "p.current_version"))
+    .leftJoin("users as u", "u.id", "v.created_by")
+    .select(["p.id", "p.current_version as currentVersion", "v.preset_id as presetId", "v.version", "v.name", "v.spec", "v.notes", "v.change_note as changeNote", "v.created_at as createdAt", "u.name as createdBy"]);
+}
+
+function toSummary(row: Awaited<ReturnType<ReturnType<typeof presetQuery>["execute"]>>[number]): PresetSummary {
+  return { ...row, spec: row.spec as CurveSpec };
+}
+
+export async function listPresets(): Promise<PresetSummary[]> {
+  return (await presetQuery().orderBy("v.name").execute()).map(toSummary);
+}
+
+export async function getPreset(id: string): Promise<PresetSummary> {
+  if (!/^[0-9a-f-]{36}$/i.test(id)) throw new AppError("not_found", 404, "No such preset.");
+  const row = await presetQuery().where("p.id", "=", id).executeTakeFirst();
+  if (!row) throw new AppError("not_found", 404, "No such preset.");
+  return toSummary(row);
+}
+
+export async function getPresetByName(name: string): Promise<PresetSummary | null> {
+  const row = await presetQuery().where(sql`lower(p.name)`, "=", name.toLowerCase()).executeTakeFirst();
+  return row ? toSummary(row) : null;
+}
+
+export async function listPresetVersions(id: string): Promise<PresetVersion[]> {
+  await getPreset(id);
+  const rows = await db
+    .selectFrom("curve_preset_versions as v")
+    .leftJoin("users as u", "u.id", "v.created_by")
+    .select(["v.preset_id as presetId", "v.version", "v.name", "v.spec", "v.notes", "v.change_note as changeNote", "v.created_at as createdAt", "u.name as createdBy"])
+    .where("v.preset_id", "=", id)
+    .orderBy("v.version", "desc")
+    .execute();
+  return rows.map((r) => ({ ...r, spec: r.spec as CurveSpec }));
+}
+
+async function assertNameFree(name: string, exceptId?: string): Promise<void> {
+  let q = db.selectFrom("curve_presets").select("id").where(sql`lower(name)`, "=", name.toLowerCase());
+  if (exceptId) q = q.where("id", "!=", exceptId);
+  if (await q.executeTakeFirst()) throw new AppError("conflict", 409, `A preset named "${name}" already exists.`, { name: ["Already in use."] });
+}
+
+/** A new preset and its version 1, in one transaction. */
+export async function createPreset(actor: SessionUser | null, input: unknown): Promise<PresetSummary> {
+  const { name, spec, notes, changeNote } = createPresetSchema.parse(input);
+  checkSpec(spec as CurveSpec);
+  await assertNameFree(name);
+  const id = await db.transaction().execute(async (trx) => {
+    const preset = await trx.insertInto("curve_presets").values({ name, current_version: 1 }).returning("id").executeTakeFirstOrThrow();
+    await trx
+      .insertInto("curve_preset_versions")
+      .values({ preset_id: preset.id, version: 1, name, spec: JSON.stringify(spec), notes, change_note: changeNote, created_by: actor?.id ?? null })
+      .execute();
+    return preset.id;
+  });
+  return getPreset(id);
+}
+
+/**
+ * An edit makes a new immutable version (who, when, why); the preset then points at it.
+ * The row lock serialises concurrent edits so version numbers never collide.
+ */
+export async function updatePreset(actor: SessionUser, id: string, input: unknown): Promise<PresetSummary> {
+  const patch = updatePresetSchema.parse(input);
+  const current = await getPreset(id);
+  const name = patch.name ?? current.name;
+  const spec = (patch.spec ?? current.spec) as CurveSpec;
+  checkSpec(spec);
+  if (name.toLowerCase() !== current.name.toLowerCase()) await assertNameFree(name, id);
+  await db.transaction().execute(async (trx) => {
+    const locked = await trx.selectFrom("curve_presets").select("current_version").where("id", "=", id).forUpdate().executeTakeFirstOrThrow();
+    const version = locked.current_version + 1;
+    await trx
+      .insertInto("curve_preset_versions")
+      .values({ preset_id: id, version, name, spec: JSON.stringify(spec), notes: patch.notes ?? current.notes, change_note: patch.changeNote, created_by: actor.id })
+      .execute();
+    await trx.updateTable("curve_presets").set({ name, current_version: version, updated_at: sql`now()` }).where("id", "=", id).execute();
+  });
+  return getPreset(id);
+}

@@ -13,6 +13,7 @@
  *
  * Exit codes: 0 done, 2 bad flags or an invalid curve, 1 anything else.
  */
+import { env } from "../lib/env";
 import { readFile } from "node:fs/promises";
 import { parseArgs } from "node:util";
 import {
@@ -82,17 +83,17 @@ function numberFlag(values: Values, name: string): number | undefined {
 }
 
 async function loadPreset(name: string): Promise<CurveSpec> {
-  const url = process.env.DATABASE_URL;
-  if (!url) throw new UsageError("--preset needs DATABASE_URL to reach the preset library.");
+  // The demo lab's database unless DATABASE_URL names another (lib/env).
+  const url = env().DATABASE_URL;
   const { default: pg } = await import("pg");
   const client = new pg.Client({ connectionString: url });
   await client.connect();
   try {
     const result = await client.query<{ spec: CurveSpec }>(
-      "SELECT v.spec FROM curve_presets p JOIN curve_preset_versions v ON v.preset_id = p.id AND v.version = p.current_version WHERE p.name = $1",
+      "SELECT v.spec FROM curve_presets p JOIN curve_preset_versions v ON v.preset_id = p.id AND v.version = p.current_version WHERE lower(p.name) = lower($1)",
       [name],
     );
-    if (result.rows.length === 0) throw new UsageError(`No preset named "${name}".`);
+    if (result.rows.length === 0) throw new UsageError(`No preset named "${name}" in the library at ${new URL(url).host}.`);
     const spec = result.rows[0].spec;
     return typeof spec === "string" ? (JSON.parse(spec) as CurveSpec) : spec;
   } finally {
@@ -234,8 +235,13 @@ async function fit(values: Values, positionals: string[]): Promise<void> {
   }
   lines.push(`level offset ${fmt(result.levelOffsetDb, 3)} dB${params.includes("levelOffset") ? "  (fitted)" : ""}`);
   lines.push(`RMS residual ${fmt(result.rmsDb, 4)} dB, worst ${fmt(result.worstDb, 4)} dB at ${result.worstHz} Hz (${result.kind} table, ${points.length} points)`);
-  lines.push("      Hz    given    model  residual");
-  for (const r of result.residuals) lines.push(`${fmt(r.hz, 1).padStart(8)} ${fmt(r.db, 3).padStart(8)} ${fmt(r.modelDb, 3).padStart(8)} ${fmt(r.residualDb, 4).padStart(9)}`);
+  // Show the model in the table's own convention (recording = −playback).
+  const sign = result.kind === "recording" ? -1 : 1;
+  lines.push(`      Hz    given    model  residual   (${result.kind} levels)`);
+  for (const r of result.residuals) {
+    const model = sign * r.modelDb;
+    lines.push(`${fmt(r.hz, 1).padStart(8)} ${fmt(r.db, 3).padStart(8)} ${fmt(model, 3).padStart(8)} ${fmt(r.db - model, 4).padStart(9)}`);
+  }
   process.stdout.write(lines.join("\n") + "\n");
 }
 

@@ -353,7 +353,19 @@ interface AsymptoteData {
   levelAt: (hz: number) => number;
 }
 
-/** Corner markers with name and frequency, and each straight segment's slope written along it. */
+interface Box {
+  x0: number;
+  x1: number;
+  y0: number;
+  y1: number;
+}
+const overlaps = (a: Box, b: Box) => a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1;
+
+/**
+ * Corner markers with name and frequency, and each straight segment's slope written along it.
+ * Labels are placed greedily: the free side of the corner first, then the other side, then further out,
+ * so neighbouring corners (a high-pass next to a shelf) do not print over each other.
+ */
 function AsymptoteLabels({
   asym,
   x,
@@ -371,48 +383,85 @@ function AsymptoteLabels({
 }) {
   const halo = { paintOrder: "stroke" as const, stroke: "#fffdf8", strokeWidth: 4, strokeLinejoin: "round" as const };
   const inside = (hz: number) => hz >= PLOT_LOW_HZ && hz <= PLOT_HIGH_HZ;
+
+  const placed: Box[] = [];
+  const cornerLabels = [...asym.corners]
+    .filter((c) => inside(c.hz))
+    .sort((a, b) => a.hz - b.hz)
+    .flatMap((c) => {
+      const cx = x(c.hz);
+      const cy = y(c.asymptoteGainDb);
+      if (cy < 0 || cy > height) return [];
+      placed.push({ x0: cx - 6, x1: cx + 6, y0: cy - 6, y1: cy + 6 });
+      const name = CORNER_WORDS[c.parameter];
+      const freq = formatHz(c.hz);
+      const w = Math.max(name.length * 6.6, freq.length * 6.9) + 6;
+      const anchor: "start" | "middle" | "end" = cx < w / 2 + 4 ? "start" : cx > width - w / 2 - 4 ? "end" : "middle";
+      const bx0 = anchor === "start" ? cx - 2 : anchor === "end" ? cx - w + 2 : cx - w / 2;
+      // The real curve passes 3 dB below a pole's corner and 3 dB above a zero's: the label goes on the free side first.
+      const prefersAbove = c.slopeChangeDbPerDecade < 0;
+      const tries = prefersAbove ? [-1, 1, -2, 2, -3, 3] : [1, -1, 2, -2, 3, -3];
+      let chosen: { ty: number; box: Box; above: boolean } | null = null;
+      for (const t of tries) {
+        const above = t < 0;
+        const step = Math.abs(t) - 1;
+        const ty = above ? cy - 26 - step * 30 : cy + 22 + step * 30;
+        const box = { x0: bx0, x1: bx0 + w, y0: ty - 12, y1: ty + 17 };
+        if (box.y0 < -4 || box.y1 > height + 4) continue;
+        if (placed.some((b) => overlaps(b, box))) continue;
+        chosen = { ty, box, above };
+        break;
+      }
+      if (!chosen) {
+        const ty = prefersAbove ? cy - 26 : cy + 22;
+        chosen = { ty, box: { x0: bx0, x1: bx0 + w, y0: ty - 12, y1: ty + 17 }, above: prefersAbove };
+      }
+      placed.push(chosen.box);
+      return [{ c, cx, cy, anchor, ...chosen }];
+    });
+
+  const slopeLabels = asym.segments.flatMap((s, i) => {
+    const from = Math.max(PLOT_LOW_HZ, s.fromHz ?? PLOT_LOW_HZ);
+    const to = Math.min(PLOT_HIGH_HZ, s.toHz ?? PLOT_HIGH_HZ);
+    if (!(to > from) || x(to) - x(from) < 80) return [];
+    const mid = Math.sqrt(from * to);
+    const x0 = x(from);
+    const x1 = x(to);
+    const y0 = y(asym.levelAt(from));
+    const y1 = y(asym.levelAt(to));
+    const angle = (Math.atan2(y1 - y0, x1 - x0) * 180) / Math.PI;
+    const cx = x(mid);
+    const cy = y(asym.levelAt(mid));
+    if (cy < 12 || cy > height - 12) return [];
+    const text = `${formatSigned(s.slopeDbPerDecade, 0)} dB/decade`;
+    const half = (text.length * 6.2) / 2;
+    const rad = (angle * Math.PI) / 180;
+    const dx = Math.abs(Math.cos(rad)) * half + 4;
+    const dy = Math.abs(Math.sin(rad)) * half + 12;
+    const box = { x0: cx - dx, x1: cx + dx, y0: cy - dy - 4, y1: cy + dy - 4 };
+    if (placed.some((b) => overlaps(b, box))) return [];
+    return [{ key: i, cx, cy, angle, text }];
+  });
+
   return (
     <g data-testid="asymptote-labels">
-      {asym.segments.map((s, i) => {
-        const from = Math.max(PLOT_LOW_HZ, s.fromHz ?? PLOT_LOW_HZ);
-        const to = Math.min(PLOT_HIGH_HZ, s.toHz ?? PLOT_HIGH_HZ);
-        if (!(to > from) || x(to) - x(from) < 70) return null;
-        const mid = Math.sqrt(from * to);
-        const x0 = x(from);
-        const x1 = x(to);
-        const y0 = y(asym.levelAt(from));
-        const y1 = y(asym.levelAt(to));
-        const angle = (Math.atan2(y1 - y0, x1 - x0) * 180) / Math.PI;
-        const cx = x(mid);
-        const cy = y(asym.levelAt(mid));
-        if (cy < 10 || cy > height - 10) return null;
-        return (
-          <text key={i} transform={`translate(${cx},${cy}) rotate(${angle})`} y={-7} textAnchor="middle" fontSize={11} fill={color} fontStyle="italic" style={halo}>
-            {formatSigned(s.slopeDbPerDecade, 0)} dB/decade
+      {slopeLabels.map((l) => (
+        <text key={l.key} transform={`translate(${l.cx},${l.cy}) rotate(${l.angle})`} y={-7} textAnchor="middle" fontSize={11} fill={color} fontStyle="italic" style={halo}>
+          {l.text}
+        </text>
+      ))}
+      {cornerLabels.map(({ c, cx, cy, ty, above, anchor }) => (
+        <g key={c.parameter} data-testid={`corner-${c.parameter}`}>
+          <line x1={cx} x2={cx} y1={above ? cy - 6 : cy + 6} y2={above ? ty + 18 : ty - 12} stroke={color} strokeWidth={1} strokeOpacity={0.7} />
+          <circle cx={cx} cy={cy} r={4.5} fill="white" stroke={color} strokeWidth={2} />
+          <text x={cx} y={ty} textAnchor={anchor} fontSize={11.5} fill="#1d2327" style={halo}>
+            <tspan fontWeight={600}>{CORNER_WORDS[c.parameter]}</tspan>
+            <tspan x={cx} dy="1.2em" className="font-mono" fontSize={11}>
+              {formatHz(c.hz)}
+            </tspan>
           </text>
-        );
-      })}
-      {asym.corners.filter((c) => inside(c.hz)).map((c) => {
-        const cx = x(c.hz);
-        const cy = y(c.asymptoteGainDb);
-        if (cy < 0 || cy > height) return null;
-        // The real curve passes 3 dB below a pole's corner and 3 dB above a zero's: put the label on the free side.
-        const above = c.slopeChangeDbPerDecade < 0;
-        const anchor = cx < 70 ? "start" : cx > width - 70 ? "end" : "middle";
-        const ty = above ? cy - 26 : cy + 22;
-        return (
-          <g key={c.parameter} data-testid={`corner-${c.parameter}`}>
-            <circle cx={cx} cy={cy} r={4.5} fill="white" stroke={color} strokeWidth={2} />
-            <line x1={cx} x2={cx} y1={above ? cy - 6 : cy + 6} y2={above ? cy - 14 : cy + 10} stroke={color} strokeWidth={1} />
-            <text x={cx} y={ty} textAnchor={anchor} fontSize={11.5} fill="#1d2327" style={halo}>
-              <tspan fontWeight={600}>{CORNER_WORDS[c.parameter]}</tspan>
-              <tspan x={cx} dy="1.2em" className="font-mono" fontSize={11}>
-                {formatHz(c.hz)}
-              </tspan>
-            </text>
-          </g>
-        );
-      })}
+        </g>
+      ))}
     </g>
   );
 }

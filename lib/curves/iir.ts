@@ -60,6 +60,8 @@ interface FitProblem {
   weight: Float64Array;
   /** Fixed dB contribution of the exact DC zero (1 − z⁻¹), or zeros. */
   fixedDb: Float64Array;
+  /** Scratch: product of |P|² ratios per point. */
+  ratio: Float64Array;
   biquads: number;
   highpass: boolean;
 }
@@ -90,8 +92,10 @@ function unreflect(r1: number, r2: number): [number, number] {
 function evaluate(p: FitProblem, params: Float64Array, model: Float64Array, jac: Float64Array | null): void {
   const n = p.target.length;
   const np = params.length;
-  model.set(p.fixedDb);
-  for (let i = 0; i < n; i++) model[i] += params[0];
+  // Multiply the |P|² ratios per point and take one logarithm at the end
+  // (logs dominate the cost; the products stay far inside float64 range).
+  const ratio = p.ratio;
+  ratio.fill(1);
   if (jac) {
     jac.fill(0);
     for (let i = 0; i < n; i++) jac[i * np] = 1;
@@ -99,22 +103,34 @@ function evaluate(p: FitProblem, params: Float64Array, model: Float64Array, jac:
   for (let b = 0; b < p.biquads; b++) {
     for (let side = 0; side < 2; side++) {
       const off = 1 + 4 * b + 2 * side;
-      const sign = side === 0 ? 1 : -1;
-      const r = reflect(params[off], params[off + 1]);
+      const zeroSide = side === 0;
+      const k1 = Math.tanh(params[off]);
+      const k2 = Math.tanh(params[off + 1]);
+      const c1 = k1 * (1 + k2);
+      const c2 = k2;
+      const dk1 = 1 - k1 * k1;
+      const dk2 = 1 - k2 * k2;
+      const d11 = (1 + k2) * dk1;
+      const d12 = k1 * dk2;
+      const sign = zeroSide ? DB_PER_NEPER_SQ : -DB_PER_NEPER_SQ;
       for (let i = 0; i < n; i++) {
         // P(e^{jω}) = 1 + c1 e^{-jω} + c2 e^{-2jω}
-        const pr = 1 + r.c1 * p.cosW[i] + r.c2 * p.cos2W[i];
-        const pi = -(r.c1 * p.sinW[i] + r.c2 * p.sin2W[i]);
+        const cw = p.cosW[i];
+        const sw = p.sinW[i];
+        const c2w = p.cos2W[i];
+        const s2w = p.sin2W[i];
+        const pr = 1 + c1 * cw + c2 * c2w;
+        const pi = -(c1 * sw + c2 * s2w);
         const m2 = pr * pr + pi * pi;
-        model[i] += sign * 10 * Math.log10(m2);
+        if (zeroSide) ratio[i] *= m2;
+        else ratio[i] /= m2;
         if (jac) {
           // Re(e^{-jmω}/P) = Re(e^{-jmω}·conj(P))/|P|²
-          const g1 = (p.cosW[i] * pr - p.sinW[i] * pi) / m2;
-          const g2 = (p.cos2W[i] * pr - p.sin2W[i] * pi) / m2;
-          const dc1 = sign * DB_PER_NEPER_SQ * g1;
-          const dc2 = sign * DB_PER_NEPER_SQ * g2;
-          jac[i * np + off] = dc1 * r.d11;
-          jac[i * np + off + 1] = dc1 * r.d12 + dc2 * r.d22;
+          const g1 = (sign * (cw * pr - sw * pi)) / m2;
+          const g2 = (sign * (c2w * pr - s2w * pi)) / m2;
+          const row = i * np + off;
+          jac[row] = g1 * d11;
+          jac[row + 1] = g1 * d12 + g2 * dk2;
         }
       }
     }
@@ -128,13 +144,15 @@ function evaluate(p: FitProblem, params: Float64Array, model: Float64Array, jac:
       const qr = 1 - pole * p.cosW[i];
       const qi = pole * p.sinW[i];
       const m2 = qr * qr + qi * qi;
-      model[i] -= 10 * Math.log10(m2);
+      ratio[i] /= m2;
       if (jac) {
         const g = -(p.cosW[i] * qr - p.sinW[i] * qi) / m2;
         jac[i * np + off] = -DB_PER_NEPER_SQ * g * dPole;
       }
     }
   }
+  const g0 = params[0];
+  for (let i = 0; i < n; i++) model[i] = p.fixedDb[i] + g0 + DB_PER_NEPER_SQ * 0.5 * Math.log(ratio[i]);
 }
 
 /** Solve the small symmetric positive system A·x = b in place (Cholesky); returns false if not positive definite. */
@@ -220,7 +238,7 @@ function levenbergMarquardt(p: FitProblem, params: Float64Array, maxIterations: 
           lambda = Math.max(lambda / 5, 1e-12);
           accepted = true;
           evaluate(p, params, model, jac);
-          if (relGain < 1e-6) return it + 1;
+          if (relGain < 1e-7) return it + 1;
           break;
         }
       }
@@ -283,6 +301,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
     target: new Float64Array(n),
     weight: new Float64Array(n).fill(1),
     fixedDb: new Float64Array(n),
+    ratio: new Float64Array(n),
     biquads,
     highpass,
   };
@@ -331,7 +350,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
   let iterations = levenbergMarquardt(problem, params, 80);
   // Lawson passes: weight each point by its current error so the largest
   // errors shrink, moving from least squares towards minimax.
-  for (let pass = 0; pass < 2; pass++) {
+  for (let pass = 0; pass < 3; pass++) {
     evaluate(problem, params, scratch, null);
     let sum = 0;
     for (let i = 0; i < n; i++) {
@@ -339,7 +358,7 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
       sum += problem.weight[i];
     }
     for (let i = 0; i < n; i++) problem.weight[i] *= n / sum;
-    iterations += levenbergMarquardt(problem, params, 10);
+    iterations += levenbergMarquardt(problem, params, 15);
   }
 
   // Assemble the sections; the overall gain goes into the first one.

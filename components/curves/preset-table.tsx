@@ -1,0 +1,123 @@
+"use client";
+/**
+ * The lab's curve library: every preset at its current version, each corner
+ * in the units the trade quotes it in, and the peak gain worked out in the
+ * browser from the stored curve.
+ */
+import { useQuery } from "@tanstack/react-query";
+import { createColumnHelper } from "@tanstack/react-table";
+import Link from "next/link";
+import { useMemo } from "react";
+import { Badge } from "@/components/ui/badge";
+import { DataTable } from "@/components/ui/data-table";
+import { type CurveSpec, describeCurve, type ResolvedCorner, type ResolvedCurve } from "@/lib/curves";
+import { fetchJson } from "@/lib/http/client";
+import { formatDb, formatHz, formatNumber } from "./plot-format";
+import type { PresetSummaryJson } from "./workbench";
+
+interface Row extends PresetSummaryJson {
+  curve: ResolvedCurve | null;
+  peakGainDb: number | null;
+  peakHz: number | null;
+  problem: string | null;
+}
+
+const column = createColumnHelper<Row>();
+const dateFmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
+
+function toRow(p: PresetSummaryJson): Row {
+  try {
+    const d = describeCurve(p.spec as CurveSpec);
+    return { ...p, curve: d.curve, peakGainDb: d.peakGainDb, peakHz: d.peakHz, problem: null };
+  } catch (err) {
+    return { ...p, curve: null, peakGainDb: null, peakHz: null, problem: err instanceof Error ? err.message : String(err) };
+  }
+}
+
+/** Corner cell: the entered form first, the other unit beside it. */
+function CornerCell({ corner, rolloff }: { corner: ResolvedCorner | null | undefined; rolloff?: boolean }) {
+  if (!corner) return <span className="text-ink-faint">none</span>;
+  if (rolloff) {
+    return (
+      <span className="whitespace-nowrap font-mono text-xs">
+        <span className="text-sm text-ink">{(corner.db10k ?? 0).toFixed(1)} dB</span>
+        <span className="text-ink-faint"> · {formatNumber(corner.tauUs)} µs · {formatHz(corner.hz)}</span>
+      </span>
+    );
+  }
+  return (
+    <span className="whitespace-nowrap font-mono text-xs">
+      <span className="text-sm text-ink">{formatHz(corner.hz)}</span>
+      <span className="text-ink-faint"> · {formatNumber(corner.tauUs)} µs</span>
+    </span>
+  );
+}
+
+export function PresetTable() {
+  const { data, isLoading, error } = useQuery({ queryKey: ["curve-presets"], queryFn: () => fetchJson<{ presets: PresetSummaryJson[] }>("/api/curves/presets") });
+  const rows = useMemo(() => data?.presets.map(toRow), [data]);
+
+  const columns = useMemo(
+    () => [
+      column.accessor("name", {
+        header: "Name",
+        cell: (c) => (
+          <div className="min-w-48">
+            <Link href={`/curves/workbench?preset=${encodeURIComponent(c.row.original.id)}`} className="font-medium text-shellac-deep underline-offset-2 hover:underline" data-testid="preset-link">
+              {c.getValue()}
+            </Link>
+            {c.row.original.notes ? <p className="line-clamp-1 max-w-xs text-xs text-ink-faint">{c.row.original.notes}</p> : null}
+            {c.row.original.problem ? <p className="text-xs text-alarm">{c.row.original.problem}</p> : null}
+          </div>
+        ),
+      }),
+      column.accessor("version", { header: "Version", cell: (c) => <span className="font-mono">v{c.getValue()}</span> }),
+      column.accessor((r) => r.curve?.turnover?.hz ?? 0, { id: "turnover", header: "Turnover", cell: (c) => <CornerCell corner={c.row.original.curve?.turnover} /> }),
+      column.accessor((r) => r.curve?.shelf?.hz ?? 0, { id: "shelf", header: "Shelf", cell: (c) => <CornerCell corner={c.row.original.curve?.shelf} /> }),
+      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, { id: "rolloff", header: "Rolloff at 10 kHz", cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff /> }),
+      column.accessor((r) => r.curve?.highpass?.hz ?? 0, { id: "highpass", header: "High-pass", cell: (c) => <CornerCell corner={c.row.original.curve?.highpass} /> }),
+      column.accessor((r) => r.peakGainDb ?? -Infinity, {
+        id: "peak",
+        header: "Peak gain",
+        cell: (c) => {
+          const r = c.row.original;
+          if (r.peakGainDb === null) return <Badge tone="alarm">invalid</Badge>;
+          return (
+            <span className="whitespace-nowrap font-mono text-xs">
+              <span className={r.peakGainDb > 15 ? "text-sm font-semibold text-shellac-deep" : "text-sm"}>{formatDb(r.peakGainDb)}</span>
+              <span className="text-ink-faint"> @ {formatHz(r.peakHz ?? NaN)}</span>
+            </span>
+          );
+        },
+      }),
+      column.accessor((r) => r.createdAt, {
+        id: "updated",
+        header: "Updated",
+        sortingFn: "datetime",
+        cell: (c) => (
+          <div className="whitespace-nowrap text-xs">
+            <p>{c.row.original.createdBy ?? "—"}</p>
+            <p className="text-ink-faint">
+              <time dateTime={c.row.original.createdAt}>{dateFmt.format(new Date(c.row.original.createdAt))}</time>
+            </p>
+          </div>
+        ),
+      }),
+    ],
+    [],
+  );
+
+  return (
+    <DataTable
+      columns={columns}
+      data={rows}
+      label="Curve presets"
+      urlKey="presets"
+      loading={isLoading}
+      error={error ? (error as Error).message : null}
+      empty="No presets yet. Start one in the workbench."
+      testId="preset-table"
+      defaultSort="name"
+    />
+  );
+}

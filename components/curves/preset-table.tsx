@@ -34,22 +34,14 @@ function toRow(p: PresetSummaryJson): Row {
   }
 }
 
-/** Corner cell: the entered form first, the other unit beside it. */
+/** Corner cell: the quoted form on top, the other units under it. */
 function CornerCell({ corner, rolloff }: { corner: ResolvedCorner | null | undefined; rolloff?: boolean }) {
   if (!corner) return <span className="text-ink-faint">none</span>;
-  if (rolloff) {
-    return (
-      <span className="whitespace-nowrap font-mono text-xs">
-        <span className="text-sm text-ink">{(corner.db10k ?? 0).toFixed(1)} dB</span>
-        <span className="text-ink-faint"> · {formatNumber(corner.tauUs)} µs · {formatHz(corner.hz)}</span>
-      </span>
-    );
-  }
   return (
-    <span className="whitespace-nowrap font-mono text-xs">
-      <span className="text-sm text-ink">{formatHz(corner.hz)}</span>
-      <span className="text-ink-faint"> · {formatNumber(corner.tauUs)} µs</span>
-    </span>
+    <div className="whitespace-nowrap font-mono leading-tight">
+      <p className="text-sm text-ink">{rolloff ? `${(corner.db10k ?? 0).toFixed(1)} dB` : formatHz(corner.hz)}</p>
+      <p className="text-xs text-ink-faint">{rolloff ? `${formatNumber(corner.tauUs)} µs · ${formatHz(corner.hz)}` : `${formatNumber(corner.tauUs)} µs`}</p>
+    </div>
   );
 }
 
@@ -62,7 +54,7 @@ export function PresetTable() {
       column.accessor("name", {
         header: "Name",
         cell: (c) => (
-          <div className="min-w-48">
+          <div className="min-w-44 max-w-64">
             <Link href={`/curves/workbench?preset=${encodeURIComponent(c.row.original.id)}`} className="font-medium text-shellac-deep underline-offset-2 hover:underline" data-testid="preset-link">
               {c.getValue()}
             </Link>
@@ -74,7 +66,7 @@ export function PresetTable() {
       column.accessor("version", { header: "Version", cell: (c) => <span className="font-mono">v{c.getValue()}</span> }),
       column.accessor((r) => r.curve?.turnover?.hz ?? 0, { id: "turnover", header: "Turnover", cell: (c) => <CornerCell corner={c.row.original.curve?.turnover} /> }),
       column.accessor((r) => r.curve?.shelf?.hz ?? 0, { id: "shelf", header: "Shelf", cell: (c) => <CornerCell corner={c.row.original.curve?.shelf} /> }),
-      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, { id: "rolloff", header: "Rolloff at 10 kHz", cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff /> }),
+      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, { id: "rolloff", header: "Rolloff (10 kHz)", cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff /> }),
       column.accessor((r) => r.curve?.highpass?.hz ?? 0, { id: "highpass", header: "High-pass", cell: (c) => <CornerCell corner={c.row.original.curve?.highpass} /> }),
       column.accessor((r) => r.peakGainDb ?? -Infinity, {
         id: "peak",
@@ -83,10 +75,10 @@ export function PresetTable() {
           const r = c.row.original;
           if (r.peakGainDb === null) return <Badge tone="alarm">invalid</Badge>;
           return (
-            <span className="whitespace-nowrap font-mono text-xs">
-              <span className={r.peakGainDb > 15 ? "text-sm font-semibold text-shellac-deep" : "text-sm"}>{formatDb(r.peakGainDb)}</span>
-              <span className="text-ink-faint"> @ {formatHz(r.peakHz ?? NaN)}</span>
-            </span>
+            <div className="whitespace-nowrap font-mono leading-tight">
+              <p className={r.peakGainDb > 15 ? "text-sm font-semibold text-shellac-deep" : "text-sm"}>{formatDb(r.peakGainDb)}</p>
+              <p className="text-xs text-ink-faint">at {formatHz(r.peakHz ?? NaN)}</p>
+            </div>
           );
         },
       }),

@@ -155,7 +155,8 @@ export function ResponsePlot({
       lo = mid - 6;
       hi = mid + 6;
     }
-    return scaleLinear().domain([lo - 2, hi + 2]).range([magHeight, 0]).nice(8);
+    // Headroom above the highest corner so its label fits inside the plot.
+    return scaleLinear().domain([lo - 2, hi + (asym ? 7 : 2)]).range([magHeight, 0]).nice(8);
   }, [drawn, points, asym, magHeight]);
 
   const yPhase = useMemo(() => {
@@ -451,7 +452,7 @@ function AsymptoteLabels({
         </text>
       ))}
       {cornerLabels.map(({ c, cx, cy, ty, above, anchor }) => (
-        <g key={c.parameter} data-testid={`corner-${c.parameter}`}>
+        <g key={c.parameter} data-testid={`breakpoint-${c.parameter}`}>
           <line x1={cx} x2={cx} y1={above ? cy - 6 : cy + 6} y2={above ? ty + 18 : ty - 12} stroke={color} strokeWidth={1} strokeOpacity={0.7} />
           <circle cx={cx} cy={cy} r={4.5} fill="white" stroke={color} strokeWidth={2} />
           <text x={cx} y={ty} textAnchor={anchor} fontSize={11.5} fill="#1d2327" style={halo}>

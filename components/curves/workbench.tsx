@@ -394,7 +394,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                       <span className="font-mono text-sm font-semibold">v{v.version}</span>
                       <span className="text-sm font-medium">{v.name}</span>
                       <span className="text-xs text-ink-faint">
-                        {v.createdBy ?? "someone no longer listed"} · <time dateTime={v.createdAt}>{dateFmt.format(new Date(v.createdAt))}</time>
+                        {v.createdBy ?? "no person recorded"} · <time dateTime={v.createdAt}>{dateFmt.format(new Date(v.createdAt))}</time>
                       </span>
                     </div>
                     <p className="mt-1 text-sm text-ink-soft">{v.changeNote}</p>

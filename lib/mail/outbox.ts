@@ -33,24 +33,32 @@ export function retryDelaySeconds(attempts: number): number {
 /**
  * Sends due messages one at a time, each inside its own transaction holding a row lock
  * (FOR UPDATE SKIP LOCKED), so several workers never send the same message twice.
- * Returns how many were sent and how many failed this round.
+ * Returns how many were sent and how many failed this round. `sendNow` limits the
+ * round to those messages and ignores their schedule (a person asked to retry them).
  */
-export async function deliverDueMail(db: Kysely<Database>, transport: Transporter, from: string, limit = 20): Promise<{ sent: number; failed: number }> {
+export async function deliverDueMail(
+  db: Kysely<Database>,
+  transport: Transporter,
+  from: string,
+  opts: { limit?: number; sendNow?: string[] } = {},
+): Promise<{ sent: number; failed: number }> {
+  const limit = opts.limit ?? 20;
+  const tried: string[] = []; // each message at most once a round
   let sent = 0;
   let failed = 0;
   for (let i = 0; i < limit; i++) {
     const outcome = await db.transaction().execute(async (trx) => {
-      const msg = await trx
-        .selectFrom("outbox")
-        .select(["id", "to_address", "subject", "body_text", "attempts"])
-        .where("status", "=", "queued")
-        .where("next_attempt_at", "<=", sql<Date>`now()`)
+      let q = trx.selectFrom("outbox").select(["id", "to_address", "subject", "body_text", "attempts"]).where("status", "=", "queued");
+      q = opts.sendNow ? q.where("id", "in", opts.sendNow.length ? opts.sendNow : ["00000000-0000-0000-0000-000000000000"]) : q.where("next_attempt_at", "<=", sql<Date>`now()`);
+      if (tried.length) q = q.where("id", "not in", tried);
+      const msg = await q
         .orderBy("created_at")
         .limit(1)
         .forUpdate()
         .skipLocked()
         .executeTakeFirst();
       if (!msg) return "none" as const;
+      tried.push(msg.id);
       try {
         await transport.sendMail({ from, to: msg.to_address, subject: msg.subject, text: msg.body_text });
         await trx

@@ -24,29 +24,12 @@ import { DeviationPlot } from "./deviation-plot";
 import { FitPanel, type FitPoints } from "./fit-panel";
 import { CURVE_COLORS, formatDb, formatHz, formatNumber } from "./plot-format";
 import { type PlotCurve, ResponsePlot } from "./response-plot";
+import type { PresetSummary, PresetVersion } from "@/lib/presets";
 
-export interface PresetSummaryJson {
-  id: string;
-  currentVersion: number;
-  version: number;
-  name: string;
-  spec: CurveSpec;
-  notes: string;
-  changeNote: string;
-  createdAt: string;
-  createdBy: string | null;
-}
-
-interface PresetVersionJson {
-  presetId: string;
-  version: number;
-  name: string;
-  spec: CurveSpec;
-  notes: string;
-  changeNote: string;
-  createdAt: string;
-  createdBy: string | null;
-}
+/** A preset and a version as the API sends them (dates as ISO strings). */
+type AsJson<T> = { [K in keyof T]: T[K] extends Date ? string : T[K] };
+export type PresetSummaryJson = AsJson<PresetSummary>;
+type PresetVersionJson = AsJson<PresetVersion>;
 
 const SAMPLE_RATES = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000];
 const MAX_COMPARE = 3;

@@ -1,15 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { parsePointsCsv, PointsParseError } from "@/lib/curves";
+import { thrownBy } from "../support/errors";
 
-function errorOf(text: string): PointsParseError {
-  try {
-    parsePointsCsv(text);
-  } catch (e) {
-    if (e instanceof PointsParseError) return e;
-    throw e;
-  }
-  throw new Error("expected a PointsParseError");
-}
+const errorOf = (text: string) => thrownBy(PointsParseError, () => parsePointsCsv(text));
 
 describe("points CSV", () => {
   it("reads points with an optional header, comments and blank lines", () => {

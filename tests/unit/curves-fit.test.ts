@@ -1,18 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { analogGainDb, analogModel, CurveError, fitCurve, RIAA_SPEC } from "@/lib/curves";
+import { thrownBy } from "../support/errors";
 
 const model = analogModel(RIAA_SPEC);
 const table = [30, 50, 100, 300, 500, 1000, 2000, 5000, 10000, 15000].map((hz) => ({ hz, db: analogGainDb(model, hz) }));
 
-function errorOf(fn: () => unknown): CurveError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof CurveError) return e;
-    throw e;
-  }
-  throw new Error("expected a CurveError");
-}
+const errorOf = (fn: () => unknown) => thrownBy(CurveError, fn);
 
 describe("fit refusals", () => {
   it("refuses fewer points than parameters", () => {

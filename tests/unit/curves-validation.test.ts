@@ -1,18 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { CurveError, designIir, resolveCurve, validateSampleRate } from "@/lib/curves";
 import type { CurveSpec } from "@/lib/curves";
+import { thrownBy } from "../support/errors";
 
 const riaa: CurveSpec = { turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 75 } };
 
-function errorOf(fn: () => unknown): CurveError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof CurveError) return e;
-    throw e;
-  }
-  throw new Error("expected a CurveError");
-}
+const errorOf = (fn: () => unknown) => thrownBy(CurveError, fn);
 
 describe("curve validation names the parameter", () => {
   it.each([

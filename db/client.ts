@@ -4,6 +4,8 @@ import type { Database } from "./types";
 
 // BIGINT counts come back as strings by default; every count we keep fits a double.
 pg.types.setTypeParser(20, (v) => Number(v));
+// Calendar dates stay "YYYY-MM-DD" text: a Date would shift them by the server's time zone.
+pg.types.setTypeParser(1082, (v) => v);
 
 /**
  * Builds a Kysely instance. The app uses the single instance in db/index.ts; scripts,

@@ -57,16 +57,6 @@ export type PeopleChangeKind =
   | "password_reset_requested"
   | "password_reset";
 
-export interface PeopleChangesTable {
-  id: Generated<string>;
-  actor_id: string | null;
-  subject_user_id: string | null;
-  subject_email: string;
-  kind: PeopleChangeKind;
-  detail: Json;
-  at: DefaultTimestamp;
-}
-
 export type OutboxStatus = "queued" | "sent" | "failed";
 
 export interface OutboxTable {
@@ -102,6 +92,80 @@ export interface CurvePresetVersionsTable {
   created_at: DefaultTimestamp;
 }
 
+export interface AccessionsTable {
+  id: Generated<string>;
+  identifier: string;
+  source: string;
+  /** A calendar date, kept as 'YYYY-MM-DD' text on the way in and out. */
+  received_on: ColumnType<string, string, string>;
+  notes: Generated<string>;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+}
+
+export type DiscFormat = "shellac_78" | "instantaneous_lacquer" | "transcription" | "vinyl_78" | "microgroove_lp" | "other";
+export type DiscBase = "aluminium" | "glass" | "card" | "unknown";
+export type ConditionGrade = "unassessed" | "excellent" | "good" | "fair" | "poor" | "unplayable";
+export type SideStatus = "catalogued" | "assigned" | "curve_chosen" | "transferred" | "rendered" | "in_review" | "approved" | "returned";
+
+export interface DiscsTable {
+  id: Generated<string>;
+  accession_id: string;
+  shelf_mark: string;
+  label_name: Generated<string>;
+  catalogue_number: Generated<string>;
+  format: DiscFormat;
+  base: DiscBase | null;
+  /** numeric comes back from pg as a string. */
+  diameter_in: ColumnType<string | null, number | string | null, number | string | null>;
+  nominal_speed_rpm: ColumnType<string | number, number | string, number | string>;
+  groove: "coarse" | "micro";
+  cut: "lateral" | "vertical";
+  recording_date: ColumnType<string | null, string | null, string | null>;
+  recorded_from_year: number | null;
+  recorded_to_year: number | null;
+  condition_grade: Generated<ConditionGrade>;
+  condition_flags: Generated<string[]>;
+  condition_notes: Generated<string>;
+  handling_notes: Generated<string>;
+  version: Generated<number>;
+  search_tsv: Generated<string>;
+  search_codes: Generated<string>;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+}
+
+export interface SidesTable {
+  id: Generated<string>;
+  disc_id: string;
+  designation: string;
+  matrix_number: Generated<string>;
+  take: Generated<string>;
+  title: Generated<string>;
+  performers: Generated<string>;
+  notes: Generated<string>;
+  status: Generated<SideStatus>;
+  assigned_engineer_id: string | null;
+  return_reason: string | null;
+  version: Generated<number>;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+}
+
+export interface ProvenanceEventsTable {
+  seq: ColumnType<number, never, never>;
+  id: string;
+  at: ColumnType<Date, string, never>;
+  actor_id: string | null;
+  kind: string;
+  subject_type: string;
+  subject_id: string | null;
+  disc_id: string | null;
+  payload: ColumnType<unknown, string, never>;
+  prev_hash: string;
+  hash: string;
+}
+
 export interface Database {
   curve_presets: CurvePresetsTable;
   curve_preset_versions: CurvePresetVersionsTable;
@@ -109,7 +173,10 @@ export interface Database {
   invitations: InvitationsTable;
   password_resets: PasswordResetsTable;
   sign_in_attempts: SignInAttemptsTable;
-  people_changes: PeopleChangesTable;
+  accessions: AccessionsTable;
+  discs: DiscsTable;
+  sides: SidesTable;
+  provenance_events: ProvenanceEventsTable;
   outbox: OutboxTable;
 }
 

@@ -14,6 +14,7 @@ export const actions = {
   "curves:edit": "edit curve presets",
   "catalogue:read": "see the catalogue",
   "catalogue:edit": "edit the catalogue",
+  "catalogue:assign": "assign sides to transfer engineers",
   "bench:use": "use the transfer bench",
   "review:decide": "approve or return sides",
   "audit:read": "read the provenance record",
@@ -22,8 +23,8 @@ export const actions = {
 export type Action = keyof typeof actions;
 
 export const permissionTable: Record<Role, readonly Action[]> = {
-  admin: ["lab:enter", "people:read", "people:manage", "outbox:read", "curves:read", "curves:edit", "catalogue:read", "catalogue:edit", "audit:read"],
-  archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit"],
+  admin: ["lab:enter", "people:read", "people:manage", "outbox:read", "curves:read", "curves:edit", "catalogue:read", "catalogue:edit", "catalogue:assign", "audit:read"],
+  archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit", "catalogue:assign"],
   engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use"],
   curator: ["lab:enter", "curves:read", "catalogue:read", "review:decide", "audit:read"],
 };

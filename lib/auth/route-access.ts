@@ -21,6 +21,17 @@ export const routeAccess = {
   "GET /api/curves/presets/[id]/versions": "curves:read",
   "POST /api/curves/response": "curves:read",
   "POST /api/curves/fit": "curves:read",
+  "GET /api/discs": "catalogue:read",
+  "POST /api/discs": "catalogue:edit",
+  "GET /api/discs/[id]": "catalogue:read",
+  "PATCH /api/discs/[id]": "catalogue:edit",
+  "GET /api/discs/[id]/events": "catalogue:read",
+  "GET /api/accessions": "catalogue:read",
+  "POST /api/accessions": "catalogue:edit",
+  "POST /api/sides/[id]/transition": "catalogue:read",
+  "POST /api/assignments": "catalogue:assign",
+  "GET /api/queue": "bench:use",
+  "GET /api/engineers": "catalogue:assign",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

@@ -18,13 +18,15 @@ export class AppError extends Error {
     readonly status: number,
     message: string,
     readonly fields?: Record<string, string[]>,
+    /** Extra data for the client, e.g. the record as it now stands after a conflict. */
+    readonly details?: unknown,
   ) {
     super(message);
     this.name = "AppError";
   }
 
   toJSON() {
-    return { error: { code: this.code, message: this.message, ...(this.fields ? { fields: this.fields } : {}) } };
+    return { error: { code: this.code, message: this.message, ...(this.fields ? { fields: this.fields } : {}), ...(this.details !== undefined ? { details: this.details } : {}) } };
   }
 }
 

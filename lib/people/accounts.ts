@@ -93,11 +93,16 @@ export async function listOpenInvitations() {
 }
 
 export async function listPeopleChanges(limit = 100) {
-  return db
-    .selectFrom("people_changes")
-    .leftJoin("users as actor", "actor.id", "people_changes.actor_id")
-    .select(["people_changes.id", "people_changes.kind", "people_changes.subject_email as subjectEmail", "people_changes.detail", "people_changes.at", "actor.name as actorName"])
-    .orderBy("people_changes.at", "desc")
+  const rows = await db
+    .selectFrom("provenance_events as e")
+    .leftJoin("users as actor", "actor.id", "e.actor_id")
+    .select(["e.id", "e.kind", "e.payload", "e.at", "actor.name as actorName"])
+    .where("e.subject_type", "=", "person")
+    .orderBy("e.seq", "desc")
     .limit(limit)
     .execute();
+  return rows.map((r) => {
+    const { email, ...detail } = r.payload as { email: string } & Record<string, unknown>;
+    return { id: r.id, kind: r.kind.replace(/^person\./, ""), subjectEmail: email, detail, at: r.at, actorName: r.actorName };
+  });
 }

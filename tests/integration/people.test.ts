@@ -56,8 +56,8 @@ describe("invitations", () => {
     const hours = (stored.expires_at.getTime() - Date.now()) / 3600_000;
     expect(hours).toBeGreaterThan(71.9);
     expect(hours).toBeLessThanOrEqual(72);
-    const change = await testDb.selectFrom("people_changes").select(["kind", "actor_id"]).where("subject_email", "=", email).executeTakeFirstOrThrow();
-    expect(change.kind).toBe("invited");
+    const change = await testDb.selectFrom("provenance_events").select(["kind", "actor_id"]).where("subject_id", "=", email).executeTakeFirstOrThrow();
+    expect(change.kind).toBe("person.invited");
   });
 
   it("is accepted once: the second use is refused and creates nothing", async () => {
@@ -152,8 +152,8 @@ describe("deactivation", () => {
     const after = await api("/api/me", { cookie });
     expect(after.status).toBe(401);
     await expect(checkCredentials({ email: u.email, password: u.password }, null)).rejects.toThrow(signInMessages.inactive);
-    const change = await testDb.selectFrom("people_changes").select(["kind"]).where("subject_user_id", "=", u.id).executeTakeFirstOrThrow();
-    expect(change.kind).toBe("deactivated");
+    const change = await testDb.selectFrom("provenance_events").select(["kind"]).where("subject_id", "=", u.id).executeTakeFirstOrThrow();
+    expect(change.kind).toBe("person.deactivated");
   });
 
   it("will not deactivate the acting admin or leave the lab without an admin", async () => {

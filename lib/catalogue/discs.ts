@@ -1,0 +1,259 @@
+import "server-only";
+import { sql, type Transaction } from "kysely";
+import type { z } from "zod";
+import { db } from "../../db";
+import type { Database } from "../../db/types";
+import type { SessionUser } from "../auth/session-user";
+import { AppError } from "../http/errors";
+import { appendEvent } from "../provenance";
+import { createDiscSchema, type DiscListQuery, discListQuerySchema, updateDiscSchema } from "../validation/catalogue";
+import { type DiscRecord, readDisc, readSides, refreshSearch, type SideRecord } from "./records";
+
+export type DiscInput = z.infer<typeof createDiscSchema>;
+
+function discColumns(d: z.infer<typeof createDiscSchema>) {
+  return {
+    accession_id: d.accessionId,
+    shelf_mark: d.shelfMark,
+    label_name: d.labelName,
+    catalogue_number: d.catalogueNumber,
+    format: d.format,
+    base: d.base ?? null,
+    diameter_in: d.diameterIn ?? null,
+    nominal_speed_rpm: d.nominalSpeedRpm,
+    groove: d.groove,
+    cut: d.cut,
+    recording_date: d.recordingDate ?? null,
+    recorded_from_year: d.recordedFromYear ?? null,
+    recorded_to_year: d.recordedToYear ?? null,
+    condition_grade: d.conditionGrade,
+    condition_flags: d.conditionFlags,
+    condition_notes: d.conditionNotes,
+    handling_notes: d.handlingNotes,
+  };
+}
+
+/** The fields that go into events: the disc as the archivist sees it, without bookkeeping. */
+function eventView(d: DiscRecord) {
+  const { sides, createdAt, updatedAt, version, accessionIdentifier, ...fields } = d;
+  return { ...fields, sides: sides.map(({ assignedEngineerName, version: v, ...s }) => s) };
+}
+
+async function assertShelfMarkFree(trx: Transaction<Database>, shelfMark: string, exceptId?: string): Promise<void> {
+  let q = trx.selectFrom("discs").select("id").where(sql`lower(shelf_mark)`, "=", shelfMark.toLowerCase());
+  if (exceptId) q = q.where("id", "!=", exceptId);
+  if (await q.executeTakeFirst()) {
+    throw new AppError("conflict", 409, `Shelf mark ${shelfMark} is already used by another disc.`, { shelfMark: ["Already used by another disc."] });
+  }
+}
+
+async function assertAccession(trx: Transaction<Database>, id: string): Promise<void> {
+  if (!(await trx.selectFrom("accessions").select("id").where("id", "=", id).executeTakeFirst())) {
+    throw new AppError("invalid", 422, "That accession does not exist.", { accessionId: ["Unknown accession."] });
+  }
+}
+
+/**
+ * Inserts a validated disc and its sides with its "disc.created" event, inside the
+ * caller's transaction (a single create, or every row of an import).
+ */
+export async function insertDisc(trx: Transaction<Database>, actor: SessionUser, d: DiscInput, origin: Record<string, unknown> = {}): Promise<string> {
+  await assertAccession(trx, d.accessionId);
+  await assertShelfMarkFree(trx, d.shelfMark);
+  const disc = await trx.insertInto("discs").values(discColumns(d)).returning("id").executeTakeFirstOrThrow();
+  const seen = new Set<string>();
+  for (const s of d.sides) {
+    const key = s.designation.toLowerCase();
+    if (seen.has(key)) throw new AppError("invalid", 422, `Side ${s.designation} is listed twice.`, { sides: [`Side ${s.designation} is listed twice.`] });
+    seen.add(key);
+    await trx
+      .insertInto("sides")
+      .values({ disc_id: disc.id, designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })
+      .execute();
+  }
+  await refreshSearch(trx, [disc.id]);
+  const created = (await readDisc(trx, disc.id))!;
+  await appendEvent(trx, { actorId: actor.id, kind: "disc.created", subjectType: "disc", subjectId: disc.id, discId: disc.id, payload: { after: eventView(created), ...origin } });
+  return disc.id;
+}
+
+export async function createDisc(actor: SessionUser, input: unknown): Promise<DiscRecord> {
+  const d = createDiscSchema.parse(input);
+  const id = await db.transaction().execute((trx) => insertDisc(trx, actor, d));
+  return (await readDisc(db, id))!;
+}
+
+function changedFields(before: Record<string, unknown>, after: Record<string, unknown>): string[] {
+  return Object.keys(after).filter((k) => JSON.stringify(before[k]) !== JSON.stringify(after[k]));
+}
+
+/**
+ * Saves an edit made from `version`. If someone saved the disc since, nothing is written
+ * and the answer is a 409 carrying the disc as it now stands, so the person can see the
+ * other change and apply theirs again.
+ */
+export async function updateDisc(actor: SessionUser, id: string, input: unknown): Promise<DiscRecord> {
+  const d = updateDiscSchema.parse(input);
+  return db.transaction().execute(async (trx) => {
+    const locked = await trx.selectFrom("discs").select(["id", "version"]).where("id", "=", id).forUpdate().executeTakeFirst();
+    if (!locked) throw new AppError("not_found", 404, "No such disc.");
+    const before = (await readDisc(trx, id))!;
+    if (locked.version !== d.version) {
+      const last = await trx
+        .selectFrom("provenance_events as e")
+        .leftJoin("users as u", "u.id", "e.actor_id")
+        .select(["u.name", "e.at"])
+        .where("e.disc_id", "=", id)
+        .orderBy("e.seq", "desc")
+        .limit(1)
+        .executeTakeFirst();
+      const who = last?.name ? `${last.name} saved it at ${last.at.toISOString().slice(11, 16)} UTC` : "someone else saved it";
+      throw new AppError("conflict", 409, `This disc changed while you were editing it (${who}). Your edit was not saved: review their change, then apply yours again.`, undefined, { current: before });
+    }
+    await assertAccession(trx, d.accessionId);
+    await assertShelfMarkFree(trx, d.shelfMark, id);
+    await trx.updateTable("discs").set({ ...discColumns(d), version: d.version + 1, updated_at: sql`now()` }).where("id", "=", id).execute();
+
+    const existing = new Map(before.sides.map((s) => [s.id, s]));
+    const keep = new Set<string>();
+    for (const s of d.sides) {
+      if (s.id) {
+        const old = existing.get(s.id);
+        if (!old) throw new AppError("invalid", 422, `Side ${s.designation} does not belong to this disc.`, { sides: ["Unknown side."] });
+        keep.add(s.id);
+        await trx
+          .updateTable("sides")
+          .set({ designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes, version: old.version + 1, updated_at: sql`now()` })
+          .where("id", "=", s.id)
+          .execute();
+      } else {
+        await trx
+          .insertInto("sides")
+          .values({ disc_id: id, designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })
+          .execute();
+      }
+    }
+    for (const old of before.sides) {
+      if (keep.has(old.id)) continue;
+      if (old.status !== "catalogued") {
+        throw new AppError("conflict", 409, `Side ${old.designation} is already ${old.status.replace("_", " ")} and cannot be removed.`, { sides: ["A side in the workflow cannot be removed."] });
+      }
+      await trx.deleteFrom("sides").where("id", "=", old.id).execute();
+    }
+    await refreshSearch(trx, [id]);
+    const after = (await readDisc(trx, id))!;
+    const b = eventView(before);
+    const a = eventView(after);
+    const changed = changedFields(b, a);
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "disc.edited",
+      subjectType: "disc",
+      subjectId: id,
+      discId: id,
+      payload: {
+        changed,
+        before: Object.fromEntries(changed.map((k) => [k, (b as Record<string, unknown>)[k]])),
+        after: Object.fromEntries(changed.map((k) => [k, (a as Record<string, unknown>)[k]])),
+      },
+    });
+    return after;
+  });
+}
+
+export async function getDisc(id: string): Promise<DiscRecord> {
+  const d = await readDisc(db, id);
+  if (!d) throw new AppError("not_found", 404, "No such disc.");
+  return d;
+}
+
+export interface DiscListRow {
+  id: string;
+  shelfMark: string;
+  labelName: string;
+  catalogueNumber: string;
+  format: string;
+  nominalSpeedRpm: number;
+  accessionIdentifier: string;
+  conditionGrade: string;
+  updatedAt: Date;
+  sides: Pick<SideRecord, "id" | "designation" | "matrixNumber" | "title" | "status" | "assignedEngineerName">[];
+}
+
+const sortColumns = {
+  shelfMark: "d.shelf_mark",
+  labelName: "d.label_name",
+  catalogueNumber: "d.catalogue_number",
+  format: "d.format",
+  speed: "d.nominal_speed_rpm",
+  updatedAt: "d.updated_at",
+} as const;
+
+function escapeLike(s: string): string {
+  return s.replace(/[\\%_]/g, (c) => `\\${c}`);
+}
+
+function filtered(q: DiscListQuery) {
+  let query = db.selectFrom("discs as d");
+  if (q.format) query = query.where("d.format", "=", q.format);
+  if (q.accession) query = query.where("d.accession_id", "=", q.accession);
+  if (q.speed) query = query.where("d.nominal_speed_rpm", "=", q.speed);
+  if (q.status) {
+    const status = q.status;
+    query = query.where(({ exists, selectFrom }) => exists(selectFrom("sides as s").select("s.id").whereRef("s.disc_id", "=", "d.id").where("s.status", "=", status)));
+  }
+  if (q.engineer) {
+    const engineer = q.engineer;
+    query = query.where(({ exists, selectFrom }) => exists(selectFrom("sides as s").select("s.id").whereRef("s.disc_id", "=", "d.id").where("s.assigned_engineer_id", "=", engineer)));
+  }
+  if (q.q) {
+    const text = q.q;
+    // Words through full-text search; catalogue, matrix and shelf numbers by substring (trigram index).
+    query = query.where((eb) =>
+      eb.or([
+        eb(sql`d.search_tsv`, "@@", sql`websearch_to_tsquery('simple', ${text})`),
+        eb("d.search_codes", "like", `%${escapeLike(text.toLowerCase())}%`),
+      ]),
+    );
+  }
+  return query;
+}
+
+/** The catalogue: filtered, searched, sorted and paged on the server. */
+export async function listDiscs(input: unknown): Promise<{ rows: DiscListRow[]; total: number; page: number; pageSize: number }> {
+  const q = discListQuerySchema.parse(input);
+  const desc = q.sort.startsWith("-");
+  const column = sortColumns[q.sort.replace(/^-/, "") as keyof typeof sortColumns];
+  const [rows, count] = await Promise.all([
+    filtered(q)
+      .innerJoin("accessions as a", "a.id", "d.accession_id")
+      .select([
+        "d.id",
+        "d.shelf_mark as shelfMark",
+        "d.label_name as labelName",
+        "d.catalogue_number as catalogueNumber",
+        "d.format",
+        "d.nominal_speed_rpm as nominalSpeedRpm",
+        "a.identifier as accessionIdentifier",
+        "d.condition_grade as conditionGrade",
+        "d.updated_at as updatedAt",
+      ])
+      .orderBy(column, desc ? "desc" : "asc")
+      .orderBy("d.shelf_mark")
+      .limit(q.pageSize)
+      .offset((q.page - 1) * q.pageSize)
+      .execute(),
+    filtered(q).select(sql<number>`count(*)::int`.as("n")).executeTakeFirstOrThrow(),
+  ]);
+  const sides = await readSides(db, rows.map((r) => r.id));
+  return {
+    rows: rows.map((r) => ({
+      ...r,
+      nominalSpeedRpm: Number(r.nominalSpeedRpm),
+      sides: (sides.get(r.id) ?? []).map(({ id, designation, matrixNumber, title, status, assignedEngineerName }) => ({ id, designation, matrixNumber, title, status, assignedEngineerName })),
+    })),
+    total: count.n,
+    page: q.page,
+    pageSize: q.pageSize,
+  };
+}

@@ -1,11 +1,12 @@
 import { type Kysely, sql } from "kysely";
 import { hashPassword } from "../lib/auth/password";
 import { demoAccounts } from "./seed-data";
+import { seedCatalogue } from "./seed-catalogue";
 import { seedPresets } from "./seed-presets";
 import type { Database } from "./types";
 
 /** Seeds the invented demo lab. Idempotent: what is already there is left as it is. */
-export async function seed(db: Kysely<Database>): Promise<{ usersAdded: number; presetsAdded: number }> {
+export async function seed(db: Kysely<Database>): Promise<{ usersAdded: number; presetsAdded: number; discsAdded: number }> {
   let usersAdded = 0;
   for (const a of demoAccounts) {
     const exists = await db.selectFrom("users").select("id").where("email", "=", a.email).executeTakeFirst();
@@ -30,5 +31,8 @@ export async function seed(db: Kysely<Database>): Promise<{ usersAdded: number; 
       presetsAdded++;
     });
   }
-  return { usersAdded, presetsAdded };
+  const archivist = await db.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "archivist")!.email).executeTakeFirst();
+  const engineer = await db.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email).executeTakeFirst();
+  const { discsAdded } = await seedCatalogue(db, archivist?.id ?? null, engineer?.id ?? null);
+  return { usersAdded, presetsAdded, discsAdded };
 }

@@ -6,8 +6,9 @@ import type { Database } from "../../db/types";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
-import { createDiscSchema, type DiscListQuery, discListQuerySchema, updateDiscSchema } from "../validation/catalogue";
-import { type DiscRecord, readDisc, readSides, refreshSearch, type SideRecord } from "./records";
+import { createDiscSchema, updateDiscSchema } from "../validation/catalogue";
+import { listDiscsWith } from "./list-query";
+import { type DiscRecord, readDisc, refreshSearch } from "./records";
 
 export type DiscInput = z.infer<typeof createDiscSchema>;
 
@@ -167,93 +168,7 @@ export async function getDisc(id: string): Promise<DiscRecord> {
   return d;
 }
 
-export interface DiscListRow {
-  id: string;
-  shelfMark: string;
-  labelName: string;
-  catalogueNumber: string;
-  format: string;
-  nominalSpeedRpm: number;
-  accessionIdentifier: string;
-  conditionGrade: string;
-  updatedAt: Date;
-  sides: Pick<SideRecord, "id" | "designation" | "matrixNumber" | "title" | "status" | "assignedEngineerName">[];
-}
-
-const sortColumns = {
-  shelfMark: "d.shelf_mark",
-  labelName: "d.label_name",
-  catalogueNumber: "d.catalogue_number",
-  format: "d.format",
-  speed: "d.nominal_speed_rpm",
-  updatedAt: "d.updated_at",
-} as const;
-
-function escapeLike(s: string): string {
-  return s.replace(/[\\%_]/g, (c) => `\\${c}`);
-}
-
-function filtered(q: DiscListQuery) {
-  let query = db.selectFrom("discs as d");
-  if (q.format) query = query.where("d.format", "=", q.format);
-  if (q.accession) query = query.where("d.accession_id", "=", q.accession);
-  if (q.speed) query = query.where("d.nominal_speed_rpm", "=", q.speed);
-  if (q.status) {
-    const status = q.status;
-    query = query.where(({ exists, selectFrom }) => exists(selectFrom("sides as s").select("s.id").whereRef("s.disc_id", "=", "d.id").where("s.status", "=", status)));
-  }
-  if (q.engineer) {
-    const engineer = q.engineer;
-    query = query.where(({ exists, selectFrom }) => exists(selectFrom("sides as s").select("s.id").whereRef("s.disc_id", "=", "d.id").where("s.assigned_engineer_id", "=", engineer)));
-  }
-  if (q.q) {
-    const text = q.q;
-    // Words through full-text search; catalogue, matrix and shelf numbers by substring (trigram index).
-    query = query.where((eb) =>
-      eb.or([
-        eb(sql`d.search_tsv`, "@@", sql`websearch_to_tsquery('simple', ${text})`),
-        eb("d.search_codes", "like", `%${escapeLike(text.toLowerCase())}%`),
-      ]),
-    );
-  }
-  return query;
-}
-
 /** The catalogue: filtered, searched, sorted and paged on the server. */
-export async function listDiscs(input: unknown): Promise<{ rows: DiscListRow[]; total: number; page: number; pageSize: number }> {
-  const q = discListQuerySchema.parse(input);
-  const desc = q.sort.startsWith("-");
-  const column = sortColumns[q.sort.replace(/^-/, "") as keyof typeof sortColumns];
-  const [rows, count] = await Promise.all([
-    filtered(q)
-      .innerJoin("accessions as a", "a.id", "d.accession_id")
-      .select([
-        "d.id",
-        "d.shelf_mark as shelfMark",
-        "d.label_name as labelName",
-        "d.catalogue_number as catalogueNumber",
-        "d.format",
-        "d.nominal_speed_rpm as nominalSpeedRpm",
-        "a.identifier as accessionIdentifier",
-        "d.condition_grade as conditionGrade",
-        "d.updated_at as updatedAt",
-      ])
-      .orderBy(column, desc ? "desc" : "asc")
-      .orderBy("d.shelf_mark")
-      .limit(q.pageSize)
-      .offset((q.page - 1) * q.pageSize)
-      .execute(),
-    filtered(q).select(sql<number>`count(*)::int`.as("n")).executeTakeFirstOrThrow(),
-  ]);
-  const sides = await readSides(db, rows.map((r) => r.id));
-  return {
-    rows: rows.map((r) => ({
-      ...r,
-      nominalSpeedRpm: Number(r.nominalSpeedRpm),
-      sides: (sides.get(r.id) ?? []).map(({ id, designation, matrixNumber, title, status, assignedEngineerName }) => ({ id, designation, matrixNumber, title, status, assignedEngineerName })),
-    })),
-    total: count.n,
-    page: q.page,
-    pageSize: q.pageSize,
-  };
+export function listDiscs(input: unknown) {
+  return listDiscsWith(db, input);
 }

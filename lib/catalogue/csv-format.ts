@@ -1,0 +1,563 @@
+// The catalogue's spreadsheet format: reading, checking and writing it. Pure: no
+// database and no framework, so the importer, the exporter and the unit tests share it.
+// The importer on the server (lib/catalogue/csv.ts) adds what needs the database:
+// accession identifiers and shelf marks already in the catalogue.
+import { CsvError, parse } from "csv-parse/sync";
+import { stringify } from "csv-stringify/sync";
+import type { z } from "zod";
+import { createDiscSchema, discFieldsSchema, discFormats, formatLabels, sideInputSchema } from "../validation/catalogue";
+
+export type DiscInput = z.infer<typeof createDiscSchema>;
+type DiscFields = z.infer<typeof discFieldsSchema>;
+type SideInput = z.infer<typeof sideInputSchema>;
+
+/** The most data rows one file may hold; a larger catalogue goes in several files. */
+export const maxImportRows = 20_000;
+/** Errors listed in one answer; the count says how many there are in all. */
+export const maxListedErrors = 2_000;
+
+type DiscField = Exclude<keyof DiscFields, never>;
+type SideField = Exclude<keyof SideInput, "id">;
+
+interface ColumnSpec {
+  name: string;
+  /** What the column holds, for the import page. */
+  hint: string;
+  required?: boolean;
+  disc?: DiscField;
+  side?: SideField;
+}
+
+/** The columns, in file order. One row per side; a disc's own columns repeat on each of its rows. */
+export const catalogueColumnSpecs = [
+  { name: "shelf_mark", disc: "shelfMark", required: true, hint: "The disc's shelf mark; rows with the same shelf mark are one disc." },
+  { name: "accession", disc: "accessionId", hint: "Accession identifier; empty means the accession chosen for the import." },
+  { name: "label", disc: "labelName", hint: "Record label as printed." },
+  { name: "catalogue_number", disc: "catalogueNumber", hint: "The label's catalogue number." },
+  { name: "format", disc: "format", required: true, hint: `One of ${discFormats.join(", ")}.` },
+  { name: "base", disc: "base", hint: "Lacquer and transcription discs only: aluminium, glass, card or unknown." },
+  { name: "diameter_in", disc: "diameterIn", hint: "Diameter in inches, e.g. 10 or 16." },
+  { name: "speed_rpm", disc: "nominalSpeedRpm", required: true, hint: "Nominal speed: 78, 80, 33.33 (or 33 1/3), 45, or another number." },
+  { name: "groove", disc: "groove", required: true, hint: "coarse or micro." },
+  { name: "cut", disc: "cut", required: true, hint: "lateral or vertical." },
+  { name: "recording_date", disc: "recordingDate", hint: "YYYY-MM-DD when known." },
+  { name: "year_from", disc: "recordedFromYear", hint: "Earliest year it can have been recorded." },
+  { name: "year_to", disc: "recordedToYear", hint: "Latest year it can have been recorded." },
+  { name: "condition", disc: "conditionGrade", hint: "unassessed, excellent, good, fair, poor or unplayable." },
+  { name: "condition_flags", disc: "conditionFlags", hint: "Separated by semicolons: cracks; warp; residue …" },
+  { name: "condition_notes", disc: "conditionNotes", hint: "What the condition grade leaves out." },
+  { name: "handling_notes", disc: "handlingNotes", hint: "Care needed when the disc is handled or played." },
+  { name: "side", side: "designation", hint: "Side designation (A, B, 1, 2 …); empty for a disc logged without sides." },
+  { name: "matrix_number", side: "matrixNumber", hint: "Matrix number from the run-out area." },
+  { name: "take", side: "take", hint: "Take number or letter." },
+  { name: "title", side: "title", hint: "Title of the side." },
+  { name: "performers", side: "performers", hint: "Performers as credited." },
+  { name: "side_notes", side: "notes", hint: "Anything else about this side." },
+] as const satisfies readonly ColumnSpec[];
+
+export type CatalogueColumn = (typeof catalogueColumnSpecs)[number]["name"];
+export const catalogueColumns: CatalogueColumn[] = catalogueColumnSpecs.map((c) => c.name);
+
+const specs: readonly ColumnSpec[] = catalogueColumnSpecs;
+const columnOfDiscField = new Map(specs.filter((c) => c.disc).map((c) => [c.disc as string, c.name]));
+const columnOfSideField = new Map(specs.filter((c) => c.side).map((c) => [c.side as string, c.name]));
+const sideColumns = specs.filter((c) => c.side).map((c) => c.name);
+
+export interface ImportError {
+  /** The spreadsheet row: the header is row 1, the first disc row is row 2. */
+  row: number;
+  /** The column's header name, or "" when the whole row or file is meant. */
+  column: string;
+  message: string;
+}
+
+export interface FileDuplicate {
+  row: number;
+  shelfMark: string;
+  /** The row where the same shelf mark first appears in this file. */
+  firstRow: number;
+}
+
+/** One row of the sheet, with its values by column (absent columns read as ""). */
+export interface SheetRow {
+  row: number;
+  values: Record<CatalogueColumn, string>;
+}
+
+export interface ReadSheet {
+  rows: SheetRow[];
+  errors: ImportError[];
+}
+
+// ---------------------------------------------------------------------------------
+// Fields that look like spreadsheet formulas
+
+const formulaStart = /^'*[=+\-@]/;
+
+/**
+ * A field that begins with =, +, - or @ would be run as a formula by a spreadsheet.
+ * On export it gets one leading apostrophe, which spreadsheets take as "this is text";
+ * apostrophes already in front of such a character get one more, so that removing
+ * exactly one on import gives back the stored text whatever it was.
+ */
+export function protectFormula(value: string): string {
+  return formulaStart.test(value) ? `'${value}` : value;
+}
+
+/** The inverse of `protectFormula`: drops one apostrophe in front of =, +, - or @. */
+export function unprotectFormula(value: string): string {
+  return value.startsWith("'") && formulaStart.test(value) ? value.slice(1) : value;
+}
+
+// ---------------------------------------------------------------------------------
+// Reading
+
+const utf8 = new TextDecoder("utf-8", { fatal: true });
+
+/** Decodes an upload as UTF-8 text (a byte-order mark is dropped here or by the parser). */
+export function decodeCsv(bytes: Uint8Array): string {
+  try {
+    return utf8.decode(bytes);
+  } catch {
+    throw new CsvFormatError("The file is not UTF-8 text. Save it from the spreadsheet as “CSV UTF-8” and try again.");
+  }
+}
+
+/** A file that cannot be read at all (not text, not CSV). */
+export class CsvFormatError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = "CsvFormatError";
+  }
+}
+
+function csvParseProblem(e: CsvError): ImportError {
+  const row = ((e as unknown as { records?: number }).records ?? 0) + 1;
+  const line = (e as unknown as { lines?: number }).lines;
+  const where = line ? ` (text line ${line})` : "";
+  switch (e.code) {
+    case "CSV_QUOTE_NOT_CLOSED":
+      return { row, column: "", message: `A quoted field opened in this row is never closed${where}. Check for a stray double quote.` };
+    case "CSV_INVALID_CLOSING_QUOTE":
+      return { row, column: "", message: `A double quote inside a field is not doubled${where}. Write "" for a quote inside a quoted field.` };
+    default:
+      return { row, column: "", message: `This row cannot be read as CSV${where}: ${e.message}` };
+  }
+}
+
+const isBlank = (cells: string[]) => cells.every((c) => c.trim() === "");
+
+/**
+ * Reads the text of a catalogue CSV into rows keyed by column. Checks the header
+ * (unknown, repeated and missing columns), the number of fields on each row and the
+ * row limit; the values themselves are checked by `buildDiscs`. Blank rows are skipped
+ * but still counted, so row numbers match what a spreadsheet shows.
+ */
+export function readCatalogueCsv(text: string): ReadSheet {
+  let records: string[][];
+  try {
+    records = parse(text, { bom: true, relax_column_count: true, skip_empty_lines: false }) as string[][];
+  } catch (e) {
+    if (e instanceof CsvError) return { rows: [], errors: [csvParseProblem(e)] };
+    throw e;
+  }
+  // A file that ends in blank lines has no rows there.
+  while (records.length && isBlank(records[records.length - 1])) records.pop();
+  if (!records.length) return { rows: [], errors: [{ row: 1, column: "", message: "The file is empty: the first row must name the columns." }] };
+
+  const errors: ImportError[] = [];
+  const header = records[0].map((h) => h.trim().toLowerCase());
+  const known = new Set<string>(catalogueColumns);
+  const at = new Map<string, number>();
+  header.forEach((name, i) => {
+    if (name === "") {
+      if (records.some((r, j) => j > 0 && (r[i] ?? "").trim() !== "")) errors.push({ row: 1, column: `column ${i + 1}`, message: `Column ${i + 1} has values but no name in the header.` });
+      return;
+    }
+    if (!known.has(name)) {
+      errors.push({ row: 1, column: name, message: `Unknown column “${name}”. The columns are: ${catalogueColumns.join(", ")}.` });
+    } else if (at.has(name)) {
+      errors.push({ row: 1, column: name, message: `Column ${name} appears twice in the header (columns ${at.get(name)! + 1} and ${i + 1}).` });
+    } else {
+      at.set(name, i);
+    }
+  });
+  for (const c of specs) {
+    if (c.required && !at.has(c.name)) errors.push({ row: 1, column: c.name, message: `The header has no ${c.name} column; it is required.` });
+  }
+  if (errors.length) return { rows: [], errors };
+
+  const dataRows = records.length - 1;
+  const filled = records.slice(1).filter((r) => !isBlank(r)).length;
+  if (filled > maxImportRows) {
+    return {
+      rows: [],
+      errors: [{ row: maxImportRows + 2, column: "", message: `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ${maxImportRows.toLocaleString("en-GB")}. Split it into several files.` }],
+    };
+  }
+  if (filled === 0) return { rows: [], errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }] };
+
+  const rows: SheetRow[] = [];
+  for (let i = 1; i <= dataRows; i++) {
+    const cells = records[i];
+    const row = i + 1;
+    if (isBlank(cells)) continue;
+    if (cells.length > header.length && cells.slice(header.length).some((c) => c.trim() !== "")) {
+      errors.push({ row, column: "", message: `This row has ${cells.length} fields but the header names ${header.length} columns. Check for an unquoted comma.` });
+      continue;
+    }
+    const values = Object.fromEntries(catalogueColumns.map((name) => [name, at.has(name) ? unprotectFormula(cells[at.get(name)!] ?? "") : ""])) as Record<CatalogueColumn, string>;
+    rows.push({ row, values });
+  }
+  return { rows, errors };
+}
+
+// ---------------------------------------------------------------------------------
+// Checking rows and grouping them into discs
+
+export interface BuildOptions {
+  /** The accession id for an identifier (case-insensitive), or undefined when there is none. */
+  resolveAccession: (identifier: string) => string | undefined;
+  /** Used for rows whose accession column is empty. */
+  defaultAccessionId?: string;
+}
+
+export interface BuiltDisc {
+  /** The disc's first row in the file. */
+  row: number;
+  rows: number[];
+  disc: DiscInput;
+  accessionIdentifier: string;
+}
+
+export interface BuiltSheet {
+  discs: BuiltDisc[];
+  errors: ImportError[];
+  duplicates: FileDuplicate[];
+  /** Rows of data read (blank rows not counted). */
+  rowCount: number;
+}
+
+const speedWords: Record<string, string> = { "33 1/3": "33.33", "33⅓": "33.33", "33-1/3": "33.33" };
+const formatByLabel = new Map(discFormats.map((f) => [formatLabels[f].toLowerCase(), f]));
+
+/** Lenient spellings a person types into a spreadsheet, turned into the stored codes. */
+function normaliseCode(value: string): string {
+  return value.trim().toLowerCase();
+}
+
+function discCandidate(values: Record<CatalogueColumn, string>, accessionId: string | undefined): Record<string, unknown> {
+  const format = normaliseCode(values.format);
+  const speed = values.speed_rpm.trim();
+  return {
+    accessionId: accessionId ?? "",
+    shelfMark: values.shelf_mark,
+    labelName: values.label,
+    catalogueNumber: values.catalogue_number,
+    format: formatByLabel.get(format) ?? format.replace(/[\s-]+/g, "_"),
+    base: normaliseCode(values.base),
+    diameterIn: values.diameter_in.trim(),
+    nominalSpeedRpm: speedWords[speed] ?? speed,
+    groove: normaliseCode(values.groove),
+    cut: normaliseCode(values.cut),
+    recordingDate: values.recording_date.trim(),
+    recordedFromYear: values.year_from.trim(),
+    recordedToYear: values.year_to.trim(),
+    conditionGrade: normaliseCode(values.condition),
+    conditionFlags: [...new Set(values.condition_flags.split(";").map(normaliseCode).filter(Boolean))],
+    conditionNotes: values.condition_notes,
+    handlingNotes: values.handling_notes,
+  };
+}
+
+function sideCandidate(values: Record<CatalogueColumn, string>): Record<string, unknown> | null {
+  if (sideColumns.every((c) => values[c as CatalogueColumn].trim() === "")) return null;
+  return {
+    designation: values.side,
+    matrixNumber: values.matrix_number,
+    take: values.take,
+    title: values.title,
+    performers: values.performers,
+    notes: values.side_notes,
+  };
+}
+
+function issuesToErrors(row: number, issues: z.core.$ZodIssue[], columns: Map<string, string>): ImportError[] {
+  return issues.map((issue) => ({ row, column: columns.get(String(issue.path[0] ?? "")) ?? "", message: issue.message }));
+}
+
+function sameValue(a: unknown, b: unknown): boolean {
+  return JSON.stringify(a ?? null) === JSON.stringify(b ?? null);
+}
+
+function shown(v: unknown): string {
+  if (v === undefined || v === null || v === "" || (Array.isArray(v) && v.length === 0)) return "empty";
+  return `“${Array.isArray(v) ? v.join("; ") : String(v)}”`;
+}
+
+interface CheckedRow {
+  row: number;
+  key: string;
+  accessionIdentifier: string;
+  fields?: DiscFields;
+  side?: SideInput | null;
+  ok: boolean;
+}
+
+/**
+ * Checks every row with the shared disc and side schemas, resolves accessions and
+ * groups rows into discs by shelf mark. A disc's rows must sit together and agree on
+ * every disc column; a shelf mark that comes back after other discs is reported as a
+ * duplicate within the file. Only a file without errors gives discs to insert, but the
+ * discs are listed either way so a preview can show them.
+ */
+export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet {
+  const errors: ImportError[] = [];
+  const duplicates: FileDuplicate[] = [];
+  const checked: CheckedRow[] = [];
+
+  for (const { row, values } of sheet) {
+    const rowErrors: ImportError[] = [];
+    const identifier = values.accession.trim();
+    let accessionId: string | undefined;
+    if (identifier) {
+      accessionId = options.resolveAccession(identifier);
+      if (!accessionId) rowErrors.push({ row, column: "accession", message: `No accession has the identifier “${identifier}”. Record the accession first, or check the spelling.` });
+    } else {
+      accessionId = options.defaultAccessionId;
+      if (!accessionId) rowErrors.push({ row, column: "accession", message: "No accession given: fill in the accession column, or choose an accession for rows that leave it empty." });
+    }
+    const disc = discFieldsSchema.safeParse(discCandidate(values, accessionId));
+    if (!disc.success) {
+      // The accession is reported above in words a person can act on, not as a bad id.
+      rowErrors.push(...issuesToErrors(row, disc.error.issues, columnOfDiscField).filter((e) => e.column !== "accession"));
+    }
+    const sideInput = sideCandidate(values);
+    let side: SideInput | null = null;
+    if (sideInput) {
+      const parsed = sideInputSchema.safeParse(sideInput);
+      if (parsed.success) side = parsed.data;
+      else rowErrors.push(...issuesToErrors(row, parsed.error.issues, columnOfSideField));
+    }
+    errors.push(...rowErrors);
+    checked.push({
+      row,
+      key: values.shelf_mark.trim().toLowerCase(),
+      accessionIdentifier: identifier,
+      fields: disc.success ? disc.data : undefined,
+      side,
+      ok: rowErrors.length === 0,
+    });
+  }
+
+  // Group consecutive rows with the same shelf mark.
+  const groups: CheckedRow[][] = [];
+  const firstRowOf = new Map<string, number>();
+  for (const r of checked) {
+    const current = groups[groups.length - 1];
+    if (r.key && current && current[0].key === r.key) {
+      current.push(r);
+      continue;
+    }
+    if (r.key && firstRowOf.has(r.key)) {
+      const firstRow = firstRowOf.get(r.key)!;
+      const shelfMark = r.fields?.shelfMark ?? r.key;
+      duplicates.push({ row: r.row, shelfMark, firstRow });
+      errors.push({
+        row: r.row,
+        column: "shelf_mark",
+        message: `Shelf mark ${shelfMark} is already used by the disc at row ${firstRow}. Each disc needs its own shelf mark, and a disc's rows must sit together.`,
+      });
+      r.ok = false;
+    } else if (r.key) {
+      firstRowOf.set(r.key, r.row);
+    }
+    groups.push([r]);
+  }
+
+  const discs: BuiltDisc[] = [];
+  for (const group of groups) {
+    const head = group.find((r) => r.fields) ?? group[0];
+    // Every row of a disc repeats the disc's columns: they must agree with its first row.
+    if (head.fields) {
+      for (const r of group) {
+        if (r === head || !r.fields) continue;
+        for (const [field, column] of columnOfDiscField) {
+          const a = head.fields[field as DiscField];
+          const b = r.fields[field as DiscField];
+          if (!sameValue(a, b)) {
+            errors.push({ row: r.row, column, message: `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} there. Every row of a disc must repeat the same disc values.` });
+          }
+        }
+      }
+    }
+    const sides: SideInput[] = [];
+    const sideRow = new Map<string, number>();
+    for (const r of group) {
+      if (r.side === null && group.length > 1 && r.ok) {
+        errors.push({ row: r.row, column: "side", message: `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other rows. Give every row a side; a disc without sides takes one row.` });
+      }
+      if (!r.side) continue;
+      const k = r.side.designation.toLowerCase();
+      if (sideRow.has(k)) {
+        errors.push({ row: r.row, column: "side", message: `Side ${r.side.designation} is listed twice for this disc (rows ${sideRow.get(k)} and ${r.row}).` });
+        continue;
+      }
+      sideRow.set(k, r.row);
+      sides.push(r.side);
+    }
+    if (!head.fields) continue;
+    const whole = createDiscSchema.safeParse({ ...head.fields, sides });
+    if (!whole.success) {
+      for (const issue of whole.error.issues) {
+        const sideIndex = issue.path[0] === "sides" && typeof issue.path[1] === "number" ? issue.path[1] : -1;
+        const sidesIssue = issue.path[0] === "sides";
+        const row = sidesIssue ? (sides[sideIndex] ? sideRow.get(sides[sideIndex].designation.toLowerCase())! : group[group.length - 1].row) : head.row;
+        errors.push({ row, column: sidesIssue ? "side" : (columnOfDiscField.get(String(issue.path[0])) ?? ""), message: issue.message });
+      }
+    }
+    discs.push({ row: head.row, rows: group.map((r) => r.row), disc: whole.success ? whole.data : { ...head.fields, sides }, accessionIdentifier: head.accessionIdentifier });
+  }
+
+  errors.sort((a, b) => a.row - b.row || catalogueColumns.indexOf(a.column as CatalogueColumn) - catalogueColumns.indexOf(b.column as CatalogueColumn));
+  return { discs, errors, duplicates, rowCount: sheet.length };
+}
+
+// ---------------------------------------------------------------------------------
+// Writing
+
+/** A disc as the exporter writes it: stored values, with the accession by identifier. */
+export interface ExportDisc {
+  shelfMark: string;
+  accessionIdentifier: string;
+  labelName: string;
+  catalogueNumber: string;
+  format: string;
+  base: string | null;
+  diameterIn: number | null;
+  nominalSpeedRpm: number;
+  groove: string;
+  cut: string;
+  recordingDate: string | null;
+  recordedFromYear: number | null;
+  recordedToYear: number | null;
+  conditionGrade: string;
+  conditionFlags: string[];
+  conditionNotes: string;
+  handlingNotes: string;
+  sides: { designation: string; matrixNumber: string; take: string; title: string; performers: string; notes: string }[];
+}
+
+const num = (v: number | null) => (v === null || v === undefined ? "" : String(v));
+
+/** The rows of one disc: one per side, or one with empty side columns. */
+export function discRows(d: ExportDisc): string[][] {
+  const disc: Record<string, string> = {
+    shelf_mark: d.shelfMark,
+    accession: d.accessionIdentifier,
+    label: d.labelName,
+    catalogue_number: d.catalogueNumber,
+    format: d.format,
+    base: d.base ?? "",
+    diameter_in: num(d.diameterIn),
+    speed_rpm: num(d.nominalSpeedRpm),
+    groove: d.groove,
+    cut: d.cut,
+    recording_date: d.recordingDate ?? "",
+    year_from: num(d.recordedFromYear),
+    year_to: num(d.recordedToYear),
+    condition: d.conditionGrade,
+    condition_flags: d.conditionFlags.join(";"),
+    condition_notes: d.conditionNotes,
+    handling_notes: d.handlingNotes,
+  };
+  const sides = d.sides.length ? d.sides : [null];
+  return sides.map((s) => {
+    const values: Record<string, string> = {
+      ...disc,
+      side: s?.designation ?? "",
+      matrix_number: s?.matrixNumber ?? "",
+      take: s?.take ?? "",
+      title: s?.title ?? "",
+      performers: s?.performers ?? "",
+      side_notes: s?.notes ?? "",
+    };
+    return catalogueColumns.map((c) => protectFormula(values[c]));
+  });
+}
+
+/**
+ * Writes discs as catalogue CSV: a header, then the rows of each disc. With a byte-order
+ * mark and CRLF line ends, which spreadsheets open as UTF-8 without asking.
+ */
+export function toCatalogueCsv(discs: Iterable<ExportDisc>, options: { header?: boolean; bom?: boolean } = {}): string {
+  const rows: string[][] = [];
+  if (options.header !== false) rows.push([...catalogueColumns]);
+  for (const d of discs) rows.push(...discRows(d));
+  return stringify(rows, { bom: options.bom ?? true, record_delimiter: "windows" });
+}
+
+/** A template to fill in: the header and three example rows (two sides of one disc, one lacquer without sides). */
+export function catalogueTemplateCsv(): string {
+  const example: ExportDisc[] = [
+    {
+      shelfMark: "78-0001",
+      accessionIdentifier: "",
+      labelName: "Example Label",
+      catalogueNumber: "EX 100",
+      format: "shellac_78",
+      base: null,
+      diameterIn: 10,
+      nominalSpeedRpm: 78,
+      groove: "coarse",
+      cut: "lateral",
+      recordingDate: null,
+      recordedFromYear: 1928,
+      recordedToYear: 1930,
+      conditionGrade: "good",
+      conditionFlags: ["wear"],
+      conditionNotes: "",
+      handlingNotes: "",
+      sides: [
+        { designation: "A", matrixNumber: "M-1234", take: "2", title: "First title", performers: "An orchestra", notes: "" },
+        { designation: "B", matrixNumber: "M-1235", take: "1", title: "Second title", performers: "An orchestra", notes: "" },
+      ],
+    },
+    {
+      shelfMark: "LAC-0001",
+      accessionIdentifier: "",
+      labelName: "",
+      catalogueNumber: "",
+      format: "instantaneous_lacquer",
+      base: "aluminium",
+      diameterIn: 12,
+      nominalSpeedRpm: 78,
+      groove: "coarse",
+      cut: "lateral",
+      recordingDate: "1941-06-14",
+      recordedFromYear: null,
+      recordedToYear: null,
+      conditionGrade: "fair",
+      conditionFlags: ["residue", "delamination"],
+      conditionNotes: "Lacquer lifting at the edge.",
+      handlingNotes: "Wear gloves; hold by the edge only.",
+      sides: [],
+    },
+  ];
+  return toCatalogueCsv(example);
+}
+
+/** Short summary of a disc for the preview list. */
+export function summariseDisc(d: BuiltDisc, accessionIdentifier = d.accessionIdentifier) {
+  return {
+    row: d.row,
+    shelfMark: d.disc.shelfMark,
+    accession: accessionIdentifier,
+    labelName: d.disc.labelName,
+    catalogueNumber: d.disc.catalogueNumber,
+    format: d.disc.format,
+    nominalSpeedRpm: d.disc.nominalSpeedRpm,
+    sides: d.disc.sides.map((s) => s.designation),
+  };
+}
+export type DiscSummary = ReturnType<typeof summariseDisc>;

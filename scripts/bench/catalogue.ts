@@ -1,0 +1,123 @@
+// Catalogue list and search speed on a large lab: builds a benchmark database of
+// 100 000 discs (about 190 000 sides) beside the demo database on the same server, runs
+// the catalogue's own list queries (lib/catalogue/list-query.ts) many times, and prints
+// p50/p95/p99 server time per query and the plan of the slowest one.
+//   npm run bench:catalogue            (the demo services must be running: npm start)
+//   BENCH_DISCS=20000 npm run bench:catalogue
+import { performance } from "node:perf_hooks";
+import { sql } from "kysely";
+import pg from "pg";
+import { createDb } from "../../db/client";
+import { filteredDiscs, listDiscsWith } from "../../lib/catalogue/list-query";
+import { discListQuerySchema } from "../../lib/validation/catalogue";
+import { env } from "../../lib/env";
+import { migrateToLatest } from "../migrate";
+
+const discCount = Number(process.env.BENCH_DISCS ?? 100_000);
+const runs = Number(process.env.BENCH_RUNS ?? 60);
+const base = new URL(env().DATABASE_URL);
+const benchName = "rillbook_bench";
+
+async function recreateDatabase(): Promise<string> {
+  const admin = new pg.Client({ connectionString: Object.assign(new URL(base), { pathname: "/postgres" }).toString() });
+  await admin.connect();
+  await admin.query(`DROP DATABASE IF EXISTS ${benchName}`);
+  await admin.query(`CREATE DATABASE ${benchName}`);
+  await admin.end();
+  return Object.assign(new URL(base), { pathname: `/${benchName}` }).toString();
+}
+
+async function main(): Promise<void> {
+  const url = await recreateDatabase();
+  await migrateToLatest(url);
+  const db = createDb(url, 4);
+  const t0 = performance.now();
+  await sql`INSERT INTO accessions (identifier, source, received_on) SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(db);
+  const labels = ["Brindlecord", "Quellstone", "Varrowby", "Ashgrove Phonic", "Oxley & Vane", "Tarnwell", "Pellory", "Cindermoor Transcriptions", "Fenlow Recording Service", "Larkspur Microgroove"];
+  const words = ["Lantern", "Harbour", "Meadow", "Winter", "River", "Evening", "Copper", "Blue", "Orchard", "Moonlit", "Willow", "Northern", "Candle", "Garden"];
+  const names = ["Carrow", "Dunmore", "Ellery", "Farrant", "Gilby", "Hesketh", "Jessop", "Kettle", "Lanyon", "Marl", "Norcott", "Pennock", "Quarrie", "Selby"];
+  await sql`
+    INSERT INTO discs (accession_id, shelf_mark, label_name, catalogue_number, format, nominal_speed_rpm, groove, cut, recorded_from_year, recorded_to_year, condition_grade)
+    SELECT (SELECT id FROM accessions ORDER BY identifier OFFSET (g % 50) LIMIT 1),
+           'BX-' || lpad(g::text, 7, '0'),
+           (${labels}::text[])[1 + g % 10],
+           upper(substr((${labels}::text[])[1 + g % 10], 1, 2)) || ' ' || (1000 + (g * 7919) % 90000),
+           (ARRAY['shellac_78','instantaneous_lacquer','transcription','vinyl_78','microgroove_lp','other'])[1 + (g * 31) % 6],
+           (ARRAY[78, 80, 33.33, 45])[1 + (g * 17) % 4],
+           'coarse', 'lateral', 1900 + g % 60, 1900 + g % 60,
+           (ARRAY['excellent','good','fair','poor'])[1 + g % 4]
+    FROM generate_series(1, ${discCount}) g`.execute(db);
+  await sql`
+    INSERT INTO sides (disc_id, designation, matrix_number, take, title, performers, status, assigned_engineer_id)
+    SELECT d.id, s.designation,
+           chr(65 + (h % 26)) || (10000 + (h % 89999)) || '-' || s.designation,
+           (1 + h % 4)::text,
+           (${words}::text[])[1 + h % 14] || ' ' || (${words}::text[])[1 + (h / 14) % 14] || ' Song',
+           (${names}::text[])[1 + h % 14] || ' and the ' || (${names}::text[])[1 + (h / 7) % 14] || ' Quartet',
+           (ARRAY['catalogued','catalogued','catalogued','assigned','curve_chosen','transferred','rendered','in_review','approved','returned'])[1 + h % 10],
+           NULL
+    FROM discs d CROSS JOIN (VALUES ('A'), ('B')) s(designation)
+    CROSS JOIN LATERAL (SELECT abs(hashtext(d.shelf_mark || s.designation)) AS h) hh
+    WHERE s.designation = 'A' OR hashtext(d.shelf_mark) % 10 <> 0`.execute(db);
+  // The same search columns the app keeps, built in one statement.
+  await sql`
+    UPDATE discs d SET
+      search_tsv = to_tsvector('simple', d.label_name || ' ' || d.catalogue_number || ' ' || coalesce(s.words, '')),
+      search_codes = lower(d.shelf_mark || ' ' || d.catalogue_number || ' ' || coalesce(s.codes, ''))
+    FROM (SELECT disc_id, string_agg(title || ' ' || performers || ' ' || matrix_number, ' ') words, string_agg(matrix_number, ' ') codes FROM sides GROUP BY disc_id) s
+    WHERE d.id = s.disc_id`.execute(db);
+  await sql`VACUUM ANALYZE`.execute(db);
+  const counts = await sql<{ discs: number; sides: number }>`SELECT (SELECT count(*)::int FROM discs) discs, (SELECT count(*)::int FROM sides) sides`.execute(db);
+  console.log(`built ${counts.rows[0].discs} discs, ${counts.rows[0].sides} sides in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+
+  const someAccession = (await db.selectFrom("accessions").select("id").limit(1).offset(7).executeTakeFirstOrThrow()).id;
+  const sample = await db.selectFrom("sides").select("matrix_number").limit(1).offset(12345 % counts.rows[0].sides).executeTakeFirstOrThrow();
+  const queries: Record<string, Record<string, unknown>> = {
+    "first page, by shelf mark": {},
+    "page 40, newest first": { sort: "-updatedAt", page: 40 },
+    "filter format + speed": { format: "instantaneous_lacquer", speed: 78 },
+    "filter status in review": { status: "in_review", sort: "labelName" },
+    "filter accession": { accession: someAccession },
+    "search a word (title/performer)": { q: "harbour" },
+    "search two words": { q: "willow carrow" },
+    "search catalogue number part": { q: "QU 41" },
+    "search matrix number": { q: sample.matrix_number },
+    "search + filter + sort": { q: "lantern", format: "shellac_78", sort: "-catalogueNumber" },
+  };
+  const results: { name: string; p50: number; p95: number; p99: number; max: number }[] = [];
+  for (const [name, query] of Object.entries(queries)) {
+    await listDiscsWith(db, query); // warm
+    const times: number[] = [];
+    for (let i = 0; i < runs; i++) {
+      const t = performance.now();
+      await listDiscsWith(db, query);
+      times.push(performance.now() - t);
+    }
+    times.sort((a, b) => a - b);
+    const at = (p: number) => times[Math.min(times.length - 1, Math.floor(p * times.length))];
+    results.push({ name, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: times[times.length - 1] });
+  }
+  console.log(`\n${runs} runs each (time = the whole list call: rows, count and sides, as the API does it)\n`);
+  console.log(`${"query".padEnd(34)} ${"p50 ms".padStart(8)} ${"p95 ms".padStart(8)} ${"p99 ms".padStart(8)}`);
+  for (const r of results) console.log(`${r.name.padEnd(34)} ${r.p50.toFixed(2).padStart(8)} ${r.p95.toFixed(2).padStart(8)} ${r.p99.toFixed(2).padStart(8)}`);
+  const slowest = results.reduce((a, b) => (b.p95 > a.p95 ? b : a));
+  console.log(`\nslowest by p95: ${slowest.name} (${slowest.p95.toFixed(2)} ms); goal p95 < 50 ms: ${results.every((r) => r.p95 < 50) ? "met" : "NOT met"}`);
+
+  // The plan of the slowest query's row fetch, as PostgreSQL runs it.
+  const q = discListQuerySchema.parse(queries[slowest.name]);
+  const rowsQuery = filteredDiscs(db, q).select(["d.id", "d.shelf_mark"]).orderBy("d.shelf_mark").limit(q.pageSize).offset((q.page - 1) * q.pageSize).compile();
+  const plan = await sql.raw<{ "QUERY PLAN": string }>(`EXPLAIN (ANALYZE, BUFFERS) ${rowsQuery.sql.replace(/\$(\d+)/g, (_, n) => literal(rowsQuery.parameters[Number(n) - 1]))}`).execute(db);
+  console.log(`\nplan of "${slowest.name}":`);
+  for (const row of plan.rows) console.log(`  ${row["QUERY PLAN"]}`);
+  await db.destroy();
+}
+
+function literal(v: unknown): string {
+  if (typeof v === "number") return String(v);
+  return `'${String(v).replace(/'/g, "''")}'`;
+}
+
+main().catch((err) => {
+  console.error(err);
+  process.exit(1);
+});

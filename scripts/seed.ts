@@ -4,7 +4,9 @@ import { env } from "../lib/env";
 
 const db = createDb(env().DATABASE_URL, 2);
 seed(db)
-  .then((r) => console.log(r.usersAdded || r.presetsAdded ? `seeded the demo lab (${r.usersAdded} people, ${r.presetsAdded} curve presets)` : "demo lab already seeded"))
+  .then((r) =>
+    console.log(r.usersAdded || r.presetsAdded || r.discsAdded ? `seeded the demo lab (${r.usersAdded} people, ${r.presetsAdded} curve presets, ${r.discsAdded} discs)` : "demo lab already seeded"),
+  )
   .catch((err) => {
     console.error(err);
     process.exitCode = 1;

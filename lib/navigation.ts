@@ -5,13 +5,14 @@ export interface NavItem {
   label: string;
   action: Action;
   blurb: string;
-  icon: "home" | "shelf" | "curve" | "bench" | "review" | "audit" | "people" | "mail";
+  icon: "home" | "shelf" | "queue" | "curve" | "bench" | "review" | "audit" | "people" | "mail";
 }
 
 /** The lab's places; each person sees those their role may use (the server checks again). */
 export const navItems: NavItem[] = [
   { href: "/", label: "Overview", action: "lab:enter", blurb: "Your day in the lab", icon: "home" },
   { href: "/catalogue", label: "Catalogue", action: "catalogue:read", blurb: "Accessions, discs and sides", icon: "shelf" },
+  { href: "/queue", label: "My queue", action: "bench:use", blurb: "Sides assigned to you for transfer", icon: "queue" },
   { href: "/curves", label: "Curves", action: "curves:read", blurb: "Playback curve library and workbench", icon: "curve" },
   { href: "/bench", label: "Transfer bench", action: "bench:use", blurb: "Choose curves, upload transfers, render", icon: "bench" },
   { href: "/review", label: "Review", action: "review:decide", blurb: "Approve or return sides", icon: "review" },

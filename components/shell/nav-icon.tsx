@@ -3,6 +3,7 @@ import type { NavItem } from "@/lib/navigation";
 const paths: Record<NavItem["icon"], string> = {
   home: "M3 10.5 10 4l7 6.5V17a1 1 0 0 1-1 1h-4v-5H8v5H4a1 1 0 0 1-1-1z",
   shelf: "M3 4h14M3 10h14M3 16h14M5 4v12M9 4v6M13 10v6M15 4v6",
+  queue: "M4 5h9M4 10h9M4 15h6M15.5 13v5M13 15.5l2.5 2.5 2.5-2.5",
   curve: "M2 6c3 0 4 0 6 3s3 5 5 5 4-2 5-6",
   bench: "M10 10m-6 0a6 6 0 1 0 12 0a6 6 0 1 0-12 0M10 10m-1.5 0a1.5 1.5 0 1 0 3 0a1.5 1.5 0 1 0-3 0M15 3l3 3-5 3",
   review: "M4 10.5 8 14.5 16 5.5",

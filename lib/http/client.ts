@@ -5,8 +5,8 @@ export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> 
   const res = await fetch(url, { ...init, headers: { accept: "application/json", ...(init?.body ? { "content-type": "application/json" } : {}), ...init?.headers } });
   const body = await res.json().catch(() => null);
   if (!res.ok) {
-    const e = body?.error as { code?: ErrorCode; message?: string; fields?: Record<string, string[]> } | undefined;
-    throw new AppError(e?.code ?? "internal", res.status, e?.message ?? `The server answered ${res.status}.`, e?.fields);
+    const e = body?.error as { code?: ErrorCode; message?: string; fields?: Record<string, string[]>; details?: unknown } | undefined;
+    throw new AppError(e?.code ?? "internal", res.status, e?.message ?? `The server answered ${res.status}.`, e?.fields, e?.details);
   }
   return body as T;
 }

@@ -1,0 +1,89 @@
+"use client";
+import { zodResolver } from "@hookform/resolvers/zod";
+import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { type KeyboardEvent, useId } from "react";
+import { type Resolver, useForm } from "react-hook-form";
+import { Button } from "@/components/ui/button";
+import { FieldShell } from "@/components/ui/field";
+import { Notice } from "@/components/ui/notice";
+import { fetchJson } from "@/lib/http/client";
+import type { AppError } from "@/lib/http/errors";
+import { accessionSchema } from "@/lib/validation/catalogue";
+import { controlClass } from "./control";
+import type { AccessionJson } from "./types";
+
+interface Values {
+  identifier: string;
+  source: string;
+  receivedOn: string;
+  notes: string;
+}
+
+const today = () => new Date().toISOString().slice(0, 10);
+
+/**
+ * Records a new accession. It is a group inside whatever form holds it (HTML forms do
+ * not nest), so Enter in its fields saves the accession, not the form around it.
+ */
+export function AccessionForm({ onCreated, onCancel, testId = "accession-form" }: { onCreated?: (a: AccessionJson) => void; onCancel?: () => void; testId?: string }) {
+  const uid = useId();
+  const queryClient = useQueryClient();
+  const form = useForm<Values>({
+    resolver: zodResolver(accessionSchema) as unknown as Resolver<Values>,
+    defaultValues: { identifier: "", source: "", receivedOn: today(), notes: "" },
+  });
+  const { errors } = form.formState;
+  const create = useMutation<{ accession: AccessionJson }, AppError, Values>({
+    mutationFn: (v) => fetchJson("/api/accessions", { method: "POST", body: JSON.stringify(v) }),
+    onSuccess: ({ accession }) => {
+      void queryClient.invalidateQueries({ queryKey: ["accessions"] });
+      form.reset({ identifier: "", source: "", receivedOn: today(), notes: "" });
+      onCreated?.(accession);
+    },
+    onError: (e) => {
+      for (const [k, msgs] of Object.entries(e.fields ?? {})) {
+        if (k in form.getValues()) form.setError(k as keyof Values, { type: "server", message: msgs.join(" ") });
+      }
+    },
+  });
+  const submit = form.handleSubmit((v) => create.mutate(v));
+  const enterSaves = (e: KeyboardEvent) => {
+    if (e.key === "Enter" && !(e.target instanceof HTMLTextAreaElement)) {
+      e.preventDefault();
+      void submit();
+    }
+  };
+  const field = (name: keyof Values, label: string, props: Record<string, unknown> = {}) => {
+    const id = `${uid}-${name}`;
+    const err = errors[name]?.message;
+    return (
+      <FieldShell id={id} label={label} errors={err ? [err] : undefined}>
+        <input id={id} aria-invalid={err ? true : undefined} aria-describedby={err ? `${id}-error` : undefined} className={controlClass(!!err)} {...form.register(name)} {...props} data-testid={`${testId}-${name}`} />
+      </FieldShell>
+    );
+  };
+
+  return (
+    <div role="group" aria-label="New accession" className="space-y-3" onKeyDown={enterSaves} data-testid={testId}>
+      {create.error && !Object.keys(create.error.fields ?? {}).some((k) => k in form.getValues()) ? <Notice tone="error">{create.error.message}</Notice> : null}
+      <div className="grid gap-3 sm:grid-cols-2">
+        {field("identifier", "Accession identifier", { placeholder: "e.g. MH-2026-003", autoComplete: "off" })}
+        {field("receivedOn", "Received on", { type: "date" })}
+      </div>
+      {field("source", "Source", { placeholder: "Donor, transfer or purchase" })}
+      <FieldShell id={`${uid}-notes`} label="Notes">
+        <textarea id={`${uid}-notes`} rows={2} className={controlClass(false)} {...form.register("notes")} />
+      </FieldShell>
+      <div className="flex gap-2">
+        <Button type="button" size="sm" onClick={() => void submit()} disabled={create.isPending} data-testid={`${testId}-save`}>
+          {create.isPending ? "Saving…" : "Save accession"}
+        </Button>
+        {onCancel ? (
+          <Button type="button" size="sm" variant="quiet" onClick={onCancel}>
+            Cancel
+          </Button>
+        ) : null}
+      </div>
+    </div>
+  );
+}

@@ -166,7 +166,79 @@ export interface ProvenanceEventsTable {
   hash: string;
 }
 
+export type EvidenceKind = "published_guidance" | "test_disc" | "listening" | "disc_documentation" | "other";
+
+export interface CurveChoicesTable {
+  id: Generated<string>;
+  side_id: string;
+  preset_id: string | null;
+  preset_version: number | null;
+  preset_name: string | null;
+  preset_spec: ColumnType<unknown, string | null, never>;
+  overrides: ColumnType<unknown, string, never>;
+  spec: ColumnType<unknown, string, never>;
+  cut_speed_rpm: ColumnType<string | number, number, never>;
+  transfer_speed_rpm: ColumnType<string | number, number, never>;
+  rationale: string;
+  evidence_kind: EvidenceKind;
+  evidence: Generated<string>;
+  chosen_by: string;
+  chosen_at: DefaultTimestamp;
+}
+
+export interface TransfersTable {
+  id: Generated<string>;
+  side_id: string;
+  object_key: string;
+  file_name: string;
+  sha256: string;
+  bytes: ColumnType<number, number, never>;
+  container: string;
+  encoding: string;
+  bits_per_sample: number;
+  channels: number;
+  sample_rate_hz: number;
+  frames: ColumnType<number, number, never>;
+  duration_seconds: number;
+  bext: ColumnType<unknown, string | null, never>;
+  stylus_size: Generated<string>;
+  stylus_shape: Generated<string>;
+  measured_speed_rpm: ColumnType<string | number | null, number | null, never>;
+  chain: Generated<string>;
+  derived_from: string | null;
+  uploaded_by: string;
+  created_at: DefaultTimestamp;
+}
+
+export type RenderStatus = "queued" | "running" | "done" | "failed";
+export type ChannelMode = "both" | "sum" | "difference" | "left" | "right";
+
+export interface RendersTable {
+  id: Generated<string>;
+  side_id: string;
+  transfer_id: string;
+  curve_choice_id: string;
+  status: Generated<RenderStatus>;
+  progress: Generated<number>;
+  channel_mode: ChannelMode;
+  bit_depth: number;
+  object_key: string | null;
+  sha256: string | null;
+  bytes: number | null;
+  trim_db: number | null;
+  peak_dbfs: number | null;
+  filter: ColumnType<unknown, string | null, string | null>;
+  error: string | null;
+  requested_by: string;
+  created_at: DefaultTimestamp;
+  started_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  finished_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+}
+
 export interface Database {
+  curve_choices: CurveChoicesTable;
+  transfers: TransfersTable;
+  renders: RendersTable;
   curve_presets: CurvePresetsTable;
   curve_preset_versions: CurvePresetVersionsTable;
   users: UsersTable;

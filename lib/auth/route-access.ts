@@ -26,12 +26,17 @@ export const routeAccess = {
   "GET /api/discs/[id]": "catalogue:read",
   "PATCH /api/discs/[id]": "catalogue:edit",
   "GET /api/discs/[id]/events": "catalogue:read",
+  "GET /api/discs/export": "catalogue:read",
+  "POST /api/imports/preview": "catalogue:edit",
+  "POST /api/imports": "catalogue:edit",
   "GET /api/accessions": "catalogue:read",
   "POST /api/accessions": "catalogue:edit",
   "POST /api/sides/[id]/transition": "catalogue:read",
   "POST /api/assignments": "catalogue:assign",
   "GET /api/queue": "bench:use",
   "GET /api/engineers": "catalogue:assign",
+  "POST /api/curve-choices": "bench:use",
+  "GET /api/sides/[id]/curve-choices": "catalogue:read",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

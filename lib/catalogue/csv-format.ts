@@ -16,7 +16,7 @@ export const maxImportRows = 20_000;
 /** Errors listed in one answer; the count says how many there are in all. */
 export const maxListedErrors = 2_000;
 
-type DiscField = Exclude<keyof DiscFields, never>;
+type DiscField = keyof DiscFields;
 type SideField = Exclude<keyof SideInput, "id">;
 
 interface ColumnSpec {
@@ -352,6 +352,7 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
 
   // Group consecutive rows with the same shelf mark.
   const groups: CheckedRow[][] = [];
+  const repeated = new Set<number>();
   const firstRowOf = new Map<string, number>();
   for (const r of checked) {
     const current = groups[groups.length - 1];
@@ -363,6 +364,7 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
       const firstRow = firstRowOf.get(r.key)!;
       const shelfMark = r.fields?.shelfMark ?? r.key;
       duplicates.push({ row: r.row, shelfMark, firstRow });
+      repeated.add(r.row);
       errors.push({
         row: r.row,
         column: "shelf_mark",
@@ -406,7 +408,8 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
       sideRow.set(k, r.row);
       sides.push(r.side);
     }
-    if (!head.fields) continue;
+    // A repeated shelf mark is not a disc to add: the error above says why.
+    if (!head.fields || repeated.has(group[0].row)) continue;
     const whole = createDiscSchema.safeParse({ ...head.fields, sides });
     if (!whole.success) {
       for (const issue of whole.error.issues) {

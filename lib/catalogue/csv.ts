@@ -139,9 +139,9 @@ async function check(upload: Upload, defaultAccession: string | undefined, fileN
 
   // Shelf marks already in the catalogue (the unique index is on lower(shelf_mark)).
   const duplicates: ExistingDuplicate[] = sheet.duplicates.map((d) => ({ row: d.row, shelfMark: d.shelfMark, firstRow: d.firstRow }));
+  const taken = new Map<string, string>();
   const marks = [...new Set(sheet.discs.map((d) => d.disc.shelfMark.toLowerCase()))];
   if (marks.length) {
-    const taken = new Map<string, string>();
     for (let i = 0; i < marks.length; i += 5000) {
       const chunk = marks.slice(i, i + 5000);
       const rows = await db.selectFrom("discs").select(["id", "shelf_mark"]).where(sql<boolean>`lower(shelf_mark) = ANY(${chunk}::text[])`).execute();
@@ -154,6 +154,8 @@ async function check(upload: Upload, defaultAccession: string | undefined, fileN
       errors.push({ row: d.row, column: "shelf_mark", message: `Shelf mark ${d.disc.shelfMark} is already in the catalogue.` });
     }
   }
+  // Discs whose shelf mark is taken are not to add (they are errors above).
+  const addable = sheet.discs.filter((d) => !taken.has(d.disc.shelfMark.toLowerCase()));
   if (read.errors.length === 0 && sheet.discs.length === 0 && errors.length === 0) {
     errors.push({ row: 2, column: "", message: "The file has no discs to import." });
   }
@@ -167,9 +169,9 @@ async function check(upload: Upload, defaultAccession: string | undefined, fileN
       sha256,
       fileName,
       rows: sheet.rowCount,
-      discs: sheet.discs.length,
-      sides: sheet.discs.reduce((n, d) => n + d.disc.sides.length, 0),
-      toAdd: sheet.discs.slice(0, previewDiscLimit).map((d) => summariseDisc(d, identifierOf(d))),
+      discs: addable.length,
+      sides: addable.reduce((n, d) => n + d.disc.sides.length, 0),
+      toAdd: addable.slice(0, previewDiscLimit).map((d) => summariseDisc(d, identifierOf(d))),
       errors: errors.slice(0, maxListedErrors),
       errorCount: errors.length,
       duplicates,

@@ -1,0 +1,146 @@
+import "server-only";
+import { sql } from "kysely";
+import { db } from "../../db";
+import { type CurveSpec, resolveCurve } from "../curves";
+import type { SessionUser } from "../auth/session-user";
+import { AppError } from "../http/errors";
+import { asCurveAppError } from "../presets/curve-check";
+import { appendEvent } from "../provenance";
+import { statusLabels } from "../validation/catalogue";
+import { curveChoiceSchema } from "../validation/transfers";
+
+/** The curve a side is played through: the preset version's values, then this side's overrides, then the speed ratio. */
+export function effectiveSpec(presetSpec: CurveSpec | null, overrides: Partial<CurveSpec>, cutSpeedRpm: number, transferSpeedRpm: number): CurveSpec {
+  const merged: CurveSpec = { ...(presetSpec ?? {}) };
+  for (const [k, v] of Object.entries(overrides) as [keyof CurveSpec, unknown][]) {
+    if (v !== undefined) (merged as Record<string, unknown>)[k] = v;
+  }
+  // Played at another speed than it was cut, every frequency moves by transfer / cut.
+  merged.speedRatio = transferSpeedRpm / cutSpeedRpm;
+  return merged;
+}
+
+const choosable = new Set(["assigned", "returned", "curve_chosen", "transferred", "rendered"]);
+
+/**
+ * Records a curve choice for each side, keeping the preset version's values as they are
+ * now, with one event per side; a side that was waiting for its curve moves to
+ * "curve chosen". Only the engineer the sides are assigned to may choose. All or nothing.
+ */
+export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{ choices: { sideId: string; choiceId: string }[] }> {
+  const c = curveChoiceSchema.parse(input);
+  return db.transaction().execute(async (trx) => {
+    let preset: { name: string; spec: CurveSpec } | null = null;
+    if (c.presetId && c.presetVersion) {
+      const v = await trx
+        .selectFrom("curve_preset_versions")
+        .select(["name", "spec"])
+        .where("preset_id", "=", c.presetId)
+        .where("version", "=", c.presetVersion)
+        .executeTakeFirst();
+      if (!v) throw new AppError("invalid", 422, "That preset version does not exist.", { presetVersion: ["Unknown preset version."] });
+      preset = { name: v.name, spec: v.spec as CurveSpec };
+    }
+    const spec = effectiveSpec(preset?.spec ?? null, c.overrides as Partial<CurveSpec>, c.cutSpeedRpm, c.transferSpeedRpm);
+    try {
+      resolveCurve(spec);
+    } catch (err) {
+      throw asCurveAppError(err, "overrides");
+    }
+    const sides = await trx
+      .selectFrom("sides as s")
+      .innerJoin("discs as d", "d.id", "s.disc_id")
+      .select(["s.id", "s.disc_id", "s.designation", "s.status", "s.assigned_engineer_id", "s.version", "d.shelf_mark"])
+      .where("s.id", "in", c.sideIds)
+      .forUpdate()
+      .execute();
+    if (sides.length !== new Set(c.sideIds).size) throw new AppError("not_found", 404, "One of those sides does not exist.");
+    const choices: { sideId: string; choiceId: string }[] = [];
+    for (const s of sides) {
+      const where = `${s.shelf_mark} side ${s.designation}`;
+      if (s.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, `${where} is not assigned to you.`);
+      if (!choosable.has(s.status)) {
+        throw new AppError("conflict", 409, `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`);
+      }
+      const previous = await trx.selectFrom("curve_choices").select(["id", "spec"]).where("side_id", "=", s.id).orderBy("chosen_at", "desc").limit(1).executeTakeFirst();
+      const row = await trx
+        .insertInto("curve_choices")
+        .values({
+          side_id: s.id,
+          preset_id: c.presetId ?? null,
+          preset_version: c.presetVersion ?? null,
+          preset_name: preset?.name ?? null,
+          preset_spec: preset ? JSON.stringify(preset.spec) : null,
+          overrides: JSON.stringify(c.overrides),
+          spec: JSON.stringify(spec),
+          cut_speed_rpm: c.cutSpeedRpm,
+          transfer_speed_rpm: c.transferSpeedRpm,
+          rationale: c.rationale,
+          evidence_kind: c.evidenceKind,
+          evidence: c.evidence,
+          chosen_by: actor.id,
+        })
+        .returning("id")
+        .executeTakeFirstOrThrow();
+      await appendEvent(trx, {
+        actorId: actor.id,
+        kind: previous ? "side.curve_changed" : "side.curve_chosen",
+        subjectType: "side",
+        subjectId: s.id,
+        discId: s.disc_id,
+        payload: {
+          side: s.designation,
+          choiceId: row.id,
+          preset: preset ? { id: c.presetId, version: c.presetVersion, name: preset.name, values: preset.spec } : null,
+          overrides: c.overrides,
+          cutSpeedRpm: c.cutSpeedRpm,
+          transferSpeedRpm: c.transferSpeedRpm,
+          spec,
+          rationale: c.rationale,
+          evidenceKind: c.evidenceKind,
+          evidence: c.evidence,
+          ...(previous ? { before: { choiceId: previous.id, spec: previous.spec } } : {}),
+        },
+      });
+      if (s.status === "assigned" || s.status === "returned") {
+        await trx.updateTable("sides").set({ status: "curve_chosen", return_reason: null, version: s.version + 1, updated_at: sql`now()` }).where("id", "=", s.id).execute();
+        await appendEvent(trx, {
+          actorId: actor.id,
+          kind: "side.status_changed",
+          subjectType: "side",
+          subjectId: s.id,
+          discId: s.disc_id,
+          payload: { side: s.designation, before: { status: s.status }, after: { status: "curve_chosen" } },
+        });
+      }
+      choices.push({ sideId: s.id, choiceId: row.id });
+    }
+    return { choices };
+  });
+}
+
+export async function listCurveChoices(sideId: string) {
+  const rows = await db
+    .selectFrom("curve_choices as c")
+    .innerJoin("users as u", "u.id", "c.chosen_by")
+    .select([
+      "c.id",
+      "c.preset_id as presetId",
+      "c.preset_version as presetVersion",
+      "c.preset_name as presetName",
+      "c.preset_spec as presetSpec",
+      "c.overrides",
+      "c.spec",
+      "c.cut_speed_rpm as cutSpeedRpm",
+      "c.transfer_speed_rpm as transferSpeedRpm",
+      "c.rationale",
+      "c.evidence_kind as evidenceKind",
+      "c.evidence",
+      "c.chosen_at as chosenAt",
+      "u.name as chosenBy",
+    ])
+    .where("c.side_id", "=", sideId)
+    .orderBy("c.chosen_at", "desc")
+    .execute();
+  return rows.map((r) => ({ ...r, cutSpeedRpm: Number(r.cutSpeedRpm), transferSpeedRpm: Number(r.transferSpeedRpm), spec: r.spec as CurveSpec }));
+}

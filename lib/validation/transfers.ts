@@ -1,0 +1,65 @@
+import { z } from "zod";
+import { curveSpecSchema } from "./curves";
+
+export const evidenceKinds = ["published_guidance", "test_disc", "listening", "disc_documentation", "other"] as const;
+export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {
+  published_guidance: "Published guidance for the label and era",
+  test_disc: "Test-disc measurement fitted in the workbench",
+  listening: "Listening comparison",
+  disc_documentation: "The disc's own documentation",
+  other: "Other",
+};
+
+const speed = (what: string) => z.coerce.number({ error: `${what} must be a number (rpm).` }).positive(`${what} must be above 0 rpm.`).max(200, `${what} over 200 rpm? Check the value.`);
+
+/** A curve choice for one or more sides: a preset version, overrides for these sides, the two speeds, and why. */
+export const curveChoiceSchema = z
+  .object({
+    sideIds: z.array(z.uuid()).min(1, "Choose at least one side.").max(500),
+    presetId: z.uuid().optional(),
+    presetVersion: z.coerce.number().int().positive().optional(),
+    overrides: curveSpecSchema.omit({ speedRatio: true }).partial().default({}),
+    cutSpeedRpm: speed("The speed the disc was cut at"),
+    transferSpeedRpm: speed("The speed it was transferred at"),
+    rationale: z.string().trim().min(10, "Say why this curve: at least a sentence.").max(4000),
+    evidenceKind: z.enum(evidenceKinds, { error: "Say what the choice rests on." }),
+    evidence: z.string().trim().max(4000).default(""),
+  })
+  .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), { path: ["presetVersion"], message: "Name the preset's version with the preset." })
+  .refine((v) => v.presetId !== undefined || Object.keys(v.overrides).length > 0, { path: ["presetId"], message: "Choose a preset or give the curve's values." });
+
+export const channelModes = ["both", "sum", "difference", "left", "right"] as const;
+export const channelModeLabels: Record<(typeof channelModes)[number], string> = {
+  both: "Keep both channels",
+  sum: "Sum (lateral cut)",
+  difference: "Difference (vertical cut)",
+  left: "Left groove wall only",
+  right: "Right groove wall only",
+};
+
+/** Up to 10 000 parts of at most 5 GiB each (S3 limits); files up to 64 GiB here. */
+export const maxTransferBytes = 64 * 1024 ** 3;
+
+export const startUploadSchema = z.object({
+  sideId: z.uuid({ error: "Unknown side." }),
+  fileName: z.string().trim().min(1, "The file has no name.").max(255),
+  bytes: z.coerce.number().int().positive("The file is empty (0 bytes).").max(maxTransferBytes, "Files over 64 GiB are not accepted."),
+});
+
+export const signPartsSchema = z.object({
+  key: z.string().min(1),
+  uploadId: z.string().min(1),
+  partNumbers: z.array(z.number().int().min(1).max(10_000)).min(1).max(1000),
+});
+
+export const uploadRefSchema = z.object({ key: z.string().min(1), uploadId: z.string().min(1) });
+
+export const completeUploadSchema = uploadRefSchema.extend({
+  parts: z.array(z.object({ partNumber: z.number().int().min(1).max(10_000), etag: z.string().min(1) })).min(1),
+  sha256: z.string().regex(/^[0-9a-f]{64}$/, "The SHA-256 must be 64 lower-case hex digits."),
+  bytes: z.coerce.number().int().positive(),
+  stylusSize: z.string().trim().max(80).default(""),
+  stylusShape: z.string().trim().max(80).default(""),
+  measuredSpeedRpm: z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number().positive("Measured speed must be above 0 rpm.").max(200).optional()),
+  chain: z.string().trim().max(4000).default(""),
+});

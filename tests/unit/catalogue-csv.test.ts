@@ -1,0 +1,331 @@
+// The catalogue's spreadsheet format without a database: reading, checking, grouping
+// rows into discs, formula-looking fields, and writing back what was read.
+import { describe, expect, it } from "vitest";
+import {
+  buildDiscs,
+  type BuiltSheet,
+  catalogueColumns,
+  catalogueTemplateCsv,
+  CsvFormatError,
+  decodeCsv,
+  type ExportDisc,
+  maxImportRows,
+  protectFormula,
+  readCatalogueCsv,
+  toCatalogueCsv,
+  unprotectFormula,
+} from "@/lib/catalogue/csv-format";
+import { thrownBy } from "../support/errors";
+
+const accessions = new Map([
+  ["acc-2026-01", "6f1c2b7e-8a5d-4c1e-9b2a-0d3e4f5a6b7c"],
+  ["acc-2026-02", "0a9b8c7d-6e5f-4a3b-8c2d-1e0f9a8b7c6d"],
+]);
+const resolveAccession = (identifier: string) => accessions.get(identifier.toLowerCase());
+
+const header = catalogueColumns.join(",");
+
+/** A row with the given columns set; the others empty. */
+function row(values: Partial<Record<(typeof catalogueColumns)[number], string>>): string {
+  return catalogueColumns
+    .map((c) => {
+      const v = values[c] ?? "";
+      return /[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
+    })
+    .join(",");
+}
+
+const shellac = { shelf_mark: "MH-78-001", accession: "ACC-2026-01", format: "shellac_78", speed_rpm: "78", groove: "coarse", cut: "lateral" } as const;
+
+function check(text: string, defaultAccessionId?: string): BuiltSheet & { readErrors: ReturnType<typeof readCatalogueCsv>["errors"] } {
+  const read = readCatalogueCsv(text);
+  return { ...buildDiscs(read.rows, { resolveAccession, defaultAccessionId }), readErrors: read.errors };
+}
+
+describe("reading the file", () => {
+  it("handles a byte-order mark, CRLF line ends and quoted fields with commas, quotes and line breaks", () => {
+    const text = `\uFEFF${header}\r\n${row({ ...shellac, side: "A", title: 'Song of the "Rill", part 1', side_notes: "Label torn.\r\nSecond line." })}\r\n`;
+    const { discs, errors, readErrors } = check(text);
+    expect(readErrors).toEqual([]);
+    expect(errors).toEqual([]);
+    expect(discs).toHaveLength(1);
+    expect(discs[0].disc.shelfMark).toBe("MH-78-001");
+    expect(discs[0].disc.sides[0].title).toBe('Song of the "Rill", part 1');
+    expect(discs[0].disc.sides[0].notes).toBe("Label torn.\r\nSecond line.");
+  });
+
+  it("decodes UTF-8 and refuses bytes that are not", () => {
+    expect(decodeCsv(new TextEncoder().encode("shelf_mark\nÉcole"))).toBe("shelf_mark\nÉcole");
+    const e = thrownBy(CsvFormatError, () => decodeCsv(new Uint8Array([0x73, 0xe9, 0x2c, 0xff])));
+    expect(e.message).toMatch(/not UTF-8/);
+  });
+
+  it("accepts the columns in any order and in any case, and reads missing optional columns as empty", () => {
+    const text = "Cut,GROOVE,speed_rpm,format,shelf_mark\nlateral,coarse,78,shellac_78,X-1\n";
+    const { discs, errors } = check(text, accessions.get("acc-2026-01"));
+    expect(errors).toEqual([]);
+    expect(discs[0].disc).toMatchObject({ shelfMark: "X-1", labelName: "", conditionGrade: "unassessed", sides: [] });
+  });
+
+  it("names unknown, repeated and missing header columns", () => {
+    const read = readCatalogueCsv("shelf_mark,labl,format,format,groove,cut\nX,,,,,\n");
+    expect(read.rows).toEqual([]);
+    expect(read.errors).toEqual(
+      expect.arrayContaining([
+        expect.objectContaining({ row: 1, column: "labl", message: expect.stringMatching(/Unknown column/) }),
+        expect.objectContaining({ row: 1, column: "format", message: expect.stringMatching(/twice/) }),
+        expect.objectContaining({ row: 1, column: "speed_rpm", message: expect.stringMatching(/required/) }),
+      ]),
+    );
+  });
+
+  it("says which row a broken quote is on", () => {
+    const read = readCatalogueCsv(`${header}\n${row(shellac)}\n${row({ ...shellac, shelf_mark: "B" }).replace("B", '"B')}\n`);
+    expect(read.errors).toHaveLength(1);
+    expect(read.errors[0].row).toBe(3);
+    expect(read.errors[0].message).toMatch(/quote/);
+  });
+
+  it("refuses a row with more fields than the header", () => {
+    const read = readCatalogueCsv(`${header}\n${row(shellac)},extra\n`);
+    expect(read.errors).toEqual([expect.objectContaining({ row: 2, message: expect.stringMatching(/fields but the header names/) })]);
+  });
+
+  it("counts blank rows so row numbers match the spreadsheet, without making discs of them", () => {
+    const text = `${header}\n${row(shellac)}\n${",".repeat(catalogueColumns.length - 1)}\n\n${row({ ...shellac, shelf_mark: "MH-78-002", format: "vinyl" })}\n\n`;
+    const { discs, errors, rowCount } = check(text);
+    expect(rowCount).toBe(2);
+    // A row whose disc columns do not read gives no disc, only its error.
+    expect(discs.map((d) => d.row)).toEqual([2]);
+    expect(errors).toEqual([expect.objectContaining({ row: 5, column: "format" })]);
+  });
+
+  it(`stops at ${maxImportRows} rows with a clear error`, () => {
+    const line = row(shellac);
+    const text = `${header}\n${Array.from({ length: maxImportRows + 1 }, () => line).join("\n")}`;
+    const read = readCatalogueCsv(text);
+    expect(read.rows).toEqual([]);
+    expect(read.errors).toHaveLength(1);
+    expect(read.errors[0].message).toMatch(/20[, ]?000/);
+    expect(read.errors[0].message).toMatch(/20[, ]?001 rows/);
+  });
+
+  it("refuses an empty file and a header without rows", () => {
+    expect(readCatalogueCsv("").errors[0].message).toMatch(/empty/);
+    expect(readCatalogueCsv(`${header}\r\n`).errors[0].message).toMatch(/no rows/);
+  });
+});
+
+describe("checking rows", () => {
+  it("names the row and column of each bad value, in the shared schemas' words", () => {
+    const text = [
+      header,
+      row({ ...shellac, side: "A" }),
+      row({ ...shellac, shelf_mark: "MH-78-002", speed_rpm: "fast", diameter_in: "ten" }),
+      row({ ...shellac, shelf_mark: "MH-78-003", condition_flags: "warp;mildew", year_from: "1931", year_to: "1929" }),
+      row({ ...shellac, shelf_mark: "MH-78-004", base: "glass" }),
+      row({ ...shellac, shelf_mark: "MH-78-005", matrix_number: "W-1" }),
+    ].join("\n");
+    const { errors } = check(text);
+    expect(errors.map((e) => [e.row, e.column])).toEqual([
+      [3, "diameter_in"],
+      [3, "speed_rpm"],
+      [4, "condition_flags"],
+      [5, "base"],
+      [6, "side"],
+    ]);
+    expect(errors[0].message).toMatch(/Diameter must be a number/);
+    expect(errors[1].message).toMatch(/Nominal speed must be a number/);
+    expect(errors[3].message).toMatch(/lacquer and transcription/);
+    expect(errors[4].message).toMatch(/side designation/);
+    // The year range is checked once the row's values read.
+    const years = check([header, row({ ...shellac, year_from: "1931", year_to: "1929" })].join("\n")).errors;
+    expect(years).toEqual([expect.objectContaining({ row: 2, column: "year_to", message: expect.stringMatching(/runs backwards/) })]);
+  });
+
+  it("resolves accessions by identifier, case-insensitively, falling back to the default only for empty cells", () => {
+    const fallback = accessions.get("acc-2026-02")!;
+    const text = [header, row({ ...shellac, accession: "acc-2026-01" }), row({ ...shellac, shelf_mark: "B", accession: "" }), row({ ...shellac, shelf_mark: "C", accession: "ACC-1999-99" })].join("\n");
+    const { discs, errors } = check(text, fallback);
+    expect(discs[0].disc.accessionId).toBe(accessions.get("acc-2026-01"));
+    expect(discs[1].disc.accessionId).toBe(fallback);
+    expect(errors).toEqual([expect.objectContaining({ row: 4, column: "accession", message: expect.stringMatching(/ACC-1999-99/) })]);
+    // Without a default, the empty cell is the error.
+    const without = check(text);
+    expect(without.errors.map((e) => [e.row, e.column])).toEqual([
+      [3, "accession"],
+      [4, "accession"],
+    ]);
+  });
+
+  it("takes the spellings people type: format labels, 33 1/3, upper case codes, spaced flags", () => {
+    const text = [header, row({ ...shellac, format: "Microgroove LP", speed_rpm: "33 1/3", groove: "MICRO", cut: "Lateral", condition: "Good", condition_flags: " Warp ; wear;warp " })].join("\n");
+    const { discs, errors } = check(text);
+    expect(errors).toEqual([]);
+    expect(discs[0].disc).toMatchObject({ format: "microgroove_lp", nominalSpeedRpm: 33.33, groove: "micro", cut: "lateral", conditionGrade: "good", conditionFlags: ["warp", "wear"] });
+  });
+});
+
+describe("grouping rows into discs", () => {
+  it("makes one disc of consecutive rows with the same shelf mark, one side per row", () => {
+    const text = [header, row({ ...shellac, side: "A", matrix_number: "W-140" }), row({ ...shellac, side: "B", matrix_number: "W-141" }), row({ ...shellac, shelf_mark: "MH-78-002" })].join("\n");
+    const { discs, errors } = check(text);
+    expect(errors).toEqual([]);
+    expect(discs.map((d) => [d.row, d.rows, d.disc.sides.map((s) => s.matrixNumber)])).toEqual([
+      [2, [2, 3], ["W-140", "W-141"]],
+      [4, [4], []],
+    ]);
+  });
+
+  it("says which disc column differs between rows of one disc", () => {
+    const text = [header, row({ ...shellac, side: "A", label: "Rillton" }), row({ ...shellac, side: "B", label: "Rilton" })].join("\n");
+    const { errors } = check(text);
+    expect(errors).toEqual([expect.objectContaining({ row: 3, column: "label" })]);
+    expect(errors[0].message).toMatch(/row 2/);
+    expect(errors[0].message).toMatch(/“Rilton” here, “Rillton” there/);
+  });
+
+  it("treats 78 and 78.0 as the same speed on two rows of a disc", () => {
+    const text = [header, row({ ...shellac, side: "A", speed_rpm: "78" }), row({ ...shellac, side: "B", speed_rpm: "78.0" })].join("\n");
+    expect(check(text).errors).toEqual([]);
+  });
+
+  it("reports a side listed twice and a side-less row among sides", () => {
+    const text = [header, row({ ...shellac, side: "A" }), row({ ...shellac, side: "a" }), row({ ...shellac })].join("\n");
+    const { errors } = check(text);
+    expect(errors.map((e) => [e.row, e.column])).toEqual([
+      [3, "side"],
+      [4, "side"],
+    ]);
+    expect(errors[0].message).toMatch(/listed twice/);
+  });
+
+  it("reports a shelf mark that comes back after another disc as a duplicate within the file", () => {
+    const text = [header, row({ ...shellac, side: "A" }), row({ ...shellac, shelf_mark: "MH-78-002" }), row({ ...shellac, shelf_mark: "mh-78-001", side: "B" })].join("\n");
+    const { errors, duplicates, discs } = check(text);
+    expect(duplicates).toEqual([{ row: 4, shelfMark: "mh-78-001", firstRow: 2 }]);
+    expect(discs.map((d) => d.row)).toEqual([2, 3]);
+    expect(errors).toEqual([expect.objectContaining({ row: 4, column: "shelf_mark", message: expect.stringMatching(/row 2/) })]);
+  });
+
+  it("refuses a ninth side on the row that adds it", () => {
+    const sides = "ABCDEFGHI".split("").map((s) => row({ ...shellac, side: s }));
+    const { errors } = check([header, ...sides].join("\n"));
+    expect(errors).toEqual([expect.objectContaining({ row: 10, column: "side", message: expect.stringMatching(/At most 8 sides/) })]);
+  });
+});
+
+describe("fields that look like formulas", () => {
+  it("gets one apostrophe on export and loses exactly one on import", () => {
+    for (const v of ["=SUM(A1:A3)", "+44 20 7946", "-12 dB", "@label", "'=already", "''+two"]) {
+      expect(protectFormula(v)).toBe(`'${v}`);
+      expect(unprotectFormula(protectFormula(v))).toBe(v);
+    }
+    for (const v of ["plain", "", "'quoted text", "a=b"]) expect(protectFormula(v)).toBe(v);
+    expect(unprotectFormula("'quoted text")).toBe("'quoted text");
+    expect(unprotectFormula("'=1+1")).toBe("=1+1");
+  });
+});
+
+const sample: ExportDisc[] = [
+  {
+    shelfMark: "=HYPERLINK(\"x\")",
+    accessionIdentifier: "ACC-2026-01",
+    labelName: "@Rillton",
+    catalogueNumber: "+R 100",
+    format: "shellac_78",
+    base: null,
+    diameterIn: 10,
+    nominalSpeedRpm: 78.26,
+    groove: "coarse",
+    cut: "lateral",
+    recordingDate: "1929-04-02",
+    recordedFromYear: 1929,
+    recordedToYear: 1929,
+    conditionGrade: "fair",
+    conditionFlags: ["cracks", "wear"],
+    conditionNotes: "Hairline crack, 2 cm, at 3 o'clock.\nPlays through.",
+    handlingNotes: "-Broken shellac cuts: wear gloves.",
+    sides: [
+      { designation: "A", matrixNumber: "-W 140,2", take: "'=2", title: "Serenade, \"slow\"", performers: "Marrow Hill Quartet", notes: "" },
+      { designation: "B", matrixNumber: "W 141", take: "1", title: "", performers: "", notes: "Label reads \"B\"" },
+    ],
+  },
+  {
+    shelfMark: "LAC-0007",
+    accessionIdentifier: "acc-2026-02",
+    labelName: "",
+    catalogueNumber: "",
+    format: "instantaneous_lacquer",
+    base: "glass",
+    diameterIn: 16,
+    nominalSpeedRpm: 33.33,
+    groove: "micro",
+    cut: "vertical",
+    recordingDate: null,
+    recordedFromYear: null,
+    recordedToYear: null,
+    conditionGrade: "poor",
+    conditionFlags: [],
+    conditionNotes: "",
+    handlingNotes: "",
+    sides: [],
+  },
+];
+
+describe("writing and reading back", () => {
+  it("writes a header and one row per side, with side-less discs on one row", () => {
+    const text = toCatalogueCsv(sample);
+    expect(text.startsWith("\uFEFF")).toBe(true);
+    const read = readCatalogueCsv(text);
+    expect(read.errors).toEqual([]);
+    expect(read.rows.map((r) => [r.row, r.values.shelf_mark, r.values.side])).toEqual([
+      [2, '=HYPERLINK("x")', "A"],
+      [3, '=HYPERLINK("x")', "B"],
+      [4, "LAC-0007", ""],
+    ]);
+  });
+
+  it("protects formula-looking fields in the file itself", () => {
+    const text = toCatalogueCsv(sample);
+    expect(text).toContain(`"'=HYPERLINK(""x"")"`);
+    expect(text).toContain(",'@Rillton,");
+    expect(text).toContain(",'+R 100,");
+    expect(text).not.toMatch(/(^|,)[=+@]/m);
+  });
+
+  it("reads back exactly what it wrote", () => {
+    const { discs, errors } = check(toCatalogueCsv(sample));
+    expect(errors).toEqual([]);
+    const back: ExportDisc[] = discs.map(({ disc, accessionIdentifier }) => ({
+      shelfMark: disc.shelfMark,
+      accessionIdentifier,
+      labelName: disc.labelName,
+      catalogueNumber: disc.catalogueNumber,
+      format: disc.format,
+      base: disc.base ?? null,
+      diameterIn: disc.diameterIn ?? null,
+      nominalSpeedRpm: disc.nominalSpeedRpm,
+      groove: disc.groove,
+      cut: disc.cut,
+      recordingDate: disc.recordingDate ?? null,
+      recordedFromYear: disc.recordedFromYear ?? null,
+      recordedToYear: disc.recordedToYear ?? null,
+      conditionGrade: disc.conditionGrade,
+      conditionFlags: disc.conditionFlags,
+      conditionNotes: disc.conditionNotes,
+      handlingNotes: disc.handlingNotes,
+      sides: disc.sides.map(({ designation, matrixNumber, take, title, performers, notes }) => ({ designation, matrixNumber, take, title, performers, notes })),
+    }));
+    expect(back).toEqual(sample);
+  });
+
+  it("offers a template that reads cleanly once an accession is chosen", () => {
+    const template = catalogueTemplateCsv();
+    const read = readCatalogueCsv(template);
+    expect(read.errors).toEqual([]);
+    expect(Object.keys(read.rows[0].values)).toEqual(catalogueColumns);
+    expect(buildDiscs(read.rows, { resolveAccession, defaultAccessionId: accessions.get("acc-2026-01") }).errors).toEqual([]);
+    expect(buildDiscs(read.rows, { resolveAccession }).errors.every((e) => e.column === "accession")).toBe(true);
+  });
+});

@@ -235,7 +235,58 @@ export interface RendersTable {
   finished_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
 }
 
+export interface ReviewsTable {
+  id: Generated<string>;
+  side_id: string;
+  curator_id: string;
+  decision: "approved" | "returned";
+  reason: string | null;
+  transfer_id: string | null;
+  render_id: string | null;
+  curve_choice_id: string | null;
+  decided_at: DefaultTimestamp;
+}
+
+export type FixityOutcome = "pass" | "mismatch" | "missing" | "error";
+
+export interface FixityChecksTable {
+  id: Generated<string>;
+  object_kind: "transfer" | "render";
+  object_id: string;
+  object_key: string;
+  side_id: string;
+  expected_sha256: string;
+  actual_sha256: string | null;
+  bytes: number | null;
+  outcome: FixityOutcome;
+  detail: string | null;
+  checked_at: DefaultTimestamp;
+  acknowledged_by: string | null;
+  acknowledged_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+}
+
+export interface ChainChecksTable {
+  id: Generated<string>;
+  ok: boolean;
+  events: number;
+  broken_seq: number | null;
+  broken_reason: string | null;
+  run_by: string | null;
+  checked_at: DefaultTimestamp;
+}
+
+export interface LabSettingsTable {
+  key: string;
+  value: ColumnType<unknown, string, string>;
+  updated_by: string | null;
+  updated_at: DefaultTimestamp;
+}
+
 export interface Database {
+  reviews: ReviewsTable;
+  fixity_checks: FixityChecksTable;
+  chain_checks: ChainChecksTable;
+  lab_settings: LabSettingsTable;
   curve_choices: CurveChoicesTable;
   transfers: TransfersTable;
   renders: RendersTable;

@@ -4,6 +4,7 @@ import { fileURLToPath } from "node:url";
 import { FileMigrationProvider, Migrator } from "kysely";
 import { createDb } from "../db/client";
 import { env } from "../lib/env";
+import { ensureQueues } from "../lib/jobs/boss";
 
 const migrationFolder = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "migrations");
 
@@ -20,6 +21,7 @@ export async function migrateToLatest(databaseUrl: string): Promise<string[]> {
     if (error || failed) {
       throw new Error(`migration ${failed?.migrationName ?? ""} failed: ${String(error)}`);
     }
+    await ensureQueues(databaseUrl);
     return (results ?? []).map((r) => r.migrationName);
   } finally {
     await db.destroy();

@@ -1,17 +1,21 @@
-// The worker process: sends the outbox (and, as later parts arrive, renders and
-// fixity sweeps). Several workers may run against one database: each message is
-// claimed under a row lock.
+// The worker process: sends the outbox and runs the queue's long work (renders of
+// access copies). Several workers may run against one database and bucket: mail is
+// claimed under a row lock, and pg-boss hands each job to exactly one worker, retrying
+// it after a crash or a failure.
 import { createDb } from "../db/client";
 import { env } from "../lib/env";
+import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
+import { createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, RENDER_QUEUE } from "../lib/jobs/boss";
+import { runRenderJob } from "../lib/jobs/render-job";
 import { deliverDueMail } from "../lib/mail/outbox";
 import { createMailTransport } from "../lib/mail/transport";
 
 const db = createDb(env().DATABASE_URL, 4);
 const transport = createMailTransport(env().SMTP_URL);
+const boss = createBoss(env().DATABASE_URL, "worker");
 let stopping = false;
 
-async function loop(): Promise<void> {
-  console.log(`[worker] started, sending mail through ${new URL(env().SMTP_URL).host}`);
+async function mailLoop(): Promise<void> {
   while (!stopping) {
     try {
       const { sent, failed } = await deliverDueMail(db, transport, env().MAIL_FROM);
@@ -21,14 +25,46 @@ async function loop(): Promise<void> {
     }
     await new Promise((r) => setTimeout(r, 1000));
   }
+}
+
+async function main(): Promise<void> {
+  console.log(`[worker] started, sending mail through ${new URL(env().SMTP_URL).host}`);
+  await boss.start();
+  await createMissingQueues(boss);
+  await boss.work<{ renderId: string }>(RENDER_QUEUE, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 1 }, async ([job]) => {
+    const finalAttempt = job.retryCount >= job.retryLimit;
+    console.log(`[worker] render ${job.data.renderId} (attempt ${job.retryCount + 1} of ${job.retryLimit + 1})`);
+    const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
+    console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
+  });
+  // Fixity: an hourly sweep queues every object whose last check is older than the
+  // lab's cycle; each object is one job (singleton per object), so several workers
+  // share the work and never check an object twice at once.
+  await boss.schedule(FIXITY_SWEEP_QUEUE, FIXITY_SWEEP_CRON);
+  await boss.work(FIXITY_SWEEP_QUEUE, async () => {
+    const due = await dueObjects(db, await fixityCycleDays(db));
+    for (const o of due) await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: `${o.kind}:${o.id}` });
+    if (due.length) console.log(`[worker] fixity sweep queued ${due.length} objects`);
+  });
+  await boss.work<{ kind: StoredObjectKind; id: string }>(FIXITY_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
+    const outcome = await checkObject(db, job.data.kind, job.data.id);
+    console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
+  });
+  await mailLoop();
+}
+
+async function shutdown(): Promise<void> {
+  if (stopping) return;
+  stopping = true;
+  await boss.stop({ graceful: true, timeout: 10_000 }).catch(() => undefined);
   transport.close();
   await db.destroy();
+  process.exit(0);
 }
 
-for (const signal of ["SIGTERM", "SIGINT"] as const) {
-  process.on(signal, () => {
-    stopping = true;
-  });
-}
+for (const signal of ["SIGTERM", "SIGINT"] as const) process.on(signal, () => void shutdown());
 
-void loop();
+main().catch((err) => {
+  console.error("[worker] failed to start:", err);
+  process.exit(1);
+});

@@ -20,8 +20,10 @@ export default async function LabLayout({ children }: { children: ReactNode }) {
         Skip to content
       </a>
       <div className="grid min-h-screen md:grid-cols-[15.5rem_minmax(0,1fr)]">
-        <div className="md:sticky md:top-0 md:h-screen">
-          <Sidebar items={items} user={{ name: user.name, email: user.email, roleLabel: roleLabels[user.role] }} labName={env().LAB_NAME} />
+        <div className="bg-lacquer">
+          <div className="md:sticky md:top-0 md:h-screen">
+            <Sidebar items={items} user={{ name: user.name, email: user.email, roleLabel: roleLabels[user.role] }} labName={env().LAB_NAME} />
+          </div>
         </div>
         <main id="main" className="mx-auto w-full max-w-[90rem] px-6 py-8 lg:px-10">
           {children}

@@ -52,7 +52,7 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
                   <tbody>
                     {disc.sides.map((s) => (
                       <tr key={s.id} className="border-t border-paper-edge/70 align-top" data-testid={`side-${s.designation}`}>
-                        <td className="px-3 py-3 font-mono text-base font-semibold">{s.designation}</td>
+                        <td className="px-3 py-3 font-mono text-base font-semibold">{s.assignedEngineerId === user.id ? <a href={`/bench/${s.id}`} className="text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac" aria-label={`Side ${s.designation} on the bench`}>{s.designation}</a> : s.designation}</td>
                         <td className="px-3 py-3 font-mono text-xs">
                           <p>{s.matrixNumber || "—"}</p>
                           {s.take ? <p className="text-ink-faint">take {s.take}</p> : null}

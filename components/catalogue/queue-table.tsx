@@ -36,7 +36,7 @@ const columns = [
       </div>
     ),
   }),
-  column.accessor("designation", { header: "Side", cell: (c) => <span className="font-mono font-semibold">{c.getValue()}</span> }),
+  column.accessor("designation", { header: "Side", cell: (c) => <Link href={`/bench/${c.row.original.id}`} className="font-mono font-semibold text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac" aria-label={`Side ${c.getValue()} on the bench`} data-testid="queue-bench-link">{c.getValue()}</Link> }),
   column.accessor("matrixNumber", { header: "Matrix", cell: (c) => <span className="font-mono text-xs">{c.getValue() || "—"}</span> }),
   column.accessor("title", { header: "Title", cell: (c) => c.getValue() || <span className="text-ink-faint">untitled</span> }),
   column.accessor((r) => `${formatLabel(r.format)} ${speedLabel(r.nominalSpeedRpm)}`, { id: "carrier", header: "Format · rpm", cell: (c) => <span className="text-xs">{formatLabel(c.row.original.format)} · {speedLabel(c.row.original.nominalSpeedRpm)}</span> }),

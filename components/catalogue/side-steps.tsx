@@ -14,25 +14,28 @@ export interface Step {
   from: string;
   to: string;
   action: Action;
+  /** How the step happens; only "submit" and "review" are buttons here, the rest follow from work on the bench. */
+  via: string;
   assignedOnly?: boolean;
   reasonRequired?: boolean;
 }
 
 const stepLabels: Record<string, string> = {
-  curve_chosen: "Mark curve chosen",
-  transferred: "Mark transferred",
-  rendered: "Mark rendered",
   in_review: "Send for review",
   approved: "Approve",
   returned: "Return…",
 };
 
 /**
- * The steps the signed-in person may take from a side's status. Assigning goes through
- * the assignment control, which names the engineer. The server checks every step again.
+ * The steps the signed-in person may take here from a side's status: sending a rendered
+ * side for review, and the curator's approve or return. Assigning goes through the
+ * assignment control; choosing the curve, uploading and rendering happen on the bench.
+ * The server checks every step again.
  */
 export function stepsFor(side: SideJson, steps: readonly Step[], user: { id: string; role: Role }): Step[] {
-  return steps.filter((t) => t.from === side.status && t.to !== "assigned" && can(user.role, t.action) && (!t.assignedOnly || side.assignedEngineerId === user.id));
+  return steps.filter(
+    (t) => t.from === side.status && (t.via === "submit" || t.via === "review") && can(user.role, t.action) && (!t.assignedOnly || side.assignedEngineerId === user.id),
+  );
 }
 
 export function SideSteps({ side, steps, user, onMoved }: { side: SideJson; steps: readonly Step[]; user: { id: string; role: Role }; onMoved: () => void }) {

@@ -21,7 +21,7 @@ import {
   summariseDisc,
   toCatalogueCsv,
 } from "./csv-format";
-import { insertDisc, listDiscs } from "./discs";
+import { insertDiscs, listDiscs } from "./discs";
 import { readSides } from "./records";
 
 /** Uploads larger than this are refused before they are read (20 000 rows of long notes fit well below). */
@@ -200,7 +200,7 @@ export async function commitImport(actor: SessionUser, upload: Upload): Promise<
   if (report.errorCount > 0) return { ok: false, report };
   try {
     const eventId = await db.transaction().execute(async (trx) => {
-      for (const d of sheet.discs) await insertDisc(trx, actor, d.disc, { importSha256: report.sha256, row: d.row });
+      await insertDiscs(trx, actor, sheet.discs.map((d) => ({ disc: d.disc, origin: { importSha256: report.sha256, row: d.row } })));
       const event = await appendEvent(trx, {
         actorId: actor.id,
         kind: "import.committed",

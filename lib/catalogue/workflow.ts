@@ -8,24 +8,35 @@ import { AppError } from "../http/errors";
 import { enqueueMail } from "../mail/outbox";
 import { env } from "../env";
 import { appendEvent } from "../provenance";
+import { decideReview } from "../review";
 import { assignSchema, statusLabels, transitionSchema } from "../validation/catalogue";
 
 /**
  * A side's path through the lab. Each step names the action (from the permission table)
- * that allows it; engineer steps are also limited to the engineer the side is assigned to.
- * No step may be skipped.
+ * that allows it and how it happens: most steps follow from the work itself (an
+ * assignment, a curve choice, an accepted upload, a finished render, a curator's
+ * review); only submitting for review is a plain step. No step may be skipped.
  */
-export const transitions: ReadonlyArray<{ from: SideStatus; to: SideStatus; action: Action; assignedOnly?: boolean; reasonRequired?: boolean }> = [
-  { from: "catalogued", to: "assigned", action: "catalogue:assign" },
-  { from: "returned", to: "assigned", action: "catalogue:assign" },
-  { from: "assigned", to: "curve_chosen", action: "bench:use", assignedOnly: true },
-  { from: "returned", to: "curve_chosen", action: "bench:use", assignedOnly: true },
-  { from: "curve_chosen", to: "transferred", action: "bench:use", assignedOnly: true },
-  { from: "transferred", to: "rendered", action: "bench:use", assignedOnly: true },
-  { from: "rendered", to: "in_review", action: "bench:use", assignedOnly: true },
-  { from: "in_review", to: "approved", action: "review:decide" },
-  { from: "in_review", to: "returned", action: "review:decide", reasonRequired: true },
+export type StepVia = "assignment" | "curve choice" | "upload" | "render" | "submit" | "review";
+
+export const transitions: ReadonlyArray<{ from: SideStatus; to: SideStatus; action: Action; via: StepVia; assignedOnly?: boolean; reasonRequired?: boolean }> = [
+  { from: "catalogued", to: "assigned", action: "catalogue:assign", via: "assignment" },
+  { from: "returned", to: "assigned", action: "catalogue:assign", via: "assignment" },
+  { from: "assigned", to: "curve_chosen", action: "bench:use", via: "curve choice", assignedOnly: true },
+  { from: "returned", to: "curve_chosen", action: "bench:use", via: "curve choice", assignedOnly: true },
+  { from: "curve_chosen", to: "transferred", action: "bench:use", via: "upload", assignedOnly: true },
+  { from: "transferred", to: "rendered", action: "bench:use", via: "render", assignedOnly: true },
+  { from: "rendered", to: "in_review", action: "bench:use", via: "submit", assignedOnly: true },
+  { from: "in_review", to: "approved", action: "review:decide", via: "review" },
+  { from: "in_review", to: "returned", action: "review:decide", via: "review", reasonRequired: true },
 ];
+
+const howItHappens: Record<Exclude<StepVia, "submit" | "review">, string> = {
+  assignment: "through an assignment, which names the engineer",
+  "curve choice": "when its curve is chosen on the bench, with a rationale",
+  upload: "when its flat transfer is uploaded and accepted",
+  render: "when its access copy has been rendered",
+};
 
 export function nextSteps(status: SideStatus): SideStatus[] {
   return transitions.filter((t) => t.from === status).map((t) => t.to);
@@ -46,6 +57,11 @@ async function lockSide(trx: Transaction<Database>, sideId: string) {
 /** Moves a side one step along its path, checked here on the server, with its event. */
 export async function transitionSide(actor: SessionUser, sideId: string, input: unknown): Promise<{ status: SideStatus }> {
   const { to, reason } = transitionSchema.parse(input);
+  // Approving and returning are the curator's review, with its own checks.
+  if (to === "approved" || to === "returned") {
+    if (!can(actor.role, "review:decide")) throw new AppError("forbidden", 403, "Only a curator approves or returns a side.");
+    return decideReview(actor, sideId, { decision: to, reason });
+  }
   return db.transaction().execute(async (trx) => {
     const side = await lockSide(trx, sideId);
     const step = transitions.find((t) => t.from === side.status && t.to === to);
@@ -53,13 +69,14 @@ export async function transitionSide(actor: SessionUser, sideId: string, input: 
       const allowed = nextSteps(side.status).map((s) => statusLabels[s].toLowerCase());
       throw new AppError("conflict", 409, `A side that is ${statusLabels[side.status].toLowerCase()} cannot become ${statusLabels[to].toLowerCase()}${allowed.length ? `; next is ${allowed.join(" or ")}` : ""}.`);
     }
-    if (step.to === "assigned") throw new AppError("invalid", 422, "Assign sides through an assignment, which names the engineer.");
+    if (step.via !== "submit" && step.via !== "review") {
+      throw new AppError("conflict", 409, `A side becomes ${statusLabels[to].toLowerCase()} ${howItHappens[step.via]}.`);
+    }
     if (!can(actor.role, step.action)) throw new AppError("forbidden", 403, `Your role may not move a side from ${statusLabels[side.status].toLowerCase()} to ${statusLabels[to].toLowerCase()}.`);
     if (step.assignedOnly && side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is assigned to another engineer.");
-    if (step.reasonRequired && !reason) throw new AppError("invalid", 422, "Say why the side goes back.", { reason: ["A reason is required."] });
     await trx
       .updateTable("sides")
-      .set({ status: to, return_reason: to === "returned" ? (reason ?? null) : null, version: side.version + 1, updated_at: sql`now()` })
+      .set({ status: to, version: side.version + 1, updated_at: sql`now()` })
       .where("id", "=", side.id)
       .execute();
     await appendEvent(trx, {
@@ -68,7 +85,7 @@ export async function transitionSide(actor: SessionUser, sideId: string, input: 
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, before: { status: side.status }, after: { status: to }, ...(reason ? { reason } : {}) },
+      payload: { side: side.designation, before: { status: side.status }, after: { status: to } },
     });
     return { status: to };
   });

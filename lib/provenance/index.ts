@@ -26,24 +26,30 @@ const appendLockKey = 0x52_49_4c_4c; // "RILL"
  * transaction-level advisory lock, so the chain has no forks.
  */
 export async function appendEvent(trx: Transaction<Database>, event: NewEvent): Promise<{ id: string; hash: string }> {
+  const [appended] = await appendEvents(trx, [event]);
+  return appended;
+}
+
+/** Appends several events in order, chained to each other, with one lock and batched inserts (imports). */
+export async function appendEvents(trx: Transaction<Database>, events: NewEvent[]): Promise<{ id: string; hash: string }[]> {
+  if (!events.length) return [];
   await sql`SELECT pg_advisory_xact_lock(${appendLockKey})`.execute(trx);
   const last = await trx.selectFrom("provenance_events").select("hash").orderBy("seq", "desc").limit(1).executeTakeFirst();
-  const prevHash = last?.hash ?? genesisHash;
-  const content: ChainedContent = {
-    id: randomUUID(),
-    at: new Date().toISOString(),
-    actorId: event.actorId,
-    kind: event.kind,
-    subjectType: event.subjectType,
-    subjectId: event.subjectId,
-    discId: event.discId ?? null,
-    // What is hashed is exactly what jsonb keeps: plain JSON (dates as ISO strings).
-    payload: JSON.parse(JSON.stringify(event.payload)) as unknown,
-  };
-  const hash = eventHash(prevHash, content);
-  await trx
-    .insertInto("provenance_events")
-    .values({
+  let prevHash = last?.hash ?? genesisHash;
+  const rows = events.map((event) => {
+    const content: ChainedContent = {
+      id: randomUUID(),
+      at: new Date().toISOString(),
+      actorId: event.actorId,
+      kind: event.kind,
+      subjectType: event.subjectType,
+      subjectId: event.subjectId,
+      discId: event.discId ?? null,
+      // What is hashed is exactly what jsonb keeps: plain JSON (dates as ISO strings).
+      payload: JSON.parse(JSON.stringify(event.payload)) as unknown,
+    };
+    const hash = eventHash(prevHash, content);
+    const row = {
       id: content.id,
       at: content.at,
       actor_id: content.actorId,
@@ -54,9 +60,13 @@ export async function appendEvent(trx: Transaction<Database>, event: NewEvent): 
       payload: JSON.stringify(content.payload),
       prev_hash: prevHash,
       hash,
-    })
-    .execute();
-  return { id: content.id, hash };
+    };
+    prevHash = hash;
+    return row;
+  });
+  // seq follows insertion order within one INSERT, so the chain order is kept.
+  for (let i = 0; i < rows.length; i += 500) await trx.insertInto("provenance_events").values(rows.slice(i, i + 500)).execute();
+  return rows.map((r) => ({ id: r.id, hash: r.hash }));
 }
 
 export interface ChainReport {

@@ -1,6 +1,7 @@
 import "server-only";
 import { sql } from "kysely";
 import { db } from "../../db";
+import type { SideStatus } from "../../db/types";
 import { type CurveSpec, resolveCurve } from "../curves";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
@@ -102,16 +103,31 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
           ...(previous ? { before: { choiceId: previous.id, spec: previous.spec } } : {}),
         },
       });
+      // Where the side goes: waiting for a curve → curve chosen, and on to transferred
+      // when an accepted transfer already stands (a returned side); a rendered side's
+      // access copy is out of date with the new curve → back to transferred.
+      const path: SideStatus[] = [];
       if (s.status === "assigned" || s.status === "returned") {
-        await trx.updateTable("sides").set({ status: "curve_chosen", return_reason: null, version: s.version + 1, updated_at: sql`now()` }).where("id", "=", s.id).execute();
+        path.push("curve_chosen");
+        const transfer = await trx.selectFrom("transfers").select("id").where("side_id", "=", s.id).limit(1).executeTakeFirst();
+        if (transfer) path.push("transferred");
+      } else if (s.status === "rendered") {
+        path.push("transferred");
+      }
+      let from: SideStatus = s.status;
+      for (const to of path) {
         await appendEvent(trx, {
           actorId: actor.id,
           kind: "side.status_changed",
           subjectType: "side",
           subjectId: s.id,
           discId: s.disc_id,
-          payload: { side: s.designation, before: { status: s.status }, after: { status: "curve_chosen" } },
+          payload: { side: s.designation, before: { status: from }, after: { status: to }, ...(to === "transferred" ? { note: from === "rendered" ? "the curve changed: the access copy must be rendered again" : "the accepted flat transfer stands" } : {}) },
         });
+        from = to;
+      }
+      if (path.length) {
+        await trx.updateTable("sides").set({ status: from, return_reason: null, version: s.version + 1, updated_at: sql`now()` }).where("id", "=", s.id).execute();
       }
       choices.push({ sideId: s.id, choiceId: row.id });
     }

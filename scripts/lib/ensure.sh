@@ -30,6 +30,7 @@ ensure_test_tools() {
   [ -x /usr/bin/chromium ] || missing+=(chromium)
   command -v sox >/dev/null || missing+=(sox)
   command -v xmllint >/dev/null || missing+=(libxml2-utils)
+  command -v unzip >/dev/null || missing+=(unzip)
   if ! python3 -c 'import scipy.signal' >/dev/null 2>&1 && ! /usr/bin/python3 -c 'import scipy.signal' >/dev/null 2>&1; then
     missing+=(python3-scipy)
   fi

@@ -1,0 +1,10 @@
+import { route } from "@/lib/http/route";
+import { downloadUrl } from "@/lib/transfers/renders";
+
+export const dynamic = "force-dynamic";
+
+/** Redirects to a short-lived URL of the flat transfer (byte ranges work on it, for playback). ?json=1 answers the URL instead. */
+export const GET = route("GET /api/transfers/[id]/download", async (req, { params }) => {
+  const url = await downloadUrl("transfer", String(params.id));
+  return req.nextUrl.searchParams.get("json") ? { url } : Response.redirect(url, 302);
+});

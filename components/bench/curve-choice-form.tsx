@@ -1,0 +1,383 @@
+"use client";
+/**
+ * Choosing the side's playback curve: a preset version from the lab's library,
+ * any corner changed for these sides only, the cut and transfer speeds, and the
+ * reasons. What it adds up to (the effective curve) is worked out here the same
+ * way the server records it, and offered to the plot and the player as "Edits".
+ */
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useEffect, useId, useMemo, useState } from "react";
+import { formatNumber } from "@/components/curves/plot-format";
+import { Button } from "@/components/ui/button";
+import { cx } from "@/components/ui/cx";
+import { FieldShell, SelectField, TextField } from "@/components/ui/field";
+import { Notice } from "@/components/ui/notice";
+import { mergeCurve } from "@/lib/audition/curve-merge";
+import { type CornerInput, type CornerName, CurveError, type CurveSpec, hzToUs, resolveCurve, usToHz } from "@/lib/curves";
+import { fetchJson } from "@/lib/http/client";
+import { AppError } from "@/lib/http/errors";
+import { evidenceKinds, evidenceLabels } from "@/lib/validation/transfers";
+import type { CurveChoiceJson, EvidenceKind, PresetJson, PresetVersionJson, SideWithDisc } from "./types";
+
+type Mode = "keep" | "set" | "remove";
+interface CornerDraft {
+  mode: Mode;
+  unit: CornerInput["unit"];
+  text: string;
+}
+
+const CORNERS: { name: CornerName; title: string; units: CornerInput["unit"][] }[] = [
+  { name: "turnover", title: "Bass turnover", units: ["hz", "us"] },
+  { name: "shelf", title: "Low-frequency shelf", units: ["hz", "us"] },
+  { name: "rolloff", title: "Treble rolloff", units: ["db10k", "us", "hz"] },
+  { name: "highpass", title: "Rumble high-pass", units: ["hz", "us"] },
+  { name: "ultrasonic", title: "Ultrasonic zero", units: ["hz", "us"] },
+];
+const UNIT_TEXT: Record<CornerInput["unit"], string> = { hz: "Hz", us: "µs", db10k: "dB at 10 kHz" };
+
+const blankCorners = (): Record<CornerName, CornerDraft> =>
+  Object.fromEntries(CORNERS.map((c) => [c.name, { mode: "keep", unit: c.units[0], text: "" }])) as Record<CornerName, CornerDraft>;
+
+function parse(text: string): number {
+  const t = text.trim().replace(",", ".");
+  return t === "" ? Number.NaN : Number(t);
+}
+
+/** "318 µs · 500.5 Hz" — a corner as the preset gives it. */
+export function describeCorner(c: CornerInput | null | undefined): string {
+  if (!c) return "none";
+  if (c.unit === "db10k") return `${formatNumber(c.value)} dB at 10 kHz`;
+  if (c.unit === "hz") return `${formatNumber(c.value)} Hz · ${formatNumber(hzToUs(c.value))} µs`;
+  return `${formatNumber(c.value)} µs · ${formatNumber(usToHz(c.value))} Hz`;
+}
+
+function overridesOf(corners: Record<CornerName, CornerDraft>, ref: { on: boolean; hz: string; db: string }): Partial<CurveSpec> {
+  const out: Partial<CurveSpec> = {};
+  for (const c of CORNERS) {
+    const d = corners[c.name];
+    if (d.mode === "set") out[c.name] = { unit: d.unit, value: parse(d.text) };
+    else if (d.mode === "remove") out[c.name] = null;
+  }
+  if (ref.on) out.reference = { hz: parse(ref.hz), db: parse(ref.db) };
+  return out;
+}
+
+function draftsFrom(overrides: Partial<CurveSpec>): Record<CornerName, CornerDraft> {
+  const d = blankCorners();
+  for (const c of CORNERS) {
+    const v = overrides[c.name];
+    if (v === null) d[c.name] = { ...d[c.name], mode: "remove" };
+    else if (v) d[c.name] = { mode: "set", unit: v.unit, text: String(v.value) };
+  }
+  return d;
+}
+
+export function CurveChoiceForm({
+  data,
+  current,
+  extraSideIds,
+  onEffectiveSpec,
+}: {
+  data: SideWithDisc;
+  current: CurveChoiceJson | null;
+  /** Sides picked in the catalogue (?sides=…), offered as a third way to apply the choice. */
+  extraSideIds: string[];
+  onEffectiveSpec: (spec: CurveSpec | null) => void;
+}) {
+  const uid = useId();
+  const queryClient = useQueryClient();
+  const { side, disc } = data;
+  const presets = useQuery({ queryKey: ["presets"], queryFn: () => fetchJson<{ presets: PresetJson[] }>("/api/curves/presets") });
+
+  const [presetId, setPresetId] = useState(current?.presetId ?? "");
+  const [version, setVersion] = useState<number | null>(current?.presetVersion ?? null);
+  const [corners, setCorners] = useState(() => draftsFrom(current?.overrides ?? {}));
+  const [ref, setRef] = useState(() => ({ on: !!current?.overrides.reference, hz: String(current?.overrides.reference?.hz ?? 1000), db: String(current?.overrides.reference?.db ?? 0) }));
+  const [cutRpm, setCutRpm] = useState(String(current?.cutSpeedRpm ?? disc.nominalSpeedRpm));
+  const [transferRpm, setTransferRpm] = useState(String(current?.transferSpeedRpm ?? disc.nominalSpeedRpm));
+  const [rationale, setRationale] = useState("");
+  const [evidenceKind, setEvidenceKind] = useState<EvidenceKind | "">("");
+  const [evidence, setEvidence] = useState("");
+  const [applyTo, setApplyTo] = useState<"side" | "disc" | "set">(extraSideIds.length ? "set" : "side");
+  const [busy, setBusy] = useState(false);
+  const [serverError, setServerError] = useState<{ message: string; fields: Record<string, string[]> } | null>(null);
+  const [saved, setSaved] = useState<string | null>(null);
+
+  const versions = useQuery({
+    queryKey: ["preset-versions", presetId],
+    queryFn: () => fetchJson<{ versions: PresetVersionJson[] }>(`/api/curves/presets/${presetId}/versions`),
+    enabled: !!presetId,
+  });
+  const preset = presets.data?.presets.find((p) => p.id === presetId) ?? null;
+  const chosenVersion = version ?? preset?.currentVersion ?? null;
+  const presetSpec: CurveSpec | null = preset
+    ? chosenVersion === preset.currentVersion
+      ? preset.spec
+      : (versions.data?.versions.find((v) => v.version === chosenVersion)?.spec ?? null)
+    : null;
+
+  const overrides = useMemo(() => overridesOf(corners, ref), [corners, ref]);
+  const cut = parse(cutRpm);
+  const transfer = parse(transferRpm);
+  const effective = useMemo<{ spec: CurveSpec | null; error: CurveError | null }>(() => {
+    if (!preset && Object.keys(overrides).length === 0) return { spec: null, error: null };
+    if (preset && !presetSpec) return { spec: null, error: null };
+    const spec = mergeCurve(presetSpec, overrides, cut, transfer);
+    try {
+      resolveCurve(spec);
+      return { spec, error: null };
+    } catch (err) {
+      return { spec: null, error: err instanceof CurveError ? err : new CurveError("spec", String(err)) };
+    }
+  }, [preset, presetSpec, overrides, cut, transfer]);
+
+  useEffect(() => onEffectiveSpec(effective.spec), [effective.spec, onEffectiveSpec]);
+
+  const errorFor = (p: string) => (effective.error?.parameter === p ? effective.error.message : null);
+  const fieldErr = (k: string) => serverError?.fields[k];
+
+  const sideIds = applyTo === "side" ? [side.id] : applyTo === "disc" ? disc.sides.map((s) => s.id) : Array.from(new Set([side.id, ...extraSideIds]));
+
+  const submit = async () => {
+    setBusy(true);
+    setServerError(null);
+    setSaved(null);
+    try {
+      const body = {
+        sideIds,
+        ...(preset && chosenVersion ? { presetId: preset.id, presetVersion: chosenVersion } : {}),
+        overrides,
+        cutSpeedRpm: cut,
+        transferSpeedRpm: transfer,
+        rationale,
+        evidenceKind: evidenceKind || undefined,
+        evidence,
+      };
+      const r = await fetchJson<{ choices: unknown[] }>("/api/curve-choices", { method: "POST", body: JSON.stringify(body) });
+      setSaved(`Recorded for ${r.choices.length === 1 ? "this side" : `${r.choices.length} sides`}.`);
+      setRationale("");
+      setEvidence("");
+      for (const key of [["curve-choices", side.id], ["side", side.id], ["queue"]]) void queryClient.invalidateQueries({ queryKey: key });
+    } catch (err) {
+      if (err instanceof AppError) setServerError({ message: err.message, fields: err.fields ?? {} });
+      else setServerError({ message: String(err), fields: {} });
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  const ratio = transfer / cut;
+  const otherSides = disc.sides.filter((s) => s.id !== side.id);
+
+  return (
+    <form
+      className="space-y-5"
+      data-testid="curve-choice-form"
+      onSubmit={(e) => {
+        e.preventDefault();
+        void submit();
+      }}
+    >
+      <div className="grid grid-cols-[minmax(0,1fr)_8.5rem] gap-3">
+        <SelectField
+          id={`${uid}-preset`}
+          label="Preset"
+          value={presetId}
+          data-testid="choice-preset"
+          onChange={(e) => {
+            setPresetId(e.target.value);
+            setVersion(null);
+          }}
+          hint={preset?.notes ? preset.notes.slice(0, 160) : "Or leave it and give every value below."}
+        >
+          <option value="">No preset: my own values</option>
+          {presets.data?.presets.map((p) => (
+            <option key={p.id} value={p.id}>
+              {p.name}
+            </option>
+          ))}
+        </SelectField>
+        <SelectField id={`${uid}-version`} label="Version" value={chosenVersion ?? ""} disabled={!preset} data-testid="choice-version" onChange={(e) => setVersion(Number(e.target.value))}>
+          {!preset ? <option value="">—</option> : null}
+          {preset && !versions.data ? <option value={preset.currentVersion}>v{preset.currentVersion}</option> : null}
+          {versions.data?.versions.map((v) => (
+            <option key={v.version} value={v.version}>
+              v{v.version}
+              {v.version === preset?.currentVersion ? " (current)" : ""}
+            </option>
+          ))}
+        </SelectField>
+      </div>
+
+      <fieldset className="space-y-2">
+        <legend className="text-sm font-medium text-ink">Corners for these sides</legend>
+        <p className="text-xs text-ink-faint">Keep the preset&apos;s value, give another, or take the corner out. Values are at cut speed.</p>
+        {CORNERS.map((c) => {
+          const d = corners[c.name];
+          const base = presetSpec?.[c.name];
+          const err = errorFor(c.name);
+          const set = (patch: Partial<CornerDraft>) => setCorners((all) => ({ ...all, [c.name]: { ...all[c.name], ...patch } }));
+          return (
+            <div key={c.name} className={cx("rounded-lg border px-3 py-2", d.mode === "keep" ? "border-paper-edge/80 bg-paper/40" : "border-groove/40 bg-white")} data-testid={`override-${c.name}`}>
+              <div className="flex flex-wrap items-center justify-between gap-2">
+                <label htmlFor={`${uid}-${c.name}-mode`} className="text-sm font-semibold text-ink">
+                  {c.title}
+                </label>
+                <select
+                  id={`${uid}-${c.name}-mode`}
+                  value={d.mode}
+                  onChange={(e) => {
+                    const mode = e.target.value as Mode;
+                    // Start a new value from the preset's, in the unit it was given in.
+                    if (mode === "set" && d.text === "" && base) set({ mode, unit: base.unit, text: String(base.value) });
+                    else set({ mode });
+                  }}
+                  className="h-8 rounded-md border border-paper-edge bg-white px-2 text-xs"
+                  data-testid={`override-${c.name}-mode`}
+                >
+                  <option value="keep">{preset ? "As the preset" : "Not used"}</option>
+                  <option value="set">Set a value</option>
+                  {preset ? <option value="remove">Take it out</option> : null}
+                </select>
+              </div>
+              {d.mode === "keep" ? (
+                <p className="mt-0.5 font-mono text-xs text-ink-soft">{preset ? describeCorner(base) : "—"}</p>
+              ) : d.mode === "remove" ? (
+                <p className="mt-0.5 text-xs text-ink-soft">Left out of the curve for these sides.</p>
+              ) : (
+                <div className="mt-1.5 grid grid-cols-[minmax(0,1fr)_8rem] gap-2">
+                  <input
+                    type="text"
+                    inputMode="decimal"
+                    autoComplete="off"
+                    aria-label={`${c.title} value`}
+                    aria-invalid={err ? true : undefined}
+                    value={d.text}
+                    onChange={(e) => set({ text: e.target.value })}
+                    className={cx("h-8 rounded-md border bg-white px-2 font-mono text-sm", err ? "border-alarm" : "border-paper-edge")}
+                    data-testid={`override-${c.name}-value`}
+                  />
+                  <select aria-label={`${c.title} unit`} value={d.unit} onChange={(e) => set({ unit: e.target.value as CornerInput["unit"] })} className="h-8 rounded-md border border-paper-edge bg-white px-2 text-xs">
+                    {c.units.map((u) => (
+                      <option key={u} value={u}>
+                        {UNIT_TEXT[u]}
+                      </option>
+                    ))}
+                  </select>
+                </div>
+              )}
+              {err ? (
+                <p role="alert" className="mt-1 text-xs font-medium text-alarm" data-testid={`choice-error-${c.name}`}>
+                  {err}
+                </p>
+              ) : null}
+            </div>
+          );
+        })}
+        <div className={cx("rounded-lg border px-3 py-2", ref.on ? "border-groove/40 bg-white" : "border-paper-edge/80 bg-paper/40")}>
+          <label className="flex items-center gap-2 text-sm font-semibold text-ink">
+            <input type="checkbox" checked={ref.on} onChange={(e) => setRef({ ...ref, on: e.target.checked })} className="h-4 w-4 accent-[#2f6f6a]" />
+            Another level reference
+          </label>
+          <p className="text-xs text-ink-faint">{ref.on ? "The curve passes through this gain at this frequency." : `As the preset: ${presetSpec?.reference ? `${presetSpec.reference.db} dB at ${presetSpec.reference.hz} Hz` : "0 dB at 1 kHz"}.`}</p>
+          {ref.on ? (
+            <div className="mt-1.5 grid grid-cols-2 gap-2">
+              <TextField id={`${uid}-ref-hz`} label="Frequency (Hz)" value={ref.hz} onChange={(e) => setRef({ ...ref, hz: e.target.value })} inputMode="decimal" />
+              <TextField id={`${uid}-ref-db`} label="Gain (dB)" value={ref.db} onChange={(e) => setRef({ ...ref, db: e.target.value })} inputMode="decimal" />
+            </div>
+          ) : null}
+          {errorFor("reference") || errorFor("reference.hz") || errorFor("reference.db") ? (
+            <p role="alert" className="mt-1 text-xs font-medium text-alarm">
+              {errorFor("reference") ?? errorFor("reference.hz") ?? errorFor("reference.db")}
+            </p>
+          ) : null}
+        </div>
+        {effective.error && !CORNERS.some((c) => c.name === effective.error!.parameter) && !effective.error.parameter.startsWith("reference") && effective.error.parameter !== "speedRatio" ? (
+          <p role="alert" className="text-xs font-medium text-alarm">
+            {effective.error.message}
+          </p>
+        ) : null}
+        {fieldErr("overrides") ? (
+          <p role="alert" className="text-xs font-medium text-alarm">
+            {fieldErr("overrides")!.join(" ")}
+          </p>
+        ) : null}
+      </fieldset>
+
+      <fieldset className="space-y-2">
+        <legend className="text-sm font-medium text-ink">Speed</legend>
+        <div className="grid grid-cols-[1fr_1fr_auto] items-end gap-3">
+          <TextField id={`${uid}-cut`} label="Cut at (rpm)" value={cutRpm} inputMode="decimal" onChange={(e) => setCutRpm(e.target.value)} errors={fieldErr("cutSpeedRpm")} data-testid="choice-cut-rpm" />
+          <TextField id={`${uid}-transfer`} label="Transferred at (rpm)" value={transferRpm} inputMode="decimal" onChange={(e) => setTransferRpm(e.target.value)} errors={fieldErr("transferSpeedRpm")} data-testid="choice-transfer-rpm" />
+          <output className="pb-2 font-mono text-sm" aria-label="Speed ratio">
+            ×{Number.isFinite(ratio) ? ratio.toFixed(4) : "—"}
+          </output>
+        </div>
+        <p className="text-xs text-ink-faint">The disc is logged at {formatNumber(disc.nominalSpeedRpm)} rpm. Played at another speed than it was cut, every corner moves by transfer ÷ cut.</p>
+        {errorFor("speedRatio") ? (
+          <p role="alert" className="text-xs font-medium text-alarm">
+            {errorFor("speedRatio")}
+          </p>
+        ) : null}
+      </fieldset>
+
+      <FieldShell id={`${uid}-rationale`} label="Why this curve" errors={fieldErr("rationale")} hint="At least a sentence: what you heard, read or measured.">
+        <textarea
+          id={`${uid}-rationale`}
+          value={rationale}
+          onChange={(e) => setRationale(e.target.value)}
+          rows={3}
+          aria-invalid={fieldErr("rationale") ? true : undefined}
+          className={cx("block w-full rounded-md border bg-white px-3 py-2 text-sm", fieldErr("rationale") ? "border-alarm" : "border-paper-edge")}
+          data-testid="choice-rationale"
+        />
+      </FieldShell>
+      <SelectField id={`${uid}-evidence-kind`} label="It rests on" value={evidenceKind} onChange={(e) => setEvidenceKind(e.target.value as EvidenceKind)} errors={fieldErr("evidenceKind")} data-testid="choice-evidence-kind">
+        <option value="">Choose…</option>
+        {evidenceKinds.map((k) => (
+          <option key={k} value={k}>
+            {evidenceLabels[k]}
+          </option>
+        ))}
+      </SelectField>
+      <FieldShell id={`${uid}-evidence`} label="Evidence (optional)" hint="A citation, the test disc and its measurement, the sleeve note…" errors={fieldErr("evidence")}>
+        <textarea id={`${uid}-evidence`} value={evidence} onChange={(e) => setEvidence(e.target.value)} rows={2} className="block w-full rounded-md border border-paper-edge bg-white px-3 py-2 text-sm" data-testid="choice-evidence" />
+      </FieldShell>
+
+      <fieldset className="space-y-1.5">
+        <legend className="text-sm font-medium text-ink">Apply to</legend>
+        <label className="flex items-center gap-2 text-sm">
+          <input type="radio" name={`${uid}-apply`} checked={applyTo === "side"} onChange={() => setApplyTo("side")} className="accent-[#2f6f6a]" data-testid="apply-side" />
+          This side ({side.designation})
+        </label>
+        {otherSides.length ? (
+          <label className="flex items-center gap-2 text-sm">
+            <input type="radio" name={`${uid}-apply`} checked={applyTo === "disc"} onChange={() => setApplyTo("disc")} className="accent-[#2f6f6a]" data-testid="apply-disc" />
+            Every side of this disc ({disc.sides.map((s) => s.designation).join(", ")})
+          </label>
+        ) : null}
+        {extraSideIds.length ? (
+          <label className="flex items-center gap-2 text-sm">
+            <input type="radio" name={`${uid}-apply`} checked={applyTo === "set"} onChange={() => setApplyTo("set")} className="accent-[#2f6f6a]" data-testid="apply-set" />
+            The {new Set([side.id, ...extraSideIds]).size} sides picked in the catalogue
+          </label>
+        ) : null}
+        {fieldErr("sideIds") ? <p className="text-xs font-medium text-alarm">{fieldErr("sideIds")!.join(" ")}</p> : null}
+      </fieldset>
+
+      {serverError ? (
+        <Notice tone="error" title="Not recorded" testId="choice-error">
+          {serverError.message}
+        </Notice>
+      ) : null}
+      {saved ? (
+        <Notice tone="success" testId="choice-saved">
+          {saved}
+        </Notice>
+      ) : null}
+      <Button type="submit" disabled={busy || !effective.spec} data-testid="record-choice" className="w-full">
+        {busy ? "Recording…" : "Record this choice"}
+      </Button>
+    </form>
+  );
+}

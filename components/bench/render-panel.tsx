@@ -1,0 +1,144 @@
+"use client";
+/**
+ * The access copy: the server renders the newest flat transfer through the
+ * recorded curve (the exact analog response, not the player's sections), with
+ * the channel choice and word length set here, and writes a Broadcast WAVE
+ * whose coding history records the chain.
+ */
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useId, useState } from "react";
+import { when } from "@/components/catalogue/format";
+import { Badge } from "@/components/ui/badge";
+import { Button } from "@/components/ui/button";
+import { SelectField } from "@/components/ui/field";
+import { Notice } from "@/components/ui/notice";
+import { fetchJson } from "@/lib/http/client";
+import { channelModeLabels } from "@/lib/validation/transfers";
+import { formatBytes, ProgressBar } from "./progress-bar";
+import type { ChannelMode, RenderJson } from "./types";
+
+const statusTone = { queued: "neutral", running: "accent", done: "ok", failed: "alarm" } as const;
+const statusWords = { queued: "Queued", running: "Rendering", done: "Done", failed: "Failed" } as const;
+
+export function RenderPanel({ sideId, sideStatus, channels, channelMode, onChannelMode, channelWhy, canRender }: { sideId: string; sideStatus: string; channels: number | null; channelMode: ChannelMode; onChannelMode: (m: ChannelMode) => void; channelWhy: string; canRender: boolean }) {
+  const uid = useId();
+  const queryClient = useQueryClient();
+  const [bitDepth, setBitDepth] = useState<16 | 24>(24);
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  const renders = useQuery({
+    queryKey: ["renders", sideId],
+    queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`),
+    // Poll every second while the worker has one in hand.
+    refetchInterval: (q) => (q.state.data?.renders.some((r) => r.status === "queued" || r.status === "running") ? 1000 : false),
+  });
+  const list = renders.data?.renders ?? [];
+  const busyRender = list.some((r) => r.status === "queued" || r.status === "running");
+  const lastStatus = list[0]?.status;
+  const [seen, setSeen] = useState<string | undefined>(undefined);
+  if (lastStatus !== seen) {
+    setSeen(lastStatus);
+    if (lastStatus === "done") void queryClient.invalidateQueries({ queryKey: ["side", sideId] });
+  }
+
+  const request = async () => {
+    setBusy(true);
+    setError(null);
+    try {
+      await fetchJson("/api/renders", { method: "POST", body: JSON.stringify({ sideId, channelMode, bitDepth }) });
+      await queryClient.invalidateQueries({ queryKey: ["renders", sideId] });
+    } catch (err) {
+      setError(err instanceof Error ? err.message : String(err));
+    } finally {
+      setBusy(false);
+    }
+  };
+  const sendForReview = async () => {
+    setBusy(true);
+    setError(null);
+    try {
+      await fetchJson(`/api/sides/${sideId}/transition`, { method: "POST", body: JSON.stringify({ to: "in_review" }) });
+      for (const key of [["side", sideId], ["queue"]]) await queryClient.invalidateQueries({ queryKey: key });
+    } catch (err) {
+      setError(err instanceof Error ? err.message : String(err));
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  const ready = sideStatus === "transferred" || sideStatus === "rendered";
+  const modes: ChannelMode[] = channels === 1 ? ["both"] : (Object.keys(channelModeLabels) as ChannelMode[]);
+  return (
+    <div className="space-y-4" data-testid="render-panel">
+      {!ready && sideStatus !== "in_review" && sideStatus !== "approved" ? <Notice tone="info">An access copy can be rendered once a flat transfer has been accepted.</Notice> : null}
+      <div className="grid gap-3 sm:grid-cols-[minmax(0,1fr)_10rem_auto] sm:items-end">
+        <SelectField id={`${uid}-mode`} label="Channels" value={channelMode} onChange={(e) => onChannelMode(e.target.value as ChannelMode)} data-testid="render-channel-mode" hint={channelWhy}>
+          {modes.map((m) => (
+            <option key={m} value={m}>
+              {channelModeLabels[m]}
+            </option>
+          ))}
+        </SelectField>
+        <SelectField id={`${uid}-bits`} label="Word length" value={bitDepth} onChange={(e) => setBitDepth(Number(e.target.value) as 16 | 24)} data-testid="render-bit-depth">
+          <option value={24}>24-bit</option>
+          <option value={16}>16-bit</option>
+        </SelectField>
+        <div className="pb-[1.4rem]">
+          <Button type="button" onClick={() => void request()} disabled={!ready || busy || busyRender || !canRender} data-testid="render-start">
+            Render access copy
+          </Button>
+        </div>
+      </div>
+      {error ? (
+        <Notice tone="error" testId="render-error">
+          {error}
+        </Notice>
+      ) : null}
+
+      {list.length ? (
+        <ul className="space-y-2" data-testid="render-list">
+          {list.map((r) => (
+            <li key={r.id} className="rounded-lg border border-paper-edge bg-white p-3" data-testid="render-row" data-status={r.status}>
+              <div className="flex flex-wrap items-center justify-between gap-2">
+                <div className="flex flex-wrap items-center gap-2 text-sm">
+                  <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>
+                  <span>{channelModeLabels[r.channelMode] ?? r.channelMode}</span>
+                  <span className="font-mono text-xs text-ink-soft">{r.bitDepth}-bit</span>
+                  <span className="text-xs text-ink-faint">
+                    {r.requestedBy} · {when(r.createdAt)}
+                  </span>
+                </div>
+                {r.status === "done" ? (
+                  <a href={`/api/renders/${r.id}/download`} className="inline-flex h-8 items-center rounded-md border border-paper-edge bg-white px-3 text-sm font-medium hover:border-ink-faint" data-testid="render-download">
+                    Download access copy
+                  </a>
+                ) : null}
+              </div>
+              {r.status === "queued" || r.status === "running" ? <div className="mt-2"><ProgressBar value={r.progress} label={r.status === "queued" ? "Waiting for the worker" : "Rendering"} testId="render-progress" /></div> : null}
+              {r.status === "done" ? (
+                <p className="mt-1.5 font-mono text-xs text-ink-soft">
+                  {r.bytes ? formatBytes(Number(r.bytes)) : ""} · trim {r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · peak {r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}
+                  <span className="block break-all">SHA-256 {r.sha256}</span>
+                </p>
+              ) : null}
+              {r.status === "failed" && r.error ? <p className="mt-1.5 text-xs text-alarm">{r.error}</p> : null}
+            </li>
+          ))}
+        </ul>
+      ) : (
+        <p className="text-sm text-ink-faint">No access copy yet.</p>
+      )}
+
+      {sideStatus === "rendered" ? (
+        <div className="flex items-center justify-between gap-3 rounded-lg border border-groove/40 bg-groove-wash/50 px-4 py-3">
+          <p className="text-sm">Listened to the access copy? A curator reviews it next; someone other than you approves it.</p>
+          <Button type="button" onClick={() => void sendForReview()} disabled={busy} data-testid="send-for-review">
+            Send for review
+          </Button>
+        </div>
+      ) : sideStatus === "in_review" ? (
+        <Notice tone="success">Sent for review.</Notice>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,94 @@
+/** Shapes of the bench's API answers as the browser receives them (dates as ISO text). */
+import type { DiscJson, SideJson } from "@/components/catalogue/types";
+import type { CurveSpec } from "@/lib/curves";
+import type { channelModes, evidenceKinds } from "@/lib/validation/transfers";
+
+export type { DiscJson, SideJson };
+export type EvidenceKind = (typeof evidenceKinds)[number];
+export type ChannelMode = (typeof channelModes)[number];
+
+export interface SideWithDisc {
+  side: SideJson;
+  disc: DiscJson;
+}
+
+export interface PresetJson {
+  id: string;
+  currentVersion: number;
+  version: number;
+  name: string;
+  spec: CurveSpec;
+  notes: string;
+}
+
+export interface PresetVersionJson {
+  presetId: string;
+  version: number;
+  name: string;
+  spec: CurveSpec;
+  notes: string;
+  changeNote: string;
+  createdAt: string;
+}
+
+export interface CurveChoiceJson {
+  id: string;
+  presetId: string | null;
+  presetName: string | null;
+  presetVersion: number | null;
+  presetSpec: CurveSpec | null;
+  overrides: Partial<CurveSpec>;
+  spec: CurveSpec;
+  cutSpeedRpm: number;
+  transferSpeedRpm: number;
+  rationale: string;
+  evidenceKind: EvidenceKind;
+  evidence: string;
+  chosenAt: string;
+  chosenBy: string;
+}
+
+export interface TransferJson {
+  id: string;
+  fileName: string;
+  sha256: string;
+  bytes: number | string;
+  container: string;
+  encoding: string;
+  bitsPerSample: number;
+  channels: number;
+  sampleRateHz: number;
+  frames: number | string;
+  durationSeconds: number | string;
+  bext: unknown;
+  stylusSize: string;
+  stylusShape: string;
+  measuredSpeedRpm: number | string | null;
+  chain: string;
+  createdAt: string;
+  uploadedBy: string;
+}
+
+export interface RenderJson {
+  id: string;
+  status: "queued" | "running" | "done" | "failed";
+  progress: number;
+  channelMode: ChannelMode;
+  bitDepth: number;
+  sha256: string | null;
+  bytes: number | string | null;
+  trimDb: number | string | null;
+  peakDbfs: number | string | null;
+  filter: unknown;
+  error: string | null;
+  createdAt: string;
+  finishedAt: string | null;
+  requestedBy: string;
+}
+
+/** A curve offered for comparison in the plot and the player. */
+export interface Candidate {
+  id: string;
+  label: string;
+  spec: import("@/lib/curves").CurveSpec;
+}

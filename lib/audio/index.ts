@@ -1,0 +1,18 @@
+/**
+ * Rillbook audio files: WAV/BWF/RF64 header reading, sample codecs, the
+ * streaming Broadcast WAVE writer and the streaming access-copy render.
+ * Node-only (file handles, crypto); no framework or database imports.
+ */
+export { WavError } from "./errors";
+export { bufferSource, openFileSource } from "./source";
+export type { ByteSource, ClosableByteSource } from "./source";
+export { readWavHeader, WAVE_FORMAT_PCM, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_EXTENSIBLE, MIN_RATE_HZ, MAX_RATE_HZ } from "./header";
+export type { WavHeader, WavChunk } from "./header";
+export { parseBext, encodeBext, formatCodingHistoryLine, parseCodingHistory, BEXT_FIXED_BYTES, BEXT_VERSION } from "./bext";
+export type { Bext, BextInput, BextLoudness, CodingHistoryLine } from "./bext";
+export { decodeFrames, encodeFrames, fullScalePositive, seededRandom, TpdfDither } from "./codecs";
+export type { SampleEncoding, SampleFormat, EncodeOptions, EncodeResult } from "./codecs";
+export { BwfWriter } from "./writer";
+export type { BwfWriterOptions, BwfWriteResult } from "./writer";
+export { renderAccessCopy, RenderError, CHANNEL_MODE_TEXT } from "./render";
+export type { ChannelMode, EqualizationNote, RenderOptions, RenderResult } from "./render";

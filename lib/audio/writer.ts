@@ -1,0 +1,250 @@
+/**
+ * Streaming Broadcast WAVE writer with bounded memory: chunks of samples are
+ * encoded and appended as they come, and the sizes are patched on close.
+ *
+ * File layout (EBU Tech 3285 for bext, EBU Tech 3306 for the RF64 switch):
+ *
+ *   RIFF <size> WAVE
+ *   JUNK <28>   reserved room for a ds64 chunk
+ *   bext <602 + coding history>
+ *   fmt  <16>   WAVE_FORMAT_PCM          (18 with cbSize = 0 for IEEE float)
+ *   fact <4>    float only: sample frames (required for non-PCM formats)
+ *   data <size> samples
+ *
+ * On close, if the file has outgrown 32-bit RIFF sizes (4 GiB), Tech 3306 §4
+ * applies: "RIFF" becomes "RF64", the JUNK chunk becomes "ds64" carrying the
+ * 64-bit RIFF size, data size and sample count, and the 32-bit RIFF and data
+ * (and fact) size fields are set to 0xFFFFFFFF. Below 4 GiB it stays a plain
+ * RIFF/BWF file that every reader opens; the JUNK chunk is ignored by readers.
+ *
+ * Plain WAVE_FORMAT_PCM (not EXTENSIBLE) is written at every word length
+ * because Tech 3285 specifies WAVE_FORMAT_PCM for BWF linear PCM.
+ */
+import { open } from "node:fs/promises";
+import type { FileHandle } from "node:fs/promises";
+import { encodeBext } from "./bext";
+import type { BextInput } from "./bext";
+import { encodeFrames, TpdfDither } from "./codecs";
+import type { SampleEncoding } from "./codecs";
+import { WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from "./header";
+
+const U32_MAX = 0xffffffff;
+const DS64_BODY = 28;
+/** Coalesce small writes: encoded bytes are flushed to the file in pieces of about this size. */
+const WRITE_BUFFER_BYTES = 1 << 20;
+
+export interface BwfWriterOptions {
+  sampleRateHz: number;
+  channels: 1 | 2;
+  encoding: SampleEncoding;
+  /** bext fields; a bext chunk is always written (empty fields when absent). */
+  bext?: BextInput;
+  /** TPDF dither for integer output (default true). */
+  dither?: boolean;
+  /** Seed of the dither generator (default fixed), so renders reproduce byte for byte. */
+  ditherSeed?: number;
+  /**
+   * RIFF size above which the file is closed as RF64. Default 0xFFFFFFFF (the
+   * 32-bit limit). Tests lower it to exercise the RF64 path on a small file.
+   */
+  rf64ThresholdBytes?: number;
+}
+
+export interface BwfWriteResult {
+  path: string;
+  container: "RIFF" | "RF64";
+  frames: number;
+  bytes: number;
+  dataOffset: number;
+  dataBytes: number;
+  clippedSamples: number;
+}
+
+function chunkHeader(id: string, size: number): Uint8Array {
+  const b = new Uint8Array(8);
+  for (let i = 0; i < 4; i++) b[i] = id.charCodeAt(i);
+  new DataView(b.buffer).setUint32(4, size, true);
+  return b;
+}
+
+function concat(parts: Uint8Array[]): Uint8Array {
+  const out = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
+  let o = 0;
+  for (const p of parts) {
+    out.set(p, o);
+    o += p.length;
+  }
+  return out;
+}
+
+export class BwfWriter {
+  private framesWritten = 0;
+  private clipped = 0;
+  private position: number;
+  private pending: Uint8Array[] = [];
+  private pendingBytes = 0;
+  private closed = false;
+
+  private constructor(
+    readonly path: string,
+    private readonly handle: FileHandle,
+    private readonly options: BwfWriterOptions,
+    private readonly layout: { dataSizeAt: number; factAt: number | null; dataOffset: number; blockAlign: number },
+    private readonly dither: TpdfDither | null,
+  ) {
+    this.position = layout.dataOffset;
+  }
+
+  /** Create (truncate) the file and write its header. */
+  static async create(path: string, options: BwfWriterOptions): Promise<BwfWriter> {
+    const { encoding, channels, sampleRateHz } = options;
+    const okPcm = encoding.format === "pcm" && [16, 24, 32].includes(encoding.bitsPerSample);
+    const okFloat = encoding.format === "float" && encoding.bitsPerSample === 32;
+    if (!okPcm && !okFloat) throw new RangeError(`The writer produces 16/24/32-bit PCM or 32-bit float, not ${encoding.bitsPerSample}-bit ${encoding.format}.`);
+    if (channels !== 1 && channels !== 2) throw new RangeError("The writer produces mono or stereo files.");
+    if (!Number.isInteger(sampleRateHz) || sampleRateHz <= 0) throw new RangeError(`Sample rate ${sampleRateHz} is not a positive whole number of Hz.`);
+    const blockAlign = (channels * encoding.bitsPerSample) / 8;
+    const isFloat = encoding.format === "float";
+
+    const bextBody = encodeBext(options.bext ?? {});
+    const fmtBody = new Uint8Array(isFloat ? 18 : 16);
+    const fv = new DataView(fmtBody.buffer);
+    fv.setUint16(0, isFloat ? WAVE_FORMAT_IEEE_FLOAT : WAVE_FORMAT_PCM, true);
+    fv.setUint16(2, channels, true);
+    fv.setUint32(4, sampleRateHz, true);
+    fv.setUint32(8, sampleRateHz * blockAlign, true);
+    fv.setUint16(12, blockAlign, true);
+    fv.setUint16(14, encoding.bitsPerSample, true);
+    // cbSize = 0 (bytes 16–17) for the non-PCM float format.
+
+    const parts: Uint8Array[] = [chunkHeader("RIFF", 0), new Uint8Array([0x57, 0x41, 0x56, 0x45])];
+    parts.push(chunkHeader("JUNK", DS64_BODY), new Uint8Array(DS64_BODY));
+    // bext body is already padded to even length; its size field holds the unpadded length.
+    const bextSize = 602 + (options.bext?.codingHistory?.length ?? 0);
+    parts.push(chunkHeader("bext", bextSize), bextBody);
+    parts.push(chunkHeader("fmt ", fmtBody.length), fmtBody);
+    let offset = parts.reduce((s, p) => s + p.length, 0);
+    let factAt: number | null = null;
+    if (isFloat) {
+      factAt = offset + 8;
+      parts.push(chunkHeader("fact", 4), new Uint8Array(4));
+      offset += 12;
+    }
+    const dataSizeAt = offset + 4;
+    parts.push(chunkHeader("data", 0));
+    const header = concat(parts);
+
+    const handle = await open(path, "w");
+    try {
+      await handle.write(header, 0, header.length, 0);
+    } catch (error) {
+      await handle.close();
+      throw error;
+    }
+    const dither = !isFloat && options.dither !== false ? new TpdfDither(options.ditherSeed) : null;
+    return new BwfWriter(path, handle, options, { dataSizeAt, factAt, dataOffset: header.length, blockAlign }, dither);
+  }
+
+  get frames(): number {
+    return this.framesWritten;
+  }
+
+  /** Encode and append frames (one array per channel; `frames` defaults to their length). */
+  async write(channels: Float64Array[], frames = channels[0]?.length ?? 0, gain = 1): Promise<void> {
+    if (channels.length !== this.options.channels) throw new RangeError(`Expected ${this.options.channels} channel arrays, got ${channels.length}.`);
+    const { bytes, clipped } = encodeFrames(channels, this.options.encoding, { dither: this.dither, gain }, frames);
+    this.clipped += clipped;
+    this.framesWritten += frames;
+    await this.append(bytes);
+  }
+
+  /** Append already-encoded interleaved frames in this file's encoding. */
+  async writeEncoded(bytes: Uint8Array): Promise<void> {
+    if (bytes.length % this.layout.blockAlign !== 0) throw new RangeError("Encoded bytes are not a whole number of frames.");
+    this.framesWritten += bytes.length / this.layout.blockAlign;
+    await this.append(bytes);
+  }
+
+  private async append(bytes: Uint8Array): Promise<void> {
+    if (this.closed) throw new Error("The writer is closed.");
+    this.pending.push(bytes);
+    this.pendingBytes += bytes.length;
+    if (this.pendingBytes >= WRITE_BUFFER_BYTES) await this.flush();
+  }
+
+  private async flush(): Promise<void> {
+    if (this.pendingBytes === 0) return;
+    const block = this.pending.length === 1 ? this.pending[0] : concat(this.pending);
+    this.pending = [];
+    this.pendingBytes = 0;
+    let done = 0;
+    while (done < block.length) {
+      const { bytesWritten } = await this.handle.write(block, done, block.length - done, this.position + done);
+      done += bytesWritten;
+    }
+    this.position += block.length;
+  }
+
+  /** Patch the sizes (switching to RF64 when needed) and close the file. */
+  async close(): Promise<BwfWriteResult> {
+    await this.flush();
+    this.closed = true;
+    try {
+      const dataBytes = this.framesWritten * this.layout.blockAlign;
+      const pad = dataBytes & 1;
+      if (pad) {
+        await this.handle.write(new Uint8Array(1), 0, 1, this.position);
+        this.position += 1;
+      }
+      const fileBytes = this.layout.dataOffset + dataBytes + pad;
+      const riffSize = fileBytes - 8;
+      const threshold = this.options.rf64ThresholdBytes ?? U32_MAX;
+      const rf64 = riffSize > threshold;
+      const u32 = (v: number) => {
+        const b = new Uint8Array(4);
+        new DataView(b.buffer).setUint32(0, v, true);
+        return b;
+      };
+      if (rf64) {
+        const head = new Uint8Array(12 + 8 + DS64_BODY);
+        const v = new DataView(head.buffer);
+        head.set([0x52, 0x46, 0x36, 0x34], 0); // "RF64"
+        v.setUint32(4, U32_MAX, true);
+        head.set([0x57, 0x41, 0x56, 0x45], 8);
+        head.set([0x64, 0x73, 0x36, 0x34], 12); // "ds64"
+        v.setUint32(16, DS64_BODY, true);
+        v.setBigUint64(20, BigInt(riffSize), true);
+        v.setBigUint64(28, BigInt(dataBytes), true);
+        v.setBigUint64(36, BigInt(this.framesWritten), true);
+        v.setUint32(44, 0, true); // no table: no other chunk needs a 64-bit size
+        await this.handle.write(head, 0, head.length, 0);
+        await this.handle.write(u32(U32_MAX), 0, 4, this.layout.dataSizeAt);
+        if (this.layout.factAt !== null) await this.handle.write(u32(U32_MAX), 0, 4, this.layout.factAt);
+      } else {
+        await this.handle.write(u32(riffSize), 0, 4, 4);
+        await this.handle.write(u32(dataBytes), 0, 4, this.layout.dataSizeAt);
+        if (this.layout.factAt !== null) await this.handle.write(u32(this.framesWritten), 0, 4, this.layout.factAt);
+      }
+      await this.handle.sync();
+      return {
+        path: this.path,
+        container: rf64 ? "RF64" : "RIFF",
+        frames: this.framesWritten,
+        bytes: fileBytes,
+        dataOffset: this.layout.dataOffset,
+        dataBytes,
+        clippedSamples: this.clipped,
+      };
+    } finally {
+      await this.handle.close();
+    }
+  }
+
+  /** Close without finishing (the caller removes the partial file). */
+  async abort(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    this.pending = [];
+    await this.handle.close();
+  }
+}

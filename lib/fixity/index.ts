@@ -1,0 +1,133 @@
+// Fixity: re-reading stored objects (flat transfers and access copies), recomputing
+// their SHA-256 and recording each result as an event. Used by the worker's scheduled
+// sweep and by a curator's "check this disc now". No framework imports.
+import { NoSuchKey, NotFound } from "@aws-sdk/client-s3";
+import { type Kysely, sql } from "kysely";
+import type { Database, FixityOutcome } from "../../db/types";
+import { env } from "../env";
+import { enqueueMail } from "../mail/outbox";
+import { appendEvent } from "../provenance";
+import { hashObject } from "../storage/objects";
+
+export type StoredObjectKind = "transfer" | "render";
+
+export interface StoredObject {
+  kind: StoredObjectKind;
+  id: string;
+  key: string;
+  sha256: string;
+  sideId: string;
+  discId: string;
+  storedAt: Date;
+}
+
+/** Every stored object of the lab (or of one disc), with the checksum recorded when it was stored. */
+export async function storedObjects(db: Kysely<Database>, discId?: string): Promise<StoredObject[]> {
+  let transfers = db
+    .selectFrom("transfers as t")
+    .innerJoin("sides as s", "s.id", "t.side_id")
+    .select(["t.id", "t.object_key as key", "t.sha256", "t.side_id as sideId", "s.disc_id as discId", "t.created_at as storedAt"]);
+  let renders = db
+    .selectFrom("renders as r")
+    .innerJoin("sides as s", "s.id", "r.side_id")
+    .select(["r.id", "r.object_key as key", "r.sha256", "r.side_id as sideId", "s.disc_id as discId", "r.finished_at as storedAt"])
+    .where("r.status", "=", "done");
+  if (discId) {
+    transfers = transfers.where("s.disc_id", "=", discId);
+    renders = renders.where("s.disc_id", "=", discId);
+  }
+  const [t, r] = await Promise.all([transfers.execute(), renders.execute()]);
+  return [
+    ...t.map((x) => ({ kind: "transfer" as const, ...x })),
+    ...r.map((x) => ({ kind: "render" as const, id: x.id, key: x.key!, sha256: x.sha256!, sideId: x.sideId, discId: x.discId, storedAt: x.storedAt ?? new Date(0) })),
+  ];
+}
+
+/** Objects whose last check is older than the cycle (or that were never checked). */
+export async function dueObjects(db: Kysely<Database>, cycleDays: number): Promise<StoredObject[]> {
+  const all = await storedObjects(db);
+  if (!all.length) return [];
+  const last = await db
+    .selectFrom("fixity_checks")
+    .select(["object_kind", "object_id", sql<Date>`max(checked_at)`.as("at")])
+    .groupBy(["object_kind", "object_id"])
+    .execute();
+  const lastAt = new Map(last.map((l) => [`${l.object_kind}:${l.object_id}`, l.at]));
+  const cutoff = Date.now() - cycleDays * 86_400_000;
+  return all.filter((o) => {
+    const at = lastAt.get(`${o.kind}:${o.id}`);
+    return !at || at.getTime() < cutoff;
+  });
+}
+
+export async function fixityCycleDays(db: Kysely<Database>): Promise<number> {
+  const row = await db.selectFrom("lab_settings").select("value").where("key", "=", "fixity_cycle_days").executeTakeFirst();
+  const n = Number(row?.value ?? 30);
+  return Number.isFinite(n) && n > 0 ? n : 30;
+}
+
+async function findObject(db: Kysely<Database>, kind: StoredObjectKind, id: string): Promise<StoredObject | null> {
+  const all = await storedObjects(db);
+  return all.find((o) => o.kind === kind && o.id === id) ?? null;
+}
+
+/**
+ * Re-reads one object (streaming, bounded memory), compares its SHA-256 with the one
+ * recorded when it was stored, and records the result and its event together. A
+ * failure also mails every active curator through the outbox.
+ */
+export async function checkObject(db: Kysely<Database>, kind: StoredObjectKind, id: string): Promise<FixityOutcome> {
+  const obj = await findObject(db, kind, id);
+  if (!obj) return "missing";
+  let outcome: FixityOutcome;
+  let actual: string | null = null;
+  let bytes: number | null = null;
+  let detail: string | null = null;
+  try {
+    const h = await hashObject(obj.key);
+    actual = h.sha256;
+    bytes = h.bytes;
+    outcome = h.sha256 === obj.sha256 ? "pass" : "mismatch";
+    if (outcome === "mismatch") detail = `stored ${obj.sha256}, read back ${h.sha256}`;
+  } catch (err) {
+    const missing = err instanceof NoSuchKey || err instanceof NotFound || (err as { name?: string }).name === "NoSuchKey" || (err as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404;
+    outcome = missing ? "missing" : "error";
+    detail = missing ? "the object is not in the bucket" : err instanceof Error ? err.message : String(err);
+  }
+  await db.transaction().execute(async (trx) => {
+    await trx
+      .insertInto("fixity_checks")
+      .values({ object_kind: kind, object_id: id, object_key: obj.key, side_id: obj.sideId, expected_sha256: obj.sha256, actual_sha256: actual, bytes, outcome, detail })
+      .execute();
+    const side = await trx.selectFrom("sides as s").innerJoin("discs as d", "d.id", "s.disc_id").select(["s.designation", "d.shelf_mark"]).where("s.id", "=", obj.sideId).executeTakeFirstOrThrow();
+    await appendEvent(trx, {
+      actorId: null,
+      kind: "side.fixity_checked",
+      subjectType: "side",
+      subjectId: obj.sideId,
+      discId: obj.discId,
+      payload: { side: side.designation, object: { kind, id, key: obj.key }, expectedSha256: obj.sha256, actualSha256: actual, bytes, outcome, ...(detail ? { detail } : {}) },
+    });
+    if (outcome !== "pass") {
+      const curators = await trx.selectFrom("users").select("email").where("role", "=", "curator").where("active", "=", true).execute();
+      const what = kind === "transfer" ? "flat transfer" : "access copy";
+      for (const c of curators) {
+        await enqueueMail(trx, {
+          to: c.email,
+          subject: `Fixity ${outcome}: ${side.shelf_mark} side ${side.designation} (${what})`,
+          text: [
+            `The fixity check of the ${what} of ${side.shelf_mark} side ${side.designation} found: ${outcome}.`,
+            detail ? `Detail: ${detail}` : "",
+            `Object: ${obj.key}`,
+            "",
+            `Open the audit page: ${env().APP_URL}/audit`,
+            "Follow the institution's procedure for damaged or missing preservation files; restore from a replica before anything else is done with this side.",
+          ]
+            .filter((l) => l !== "")
+            .join("\n"),
+        });
+      }
+    }
+  });
+  return outcome;
+}

@@ -1,0 +1,160 @@
+// The render job: streams a flat transfer from the bucket through the side's render
+// filter into a Broadcast WAVE access copy, stores it beside the transfer and records
+// the render. Runs in worker processes; no framework imports.
+import { createHash } from "node:crypto";
+import { createReadStream, promises as fs } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { PutObjectCommand } from "@aws-sdk/client-s3";
+import { type Kysely, sql } from "kysely";
+import type { Database } from "../../db/types";
+import { readWavHeader, renderAccessCopy } from "../audio";
+import { type CurveSpec, designIir, designRenderFilter, resolveCurve } from "../curves";
+import { env } from "../env";
+import { appendEvent } from "../provenance";
+import { objectSource } from "../storage/objects";
+import { s3 } from "../storage/s3";
+import { softwareName } from "../version";
+
+/** The curve as the coding history records it: each corner's time constant as the filter uses it. */
+export function curveText(spec: CurveSpec): string {
+  const c = resolveCurve(spec);
+  const parts: string[] = [];
+  for (const corner of [c.shelf, c.turnover, c.rolloff, c.highpass, c.ultrasonic]) {
+    if (corner) parts.push(`${corner.parameter} ${corner.filterTauUs.toFixed(2)} us`);
+  }
+  if (c.flatBass) parts.push("flat bass");
+  parts.push(`${c.reference.db} dB at ${c.reference.hz} Hz`);
+  return parts.join("; ");
+}
+
+export interface RenderJobContext {
+  db: Kysely<Database>;
+  /** True on the queue's last attempt: a failure then is final. */
+  finalAttempt: boolean;
+}
+
+export async function runRenderJob(renderId: string, ctx: RenderJobContext): Promise<"done" | "skipped"> {
+  const { db } = ctx;
+  const job = await db
+    .selectFrom("renders as r")
+    .innerJoin("transfers as t", "t.id", "r.transfer_id")
+    .innerJoin("curve_choices as c", "c.id", "r.curve_choice_id")
+    .innerJoin("sides as s", "s.id", "r.side_id")
+    .innerJoin("discs as d", "d.id", "s.disc_id")
+    .select([
+      "r.id",
+      "r.status",
+      "r.side_id as sideId",
+      "r.channel_mode as channelMode",
+      "r.bit_depth as bitDepth",
+      "r.requested_by as requestedBy",
+      "t.id as transferId",
+      "t.object_key as transferKey",
+      "t.sha256 as transferSha256",
+      "t.sample_rate_hz as sampleRateHz",
+      "c.id as choiceId",
+      "c.spec",
+      "s.designation",
+      "s.disc_id as discId",
+      "d.shelf_mark as shelfMark",
+      "d.label_name as labelName",
+      "d.catalogue_number as catalogueNumber",
+    ])
+    .where("r.id", "=", renderId)
+    .executeTakeFirst();
+  // Done already (a redelivered job): nothing to do twice.
+  if (!job || job.status === "done") return "skipped";
+
+  await db.updateTable("renders").set({ status: "running", started_at: new Date(), progress: 0, error: null }).where("id", "=", renderId).execute();
+  const tmp = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-render-"));
+  const outputPath = path.join(tmp, "access.wav");
+  try {
+    const spec = job.spec as CurveSpec;
+    const filter = designRenderFilter(spec, job.sampleRateHz);
+    const source = await objectSource(job.transferKey);
+    const header = await readWavHeader(source);
+    let lastWrite = 0;
+    const now = new Date();
+    const result = await renderAccessCopy({
+      source,
+      header,
+      filter,
+      outputPath,
+      channelMode: job.channelMode,
+      output: { format: "pcm", bitsPerSample: job.bitDepth as 16 | 24 },
+      bext: {
+        description: `${job.shelfMark} side ${job.designation}: ${[job.labelName, job.catalogueNumber].filter(Boolean).join(" ")}. Equalized access copy.`.slice(0, 256),
+        originator: env().LAB_NAME.slice(0, 32),
+        originatorReference: `RB${renderId.replace(/-/g, "").slice(0, 30)}`,
+        originationDate: now.toISOString().slice(0, 10),
+        originationTime: now.toISOString().slice(11, 19),
+        timeReference: header.bext?.timeReference ?? 0,
+      },
+      equalization: { curve: curveText(spec), speedRatio: resolveCurve(spec).speedRatio, software: softwareName() },
+      onProgress: (fraction) => {
+        const t = Date.now();
+        if (t - lastWrite < 500 && fraction < 1) return;
+        lastWrite = t;
+        void db.updateTable("renders").set({ progress: fraction }).where("id", "=", renderId).where("status", "=", "running").execute();
+      },
+    });
+    const key = `access/${job.sideId}/${renderId}.wav`;
+    await s3().send(new PutObjectCommand({ Bucket: env().S3_BUCKET, Key: key, Body: createReadStream(outputPath), ContentLength: result.outputBytes, ContentType: "audio/wav" }));
+    const iir = designIir(spec, job.sampleRateHz);
+    const filterRecord = {
+      kind: filter.kind,
+      taps: filter.taps.length,
+      tapsSha256: createHash("sha256").update(Buffer.from(Float64Array.from(filter.taps).buffer)).digest("hex"),
+      delaySamples: filter.delaySamples,
+      maxErrorDb: filter.maxErrorDb,
+      maxPhaseErrorDeg: filter.maxPhaseErrorDeg,
+      sampleRateHz: job.sampleRateHz,
+      // The same curve as second-order sections, for anyone who redoes the render elsewhere.
+      sections: iir.sos,
+      spec,
+      software: softwareName(),
+    };
+    await db.transaction().execute(async (trx) => {
+      await trx
+        .updateTable("renders")
+        .set({ status: "done", progress: 1, object_key: key, sha256: result.sha256, bytes: result.outputBytes, trim_db: result.trimDb, peak_dbfs: result.peakDbfs, filter: JSON.stringify(filterRecord), finished_at: new Date() })
+        .where("id", "=", renderId)
+        .execute();
+      await appendEvent(trx, {
+        actorId: job.requestedBy,
+        kind: "side.rendered",
+        subjectType: "side",
+        subjectId: job.sideId,
+        discId: job.discId,
+        payload: {
+          side: job.designation,
+          renderId,
+          transfer: { id: job.transferId, sha256: job.transferSha256 },
+          curveChoiceId: job.choiceId,
+          accessCopy: { objectKey: key, sha256: result.sha256, bytes: result.outputBytes, container: result.container, bitDepth: job.bitDepth, channelMode: job.channelMode },
+          trimDb: result.trimDb,
+          peakDbfs: result.peakDbfs,
+          filter: filterRecord,
+          codingHistory: result.codingHistory,
+        },
+      });
+      const side = await trx.selectFrom("sides").select(["status", "version"]).where("id", "=", job.sideId).forUpdate().executeTakeFirstOrThrow();
+      if (side.status === "transferred") {
+        await trx.updateTable("sides").set({ status: "rendered", version: side.version + 1, updated_at: sql`now()` }).where("id", "=", job.sideId).execute();
+        await appendEvent(trx, { actorId: job.requestedBy, kind: "side.status_changed", subjectType: "side", subjectId: job.sideId, discId: job.discId, payload: { side: job.designation, before: { status: "transferred" }, after: { status: "rendered" } } });
+      }
+    });
+    return "done";
+  } catch (err) {
+    const message = err instanceof Error ? err.message : String(err);
+    await db
+      .updateTable("renders")
+      .set({ status: ctx.finalAttempt ? "failed" : "queued", error: ctx.finalAttempt ? message : `${message} (will retry)`, ...(ctx.finalAttempt ? { finished_at: new Date() } : {}) })
+      .where("id", "=", renderId)
+      .execute();
+    throw err;
+  } finally {
+    await fs.rm(tmp, { recursive: true, force: true });
+  }
+}

@@ -1,0 +1,133 @@
+import "server-only";
+import { GetObjectCommand } from "@aws-sdk/client-s3";
+import { getSignedUrl } from "@aws-sdk/s3-request-presigner";
+import { z } from "zod";
+import { db } from "../../db";
+import type { SessionUser } from "../auth/session-user";
+import { env } from "../env";
+import { AppError } from "../http/errors";
+import { RENDER_QUEUE } from "../jobs/boss";
+import { sendInTransaction } from "../jobs/web-boss";
+import { appendEvent } from "../provenance";
+import { s3 } from "../storage/s3";
+import { channelModes } from "../validation/transfers";
+
+export const renderRequestSchema = z.object({
+  sideId: z.uuid({ error: "Unknown side." }),
+  channelMode: z.enum(channelModes, { error: "Choose how the channels are used." }).default("both"),
+  bitDepth: z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.").default(24),
+});
+
+/**
+ * Queues a render of the side's latest transfer through its current curve. The render
+ * row, its event and the job are written in one transaction.
+ */
+export async function requestRender(actor: SessionUser, input: unknown) {
+  const r = renderRequestSchema.parse(input);
+  return db.transaction().execute(async (trx) => {
+    const side = await trx.selectFrom("sides").select(["id", "disc_id", "designation", "status", "assigned_engineer_id"]).where("id", "=", r.sideId).forUpdate().executeTakeFirst();
+    if (!side) throw new AppError("not_found", 404, "No such side.");
+    if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
+    if (side.status !== "transferred" && side.status !== "rendered") throw new AppError("conflict", 409, "Render needs an accepted transfer and a chosen curve first.");
+    const transfer = await trx.selectFrom("transfers").select(["id", "channels", "sha256"]).where("side_id", "=", side.id).orderBy("created_at", "desc").limit(1).executeTakeFirst();
+    const choice = await trx.selectFrom("curve_choices").select(["id"]).where("side_id", "=", side.id).orderBy("chosen_at", "desc").limit(1).executeTakeFirst();
+    if (!transfer || !choice) throw new AppError("conflict", 409, "Render needs an accepted transfer and a chosen curve first.");
+    if (r.channelMode !== "both" && transfer.channels !== 2) throw new AppError("invalid", 422, "That channel choice needs a stereo transfer; this one is mono.", { channelMode: ["Needs a stereo transfer."] });
+    const busy = await trx.selectFrom("renders").select("id").where("side_id", "=", side.id).where("status", "in", ["queued", "running"]).executeTakeFirst();
+    if (busy) throw new AppError("conflict", 409, "A render of this side is already queued or running.");
+    const row = await trx
+      .insertInto("renders")
+      .values({ side_id: side.id, transfer_id: transfer.id, curve_choice_id: choice.id, channel_mode: r.channelMode, bit_depth: r.bitDepth, requested_by: actor.id })
+      .returning("id")
+      .executeTakeFirstOrThrow();
+    await sendInTransaction(trx, RENDER_QUEUE, { renderId: row.id });
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "side.render_requested",
+      subjectType: "side",
+      subjectId: side.id,
+      discId: side.disc_id,
+      payload: { side: side.designation, renderId: row.id, transferId: transfer.id, curveChoiceId: choice.id, channelMode: r.channelMode, bitDepth: r.bitDepth },
+    });
+    return { renderId: row.id };
+  });
+}
+
+export async function listRenders(sideId: string) {
+  return db
+    .selectFrom("renders as r")
+    .innerJoin("users as u", "u.id", "r.requested_by")
+    .select([
+      "r.id",
+      "r.status",
+      "r.progress",
+      "r.channel_mode as channelMode",
+      "r.bit_depth as bitDepth",
+      "r.sha256",
+      "r.bytes",
+      "r.trim_db as trimDb",
+      "r.peak_dbfs as peakDbfs",
+      "r.filter",
+      "r.error",
+      "r.transfer_id as transferId",
+      "r.curve_choice_id as curveChoiceId",
+      "r.created_at as createdAt",
+      "r.finished_at as finishedAt",
+      "u.name as requestedBy",
+    ])
+    .where("r.side_id", "=", sideId)
+    .orderBy("r.created_at", "desc")
+    .execute();
+}
+
+export async function listTransfers(sideId: string) {
+  return db
+    .selectFrom("transfers as t")
+    .innerJoin("users as u", "u.id", "t.uploaded_by")
+    .select([
+      "t.id",
+      "t.file_name as fileName",
+      "t.sha256",
+      "t.bytes",
+      "t.container",
+      "t.encoding",
+      "t.bits_per_sample as bitsPerSample",
+      "t.channels",
+      "t.sample_rate_hz as sampleRateHz",
+      "t.frames",
+      "t.duration_seconds as durationSeconds",
+      "t.bext",
+      "t.stylus_size as stylusSize",
+      "t.stylus_shape as stylusShape",
+      "t.measured_speed_rpm as measuredSpeedRpm",
+      "t.chain",
+      "t.created_at as createdAt",
+      "u.name as uploadedBy",
+    ])
+    .where("t.side_id", "=", sideId)
+    .orderBy("t.created_at", "desc")
+    .execute();
+}
+
+async function presignedGet(key: string, fileName: string): Promise<string> {
+  return getSignedUrl(s3(), new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: key, ResponseContentDisposition: `attachment; filename="${fileName.replace(/"/g, "")}"` }), { expiresIn: 3600 });
+}
+
+/** A short-lived URL to a transfer (flat) or an access copy, for download or for playback by byte ranges. */
+export async function downloadUrl(kind: "transfer" | "render", id: string): Promise<string> {
+  if (!/^[0-9a-f-]{36}$/i.test(id)) throw new AppError("not_found", 404, "No such file.");
+  if (kind === "transfer") {
+    const t = await db.selectFrom("transfers").select(["object_key", "file_name"]).where("id", "=", id).executeTakeFirst();
+    if (!t) throw new AppError("not_found", 404, "No such transfer.");
+    return presignedGet(t.object_key, t.file_name);
+  }
+  const r = await db
+    .selectFrom("renders as r")
+    .innerJoin("sides as s", "s.id", "r.side_id")
+    .innerJoin("discs as d", "d.id", "s.disc_id")
+    .select(["r.object_key", "r.status", "d.shelf_mark", "s.designation"])
+    .where("r.id", "=", id)
+    .executeTakeFirst();
+  if (!r || r.status !== "done" || !r.object_key) throw new AppError("not_found", 404, "That access copy is not ready.");
+  return presignedGet(r.object_key, `${r.shelf_mark}-${r.designation}-access.wav`);
+}

@@ -1,0 +1,144 @@
+/**
+ * Throughput and memory of the access-copy render. Prints figures only.
+ *
+ *   npx tsx scripts/bench/render.ts                 # 10 minutes of 96 kHz 24-bit stereo
+ *   BENCH_MINUTES=120 npx tsx scripts/bench/render.ts
+ *
+ * Generates a flat transfer (noise + tones) in a temporary folder, renders it
+ * through the RIAA render filter with Rillbook's renderer (two passes: peak,
+ * then trim and write; 24-bit TPDF-dithered output) in a child process, so the
+ * peak RSS printed is the render's own, and runs sox's `fir` effect with the
+ * same taps single-threaded on the same file (one pass, no peak measurement,
+ * no delay compensation) for comparison. All files are removed afterwards.
+ */
+import { spawn, execFile } from "node:child_process";
+import { mkdtemp, rm, stat, writeFile } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import { promisify } from "node:util";
+import { BwfWriter, openFileSource, readWavHeader, renderAccessCopy } from "../../lib/audio";
+import { designRenderFilter, RIAA_SPEC } from "../../lib/curves";
+
+const RATE_HZ = 96_000;
+const run = promisify(execFile);
+
+
+async function child(input: string, output: string): Promise<void> {
+  const t0 = performance.now();
+  const source = await openFileSource(input);
+  const header = await readWavHeader(source);
+  const filter = designRenderFilter(RIAA_SPEC, header.sampleRateHz);
+  const t1 = performance.now();
+  const result = await renderAccessCopy({ source, header, filter, outputPath: output });
+  const t2 = performance.now();
+  await source.close();
+  const { readFileSync } = await import("node:fs");
+  const status = readFileSync("/proc/self/status", "utf8");
+  const hwm = /VmHWM:\s+(\d+)\s+kB/.exec(status);
+  process.stdout.write(
+    JSON.stringify({
+      designMs: t1 - t0,
+      renderMs: t2 - t1,
+      frames: result.frames,
+      trimDb: result.trimDb,
+      peakDbfs: result.peakDbfs,
+      clippedSamples: result.clippedSamples,
+      taps: filter.taps.length,
+      maxRssKb: process.resourceUsage().maxRSS,
+      vmHwmKb: hwm ? Number(hwm[1]) : null,
+    }),
+  );
+}
+
+async function generate(path: string, frames: number): Promise<void> {
+  const w = await BwfWriter.create(path, { sampleRateHz: RATE_HZ, channels: 2, encoding: { format: "pcm", bitsPerSample: 24 }, bext: { description: "Rillbook render benchmark" } });
+  const chunk = 1 << 16;
+  let seed = 12345;
+  const noise = () => {
+    seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0;
+    return seed / 4294967296 - 0.5;
+  };
+  const l = new Float64Array(chunk);
+  const r = new Float64Array(chunk);
+  for (let start = 0; start < frames; start += chunk) {
+    const n = Math.min(chunk, frames - start);
+    for (let i = 0; i < n; i++) {
+      const t = (start + i) / RATE_HZ;
+      l[i] = 0.05 * noise() + 0.03 * Math.sin(2 * Math.PI * 60 * t) + 0.02 * Math.sin(2 * Math.PI * 3150 * t);
+      r[i] = 0.05 * noise() + 0.03 * Math.sin(2 * Math.PI * 440 * t) + 0.01 * Math.sin(2 * Math.PI * 12_000 * t);
+    }
+    await w.write([l, r], n);
+  }
+  await w.close();
+}
+
+function runChild(input: string, output: string): Promise<{ wallMs: number; report: Record<string, number | null> }> {
+  const self = fileURLToPath(import.meta.url);
+  const t0 = performance.now();
+  return new Promise((resolve, reject) => {
+    const p = spawn(process.execPath, ["--import", "tsx", self, "--child", input, output], { stdio: ["ignore", "pipe", "inherit"] });
+    let out = "";
+    p.stdout.on("data", (d: Buffer) => (out += d.toString()));
+    p.on("error", reject);
+    p.on("close", (code) => {
+      if (code !== 0) reject(new Error(`render child exited with ${code}`));
+      else resolve({ wallMs: performance.now() - t0, report: JSON.parse(out) });
+    });
+  });
+}
+
+async function main(): Promise<void> {
+  const minutes = Number(process.env.BENCH_MINUTES ?? 10);
+  if (!(minutes > 0)) throw new Error("BENCH_MINUTES must be a positive number.");
+  const frames = Math.round(minutes * 60 * RATE_HZ);
+  const dir = await mkdtemp(join(tmpdir(), "rillbook-bench-"));
+  try {
+    const input = join(dir, "flat.wav");
+    const output = join(dir, "access.wav");
+    const soxOut = join(dir, "sox.wav");
+    const tapsFile = join(dir, "taps.txt");
+    console.log(`render benchmark (node ${process.version}, sox ${(await run("sox", ["--version"])).stdout.trim().replace(/^sox:\s*/, "")})`);
+    console.log(`input: ${minutes} min, ${RATE_HZ} Hz, 24-bit stereo = ${frames} frames`);
+    let t = performance.now();
+    await generate(input, frames);
+    console.log(`generated ${((await stat(input)).size / 1e9).toFixed(3)} GB in ${((performance.now() - t) / 1000).toFixed(1)} s`);
+
+    const filter = designRenderFilter(RIAA_SPEC, RATE_HZ);
+    await writeFile(tapsFile, `${Array.from(filter.taps, (v) => v.toPrecision(17)).join("\n")}\n`);
+
+    const { wallMs, report } = await runChild(input, output);
+    const samples = frames * 2;
+    const renderS = (report.renderMs as number) / 1000;
+    const ours = samples / renderS;
+    await rm(output, { force: true });
+
+    t = performance.now();
+    await run("sox", ["--single-threaded", input, "-b", "24", soxOut, "fir", tapsFile], { maxBuffer: 1 << 20 });
+    const soxS = (performance.now() - t) / 1000;
+    const theirs = samples / soxS;
+    await rm(soxOut, { force: true });
+
+    const audioS = frames / RATE_HZ;
+    const mb = (kb: number | null) => (kb === null ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`);
+    console.log(`RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB; clipped ${report.clippedSamples}`);
+    console.log(`Rillbook render (2 passes + SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`);
+    console.log(`sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`);
+    console.log(`ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)}`);
+    console.log(`Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`);
+  } finally {
+    await rm(dir, { recursive: true, force: true });
+  }
+}
+
+if (process.argv[2] === "--child") {
+  child(process.argv[3], process.argv[4]).catch((e) => {
+    console.error(e);
+    process.exit(1);
+  });
+} else {
+  main().catch((e) => {
+    console.error(e);
+    process.exit(1);
+  });
+}

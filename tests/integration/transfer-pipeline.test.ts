@@ -1,0 +1,239 @@
+// A side's transfer from upload to access copy, against the running app, worker,
+// PostgreSQL and s3rver: presigned multipart upload, the server's checks, the queued
+// render, and the stored access copy.
+import { createHash } from "node:crypto";
+import { HeadObjectCommand, S3Client } from "@aws-sdk/client-s3";
+import { WaveFile } from "wavefile";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { demoAccounts } from "@/db/seed-data";
+import { bufferSource, readWavHeader } from "@/lib/audio";
+import { hashPassword } from "@/lib/auth/password";
+import { api, appUrl, signInCookie, waitForMail } from "../support/app";
+import { testDb } from "../support/db";
+import { testSignal } from "../support/wav-corpus";
+
+const tag = Date.now().toString(36);
+const cookie = {} as Record<"archivist" | "engineer" | "curator" | "curator2", string>;
+let sideIds: string[];
+let discId: string;
+
+const bucket = new S3Client({
+  endpoint: process.env.S3_ENDPOINT,
+  region: "us-east-1",
+  forcePathStyle: true,
+  credentials: { accessKeyId: "S3RVER", secretAccessKey: "S3RVER" },
+  requestChecksumCalculation: "WHEN_REQUIRED",
+  responseChecksumValidation: "WHEN_REQUIRED",
+});
+
+/** 3 s of 44.1 kHz 24-bit stereo: a general-purpose writer (wavefile) makes the flat transfer. */
+function flatTransfer(): Uint8Array {
+  const frames = 44_100 * 3;
+  const [l, r] = testSignal(frames, 2, 7, 0.5);
+  const wav = new WaveFile();
+  const full = 2 ** 23 - 1;
+  wav.fromScratch(2, 44_100, "24", [Array.from(l, (v) => Math.round(v * full)), Array.from(r, (v) => Math.round(v * full))]);
+  return wav.toBuffer();
+}
+
+async function upload(sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) {
+  const start = await api("/api/uploads", { cookie: cookie.engineer, method: "POST", body: { sideId, fileName: name, bytes: bytes.length } });
+  expect(start.status).toBe(201);
+  const { key, uploadId, partSize, urls } = start.body;
+  const parts: { partNumber: number; etag: string }[] = [];
+  for (const { partNumber, url } of urls as { partNumber: number; url: string }[]) {
+    const body = bytes.subarray((partNumber - 1) * partSize, partNumber * partSize);
+    const put = await fetch(url, { method: "PUT", body: Buffer.from(body) });
+    expect(put.status).toBe(200);
+    parts.push({ partNumber, etag: put.headers.get("etag")! });
+  }
+  const sha256 = opts.sha256 ?? createHash("sha256").update(bytes).digest("hex");
+  const done = await api("/api/uploads/complete", {
+    cookie: cookie.engineer,
+    method: "POST",
+    body: { key, uploadId, parts, sha256, bytes: bytes.length, stylusSize: "3.0 mil", stylusShape: "truncated elliptical", measuredSpeedRpm: 78.26, chain: "Turntable → preamp (flat) → converter at 44.1 kHz/24" },
+  });
+  return { key, done };
+}
+
+async function objectExists(key: string): Promise<boolean> {
+  try {
+    await bucket.send(new HeadObjectCommand({ Bucket: "rillbook", Key: key }));
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+beforeAll(async () => {
+  for (const role of ["archivist", "engineer", "curator"] as const) {
+    const a = demoAccounts.find((x) => x.role === role)!;
+    cookie[role] = await signInCookie(a.email, a.password);
+  }
+  const second = `curator2-${tag}@test.example`;
+  await testDb.insertInto("users").values({ email: second, name: "Second Curator", role: "curator", password_hash: await hashPassword("second curator pass") }).execute();
+  cookie.curator2 = await signInCookie(second, "second curator pass");
+  const engineerId = (await testDb.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email).executeTakeFirstOrThrow()).id;
+  const acc = await api("/api/accessions", { cookie: cookie.archivist, method: "POST", body: { identifier: `TP-${tag}`, source: "Pipeline test", receivedOn: "2026-11-30" } });
+  const disc = await api("/api/discs", {
+    cookie: cookie.archivist,
+    method: "POST",
+    body: { accessionId: acc.body.accession.id, shelfMark: `TP-${tag}`, format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: [{ designation: "A" }, { designation: "B" }] },
+  });
+  discId = disc.body.disc.id;
+  sideIds = disc.body.disc.sides.map((s: { id: string }) => s.id);
+  await api("/api/assignments", { cookie: cookie.archivist, method: "POST", body: { engineerId, discIds: [discId] } });
+});
+
+afterAll(async () => {
+  bucket.destroy();
+  await testDb.destroy();
+});
+
+describe("uploading a flat transfer", () => {
+  it("asks for the curve first", async () => {
+    const r = await api("/api/uploads", { cookie: cookie.engineer, method: "POST", body: { sideId: sideIds[0], fileName: "a.wav", bytes: 1000 } });
+    expect(r.status).toBe(409);
+    expect(r.body.error.message).toMatch(/curve/);
+  });
+
+  it("accepts a good file after checking its size, SHA-256 and header, and records it", async () => {
+    const choose = await api("/api/curve-choices", {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: { sideIds, overrides: { turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 75 } }, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale: "Test pipeline: the standard microgroove curve as a stand-in.", evidenceKind: "other" },
+    });
+    expect(choose.status).toBe(201);
+    const bytes = flatTransfer();
+    const { key, done } = await upload(sideIds[0], bytes, "TP side A flat.wav");
+    expect(done.status).toBe(201);
+    expect(done.body.technical).toMatchObject({ container: "RIFF", encoding: "pcm", bitsPerSample: 24, channels: 2, sampleRateHz: 44_100, frames: 132_300 });
+    expect(await objectExists(key)).toBe(true);
+    const t = await testDb.selectFrom("transfers").select(["sha256", "bytes", "stylus_shape", "measured_speed_rpm"]).where("object_key", "=", key).executeTakeFirstOrThrow();
+    expect(t.sha256).toBe(createHash("sha256").update(bytes).digest("hex"));
+    expect(Number(t.bytes)).toBe(bytes.length);
+    expect(t.stylus_shape).toBe("truncated elliptical");
+    const side = await testDb.selectFrom("sides").select("status").where("id", "=", sideIds[0]).executeTakeFirstOrThrow();
+    expect(side.status).toBe("transferred");
+  });
+
+  it("refuses a file that is not audio, and a checksum that does not match, keeping nothing", async () => {
+    const text = new TextEncoder().encode("Track list, typed up from the sleeve.\n".repeat(40));
+    const bad = await upload(sideIds[1], text, "notes.wav");
+    expect(bad.done.status).toBe(422);
+    expect(bad.done.body.error.message).toMatch(/RIFF/);
+    expect(await objectExists(bad.key)).toBe(false);
+
+    const wrongSum = await upload(sideIds[1], flatTransfer(), "b.wav", { sha256: "0".repeat(64) });
+    expect(wrongSum.done.status).toBe(422);
+    expect(wrongSum.done.body.error.message).toMatch(/SHA-256/);
+    expect(await objectExists(wrongSum.key)).toBe(false);
+    const rows = await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideIds[1]).execute();
+    expect(rows).toHaveLength(0);
+  });
+});
+
+describe("rendering the access copy", () => {
+  it("queues a render that the worker turns into a Broadcast WAVE access copy, recorded with its filter", async () => {
+    const queued = await api("/api/renders", { cookie: cookie.engineer, method: "POST", body: { sideId: sideIds[0], channelMode: "sum", bitDepth: 24 } });
+    expect(queued.status).toBe(202);
+    const renderId = queued.body.renderId;
+    let render: { status: string; sha256: string; error: string | null } | undefined;
+    for (let i = 0; i < 120; i++) {
+      const list = await api(`/api/sides/${sideIds[0]}/renders`, { cookie: cookie.curator });
+      render = list.body.renders.find((r: { id: string }) => r.id === renderId);
+      if (render?.status === "done" || render?.status === "failed") break;
+      await new Promise((r) => setTimeout(r, 500));
+    }
+    expect(render?.error ?? null).toBeNull();
+    expect(render?.status).toBe("done");
+
+    const link = await fetch(`${appUrl}/api/renders/${renderId}/download`, { headers: { cookie: cookie.curator }, redirect: "manual" });
+    expect(link.status).toBe(302);
+    const file = new Uint8Array(await (await fetch(link.headers.get("location")!)).arrayBuffer());
+    expect(createHash("sha256").update(file).digest("hex")).toBe(render!.sha256);
+    const header = await readWavHeader(bufferSource(file));
+    // Summed to one channel for a lateral cut, same rate and length as the flat transfer.
+    expect(header).toMatchObject({ channels: 1, sampleRateHz: 44_100, bitsPerSample: 24, frames: 132_300 });
+    expect(header.bext?.codingHistory).toMatch(/A=PCM,F=44100,W=24,M=stereo/);
+    expect(header.bext?.codingHistory).toMatch(/Rillbook/);
+
+    const events = await testDb.selectFrom("provenance_events").select(["kind", "payload"]).where("subject_id", "=", sideIds[0]).orderBy("seq", "desc").execute();
+    const rendered = events.find((e) => e.kind === "side.rendered")!.payload as { filter: { kind: string; delaySamples: number; sections: number[][] }; accessCopy: { sha256: string } };
+    expect(rendered.filter.kind).toBe("fir");
+    expect(rendered.filter.sections.length).toBeGreaterThan(0);
+    expect(rendered.accessCopy.sha256).toBe(render!.sha256);
+    expect((await testDb.selectFrom("sides").select("status").where("id", "=", sideIds[0]).executeTakeFirstOrThrow()).status).toBe("rendered");
+  }, 90_000);
+});
+
+async function waitFor<T>(what: string, probe: () => Promise<T | undefined>, timeoutMs = 60_000): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  while (Date.now() < deadline) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    await new Promise((r) => setTimeout(r, 500));
+  }
+  throw new Error(`timed out waiting for ${what}`);
+}
+
+async function renderAndWait(sideId: string): Promise<string> {
+  const queued = await api("/api/renders", { cookie: cookie.engineer, method: "POST", body: { sideId, channelMode: "sum", bitDepth: 24 } });
+  expect(queued.status).toBe(202);
+  return waitFor("the render", async () => {
+    const list = await api(`/api/sides/${sideId}/renders`, { cookie: cookie.curator });
+    const r = list.body.renders.find((x: { id: string }) => x.id === queued.body.renderId);
+    if (r?.status === "failed") throw new Error(`render failed: ${r.error}`);
+    return r?.status === "done" ? (r.id as string) : undefined;
+  });
+}
+
+async function fixityNow(): Promise<void> {
+  const asked = await api("/api/fixity", { cookie: cookie.curator, method: "POST", body: { discId } });
+  expect(asked.status).toBe(202);
+  await waitFor("fixity checks", async () => {
+    const checks = await api(`/api/sides/${sideIds[0]}/fixity`, { cookie: cookie.curator });
+    const recent = checks.body.checks.filter((c: { checkedAt: string }) => new Date(c.checkedAt).getTime() >= asked.body.askedAt);
+    return recent.length >= 2 ? recent : undefined;
+  });
+}
+
+describe("review", () => {
+  it("returns with a reason, refuses approval by the maker and before fixity, and approves after", async () => {
+    const sideA = sideIds[0];
+    expect((await api(`/api/sides/${sideA}/transition`, { cookie: cookie.engineer, method: "POST", body: { to: "in_review" } })).status).toBe(200);
+    const queue = await api("/api/reviews", { cookie: cookie.curator });
+    expect(queue.body.sides.map((s: { id: string }) => s.id)).toContain(sideA);
+
+    const noReason = await api(`/api/sides/${sideA}/review`, { cookie: cookie.curator, method: "POST", body: { decision: "returned" } });
+    expect(noReason.status).toBe(422);
+    const back = await api(`/api/sides/${sideA}/review`, { cookie: cookie.curator, method: "POST", body: { decision: "returned", reason: "Rolloff too strong: the sibilants are gone." } });
+    expect(back.status).toBe(200);
+    const mail = await waitForMail((m) => m.subject.includes(`TP-${tag} side A came back`));
+    expect(mail.text).toMatch(/sibilants/);
+
+    // The engineer changes the curve: the accepted transfer stands; render again and resubmit.
+    const rechoose = await api("/api/curve-choices", {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: { sideIds: [sideA], overrides: { turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 50 } }, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale: "Lighter rolloff after the curator's note.", evidenceKind: "listening" },
+    });
+    expect(rechoose.status).toBe(201);
+    expect((await testDb.selectFrom("sides").select("status").where("id", "=", sideA).executeTakeFirstOrThrow()).status).toBe("transferred");
+    await renderAndWait(sideA);
+    expect((await api(`/api/sides/${sideA}/transition`, { cookie: cookie.engineer, method: "POST", body: { to: "in_review" } })).status).toBe(200);
+
+    const early = await api(`/api/sides/${sideA}/review`, { cookie: cookie.curator, method: "POST", body: { decision: "approved" } });
+    expect(early.status).toBe(409);
+    expect(early.body.error.message).toMatch(/fixity/);
+
+    await fixityNow();
+    // The engineer holds the curator role nowhere: a curator who made the work is refused.
+    await testDb.updateTable("renders").set({ requested_by: (await testDb.selectFrom("users").select("id").where("email", "=", `curator2-${tag}@test.example`).executeTakeFirstOrThrow()).id }).where("side_id", "=", sideA).where("status", "=", "done").execute();
+    const byMaker = await api(`/api/sides/${sideA}/review`, { cookie: cookie.curator2, method: "POST", body: { decision: "approved" } });
+    expect(byMaker.status).toBe(403);
+    const approved = await api(`/api/sides/${sideA}/review`, { cookie: cookie.curator, method: "POST", body: { decision: "approved" } });
+    expect(approved.status).toBe(200);
+    expect((await testDb.selectFrom("sides").select("status").where("id", "=", sideA).executeTakeFirstOrThrow()).status).toBe("approved");
+  }, 180_000);
+});

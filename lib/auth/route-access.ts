@@ -58,6 +58,8 @@ export const routeAccess = {
   "GET /api/provenance/events": "audit:read",
   "GET /api/settings": "audit:read",
   "PATCH /api/settings": "settings:edit",
+  "GET /api/discs/[id]/export": "audit:read",
+  "GET /api/accessions/[id]/export": "audit:read",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

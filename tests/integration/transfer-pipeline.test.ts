@@ -3,14 +3,13 @@
 // render, and the stored access copy.
 import { createHash } from "node:crypto";
 import { HeadObjectCommand, S3Client } from "@aws-sdk/client-s3";
-import { WaveFile } from "wavefile";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { bufferSource, readWavHeader } from "@/lib/audio";
 import { hashPassword } from "@/lib/auth/password";
 import { api, appUrl, signInCookie, waitForMail } from "../support/app";
 import { testDb } from "../support/db";
-import { testSignal } from "../support/wav-corpus";
+import { flatTransfer, fixityNow as fixityFor, renderAndWait as renderFor, uploadTransfer } from "../support/pipeline";
 
 const tag = Date.now().toString(36);
 const cookie = {} as Record<"archivist" | "engineer" | "curator" | "curator2", string>;
@@ -26,35 +25,7 @@ const bucket = new S3Client({
   responseChecksumValidation: "WHEN_REQUIRED",
 });
 
-/** 3 s of 44.1 kHz 24-bit stereo: a general-purpose writer (wavefile) makes the flat transfer. */
-function flatTransfer(): Uint8Array {
-  const frames = 44_100 * 3;
-  const [l, r] = testSignal(frames, 2, 7, 0.5);
-  const wav = new WaveFile();
-  const full = 2 ** 23 - 1;
-  wav.fromScratch(2, 44_100, "24", [Array.from(l, (v) => Math.round(v * full)), Array.from(r, (v) => Math.round(v * full))]);
-  return wav.toBuffer();
-}
-
-async function upload(sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) {
-  const start = await api("/api/uploads", { cookie: cookie.engineer, method: "POST", body: { sideId, fileName: name, bytes: bytes.length } });
-  expect(start.status).toBe(201);
-  const { key, uploadId, partSize, urls } = start.body;
-  const parts: { partNumber: number; etag: string }[] = [];
-  for (const { partNumber, url } of urls as { partNumber: number; url: string }[]) {
-    const body = bytes.subarray((partNumber - 1) * partSize, partNumber * partSize);
-    const put = await fetch(url, { method: "PUT", body: Buffer.from(body) });
-    expect(put.status).toBe(200);
-    parts.push({ partNumber, etag: put.headers.get("etag")! });
-  }
-  const sha256 = opts.sha256 ?? createHash("sha256").update(bytes).digest("hex");
-  const done = await api("/api/uploads/complete", {
-    cookie: cookie.engineer,
-    method: "POST",
-    body: { key, uploadId, parts, sha256, bytes: bytes.length, stylusSize: "3.0 mil", stylusShape: "truncated elliptical", measuredSpeedRpm: 78.26, chain: "Turntable → preamp (flat) → converter at 44.1 kHz/24" },
-  });
-  return { key, done };
-}
+const upload = (sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) => uploadTransfer(cookie, sideId, bytes, name, opts);
 
 async function objectExists(key: string): Promise<boolean> {
   try {
@@ -167,36 +138,8 @@ describe("rendering the access copy", () => {
   }, 90_000);
 });
 
-async function waitFor<T>(what: string, probe: () => Promise<T | undefined>, timeoutMs = 60_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  while (Date.now() < deadline) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    await new Promise((r) => setTimeout(r, 500));
-  }
-  throw new Error(`timed out waiting for ${what}`);
-}
-
-async function renderAndWait(sideId: string): Promise<string> {
-  const queued = await api("/api/renders", { cookie: cookie.engineer, method: "POST", body: { sideId, channelMode: "sum", bitDepth: 24 } });
-  expect(queued.status).toBe(202);
-  return waitFor("the render", async () => {
-    const list = await api(`/api/sides/${sideId}/renders`, { cookie: cookie.curator });
-    const r = list.body.renders.find((x: { id: string }) => x.id === queued.body.renderId);
-    if (r?.status === "failed") throw new Error(`render failed: ${r.error}`);
-    return r?.status === "done" ? (r.id as string) : undefined;
-  });
-}
-
-async function fixityNow(): Promise<void> {
-  const asked = await api("/api/fixity", { cookie: cookie.curator, method: "POST", body: { discId } });
-  expect(asked.status).toBe(202);
-  await waitFor("fixity checks", async () => {
-    const checks = await api(`/api/sides/${sideIds[0]}/fixity`, { cookie: cookie.curator });
-    const recent = checks.body.checks.filter((c: { checkedAt: string }) => new Date(c.checkedAt).getTime() >= asked.body.askedAt);
-    return recent.length >= 2 ? recent : undefined;
-  });
-}
+const renderAndWait = (sideId: string) => renderFor(cookie, sideId);
+const fixityNow = () => fixityFor(cookie, discId, [sideIds[0]]);
 
 describe("review", () => {
   it("returns with a reason, refuses approval by the maker and before fixity, and approves after", async () => {

@@ -1,0 +1,111 @@
+import "server-only";
+import { db } from "../../db";
+import type { CurveSpec } from "../curves";
+import { readDisc } from "../catalogue/records";
+import { env } from "../env";
+import { AppError } from "../http/errors";
+import { softwareName } from "../version";
+import type { PremisAgent, PremisEvent, PremisFile, PremisRecord } from "./premis";
+
+/** Everything the lab knows of one disc, for the repository: record, choices, files, reviews, fixity and events. */
+export async function discRecord(discId: string) {
+  const disc = await readDisc(db, discId);
+  if (!disc) throw new AppError("not_found", 404, "No such disc.");
+  const accession = await db.selectFrom("accessions").select(["id", "identifier", "source", "received_on as receivedOn", "notes"]).where("id", "=", disc.accessionId).executeTakeFirstOrThrow();
+  const sideIds = disc.sides.map((s) => s.id);
+  const none = ["00000000-0000-0000-0000-000000000000"];
+  const ids = sideIds.length ? sideIds : none;
+  const [choices, transfers, renders, reviews, fixity, events] = await Promise.all([
+    db.selectFrom("curve_choices as c").innerJoin("users as u", "u.id", "c.chosen_by").select(["c.id", "c.side_id as sideId", "c.preset_name as presetName", "c.preset_version as presetVersion", "c.preset_spec as presetSpec", "c.overrides", "c.spec", "c.cut_speed_rpm as cutSpeedRpm", "c.transfer_speed_rpm as transferSpeedRpm", "c.rationale", "c.evidence_kind as evidenceKind", "c.evidence", "c.chosen_at as chosenAt", "u.name as chosenBy"]).where("c.side_id", "in", ids).orderBy("c.chosen_at").execute(),
+    db.selectFrom("transfers as t").innerJoin("users as u", "u.id", "t.uploaded_by").select(["t.id", "t.side_id as sideId", "t.object_key as objectKey", "t.file_name as fileName", "t.sha256", "t.bytes", "t.container", "t.encoding", "t.bits_per_sample as bitsPerSample", "t.channels", "t.sample_rate_hz as sampleRateHz", "t.frames", "t.duration_seconds as durationSeconds", "t.bext", "t.stylus_size as stylusSize", "t.stylus_shape as stylusShape", "t.measured_speed_rpm as measuredSpeedRpm", "t.chain", "t.created_at as createdAt", "u.name as uploadedBy"]).where("t.side_id", "in", ids).orderBy("t.created_at").execute(),
+    db.selectFrom("renders as r").innerJoin("users as u", "u.id", "r.requested_by").select(["r.id", "r.side_id as sideId", "r.transfer_id as transferId", "r.curve_choice_id as curveChoiceId", "r.object_key as objectKey", "r.sha256", "r.bytes", "r.channel_mode as channelMode", "r.bit_depth as bitDepth", "r.trim_db as trimDb", "r.peak_dbfs as peakDbfs", "r.filter", "r.finished_at as finishedAt", "u.name as requestedBy"]).where("r.side_id", "in", ids).where("r.status", "=", "done").orderBy("r.finished_at").execute(),
+    db.selectFrom("reviews as r").innerJoin("users as u", "u.id", "r.curator_id").select(["r.id", "r.side_id as sideId", "r.decision", "r.reason", "r.decided_at as decidedAt", "u.name as curator"]).where("r.side_id", "in", ids).orderBy("r.decided_at").execute(),
+    db.selectFrom("fixity_checks").select(["id", "side_id as sideId", "object_kind as objectKind", "object_key as objectKey", "expected_sha256 as expectedSha256", "actual_sha256 as actualSha256", "outcome", "checked_at as checkedAt"]).where("side_id", "in", ids).orderBy("checked_at").execute(),
+    db.selectFrom("provenance_events as e").leftJoin("users as u", "u.id", "e.actor_id").select(["e.seq", "e.id", "e.at", "e.kind", "e.subject_type as subjectType", "e.subject_id as subjectId", "e.payload", "e.hash", "e.prev_hash as prevHash", "e.actor_id as actorId", "u.name as actorName"]).where((eb) => eb.or([eb("e.disc_id", "=", discId), eb.and([eb("e.subject_type", "=", "accession"), eb("e.subject_id", "=", disc.accessionId)])])).orderBy("e.seq").execute(),
+  ]);
+  return {
+    exportedAt: new Date().toISOString(),
+    exportedBy: softwareName(),
+    lab: env().LAB_NAME,
+    accession,
+    disc,
+    curveChoices: choices.map((c) => ({ ...c, cutSpeedRpm: Number(c.cutSpeedRpm), transferSpeedRpm: Number(c.transferSpeedRpm), spec: c.spec as CurveSpec })),
+    transfers,
+    accessCopies: renders,
+    reviews,
+    fixityChecks: fixity,
+    events,
+  };
+}
+
+export type DiscRecordExport = Awaited<ReturnType<typeof discRecord>>;
+
+function sideName(r: DiscRecordExport, sideId: string): string {
+  const s = r.disc.sides.find((x) => x.id === sideId);
+  return `${r.disc.shelfMark} side ${s?.designation ?? "?"}`;
+}
+
+/** Maps the lab's record onto PREMIS entities, files, events and agents. */
+export function premisRecord(records: DiscRecordExport[]): PremisRecord {
+  const entities: PremisRecord["entities"] = [];
+  const files: PremisFile[] = [];
+  const events: PremisEvent[] = [];
+  const agents = new Map<string, PremisAgent>();
+  const software = softwareName();
+  agents.set("software", { id: "software", name: "Rillbook", type: "software", version: software.replace(/^Rillbook /, "") });
+  agents.set("lab", { id: "lab", name: env().LAB_NAME, type: "organization" });
+
+  for (const r of records) {
+    entities.push({ identifier: r.disc.shelfMark, type: "Rillbook shelf mark", name: [r.disc.labelName, r.disc.catalogueNumber].filter(Boolean).join(" ") || r.disc.shelfMark });
+    for (const s of r.disc.sides) {
+      entities.push({ identifier: sideName(r, s.id), type: "Rillbook side", name: [s.title, s.matrixNumber && `matrix ${s.matrixNumber}`, s.take && `take ${s.take}`].filter(Boolean).join(", ") || `side ${s.designation}`, partOf: r.disc.shelfMark });
+    }
+    const transferKeys = new Map(r.transfers.map((t) => [t.id, t.objectKey]));
+    for (const t of r.transfers) {
+      files.push({ key: t.objectKey, role: "flat transfer", sha256: t.sha256, bytes: Number(t.bytes), originalName: t.fileName, formatName: t.container === "RF64" ? "RF64" : t.bext ? "Broadcast WAVE" : "WAVE", sideIdentifier: sideName(r, t.sideId) });
+    }
+    for (const a of r.accessCopies) {
+      if (!a.objectKey || !a.sha256) continue;
+      files.push({ key: a.objectKey, role: "access copy", sha256: a.sha256, bytes: Number(a.bytes), originalName: `${sideName(r, a.sideId).replace(/ side /, "-")}-access.wav`, formatName: "Broadcast WAVE", formatVersion: "2", sideIdentifier: sideName(r, a.sideId), derivedFrom: transferKeys.get(a.transferId) });
+    }
+    for (const e of r.events) {
+      if (e.actorId && !agents.has(e.actorId)) agents.set(e.actorId, { id: e.actorId, name: e.actorName ?? "unknown person", type: "person" });
+      const p = e.payload as Record<string, any>;
+      const side = e.subjectType === "side" ? sideName(r, e.subjectId!) : r.disc.shelfMark;
+      const agent = e.actorId ? { id: e.actorId, role: "implementer" } : { id: "software", role: "executing program" };
+      const ev = (type: string, detail: string, objects: PremisEvent["objects"], outcome = "success", outcomeDetail?: string): PremisEvent => ({ id: e.id, type, at: new Date(e.at).toISOString(), detail, outcome, outcomeDetail, agent, objects });
+      const entity = [{ type: e.subjectType === "side" ? "Rillbook side" : "Rillbook shelf mark", value: side }];
+      switch (e.kind) {
+        case "accession.received":
+          events.push(ev("accession", `Accession ${r.accession.identifier} received from ${r.accession.source}`, [{ type: "Rillbook accession", value: r.accession.identifier }]));
+          break;
+        case "side.transfer_accepted":
+          events.push(ev("capture", `Flat (unequalized) transfer accepted after size, SHA-256 and header checks; stylus ${p.stylusSize || "?"} ${p.stylusShape || ""}; chain: ${p.chain || "not given"}`, [...entity, { type: "Rillbook object key", value: p.objectKey, role: "outcome" }], "success", `SHA-256 ${p.sha256}`));
+          break;
+        case "side.rendered":
+          events.push(
+            ev("creation", `Equalized access copy rendered (${p.filter?.kind ?? "filter"} of ${p.filter?.taps ?? "?"} taps, delay ${p.filter?.delaySamples ?? "?"} samples compensated, trim ${Number(p.trimDb ?? 0).toFixed(2)} dB) by ${p.filter?.software ?? software}`, [
+              ...entity,
+              { type: "Rillbook object key", value: transferKeys.get(p.transfer?.id) ?? String(p.transfer?.id), role: "source" },
+              { type: "Rillbook object key", value: p.accessCopy?.objectKey, role: "outcome" },
+            ], "success", `SHA-256 ${p.accessCopy?.sha256}`),
+          );
+          break;
+        case "side.fixity_checked":
+          events.push(ev("fixity check", `SHA-256 recomputed from the stored ${p.object?.kind === "render" ? "access copy" : "flat transfer"}`, [...entity, { type: "Rillbook object key", value: p.object?.key, role: "source" }], p.outcome === "pass" ? "success" : "failure", `${p.outcome}: expected ${p.expectedSha256}, read ${p.actualSha256 ?? "nothing"}`));
+          break;
+        case "side.curve_chosen":
+        case "side.curve_changed":
+          events.push(ev("metadata modification", `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ${p.preset ? `preset "${p.preset.name}" version ${p.preset.version}` : "values given"}; curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`, entity));
+          break;
+        case "side.approved":
+        case "side.returned":
+          events.push(ev("appraisal", e.kind === "side.approved" ? "Transfer and access copy approved by a curator" : `Returned to the engineer: ${p.reason}`, entity, e.kind === "side.approved" ? "success" : "failure"));
+          break;
+        default:
+          events.push(ev("metadata modification", `${e.kind}${p?.before || p?.after ? `: ${JSON.stringify({ before: p.before, after: p.after })}` : ""}`, entity));
+      }
+    }
+  }
+  return { entities, files, events, agents: [...agents.values()] };
+}

@@ -1,0 +1,108 @@
+// Fixity catches an object altered in the bucket behind the app's back; the PREMIS export
+// validates against the Library of Congress schema; the package's manifest verifies
+// with sha256sum.
+import { execFile } from "node:child_process";
+import { existsSync, promises as fs } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { promisify } from "node:util";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { api, appUrl, waitForMail } from "../support/app";
+import { testDb } from "../support/db";
+import { approvedDisc, assignedDisc, chooseCurve, fixityNow, flatTransfer, type LabCookies, labCookies, uploadTransfer } from "../support/pipeline";
+
+const run = promisify(execFile);
+const tag = Date.now().toString(36);
+// Reference data beside the repository (the Library of Congress PREMIS 3.0 schema); not part of the product.
+const premisSchema = path.resolve(process.cwd(), "..", "shared", "schemas", "premis-v3-0.xsd");
+let c: LabCookies;
+let tmp: string;
+
+beforeAll(async () => {
+  c = await labCookies();
+  tmp = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-export-"));
+});
+
+afterAll(async () => {
+  await fs.rm(tmp, { recursive: true, force: true });
+  await testDb.destroy();
+});
+
+describe("fixity", () => {
+  it("finds an object altered in the bucket, raises an alert and mails the curators", async () => {
+    const { discId, sideIds } = await assignedDisc(c, `FX-${tag}`, ["A"]);
+    await chooseCurve(c, sideIds);
+    const { key, done } = await uploadTransfer(c, sideIds[0], flatTransfer(1, 3), "fx.wav");
+    expect(done.status).toBe(201);
+    const first = await fixityNow(c, discId, sideIds);
+    expect(first.map((r) => r.outcome)).toEqual(["pass"]);
+
+    // Flip bytes in s3rver's own storage, as bit rot or a careless hand would.
+    const file = path.join(process.cwd(), "storage", "test", "s3", "rillbook", `${key}._S3rver_object`);
+    const bytes = await fs.readFile(file);
+    bytes[bytes.length - 10] ^= 0xff;
+    await fs.writeFile(file, bytes);
+
+    const second = await fixityNow(c, discId, sideIds);
+    expect(second[0].outcome).toBe("mismatch");
+    const alerts = await api("/api/fixity", { cookie: c.curator });
+    expect(alerts.body.alerts.map((a: { objectKey: string }) => a.objectKey)).toContain(key);
+    const mail = await waitForMail((m) => m.subject.startsWith("Fixity mismatch") && m.subject.includes(`FX-${tag}`));
+    expect(mail.text).toMatch(/restore/);
+  }, 120_000);
+});
+
+describe("exports for the repository", () => {
+  let discId: string;
+
+  beforeAll(async () => {
+    ({ discId } = await approvedDisc(c, `EX-${tag}`));
+  }, 180_000);
+
+  it("writes PREMIS 3.0 XML that the Library of Congress schema accepts", async (ctx) => {
+    if (!existsSync(premisSchema)) ctx.skip(`the PREMIS schema is not at ${premisSchema}, so the XML cannot be validated here`);
+    const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=premis`, { headers: { cookie: c.curator } });
+    expect(res.status).toBe(200);
+    const xml = await res.text();
+    const file = path.join(tmp, "disc-premis.xml");
+    await fs.writeFile(file, xml);
+    // xmllint (Debian libxml2-utils) validating against the LoC schema; a failure throws with its report.
+    const { stderr } = await run("xmllint", ["--noout", "--schema", premisSchema, file]);
+    expect(stderr).toMatch(/validates/);
+    expect(xml).toMatch(/<premis:eventType[^>]*>capture</);
+    expect(xml).toMatch(/<premis:eventType[^>]*>fixity check</);
+    expect(xml).toMatch(/<premis:messageDigestAlgorithm[^>]*>SHA-256</);
+
+    const acc = (await testDb.selectFrom("discs").select("accession_id").where("id", "=", discId).executeTakeFirstOrThrow()).accession_id;
+    const whole = await fetch(`${appUrl}/api/accessions/${acc}/export?format=premis`, { headers: { cookie: c.curator } });
+    await fs.writeFile(path.join(tmp, "acc.xml"), await whole.text());
+    const accRun = await run("xmllint", ["--noout", "--schema", premisSchema, path.join(tmp, "acc.xml")]);
+    expect(accRun.stderr).toMatch(/validates/);
+  });
+
+  it("packages the approved disc so that its manifest verifies with sha256sum", async () => {
+    const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=zip`, { headers: { cookie: c.curator } });
+    expect(res.status).toBe(200);
+    const zip = path.join(tmp, "package.zip");
+    await fs.writeFile(zip, Buffer.from(await res.arrayBuffer()));
+    await run("unzip", ["-q", zip, "-d", tmp]);
+    const dir = path.join(tmp, `EX-${tag}`);
+    const manifest = await fs.readFile(path.join(dir, "manifest-sha256.txt"), "utf8");
+    expect(manifest).toMatch(/record\.json/);
+    expect(manifest).toMatch(/premis\.xml/);
+    expect(manifest).toMatch(/access\/.*\.wav/);
+    // coreutils sha256sum, outside the project, checks every line.
+    const { stdout } = await run("sha256sum", ["-c", "manifest-sha256.txt"], { cwd: dir });
+    expect(stdout.trim().split("\n").every((l) => l.endsWith(": OK"))).toBe(true);
+    const record = JSON.parse(await fs.readFile(path.join(dir, "record.json"), "utf8"));
+    expect(record.disc.shelfMark).toBe(`EX-${tag}`);
+    expect(record.events.length).toBeGreaterThan(5);
+  });
+
+  it("packages only approved discs, and only for curators and admins", async () => {
+    const { discId: open } = await assignedDisc(c, `NA-${tag}`, ["A"]);
+    const refused = await api(`/api/discs/${open}/export?format=zip`, { cookie: c.curator });
+    expect(refused.status).toBe(409);
+    expect((await api(`/api/discs/${discId}/export?format=json`, { cookie: c.engineer })).status).toBe(403);
+  });
+});

@@ -4,16 +4,18 @@
  * Chain, per output channel:
  *   read a chunk of frames → decode → channel mode (both / lateral sum /
  *   vertical difference / one groove wall) → FIR render filter by overlap-save
- *   (lib/curves StreamingConvolver, state carried across chunks) → drop the
- *   filter's first `delaySamples` outputs so the output lines up sample for
- *   sample with the input → (pass 2) gain trim, TPDF dither, encode → write.
+ *   (lib/curves PairConvolver for stereo, StreamingConvolver for mono; state
+ *   carried across chunks) → drop the filter's first `delaySamples` outputs so
+ *   the output lines up sample for sample with the input → (pass 2) gain trim,
+ *   TPDF dither, encode → write.
  *
- * Two passes, never holding the file in memory: pass 1 runs the chain only to
- * measure the peak of the filtered signal; the trim is then the largest gain
+ * Two passes, never holding the file in memory: pass 1 runs the filter once,
+ * measures the peak of the filtered signal and keeps the filtered samples in a
+ * float64 spill file beside the output; the trim is then the largest gain
  * ≤ 0 dB that keeps that peak under the ceiling (full scale, or a requested
- * headroom), so nothing clips; pass 2 runs the identical chain again, applies
- * the trim and writes. Both passes compute the same numbers in the same order,
- * so the peak measured in pass 1 is exactly the peak written in pass 2.
+ * headroom), so nothing clips; pass 2 reads the spill back, applies the trim
+ * and writes. The peak measured in pass 1 is exactly that of what pass 2 writes.
+ * Disk: the spill takes 8 bytes per sample while the render runs.
  *
  * The end of the signal is flushed with `delaySamples` zeros so the last
  * samples get their full response; output length = input length.
@@ -21,8 +23,8 @@
  */
 import { createHash } from "node:crypto";
 import { createReadStream } from "node:fs";
-import { unlink } from "node:fs/promises";
-import { StreamingConvolver } from "../curves/convolver";
+import { open, unlink } from "node:fs/promises";
+import { PairConvolver, StreamingConvolver } from "../curves/convolver";
 import { formatCodingHistoryLine } from "./bext";
 import type { BextInput } from "./bext";
 import { decodeFrames, fullScalePositive } from "./codecs";
@@ -134,7 +136,10 @@ async function runChain(
   progress: (framesRead: number) => void,
 ): Promise<void> {
   const { header, source, filter } = opts;
-  const convolvers = Array.from({ length: channelsOut }, () => new StreamingConvolver(filter.taps));
+  // Stereo goes through one complex FFT per block (PairConvolver); mono through its own.
+  const pair = channelsOut === 2 ? new PairConvolver(filter.taps) : null;
+  const single = channelsOut === 1 ? new StreamingConvolver(filter.taps) : null;
+  const filterBlock = (blocks: Float64Array[]): Float64Array[] => (pair ? pair.process(blocks[0], blocks[1]) : [single!.process(blocks[0])]);
   const decoded = Array.from({ length: header.channels }, () => new Float64Array(chunkFrames));
   const mixed = Array.from({ length: channelsOut }, () => new Float64Array(chunkFrames));
   const encoding: SampleEncoding = { format: header.format, bitsPerSample: header.bitsPerSample };
@@ -154,13 +159,13 @@ async function runChain(
     }
     const input = decodeFrames(bytes, encoding, header.channels, decoded);
     mix(mode, input, n, mixed);
-    await emit(convolvers.map((cv, c) => cv.process(mixed[c].subarray(0, n))));
+    await emit(filterBlock(mixed.map((m) => m.subarray(0, n))));
     progress(start + n);
   }
   // Ring-out: the last delaySamples outputs depend on input beyond the end, taken as silence.
   if (filter.delaySamples > 0) {
     const zeros = new Float64Array(filter.delaySamples);
-    await emit(convolvers.map((cv) => cv.process(zeros)));
+    await emit(filterBlock(mixed.map(() => zeros)));
   }
 }
 
@@ -206,12 +211,34 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
   const total = Math.max(1, header.frames);
   const report = opts.onProgress ?? (() => {});
 
-  // Pass 1: peak of the filtered, aligned signal.
+  // Pass 1: filter once, keep the aligned result in a float64 spill file beside the
+  // output (exactly what the filter computed: a float32 spill would add up to half an
+  // LSB of rounding to a 24-bit copy) and measure its peak. Pass 2 only trims, dithers
+  // and writes, so the filter runs once; the price is disk space for the spill.
+  const spillPath = `${opts.outputPath}.filtered`;
+  const spill = await open(spillPath, "w");
   let peak = 0;
-  await runChain(opts, mode, channelsOut, chunkFrames, (block) => {
-    const p = peakOf(block);
-    if (p > peak) peak = p;
-  }, (done) => report((0.5 * done) / total));
+  try {
+    let spillAt = 0;
+    await runChain(opts, mode, channelsOut, chunkFrames, async (block) => {
+      const p = peakOf(block);
+      if (p > peak) peak = p;
+      const frames = block[0].length;
+      const interleaved = new Float64Array(frames * channelsOut);
+      for (let c = 0; c < channelsOut; c++) {
+        const ch = block[c];
+        for (let i = 0; i < frames; i++) interleaved[i * channelsOut + c] = ch[i];
+      }
+      const bytes = new Uint8Array(interleaved.buffer);
+      await spill.write(bytes, 0, bytes.length, spillAt);
+      spillAt += bytes.length;
+    }, (done) => report((0.8 * done) / total));
+    await spill.close();
+  } catch (error) {
+    await spill.close().catch(() => {});
+    await unlink(spillPath).catch(() => {});
+    throw error;
+  }
 
   // The trim: integer output keeps 2 LSB below the top code so the dither
   // (< 1 LSB) and rounding (≤ ½ LSB) cannot reach past it.
@@ -263,12 +290,32 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
   });
   let result;
   try {
-    await runChain(opts, mode, channelsOut, chunkFrames, (block) => writer.write(block, block[0].length, gain), (done) => report(0.5 + (0.5 * done) / total));
+    const reader = await open(spillPath, "r");
+    try {
+      const frameBytes = 8 * channelsOut;
+      const blocks = Array.from({ length: channelsOut }, () => new Float64Array(chunkFrames));
+      const buffer = new Uint8Array(chunkFrames * frameBytes);
+      for (let start = 0; start < header.frames; start += chunkFrames) {
+        const n = Math.min(chunkFrames, header.frames - start);
+        await reader.read(buffer, 0, n * frameBytes, start * frameBytes);
+        const samples = new Float64Array(buffer.buffer, 0, n * channelsOut);
+        for (let c = 0; c < channelsOut; c++) {
+          const ch = blocks[c];
+          for (let i = 0; i < n; i++) ch[i] = samples[i * channelsOut + c];
+        }
+        await writer.write(n === chunkFrames ? blocks : blocks.map((b) => b.subarray(0, n)), n, gain);
+        report(0.8 + (0.2 * (start + n)) / total);
+      }
+    } finally {
+      await reader.close();
+    }
     result = await writer.close();
   } catch (error) {
     await writer.abort();
     await unlink(opts.outputPath).catch(() => {});
     throw error;
+  } finally {
+    await unlink(spillPath).catch(() => {});
   }
   const sha256 = await sha256File(opts.outputPath);
   report(1);

@@ -107,3 +107,98 @@ export function convolveDirect(signal: ArrayLike<number>, taps: ArrayLike<number
   }
   return out;
 }
+
+/**
+ * Two channels through the same real filter with one complex FFT per block: the left
+ * channel rides in the real part and the right in the imaginary part. Because the
+ * filter is real, the inverse transform gives left⊛h in its real part and right⊛h in its
+ * imaginary part (linearity of the DFT) — half the transforms of two separate
+ * convolvers. Same streaming contract as StreamingConvolver.
+ */
+export class PairConvolver {
+  readonly tapCount: number;
+  readonly fftSize: number;
+  readonly blockSize: number;
+  private readonly spectrum: Float64Array;
+  private readonly historyA: Float64Array;
+  private readonly historyB: Float64Array;
+  private readonly frame: Float64Array;
+  private readonly work: Float64Array;
+  private readonly result: Float64Array;
+
+  constructor(taps: ArrayLike<number>, options: { fftSize?: number } = {}) {
+    const single = new StreamingConvolver(taps, options);
+    this.tapCount = single.tapCount;
+    this.fftSize = single.fftSize;
+    this.blockSize = single.blockSize;
+    const f = fftFor(this.fftSize);
+    const padded = new Float64Array(this.fftSize);
+    for (let i = 0; i < taps.length; i++) padded[i] = taps[i];
+    this.spectrum = new Float64Array(2 * this.fftSize);
+    f.realTransform(this.spectrum, padded);
+    f.completeSpectrum(this.spectrum);
+    this.historyA = new Float64Array(taps.length - 1);
+    this.historyB = new Float64Array(taps.length - 1);
+    this.frame = new Float64Array(2 * this.fftSize);
+    this.work = new Float64Array(2 * this.fftSize);
+    this.result = new Float64Array(2 * this.fftSize);
+  }
+
+  /** Filters the next chunk of both channels (equal lengths); returns the two outputs. */
+  process(a: ArrayLike<number>, b: ArrayLike<number>): [Float64Array, Float64Array] {
+    if (a.length !== b.length) throw new RangeError("Both channels must bring the same number of samples.");
+    const outA = new Float64Array(a.length);
+    const outB = new Float64Array(b.length);
+    let done = 0;
+    while (done < a.length) {
+      const m = Math.min(this.blockSize, a.length - done);
+      this.processPiece(a, b, done, m, outA, outB);
+      done += m;
+    }
+    return [outA, outB];
+  }
+
+  private processPiece(a: ArrayLike<number>, b: ArrayLike<number>, start: number, m: number, outA: Float64Array, outB: Float64Array): void {
+    const h = this.historyA.length;
+    const f = fftFor(this.fftSize);
+    const frame = this.frame;
+    frame.fill(0);
+    for (let i = 0; i < h; i++) {
+      frame[2 * i] = this.historyA[i];
+      frame[2 * i + 1] = this.historyB[i];
+    }
+    for (let i = 0; i < m; i++) {
+      frame[2 * (h + i)] = a[start + i];
+      frame[2 * (h + i) + 1] = b[start + i];
+    }
+    f.transform(this.work, frame);
+    const w = this.work;
+    const s = this.spectrum;
+    for (let k = 0; k < this.fftSize; k++) {
+      const re = w[2 * k] * s[2 * k] - w[2 * k + 1] * s[2 * k + 1];
+      const im = w[2 * k] * s[2 * k + 1] + w[2 * k + 1] * s[2 * k];
+      w[2 * k] = re;
+      w[2 * k + 1] = im;
+    }
+    f.inverseTransform(this.result, w);
+    for (let i = 0; i < m; i++) {
+      outA[start + i] = this.result[2 * (h + i)];
+      outB[start + i] = this.result[2 * (h + i) + 1];
+    }
+    if (h > 0) {
+      if (m >= h) {
+        for (let i = 0; i < h; i++) {
+          this.historyA[i] = a[start + m - h + i];
+          this.historyB[i] = b[start + m - h + i];
+        }
+      } else {
+        this.historyA.copyWithin(0, m);
+        this.historyB.copyWithin(0, m);
+        for (let i = 0; i < m; i++) {
+          this.historyA[h - m + i] = a[start + i];
+          this.historyB[h - m + i] = b[start + i];
+        }
+      }
+    }
+  }
+}

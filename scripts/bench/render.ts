@@ -122,7 +122,7 @@ async function main(): Promise<void> {
     const audioS = frames / RATE_HZ;
     const mb = (kb: number | null) => (kb === null ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`);
     console.log(`RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB; clipped ${report.clippedSamples}`);
-    console.log(`Rillbook render (2 passes + SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`);
+    console.log(`Rillbook render (filter once into a spill, then trim + dither + write, + SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`);
     console.log(`sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`);
     console.log(`ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)}`);
     console.log(`Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`);

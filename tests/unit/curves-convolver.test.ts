@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { convolveDirect, StreamingConvolver } from "@/lib/curves";
+import { convolveDirect, PairConvolver, StreamingConvolver } from "@/lib/curves";
 
 function prng(seed: number): () => number {
   let a = seed >>> 0;
@@ -44,5 +44,28 @@ describe("streaming convolver", () => {
     conv.reset();
     const out = conv.process([1, 0, 0]);
     [0.5, 0.25, 0].forEach((v, i) => expect(out[i]).toBeCloseTo(v, 12));
+  });
+});
+
+describe("PairConvolver", () => {
+  it("gives each channel exactly what its own direct convolution gives, over uneven chunks", () => {
+    const taps = Float64Array.from({ length: 301 }, (_, i) => Math.sin(i * 0.37) * Math.exp(-i / 90));
+    const a = Float64Array.from({ length: 5000 }, (_, i) => Math.sin(i * 0.05) + 0.3 * Math.cos(i * 1.3));
+    const b = Float64Array.from({ length: 5000 }, (_, i) => (i % 97) / 97 - 0.5);
+    const pair = new PairConvolver(taps);
+    const outA: number[] = [];
+    const outB: number[] = [];
+    for (const size of [1, 17, 999, 2048, 1935]) {
+      const start = outA.length;
+      const [ya, yb] = pair.process(a.subarray(start, start + size), b.subarray(start, start + size));
+      outA.push(...ya);
+      outB.push(...yb);
+    }
+    // Reference: the textbook sum, one channel at a time.
+    const refA = convolveDirect(a, taps);
+    const refB = convolveDirect(b, taps);
+    let worst = 0;
+    for (let i = 0; i < 5000; i++) worst = Math.max(worst, Math.abs(outA[i] - refA[i]), Math.abs(outB[i] - refB[i]));
+    expect(worst).toBeLessThan(1e-10);
   });
 });

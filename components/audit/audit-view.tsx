@@ -1,0 +1,68 @@
+"use client";
+/**
+ * The audit page: open fixity failures first, then the chain's verification, the
+ * fixity cycle and a check now, and the provenance log (one disc's, with its exports,
+ * when ?disc= names one).
+ */
+import { useQuery } from "@tanstack/react-query";
+import Link from "next/link";
+import type { DiscJson } from "@/components/catalogue/types";
+import { Notice } from "@/components/ui/notice";
+import { Panel } from "@/components/ui/panel";
+import { useUrlState } from "@/hooks/use-url-state";
+import { fetchJson } from "@/lib/http/client";
+import { ChainCheck } from "./chain-check";
+import { ExportLinks } from "./export-links";
+import { FixityAlerts } from "./fixity-alerts";
+import { FixityCycle, FixityRun } from "./fixity-controls";
+import { ProvenanceLog } from "./provenance-log";
+import type { DiscPick } from "./types";
+
+const UUID = /^[0-9a-f-]{36}$/i;
+
+export function AuditView({ canEditSettings, canRunFixity, canListPeople }: { canEditSettings: boolean; canRunFixity: boolean; canListPeople: boolean }) {
+  const [discParam, setDiscParam] = useUrlState("disc");
+  const discId = UUID.test(discParam) ? discParam : "";
+  const disc = useQuery({ queryKey: ["disc", discId], enabled: !!discId, queryFn: () => fetchJson<{ disc: DiscJson }>(`/api/discs/${discId}`) });
+  const d = disc.data?.disc;
+  const pick: DiscPick | null = d ? { id: d.id, shelfMark: d.shelfMark, labelName: d.labelName, catalogueNumber: d.catalogueNumber } : discId ? { id: discId, shelfMark: "…" } : null;
+
+  return (
+    <div className="space-y-6">
+      <FixityAlerts />
+
+      <div className="grid gap-6 xl:grid-cols-2">
+        <Panel title="Chain of the provenance log">
+          <ChainCheck />
+        </Panel>
+        <Panel title="Fixity">
+          <div className="space-y-5">
+            <FixityCycle canEdit={canEditSettings} />
+            {canRunFixity ? (
+              <div className="border-t border-paper-edge pt-4">
+                <h3 className="mb-2 font-sans text-sm font-semibold">Check one disc&apos;s files now</h3>
+                <FixityRun initialDisc={pick && d ? pick : null} />
+              </div>
+            ) : null}
+          </div>
+        </Panel>
+      </div>
+
+      {discId && disc.error ? (
+        <Notice tone="error" title="That disc could not be opened">
+          {disc.error.message}
+        </Notice>
+      ) : null}
+
+      {d ? (
+        <Panel title={`Exports for ${d.shelfMark}`} actions={<Link href={`/catalogue/${d.id}`} className="text-sm text-shellac-deep underline underline-offset-2">Open the disc</Link>}>
+          <ExportLinks disc={d} />
+        </Panel>
+      ) : null}
+
+      <Panel title={d ? `Provenance of ${d.shelfMark}` : "Provenance log"}>
+        <ProvenanceLog disc={pick} onPickDisc={(p) => setDiscParam(p?.id ?? "")} canListPeople={canListPeople} />
+      </Panel>
+    </div>
+  );
+}

@@ -1,0 +1,52 @@
+/** Shapes of the audit API answers as the browser receives them (dates as ISO text). */
+export interface AuditEvent {
+  seq: number;
+  id: string;
+  at: string;
+  kind: string;
+  subjectType: string;
+  subjectId: string | null;
+  discId: string | null;
+  shelfMark: string | null;
+  payload: Record<string, unknown>;
+  hash: string;
+  prevHash: string;
+  actorName: string | null;
+  actorId: string | null;
+}
+
+export interface ChainReport {
+  ok: boolean;
+  events: number;
+  brokenAt?: { seq: number; id: string; reason: string };
+  checkedAt: string;
+}
+
+export interface LastChainCheck {
+  ok: boolean;
+  events: number;
+  brokenSeq: number | null;
+  brokenReason: string | null;
+  checkedAt: string;
+  runBy: string | null;
+}
+
+export interface FixityAlert {
+  id: string;
+  objectKind: "transfer" | "render";
+  objectId: string;
+  objectKey: string;
+  outcome: "mismatch" | "missing" | "error";
+  detail: string | null;
+  checkedAt: string;
+  designation: string;
+  discId: string;
+  shelfMark: string;
+}
+
+export interface DiscPick {
+  id: string;
+  shelfMark: string;
+  labelName?: string;
+  catalogueNumber?: string;
+}

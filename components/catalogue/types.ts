@@ -1,57 +1,12 @@
+import type { DiscListRow } from "@/lib/catalogue/list-query";
+import type { DiscRecord, SideRecord } from "@/lib/catalogue/records";
+
 /** Shapes of the catalogue API answers as the browser receives them (dates as ISO text). */
-export interface SideJson {
-  id: string;
-  designation: string;
-  matrixNumber: string;
-  take: string;
-  title: string;
-  performers: string;
-  notes: string;
-  status: string;
-  assignedEngineerId: string | null;
-  assignedEngineerName: string | null;
-  returnReason: string | null;
-  version: number;
-}
+type AsJson<T> = { [K in keyof T]: T[K] extends Date ? string : T[K] extends Date | null ? string | null : T[K] };
 
-export interface DiscJson {
-  id: string;
-  accessionId: string;
-  accessionIdentifier: string;
-  shelfMark: string;
-  labelName: string;
-  catalogueNumber: string;
-  format: string;
-  base: string | null;
-  diameterIn: number | null;
-  nominalSpeedRpm: number;
-  groove: "coarse" | "micro";
-  cut: "lateral" | "vertical";
-  recordingDate: string | null;
-  recordedFromYear: number | null;
-  recordedToYear: number | null;
-  conditionGrade: string;
-  conditionFlags: string[];
-  conditionNotes: string;
-  handlingNotes: string;
-  version: number;
-  createdAt: string;
-  updatedAt: string;
-  sides: SideJson[];
-}
-
-export interface DiscListRowJson {
-  id: string;
-  shelfMark: string;
-  labelName: string;
-  catalogueNumber: string;
-  format: string;
-  nominalSpeedRpm: number;
-  accessionIdentifier: string;
-  conditionGrade: string;
-  updatedAt: string;
-  sides: { id: string; designation: string; matrixNumber: string; title: string; status: string; assignedEngineerName: string | null }[];
-}
+export type SideJson = AsJson<SideRecord>;
+export type DiscJson = Omit<AsJson<DiscRecord>, "sides"> & { sides: SideJson[] };
+export type DiscListRowJson = AsJson<DiscListRow>;
 
 export interface AccessionJson {
   id: string;

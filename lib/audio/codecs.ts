@@ -37,12 +37,36 @@ export function seededRandom(seed: number): () => number {
 
 /** TPDF dither in LSB, on the open interval (−1, 1). */
 export class TpdfDither {
-  private readonly random: () => number;
+  // mulberry32's state, stepped inline (the same sequence as seededRandom(seed)):
+  // a closure call per draw made dither the slowest step of a render.
+  private state: number;
   constructor(seed = 0x5eed) {
-    this.random = seededRandom(seed);
+    this.state = seed >>> 0;
+  }
+  private draw(): number {
+    this.state = (this.state + 0x6d2b79f5) >>> 0;
+    const a = this.state;
+    let t = Math.imul(a ^ (a >>> 15), a | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
   }
   next(): number {
-    return this.random() - this.random();
+    return this.draw() - this.draw();
+  }
+  /** Fills `out[0…n)` with dither values, the same as n calls of next(). */
+  fill(out: Float64Array, n = out.length): void {
+    let s = this.state;
+    for (let i = 0; i < n; i++) {
+      s = (s + 0x6d2b79f5) >>> 0;
+      let t = Math.imul(s ^ (s >>> 15), s | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      const r1 = ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+      s = (s + 0x6d2b79f5) >>> 0;
+      t = Math.imul(s ^ (s >>> 15), s | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      out[i] = r1 - ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    }
+    this.state = s;
   }
 }
 
@@ -134,11 +158,15 @@ export function encodeFrames(channels: Float64Array[], enc: SampleEncoding, opti
   const scale = 2 ** (enc.bitsPerSample - 1);
   const max = scale - 1;
   const min = -scale;
+  const k = gain * scale;
+  // One dither value per sample in file order (frame-major), drawn in a batch.
+  const noise = dither ? new Float64Array(frames * n) : null;
+  if (dither && noise) dither.fill(noise);
   // Frame-major so one dither stream serves all channels in file order (independent per sample).
-  for (let i = 0, o = 0; i < frames; i++) {
-    for (let c = 0; c < n; c++, o += bytesPer) {
-      let v = channels[c][i] * gain * scale;
-      if (dither) v += dither.next();
+  for (let i = 0, o = 0, d = 0; i < frames; i++) {
+    for (let c = 0; c < n; c++, o += bytesPer, d++) {
+      let v = channels[c][i] * k;
+      if (noise) v += noise[d];
       let q = Math.round(v);
       if (q > max) {
         q = max;

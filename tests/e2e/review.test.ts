@@ -7,7 +7,6 @@
 // the review, runs "Check fixity now" and approves. The audit page's history of the
 // disc then shows every step. Screenshots "review" and "audit" land in
 // storage/test/screenshots.
-import { createHash } from "node:crypto";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
@@ -16,6 +15,7 @@ import { api, appUrl, signInCookie } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 import { testDb } from "../support/db";
 import { makeWav } from "../support/make-wav";
+import { renderAndWait as renderFor, uploadTransfer } from "../support/pipeline";
 
 let browser: Browser;
 const archivist = demoAccounts.find((a) => a.role === "archivist")!;
@@ -30,41 +30,14 @@ let discId: string;
 let sideId: string;
 
 async function upload(sideId: string, bytes: Uint8Array, name: string) {
-  const start = await api("/api/uploads", { cookie: cookie.engineer, method: "POST", body: { sideId, fileName: name, bytes: bytes.length } });
-  expect(start.status).toBe(201);
-  const { key, uploadId, partSize, urls } = start.body;
-  const parts: { partNumber: number; etag: string }[] = [];
-  for (const { partNumber, url } of urls as { partNumber: number; url: string }[]) {
-    const put = await fetch(url, { method: "PUT", body: Buffer.from(bytes.subarray((partNumber - 1) * partSize, partNumber * partSize)) });
-    expect(put.status).toBe(200);
-    parts.push({ partNumber, etag: put.headers.get("etag")! });
-  }
-  const done = await api("/api/uploads/complete", {
-    cookie: cookie.engineer,
-    method: "POST",
-    body: { key, uploadId, parts, sha256: createHash("sha256").update(bytes).digest("hex"), bytes: bytes.length, stylusSize: "3.0 mil", stylusShape: "truncated elliptical", measuredSpeedRpm: 78.1, chain: "Turntable → flat preamp → converter at 44.1 kHz/24" },
-  });
+  const { done } = await uploadTransfer({ ...cookie, curator: "" }, sideId, bytes, name);
   expect(done.status).toBe(201);
   return done.body;
 }
 
 /** Asks the worker for an access copy and waits until it is done. */
 async function renderAndWait(): Promise<string> {
-  const queued = await api("/api/renders", { cookie: cookie.engineer, method: "POST", body: { sideId, channelMode: "sum", bitDepth: 24 } });
-  expect(queued.status).toBe(202);
-  const renderId = queued.body.renderId as string;
-  let status = "queued";
-  let error: string | null = null;
-  for (let i = 0; i < 240 && status !== "done" && status !== "failed"; i++) {
-    await new Promise((r) => setTimeout(r, 500));
-    const list = await api(`/api/sides/${sideId}/renders`, { cookie: cookie.engineer });
-    const r = (list.body.renders as { id: string; status: string; error: string | null }[]).find((x) => x.id === renderId);
-    status = r?.status ?? status;
-    error = r?.error ?? null;
-  }
-  expect(error).toBeNull();
-  expect(status).toBe("done");
-  return renderId;
+  return (await renderFor({ ...cookie, curator: cookie.engineer }, sideId)).id;
 }
 
 async function submitForReview() {

@@ -4,11 +4,8 @@
  * candidates by eye and by ear, upload the flat transfer, render the access copy.
  */
 import { useQuery } from "@tanstack/react-query";
-import Link from "next/link";
 import { useCallback, useId, useMemo, useState } from "react";
-import { HandlingCautions } from "@/components/catalogue/handling-cautions";
-import { formatLabel, speedLabel } from "@/components/catalogue/format";
-import { StatusBadge } from "@/components/catalogue/status-badge";
+import { SideHeader } from "@/components/catalogue/side-header";
 import { CURVE_COLORS } from "@/components/curves/plot-format";
 import { ResponsePlot } from "@/components/curves/response-plot";
 import { Button } from "@/components/ui/button";
@@ -71,44 +68,16 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   const s = data.side;
   const mine = s.assignedEngineerId === userId;
   const curveChosen = !!current && s.status !== "assigned" && s.status !== "returned";
-  const title = [s.title, s.performers].filter(Boolean).join(" — ");
 
   return (
     <div className="space-y-6" data-testid="bench">
-      <header className="flex flex-wrap items-end justify-between gap-4 border-b border-paper-edge pb-5">
-        <div className="space-y-1">
-          <p className="text-sm">
-            <Link href="/bench" className="text-ink-soft underline-offset-2 hover:text-ink hover:underline">
-              ← My bench queue
-            </Link>
-          </p>
-          <h1 className="text-3xl font-semibold tracking-tight" data-testid="bench-title">
-            <Link href={`/catalogue/${disc.id}`} className="font-mono hover:underline">
-              {disc.shelfMark}
-            </Link>
-            <span className="text-ink-faint"> · </span>side {s.designation}
-          </h1>
-          <p className="text-ink-soft">{title || <span className="text-ink-faint">untitled</span>}</p>
-          <dl className="flex flex-wrap gap-x-5 gap-y-1 pt-1 text-sm">
-            <Fact k="Label" v={[disc.labelName, disc.catalogueNumber].filter(Boolean).join(" ") || "—"} />
-            <Fact k="Matrix" v={s.matrixNumber || "—"} mono />
-            <Fact k="Take" v={s.take || "—"} mono />
-            <Fact k="Carrier" v={`${formatLabel(disc.format)} · ${speedLabel(disc.nominalSpeedRpm)} rpm · ${disc.cut} cut`} />
-          </dl>
-        </div>
-        <div className="flex flex-col items-end gap-1">
-          <StatusBadge status={s.status} />
-          {s.status === "returned" && s.returnReason ? <p className="max-w-72 rounded border-l-2 border-alarm bg-alarm-wash px-2 py-1 text-xs text-alarm">Returned: {s.returnReason}</p> : null}
-        </div>
-      </header>
-
-      <HandlingCautions format={disc.format} base={disc.base} conditionFlags={disc.conditionFlags} conditionGrade={disc.conditionGrade} />
-      {disc.handlingNotes || disc.conditionNotes ? (
-        <Notice tone="caution" title="Notes logged for this disc">
-          {disc.conditionNotes ? <p>Condition: {disc.conditionNotes}</p> : null}
-          {disc.handlingNotes ? <p>Handling: {disc.handlingNotes}</p> : null}
-        </Notice>
-      ) : null}
+      <SideHeader
+        disc={disc}
+        side={s}
+        back={{ href: "/bench", label: "My bench queue" }}
+        testId="bench-title"
+        aside={s.status === "returned" && s.returnReason ? <p className="max-w-72 rounded border-l-2 border-alarm bg-alarm-wash px-2 py-1 text-xs text-alarm">Returned: {s.returnReason}</p> : null}
+      />
       {!mine ? <Notice tone="info" title="Not assigned to you">You can look and listen; choices, uploads and renders are for the engineer this side is assigned to ({s.assignedEngineerName ?? "nobody yet"}).</Notice> : null}
 
       <div className="grid gap-6 xl:grid-cols-[27rem_minmax(0,1fr)]">
@@ -208,11 +177,3 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   );
 }
 
-function Fact({ k, v, mono }: { k: string; v: string; mono?: boolean }) {
-  return (
-    <div className="flex gap-1.5">
-      <dt className="text-ink-faint">{k}</dt>
-      <dd className={mono ? "font-mono" : undefined}>{v}</dd>
-    </div>
-  );
-}

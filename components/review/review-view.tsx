@@ -12,9 +12,8 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import { AuditionPanel } from "@/components/bench/audition-panel";
 import { ChoiceHistory } from "@/components/bench/choice-history";
 import type { Candidate, ChannelMode, CurveChoiceJson, RenderJson, SideWithDisc, TransferJson } from "@/components/bench/types";
-import { formatLabel, speedLabel, statusLabel, when } from "@/components/catalogue/format";
-import { HandlingCautions } from "@/components/catalogue/handling-cautions";
-import { StatusBadge } from "@/components/catalogue/status-badge";
+import { statusLabel, when } from "@/components/catalogue/format";
+import { SideHeader } from "@/components/catalogue/side-header";
 import { Badge } from "@/components/ui/badge";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
@@ -120,45 +119,22 @@ export function ReviewView({ sideId }: { sideId: string }) {
 
   return (
     <div className="space-y-6" data-testid="review-side">
-      <header className="flex flex-wrap items-end justify-between gap-4 border-b border-paper-edge pb-5">
-        <div className="space-y-1">
-          <p className="text-sm">
-            <Link href="/review" className="text-ink-soft underline-offset-2 hover:text-ink hover:underline">
-              ← Sides in review
-            </Link>
-          </p>
-          <h1 className="text-3xl font-semibold tracking-tight" data-testid="review-title">
-            <Link href={`/catalogue/${disc.id}`} className="font-mono hover:underline">
-              {disc.shelfMark}
-            </Link>
-            <span className="text-ink-faint"> · </span>side {s.designation}
-          </h1>
-          <p className="text-ink-soft">{[s.title, s.performers].filter(Boolean).join(" — ") || <span className="text-ink-faint">untitled</span>}</p>
-          <dl className="flex flex-wrap gap-x-5 gap-y-1 pt-1 text-sm">
-            <Fact k="Label" v={[disc.labelName, disc.catalogueNumber].filter(Boolean).join(" ") || "—"} />
-            <Fact k="Matrix" v={s.matrixNumber || "—"} mono />
-            <Fact k="Take" v={s.take || "—"} mono />
-            <Fact k="Carrier" v={`${formatLabel(disc.format)} · ${speedLabel(disc.nominalSpeedRpm)} rpm · ${disc.groove} groove · ${disc.cut} cut`} />
-            <Fact k="Accession" v={disc.accessionIdentifier} mono />
-            <Fact k="Engineer" v={s.assignedEngineerName ?? "—"} />
-          </dl>
-        </div>
-        <div className="flex flex-col items-end gap-1" data-testid="review-status">
-          <StatusBadge status={s.status} />
+      <SideHeader
+        disc={disc}
+        side={s}
+        back={{ href: "/review", label: "Sides in review" }}
+        testId="review-title"
+        extraFacts={[
+          { k: "Accession", v: disc.accessionIdentifier, mono: true },
+          { k: "Engineer", v: s.assignedEngineerName ?? "—" },
+        ]}
+        showSideNotes
+        aside={
           <Link href={`/audit?disc=${disc.id}`} className="text-xs text-shellac-deep underline underline-offset-2">
             This disc&apos;s provenance
           </Link>
-        </div>
-      </header>
-
-      <HandlingCautions format={disc.format} base={disc.base} conditionFlags={disc.conditionFlags} conditionGrade={disc.conditionGrade} />
-      {disc.handlingNotes || disc.conditionNotes || s.notes ? (
-        <Notice tone="caution" title="Notes logged for this disc">
-          {disc.conditionNotes ? <p>Condition: {disc.conditionNotes}</p> : null}
-          {disc.handlingNotes ? <p>Handling: {disc.handlingNotes}</p> : null}
-          {s.notes ? <p>Side: {s.notes}</p> : null}
-        </Notice>
-      ) : null}
+        }
+      />
 
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_25rem]">
         <div className="min-w-0 space-y-6">
@@ -269,11 +245,3 @@ function ReviewHistory({ reviews, loading }: { reviews: ReviewJson[] | undefined
   );
 }
 
-function Fact({ k, v, mono }: { k: string; v: string; mono?: boolean }) {
-  return (
-    <div className="flex gap-1.5">
-      <dt className="text-ink-faint">{k}</dt>
-      <dd className={mono ? "font-mono" : undefined}>{v}</dd>
-    </div>
-  );
-}

@@ -22,7 +22,7 @@ import {
   toCatalogueCsv,
 } from "./csv-format";
 import { insertDiscs, listDiscs } from "./discs";
-import { readSides } from "./records";
+import { readDiscs } from "./records";
 
 /** Uploads larger than this are refused before they are read (20 000 rows of long notes fit well below). */
 export const maxUploadBytes = 40 * 1024 * 1024;
@@ -240,41 +240,11 @@ export async function exportCatalogueCsv(input: unknown): Promise<string> {
   const discs: ExportDisc[] = [];
   for (let i = 0; i < ids.length; i += 1000) {
     const chunk = ids.slice(i, i + 1000);
-    const rows = await db
-      .selectFrom("discs as d")
-      .innerJoin("accessions as a", "a.id", "d.accession_id")
-      .select([
-        "d.id",
-        "d.shelf_mark as shelfMark",
-        "a.identifier as accessionIdentifier",
-        "d.label_name as labelName",
-        "d.catalogue_number as catalogueNumber",
-        "d.format",
-        "d.base",
-        "d.diameter_in as diameterIn",
-        "d.nominal_speed_rpm as nominalSpeedRpm",
-        "d.groove",
-        "d.cut",
-        "d.recording_date as recordingDate",
-        "d.recorded_from_year as recordedFromYear",
-        "d.recorded_to_year as recordedToYear",
-        "d.condition_grade as conditionGrade",
-        "d.condition_flags as conditionFlags",
-        "d.condition_notes as conditionNotes",
-        "d.handling_notes as handlingNotes",
-      ])
-      .where("d.id", "in", chunk)
-      .execute();
-    const sides = await readSides(db, chunk);
-    const byId = new Map(rows.map((r) => [r.id, r]));
-    for (const id of chunk) {
-      const r = byId.get(id);
-      if (!r) continue; // deleted since it was listed
+    // Deleted since it was listed: left out.
+    for (const d of await readDiscs(db, chunk)) {
       discs.push({
-        ...r,
-        diameterIn: r.diameterIn === null ? null : Number(r.diameterIn),
-        nominalSpeedRpm: Number(r.nominalSpeedRpm),
-        sides: (sides.get(id) ?? []).map((s) => ({ designation: s.designation, matrixNumber: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })),
+        ...d,
+        sides: d.sides.map((s) => ({ designation: s.designation, matrixNumber: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })),
       });
     }
   }

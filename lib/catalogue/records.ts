@@ -47,7 +47,14 @@ export interface DiscRecord {
 /** Reads one disc with its sides, explicitly selected; null when there is none. */
 export async function readDisc(db: Db, id: string): Promise<DiscRecord | null> {
   if (!/^[0-9a-f-]{36}$/i.test(id)) return null;
-  const d = await db
+  const [disc] = await readDiscs(db, [id]);
+  return disc ?? null;
+}
+
+/** Reads many discs with their sides in two queries, in the order of `ids` (missing ones left out). */
+export async function readDiscs(db: Db, ids: string[]): Promise<DiscRecord[]> {
+  if (!ids.length) return [];
+  const rows = await db
     .selectFrom("discs as d")
     .innerJoin("accessions as a", "a.id", "d.accession_id")
     .select([
@@ -74,11 +81,14 @@ export async function readDisc(db: Db, id: string): Promise<DiscRecord | null> {
       "d.created_at as createdAt",
       "d.updated_at as updatedAt",
     ])
-    .where("d.id", "=", id)
-    .executeTakeFirst();
-  if (!d) return null;
-  const sides = await readSides(db, [id]);
-  return { ...d, diameterIn: d.diameterIn === null ? null : Number(d.diameterIn), nominalSpeedRpm: Number(d.nominalSpeedRpm), sides: sides.get(id) ?? [] };
+    .where("d.id", "in", ids)
+    .execute();
+  const sides = await readSides(db, ids);
+  const byId = new Map(rows.map((d) => [d.id, d]));
+  return ids.flatMap((id) => {
+    const d = byId.get(id);
+    return d ? [{ ...d, diameterIn: d.diameterIn === null ? null : Number(d.diameterIn), nominalSpeedRpm: Number(d.nominalSpeedRpm), sides: sides.get(id) ?? [] }] : [];
+  });
 }
 
 export async function readSides(db: Db, discIds: string[]): Promise<Map<string, SideRecord[]>> {

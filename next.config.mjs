@@ -6,7 +6,7 @@ const nextConfig = {
   reactStrictMode: true,
   // forbidden() answers a signed-in person without the right role with a 403 page.
   experimental: { authInterrupts: true },
-  serverExternalPackages: ["pg", "bcryptjs", "nodemailer"],
+  serverExternalPackages: ["pg", "bcryptjs", "nodemailer", "pg-boss", "@alexanderolsen/libsamplerate-js"],
 };
 
 export default nextConfig;

@@ -222,6 +222,8 @@ export interface RendersTable {
   progress: Generated<number>;
   channel_mode: ChannelMode;
   bit_depth: number;
+  /** The access copy's rate (the transfer's unless the lab chose another). */
+  sample_rate_hz: number | null;
   object_key: string | null;
   sha256: string | null;
   bytes: number | null;

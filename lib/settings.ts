@@ -3,27 +3,59 @@ import { z } from "zod";
 import { db } from "../db";
 import type { SessionUser } from "./auth/session-user";
 import { appendEvent } from "./provenance";
+import { accessCopyRates } from "./validation/transfers";
 
-export const settingsSchema = z.object({
-  fixityCycleDays: z.coerce.number().int("Whole days, please.").min(1, "At least one day.").max(3650, "At most ten years."),
-});
 
-export async function getSettings() {
-  const row = await db.selectFrom("lab_settings").select("value").where("key", "=", "fixity_cycle_days").executeTakeFirst();
-  return { fixityCycleDays: Number(row?.value ?? 30) };
+export const settingsSchema = z
+  .object({
+    fixityCycleDays: z.coerce.number().int("Whole days, please.").min(1, "At least one day.").max(3650, "At most ten years."),
+    accessCopyRateHz: z.union([z.literal("transfer"), z.coerce.number().refine((v) => (accessCopyRates as readonly number[]).includes(v), `Choose one of ${accessCopyRates.join(", ")} Hz, or the transfer's rate.`)]),
+    accessCopyBitDepth: z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits."),
+  })
+  .partial();
+
+export interface LabSettings {
+  fixityCycleDays: number;
+  accessCopyRateHz: "transfer" | number;
+  accessCopyBitDepth: 16 | 24;
 }
 
-/** The admin sets the fixity cycle; the change is an event. */
-export async function updateSettings(actor: SessionUser, input: unknown) {
+const keys = { fixityCycleDays: "fixity_cycle_days", accessCopyRateHz: "access_copy_rate_hz", accessCopyBitDepth: "access_copy_bit_depth" } as const;
+
+export async function getSettings(): Promise<LabSettings> {
+  const rows = await db.selectFrom("lab_settings").select(["key", "value"]).execute();
+  const v = new Map(rows.map((r) => [r.key, r.value]));
+  const rate = v.get(keys.accessCopyRateHz);
+  return {
+    fixityCycleDays: Number(v.get(keys.fixityCycleDays) ?? 30),
+    accessCopyRateHz: typeof rate === "number" ? rate : "transfer",
+    accessCopyBitDepth: v.get(keys.accessCopyBitDepth) === 16 ? 16 : 24,
+  };
+}
+
+/** The admin changes the lab's settings (any of them); the change is an event. */
+export async function updateSettings(actor: SessionUser, input: unknown): Promise<LabSettings> {
   const s = settingsSchema.parse(input);
   const before = await getSettings();
+  const changed = (Object.keys(s) as (keyof typeof keys)[]).filter((k) => s[k] !== undefined);
   await db.transaction().execute(async (trx) => {
-    await trx
-      .insertInto("lab_settings")
-      .values({ key: "fixity_cycle_days", value: JSON.stringify(s.fixityCycleDays), updated_by: actor.id })
-      .onConflict((oc) => oc.column("key").doUpdateSet({ value: JSON.stringify(s.fixityCycleDays), updated_by: actor.id, updated_at: new Date() }))
-      .execute();
-    await appendEvent(trx, { actorId: actor.id, kind: "lab.settings_changed", subjectType: "lab", subjectId: "fixity_cycle_days", payload: { before, after: s } });
+    for (const k of changed) {
+      const value = JSON.stringify(s[k]);
+      await trx
+        .insertInto("lab_settings")
+        .values({ key: keys[k], value, updated_by: actor.id })
+        .onConflict((oc) => oc.column("key").doUpdateSet({ value, updated_by: actor.id, updated_at: new Date() }))
+        .execute();
+    }
+    if (changed.length) {
+      await appendEvent(trx, {
+        actorId: actor.id,
+        kind: "lab.settings_changed",
+        subjectType: "lab",
+        subjectId: changed.map((k) => keys[k]).join(","),
+        payload: { before: Object.fromEntries(changed.map((k) => [k, before[k]])), after: Object.fromEntries(changed.map((k) => [k, s[k]])) },
+      });
+    }
   });
-  return s;
+  return getSettings();
 }

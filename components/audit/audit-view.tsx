@@ -4,6 +4,7 @@
  * fixity cycle and a check now, and the provenance log (one disc's, with its exports,
  * when ?disc= names one).
  */
+import { AccessCopySettings } from "./access-copy-settings";
 import { useQuery } from "@tanstack/react-query";
 import Link from "next/link";
 import type { DiscJson } from "@/components/catalogue/types";
@@ -38,6 +39,10 @@ export function AuditView({ canEditSettings, canRunFixity, canListPeople }: { ca
         <Panel title="Fixity">
           <div className="space-y-5">
             <FixityCycle canEdit={canEditSettings} />
+            <div className="border-t border-paper-edge pt-4">
+              <h3 className="mb-2 font-sans text-sm font-semibold">Access copies</h3>
+              <AccessCopySettings canEdit={canEditSettings} />
+            </div>
             {canRunFixity ? (
               <div className="border-t border-paper-edge pt-4">
                 <h3 className="mb-2 font-sans text-sm font-semibold">Check one disc&apos;s files now</h3>

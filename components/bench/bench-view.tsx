@@ -169,7 +169,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
           </Panel>
 
           <Panel title="Access copy">
-            <RenderPanel sideId={sideId} sideStatus={s.status} channels={newest ? Number(newest.channels) : null} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} canRender={mine} />
+            <RenderPanel sideId={sideId} sideStatus={s.status} channels={newest ? Number(newest.channels) : null} transferRateHz={newest ? Number(newest.sampleRateHz) : null} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} canRender={mine} />
           </Panel>
         </div>
       </div>

@@ -13,17 +13,40 @@ import { Button } from "@/components/ui/button";
 import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { fetchJson } from "@/lib/http/client";
-import { channelModeLabels } from "@/lib/validation/transfers";
+import { accessCopyRates, channelModeLabels } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
 import type { ChannelMode, RenderJson } from "./types";
 
 const statusTone = { queued: "neutral", running: "accent", done: "ok", failed: "alarm" } as const;
 const statusWords = { queued: "Queued", running: "Rendering", done: "Done", failed: "Failed" } as const;
 
-export function RenderPanel({ sideId, sideStatus, channels, channelMode, onChannelMode, channelWhy, canRender }: { sideId: string; sideStatus: string; channels: number | null; channelMode: ChannelMode; onChannelMode: (m: ChannelMode) => void; channelWhy: string; canRender: boolean }) {
+export function RenderPanel({
+  sideId,
+  sideStatus,
+  channels,
+  transferRateHz,
+  channelMode,
+  onChannelMode,
+  channelWhy,
+  canRender,
+}: {
+  sideId: string;
+  sideStatus: string;
+  channels: number | null;
+  transferRateHz: number | null;
+  channelMode: ChannelMode;
+  onChannelMode: (m: ChannelMode) => void;
+  channelWhy: string;
+  canRender: boolean;
+}) {
   const uid = useId();
   const queryClient = useQueryClient();
-  const [bitDepth, setBitDepth] = useState<16 | 24>(24);
+  // The lab's defaults for access copies (admins set them on the audit page).
+  const settings = useQuery({ queryKey: ["settings"], queryFn: () => fetchJson<{ accessCopyRateHz: "transfer" | number; accessCopyBitDepth: 16 | 24 }>("/api/settings") });
+  const [bitChoice, setBitDepth] = useState<16 | 24 | null>(null);
+  const [rateChoice, setRate] = useState<"transfer" | number | null>(null);
+  const bitDepth = bitChoice ?? settings.data?.accessCopyBitDepth ?? 24;
+  const sampleRateHz = rateChoice ?? settings.data?.accessCopyRateHz ?? "transfer";
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const renders = useQuery({
@@ -45,7 +68,7 @@ export function RenderPanel({ sideId, sideStatus, channels, channelMode, onChann
     setBusy(true);
     setError(null);
     try {
-      await fetchJson("/api/renders", { method: "POST", body: JSON.stringify({ sideId, channelMode, bitDepth }) });
+      await fetchJson("/api/renders", { method: "POST", body: JSON.stringify({ sideId, channelMode, bitDepth, sampleRateHz }) });
       await queryClient.invalidateQueries({ queryKey: ["renders", sideId] });
     } catch (err) {
       setError(err instanceof Error ? err.message : String(err));
@@ -83,6 +106,22 @@ export function RenderPanel({ sideId, sideStatus, channels, channelMode, onChann
           <option value={24}>24-bit</option>
           <option value={16}>16-bit</option>
         </SelectField>
+        <SelectField
+          id={`${uid}-rate`}
+          label="Sample rate"
+          value={String(sampleRateHz)}
+          onChange={(e) => setRate(e.target.value === "transfer" ? "transfer" : Number(e.target.value))}
+          data-testid="render-rate"
+        >
+          <option value="transfer">As the transfer{transferRateHz ? ` (${transferRateHz / 1000} kHz)` : ""}</option>
+          {accessCopyRates
+            .filter((r) => r !== transferRateHz)
+            .map((r) => (
+              <option key={r} value={r}>
+                {r / 1000} kHz (resampled)
+              </option>
+            ))}
+        </SelectField>
         <div className="pb-[1.4rem]">
           <Button type="button" onClick={() => void request()} disabled={!ready || busy || busyRender || !canRender} data-testid="render-start">
             Render access copy
@@ -103,7 +142,9 @@ export function RenderPanel({ sideId, sideStatus, channels, channelMode, onChann
                 <div className="flex flex-wrap items-center gap-2 text-sm">
                   <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>
                   <span>{channelModeLabels[r.channelMode] ?? r.channelMode}</span>
-                  <span className="font-mono text-xs text-ink-soft">{r.bitDepth}-bit</span>
+                  <span className="font-mono text-xs text-ink-soft">
+                    {r.bitDepth}-bit{r.sampleRateHz ? ` · ${r.sampleRateHz / 1000} kHz` : ""}
+                  </span>
                   <span className="text-xs text-ink-faint">
                     {r.requestedBy} · {when(r.createdAt)}
                   </span>

@@ -75,6 +75,7 @@ export interface RenderJson {
   progress: number;
   channelMode: ChannelMode;
   bitDepth: number;
+  sampleRateHz?: number | null;
   sha256: string | null;
   bytes: number | string | null;
   trimDb: number | string | null;

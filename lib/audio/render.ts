@@ -19,7 +19,9 @@
  *
  * The end of the signal is flushed with `delaySamples` zeros so the last
  * samples get their full response; output length = input length.
- * No resampling: the access copy has the transfer's sample rate.
+ * At another rate than the transfer's (the lab's choice), the filtered signal is
+ * resampled after the equalization (lib/audio/resample.ts: libsamplerate's best sinc
+ * converter, its delay compensated), before the peak is measured.
  */
 import { createHash } from "node:crypto";
 import { createReadStream } from "node:fs";
@@ -31,6 +33,7 @@ import { decodeFrames, fullScalePositive } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 import type { WavHeader } from "./header";
 import type { ByteSource } from "./source";
+import { Resampler } from "./resample";
 import { BwfWriter } from "./writer";
 
 export type ChannelMode = "both" | "sum" | "difference" | "left" | "right";
@@ -61,6 +64,8 @@ export interface RenderOptions {
   channelMode?: ChannelMode;
   /** Default 24-bit PCM. */
   output?: SampleEncoding;
+  /** Sample rate of the access copy; default the transfer's (then nothing is resampled). */
+  outputSampleRateHz?: number;
   /** Peak ceiling in dBFS (≤ 0). Default 0: the trim only prevents clipping. */
   ceilingDbfs?: number;
   /** Frames per read; default a multiple of the convolver's block near 64k frames. */
@@ -218,9 +223,13 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
   const spillPath = `${opts.outputPath}.filtered`;
   const spill = await open(spillPath, "w");
   let peak = 0;
+  const outRate = opts.outputSampleRateHz ?? header.sampleRateHz;
+  const resampler = outRate !== header.sampleRateHz ? await Resampler.create(channelsOut, header.sampleRateHz, outRate, header.frames) : null;
+  const outFrames = resampler ? resampler.expectedFrames : header.frames;
   try {
     let spillAt = 0;
-    await runChain(opts, mode, channelsOut, chunkFrames, async (block) => {
+    const keep = async (block: Float64Array[]) => {
+      if (block[0].length === 0) return;
       const p = peakOf(block);
       if (p > peak) peak = p;
       const frames = block[0].length;
@@ -232,7 +241,9 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       const bytes = new Uint8Array(interleaved.buffer);
       await spill.write(bytes, 0, bytes.length, spillAt);
       spillAt += bytes.length;
-    }, (done) => report((0.8 * done) / total));
+    };
+    await runChain(opts, mode, channelsOut, chunkFrames, (block) => keep(resampler ? resampler.process(block) : block), (done) => report((0.8 * done) / total));
+    if (resampler) await keep(resampler.finish());
     await spill.close();
   } catch (error) {
     await spill.close().catch(() => {});
@@ -263,13 +274,14 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
     `trim ${trimDb.toFixed(2)} dB`,
     CHANNEL_MODE_TEXT[mode],
     "delay-compensated FIR render filter",
+    outRate !== header.sampleRateHz ? `resampled from ${header.sampleRateHz} Hz (libsamplerate, best sinc)` : null,
     output.format === "pcm" ? "TPDF dither" : "float",
   ]
     .filter((s) => s !== null)
     .join("; ");
   const eqLine = formatCodingHistoryLine({
     algorithm: "PCM",
-    samplingHz: header.sampleRateHz,
+    samplingHz: outRate,
     wordLength: output.bitsPerSample,
     mode: modeWord(channelsOut),
     text: eqText,
@@ -281,7 +293,7 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
 
   // Pass 2: trim, dither, write.
   const writer = await BwfWriter.create(opts.outputPath, {
-    sampleRateHz: header.sampleRateHz,
+    sampleRateHz: outRate,
     channels: channelsOut,
     encoding: output,
     bext: { ...opts.bext, codingHistory },
@@ -295,8 +307,8 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       const frameBytes = 8 * channelsOut;
       const blocks = Array.from({ length: channelsOut }, () => new Float64Array(chunkFrames));
       const buffer = new Uint8Array(chunkFrames * frameBytes);
-      for (let start = 0; start < header.frames; start += chunkFrames) {
-        const n = Math.min(chunkFrames, header.frames - start);
+      for (let start = 0; start < outFrames; start += chunkFrames) {
+        const n = Math.min(chunkFrames, outFrames - start);
         await reader.read(buffer, 0, n * frameBytes, start * frameBytes);
         const samples = new Float64Array(buffer.buffer, 0, n * channelsOut);
         for (let c = 0; c < channelsOut; c++) {
@@ -304,7 +316,7 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
           for (let i = 0; i < n; i++) ch[i] = samples[i * channelsOut + c];
         }
         await writer.write(n === chunkFrames ? blocks : blocks.map((b) => b.subarray(0, n)), n, gain);
-        report(0.8 + (0.2 * (start + n)) / total);
+        report(0.8 + (0.2 * (start + n)) / Math.max(1, outFrames));
       }
     } finally {
       await reader.close();

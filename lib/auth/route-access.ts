@@ -56,7 +56,7 @@ export const routeAccess = {
   "GET /api/reviews": "review:decide",
   "GET /api/provenance/verify": "audit:read",
   "GET /api/provenance/events": "audit:read",
-  "GET /api/settings": "audit:read",
+  "GET /api/settings": "lab:enter",
   "PATCH /api/settings": "settings:edit",
   "GET /api/discs/[id]/export": "audit:read",
   "GET /api/accessions/[id]/export": "audit:read",

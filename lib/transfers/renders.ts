@@ -10,12 +10,16 @@ import { RENDER_QUEUE } from "../jobs/boss";
 import { sendInTransaction } from "../jobs/web-boss";
 import { appendEvent } from "../provenance";
 import { s3 } from "../storage/s3";
-import { channelModes } from "../validation/transfers";
+import { getSettings } from "../settings";
+import { accessCopyRates, channelModes } from "../validation/transfers";
 
 export const renderRequestSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),
   channelMode: z.enum(channelModes, { error: "Choose how the channels are used." }).default("both"),
-  bitDepth: z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.").default(24),
+  /** Default: the lab's setting. */
+  bitDepth: z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.").optional(),
+  /** "transfer" keeps the transfer's rate; default: the lab's setting. */
+  sampleRateHz: z.union([z.literal("transfer"), z.coerce.number().refine((v) => (accessCopyRates as readonly number[]).includes(v), `Choose one of ${accessCopyRates.join(", ")} Hz.`)]).optional(),
 });
 
 /**
@@ -29,15 +33,19 @@ export async function requestRender(actor: SessionUser, input: unknown) {
     if (!side) throw new AppError("not_found", 404, "No such side.");
     if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
     if (side.status !== "transferred" && side.status !== "rendered") throw new AppError("conflict", 409, "Render needs an accepted transfer and a chosen curve first.");
-    const transfer = await trx.selectFrom("transfers").select(["id", "channels", "sha256"]).where("side_id", "=", side.id).orderBy("created_at", "desc").limit(1).executeTakeFirst();
+    const transfer = await trx.selectFrom("transfers").select(["id", "channels", "sha256", "sample_rate_hz"]).where("side_id", "=", side.id).orderBy("created_at", "desc").limit(1).executeTakeFirst();
     const choice = await trx.selectFrom("curve_choices").select(["id"]).where("side_id", "=", side.id).orderBy("chosen_at", "desc").limit(1).executeTakeFirst();
     if (!transfer || !choice) throw new AppError("conflict", 409, "Render needs an accepted transfer and a chosen curve first.");
     if (r.channelMode !== "both" && transfer.channels !== 2) throw new AppError("invalid", 422, "That channel choice needs a stereo transfer; this one is mono.", { channelMode: ["Needs a stereo transfer."] });
     const busy = await trx.selectFrom("renders").select("id").where("side_id", "=", side.id).where("status", "in", ["queued", "running"]).executeTakeFirst();
     if (busy) throw new AppError("conflict", 409, "A render of this side is already queued or running.");
+    const lab = await getSettings();
+    const bitDepth = r.bitDepth ?? lab.accessCopyBitDepth;
+    const rateChoice = r.sampleRateHz ?? lab.accessCopyRateHz;
+    const sampleRateHz = rateChoice === "transfer" ? transfer.sample_rate_hz : rateChoice;
     const row = await trx
       .insertInto("renders")
-      .values({ side_id: side.id, transfer_id: transfer.id, curve_choice_id: choice.id, channel_mode: r.channelMode, bit_depth: r.bitDepth, requested_by: actor.id })
+      .values({ side_id: side.id, transfer_id: transfer.id, curve_choice_id: choice.id, channel_mode: r.channelMode, bit_depth: bitDepth, sample_rate_hz: sampleRateHz, requested_by: actor.id })
       .returning("id")
       .executeTakeFirstOrThrow();
     await sendInTransaction(trx, RENDER_QUEUE, { renderId: row.id });
@@ -47,7 +55,7 @@ export async function requestRender(actor: SessionUser, input: unknown) {
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, renderId: row.id, transferId: transfer.id, curveChoiceId: choice.id, channelMode: r.channelMode, bitDepth: r.bitDepth },
+      payload: { side: side.designation, renderId: row.id, transferId: transfer.id, curveChoiceId: choice.id, channelMode: r.channelMode, bitDepth, sampleRateHz },
     });
     return { renderId: row.id };
   });
@@ -63,6 +71,7 @@ export async function listRenders(sideId: string) {
       "r.progress",
       "r.channel_mode as channelMode",
       "r.bit_depth as bitDepth",
+      "r.sample_rate_hz as sampleRateHz",
       "r.sha256",
       "r.bytes",
       "r.trim_db as trimDb",

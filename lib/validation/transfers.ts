@@ -28,6 +28,9 @@ export const curveChoiceSchema = z
   .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), { path: ["presetVersion"], message: "Name the preset's version with the preset." })
   .refine((v) => v.presetId !== undefined || Object.keys(v.overrides).length > 0, { path: ["presetId"], message: "Choose a preset or give the curve's values." });
 
+/** Rates an access copy may be written at besides the transfer's own ("transfer"). */
+export const accessCopyRates = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000] as const;
+
 export const channelModes = ["both", "sum", "difference", "left", "right"] as const;
 export const channelModeLabels: Record<(typeof channelModes)[number], string> = {
   both: "Keep both channels",

@@ -141,6 +141,27 @@ describe("rendering the access copy", () => {
 const renderAndWait = (sideId: string) => renderFor(cookie, sideId);
 const fixityNow = () => fixityFor(cookie, discId, [sideIds[0]]);
 
+describe("an access copy at the lab's chosen rate", () => {
+  it("resamples when the lab (or the engineer) asks for another rate than the transfer's", async () => {
+    const admin = demoAccounts.find((a) => a.role === "admin")!;
+    const adminCookie = await signInCookie(admin.email, admin.password);
+    expect((await api("/api/settings", { cookie: adminCookie, method: "PATCH", body: { accessCopyRateHz: 48_000 } })).status).toBe(200);
+    expect((await api("/api/settings", { cookie: cookie.engineer, method: "PATCH", body: { accessCopyRateHz: 44_100 } })).status).toBe(403);
+    expect((await api("/api/settings", { cookie: cookie.engineer })).body.accessCopyRateHz).toBe(48_000);
+    try {
+      const r = await renderAndWait(sideIds[0]);
+      const link = await fetch(`${appUrl}/api/renders/${r.id}/download`, { headers: { cookie: cookie.curator }, redirect: "manual" });
+      const file = new Uint8Array(await (await fetch(link.headers.get("location")!)).arrayBuffer());
+      const header = await readWavHeader(bufferSource(file));
+      // 3 s at 44.1 kHz (132 300 frames) becomes 3 s at 48 kHz.
+      expect(header).toMatchObject({ sampleRateHz: 48_000, frames: 144_000 });
+      expect(header.bext?.codingHistory).toMatch(/F=48000.*resampled from 44100 Hz/s);
+    } finally {
+      await api("/api/settings", { cookie: adminCookie, method: "PATCH", body: { accessCopyRateHz: "transfer" } });
+    }
+  }, 90_000);
+});
+
 describe("review", () => {
   it("returns with a reason, refuses approval by the maker and before fixity, and approves after", async () => {
     const sideA = sideIds[0];

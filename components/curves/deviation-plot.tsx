@@ -7,7 +7,8 @@
 import { scaleLinear, scaleLog } from "d3-scale";
 import { useMemo } from "react";
 import { analogModel, analogResponse, type CurveSpec, describeCurve, logGrid, sosResponse } from "@/lib/curves";
-import { formatHz, formatHzTick, formatSigned } from "./plot-format";
+import { formatHz, formatSigned } from "./plot-format";
+import { SmallPlotGrid } from "./small-plot-grid";
 
 const LOW_HZ = 20;
 const HIGH_HZ = 20_000;
@@ -75,24 +76,7 @@ function MiniPlot({ hz, values, unit, floor, color, title, width = 420, height =
   return (
     <svg viewBox={`0 0 ${width} ${height}`} className="h-auto w-full" role="img" aria-label={title}>
       <g transform={`translate(${m.left},${m.top})`}>
-        <rect width={w} height={h} fill="#fffdf8" stroke="#d9d1bf" />
-        {TICKS.map((t) => (
-          <g key={t}>
-            <line x1={x(t)} x2={x(t)} y2={h} stroke={[100, 1000, 10_000].includes(t) ? "#d3cab5" : "#eee8da"} />
-            <text x={x(t)} y={h + 15} textAnchor="middle" fontSize={10.5} fill="#4a5459" className="font-mono">
-              {formatHzTick(t)}
-            </text>
-          </g>
-        ))}
-        {y.ticks(4).map((t) => (
-          <g key={t} transform={`translate(0,${y(t)})`}>
-            <line x2={w} stroke={t === 0 ? "#9aa1a3" : "#eee8da"} />
-            <text x={-6} dy="0.32em" textAnchor="end" fontSize={10.5} fill="#737c80" className="font-mono">
-              {formatSigned(t, digits)}
-              {unit}
-            </text>
-          </g>
-        ))}
+        <SmallPlotGrid x={x} y={y} width={w} height={h} frequencyTicks={TICKS} digits={digits} unit={unit} strongHz={[100, 1000, 10_000]} />
         <path d={d} fill="none" stroke={color} strokeWidth={1.75} />
       </g>
     </svg>

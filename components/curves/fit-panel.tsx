@@ -23,7 +23,8 @@ import {
   PointsParseError,
   RIAA_SPEC,
 } from "@/lib/curves";
-import { formatHz, formatHzTick, formatNumber, formatSigned } from "./plot-format";
+import { formatHz, formatNumber, formatSigned } from "./plot-format";
+import { SmallPlotGrid } from "./small-plot-grid";
 
 const PARAM_LABEL: Record<FitParameter, string> = {
   turnover: "Turnover",
@@ -279,23 +280,7 @@ function ResidualPlot({ result }: { result: FitResult }) {
       <figcaption className="mb-1 text-xs font-medium text-ink-soft">Residual at each point, table − fitted curve (dB)</figcaption>
       <svg viewBox={`0 0 ${width} ${height}`} className="h-auto w-full" role="img" aria-label={`Residuals of the fit, RMS ${result.rmsDb.toFixed(3)} dB`} data-testid="fit-residual-plot">
         <g transform={`translate(${m.left},${m.top})`}>
-          <rect width={w} height={h} fill="#fffdf8" stroke="#d9d1bf" />
-          {ticks.map((t) => (
-            <g key={t}>
-              <line x1={x(t)} x2={x(t)} y2={h} stroke="#eee8da" />
-              <text x={x(t)} y={h + 15} textAnchor="middle" fontSize={10.5} fill="#4a5459" className="font-mono">
-                {formatHzTick(t)}
-              </text>
-            </g>
-          ))}
-          {y.ticks(4).map((t) => (
-            <g key={t} transform={`translate(0,${y(t)})`}>
-              <line x2={w} stroke={t === 0 ? "#9aa1a3" : "#eee8da"} />
-              <text x={-6} dy="0.32em" textAnchor="end" fontSize={10.5} fill="#737c80" className="font-mono">
-                {formatSigned(t, digits)}
-              </text>
-            </g>
-          ))}
+          <SmallPlotGrid x={x} y={y} width={w} height={h} frequencyTicks={ticks} digits={digits} />
           {result.residuals.map((r, i) => (
             <g key={i}>
               <line x1={x(r.hz)} x2={x(r.hz)} y1={y(0)} y2={y(r.residualDb)} stroke="#a9591a" strokeWidth={1.5} />

@@ -12,6 +12,16 @@
  */
 import { fftFor, nextPowerOfTwo } from "./fft";
 
+/** w ← w·s, bin by bin, for interleaved complex spectra of `bins` bins. */
+function multiplyInPlace(w: Float64Array, s: Float64Array, bins: number): void {
+  for (let k = 0; k < bins; k++) {
+    const re = w[2 * k] * s[2 * k] - w[2 * k + 1] * s[2 * k + 1];
+    const im = w[2 * k] * s[2 * k + 1] + w[2 * k + 1] * s[2 * k];
+    w[2 * k] = re;
+    w[2 * k + 1] = im;
+  }
+}
+
 export class StreamingConvolver {
   readonly tapCount: number;
   readonly fftSize: number;
@@ -75,15 +85,8 @@ export class StreamingConvolver {
     for (let i = 0; i < m; i++) frame[h + i] = input[start + i];
     f.realTransform(this.work, frame);
     f.completeSpectrum(this.work);
-    const w = this.work;
-    const s = this.spectrum;
-    for (let k = 0; k < this.fftSize; k++) {
-      const re = w[2 * k] * s[2 * k] - w[2 * k + 1] * s[2 * k + 1];
-      const im = w[2 * k] * s[2 * k + 1] + w[2 * k + 1] * s[2 * k];
-      w[2 * k] = re;
-      w[2 * k + 1] = im;
-    }
-    f.inverseTransform(this.result, w);
+    multiplyInPlace(this.work, this.spectrum, this.fftSize);
+    f.inverseTransform(this.result, this.work);
     for (let i = 0; i < m; i++) out[start + i] = this.result[2 * (h + i)];
     // Carry the last h inputs of [history | piece].
     if (h > 0) {
@@ -172,15 +175,8 @@ export class PairConvolver {
       frame[2 * (h + i) + 1] = b[start + i];
     }
     f.transform(this.work, frame);
-    const w = this.work;
-    const s = this.spectrum;
-    for (let k = 0; k < this.fftSize; k++) {
-      const re = w[2 * k] * s[2 * k] - w[2 * k + 1] * s[2 * k + 1];
-      const im = w[2 * k] * s[2 * k + 1] + w[2 * k + 1] * s[2 * k];
-      w[2 * k] = re;
-      w[2 * k + 1] = im;
-    }
-    f.inverseTransform(this.result, w);
+    multiplyInPlace(this.work, this.spectrum, this.fftSize);
+    f.inverseTransform(this.result, this.work);
     for (let i = 0; i < m; i++) {
       outA[start + i] = this.result[2 * (h + i)];
       outB[start + i] = this.result[2 * (h + i) + 1];

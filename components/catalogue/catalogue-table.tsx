@@ -1,10 +1,11 @@
 "use client";
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
-import { type ColumnDef, flexRender, getCoreRowModel, type RowSelectionState, type SortingState, useReactTable } from "@tanstack/react-table";
+import { type ColumnDef, getCoreRowModel, type RowSelectionState, type SortingState, useReactTable } from "@tanstack/react-table";
 import Link from "next/link";
 import { usePathname, useRouter, useSearchParams } from "next/navigation";
 import { useCallback, useEffect, useMemo, useState } from "react";
 import { Button } from "@/components/ui/button";
+import { TableView } from "@/components/ui/data-table";
 import { cx } from "@/components/ui/cx";
 import { fetchJson } from "@/lib/http/client";
 import { discFormats, formatLabels, nominalSpeeds, sideStatuses, statusLabels } from "@/lib/validation/catalogue";
@@ -286,56 +287,16 @@ export function CatalogueTable({ canAssign, self }: Props) {
         </span>
       </div>
 
-      <div className="overflow-x-auto rounded-lg border border-paper-edge bg-white">
-        <table className="w-full text-left text-sm" aria-label="Discs" data-testid="catalogue-table" aria-busy={discs.isFetching}>
-          <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
-            {table.getHeaderGroups().map((hg) => (
-              <tr key={hg.id}>
-                {hg.headers.map((h) => {
-                  const sorted = h.column.getIsSorted();
-                  return (
-                    <th key={h.id} scope="col" className={cx("px-3 py-2.5 font-semibold", h.id === "select" && "w-10")} aria-sort={sorted ? (sorted === "desc" ? "descending" : "ascending") : undefined}>
-                      {h.column.getCanSort() ? (
-                        <button type="button" onClick={h.column.getToggleSortingHandler()} className="inline-flex items-center gap-1 uppercase hover:text-ink">
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden className="text-[0.65rem]">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
-                        </button>
-                      ) : (
-                        flexRender(h.column.columnDef.header, h.getContext())
-                      )}
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
-          <tbody>
-            {discs.error ? (
-              <tr>
-                <td colSpan={columns.length} className="px-3 py-6 text-center text-alarm">
-                  {discs.error.message}
-                </td>
-              </tr>
-            ) : table.getRowModel().rows.length === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-3 py-8 text-center text-ink-faint">
-                  {discs.isLoading ? "Loading…" : anyFilter ? "No disc matches these filters." : "No discs catalogued yet."}
-                </td>
-              </tr>
-            ) : (
-              table.getRowModel().rows.map((row, i) => (
-                <tr key={row.id} className={cx("border-t border-paper-edge/70", row.getIsSelected() ? "bg-shellac-wash/40" : i % 2 === 1 && "bg-paper/40")}>
-                  {row.getVisibleCells().map((cell) => (
-                    <td key={cell.id} className="px-3 py-2.5 align-top">
-                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                    </td>
-                  ))}
-                </tr>
-              ))
-            )}
-          </tbody>
-        </table>
-      </div>
+      <TableView
+        table={table}
+        label="Discs"
+        testId="catalogue-table"
+        busy={discs.isFetching}
+        error={discs.error?.message}
+        emptyText={discs.isLoading ? "Loading…" : anyFilter ? "No disc matches these filters." : "No discs catalogued yet."}
+        rowClassName={(row, i) => (row.getIsSelected() ? "bg-shellac-wash/40" : i % 2 === 1 && "bg-paper/40")}
+        headerClassName={(id) => id === "select" && "w-10"}
+      />
 
       <nav aria-label="Pages" className="flex flex-wrap items-center justify-between gap-3 text-sm">
         <div className="flex items-center gap-2">

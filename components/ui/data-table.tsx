@@ -2,6 +2,8 @@
 import {
   type ColumnDef,
   flexRender,
+  type Row,
+  type Table,
   getCoreRowModel,
   getFilteredRowModel,
   getSortedRowModel,
@@ -68,52 +70,84 @@ export function DataTable<T>({
         />
         <span className="text-xs text-ink-faint">{loading ? "Loading…" : `${table.getRowModel().rows.length} of ${data?.length ?? 0}`}</span>
       </div>
-      <div className="overflow-x-auto rounded-lg border border-paper-edge bg-white">
-        <table className="w-full text-left text-sm" aria-label={label} data-testid={testId}>
-          <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
-            {table.getHeaderGroups().map((hg) => (
-              <tr key={hg.id}>
-                {hg.headers.map((h) => {
-                  const sorted = h.column.getIsSorted();
-                  return (
-                    <th key={h.id} scope="col" className="px-3 py-2.5 font-semibold" aria-sort={sorted ? (sorted === "desc" ? "descending" : "ascending") : undefined}>
-                      {h.column.getCanSort() ? (
-                        <button type="button" onClick={h.column.getToggleSortingHandler()} className="inline-flex items-center gap-1 uppercase hover:text-ink">
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden className="text-[0.65rem]">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
-                        </button>
-                      ) : (
-                        flexRender(h.column.columnDef.header, h.getContext())
-                      )}
-                    </th>
-                  );
-                })}
+      <TableView table={table} label={label} testId={testId} error={error} emptyText={loading ? "Loading…" : empty} cellAlign="middle" />
+    </div>
+  );
+}
+
+/**
+ * The table itself, drawn from a TanStack table instance: sortable headers with
+ * aria-sort, an error or empty row, striped rows. Shared by DataTable (sorted and
+ * filtered in the browser) and the catalogue (sorted and paged on the server).
+ */
+export function TableView<T>({
+  table,
+  label,
+  testId,
+  error,
+  emptyText,
+  busy,
+  rowClassName,
+  headerClassName,
+  cellAlign = "top",
+}: {
+  table: Table<T>;
+  label: string;
+  testId?: string;
+  error?: string | null;
+  emptyText: string;
+  busy?: boolean;
+  rowClassName?: (row: Row<T>, index: number) => string | false | undefined;
+  headerClassName?: (columnId: string) => string | false | undefined;
+  cellAlign?: "top" | "middle";
+}) {
+  const columnCount = table.getVisibleLeafColumns().length;
+  return (
+    <div className="overflow-x-auto rounded-lg border border-paper-edge bg-white">
+      <table className="w-full text-left text-sm" aria-label={label} data-testid={testId} aria-busy={busy || undefined}>
+        <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
+          {table.getHeaderGroups().map((hg) => (
+            <tr key={hg.id}>
+              {hg.headers.map((h) => {
+                const sorted = h.column.getIsSorted();
+                return (
+                  <th key={h.id} scope="col" className={cx("px-3 py-2.5 font-semibold", headerClassName?.(h.column.id))} aria-sort={sorted ? (sorted === "desc" ? "descending" : "ascending") : undefined}>
+                    {h.column.getCanSort() ? (
+                      <button type="button" onClick={h.column.getToggleSortingHandler()} className="inline-flex items-center gap-1 uppercase hover:text-ink">
+                        {flexRender(h.column.columnDef.header, h.getContext())}
+                        <span aria-hidden className="text-[0.65rem]">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
+                      </button>
+                    ) : (
+                      flexRender(h.column.columnDef.header, h.getContext())
+                    )}
+                  </th>
+                );
+              })}
+            </tr>
+          ))}
+        </thead>
+        <tbody>
+          {error ? (
+            <tr>
+              <td colSpan={columnCount} className="px-3 py-6 text-center text-alarm">{error}</td>
+            </tr>
+          ) : table.getRowModel().rows.length === 0 ? (
+            <tr>
+              <td colSpan={columnCount} className="px-3 py-8 text-center text-ink-faint">{emptyText}</td>
+            </tr>
+          ) : (
+            table.getRowModel().rows.map((row, i) => (
+              <tr key={row.id} className={cx("border-t border-paper-edge/70", rowClassName ? rowClassName(row, i) : i % 2 === 1 && "bg-paper/40")}>
+                {row.getVisibleCells().map((cell) => (
+                  <td key={cell.id} className={cx("px-3 py-2.5", cellAlign === "middle" ? "align-middle" : "align-top")}>
+                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                  </td>
+                ))}
               </tr>
-            ))}
-          </thead>
-          <tbody>
-            {error ? (
-              <tr>
-                <td colSpan={columns.length} className="px-3 py-6 text-center text-alarm">{error}</td>
-              </tr>
-            ) : table.getRowModel().rows.length === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-3 py-6 text-center text-ink-faint">{loading ? "Loading…" : empty}</td>
-              </tr>
-            ) : (
-              table.getRowModel().rows.map((row, i) => (
-                <tr key={row.id} className={cx("border-t border-paper-edge/70", i % 2 === 1 && "bg-paper/40")}>
-                  {row.getVisibleCells().map((cell) => (
-                    <td key={cell.id} className="px-3 py-2.5 align-middle">
-                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                    </td>
-                  ))}
-                </tr>
-              ))
-            )}
-          </tbody>
-        </table>
-      </div>
+            ))
+          )}
+        </tbody>
+      </table>
     </div>
   );
 }

@@ -141,8 +141,19 @@ export function describeEvent(e: AuditEvent): EventReading {
       return { sentence: `${who} approved ${side}${on}.`, details: p.reason ? [{ label: "Note", value: String(p.reason) }] : [], tone: "good" };
     case "side.returned":
       return { sentence: `${who} returned ${side}${on} to the engineer.`, details: p.reason ? [{ label: "Reason", value: String(p.reason) }] : [], tone: "bad" };
-    case "lab.settings_changed":
-      return { sentence: `${who} changed the fixity cycle from ${p.before?.fixityCycleDays ?? "?"} to ${p.after?.fixityCycleDays ?? "?"} days.`, details: [], tone: "plain" };
+    case "lab.settings_changed": {
+      const names: Record<string, string> = { fixityCycleDays: "fixity cycle (days)", accessCopyRateHz: "access copy rate", accessCopyBitDepth: "access copy word length" };
+      const changes = Object.keys(p.after ?? {}).map((k) => `${names[k] ?? k} from ${String(p.before?.[k] ?? "?")} to ${String(p.after?.[k])}`);
+      return { sentence: `${who} changed the lab's settings: ${changes.join("; ") || "no change"}.`, details: [], tone: "plain" };
+    }
+    case "preset.created":
+      return { sentence: `${who} added the curve preset "${p.name ?? "?"}".`, details: [{ label: "Values", value: curveText(p.after) }, ...(p.changeNote ? [{ label: "Note", value: String(p.changeNote) }] : [])], tone: "plain" };
+    case "preset.versioned":
+      return {
+        sentence: `${who} made version ${p.version ?? "?"} of the curve preset "${p.name ?? "?"}".`,
+        details: [{ label: "Before", value: curveText(p.before?.spec) }, { label: "After", value: curveText(p.after) }, ...(p.changeNote ? [{ label: "Why", value: String(p.changeNote) }] : [])],
+        tone: "plain",
+      };
     case "person.invited":
       return { sentence: `${who} invited ${p.email ?? "someone"}${p.role ? ` as ${p.role}` : ""}.`, details: [], tone: "plain" };
     case "person.invitation_accepted":
@@ -177,5 +188,6 @@ export const kindFilters: { value: string; label: string }[] = [
   { value: "accession.", label: "Accessions received" },
   { value: "import.", label: "Spreadsheet imports" },
   { value: "person.", label: "People and access" },
+  { value: "preset.", label: "Curve presets" },
   { value: "lab.", label: "Lab settings" },
 ];

@@ -4,6 +4,7 @@ import { db } from "../../db";
 import type { CurveSpec } from "../curves";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
+import { appendEvent } from "../provenance";
 import { createPresetSchema, updatePresetSchema } from "../validation/curves";
 import { checkSpec } from "./curve-check";
 
@@ -80,6 +81,7 @@ export async function createPreset(actor: SessionUser | null, input: unknown): P
       .insertInto("curve_preset_versions")
       .values({ preset_id: preset.id, version: 1, name, spec: JSON.stringify(spec), notes, change_note: changeNote, created_by: actor?.id ?? null })
       .execute();
+    await appendEvent(trx, { actorId: actor?.id ?? null, kind: "preset.created", subjectType: "preset", subjectId: preset.id, payload: { name, version: 1, after: spec, notes, changeNote } });
     return preset.id;
   });
   return getPreset(id);
@@ -104,6 +106,13 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
       .values({ preset_id: id, version, name, spec: JSON.stringify(spec), notes: patch.notes ?? current.notes, change_note: patch.changeNote, created_by: actor.id })
       .execute();
     await trx.updateTable("curve_presets").set({ name, current_version: version, updated_at: sql`now()` }).where("id", "=", id).execute();
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "preset.versioned",
+      subjectType: "preset",
+      subjectId: id,
+      payload: { name, version, before: { name: current.name, version: current.version, spec: current.spec }, after: spec, changeNote: patch.changeNote },
+    });
   });
   return getPreset(id);
 }

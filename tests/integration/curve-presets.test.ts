@@ -59,6 +59,10 @@ describe("editing presets", () => {
     expect(versions.body.versions.map((v: { version: number }) => v.version)).toEqual([2, 1]);
     expect(versions.body.versions[1].spec.turnover.value).toBe(500);
     expect(versions.body.versions[0].changeNote).toMatch(/400 Hz/);
+    // Each edit is in the lab's provenance log, with the values before and after.
+    const events = await testDb.selectFrom("provenance_events").select(["kind", "payload"]).where("subject_id", "=", id).orderBy("seq").execute();
+    expect(events.map((e) => e.kind)).toEqual(["preset.created", "preset.versioned"]);
+    expect((events[1].payload as { before: { spec: { turnover: { value: number } } } }).before.spec.turnover.value).toBe(500);
   });
 
   it("requires a change note, and names the parameter of a curve that cannot be built", async () => {

@@ -20,44 +20,9 @@ interface ColumnGuide {
   hint: string;
   required: boolean;
 }
-interface ImportError {
-  row: number;
-  column: string;
-  message: string;
-}
-interface Duplicate {
-  row: number;
-  shelfMark: string;
-  existingDiscId?: string;
-  firstRow?: number;
-}
-interface DiscSummary {
-  row: number;
-  shelfMark: string;
-  accession: string;
-  labelName: string;
-  catalogueNumber: string;
-  format: keyof typeof formatLabels;
-  nominalSpeedRpm: number;
-  sides: string[];
-}
-interface ImportReport {
-  sha256: string;
-  fileName: string;
-  rows: number;
-  discs: number;
-  sides: number;
-  toAdd: DiscSummary[];
-  errors: ImportError[];
-  errorCount: number;
-  duplicates: Duplicate[];
-}
-interface Imported {
-  imported: number;
-  sides: number;
-  rows: number;
-  sha256: string;
-}
+// The answers of the import routes, as lib/catalogue/csv.ts types them (types only: nothing server-side reaches the browser).
+type ImportReport = import("@/lib/catalogue/csv").ImportReport;
+type Imported = Extract<import("@/lib/catalogue/csv").CommitResult, { ok: true }>;
 
 type Phase = "idle" | "checking" | "importing";
 

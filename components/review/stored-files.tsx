@@ -68,15 +68,21 @@ function Sha({ value, testId }: { value: string | null; testId: string }) {
   );
 }
 
+function FileCardHead({ title, href, testId }: { title: string; href: string; testId: string }) {
+  return (
+    <div className="flex flex-wrap items-center justify-between gap-2">
+      <h3 className="font-sans text-sm font-semibold">{title}</h3>
+      <a href={href} className="text-xs font-medium text-shellac-deep underline underline-offset-2" data-testid={testId}>
+        Download
+      </a>
+    </div>
+  );
+}
+
 export function TransferCard({ t, fixity }: { t: TransferJson; fixity: FixityState }) {
   return (
     <article className="rounded-lg border border-paper-edge bg-white p-3" data-testid="review-transfer">
-      <div className="flex flex-wrap items-center justify-between gap-2">
-        <h3 className="font-sans text-sm font-semibold">Flat transfer</h3>
-        <a href={`/api/transfers/${t.id}/download`} className="text-xs font-medium text-shellac-deep underline underline-offset-2" data-testid="review-transfer-download">
-          Download
-        </a>
-      </div>
+      <FileCardHead title="Flat transfer" href={`/api/transfers/${t.id}/download`} testId="review-transfer-download" />
       <p className="break-all font-mono text-xs">{t.fileName}</p>
       <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-xs">
         <Item k="Format" v={`${t.container} · ${t.encoding.toUpperCase()} ${t.bitsPerSample}-bit`} />
@@ -98,16 +104,11 @@ export function RenderCard({ r, fixity, stale }: { r: RenderJson; fixity: Fixity
   const f = (r.filter ?? {}) as RenderFilterJson;
   return (
     <article className="rounded-lg border border-paper-edge bg-white p-3" data-testid="review-render">
-      <div className="flex flex-wrap items-center justify-between gap-2">
-        <h3 className="font-sans text-sm font-semibold">Access copy</h3>
-        <a href={`/api/renders/${r.id}/download`} className="text-xs font-medium text-shellac-deep underline underline-offset-2" data-testid="review-render-download">
-          Download
-        </a>
-      </div>
+      <FileCardHead title="Access copy" href={`/api/renders/${r.id}/download`} testId="review-render-download" />
       {stale ? <p className="mt-1 rounded bg-alarm-wash px-2 py-1 text-xs font-medium text-alarm">{stale}</p> : null}
       <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-xs">
         <Item k="Channels" v={channelModeLabels[r.channelMode] ?? r.channelMode} />
-        <Item k="Word length" v={`${r.bitDepth}-bit`} />
+        <Item k="Word length · rate" v={`${r.bitDepth}-bit${r.sampleRateHz ? ` · ${Number(r.sampleRateHz).toLocaleString("en-GB")} Hz` : ""}`} />
         <Item k="Size" v={r.bytes ? formatBytes(Number(r.bytes)) : "—"} />
         <Item k="Trim · peak" v={`${r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · ${r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}`} />
         <Item k="Filter" v={[f.kind, f.taps ? `${f.taps} taps` : null, f.delaySamples !== undefined ? `delay ${f.delaySamples} samples` : null].filter(Boolean).join(" · ") || "—"} wide />

@@ -22,7 +22,8 @@ export interface StoredObject {
 }
 
 /** Every stored object of the lab (or of one disc), with the checksum recorded when it was stored. */
-export async function storedObjects(db: Kysely<Database>, discId?: string): Promise<StoredObject[]> {
+export async function storedObjects(db: Kysely<Database>, only: { discId?: string; one?: { kind: StoredObjectKind; id: string } } = {}): Promise<StoredObject[]> {
+  const { discId, one } = only;
   let transfers = db
     .selectFrom("transfers as t")
     .innerJoin("sides as s", "s.id", "t.side_id")
@@ -36,7 +37,11 @@ export async function storedObjects(db: Kysely<Database>, discId?: string): Prom
     transfers = transfers.where("s.disc_id", "=", discId);
     renders = renders.where("s.disc_id", "=", discId);
   }
-  const [t, r] = await Promise.all([transfers.execute(), renders.execute()]);
+  if (one) {
+    transfers = transfers.where("t.id", "=", one.id);
+    renders = renders.where("r.id", "=", one.id);
+  }
+  const [t, r] = await Promise.all([!one || one.kind === "transfer" ? transfers.execute() : [], !one || one.kind === "render" ? renders.execute() : []]);
   return [
     ...t.map((x) => ({ kind: "transfer" as const, ...x })),
     ...r.map((x) => ({ kind: "render" as const, id: x.id, key: x.key!, sha256: x.sha256!, sideId: x.sideId, discId: x.discId, storedAt: x.storedAt ?? new Date(0) })),
@@ -66,9 +71,10 @@ export async function fixityCycleDays(db: Kysely<Database>): Promise<number> {
   return Number.isFinite(n) && n > 0 ? n : 30;
 }
 
+/** One stored object by kind and id (a check reads only its own row, not the lab's list). */
 async function findObject(db: Kysely<Database>, kind: StoredObjectKind, id: string): Promise<StoredObject | null> {
-  const all = await storedObjects(db);
-  return all.find((o) => o.kind === kind && o.id === id) ?? null;
+  const [found] = await storedObjects(db, { one: { kind, id } });
+  return found ?? null;
 }
 
 /**

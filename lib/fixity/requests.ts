@@ -14,7 +14,7 @@ export async function requestDiscFixity(input: unknown): Promise<{ queued: numbe
   const disc = await db.selectFrom("discs").select("id").where("id", "=", discId).executeTakeFirst();
   if (!disc) throw new AppError("not_found", 404, "No such disc.");
   const askedAt = Date.now();
-  const objects = await storedObjects(db, discId);
+  const objects = await storedObjects(db, { discId });
   for (const o of objects) await sendJob(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: `${o.kind}:${o.id}` });
   return { queued: objects.length, askedAt };
 }

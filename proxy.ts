@@ -15,5 +15,5 @@ export async function proxy(req: NextRequest) {
 
 export const config = {
   // Everything but the API (which answers 401 itself), the public auth pages and static files.
-  matcher: ["/((?!api/|_next/|sign-in|invite/|reset|favicon.ico).*)"],
+  matcher: ["/((?!api/|_next/|sign-in|invite/|reset|favicon.ico|icon.svg).*)"],
 };

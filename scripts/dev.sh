@@ -5,5 +5,6 @@ cd "$(dirname "$0")/.."
 source scripts/lib/ensure.sh
 ensure_postgres
 ensure_node_modules
+ensure_native_engine
 export NEXT_TELEMETRY_DISABLED=1
 exec node --import tsx scripts/stack.ts dev

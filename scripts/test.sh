@@ -7,5 +7,6 @@ source scripts/lib/ensure.sh
 ensure_postgres always
 ensure_test_tools
 ensure_node_modules
+ensure_native_engine
 export NEXT_TELEMETRY_DISABLED=1
 exec node --import tsx scripts/stack.ts test "$@"

@@ -113,7 +113,7 @@ export function RenderCard({ r, fixity, stale }: { r: RenderJson; fixity: Fixity
         <Item k="Trim · peak" v={`${r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · ${r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}`} />
         <Item k="Filter" v={[f.kind, f.taps ? `${f.taps} taps` : null, f.delaySamples !== undefined ? `delay ${f.delaySamples} samples` : null].filter(Boolean).join(" · ") || "—"} wide />
         <Item k="Worst error vs the curve" v={f.maxErrorDb !== undefined ? `${formatNumber(f.maxErrorDb, 2)} dB · ${f.maxPhaseErrorDeg !== undefined ? `${formatNumber(f.maxPhaseErrorDeg, 2)}°` : "—"} (20 Hz–20 kHz)` : "—"} wide />
-        {f.software ? <Item k="Software" v={f.software} wide /> : null}
+        {f.software ? <Item k="Software" v={[f.software, f.engine ? `${f.engine} engine` : null].filter(Boolean).join(" · ")} wide /> : null}
         <Item k="Rendered" v={`for ${r.requestedBy} · ${r.finishedAt ? when(r.finishedAt) : "—"}`} wide />
       </dl>
       <Sha value={r.sha256} testId="review-render-sha256" />

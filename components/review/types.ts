@@ -42,4 +42,6 @@ export interface RenderFilterJson {
   maxErrorDb?: number;
   maxPhaseErrorDeg?: number;
   software?: string;
+  /** The implementation that ran the render's arithmetic, e.g. "native (fftw-3.3.10-sse2-avx)". */
+  engine?: string;
 }

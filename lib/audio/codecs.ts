@@ -37,36 +37,22 @@ export function seededRandom(seed: number): () => number {
 
 /** TPDF dither in LSB, on the open interval (−1, 1). */
 export class TpdfDither {
-  // mulberry32's state, stepped inline (the same sequence as seededRandom(seed)):
-  // a closure call per draw made dither the slowest step of a render.
-  private state: number;
+  /**
+   * mulberry32's state (the same sequence as seededRandom(seed)), in a typed array so
+   * the native encoder (lib/audio/dsp.ts) steps the very same generator.
+   */
+  readonly state: Uint32Array;
   constructor(seed = 0x5eed) {
-    this.state = seed >>> 0;
+    this.state = Uint32Array.of(seed >>> 0);
   }
   private draw(): number {
-    this.state = (this.state + 0x6d2b79f5) >>> 0;
-    const a = this.state;
+    const a = (this.state[0] = (this.state[0] + 0x6d2b79f5) >>> 0);
     let t = Math.imul(a ^ (a >>> 15), a | 1);
     t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
     return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
   }
   next(): number {
     return this.draw() - this.draw();
-  }
-  /** Fills `out[0…n)` with dither values, the same as n calls of next(). */
-  fill(out: Float64Array, n = out.length): void {
-    let s = this.state;
-    for (let i = 0; i < n; i++) {
-      s = (s + 0x6d2b79f5) >>> 0;
-      let t = Math.imul(s ^ (s >>> 15), s | 1);
-      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-      const r1 = ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-      s = (s + 0x6d2b79f5) >>> 0;
-      t = Math.imul(s ^ (s >>> 15), s | 1);
-      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-      out[i] = r1 - ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-    }
-    this.state = s;
   }
 }
 
@@ -76,42 +62,97 @@ function checkEncoding(enc: SampleEncoding): void {
 }
 
 /**
+ * Decode every whole sample in `bytes` into `out` (interleaved, as in the file);
+ * returns how many samples were written. `out` must hold them.
+ */
+export function decodeInterleaved(bytes: Uint8Array, enc: SampleEncoding, out: Float64Array): number {
+  checkEncoding(enc);
+  const width = enc.bitsPerSample / 8;
+  const count = Math.floor(bytes.length / width);
+  if (out.length < count) throw new RangeError("The output array is shorter than the samples to decode.");
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  if (enc.format === "float") {
+    if (width === 4) for (let i = 0; i < count; i++) out[i] = view.getFloat32(4 * i, true);
+    else for (let i = 0; i < count; i++) out[i] = view.getFloat64(8 * i, true);
+  } else if (width === 2) {
+    for (let i = 0; i < count; i++) out[i] = view.getInt16(2 * i, true) / 32768;
+  } else if (width === 3) {
+    for (let i = 0, o = 0; i < count; i++, o += 3) {
+      // Shift the top byte into the sign position, then back: sign-extends the 24-bit value.
+      out[i] = (((bytes[o] | (bytes[o + 1] << 8) | (bytes[o + 2] << 16)) << 8) >> 8) / 8388608;
+    }
+  } else {
+    for (let i = 0; i < count; i++) out[i] = view.getInt32(4 * i, true) / 2147483648;
+  }
+  return count;
+}
+
+/**
  * Decode `frames` interleaved frames from `bytes` into per-channel arrays
  * (`out` is reused when given and long enough).
  */
 export function decodeFrames(bytes: Uint8Array, enc: SampleEncoding, channels: number, out?: Float64Array[]): Float64Array[] {
   checkEncoding(enc);
-  const bytesPer = enc.bitsPerSample / 8;
-  const frames = Math.floor(bytes.length / (bytesPer * channels));
+  const frames = Math.floor(bytes.length / ((enc.bitsPerSample / 8) * channels));
+  const samples = new Float64Array(frames * channels);
+  decodeInterleaved(bytes.subarray(0, frames * channels * (enc.bitsPerSample / 8)), enc, samples);
   const result: Float64Array[] = [];
   for (let c = 0; c < channels; c++) {
     const reuse = out?.[c];
-    result.push(reuse && reuse.length >= frames ? reuse.subarray(0, frames) : new Float64Array(frames));
-  }
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const stride = bytesPer * channels;
-  for (let c = 0; c < channels; c++) {
-    const dst = result[c];
-    let o = c * bytesPer;
-    if (enc.format === "pcm") {
-      if (bytesPer === 2) {
-        for (let i = 0; i < frames; i++, o += stride) dst[i] = view.getInt16(o, true) / 32768;
-      } else if (bytesPer === 3) {
-        for (let i = 0; i < frames; i++, o += stride) {
-          // Shift the top byte into the sign position, then back: sign-extends the 24-bit value.
-          const v = ((bytes[o] | (bytes[o + 1] << 8) | (bytes[o + 2] << 16)) << 8) >> 8;
-          dst[i] = v / 8388608;
-        }
-      } else {
-        for (let i = 0; i < frames; i++, o += stride) dst[i] = view.getInt32(o, true) / 2147483648;
-      }
-    } else if (bytesPer === 4) {
-      for (let i = 0; i < frames; i++, o += stride) dst[i] = view.getFloat32(o, true);
-    } else {
-      for (let i = 0; i < frames; i++, o += stride) dst[i] = view.getFloat64(o, true);
-    }
+    const dst = reuse && reuse.length >= frames ? reuse.subarray(0, frames) : new Float64Array(frames);
+    for (let i = 0, o = c; i < frames; i++, o += channels) dst[i] = samples[o];
+    result.push(dst);
   }
   return result;
+}
+
+/** 1.5·2^52: (v + ROUNDER) − ROUNDER rounds v to the nearest integer, halves to even (|v| < 2^51). */
+const ROUNDER = 6755399441055744;
+
+/**
+ * Integer PCM from interleaved samples: out ← round(sample·gain·2^(bits−1) + dither),
+ * clamped to the codes, little endian. `dither` is a TpdfDither's state (one draw pair
+ * per sample, in order) or null for plain rounding. Returns how many samples clipped.
+ * Rounding is to nearest with halves to even (IEEE 754's own rounding, by adding and
+ * taking away 1.5·2^52), the same sums the native encoder does, so both write the same bytes.
+ */
+export function encodeInterleavedPcm(samples: Float64Array, count: number, gain: number, bitsPerSample: number, dither: Uint32Array | null, out: Uint8Array): number {
+  checkEncoding({ format: "pcm", bitsPerSample });
+  const width = bitsPerSample / 8;
+  if (out.length < count * width) throw new RangeError("The output bytes are too short.");
+  const scale = 2 ** (bitsPerSample - 1);
+  const max = scale - 1;
+  const min = -scale;
+  const k = gain * scale;
+  let clipped = 0;
+  let s = dither ? dither[0] : 0;
+  for (let i = 0, o = 0; i < count; i++, o += width) {
+    let v = samples[i] * k;
+    if (dither) {
+      s = (s + 0x6d2b79f5) >>> 0;
+      let t = Math.imul(s ^ (s >>> 15), s | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      const r1 = ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+      s = (s + 0x6d2b79f5) >>> 0;
+      t = Math.imul(s ^ (s >>> 15), s | 1);
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+      v += r1 - ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    }
+    let q = v + ROUNDER - ROUNDER;
+    if (q > max) {
+      q = max;
+      clipped++;
+    } else if (q < min) {
+      q = min;
+      clipped++;
+    }
+    out[o] = q & 0xff;
+    out[o + 1] = (q >> 8) & 0xff;
+    if (width > 2) out[o + 2] = (q >> 16) & 0xff;
+    if (width > 3) out[o + 3] = (q >> 24) & 0xff;
+  }
+  if (dither) dither[0] = s;
+  return clipped;
 }
 
 export interface EncodeOptions {
@@ -131,62 +172,35 @@ export interface EncodeResult {
   clipped: number;
 }
 
+/** Encode interleaved float output (32 or 64-bit IEEE), counting samples beyond full scale. */
+export function encodeInterleavedFloat(samples: Float64Array, count: number, gain: number, bitsPerSample: number): EncodeResult {
+  const width = bitsPerSample / 8;
+  const bytes = new Uint8Array(count * width);
+  const view = new DataView(bytes.buffer);
+  let clipped = 0;
+  for (let i = 0; i < count; i++) {
+    const v = samples[i] * gain;
+    if (v > 1 || v < -1) clipped++;
+    if (width === 4) view.setFloat32(4 * i, v, true);
+    else view.setFloat64(8 * i, v, true);
+  }
+  return { bytes, clipped };
+}
+
 /** Interleave and encode the first `frames` samples of each channel. */
 export function encodeFrames(channels: Float64Array[], enc: SampleEncoding, options: EncodeOptions = {}, frames = channels[0]?.length ?? 0): EncodeResult {
   checkEncoding(enc);
   const n = channels.length;
-  const bytesPer = enc.bitsPerSample / 8;
-  const stride = bytesPer * n;
-  const bytes = new Uint8Array(frames * stride);
-  const view = new DataView(bytes.buffer);
+  const samples = new Float64Array(frames * n);
+  for (let c = 0; c < n; c++) {
+    const src = channels[c];
+    for (let i = 0, o = c; i < frames; i++, o += n) samples[o] = src[i];
+  }
   const gain = options.gain ?? 1;
-  const dither = enc.format === "pcm" ? (options.dither ?? null) : null;
-  let clipped = 0;
-  if (enc.format === "float") {
-    for (let c = 0; c < n; c++) {
-      const src = channels[c];
-      let o = c * bytesPer;
-      for (let i = 0; i < frames; i++, o += stride) {
-        const v = src[i] * gain;
-        if (v > 1 || v < -1) clipped++;
-        if (bytesPer === 4) view.setFloat32(o, v, true);
-        else view.setFloat64(o, v, true);
-      }
-    }
-    return { bytes, clipped };
-  }
-  const scale = 2 ** (enc.bitsPerSample - 1);
-  const max = scale - 1;
-  const min = -scale;
-  const k = gain * scale;
-  // One dither value per sample in file order (frame-major), drawn in a batch.
-  const noise = dither ? new Float64Array(frames * n) : null;
-  if (dither && noise) dither.fill(noise);
-  // Frame-major so one dither stream serves all channels in file order (independent per sample).
-  for (let i = 0, o = 0, d = 0; i < frames; i++) {
-    for (let c = 0; c < n; c++, o += bytesPer, d++) {
-      let v = channels[c][i] * k;
-      if (noise) v += noise[d];
-      let q = Math.round(v);
-      if (q > max) {
-        q = max;
-        clipped++;
-      } else if (q < min) {
-        q = min;
-        clipped++;
-      }
-      if (bytesPer === 2) {
-        bytes[o] = q & 0xff;
-        bytes[o + 1] = (q >> 8) & 0xff;
-      } else if (bytesPer === 3) {
-        bytes[o] = q & 0xff;
-        bytes[o + 1] = (q >> 8) & 0xff;
-        bytes[o + 2] = (q >> 16) & 0xff;
-      } else {
-        view.setInt32(o, q, true);
-      }
-    }
-  }
+  if (enc.format === "float") return encodeInterleavedFloat(samples, samples.length, gain, enc.bitsPerSample);
+  // One dither value per sample in file order (frame-major), so one stream serves all channels.
+  const bytes = new Uint8Array(samples.length * (enc.bitsPerSample / 8));
+  const clipped = encodeInterleavedPcm(samples, samples.length, gain, enc.bitsPerSample, options.dither?.state ?? null, bytes);
   return { bytes, clipped };
 }
 

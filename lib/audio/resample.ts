@@ -21,7 +21,12 @@ export class Resampler {
 
   static async create(channels: number, inputRateHz: number, outputRateHz: number, inputFrames: number): Promise<Resampler> {
     const src = await srcPkg.create(channels, inputRateHz, outputRateHz, { converterType: srcPkg.ConverterType.SRC_SINC_BEST_QUALITY });
-    return new Resampler(src, channels, Math.round((inputFrames * outputRateHz) / inputRateHz));
+    return new Resampler(src, channels, Resampler.expectedFrames(inputFrames, inputRateHz, outputRateHz));
+  }
+
+  /** Frames out for `inputFrames` frames in: round(frames × out/in). */
+  static expectedFrames(inputFrames: number, inputRateHz: number, outputRateHz: number): number {
+    return Math.round((inputFrames * outputRateHz) / inputRateHz);
   }
 
   /** Converts the next block (per-channel arrays of equal length); returns what is ready, per channel. */

@@ -19,13 +19,21 @@
  *
  * Plain WAVE_FORMAT_PCM (not EXTENSIBLE) is written at every word length
  * because Tech 3285 specifies WAVE_FORMAT_PCM for BWF linear PCM.
+ *
+ * When the caller knows the length in advance (`expectedFrames`), the header is
+ * written with its final sizes at once and the file's SHA-256 is computed as it
+ * is written, so nobody has to read the file again to fingerprint it.
  */
+import { createHash } from "node:crypto";
+import type { Hash } from "node:crypto";
 import { open } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
 import { encodeBext } from "./bext";
 import type { BextInput } from "./bext";
-import { encodeFrames, TpdfDither } from "./codecs";
+import { encodeInterleavedFloat, TpdfDither } from "./codecs";
 import type { SampleEncoding } from "./codecs";
+import { defaultDsp } from "./dsp";
+import type { DspEngine } from "./dsp";
 import { WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from "./header";
 
 const U32_MAX = 0xffffffff;
@@ -48,6 +56,15 @@ export interface BwfWriterOptions {
    * 32-bit limit). Tests lower it to exercise the RF64 path on a small file.
    */
   rf64ThresholdBytes?: number;
+  /** Engine of the PCM encoder (lib/audio/dsp.ts); default the native one where built. */
+  dsp?: DspEngine;
+  /**
+   * The number of frames that will be written, when known: the header then carries its
+   * final sizes from the start and close() returns the file's SHA-256.
+   */
+  expectedFrames?: number;
+  /** fsync on close (default true). A temporary file that is copied elsewhere can skip it. */
+  sync?: boolean;
 }
 
 export interface BwfWriteResult {
@@ -58,6 +75,8 @@ export interface BwfWriteResult {
   dataOffset: number;
   dataBytes: number;
   clippedSamples: number;
+  /** SHA-256 of the whole file, when `expectedFrames` was given and met; else null. */
+  sha256: string | null;
 }
 
 function chunkHeader(id: string, size: number): Uint8Array {
@@ -65,6 +84,53 @@ function chunkHeader(id: string, size: number): Uint8Array {
   for (let i = 0; i < 4; i++) b[i] = id.charCodeAt(i);
   new DataView(b.buffer).setUint32(4, size, true);
   return b;
+}
+
+function u32(v: number): Uint8Array {
+  const b = new Uint8Array(4);
+  new DataView(b.buffer).setUint32(0, v, true);
+  return b;
+}
+
+interface Layout {
+  dataSizeAt: number;
+  factAt: number | null;
+  dataOffset: number;
+  blockAlign: number;
+}
+
+/**
+ * The size fields of a file holding `frames` frames, as byte patches: RIFF with
+ * 32-bit sizes, or RF64 (Tech 3306 §4) once the RIFF size passes `threshold`.
+ */
+function sizePatches(layout: Layout, frames: number, threshold: number): { at: number; bytes: Uint8Array }[] {
+  const dataBytes = frames * layout.blockAlign;
+  const riffSize = layout.dataOffset + dataBytes + (dataBytes & 1) - 8;
+  if (riffSize > threshold) {
+    const head = new Uint8Array(12 + 8 + DS64_BODY);
+    const v = new DataView(head.buffer);
+    head.set([0x52, 0x46, 0x36, 0x34], 0); // "RF64"
+    v.setUint32(4, U32_MAX, true);
+    head.set([0x57, 0x41, 0x56, 0x45], 8);
+    head.set([0x64, 0x73, 0x36, 0x34], 12); // "ds64"
+    v.setUint32(16, DS64_BODY, true);
+    v.setBigUint64(20, BigInt(riffSize), true);
+    v.setBigUint64(28, BigInt(dataBytes), true);
+    v.setBigUint64(36, BigInt(frames), true);
+    v.setUint32(44, 0, true); // no table: no other chunk needs a 64-bit size
+    const patches = [
+      { at: 0, bytes: head },
+      { at: layout.dataSizeAt, bytes: u32(U32_MAX) },
+    ];
+    if (layout.factAt !== null) patches.push({ at: layout.factAt, bytes: u32(U32_MAX) });
+    return patches;
+  }
+  const patches = [
+    { at: 4, bytes: u32(riffSize) },
+    { at: layout.dataSizeAt, bytes: u32(dataBytes) },
+  ];
+  if (layout.factAt !== null) patches.push({ at: layout.factAt, bytes: u32(frames) });
+  return patches;
 }
 
 function concat(parts: Uint8Array[]): Uint8Array {
@@ -81,16 +147,19 @@ export class BwfWriter {
   private framesWritten = 0;
   private clipped = 0;
   private position: number;
-  private pending: Uint8Array[] = [];
-  private pendingBytes = 0;
+  /** Encoded bytes waiting to be written: staging[0…staged). Reused, so a render allocates no output buffers. */
+  private staging = new Uint8Array(WRITE_BUFFER_BYTES);
+  private staged = 0;
   private closed = false;
 
   private constructor(
     readonly path: string,
     private readonly handle: FileHandle,
     private readonly options: BwfWriterOptions,
-    private readonly layout: { dataSizeAt: number; factAt: number | null; dataOffset: number; blockAlign: number },
+    private readonly layout: Layout,
     private readonly dither: TpdfDither | null,
+    /** Hash of every byte written so far, in file order; null once that order is broken. */
+    private hash: Hash | null,
   ) {
     this.position = layout.dataOffset;
   }
@@ -133,6 +202,12 @@ export class BwfWriter {
     const dataSizeAt = offset + 4;
     parts.push(chunkHeader("data", 0));
     const header = concat(parts);
+    const layout: Layout = { dataSizeAt, factAt, dataOffset: header.length, blockAlign };
+    const expected = options.expectedFrames;
+    if (expected !== undefined) {
+      if (!Number.isInteger(expected) || expected < 0) throw new RangeError(`Expected frames ${expected} is not a whole number.`);
+      for (const p of sizePatches(layout, expected, options.rf64ThresholdBytes ?? U32_MAX)) header.set(p.bytes, p.at);
+    }
 
     const handle = await open(path, "w");
     try {
@@ -142,7 +217,8 @@ export class BwfWriter {
       throw error;
     }
     const dither = !isFloat && options.dither !== false ? new TpdfDither(options.ditherSeed) : null;
-    return new BwfWriter(path, handle, options, { dataSizeAt, factAt, dataOffset: header.length, blockAlign }, dither);
+    const hash = expected !== undefined ? createHash("sha256").update(header) : null;
+    return new BwfWriter(path, handle, options, layout, dither, hash);
   }
 
   get frames(): number {
@@ -152,10 +228,34 @@ export class BwfWriter {
   /** Encode and append frames (one array per channel; `frames` defaults to their length). */
   async write(channels: Float64Array[], frames = channels[0]?.length ?? 0, gain = 1): Promise<void> {
     if (channels.length !== this.options.channels) throw new RangeError(`Expected ${this.options.channels} channel arrays, got ${channels.length}.`);
-    const { bytes, clipped } = encodeFrames(channels, this.options.encoding, { dither: this.dither, gain }, frames);
-    this.clipped += clipped;
+    const n = channels.length;
+    const samples = new Float64Array(frames * n);
+    for (let c = 0; c < n; c++) {
+      const src = channels[c];
+      for (let i = 0, o = c; i < frames; i++, o += n) samples[o] = src[i];
+    }
+    await this.writeInterleaved(samples, frames, gain);
+  }
+
+  /** Encode and append `frames` interleaved frames, times `gain`, dithered for integer output. */
+  async writeInterleaved(samples: Float64Array, frames: number, gain = 1): Promise<void> {
+    if (this.closed) throw new Error("The writer is closed.");
+    const count = frames * this.options.channels;
+    if (samples.length < count) throw new RangeError(`Expected ${count} samples, got ${samples.length}.`);
+    const { encoding } = this.options;
+    if (encoding.format === "float") {
+      const encoded = encodeInterleavedFloat(samples, count, gain, encoding.bitsPerSample);
+      this.clipped += encoded.clipped;
+      this.framesWritten += frames;
+      await this.append(encoded.bytes);
+      return;
+    }
+    const size = count * (encoding.bitsPerSample / 8);
+    const target = await this.reserve(size);
+    this.clipped += (this.options.dsp ?? defaultDsp()).encodePcm(samples, count, gain, encoding.bitsPerSample, this.dither?.state ?? null, target);
+    this.staged += size;
     this.framesWritten += frames;
-    await this.append(bytes);
+    if (this.staged >= WRITE_BUFFER_BYTES) await this.flush();
   }
 
   /** Append already-encoded interleaved frames in this file's encoding. */
@@ -167,16 +267,25 @@ export class BwfWriter {
 
   private async append(bytes: Uint8Array): Promise<void> {
     if (this.closed) throw new Error("The writer is closed.");
-    this.pending.push(bytes);
-    this.pendingBytes += bytes.length;
-    if (this.pendingBytes >= WRITE_BUFFER_BYTES) await this.flush();
+    (await this.reserve(bytes.length)).set(bytes);
+    this.staged += bytes.length;
+    if (this.staged >= WRITE_BUFFER_BYTES) await this.flush();
+  }
+
+  /** Room for `size` more bytes at the end of the staging buffer (flushing or growing it first). */
+  private async reserve(size: number): Promise<Uint8Array> {
+    if (this.staged + size > this.staging.length) {
+      await this.flush();
+      if (size > this.staging.length) this.staging = new Uint8Array(size);
+    }
+    return this.staging.subarray(this.staged, this.staged + size);
   }
 
   private async flush(): Promise<void> {
-    if (this.pendingBytes === 0) return;
-    const block = this.pending.length === 1 ? this.pending[0] : concat(this.pending);
-    this.pending = [];
-    this.pendingBytes = 0;
+    if (this.staged === 0) return;
+    const block = this.staging.subarray(0, this.staged);
+    this.staged = 0;
+    this.hash?.update(block);
     let done = 0;
     while (done < block.length) {
       const { bytesWritten } = await this.handle.write(block, done, block.length - done, this.position + done);
@@ -194,46 +303,26 @@ export class BwfWriter {
       const pad = dataBytes & 1;
       if (pad) {
         await this.handle.write(new Uint8Array(1), 0, 1, this.position);
+        this.hash?.update(new Uint8Array(1));
         this.position += 1;
       }
       const fileBytes = this.layout.dataOffset + dataBytes + pad;
-      const riffSize = fileBytes - 8;
       const threshold = this.options.rf64ThresholdBytes ?? U32_MAX;
-      const rf64 = riffSize > threshold;
-      const u32 = (v: number) => {
-        const b = new Uint8Array(4);
-        new DataView(b.buffer).setUint32(0, v, true);
-        return b;
-      };
-      if (rf64) {
-        const head = new Uint8Array(12 + 8 + DS64_BODY);
-        const v = new DataView(head.buffer);
-        head.set([0x52, 0x46, 0x36, 0x34], 0); // "RF64"
-        v.setUint32(4, U32_MAX, true);
-        head.set([0x57, 0x41, 0x56, 0x45], 8);
-        head.set([0x64, 0x73, 0x36, 0x34], 12); // "ds64"
-        v.setUint32(16, DS64_BODY, true);
-        v.setBigUint64(20, BigInt(riffSize), true);
-        v.setBigUint64(28, BigInt(dataBytes), true);
-        v.setBigUint64(36, BigInt(this.framesWritten), true);
-        v.setUint32(44, 0, true); // no table: no other chunk needs a 64-bit size
-        await this.handle.write(head, 0, head.length, 0);
-        await this.handle.write(u32(U32_MAX), 0, 4, this.layout.dataSizeAt);
-        if (this.layout.factAt !== null) await this.handle.write(u32(U32_MAX), 0, 4, this.layout.factAt);
-      } else {
-        await this.handle.write(u32(riffSize), 0, 4, 4);
-        await this.handle.write(u32(dataBytes), 0, 4, this.layout.dataSizeAt);
-        if (this.layout.factAt !== null) await this.handle.write(u32(this.framesWritten), 0, 4, this.layout.factAt);
+      // Written with its final sizes already when the expected length was met.
+      if (this.framesWritten !== this.options.expectedFrames) {
+        this.hash = null;
+        for (const p of sizePatches(this.layout, this.framesWritten, threshold)) await this.handle.write(p.bytes, 0, p.bytes.length, p.at);
       }
-      await this.handle.sync();
+      if (this.options.sync !== false) await this.handle.sync();
       return {
         path: this.path,
-        container: rf64 ? "RF64" : "RIFF",
+        container: fileBytes - 8 > threshold ? "RF64" : "RIFF",
         frames: this.framesWritten,
         bytes: fileBytes,
         dataOffset: this.layout.dataOffset,
         dataBytes,
         clippedSamples: this.clipped,
+        sha256: this.hash ? this.hash.digest("hex") : null,
       };
     } finally {
       await this.handle.close();
@@ -244,7 +333,7 @@ export class BwfWriter {
   async abort(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
-    this.pending = [];
+    this.staged = 0;
     await this.handle.close();
   }
 }

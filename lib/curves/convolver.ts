@@ -57,13 +57,18 @@ export class StreamingConvolver {
   /** Filter the next chunk; returns exactly input.length samples. */
   process(input: ArrayLike<number>): Float64Array {
     const out = new Float64Array(input.length);
+    this.processInto(input, input.length, out);
+    return out;
+  }
+
+  /** Filter the next `frames` samples of `input` into `output` (the render's interface, lib/audio/dsp.ts). */
+  processInto(input: ArrayLike<number>, frames: number, output: Float64Array): void {
     let done = 0;
-    while (done < input.length) {
-      const m = Math.min(this.blockSize, input.length - done);
-      this.processPiece(input, done, m, out);
+    while (done < frames) {
+      const m = Math.min(this.blockSize, frames - done);
+      this.processPiece(input, done, m, output);
       done += m;
     }
-    return out;
   }
 
   /** The remaining (taps − 1) samples of ring-out, as if zeros followed the input. */
@@ -123,8 +128,8 @@ export class PairConvolver {
   readonly fftSize: number;
   readonly blockSize: number;
   private readonly spectrum: Float64Array;
-  private readonly historyA: Float64Array;
-  private readonly historyB: Float64Array;
+  /** The last taps − 1 frames, interleaved (left, right, left, …). */
+  private readonly history: Float64Array;
   private readonly frame: Float64Array;
   private readonly work: Float64Array;
   private readonly result: Float64Array;
@@ -140,8 +145,7 @@ export class PairConvolver {
     this.spectrum = new Float64Array(2 * this.fftSize);
     f.realTransform(this.spectrum, padded);
     f.completeSpectrum(this.spectrum);
-    this.historyA = new Float64Array(taps.length - 1);
-    this.historyB = new Float64Array(taps.length - 1);
+    this.history = new Float64Array(2 * (taps.length - 1));
     this.frame = new Float64Array(2 * this.fftSize);
     this.work = new Float64Array(2 * this.fftSize);
     this.result = new Float64Array(2 * this.fftSize);
@@ -150,51 +154,49 @@ export class PairConvolver {
   /** Filters the next chunk of both channels (equal lengths); returns the two outputs. */
   process(a: ArrayLike<number>, b: ArrayLike<number>): [Float64Array, Float64Array] {
     if (a.length !== b.length) throw new RangeError("Both channels must bring the same number of samples.");
-    const outA = new Float64Array(a.length);
-    const outB = new Float64Array(b.length);
-    let done = 0;
-    while (done < a.length) {
-      const m = Math.min(this.blockSize, a.length - done);
-      this.processPiece(a, b, done, m, outA, outB);
-      done += m;
+    const n = a.length;
+    const frames = new Float64Array(2 * n);
+    for (let i = 0; i < n; i++) {
+      frames[2 * i] = a[i];
+      frames[2 * i + 1] = b[i];
+    }
+    this.processInterleaved(frames, n, frames);
+    const outA = new Float64Array(n);
+    const outB = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      outA[i] = frames[2 * i];
+      outB[i] = frames[2 * i + 1];
     }
     return [outA, outB];
   }
 
-  private processPiece(a: ArrayLike<number>, b: ArrayLike<number>, start: number, m: number, outA: Float64Array, outB: Float64Array): void {
-    const h = this.historyA.length;
+  /**
+   * Filters the next `frames` stereo frames, interleaved as in a WAVE file, into
+   * `output` (which may be `input`). An interleaved frame is already the complex
+   * sample this convolver transforms.
+   */
+  processInterleaved(input: Float64Array, frames: number, output: Float64Array): void {
+    let done = 0;
+    while (done < frames) {
+      const m = Math.min(this.blockSize, frames - done);
+      this.processPiece(input.subarray(2 * done, 2 * (done + m)), output.subarray(2 * done, 2 * (done + m)));
+      done += m;
+    }
+  }
+
+  private processPiece(piece: Float64Array, out: Float64Array): void {
+    const h2 = this.history.length;
+    const m2 = piece.length;
     const f = fftFor(this.fftSize);
     const frame = this.frame;
-    frame.fill(0);
-    for (let i = 0; i < h; i++) {
-      frame[2 * i] = this.historyA[i];
-      frame[2 * i + 1] = this.historyB[i];
-    }
-    for (let i = 0; i < m; i++) {
-      frame[2 * (h + i)] = a[start + i];
-      frame[2 * (h + i) + 1] = b[start + i];
-    }
+    frame.set(this.history, 0);
+    frame.set(piece, h2);
+    frame.fill(0, h2 + m2);
+    // The last taps − 1 frames of [history | piece] are the next piece's history.
+    this.history.set(frame.subarray(m2, m2 + h2));
     f.transform(this.work, frame);
     multiplyInPlace(this.work, this.spectrum, this.fftSize);
     f.inverseTransform(this.result, this.work);
-    for (let i = 0; i < m; i++) {
-      outA[start + i] = this.result[2 * (h + i)];
-      outB[start + i] = this.result[2 * (h + i) + 1];
-    }
-    if (h > 0) {
-      if (m >= h) {
-        for (let i = 0; i < h; i++) {
-          this.historyA[i] = a[start + m - h + i];
-          this.historyB[i] = b[start + m - h + i];
-        }
-      } else {
-        this.historyA.copyWithin(0, m);
-        this.historyB.copyWithin(0, m);
-        for (let i = 0; i < m; i++) {
-          this.historyA[h - m + i] = a[start + i];
-          this.historyB[h - m + i] = b[start + i];
-        }
-      }
-    }
+    out.set(this.result.subarray(h2, h2 + m2));
   }
 }

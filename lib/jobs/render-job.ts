@@ -116,6 +116,8 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       sections: iir.sos,
       spec,
       software: softwareName(),
+      // Which implementation of the same arithmetic ran (lib/audio/dsp.ts): native FFTW or JavaScript.
+      engine: result.engine,
     };
     await db.transaction().execute(async (trx) => {
       await trx

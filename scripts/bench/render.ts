@@ -5,11 +5,13 @@
  *   BENCH_MINUTES=120 npx tsx scripts/bench/render.ts
  *
  * Generates a flat transfer (noise + tones) in a temporary folder, renders it
- * through the RIAA render filter with Rillbook's renderer (two passes: peak,
- * then trim and write; 24-bit TPDF-dithered output) in a child process, so the
+ * through the RIAA render filter with Rillbook's renderer (filter, measure the
+ * peak, trim, 24-bit TPDF-dithered output, SHA-256) in a child process, so the
  * peak RSS printed is the render's own, and runs sox's `fir` effect with the
  * same taps single-threaded on the same file (one pass, no peak measurement,
- * no delay compensation) for comparison. All files are removed afterwards.
+ * no delay compensation) for comparison; both pinned to one CPU. Then renders
+ * the file again under a lower ceiling, so that it needs a trim (two passes),
+ * and prints that too. All files are removed afterwards.
  */
 import { spawn, execFile } from "node:child_process";
 import { mkdtemp, rm, stat, writeFile } from "node:fs/promises";
@@ -24,13 +26,13 @@ const RATE_HZ = 96_000;
 const run = promisify(execFile);
 
 
-async function child(input: string, output: string): Promise<void> {
+async function child(input: string, output: string, ceilingDbfs: number): Promise<void> {
   const t0 = performance.now();
   const source = await openFileSource(input);
   const header = await readWavHeader(source);
   const filter = designRenderFilter(RIAA_SPEC, header.sampleRateHz);
   const t1 = performance.now();
-  const result = await renderAccessCopy({ source, header, filter, outputPath: output });
+  const result = await renderAccessCopy({ source, header, filter, outputPath: output, ceilingDbfs });
   const t2 = performance.now();
   await source.close();
   const { readFileSync } = await import("node:fs");
@@ -45,6 +47,7 @@ async function child(input: string, output: string): Promise<void> {
       peakDbfs: result.peakDbfs,
       clippedSamples: result.clippedSamples,
       taps: filter.taps.length,
+      engine: result.engine,
       maxRssKb: process.resourceUsage().maxRSS,
       vmHwmKb: hwm ? Number(hwm[1]) : null,
     }),
@@ -73,11 +76,22 @@ async function generate(path: string, frames: number): Promise<void> {
   await w.close();
 }
 
-function runChild(input: string, output: string): Promise<{ wallMs: number; report: Record<string, number | null> }> {
+/** Both renderers run pinned to one CPU (taskset, util-linux) so "on one core" holds for every thread they start. */
+async function pinnedCommand(): Promise<string[]> {
+  try {
+    await run("taskset", ["-c", "0", "true"]);
+    return ["taskset", "-c", "0"];
+  } catch {
+    return [];
+  }
+}
+
+function runChild(pin: string[], input: string, output: string, ceilingDbfs = 0): Promise<{ wallMs: number; report: Record<string, number | string | null> }> {
   const self = fileURLToPath(import.meta.url);
   const t0 = performance.now();
+  const argv = [...pin, process.execPath, "--import", "tsx", self, "--child", input, output, String(ceilingDbfs)];
   return new Promise((resolve, reject) => {
-    const p = spawn(process.execPath, ["--import", "tsx", self, "--child", input, output], { stdio: ["ignore", "pipe", "inherit"] });
+    const p = spawn(argv[0], argv.slice(1), { stdio: ["ignore", "pipe", "inherit"] });
     let out = "";
     p.stdout.on("data", (d: Buffer) => (out += d.toString()));
     p.on("error", reject);
@@ -107,32 +121,45 @@ async function main(): Promise<void> {
     const filter = designRenderFilter(RIAA_SPEC, RATE_HZ);
     await writeFile(tapsFile, `${Array.from(filter.taps, (v) => v.toPrecision(17)).join("\n")}\n`);
 
-    const { wallMs, report } = await runChild(input, output);
+    const pin = await pinnedCommand();
+    console.log(pin.length ? "both renders pinned to CPU 0 (taskset -c 0)" : "taskset not found: renders not pinned to one CPU");
+    const { wallMs, report } = await runChild(pin, input, output);
     const samples = frames * 2;
     const renderS = (report.renderMs as number) / 1000;
     const ours = samples / renderS;
     await rm(output, { force: true });
 
     t = performance.now();
-    await run("sox", ["--single-threaded", input, "-b", "24", soxOut, "fir", tapsFile], { maxBuffer: 1 << 20 });
+    const soxArgv = [...pin, "sox", "--single-threaded", input, "-b", "24", soxOut, "fir", tapsFile];
+    await run(soxArgv[0], soxArgv.slice(1), { maxBuffer: 1 << 20 });
     const soxS = (performance.now() - t) / 1000;
     const theirs = samples / soxS;
     await rm(soxOut, { force: true });
 
     const audioS = frames / RATE_HZ;
-    const mb = (kb: number | null) => (kb === null ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`);
-    console.log(`RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB; clipped ${report.clippedSamples}`);
-    console.log(`Rillbook render (filter once into a spill, then trim + dither + write, + SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`);
+    const mb = (kb: number | string | null) => (typeof kb !== "number" ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`);
+    console.log(`RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`);
+    console.log(`Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`);
     console.log(`sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`);
     console.log(`ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)}`);
     console.log(`Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`);
+
+    // The same file with a ceiling 6 dB under its filtered peak: the render needs a trim, so it
+    // filters twice (measure, then write). sox has no such step; its time above is the yardstick.
+    const ceilingDbfs = Math.min(0, Math.floor((report.peakDbfs as number) - 6));
+    const trimmed = await runChild(pin, input, output, ceilingDbfs);
+    await rm(output, { force: true });
+    const trimmedS = (trimmed.report.renderMs as number) / 1000;
+    console.log(
+      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, peak RSS ${mb(trimmed.report.maxRssKb)}`,
+    );
   } finally {
     await rm(dir, { recursive: true, force: true });
   }
 }
 
 if (process.argv[2] === "--child") {
-  child(process.argv[3], process.argv[4]).catch((e) => {
+  child(process.argv[3], process.argv[4], Number(process.argv[5] ?? 0)).catch((e) => {
     console.error(e);
     process.exit(1);
   });

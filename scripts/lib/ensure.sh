@@ -44,3 +44,24 @@ ensure_node_modules() {
     npm ci --no-audit --no-fund --loglevel=error
   fi
 }
+
+ensure_native_engine() {
+  # The render's native engine (native/dsp): a Node-API addon in C over FFTW 3, built
+  # with node-gyp against Node's own headers. Rebuilt when missing or older than its sources.
+  local addon=native/dsp/build/Release/rillbook_dsp.node
+  local missing=()
+  [ -f /usr/include/fftw3.h ] || missing+=(libfftw3-dev)
+  command -v make >/dev/null || missing+=(make)
+  command -v g++ >/dev/null || missing+=(g++)
+  command -v python3 >/dev/null || missing+=(python3)
+  if [ ${#missing[@]} -gt 0 ]; then apt_install "${missing[@]}"; fi
+  if [ ! -f "$addon" ] || [ -n "$(find native/dsp/src native/dsp/binding.gyp -newer "$addon" 2>/dev/null | head -n 1)" ]; then
+    echo "[rillbook] building the native render engine (node-gyp, FFTW 3)"
+    local nodedir=()
+    # Node's headers as installed with Node itself, so node-gyp needs no download.
+    if [ -f "$(dirname "$(dirname "$(command -v node)")")/include/node/node_api.h" ]; then
+      nodedir=(--nodedir="$(dirname "$(dirname "$(command -v node)")")")
+    fi
+    npx --no-install node-gyp rebuild --directory native/dsp "${nodedir[@]}" --loglevel=error >/dev/null
+  fi
+}

@@ -1,3 +1,4 @@
+import { createHash } from "node:crypto";
 import { mkdtemp, readFile, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -88,6 +89,37 @@ describe("BwfWriter", () => {
     expect(h.container).toBe("RF64");
     expect(vb.getUint32(h.dataOffset - 4, true)).toBe(0xffffffff);
     expect(a.subarray(h.dataOffset)).toEqual(b.subarray(h.dataOffset));
+  });
+
+  it("with the length known in advance, writes the final header at once and hashes the file as it writes", async () => {
+    const values = testSignal(1001, 1, 3, 0.5);
+    const cases = [
+      { name: "known.wav", expectedFrames: 1001, threshold: undefined },
+      { name: "known-rf64.wav", expectedFrames: 1001, threshold: 2000 },
+      { name: "short.wav", expectedFrames: 1200, threshold: undefined },
+      { name: "unknown.wav", expectedFrames: undefined, threshold: undefined },
+    ];
+    const files: Uint8Array[] = [];
+    for (const c of cases) {
+      const path = join(dir, c.name);
+      const w = await BwfWriter.create(path, { sampleRateHz: 48_000, channels: 1, encoding: { format: "pcm", bitsPerSample: 24 }, expectedFrames: c.expectedFrames, rf64ThresholdBytes: c.threshold });
+      await w.write(values.map((v) => v.subarray(0, 500)));
+      await w.write(values.map((v) => v.subarray(500)));
+      const r = await w.close();
+      const bytes = new Uint8Array(await readFile(path));
+      files.push(bytes);
+      // Source: node:crypto over the finished file on disk.
+      const onDisk = createHash("sha256").update(bytes).digest("hex");
+      if (c.expectedFrames === 1001) expect(r.sha256).toBe(onDisk);
+      else expect(r.sha256).toBeNull(); // the header was patched afterwards: the running hash no longer holds
+      const h = await readWavHeader(bufferSource(bytes));
+      expect(h.frames).toBe(1001);
+      expect(h.container).toBe(c.threshold ? "RF64" : "RIFF");
+      expect(r.container).toBe(h.container);
+    }
+    // A length that was not met is patched to the truth: the same file as one written without a length.
+    expect(Buffer.from(files[2]).equals(Buffer.from(files[3]))).toBe(true);
+    expect(Buffer.from(files[0]).equals(Buffer.from(files[3]))).toBe(true);
   });
 
   it("pads an odd-sized data chunk and still reports the true size", async () => {

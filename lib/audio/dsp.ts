@@ -1,0 +1,151 @@
+/**
+ * The render's inner loops, in two engines that compute the same thing:
+ *
+ * - native: native/dsp, a small Node-API addon in C over FFTW 3 (Debian's
+ *   libfftw3, double precision), built by the two commands (scripts/lib/ensure.sh);
+ * - JavaScript: lib/audio/codecs.ts and lib/curves/convolver.ts (fft.js).
+ *
+ * Both decode the same samples, draw the same dither sequence and round the same
+ * way, so they write the same bytes; their filters agree to float64 round-off
+ * (tests/unit/audio-dsp.test.ts holds them to that). The native engine is the
+ * default wherever it has been built; the JavaScript one is the fallback (a
+ * machine without a compiler), several times slower. A render reports which
+ * engine ran, and the render event records it.
+ */
+import { createRequire } from "node:module";
+import { dirname, join } from "node:path";
+import { fileURLToPath } from "node:url";
+import { PairConvolver, StreamingConvolver } from "../curves/convolver";
+import { nextPowerOfTwo } from "../curves/fft";
+import { decodeInterleaved, encodeInterleavedPcm } from "./codecs";
+import type { SampleEncoding } from "./codecs";
+
+/** An FIR filter with state carried across calls, on interleaved frames. */
+export interface FrameFilter {
+  readonly channels: 1 | 2;
+  /** New frames per FFT: feed multiples of this for best speed. */
+  readonly blockSize: number;
+  /** Filter the next `frames` frames of `input` into `output` (may be the same array). */
+  process(input: Float64Array, frames: number, output: Float64Array): void;
+}
+
+export interface DspEngine {
+  /** For the render's report and event, e.g. "native (fftw-3.3.10)". */
+  readonly name: string;
+  /** Interleaved file samples → interleaved float64 (full scale 1.0); returns the sample count. */
+  decode(bytes: Uint8Array, encoding: SampleEncoding, out: Float64Array): number;
+  /** Interleaved float64 → integer PCM with optional TPDF dither state; returns the clipped count. */
+  encodePcm(samples: Float64Array, count: number, gain: number, bitsPerSample: number, dither: Uint32Array | null, out: Uint8Array): number;
+  /** Largest magnitude among the first `count` samples (NaN passed over). */
+  peak(samples: Float64Array, count: number): number;
+  filter(taps: ArrayLike<number>, channels: 1 | 2): FrameFilter;
+}
+
+/** The FFT size both engines use: about 4× the filter (the cheapest per output sample). */
+export function convolverFftSize(tapCount: number): number {
+  return Math.max(256, nextPowerOfTwo(4 * tapCount));
+}
+
+export const jsDsp: DspEngine = {
+  name: "JavaScript (fft.js)",
+  decode: decodeInterleaved,
+  encodePcm: encodeInterleavedPcm,
+  peak(samples, count) {
+    let peak = 0;
+    for (let i = 0; i < count; i++) {
+      const a = Math.abs(samples[i]);
+      if (a > peak) peak = a;
+    }
+    return peak;
+  },
+  filter(taps, channels) {
+    const fftSize = convolverFftSize(taps.length);
+    if (channels === 2) {
+      const pair = new PairConvolver(taps, { fftSize });
+      return { channels, blockSize: pair.blockSize, process: (input, frames, output) => pair.processInterleaved(input, frames, output) };
+    }
+    const single = new StreamingConvolver(taps, { fftSize });
+    return { channels, blockSize: single.blockSize, process: (input, frames, output) => single.processInto(input, frames, output) };
+  },
+};
+
+interface NativeModule {
+  decode(bytes: Uint8Array, bits: number, isFloat: boolean, out: Float64Array): void;
+  encode(samples: Float64Array, count: number, gain: number, bits: number, dither: Uint32Array | null, out: Uint8Array): number;
+  peak(samples: Float64Array, count: number): number;
+  Convolver: new (taps: Float64Array, channels: number, fftSize: number) => { process(input: Float64Array, frames: number, output: Float64Array): void };
+  fftwVersion: string;
+}
+
+/** Where the two commands build the addon, from this file (lib/audio) or the repository root. */
+function addonPaths(): string[] {
+  const rel = join("native", "dsp", "build", "Release", "rillbook_dsp.node");
+  const paths = [join(process.cwd(), rel)];
+  try {
+    paths.unshift(join(dirname(fileURLToPath(import.meta.url)), "..", "..", rel));
+  } catch {
+    // Bundled code has no file URL of its own; the working directory's copy serves.
+  }
+  return paths;
+}
+
+function wrapNative(mod: NativeModule): DspEngine {
+  return {
+    name: `native (${mod.fftwVersion})`,
+    decode(bytes, encoding, out) {
+      const width = encoding.bitsPerSample / 8;
+      mod.decode(bytes, encoding.bitsPerSample, encoding.format === "float", out);
+      return Math.floor(bytes.length / width);
+    },
+    encodePcm(samples, count, gain, bits, dither, out) {
+      return mod.encode(samples, count, gain, bits, dither, out);
+    },
+    peak: (samples, count) => mod.peak(samples, count),
+    filter(taps, channels) {
+      const fftSize = convolverFftSize(taps.length);
+      const conv = new mod.Convolver(Float64Array.from(taps), channels, fftSize);
+      return { channels, blockSize: fftSize - taps.length + 1, process: (input, frames, output) => conv.process(input, frames, output) };
+    },
+  };
+}
+
+let loaded: { engine: DspEngine | null; error: string | null } | null = null;
+
+function load(): { engine: DspEngine | null; error: string | null } {
+  if (loaded) return loaded;
+  const require = createRequire(import.meta.url);
+  const problems: string[] = [];
+  for (const path of addonPaths()) {
+    try {
+      loaded = { engine: wrapNative(require(path) as NativeModule), error: null };
+      return loaded;
+    } catch (error) {
+      problems.push(`${path}: ${(error as Error).message.split("\n")[0]}`);
+    }
+  }
+  loaded = { engine: null, error: `The native render engine is not built (${problems.join("; ")}). Run npm start or npm test to build it.` };
+  return loaded;
+}
+
+/** The native engine, or null when it is not built here. */
+export function nativeDsp(): DspEngine | null {
+  return load().engine;
+}
+
+/** Why the native engine is missing, or null. */
+export function nativeDspProblem(): string | null {
+  return load().error;
+}
+
+let warned = false;
+
+/** The engine a render uses unless told otherwise: native where built, else JavaScript (said once on stderr). */
+export function defaultDsp(): DspEngine {
+  const native = nativeDsp();
+  if (native) return native;
+  if (!warned) {
+    warned = true;
+    console.warn(`[rillbook] ${nativeDspProblem()} Rendering with the slower JavaScript engine.`);
+  }
+  return jsDsp;
+}

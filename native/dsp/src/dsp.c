@@ -1,0 +1,437 @@
+/*
+ * Rillbook's native render kernels: the loops of an access-copy render that
+ * JavaScript runs several times slower than compiled code.
+ *
+ *   decode(bytes, bits, isFloat, out)                 interleaved WAVE data → float64
+ *   encode(samples, count, gain, bits, dither, out)   float64 → interleaved PCM, TPDF dither
+ *   peak(samples, count)                              largest magnitude
+ *   new Convolver(taps, channels, fftSize)            overlap-save FIR filter, state kept
+ *     .process(input, frames, output)                 interleaved float64 in and out
+ *
+ * Each one does exactly what its JavaScript twin in lib/audio does (codecs.ts,
+ * lib/curves/convolver.ts): the same scaling, the same dither sequence and the
+ * same rounding, so the two engines write the same bytes; tests compare them.
+ * The FFTs are FFTW 3 (double precision, Debian's libfftw3), planned with
+ * FFTW_ESTIMATE so a render starts at once.
+ */
+#include <fftw3.h>
+#include <math.h>
+#include <node_api.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define CHECK(call)                                                        \
+  do {                                                                     \
+    if ((call) != napi_ok) {                                               \
+      napi_throw_error(env, NULL, "Rillbook native dsp: N-API call failed"); \
+      return NULL;                                                         \
+    }                                                                      \
+  } while (0)
+
+static napi_value throw_type(napi_env env, const char* message) {
+  napi_throw_type_error(env, NULL, message);
+  return NULL;
+}
+
+static napi_value throw_range(napi_env env, const char* message) {
+  napi_throw_range_error(env, NULL, message);
+  return NULL;
+}
+
+/* 1 when v is a typed array of the wanted kind (its data and length set), else 0. */
+static int typed(napi_env env, napi_value v, napi_typedarray_type want, void** data, size_t* length) {
+  bool is = false;
+  *data = NULL;
+  *length = 0;
+  if (napi_is_typedarray(env, v, &is) != napi_ok || !is) return 0;
+  napi_typedarray_type type;
+  napi_value buffer;
+  size_t offset;
+  if (napi_get_typedarray_info(env, v, &type, length, data, &buffer, &offset) != napi_ok || type != want) {
+    *data = NULL;
+    *length = 0;
+    return 0;
+  }
+  return 1;
+}
+
+static int get_int(napi_env env, napi_value v, int64_t* out) {
+  napi_valuetype t;
+  if (napi_typeof(env, v, &t) != napi_ok || t != napi_number) return 0;
+  return napi_get_value_int64(env, v, out) == napi_ok;
+}
+
+static int get_double(napi_env env, napi_value v, double* out) {
+  napi_valuetype t;
+  if (napi_typeof(env, v, &t) != napi_ok || t != napi_number) return 0;
+  return napi_get_value_double(env, v, out) == napi_ok;
+}
+
+/* ---------------------------------------------------------------- decode */
+
+static napi_value decode(napi_env env, napi_callback_info info) {
+  size_t argc = 4;
+  napi_value argv[4];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  if (argc < 4) return throw_type(env, "decode(bytes, bits, isFloat, out) takes four arguments.");
+  size_t nbytes, nout;
+  uint8_t* b;
+  double* out;
+  int64_t bits;
+  bool is_float;
+  if (!typed(env, argv[0], napi_uint8_array, (void**)&b, &nbytes)) return throw_type(env, "decode: bytes must be a Uint8Array.");
+  if (!typed(env, argv[3], napi_float64_array, (void**)&out, &nout)) return throw_type(env, "decode: out must be a Float64Array.");
+  if (!get_int(env, argv[1], &bits)) return throw_type(env, "decode: bits must be a number.");
+  if (napi_get_value_bool(env, argv[2], &is_float) != napi_ok) return throw_type(env, "decode: isFloat must be a boolean.");
+  int width = (int)(bits / 8);
+  int ok = is_float ? (bits == 32 || bits == 64) : (bits == 16 || bits == 24 || bits == 32);
+  if (!ok) return throw_range(env, "decode: no codec for this word length.");
+  size_t count = nbytes / (size_t)width;
+  if (nout < count) return throw_range(env, "decode: out is shorter than the samples in bytes.");
+  if (is_float && bits == 32) {
+    for (size_t i = 0; i < count; i++) {
+      float f;
+      memcpy(&f, b + 4 * i, 4);
+      out[i] = f;
+    }
+  } else if (is_float) {
+    memcpy(out, b, count * 8);
+  } else if (bits == 16) {
+    for (size_t i = 0; i < count; i++) {
+      int16_t v = (int16_t)(uint16_t)(b[2 * i] | (b[2 * i + 1] << 8));
+      out[i] = v / 32768.0;
+    }
+  } else if (bits == 24) {
+    for (size_t i = 0; i < count; i++) {
+      const uint8_t* p = b + 3 * i;
+      int32_t v = (int32_t)((uint32_t)p[0] << 8 | (uint32_t)p[1] << 16 | (uint32_t)p[2] << 24) >> 8;
+      out[i] = v / 8388608.0;
+    }
+  } else {
+    for (size_t i = 0; i < count; i++) {
+      int32_t v;
+      memcpy(&v, b + 4 * i, 4);
+      out[i] = v / 2147483648.0;
+    }
+  }
+  return NULL;
+}
+
+/* ---------------------------------------------------------------- encode */
+
+/* An AVX2 copy of the hot loop beside the baseline one, chosen at load time (x86-64 only). */
+#if defined(__x86_64__) && defined(__GNUC__)
+#define VECTOR_CLONES __attribute__((target_clones("avx2", "default")))
+#else
+#define VECTOR_CLONES
+#endif
+
+#define GOLDEN 0x6d2b79f5u
+#define BLOCK 512
+/* 1.5 · 2^52: (v + ROUNDER) − ROUNDER is v rounded to the nearest integer, halves to even,
+ * for |v| < 2^51 (IEEE 754 round-to-nearest); the JavaScript encoder does the same sum. */
+#define ROUNDER 6755399441055744.0
+
+/* mulberry32's output for one state; the generator steps its state by GOLDEN per draw,
+ * so draw i of a run is mix32(start + (i + 1)·GOLDEN) and a block can be drawn at once. */
+static inline uint32_t mix32(uint32_t s) {
+  uint32_t t = (s ^ (s >> 15)) * (s | 1u);
+  t ^= t + (t ^ (t >> 7)) * (t | 61u);
+  return t ^ (t >> 14);
+}
+
+/*
+ * One block of samples: dither (two draws per sample, as TpdfDither), gain, rounding,
+ * clamping; returns the clipped count. Written as plain loops over arrays so the
+ * compiler vectorises them.
+ */
+VECTOR_CLONES
+static int64_t quantize_block(const double* x, size_t n, double k, const uint32_t* state, double max, double min, int32_t* q) {
+  double d[BLOCK];
+  int32_t flag[BLOCK];
+  if (state) {
+    const uint32_t st = *state;
+    for (size_t j = 0; j < n; j++) {
+      const uint32_t s1 = st + (uint32_t)(2 * j + 1) * GOLDEN;
+      /* u − 2^31 as a signed integer converts exactly and cheaply; the offsets cancel. */
+      const int32_t a = (int32_t)(mix32(s1) ^ 0x80000000u);
+      const int32_t b = (int32_t)(mix32(s1 + GOLDEN) ^ 0x80000000u);
+      d[j] = ((double)a - (double)b) * 0x1p-32;
+    }
+  } else {
+    memset(d, 0, n * sizeof(double));
+  }
+  for (size_t j = 0; j < n; j++) {
+    double v = x[j] * k;
+    v += d[j];
+    double r = (v + ROUNDER) - ROUNDER;
+    flag[j] = (r > max) | (r < min);
+    r = r > max ? max : r;
+    r = r < min ? min : r;
+    r = v == v ? r : 0.0; /* NaN writes 0, as the JavaScript encoder's `NaN & 0xff` does */
+    q[j] = (int32_t)r;
+  }
+  int64_t clipped = 0;
+  for (size_t j = 0; j < n; j++) clipped += flag[j];
+  return clipped;
+}
+
+static napi_value encode(napi_env env, napi_callback_info info) {
+  size_t argc = 6;
+  napi_value argv[6];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  if (argc < 6) return throw_type(env, "encode(samples, count, gain, bits, dither, out) takes six arguments.");
+  size_t nsamples, nout, nstate = 0;
+  double* s;
+  uint8_t* out;
+  int64_t count, bits;
+  double gain;
+  if (!typed(env, argv[0], napi_float64_array, (void**)&s, &nsamples)) return throw_type(env, "encode: samples must be a Float64Array.");
+  if (!typed(env, argv[5], napi_uint8_array, (void**)&out, &nout)) return throw_type(env, "encode: out must be a Uint8Array.");
+  if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > nsamples) return throw_range(env, "encode: count must be a whole number within the samples.");
+  if (!get_double(env, argv[2], &gain)) return throw_type(env, "encode: gain must be a number.");
+  if (!get_int(env, argv[3], &bits) || (bits != 16 && bits != 24 && bits != 32)) return throw_range(env, "encode: bits must be 16, 24 or 32.");
+  napi_valuetype dt;
+  CHECK(napi_typeof(env, argv[4], &dt));
+  uint32_t* state = NULL;
+  if (dt != napi_null && dt != napi_undefined) {
+    if (!typed(env, argv[4], napi_uint32_array, (void**)&state, &nstate) || nstate < 1) return throw_type(env, "encode: dither must be a Uint32Array holding the generator's state, or null.");
+  }
+  int width = (int)(bits / 8);
+  if (nout < (size_t)count * (size_t)width) return throw_range(env, "encode: out is too short.");
+  const double scale = ldexp(1.0, (int)bits - 1);
+  const double max = scale - 1.0, min = -scale;
+  const double k = gain * scale;
+  int64_t clipped = 0;
+  int32_t q[BLOCK];
+  uint32_t st = state ? state[0] : 0;
+  for (int64_t at = 0; at < count; at += BLOCK) {
+    const size_t n = (size_t)(count - at < BLOCK ? count - at : BLOCK);
+    clipped += quantize_block(s + at, n, k, state ? &st : NULL, max, min, q);
+    st += (uint32_t)(2 * n) * GOLDEN;
+    uint8_t* o = out + (size_t)at * (size_t)width;
+    if (width == 3) {
+      /* Four-byte stores three bytes apart; the last sample of the block by bytes. */
+      for (size_t j = 0; j + 1 < n; j++) memcpy(o + 3 * j, &q[j], 4);
+      const uint32_t u = (uint32_t)q[n - 1];
+      o[3 * (n - 1)] = (uint8_t)u;
+      o[3 * (n - 1) + 1] = (uint8_t)(u >> 8);
+      o[3 * (n - 1) + 2] = (uint8_t)(u >> 16);
+    } else if (width == 2) {
+      for (size_t j = 0; j < n; j++) {
+        const int16_t h = (int16_t)q[j];
+        memcpy(o + 2 * j, &h, 2);
+      }
+    } else {
+      memcpy(o, q, 4 * n);
+    }
+  }
+  if (state) state[0] = st;
+  napi_value result;
+  CHECK(napi_create_int64(env, clipped, &result));
+  return result;
+}
+
+/* ------------------------------------------------------------------ peak */
+
+static napi_value peak(napi_env env, napi_callback_info info) {
+  size_t argc = 2;
+  napi_value argv[2];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  size_t n;
+  double* x;
+  int64_t count;
+  if (argc < 2 || !typed(env, argv[0], napi_float64_array, (void**)&x, &n)) return throw_type(env, "peak(samples, count): samples must be a Float64Array.");
+  if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > n) return throw_range(env, "peak: count must be a whole number within the samples.");
+  /* Largest magnitude; NaN is passed over, as by the JavaScript loop. Four running maxima. */
+  double m[4] = {0, 0, 0, 0};
+  size_t i = 0;
+  for (; i + 4 <= (size_t)count; i += 4) {
+    for (int j = 0; j < 4; j++) {
+      const double a = fabs(x[i + j]);
+      m[j] = a > m[j] ? a : m[j];
+    }
+  }
+  for (; i < (size_t)count; i++) {
+    const double a = fabs(x[i]);
+    m[0] = a > m[0] ? a : m[0];
+  }
+  double best = m[0];
+  for (int j = 1; j < 4; j++) best = m[j] > best ? m[j] : best;
+  napi_value result;
+  CHECK(napi_create_double(env, best, &result));
+  return result;
+}
+
+/* ------------------------------------------------------------- convolver */
+
+typedef struct {
+  int channels;     /* 1: real transforms; 2: left in the real part, right in the imaginary */
+  int taps;
+  int n;            /* FFT size */
+  int hist;         /* taps − 1 frames carried across calls */
+  int block;        /* new frames per transform: n − hist */
+  double* x;        /* time frame: n reals (mono) or n complex (stereo, interleaved) */
+  fftw_complex* X;  /* spectrum work */
+  double* y;        /* filtered frame, same layout as x */
+  fftw_complex* H;  /* the filter's spectrum, scaled by 1/n */
+  fftw_plan forward, backward;
+  double* history;  /* hist frames, interleaved */
+} convolver;
+
+static void convolver_free(napi_env env, void* data, void* hint) {
+  (void)env;
+  (void)hint;
+  convolver* c = data;
+  if (!c) return;
+  if (c->forward) fftw_destroy_plan(c->forward);
+  if (c->backward) fftw_destroy_plan(c->backward);
+  fftw_free(c->x);
+  fftw_free(c->X);
+  fftw_free(c->y);
+  fftw_free(c->H);
+  free(c->history);
+  free(c);
+}
+
+static napi_value convolver_new(napi_env env, napi_callback_info info) {
+  size_t argc = 3;
+  napi_value argv[3], self;
+  CHECK(napi_get_cb_info(env, info, &argc, argv, &self, NULL));
+  if (argc < 3) return throw_type(env, "new Convolver(taps, channels, fftSize) takes three arguments.");
+  size_t ntaps;
+  double* taps;
+  int64_t channels, n;
+  if (!typed(env, argv[0], napi_float64_array, (void**)&taps, &ntaps) || ntaps < 1) return throw_type(env, "Convolver: taps must be a non-empty Float64Array.");
+  if (!get_int(env, argv[1], &channels) || (channels != 1 && channels != 2)) return throw_range(env, "Convolver: channels must be 1 or 2.");
+  if (!get_int(env, argv[2], &n) || n < 2 || n > (1 << 26) || (n & (n - 1)) != 0 || (size_t)n < ntaps) {
+    return throw_range(env, "Convolver: fftSize must be a power of two at least as long as the filter.");
+  }
+  convolver* c = calloc(1, sizeof *c);
+  if (!c) return throw_range(env, "Convolver: out of memory.");
+  c->channels = (int)channels;
+  c->taps = (int)ntaps;
+  c->n = (int)n;
+  c->hist = c->taps - 1;
+  c->block = c->n - c->hist;
+  size_t bins = channels == 2 ? (size_t)n : (size_t)n / 2 + 1;
+  c->x = fftw_alloc_real((size_t)n * (size_t)channels);
+  c->y = fftw_alloc_real((size_t)n * (size_t)channels);
+  c->X = fftw_alloc_complex(bins);
+  c->H = fftw_alloc_complex(bins);
+  c->history = calloc((size_t)(c->hist > 0 ? c->hist : 1) * (size_t)channels, sizeof(double));
+  if (!c->x || !c->y || !c->X || !c->H || !c->history) {
+    convolver_free(env, c, NULL);
+    return throw_range(env, "Convolver: out of memory.");
+  }
+  /* The filter's spectrum, scaled by 1/n so the inverse transform needs no pass of its own. */
+  memset(c->x, 0, sizeof(double) * (size_t)n * (size_t)channels);
+  if (channels == 2) {
+    for (size_t i = 0; i < ntaps; i++) c->x[2 * i] = taps[i];
+    c->forward = fftw_plan_dft_1d((int)n, (fftw_complex*)c->x, c->X, FFTW_FORWARD, FFTW_ESTIMATE);
+    c->backward = fftw_plan_dft_1d((int)n, c->X, (fftw_complex*)c->y, FFTW_BACKWARD, FFTW_ESTIMATE);
+  } else {
+    for (size_t i = 0; i < ntaps; i++) c->x[i] = taps[i];
+    c->forward = fftw_plan_dft_r2c_1d((int)n, c->x, c->X, FFTW_ESTIMATE);
+    c->backward = fftw_plan_dft_c2r_1d((int)n, c->X, c->y, FFTW_ESTIMATE);
+  }
+  if (!c->forward || !c->backward) {
+    convolver_free(env, c, NULL);
+    return throw_range(env, "Convolver: FFTW could not plan this size.");
+  }
+  fftw_execute(c->forward);
+  const double inv = 1.0 / (double)n;
+  for (size_t k = 0; k < bins; k++) {
+    c->H[k][0] = c->X[k][0] * inv;
+    c->H[k][1] = c->X[k][1] * inv;
+  }
+  if (napi_wrap(env, self, c, convolver_free, NULL, NULL) != napi_ok) {
+    convolver_free(env, c, NULL);
+    return throw_range(env, "Convolver: could not attach to its object.");
+  }
+  return self;
+}
+
+/* One transform: frames [history | m new frames | zeros] → m filtered frames. */
+static void convolve_piece(convolver* c, const double* in, size_t m, double* out) {
+  const int ch = c->channels;
+  const size_t h = (size_t)c->hist, n = (size_t)c->n;
+  double* x = c->x;
+  memcpy(x, c->history, h * ch * sizeof(double));
+  memcpy(x + h * ch, in, m * ch * sizeof(double));
+  memset(x + (h + m) * ch, 0, (n - h - m) * ch * sizeof(double));
+  /* The last h frames of [history | piece] are the next call's history. */
+  memcpy(c->history, x + m * ch, h * ch * sizeof(double));
+  fftw_execute(c->forward);
+  const size_t bins = ch == 2 ? n : n / 2 + 1;
+  fftw_complex* X = c->X;
+  const fftw_complex* H = c->H;
+  for (size_t k = 0; k < bins; k++) {
+    const double re = X[k][0] * H[k][0] - X[k][1] * H[k][1];
+    const double im = X[k][0] * H[k][1] + X[k][1] * H[k][0];
+    X[k][0] = re;
+    X[k][1] = im;
+  }
+  fftw_execute(c->backward);
+  memcpy(out, c->y + h * ch, m * ch * sizeof(double));
+}
+
+static napi_value convolver_process(napi_env env, napi_callback_info info) {
+  size_t argc = 3;
+  napi_value argv[3], self;
+  CHECK(napi_get_cb_info(env, info, &argc, argv, &self, NULL));
+  convolver* c;
+  if (napi_unwrap(env, self, (void**)&c) != napi_ok || !c) return throw_type(env, "process: not a Convolver.");
+  if (argc < 3) return throw_type(env, "process(input, frames, output) takes three arguments.");
+  size_t nin, nout;
+  double* in;
+  double* out;
+  int64_t frames;
+  if (!typed(env, argv[0], napi_float64_array, (void**)&in, &nin)) return throw_type(env, "process: input must be a Float64Array.");
+  if (!typed(env, argv[2], napi_float64_array, (void**)&out, &nout)) return throw_type(env, "process: output must be a Float64Array.");
+  if (!get_int(env, argv[1], &frames) || frames < 0) return throw_range(env, "process: frames must be a whole number.");
+  const size_t need = (size_t)frames * (size_t)c->channels;
+  if (nin < need || nout < need) return throw_range(env, "process: input and output must hold frames × channels samples.");
+  size_t done = 0;
+  while (done < (size_t)frames) {
+    size_t m = (size_t)frames - done;
+    if (m > (size_t)c->block) m = (size_t)c->block;
+    convolve_piece(c, in + done * c->channels, m, out + done * c->channels);
+    done += m;
+  }
+  return NULL;
+}
+
+static napi_value convolver_reset(napi_env env, napi_callback_info info) {
+  napi_value self;
+  CHECK(napi_get_cb_info(env, info, NULL, NULL, &self, NULL));
+  convolver* c;
+  if (napi_unwrap(env, self, (void**)&c) != napi_ok || !c) return throw_type(env, "reset: not a Convolver.");
+  memset(c->history, 0, (size_t)(c->hist > 0 ? c->hist : 1) * (size_t)c->channels * sizeof(double));
+  return NULL;
+}
+
+/* ---------------------------------------------------------------- module */
+
+static napi_value init(napi_env env, napi_value exports) {
+  napi_property_descriptor fns[] = {
+      {"decode", NULL, decode, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"encode", NULL, encode, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"peak", NULL, peak, NULL, NULL, NULL, napi_enumerable, NULL},
+  };
+  CHECK(napi_define_properties(env, exports, 3, fns));
+  napi_property_descriptor methods[] = {
+      {"process", NULL, convolver_process, NULL, NULL, NULL, napi_default, NULL},
+      {"reset", NULL, convolver_reset, NULL, NULL, NULL, napi_default, NULL},
+  };
+  napi_value cls;
+  CHECK(napi_define_class(env, "Convolver", NAPI_AUTO_LENGTH, convolver_new, NULL, 2, methods, &cls));
+  CHECK(napi_set_named_property(env, exports, "Convolver", cls));
+  napi_value version;
+  CHECK(napi_create_string_utf8(env, fftw_version, NAPI_AUTO_LENGTH, &version));
+  CHECK(napi_set_named_property(env, exports, "fftwVersion", version));
+  return exports;
+}
+
+NAPI_MODULE(NODE_GYP_MODULE_NAME, init)

@@ -6,7 +6,7 @@
  *   vertical difference / one groove wall) → FIR render filter by overlap-save
  *   (state carried across chunks; stereo frames go through one complex FFT) →
  *   drop the filter's first `delaySamples` outputs so the output lines up sample
- *   for sample with the input → (pass 2) gain trim, TPDF dither, encode → write.
+ *   for sample with the input → gain trim, TPDF dither, encode → write.
  * Samples stay interleaved, as in the files, from end to end. The loops run in
  * the native engine where it is built, else in JavaScript (lib/audio/dsp.ts).
  *
@@ -17,10 +17,12 @@
  * - pass 1 filters, measures the peak and, while the peak stays under the
  *   ceiling, writes the copy at 0 dB trim as it goes. When the whole signal fits
  *   (the usual case for a transfer with headroom) that is the copy: one pass.
- * - Once the peak passes the ceiling, pass 1 stops writing and only measures;
- *   pass 2 then filters again from the transfer (the same arithmetic, so the same
- *   peak) and writes with the trim. Filtering twice costs less than keeping the
- *   filtered signal in a float64 spill file (8 bytes per sample of disk and I/O).
+ * - Once the peak passes the ceiling, pass 1 stops writing and measures on,
+ *   keeping the filtered signal from that point in a float64 working file beside
+ *   the output (8 bytes per sample) when the disk has room. Pass 2 writes with
+ *   the trim: it filters the part before that point again (the same arithmetic,
+ *   so the same samples) and reads the rest back; without room it filters it all
+ *   again, which takes longer but no disk.
  *
  * Either way the copy is exactly what one filtering, one measured trim and one
  * dithered write give. The writer knows the length in advance, so the file's
@@ -34,7 +36,9 @@
  */
 import { createHash } from "node:crypto";
 import { createReadStream } from "node:fs";
-import { unlink } from "node:fs/promises";
+import { open, statfs, unlink } from "node:fs/promises";
+import type { FileHandle } from "node:fs/promises";
+import { dirname } from "node:path";
 import { formatCodingHistoryLine } from "./bext";
 import type { BextInput } from "./bext";
 import { fullScalePositive } from "./codecs";
@@ -91,6 +95,13 @@ export interface RenderOptions {
   rf64ThresholdBytes?: number;
   /** Engine of the inner loops; default the native one where built (lib/audio/dsp.ts). */
   dsp?: DspEngine;
+  /**
+   * When a trim is needed: "auto" (default) keeps the filtered signal from where the peak
+   * passed the ceiling in a float64 working file beside the output, if the disk has room,
+   * so pass 2 reads it back instead of filtering it again; "never" always filters again.
+   * The copy is the same bytes either way.
+   */
+  keepFiltered?: "auto" | "never";
 }
 
 export interface RenderResult {
@@ -109,6 +120,8 @@ export interface RenderResult {
   codingHistory: string;
   /** The engine that ran the inner loops, e.g. "native (fftw-3.3.10)". */
   engine: string;
+  /** With a trim: how pass 2 got its samples, frames filtered again and frames read back. */
+  secondPass: { filteredFrames: number; readBackFrames: number } | null;
 }
 
 const DEFAULT_OUTPUT: SampleEncoding = { format: "pcm", bitsPerSample: 24 };
@@ -154,7 +167,8 @@ function deinterleave(samples: Float64Array, channels: number): Float64Array[] {
 
 /**
  * One pass of the chain; `sink` receives the aligned output in order, interleaved,
- * exactly header.frames frames in all. The array it gets is reused after it returns.
+ * exactly header.frames frames in all, unless it answers `false` (enough: the pass
+ * stops there). The array it gets is reused after it returns.
  */
 async function runChain(
   opts: RenderOptions,
@@ -162,7 +176,7 @@ async function runChain(
   mode: ChannelMode,
   channelsOut: 1 | 2,
   chunkFrames: number,
-  sink: (samples: Float64Array, frames: number) => Promise<void> | void,
+  sink: (samples: Float64Array, frames: number) => Promise<boolean | void> | boolean | void,
   progress: (framesRead: number) => void,
 ): Promise<void> {
   const { header, source } = opts;
@@ -173,12 +187,14 @@ async function runChain(
   const encoding: SampleEncoding = { format: header.format, bitsPerSample: header.bitsPerSample };
   let toDrop = opts.filter.delaySamples;
 
-  const filterAndEmit = async (n: number) => {
+  /** False when the sink has had enough. */
+  const filterAndEmit = async (n: number): Promise<boolean> => {
     if (mode !== "both") mixToMono(mode, decoded, n, mixed);
     filter.process(mixed, n, filtered);
     const drop = Math.min(toDrop, n);
     toDrop -= drop;
-    if (n > drop) await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop);
+    if (n > drop) return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop)) !== false;
+    return true;
   };
 
   // Read ahead: the next chunk is on its way (from the disk or the bucket) while this one is filtered.
@@ -196,14 +212,14 @@ async function runChain(
       throw new RenderError(`The transfer ended early: frame ${start + Math.floor(bytes.length / header.blockAlign)} of ${header.frames} (byte ${header.dataOffset + start * header.blockAlign + bytes.length}).`);
     }
     dsp.decode(bytes, encoding, decoded);
-    await filterAndEmit(n);
+    if (!(await filterAndEmit(n))) return;
     progress(start + n);
   }
   // Ring-out: the last delaySamples outputs depend on input beyond the end, taken as silence.
   for (let left = opts.filter.delaySamples; left > 0; ) {
     const n = Math.min(chunkFrames, left);
     decoded.fill(0, 0, n * header.channels);
-    await filterAndEmit(n);
+    if (!(await filterAndEmit(n))) return;
     left -= n;
   }
 }
@@ -277,24 +293,21 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
     );
   };
 
-  // Progress: one pass is planned; a second one (the trim) doubles the work left. Never goes back.
+  // Progress: one pass is planned; a second one (the trim) adds to the work left. Never goes back.
   const report = opts.onProgress ?? (() => {});
   let shown = 0;
   let passesPlanned = 1;
-  const progress = (pass: number, done: number) => {
-    const fraction = Math.min(1, (pass - 1 + done / Math.max(1, header.frames)) / passesPlanned);
-    if (fraction > shown) report((shown = fraction));
+  const progress = (pass: number, fraction: number) => {
+    const overall = Math.min(1, (pass - 1 + fraction) / passesPlanned);
+    if (overall > shown) report((shown = overall));
   };
 
-  /** Filter the whole transfer; write at `gain` unless (optimistic) the peak passes the limit. */
-  const pass = async (passNumber: number, gain: number, optimistic: boolean) => {
-    const trimDb = toDb(gain);
-    const codingHistory = codingHistoryFor(trimDb);
-    let writer: BwfWriter | null = await BwfWriter.create(opts.outputPath, {
+  const createWriter = (gain: number) =>
+    BwfWriter.create(opts.outputPath, {
       sampleRateHz: outRate,
       channels: channelsOut,
       encoding: output,
-      bext: { ...opts.bext, codingHistory },
+      bext: { ...opts.bext, codingHistory: codingHistoryFor(toDb(gain)) },
       ditherSeed: opts.ditherSeed,
       rf64ThresholdBytes: opts.rf64ThresholdBytes,
       dsp,
@@ -302,73 +315,155 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       // A render's file is a working copy that is stored elsewhere (the bucket) afterwards.
       sync: false,
     });
-    let peak = 0;
-    const keep = async (samples: Float64Array, frames: number) => {
-      if (frames === 0) return;
-      const p = dsp.peak(samples, frames * channelsOut);
-      if (p > peak) peak = p;
-      if (writer && optimistic && peak > limit) {
-        // It needs a trim after all: stop writing, finish measuring, then pass 2.
-        await writer.abort();
-        writer = null;
-        passesPlanned = 2;
-      }
-      if (writer) await writer.writeInterleaved(samples, frames, gain);
-    };
+
+  /** The chain over the transfer, resampled when asked; `sink` as runChain's. */
+  const filtered = async (passNumber: number, sink: (samples: Float64Array, frames: number) => Promise<boolean | void>) => {
     const resampler = resampled ? await Resampler.create(channelsOut, header.sampleRateHz, outRate, header.frames) : null;
+    let more = true;
+    await runChain(
+      opts,
+      dsp,
+      mode,
+      channelsOut,
+      chunkFrames,
+      async (samples, frames) => {
+        if (!resampler) return (more = (await sink(samples, frames)) !== false);
+        const out = interleave(resampler.process(deinterleave(samples.subarray(0, frames * channelsOut), channelsOut)));
+        return (more = (await sink(out, out.length / channelsOut)) !== false);
+      },
+      (done) => progress(passNumber, done / Math.max(1, header.frames)),
+    );
+    if (resampler && more) {
+      const tail = interleave(resampler.finish());
+      await sink(tail, tail.length / channelsOut);
+    }
+  };
+
+  const spillPath = `${opts.outputPath}.filtered`;
+  let spill: { handle: FileHandle; fromFrame: number; bytes: number } | null = null;
+  try {
+    // Pass 1: write at 0 dB while the peak allows; past that, measure (and keep the rest, if there is room).
+    let writer: BwfWriter | null = await createWriter(1);
+    let peak = 0;
+    let emitted = 0;
     try {
-      await runChain(
-        opts,
-        dsp,
-        mode,
-        channelsOut,
-        chunkFrames,
-        (samples, frames) => {
-          if (!resampler) return keep(samples, frames);
-          const out = interleave(resampler.process(deinterleave(samples.subarray(0, frames * channelsOut), channelsOut)));
-          return keep(out, out.length / channelsOut);
-        },
-        (done) => progress(passNumber, done),
-      );
-      if (resampler) {
-        const tail = interleave(resampler.finish());
-        await keep(tail, tail.length / channelsOut);
-      }
-      const written = writer ? await (writer as BwfWriter).close() : null;
-      return { peak, written, codingHistory };
+      await filtered(1, async (samples, frames) => {
+        if (frames === 0) return;
+        const p = dsp.peak(samples, frames * channelsOut);
+        if (p > peak) peak = p;
+        if (writer && peak > limit) {
+          // It needs a trim after all: stop writing, finish measuring, then pass 2.
+          await writer.abort();
+          writer = null;
+          passesPlanned = 2;
+          const need = (outFrames - emitted) * channelsOut * 8;
+          if (opts.keepFiltered !== "never" && (await hasRoom(spillPath, need))) spill = { handle: await open(spillPath, "w+"), fromFrame: emitted, bytes: 0 };
+        }
+        if (writer) await writer.writeInterleaved(samples, frames, 1);
+        else if (spill) {
+          // The filtered samples as they are (float64), so pass 2 need not filter them again.
+          const kept = spill as { handle: FileHandle; bytes: number };
+          try {
+            await kept.handle.write(new Uint8Array(samples.buffer, samples.byteOffset, frames * channelsOut * 8), 0, frames * channelsOut * 8, kept.bytes);
+            kept.bytes += frames * channelsOut * 8;
+          } catch {
+            // The disk filled up after all (something else wrote to it): drop the working file and filter again in pass 2.
+            await kept.handle.close().catch(() => {});
+            await unlink(spillPath).catch(() => {});
+            spill = null;
+          }
+        }
+        emitted += frames;
+      });
     } catch (error) {
       if (writer) await (writer as BwfWriter).abort();
       throw error;
     }
-  };
-
-  try {
-    const first = await pass(1, 1, true);
     let gain = 1;
-    let done = first;
-    if (!first.written) {
-      gain = limit / first.peak;
-      done = await pass(2, gain, false);
-      if (done.peak !== first.peak) throw new RenderError(`The second pass measured a peak of ${done.peak}, the first ${first.peak}: the filter is not deterministic here.`);
+    let written = writer ? await (writer as BwfWriter).close() : null;
+    let secondPass: RenderResult["secondPass"] = null;
+
+    if (!written) {
+      // Pass 2: the trim. Filter again up to where pass 1 began to keep the samples; read the rest back.
+      gain = limit / peak;
+      const keptFrom = spill ? (spill as { fromFrame: number }).fromFrame : outFrames;
+      const second = await createWriter(gain);
+      try {
+        let done = 0;
+        let peak2 = 0;
+        const put = async (samples: Float64Array, frames: number) => {
+          const p = dsp.peak(samples, frames * channelsOut);
+          if (p > peak2) peak2 = p;
+          await second.writeInterleaved(samples, frames, gain);
+          done += frames;
+          progress(2, done / Math.max(1, outFrames));
+        };
+        if (keptFrom > 0) {
+          await filtered(2, async (samples, frames) => {
+            const take = Math.min(frames, keptFrom - done);
+            if (take > 0) await put(samples, take);
+            return done < keptFrom;
+          });
+        }
+        if (spill) {
+          const { handle } = spill as { handle: FileHandle };
+          const buffer = new Float64Array(chunkFrames * channelsOut);
+          const bytes = new Uint8Array(buffer.buffer);
+          for (let at = 0; done < outFrames; ) {
+            const frames = Math.min(chunkFrames, outFrames - done);
+            const { bytesRead } = await handle.read(bytes, 0, frames * channelsOut * 8, at);
+            if (bytesRead !== frames * channelsOut * 8) throw new RenderError(`The render's working file ended early, at byte ${at + bytesRead}.`);
+            at += bytesRead;
+            await put(buffer, frames);
+          }
+        }
+        if (done !== outFrames || peak2 > peak) throw new RenderError(`The second pass gave ${done} frames peaking at ${peak2}; the first ${outFrames} at ${peak}.`);
+        written = await second.close();
+        secondPass = { filteredFrames: keptFrom, readBackFrames: outFrames - keptFrom };
+      } catch (error) {
+        await second.abort();
+        throw error;
+      }
     }
-    const result = done.written!;
-    const sha256 = result.sha256 ?? (await sha256File(opts.outputPath));
-    report(1);
+
+    const sha256 = written.sha256 ?? (await sha256File(opts.outputPath));
+    if (shown < 1) report((shown = 1));
     return {
-      frames: result.frames,
+      frames: written.frames,
       channels: channelsOut,
-      peakDbfs: toDb(first.peak),
-      outputPeakDbfs: toDb(first.peak * gain),
+      peakDbfs: toDb(peak),
+      outputPeakDbfs: toDb(peak * gain),
       trimDb: toDb(gain),
-      clippedSamples: result.clippedSamples,
+      clippedSamples: written.clippedSamples,
       sha256,
-      outputBytes: result.bytes,
-      container: result.container,
-      codingHistory: done.codingHistory,
+      outputBytes: written.bytes,
+      container: written.container,
+      codingHistory: codingHistoryFor(toDb(gain)),
       engine: dsp.name,
+      secondPass,
     };
   } catch (error) {
     await unlink(opts.outputPath).catch(() => {});
     throw error;
+  } finally {
+    if (spill) {
+      await (spill as { handle: FileHandle }).handle.close().catch(() => {});
+      await unlink(spillPath).catch(() => {});
+    }
+  }
+}
+
+/**
+ * Whether the folder of `path` has room for `bytes` more, keeping 5 % of the disk (at least
+ * 256 MiB) free for everything else. Without room the trim's second pass filters again instead.
+ */
+async function hasRoom(path: string, bytes: number): Promise<boolean> {
+  try {
+    const fs = await statfs(dirname(path));
+    const free = Number(fs.bavail) * Number(fs.bsize);
+    const keep = Math.max(256 * 2 ** 20, 0.05 * Number(fs.blocks) * Number(fs.bsize));
+    return free - bytes > keep;
+  } catch {
+    return false;
   }
 }

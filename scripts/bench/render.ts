@@ -48,6 +48,8 @@ async function child(input: string, output: string, ceilingDbfs: number): Promis
       clippedSamples: result.clippedSamples,
       taps: filter.taps.length,
       engine: result.engine,
+      filteredAgain: result.secondPass?.filteredFrames ?? null,
+      readBack: result.secondPass?.readBackFrames ?? null,
       maxRssKb: process.resourceUsage().maxRSS,
       vmHwmKb: hwm ? Number(hwm[1]) : null,
     }),
@@ -151,7 +153,7 @@ async function main(): Promise<void> {
     await rm(output, { force: true });
     const trimmedS = (trimmed.report.renderMs as number) / 1000;
     console.log(
-      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, peak RSS ${mb(trimmed.report.maxRssKb)}`,
+      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, peak RSS ${mb(trimmed.report.maxRssKb)}`,
     );
   } finally {
     await rm(dir, { recursive: true, force: true });

@@ -1,5 +1,5 @@
 import { createHash } from "node:crypto";
-import { mkdtemp, readFile, rm } from "node:fs/promises";
+import { mkdtemp, readdir, readFile, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -137,13 +137,58 @@ describe("renderAccessCopy", () => {
     }
   });
 
+  it("needing a trim, writes the same bytes whether pass 2 reads the kept signal back or filters it all again", async () => {
+    // Quiet for the first 3000 frames, loud after: the peak passes the ceiling part-way through, so
+    // pass 2 filters the first part again and reads the rest back from pass 1's working file.
+    const late = x.map((v) => Float64Array.from(Float32Array.from(v, (s, i) => (i < 3000 ? 0.2 * s : 10 * s))));
+    const lateInput = await writeInput("late-loud.wav", late);
+    const runs: { name: string; r: Awaited<ReturnType<typeof render>>; bytes: Buffer }[] = [];
+    for (const keepFiltered of ["auto", "never"] as const) {
+      for (const chunkFrames of [700, 4096]) {
+        const name = `late-${keepFiltered}-${chunkFrames}.wav`;
+        const seen: number[] = [];
+        const r = await render(lateInput, join(dir, name), { filter, keepFiltered, chunkFrames, onProgress: (f) => seen.push(f) });
+        runs.push({ name, r, bytes: await readFile(join(dir, name)) });
+        // Progress over two passes still only goes forward, and ends at 1.
+        for (let i = 1; i < seen.length; i++) expect(seen[i]).toBeGreaterThan(seen[i - 1]);
+        expect(seen.at(-1)).toBe(1);
+      }
+    }
+    for (const { r } of runs) {
+      expect(r.trimDb).toBeLessThan(-6);
+      expect(r.clippedSamples).toBe(0);
+    }
+    // Kept from the chunk where the peak passed: after frame 2960 (the filter's 40-sample delay), before 3000.
+    const kept = runs[0].r.secondPass!;
+    expect(kept.readBackFrames).toBeGreaterThan(0);
+    expect(kept.filteredFrames).toBeGreaterThan(0);
+    expect(kept.filteredFrames).toBeLessThanOrEqual(2960);
+    expect((kept.filteredFrames + 40) % 700).toBe(0); // chunk boundaries of the output, 40 frames behind the input's
+    expect(kept.filteredFrames + kept.readBackFrames).toBe(frames);
+    expect(runs[2].r.secondPass).toEqual({ filteredFrames: frames, readBackFrames: 0 });
+    for (const run of runs.slice(1)) {
+      expect(run.r.sha256).toBe(runs[0].r.sha256);
+      expect(run.bytes.equals(runs[0].bytes)).toBe(true);
+    }
+    // Source: node:crypto over the file on disk.
+    expect(runs[0].r.sha256).toBe(createHash("sha256").update(runs[0].bytes).digest("hex"));
+    // The working files are gone.
+    expect((await readdir(dir)).filter((f) => f.endsWith(".filtered"))).toEqual([]);
+  });
+
+  it("writes in one pass when the signal fits under the ceiling", async () => {
+    const r = await render(input, join(dir, "fits.wav"), { filter });
+    expect(r.trimDb).toBe(0);
+    expect(r.secondPass).toBeNull();
+  });
+
   it("reports progress up to 1, hashes the file it wrote, and writes the same bytes whatever the chunk size", async () => {
     const seen: number[] = [];
     const a = join(dir, "a.wav");
     const b = join(dir, "b.wav");
     const ra = await render(input, a, { filter, onProgress: (f) => seen.push(f), chunkFrames: 1000 });
     const rb = await render(input, b, { filter, chunkFrames: 4096 });
-    expect(seen.length).toBeGreaterThan(5);
+    expect(seen.length).toBeGreaterThanOrEqual(5); // a report per 1000-frame chunk of 5000
     for (let i = 1; i < seen.length; i++) expect(seen[i]).toBeGreaterThanOrEqual(seen[i - 1]);
     expect(seen.at(-1)).toBe(1);
     const bytes = await readFile(a);

@@ -12,7 +12,6 @@
  * machine without a compiler), several times slower. A render reports which
  * engine ran, and the render event records it.
  */
-import { createRequire } from "node:module";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { PairConvolver, StreamingConvolver } from "../curves/convolver";
@@ -113,11 +112,13 @@ let loaded: { engine: DspEngine | null; error: string | null } | null = null;
 
 function load(): { engine: DspEngine | null; error: string | null } {
   if (loaded) return loaded;
-  const require = createRequire(import.meta.url);
   const problems: string[] = [];
   for (const path of addonPaths()) {
     try {
-      loaded = { engine: wrapNative(require(path) as NativeModule), error: null };
+      // process.dlopen rather than require: the same loading, but no bundler tries to follow the path.
+      const addon = { exports: {} as NativeModule };
+      process.dlopen(addon, path);
+      loaded = { engine: wrapNative(addon.exports), error: null };
       return loaded;
     } catch (error) {
       problems.push(`${path}: ${(error as Error).message.split("\n")[0]}`);

@@ -12,7 +12,8 @@
  * lib/curves/convolver.ts): the same scaling, the same dither sequence and the
  * same rounding, so the two engines write the same bytes; tests compare them.
  * The FFTs are FFTW 3 (double precision, Debian's libfftw3), planned with
- * FFTW_ESTIMATE so a render starts at once.
+ * FFTW_ESTIMATE so a render starts at once. FFTW's planner is not thread-safe:
+ * the render calls this from Node's main thread only.
  */
 #include <fftw3.h>
 #include <math.h>

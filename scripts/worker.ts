@@ -3,6 +3,7 @@
 // claimed under a row lock, and pg-boss hands each job to exactly one worker, retrying
 // it after a crash or a failure.
 import { createDb } from "../db/client";
+import { defaultDsp } from "../lib/audio/dsp";
 import { env } from "../lib/env";
 import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
 import { createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, RENDER_QUEUE } from "../lib/jobs/boss";
@@ -28,7 +29,7 @@ async function mailLoop(): Promise<void> {
 }
 
 async function main(): Promise<void> {
-  console.log(`[worker] started, sending mail through ${new URL(env().SMTP_URL).host}`);
+  console.log(`[worker] started, sending mail through ${new URL(env().SMTP_URL).host}; renders run on the ${defaultDsp().name} engine`);
   await boss.start();
   await createMissingQueues(boss);
   await boss.work<{ renderId: string }>(RENDER_QUEUE, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 1 }, async ([job]) => {

@@ -24,15 +24,20 @@ export interface SampleEncoding {
   bitsPerSample: number;
 }
 
-/** mulberry32: small, fast, good enough statistical quality for dither; deterministic from its seed. */
+/** mulberry32's step: the generator adds this to its 32-bit state before each draw. */
+const MULBERRY_STEP = 0x6d2b79f5;
+
+/** mulberry32's output for a state, as a fraction in [0, 1). Small, fast, good enough for dither. */
+function mulberry32(state: number): number {
+  let t = Math.imul(state ^ (state >>> 15), state | 1);
+  t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+  return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+}
+
+/** mulberry32 as a generator: deterministic from its seed. */
 export function seededRandom(seed: number): () => number {
   let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), a | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return () => mulberry32((a = (a + MULBERRY_STEP) >>> 0));
 }
 
 /** TPDF dither in LSB, on the open interval (−1, 1). */
@@ -46,10 +51,7 @@ export class TpdfDither {
     this.state = Uint32Array.of(seed >>> 0);
   }
   private draw(): number {
-    const a = (this.state[0] = (this.state[0] + 0x6d2b79f5) >>> 0);
-    let t = Math.imul(a ^ (a >>> 15), a | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    return mulberry32((this.state[0] = (this.state[0] + MULBERRY_STEP) >>> 0));
   }
   next(): number {
     return this.draw() - this.draw();
@@ -129,14 +131,8 @@ export function encodeInterleavedPcm(samples: Float64Array, count: number, gain:
   for (let i = 0, o = 0; i < count; i++, o += width) {
     let v = samples[i] * k;
     if (dither) {
-      s = (s + 0x6d2b79f5) >>> 0;
-      let t = Math.imul(s ^ (s >>> 15), s | 1);
-      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-      const r1 = ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-      s = (s + 0x6d2b79f5) >>> 0;
-      t = Math.imul(s ^ (s >>> 15), s | 1);
-      t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-      v += r1 - ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+      const r1 = mulberry32((s = (s + MULBERRY_STEP) >>> 0));
+      v += r1 - mulberry32((s = (s + MULBERRY_STEP) >>> 0));
     }
     let q = v + ROUNDER - ROUNDER;
     if (q > max) {

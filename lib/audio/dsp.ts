@@ -14,8 +14,7 @@
  */
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
-import { PairConvolver, StreamingConvolver } from "../curves/convolver";
-import { nextPowerOfTwo } from "../curves/fft";
+import { convolverSizes, PairConvolver, StreamingConvolver } from "../curves/convolver";
 import { decodeInterleaved, encodeInterleavedPcm } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 
@@ -40,11 +39,6 @@ export interface DspEngine {
   filter(taps: ArrayLike<number>, channels: 1 | 2): FrameFilter;
 }
 
-/** The FFT size both engines use: about 4× the filter (the cheapest per output sample). */
-export function convolverFftSize(tapCount: number): number {
-  return Math.max(256, nextPowerOfTwo(4 * tapCount));
-}
-
 export const jsDsp: DspEngine = {
   name: "JavaScript (fft.js)",
   decode: decodeInterleaved,
@@ -58,12 +52,11 @@ export const jsDsp: DspEngine = {
     return peak;
   },
   filter(taps, channels) {
-    const fftSize = convolverFftSize(taps.length);
     if (channels === 2) {
-      const pair = new PairConvolver(taps, { fftSize });
+      const pair = new PairConvolver(taps);
       return { channels, blockSize: pair.blockSize, process: (input, frames, output) => pair.processInterleaved(input, frames, output) };
     }
-    const single = new StreamingConvolver(taps, { fftSize });
+    const single = new StreamingConvolver(taps);
     return { channels, blockSize: single.blockSize, process: (input, frames, output) => single.processInto(input, frames, output) };
   },
 };
@@ -101,9 +94,9 @@ function wrapNative(mod: NativeModule): DspEngine {
     },
     peak: (samples, count) => mod.peak(samples, count),
     filter(taps, channels) {
-      const fftSize = convolverFftSize(taps.length);
+      const { fftSize, blockSize } = convolverSizes(taps.length);
       const conv = new mod.Convolver(Float64Array.from(taps), channels, fftSize);
-      return { channels, blockSize: fftSize - taps.length + 1, process: (input, frames, output) => conv.process(input, frames, output) };
+      return { channels, blockSize, process: (input, frames, output) => conv.process(input, frames, output) };
     },
   };
 }

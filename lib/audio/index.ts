@@ -14,5 +14,7 @@ export { decodeFrames, encodeFrames, fullScalePositive, seededRandom, TpdfDither
 export type { SampleEncoding, SampleFormat, EncodeOptions, EncodeResult } from "./codecs";
 export { BwfWriter } from "./writer";
 export type { BwfWriterOptions, BwfWriteResult } from "./writer";
-export { renderAccessCopy, RenderError, CHANNEL_MODE_TEXT } from "./render";
-export type { ChannelMode, EqualizationNote, RenderOptions, RenderResult } from "./render";
+export { renderAccessCopy, RenderError } from "./render";
+export type { EqualizationNote, RenderOptions, RenderResult } from "./render";
+export { CHANNEL_MODE_TEXT, mixToMono } from "./channel-mode";
+export type { ChannelMode } from "./channel-mode";

@@ -34,32 +34,22 @@
  * resampled after the equalization (lib/audio/resample.ts: libsamplerate's best sinc
  * converter, its delay compensated), before the peak is measured.
  */
-import { createHash } from "node:crypto";
-import { createReadStream } from "node:fs";
 import { open, statfs, unlink } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
 import { dirname } from "node:path";
 import { formatCodingHistoryLine } from "./bext";
+import { CHANNEL_MODE_TEXT, mixToMono } from "./channel-mode";
+import type { ChannelMode } from "./channel-mode";
 import type { BextInput } from "./bext";
 import { fullScalePositive } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 import type { WavHeader } from "./header";
 import type { ByteSource } from "./source";
+import { convolverSizes } from "../curves/convolver";
 import { defaultDsp } from "./dsp";
 import type { DspEngine } from "./dsp";
 import { Resampler } from "./resample";
 import { BwfWriter } from "./writer";
-
-export type ChannelMode = "both" | "sum" | "difference" | "left" | "right";
-
-/** Words for the coding history and the UI. */
-export const CHANNEL_MODE_TEXT: Record<ChannelMode, string> = {
-  both: "both channels",
-  sum: "lateral (L+R)/2",
-  difference: "vertical (L-R)/2",
-  left: "left groove wall",
-  right: "right groove wall",
-};
 
 export interface EqualizationNote {
   /** The curve as the coding history should record it, e.g. "turnover 318 us; shelf 3180 us; rolloff 75 us; 0 dB at 1000 Hz". */
@@ -141,30 +131,6 @@ function outputChannels(mode: ChannelMode, inputChannels: number): 1 | 2 {
   return mode === "both" ? (inputChannels as 1 | 2) : 1;
 }
 
-/** The channel-mode result of `n` interleaved frames of `input` (stereo) as mono, into `dst`. */
-function mixToMono(mode: Exclude<ChannelMode, "both">, input: Float64Array, n: number, dst: Float64Array): void {
-  if (mode === "sum") for (let i = 0; i < n; i++) dst[i] = 0.5 * (input[2 * i] + input[2 * i + 1]);
-  else if (mode === "difference") for (let i = 0; i < n; i++) dst[i] = 0.5 * (input[2 * i] - input[2 * i + 1]);
-  else for (let i = 0, o = mode === "left" ? 0 : 1; i < n; i++, o += 2) dst[i] = input[o];
-}
-
-function interleave(block: Float64Array[]): Float64Array {
-  const n = block.length;
-  const frames = block[0].length;
-  const out = new Float64Array(frames * n);
-  for (let c = 0; c < n; c++) for (let i = 0, o = c; i < frames; i++, o += n) out[o] = block[c][i];
-  return out;
-}
-
-function deinterleave(samples: Float64Array, channels: number): Float64Array[] {
-  const frames = samples.length / channels;
-  return Array.from({ length: channels }, (_, c) => {
-    const out = new Float64Array(frames);
-    for (let i = 0, o = c; i < frames; i++, o += channels) out[i] = samples[o];
-    return out;
-  });
-}
-
 /**
  * One pass of the chain; `sink` receives the aligned output in order, interleaved,
  * exactly header.frames frames in all, unless it answers `false` (enough: the pass
@@ -232,12 +198,6 @@ function modeWord(channels: number): string {
   return channels === 1 ? "mono" : "stereo";
 }
 
-async function sha256File(path: string): Promise<string> {
-  const hash = createHash("sha256");
-  for await (const chunk of createReadStream(path, { highWaterMark: 1 << 20 })) hash.update(chunk as Buffer);
-  return hash.digest("hex");
-}
-
 /** Render the equalized access copy. See the file comment for the chain. */
 export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResult> {
   const { header, filter } = opts;
@@ -251,7 +211,7 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
   }
   const channelsOut = outputChannels(mode, header.channels);
   const dsp = opts.dsp ?? defaultDsp();
-  const blockSize = dsp.filter(filter.taps, channelsOut).blockSize;
+  const { blockSize } = convolverSizes(filter.taps.length); // the sizes both engines use
   const chunkFrames = opts.chunkFrames ?? Math.max(1, Math.round(TARGET_CHUNK_FRAMES / blockSize)) * blockSize;
   const outRate = opts.outputSampleRateHz ?? header.sampleRateHz;
   const resampled = outRate !== header.sampleRateHz;
@@ -328,13 +288,13 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       chunkFrames,
       async (samples, frames) => {
         if (!resampler) return (more = (await sink(samples, frames)) !== false);
-        const out = interleave(resampler.process(deinterleave(samples.subarray(0, frames * channelsOut), channelsOut)));
+        const out = resampler.process(samples.subarray(0, frames * channelsOut));
         return (more = (await sink(out, out.length / channelsOut)) !== false);
       },
       (done) => progress(passNumber, done / Math.max(1, header.frames)),
     );
     if (resampler && more) {
-      const tail = interleave(resampler.finish());
+      const tail = resampler.finish();
       await sink(tail, tail.length / channelsOut);
     }
   };
@@ -426,7 +386,9 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       }
     }
 
-    const sha256 = written.sha256 ?? (await sha256File(opts.outputPath));
+    // The writer hashed the file as it wrote it; it cannot have, only if the length came out other than planned.
+    if (written.sha256 === null) throw new RenderError(`The access copy has ${written.frames} frames where ${outFrames} were planned.`);
+    const sha256 = written.sha256;
     if (shown < 1) report((shown = 1));
     return {
       frames: written.frames,

@@ -29,40 +29,29 @@ export class Resampler {
     return Math.round((inputFrames * outputRateHz) / inputRateHz);
   }
 
-  /** Converts the next block (per-channel arrays of equal length); returns what is ready, per channel. */
-  process(block: Float64Array[]): Float64Array[] {
-    const n = block[0].length;
-    const interleaved = new Float32Array(n * this.channels);
-    for (let c = 0; c < this.channels; c++) for (let i = 0; i < n; i++) interleaved[i * this.channels + c] = block[c][i];
-    return this.take(this.src.full(interleaved));
+  /** Converts the next block of interleaved frames; returns what is ready, interleaved. */
+  process(samples: Float64Array): Float64Array {
+    return this.take(this.src.full(Float32Array.from(samples)));
   }
 
   /** Flushes the held-back tail with silence; after this the output totals `expectedFrames`. */
-  finish(): Float64Array[] {
-    const parts: Float64Array[][] = [];
+  finish(): Float64Array {
+    const parts: Float64Array[] = [];
     let guard = 0;
     while (this.written < this.expectedFrames && guard++ < 64) parts.push(this.take(this.src.full(new Float32Array(4096 * this.channels))));
     this.src.destroy();
-    return Array.from({ length: this.channels }, (_, c) => {
-      const len = parts.reduce((a, p) => a + p[c].length, 0);
-      const out = new Float64Array(len);
-      let at = 0;
-      for (const p of parts) {
-        out.set(p[c], at);
-        at += p[c].length;
-      }
-      return out;
-    });
+    const out = new Float64Array(parts.reduce((a, p) => a + p.length, 0));
+    let at = 0;
+    for (const p of parts) {
+      out.set(p, at);
+      at += p.length;
+    }
+    return out;
   }
 
-  private take(interleaved: Float32Array): Float64Array[] {
-    const available = interleaved.length / this.channels;
-    const n = Math.max(0, Math.min(available, this.expectedFrames - this.written));
+  private take(interleaved: Float32Array): Float64Array {
+    const n = Math.max(0, Math.min(interleaved.length / this.channels, this.expectedFrames - this.written));
     this.written += n;
-    return Array.from({ length: this.channels }, (_, c) => {
-      const out = new Float64Array(n);
-      for (let i = 0; i < n; i++) out[i] = interleaved[i * this.channels + c];
-      return out;
-    });
+    return Float64Array.from(interleaved.subarray(0, n * this.channels));
   }
 }

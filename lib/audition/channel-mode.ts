@@ -1,4 +1,4 @@
-import type { AuditionChannelMode } from "./transfer-window";
+import type { ChannelMode } from "@/lib/audio/channel-mode";
 
 /**
  * The channel choice a disc's cut suggests for a stereo transfer of a mono disc:
@@ -6,7 +6,7 @@ import type { AuditionChannelMode } from "./transfer-window";
  * phase on both channels (sum them); a vertical (hill-and-dale) cut reads in
  * opposite phase (take the difference). Mono transfers have one channel to keep.
  */
-export function defaultChannelMode(cut: "lateral" | "vertical", channels: number): { mode: AuditionChannelMode; why: string } {
+export function defaultChannelMode(cut: "lateral" | "vertical", channels: number): { mode: ChannelMode; why: string } {
   if (channels !== 2) return { mode: "both", why: "The transfer is mono: its one channel is kept." };
   if (cut === "vertical") {
     return { mode: "difference", why: "Vertical (hill-and-dale) cut: the groove's motion comes out in opposite phase on the two channels, so their difference carries the recording and their sum mostly noise." };

@@ -2,11 +2,10 @@
  * Reading a flat transfer for auditioning: the header, a sparse overview of its
  * levels, and one window of frames decoded with the same codecs the renderer uses.
  */
-import { decodeFrames } from "@/lib/audio/codecs";
+import { mixToMono, type ChannelMode } from "@/lib/audio/channel-mode";
+import { decodeInterleaved } from "@/lib/audio/codecs";
 import { readWavHeader, type WavHeader } from "@/lib/audio/header";
 import { rangeFetch, rangeSource } from "./range-source";
-
-export type AuditionChannelMode = "both" | "sum" | "difference" | "left" | "right";
 
 export interface OpenedTransfer {
   url: string;
@@ -34,9 +33,10 @@ export async function overviewPeaks(t: OpenedTransfer, points = 200, signal?: Ab
       const startFrame = Math.floor((i / points) * Math.max(0, h.frames - stretchFrames));
       const bytes = await rangeFetch(t.url, h.dataOffset + startFrame * h.blockAlign, stretchFrames * h.blockAlign, signal);
       const whole = bytes.subarray(0, Math.floor(bytes.length / h.blockAlign) * h.blockAlign);
-      const ch = decodeFrames(whole, enc, h.channels);
+      const samples = new Float64Array(whole.length / (h.bitsPerSample / 8));
+      decodeInterleaved(whole, enc, samples);
       let peak = 0;
-      for (const c of ch) for (let k = 0; k < c.length; k++) peak = Math.max(peak, Math.abs(c[k]));
+      for (let k = 0; k < samples.length; k++) peak = Math.max(peak, Math.abs(samples[k]));
       peaks[i] = peak > 0 ? 20 * Math.log10(peak) : -120;
     }
   };
@@ -51,27 +51,32 @@ export interface AudioWindow {
   channels: Float32Array[];
 }
 
-/** Same arithmetic as the render's channel choice: lateral (L+R)/2, vertical (L−R)/2. */
-export function applyChannelMode(ch: Float64Array[], mode: AuditionChannelMode): Float32Array[] {
-  const n = ch[0]?.length ?? 0;
-  if (ch.length === 1) return [Float32Array.from(ch[0])];
-  const [l, r] = ch;
-  if (mode === "both") return [Float32Array.from(l), Float32Array.from(r)];
-  if (mode === "left") return [Float32Array.from(l)];
-  if (mode === "right") return [Float32Array.from(r)];
+/** The render's channel choice (lib/audio/channel-mode.ts) on `interleaved` frames, as float32 channels for Web Audio. */
+function applyChannelMode(interleaved: Float64Array, channels: number, mode: ChannelMode): Float32Array[] {
+  const n = interleaved.length / channels;
+  if (channels === 1) return [Float32Array.from(interleaved)];
+  if (mode === "both") {
+    const l = new Float32Array(n);
+    const r = new Float32Array(n);
+    for (let i = 0; i < n; i++) {
+      l[i] = interleaved[2 * i];
+      r[i] = interleaved[2 * i + 1];
+    }
+    return [l, r];
+  }
   const out = new Float32Array(n);
-  if (mode === "sum") for (let i = 0; i < n; i++) out[i] = (l[i] + r[i]) / 2;
-  else for (let i = 0; i < n; i++) out[i] = (l[i] - r[i]) / 2;
+  mixToMono(mode, interleaved, n, out);
   return [out];
 }
 
 /** One Range request for `seconds` of audio from `startSeconds` (clamped to the file). */
-export async function readWindow(t: OpenedTransfer, startSeconds: number, seconds: number, mode: AuditionChannelMode, signal?: AbortSignal): Promise<AudioWindow> {
+export async function readWindow(t: OpenedTransfer, startSeconds: number, seconds: number, mode: ChannelMode, signal?: AbortSignal): Promise<AudioWindow> {
   const h = t.header;
   const wantFrames = Math.min(h.frames, Math.round(seconds * h.sampleRateHz));
   const startFrame = Math.max(0, Math.min(h.frames - wantFrames, Math.round(startSeconds * h.sampleRateHz)));
   const bytes = await rangeFetch(t.url, h.dataOffset + startFrame * h.blockAlign, wantFrames * h.blockAlign, signal);
   const whole = bytes.subarray(0, Math.floor(bytes.length / h.blockAlign) * h.blockAlign);
-  const ch = decodeFrames(whole, { format: h.format, bitsPerSample: h.bitsPerSample }, h.channels);
-  return { sampleRateHz: h.sampleRateHz, startSeconds: startFrame / h.sampleRateHz, channels: applyChannelMode(ch, mode) };
+  const samples = new Float64Array(whole.length / (h.bitsPerSample / 8));
+  decodeInterleaved(whole, { format: h.format, bitsPerSample: h.bitsPerSample }, samples);
+  return { sampleRateHz: h.sampleRateHz, startSeconds: startFrame / h.sampleRateHz, channels: applyChannelMode(samples, h.channels, mode) };
 }

@@ -10,7 +10,18 @@
  * points of the circular convolution are wrapped and thrown away), so chunks of
  * `blockSize` samples are the efficient size; any other size is correct too.
  */
-import { fftFor, nextPowerOfTwo } from "./fft";
+import { fftFor, nextPowerOfTwo, realSpectrum } from "./fft";
+
+/**
+ * The overlap-save sizes for a filter of `tapCount` taps: the FFT (default about 4·taps,
+ * about 1.3·log2(F) operations per output sample against 2·log2 for F = 2·taps) and the
+ * new samples each FFT handles. Every convolver here, and the native engine, uses these.
+ */
+export function convolverSizes(tapCount: number, fftSize = Math.max(256, nextPowerOfTwo(4 * tapCount))): { fftSize: number; blockSize: number } {
+  if (tapCount < 1) throw new RangeError("A convolver needs taps: this filter has none.");
+  if (fftSize < tapCount || (fftSize & (fftSize - 1)) !== 0) throw new RangeError("fftSize must be a power of two at least as long as the filter.");
+  return { fftSize, blockSize: fftSize - tapCount + 1 };
+}
 
 /** w ← w·s, bin by bin, for interleaved complex spectra of `bins` bins. */
 function multiplyInPlace(w: Float64Array, s: Float64Array, bins: number): void {
@@ -34,20 +45,9 @@ export class StreamingConvolver {
   private readonly result: Float64Array;
 
   constructor(taps: ArrayLike<number>, options: { fftSize?: number } = {}) {
-    if (taps.length < 1) throw new RangeError("A convolver needs at least one tap.");
     this.tapCount = taps.length;
-    // F ≈ 4·taps: about 1.3·log2(F) operations per output sample (vs 2·log2 for F = 2·taps).
-    this.fftSize = options.fftSize ?? Math.max(256, nextPowerOfTwo(4 * taps.length));
-    if (this.fftSize < taps.length || (this.fftSize & (this.fftSize - 1)) !== 0) {
-      throw new RangeError("fftSize must be a power of two at least as long as the filter.");
-    }
-    this.blockSize = this.fftSize - taps.length + 1;
-    const f = fftFor(this.fftSize);
-    const padded = new Float64Array(this.fftSize);
-    for (let i = 0; i < taps.length; i++) padded[i] = taps[i];
-    this.spectrum = new Float64Array(2 * this.fftSize);
-    f.realTransform(this.spectrum, padded);
-    f.completeSpectrum(this.spectrum);
+    ({ fftSize: this.fftSize, blockSize: this.blockSize } = convolverSizes(taps.length, options.fftSize));
+    this.spectrum = realSpectrum(taps, this.fftSize);
     this.history = new Float64Array(taps.length - 1);
     this.frame = new Float64Array(this.fftSize);
     this.work = new Float64Array(2 * this.fftSize);
@@ -135,16 +135,9 @@ export class PairConvolver {
   private readonly result: Float64Array;
 
   constructor(taps: ArrayLike<number>, options: { fftSize?: number } = {}) {
-    const single = new StreamingConvolver(taps, options);
-    this.tapCount = single.tapCount;
-    this.fftSize = single.fftSize;
-    this.blockSize = single.blockSize;
-    const f = fftFor(this.fftSize);
-    const padded = new Float64Array(this.fftSize);
-    for (let i = 0; i < taps.length; i++) padded[i] = taps[i];
-    this.spectrum = new Float64Array(2 * this.fftSize);
-    f.realTransform(this.spectrum, padded);
-    f.completeSpectrum(this.spectrum);
+    this.tapCount = taps.length;
+    ({ fftSize: this.fftSize, blockSize: this.blockSize } = convolverSizes(taps.length, options.fftSize));
+    this.spectrum = realSpectrum(taps, this.fftSize);
     this.history = new Float64Array(2 * (taps.length - 1));
     this.frame = new Float64Array(2 * this.fftSize);
     this.work = new Float64Array(2 * this.fftSize);

@@ -15,7 +15,7 @@ export { designIir, designIirFromModel, measureSosError } from "./iir";
 export type { IirDesign } from "./iir";
 export { designRenderFilter, designRenderFilterFromModel, measureFir, RENDER_TARGET_DB, RENDER_TARGET_DEG } from "./render-filter";
 export type { RenderFilter, RenderFilterOptions } from "./render-filter";
-export { PairConvolver, StreamingConvolver, convolveDirect } from "./convolver";
+export { PairConvolver, StreamingConvolver, convolveDirect, convolverSizes } from "./convolver";
 export { fitCurve, FIT_PARAMETERS } from "./fit";
 export type { FitParameter, FitRequest, FitResult, FitResidual, FittedCorner } from "./fit";
 export { parsePointsCsv, PointsParseError } from "./points-csv";

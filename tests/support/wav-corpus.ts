@@ -17,20 +17,15 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { promisify } from "node:util";
 import { WaveFile } from "wavefile";
-import { BwfWriter } from "@/lib/audio";
+import { BwfWriter, seededRandom } from "@/lib/audio";
 import type { BextInput } from "@/lib/audio";
 
 const run = promisify(execFile);
 
 /** Deterministic uniform (−0.5, 0.5) generator for test signals (mulberry32). */
 export function testRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), a | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
-  };
+  const next = seededRandom(seed);
+  return () => next() - 0.5;
 }
 
 /** A short test signal per channel: a tone plus noise, peak below `peak`. */

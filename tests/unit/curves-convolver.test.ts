@@ -1,19 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { convolveDirect, PairConvolver, StreamingConvolver } from "@/lib/curves";
+import { testRandom } from "../support/wav-corpus";
 
-function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), a | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
-  };
-}
 
 describe("streaming convolver", () => {
   it.each([[1], [7], [300], [1000]])("chunked output equals one-shot direct convolution (%i taps)", (tapCount) => {
-    const rand = prng(tapCount);
+    const rand = testRandom(tapCount);
     const taps = Float64Array.from({ length: tapCount }, rand);
     const signal = Float64Array.from({ length: 5000 }, rand);
     const direct = convolveDirect(signal, taps);

@@ -183,15 +183,21 @@ export function encodeInterleavedFloat(samples: Float64Array, count: number, gai
   return { bytes, clipped };
 }
 
-/** Interleave and encode the first `frames` samples of each channel. */
-export function encodeFrames(channels: Float64Array[], enc: SampleEncoding, options: EncodeOptions = {}, frames = channels[0]?.length ?? 0): EncodeResult {
-  checkEncoding(enc);
+/** The first `frames` samples of each channel, interleaved as in a WAVE file. */
+export function interleave(channels: Float64Array[], frames = channels[0]?.length ?? 0): Float64Array {
   const n = channels.length;
   const samples = new Float64Array(frames * n);
   for (let c = 0; c < n; c++) {
     const src = channels[c];
     for (let i = 0, o = c; i < frames; i++, o += n) samples[o] = src[i];
   }
+  return samples;
+}
+
+/** Interleave and encode the first `frames` samples of each channel. */
+export function encodeFrames(channels: Float64Array[], enc: SampleEncoding, options: EncodeOptions = {}, frames = channels[0]?.length ?? 0): EncodeResult {
+  checkEncoding(enc);
+  const samples = interleave(channels, frames);
   const gain = options.gain ?? 1;
   if (enc.format === "float") return encodeInterleavedFloat(samples, samples.length, gain, enc.bitsPerSample);
   // One dither value per sample in file order (frame-major), so one stream serves all channels.

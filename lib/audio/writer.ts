@@ -30,7 +30,7 @@ import { open } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
 import { encodeBext } from "./bext";
 import type { BextInput } from "./bext";
-import { encodeInterleavedFloat, TpdfDither } from "./codecs";
+import { encodeInterleavedFloat, interleave, TpdfDither } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 import { defaultDsp } from "./dsp";
 import type { DspEngine } from "./dsp";
@@ -228,13 +228,7 @@ export class BwfWriter {
   /** Encode and append frames (one array per channel; `frames` defaults to their length). */
   async write(channels: Float64Array[], frames = channels[0]?.length ?? 0, gain = 1): Promise<void> {
     if (channels.length !== this.options.channels) throw new RangeError(`Expected ${this.options.channels} channel arrays, got ${channels.length}.`);
-    const n = channels.length;
-    const samples = new Float64Array(frames * n);
-    for (let c = 0; c < n; c++) {
-      const src = channels[c];
-      for (let i = 0, o = c; i < frames; i++, o += n) samples[o] = src[i];
-    }
-    await this.writeInterleaved(samples, frames, gain);
+    await this.writeInterleaved(interleave(channels, frames), frames, gain);
   }
 
   /** Encode and append `frames` interleaved frames, times `gain`, dithered for integer output. */
@@ -256,13 +250,6 @@ export class BwfWriter {
     this.staged += size;
     this.framesWritten += frames;
     if (this.staged >= WRITE_BUFFER_BYTES) await this.flush();
-  }
-
-  /** Append already-encoded interleaved frames in this file's encoding. */
-  async writeEncoded(bytes: Uint8Array): Promise<void> {
-    if (bytes.length % this.layout.blockAlign !== 0) throw new RangeError("Encoded bytes are not a whole number of frames.");
-    this.framesWritten += bytes.length / this.layout.blockAlign;
-    await this.append(bytes);
   }
 
   private async append(bytes: Uint8Array): Promise<void> {

@@ -3,14 +3,14 @@ import { z } from "zod";
 import { db } from "../db";
 import type { SessionUser } from "./auth/session-user";
 import { appendEvent } from "./provenance";
-import { accessCopyRates } from "./validation/transfers";
+import { accessCopyBitDepthSchema, accessCopyRateSchema } from "./validation/transfers";
 
 
 export const settingsSchema = z
   .object({
     fixityCycleDays: z.coerce.number().int("Whole days, please.").min(1, "At least one day.").max(3650, "At most ten years."),
-    accessCopyRateHz: z.union([z.literal("transfer"), z.coerce.number().refine((v) => (accessCopyRates as readonly number[]).includes(v), `Choose one of ${accessCopyRates.join(", ")} Hz, or the transfer's rate.`)]),
-    accessCopyBitDepth: z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits."),
+    accessCopyRateHz: accessCopyRateSchema,
+    accessCopyBitDepth: accessCopyBitDepthSchema,
   })
   .partial();
 

@@ -6,7 +6,7 @@ import { createDb } from "../db/client";
 import { defaultDsp } from "../lib/audio/dsp";
 import { env } from "../lib/env";
 import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
-import { createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, RENDER_QUEUE } from "../lib/jobs/boss";
+import { createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, fixityJobKey, RENDER_QUEUE } from "../lib/jobs/boss";
 import { runRenderJob } from "../lib/jobs/render-job";
 import { deliverDueMail } from "../lib/mail/outbox";
 import { createMailTransport } from "../lib/mail/transport";
@@ -44,7 +44,7 @@ async function main(): Promise<void> {
   await boss.schedule(FIXITY_SWEEP_QUEUE, FIXITY_SWEEP_CRON);
   await boss.work(FIXITY_SWEEP_QUEUE, async () => {
     const due = await dueObjects(db, await fixityCycleDays(db));
-    for (const o of due) await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: `${o.kind}:${o.id}` });
+    for (const o of due) await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
     if (due.length) console.log(`[worker] fixity sweep queued ${due.length} objects`);
   });
   await boss.work<{ kind: StoredObjectKind; id: string }>(FIXITY_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {

@@ -2,7 +2,7 @@ import "server-only";
 import { z } from "zod";
 import { db } from "../../db";
 import { AppError } from "../http/errors";
-import { FIXITY_QUEUE } from "../jobs/boss";
+import { FIXITY_QUEUE, fixityJobKey } from "../jobs/boss";
 import { sendJob } from "../jobs/web-boss";
 import { storedObjects } from ".";
 
@@ -15,7 +15,7 @@ export async function requestDiscFixity(input: unknown): Promise<{ queued: numbe
   if (!disc) throw new AppError("not_found", 404, "No such disc.");
   const askedAt = Date.now();
   const objects = await storedObjects(db, { discId });
-  for (const o of objects) await sendJob(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: `${o.kind}:${o.id}` });
+  for (const o of objects) await sendJob(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
   return { queued: objects.length, askedAt };
 }
 

@@ -9,8 +9,19 @@ export const FIXITY_SWEEP_QUEUE = "fixity-sweep";
 /** The sweep runs every hour and queues what has come due. */
 export const FIXITY_SWEEP_CRON = "7 * * * *";
 
-/** Retries for renders: a crashed or failed attempt is tried twice more, a minute apart. */
-export const renderQueuePolicy = { name: RENDER_QUEUE, retryLimit: 2, retryDelay: 60, expireInSeconds: 6 * 3600 } as const;
+/** Renders and fixity checks: a crashed or failed attempt is tried twice more, a minute apart. */
+const retried = { retryLimit: 2, retryDelay: 60, expireInSeconds: 6 * 3600 };
+
+const queues: PgBoss.Queue[] = [
+  { name: RENDER_QUEUE, ...retried },
+  { name: FIXITY_QUEUE, ...retried },
+  { name: FIXITY_SWEEP_QUEUE, retryLimit: 0, expireInSeconds: 3600 },
+];
+
+/** One fixity job per object at a time, whether the sweep or a curator queued it. */
+export function fixityJobKey(o: { kind: string; id: string }): string {
+  return `${o.kind}:${o.id}`;
+}
 
 /**
  * A pg-boss instance on the app's database. Workers supervise and maintain the queue;
@@ -30,9 +41,7 @@ export function createBoss(databaseUrl: string, role: "worker" | "web" | "migrat
 
 /** Creates any of the lab's queues that do not exist yet (a started instance). */
 export async function createMissingQueues(boss: PgBoss): Promise<void> {
-  if (!(await boss.getQueue(RENDER_QUEUE))) await boss.createQueue(RENDER_QUEUE, { ...renderQueuePolicy });
-  if (!(await boss.getQueue(FIXITY_QUEUE))) await boss.createQueue(FIXITY_QUEUE, { name: FIXITY_QUEUE, retryLimit: 2, retryDelay: 60, expireInSeconds: 6 * 3600 });
-  if (!(await boss.getQueue(FIXITY_SWEEP_QUEUE))) await boss.createQueue(FIXITY_SWEEP_QUEUE, { name: FIXITY_SWEEP_QUEUE, retryLimit: 0, expireInSeconds: 3600 });
+  for (const q of queues) if (!(await boss.getQueue(q.name))) await boss.createQueue(q.name, q);
 }
 
 /** Creates pg-boss's schema and the lab's queues (run with the migrations). */

@@ -9,7 +9,7 @@ import { PutObjectCommand } from "@aws-sdk/client-s3";
 import { type Kysely, sql } from "kysely";
 import type { Database } from "../../db/types";
 import { readWavHeader, renderAccessCopy } from "../audio";
-import { type CurveSpec, designIir, designRenderFilter, resolveCurve } from "../curves";
+import { buildAnalogModel, type CurveSpec, designIirFromModel, designRenderFilterFromModel, type ResolvedCurve, resolveCurve } from "../curves";
 import { env } from "../env";
 import { appendEvent } from "../provenance";
 import { objectSource } from "../storage/objects";
@@ -17,8 +17,7 @@ import { s3 } from "../storage/s3";
 import { softwareName } from "../version";
 
 /** The curve as the coding history records it: each corner's time constant as the filter uses it. */
-export function curveText(spec: CurveSpec): string {
-  const c = resolveCurve(spec);
+function curveText(c: ResolvedCurve): string {
   const parts: string[] = [];
   for (const corner of [c.shelf, c.turnover, c.rolloff, c.highpass, c.ultrasonic]) {
     if (corner) parts.push(`${corner.parameter} ${corner.filterTauUs.toFixed(2)} us`);
@@ -72,7 +71,11 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
   const outputPath = path.join(tmp, "access.wav");
   try {
     const spec = job.spec as CurveSpec;
-    const filter = designRenderFilter(spec, job.sampleRateHz);
+    // One resolved curve and model for the render filter, the coding history and the recorded sections.
+    const curve = resolveCurve(spec);
+    const model = buildAnalogModel(curve);
+    const filter = designRenderFilterFromModel(model, job.sampleRateHz);
+    const outputRateHz = job.outputRateHz ?? job.sampleRateHz;
     const source = await objectSource(job.transferKey);
     const header = await readWavHeader(source);
     let lastWrite = 0;
@@ -84,7 +87,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       outputPath,
       channelMode: job.channelMode,
       output: { format: "pcm", bitsPerSample: job.bitDepth as 16 | 24 },
-      outputSampleRateHz: job.outputRateHz ?? job.sampleRateHz,
+      outputSampleRateHz: outputRateHz,
       bext: {
         description: `${job.shelfMark} side ${job.designation}: ${[job.labelName, job.catalogueNumber].filter(Boolean).join(" ")}. Equalized access copy.`.slice(0, 256),
         originator: env().LAB_NAME.slice(0, 32),
@@ -93,7 +96,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
         originationTime: now.toISOString().slice(11, 19),
         timeReference: header.bext?.timeReference ?? 0,
       },
-      equalization: { curve: curveText(spec), speedRatio: resolveCurve(spec).speedRatio, software: softwareName() },
+      equalization: { curve: curveText(curve), speedRatio: curve.speedRatio, software: softwareName() },
       onProgress: (fraction) => {
         const t = Date.now();
         if (t - lastWrite < 500 && fraction < 1) return;
@@ -103,7 +106,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     });
     const key = `access/${job.sideId}/${renderId}.wav`;
     await s3().send(new PutObjectCommand({ Bucket: env().S3_BUCKET, Key: key, Body: createReadStream(outputPath), ContentLength: result.outputBytes, ContentType: "audio/wav" }));
-    const iir = designIir(spec, job.sampleRateHz);
+    const iir = designIirFromModel(model, job.sampleRateHz);
     const filterRecord = {
       kind: filter.kind,
       taps: filter.taps.length,
@@ -136,7 +139,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
           renderId,
           transfer: { id: job.transferId, sha256: job.transferSha256 },
           curveChoiceId: job.choiceId,
-          accessCopy: { objectKey: key, sha256: result.sha256, bytes: result.outputBytes, container: result.container, bitDepth: job.bitDepth, sampleRateHz: job.outputRateHz ?? job.sampleRateHz, channelMode: job.channelMode },
+          accessCopy: { objectKey: key, sha256: result.sha256, bytes: result.outputBytes, container: result.container, bitDepth: job.bitDepth, sampleRateHz: outputRateHz, channelMode: job.channelMode },
           trimDb: result.trimDb,
           peakDbfs: result.peakDbfs,
           filter: filterRecord,

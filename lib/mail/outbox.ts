@@ -42,6 +42,7 @@ export async function deliverDueMail(
   from: string,
   opts: { limit?: number; sendNow?: string[] } = {},
 ): Promise<{ sent: number; failed: number }> {
+  if (opts.sendNow?.length === 0) return { sent: 0, failed: 0 };
   const limit = opts.limit ?? 20;
   const tried: string[] = []; // each message at most once a round
   let sent = 0;
@@ -49,7 +50,7 @@ export async function deliverDueMail(
   for (let i = 0; i < limit; i++) {
     const outcome = await db.transaction().execute(async (trx) => {
       let q = trx.selectFrom("outbox").select(["id", "to_address", "subject", "body_text", "attempts"]).where("status", "=", "queued");
-      q = opts.sendNow ? q.where("id", "in", opts.sendNow.length ? opts.sendNow : ["00000000-0000-0000-0000-000000000000"]) : q.where("next_attempt_at", "<=", sql<Date>`now()`);
+      q = opts.sendNow ? q.where("id", "in", opts.sendNow) : q.where("next_attempt_at", "<=", sql<Date>`now()`);
       if (tried.length) q = q.where("id", "not in", tried);
       const msg = await q
         .orderBy("created_at")

@@ -47,7 +47,6 @@ export async function decideReview(actor: SessionUser, sideId: string, input: un
   const { decision, reason } = decisionSchema.parse(input);
   if (decision === "returned" && !reason) throw new AppError("invalid", 422, "Say why the side goes back, so the engineer knows what to fix.", { reason: ["A reason is required."] });
   return db.transaction().execute(async (trx) => {
-    if (!/^[0-9a-f-]{36}$/i.test(sideId)) throw new AppError("not_found", 404, "No such side.");
     const side = await trx
       .selectFrom("sides as s")
       .innerJoin("discs as d", "d.id", "s.disc_id")

@@ -2,24 +2,14 @@ import "server-only";
 import { sql } from "kysely";
 import { db } from "../../db";
 import type { SideStatus } from "../../db/types";
+import { mergeCurve } from "../audition/curve-merge";
 import { type CurveSpec, resolveCurve } from "../curves";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { asCurveAppError } from "../presets/curve-check";
-import { appendEvent } from "../provenance";
+import { appendEvents, type NewEvent } from "../provenance";
 import { statusLabels } from "../validation/catalogue";
 import { curveChoiceSchema } from "../validation/transfers";
-
-/** The curve a side is played through: the preset version's values, then this side's overrides, then the speed ratio. */
-export function effectiveSpec(presetSpec: CurveSpec | null, overrides: Partial<CurveSpec>, cutSpeedRpm: number, transferSpeedRpm: number): CurveSpec {
-  const merged: CurveSpec = { ...(presetSpec ?? {}) };
-  for (const [k, v] of Object.entries(overrides) as [keyof CurveSpec, unknown][]) {
-    if (v !== undefined) (merged as Record<string, unknown>)[k] = v;
-  }
-  // Played at another speed than it was cut, every frequency moves by transfer / cut.
-  merged.speedRatio = transferSpeedRpm / cutSpeedRpm;
-  return merged;
-}
 
 const choosable = new Set(["assigned", "returned", "curve_chosen", "transferred", "rendered"]);
 
@@ -42,7 +32,8 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
       if (!v) throw new AppError("invalid", 422, "That preset version does not exist.", { presetVersion: ["Unknown preset version."] });
       preset = { name: v.name, spec: v.spec as CurveSpec };
     }
-    const spec = effectiveSpec(preset?.spec ?? null, c.overrides as Partial<CurveSpec>, c.cutSpeedRpm, c.transferSpeedRpm);
+    // The same merge the bench plots and plays (preset, then overrides, then transfer ÷ cut speed).
+    const spec = mergeCurve(preset?.spec ?? null, c.overrides as Partial<CurveSpec>, c.cutSpeedRpm, c.transferSpeedRpm);
     try {
       resolveCurve(spec);
     } catch (err) {
@@ -56,14 +47,23 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
       .forUpdate()
       .execute();
     if (sides.length !== new Set(c.sideIds).size) throw new AppError("not_found", 404, "One of those sides does not exist.");
+    const ids = sides.map((s) => s.id);
+    // Each side's current choice (the one this replaces) and which sides have a transfer: one query each, not two per side.
+    const [previousRows, transferRows] = await Promise.all([
+      trx.selectFrom("curve_choices").distinctOn("side_id").select(["side_id", "id", "spec"]).where("side_id", "in", ids).orderBy("side_id").orderBy("chosen_at", "desc").execute(),
+      trx.selectFrom("transfers").select("side_id").distinct().where("side_id", "in", ids).execute(),
+    ]);
+    const previousBySide = new Map(previousRows.map((p) => [p.side_id, p]));
+    const transferred = new Set(transferRows.map((t) => t.side_id));
     const choices: { sideId: string; choiceId: string }[] = [];
+    const events: NewEvent[] = [];
     for (const s of sides) {
       const where = `${s.shelf_mark} side ${s.designation}`;
       if (s.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, `${where} is not assigned to you.`);
       if (!choosable.has(s.status)) {
         throw new AppError("conflict", 409, `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`);
       }
-      const previous = await trx.selectFrom("curve_choices").select(["id", "spec"]).where("side_id", "=", s.id).orderBy("chosen_at", "desc").limit(1).executeTakeFirst();
+      const previous = previousBySide.get(s.id);
       const row = await trx
         .insertInto("curve_choices")
         .values({
@@ -83,7 +83,7 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
         })
         .returning("id")
         .executeTakeFirstOrThrow();
-      await appendEvent(trx, {
+      events.push({
         actorId: actor.id,
         kind: previous ? "side.curve_changed" : "side.curve_chosen",
         subjectType: "side",
@@ -109,14 +109,13 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
       const path: SideStatus[] = [];
       if (s.status === "assigned" || s.status === "returned") {
         path.push("curve_chosen");
-        const transfer = await trx.selectFrom("transfers").select("id").where("side_id", "=", s.id).limit(1).executeTakeFirst();
-        if (transfer) path.push("transferred");
+        if (transferred.has(s.id)) path.push("transferred");
       } else if (s.status === "rendered") {
         path.push("transferred");
       }
       let from: SideStatus = s.status;
       for (const to of path) {
-        await appendEvent(trx, {
+        events.push({
           actorId: actor.id,
           kind: "side.status_changed",
           subjectType: "side",
@@ -131,6 +130,8 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
       }
       choices.push({ sideId: s.id, choiceId: row.id });
     }
+    // In the order they happened, chained in one append.
+    await appendEvents(trx, events);
     return { choices };
   });
 }

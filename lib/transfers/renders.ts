@@ -11,15 +11,15 @@ import { sendInTransaction } from "../jobs/web-boss";
 import { appendEvent } from "../provenance";
 import { s3 } from "../storage/s3";
 import { getSettings } from "../settings";
-import { accessCopyRates, channelModes } from "../validation/transfers";
+import { accessCopyBitDepthSchema, accessCopyRateSchema, channelModes } from "../validation/transfers";
 
 export const renderRequestSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),
   channelMode: z.enum(channelModes, { error: "Choose how the channels are used." }).default("both"),
   /** Default: the lab's setting. */
-  bitDepth: z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.").optional(),
+  bitDepth: accessCopyBitDepthSchema.optional(),
   /** "transfer" keeps the transfer's rate; default: the lab's setting. */
-  sampleRateHz: z.union([z.literal("transfer"), z.coerce.number().refine((v) => (accessCopyRates as readonly number[]).includes(v), `Choose one of ${accessCopyRates.join(", ")} Hz.`)]).optional(),
+  sampleRateHz: accessCopyRateSchema.optional(),
 });
 
 /**
@@ -124,7 +124,6 @@ async function presignedGet(key: string, fileName: string): Promise<string> {
 
 /** A short-lived URL to a transfer (flat) or an access copy, for download or for playback by byte ranges. */
 export async function downloadUrl(kind: "transfer" | "render", id: string): Promise<string> {
-  if (!/^[0-9a-f-]{36}$/i.test(id)) throw new AppError("not_found", 404, "No such file.");
   if (kind === "transfer") {
     const t = await db.selectFrom("transfers").select(["object_key", "file_name"]).where("id", "=", id).executeTakeFirst();
     if (!t) throw new AppError("not_found", 404, "No such transfer.");

@@ -33,12 +33,7 @@ function safeName(name: string): string {
 }
 
 async function sideForUpload(actor: SessionUser, sideId: string) {
-  const side = await db
-    .selectFrom("sides as s")
-    .innerJoin("discs as d", "d.id", "s.disc_id")
-    .select(["s.id", "s.disc_id", "s.designation", "s.status", "s.assigned_engineer_id", "s.version", "d.shelf_mark"])
-    .where("s.id", "=", sideId)
-    .executeTakeFirst();
+  const side = await db.selectFrom("sides").select(["id", "disc_id", "designation", "status", "assigned_engineer_id"]).where("id", "=", sideId).executeTakeFirst();
   if (!side) throw new AppError("not_found", 404, "No such side.");
   if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
   if (!uploadable.has(side.status)) {

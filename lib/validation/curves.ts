@@ -1,5 +1,4 @@
 import { z } from "zod";
-import { CORNER_NAMES } from "../curves/types";
 
 const finite = (what: string) => z.number({ error: `${what} must be a number.` }).refine(Number.isFinite, `${what} must be a finite number.`);
 
@@ -52,5 +51,3 @@ export const fitRequestSchema = z.object({
   initial: curveSpecSchema.default({}),
   levelOffsetDb: finite("Level offset").default(0),
 });
-
-export const cornerNames = CORNER_NAMES;

@@ -31,6 +31,15 @@ export const curveChoiceSchema = z
 /** Rates an access copy may be written at besides the transfer's own ("transfer"). */
 export const accessCopyRates = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000] as const;
 
+/** An access copy's rate, for a render request and for the lab's default alike. */
+export const accessCopyRateSchema = z.union([
+  z.literal("transfer"),
+  z.coerce.number().refine((v) => (accessCopyRates as readonly number[]).includes(v), `Choose one of ${accessCopyRates.join(", ")} Hz, or the transfer's rate.`),
+]);
+
+/** An access copy's word length, for a render request and for the lab's default alike. */
+export const accessCopyBitDepthSchema = z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.");
+
 export const channelModes = ["both", "sum", "difference", "left", "right"] as const;
 export const channelModeLabels: Record<(typeof channelModes)[number], string> = {
   both: "Keep both channels",

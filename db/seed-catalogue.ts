@@ -1,6 +1,7 @@
 import { type Kysely, sql } from "kysely";
+import { seededRandom } from "../lib/audio/codecs";
 import { refreshSearch } from "../lib/catalogue/records";
-import { appendEvent } from "../lib/provenance";
+import { appendEvent, appendEvents } from "../lib/provenance";
 import type { Database, DiscFormat } from "./types";
 
 /**
@@ -8,18 +9,6 @@ import type { Database, DiscFormat } from "./types";
  * invented labels and invented performers, in a handful of accessions. Deterministic
  * (seeded PRNG), so every demo lab looks the same.
  */
-
-function prng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    // mulberry32
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const accessions = [
   { identifier: "MH-2025-014", source: "Bequest of the Orlan family: a parlour collection of 78s", receivedOn: "2025-03-11" },
@@ -62,7 +51,7 @@ const grades = ["excellent", "good", "good", "fair", "fair", "poor"] as const;
 export async function seedCatalogue(db: Kysely<Database>, actorId: string | null, engineerId: string | null): Promise<{ discsAdded: number }> {
   const existing = await db.selectFrom("discs").select(sql<number>`count(*)::int`.as("n")).executeTakeFirstOrThrow();
   if (existing.n > 0) return { discsAdded: 0 };
-  const rnd = prng(1877);
+  const rnd = seededRandom(1877);
   const pick = <T>(xs: readonly T[]) => xs[Math.floor(rnd() * xs.length)];
   const person = () => `${pick(given)} ${pick(family)}`;
   let added = 0;
@@ -127,15 +116,19 @@ export async function seedCatalogue(db: Kysely<Database>, actorId: string | null
     await refreshSearch(trx, discIds);
     // One event per disc, as the archivist's catalogue entry.
     const discs = await trx.selectFrom("discs").select(["id", "shelf_mark", "label_name", "catalogue_number", "format"]).orderBy("shelf_mark").execute();
-    for (const d of discs) {
-      await appendEvent(trx, { actorId, kind: "disc.created", subjectType: "disc", subjectId: d.id, discId: d.id, payload: { after: { shelfMark: d.shelf_mark, labelName: d.label_name, catalogueNumber: d.catalogue_number, format: d.format }, origin: "demo seed" } });
-    }
+    await appendEvents(
+      trx,
+      discs.map((d) => ({ actorId, kind: "disc.created", subjectType: "disc", subjectId: d.id, discId: d.id, payload: { after: { shelfMark: d.shelf_mark, labelName: d.label_name, catalogueNumber: d.catalogue_number, format: d.format }, origin: "demo seed" } })),
+    );
     // Some work already handed to the demo engineer.
     if (engineerId) {
       const sides = await trx.selectFrom("sides as s").innerJoin("discs as d", "d.id", "s.disc_id").select(["s.id", "s.disc_id", "s.designation"]).where("d.shelf_mark", "<=", "MH-D00012").execute();
-      for (const s of sides) {
-        await trx.updateTable("sides").set({ status: "assigned", assigned_engineer_id: engineerId }).where("id", "=", s.id).execute();
-        await appendEvent(trx, { actorId, kind: "side.assigned", subjectType: "side", subjectId: s.id, discId: s.disc_id, payload: { side: s.designation, before: { status: "catalogued", engineerId: null }, after: { status: "assigned", engineerId } } });
+      if (sides.length) {
+        await trx.updateTable("sides").set({ status: "assigned", assigned_engineer_id: engineerId }).where("id", "in", sides.map((s) => s.id)).execute();
+        await appendEvents(
+          trx,
+          sides.map((s) => ({ actorId, kind: "side.assigned", subjectType: "side", subjectId: s.id, discId: s.disc_id, payload: { side: s.designation, before: { status: "catalogued", engineerId: null }, after: { status: "assigned", engineerId } } })),
+        );
       }
     }
   });

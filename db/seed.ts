@@ -5,34 +5,42 @@ import { seedCatalogue } from "./seed-catalogue";
 import { seedPresets } from "./seed-presets";
 import type { Database } from "./types";
 
-/** Seeds the invented demo lab. Idempotent: what is already there is left as it is. */
+/**
+ * Seeds the invented demo lab. Idempotent: what is already there is left as it is. Runs
+ * at every start, so it asks once what is there rather than once per person and preset.
+ */
 export async function seed(db: Kysely<Database>): Promise<{ usersAdded: number; presetsAdded: number; discsAdded: number }> {
+  const emails = demoAccounts.map((a) => a.email);
+  const userIds = new Map((await db.selectFrom("users").select(["id", "email"]).where("email", "in", emails).execute()).map((u) => [u.email, u.id]));
   let usersAdded = 0;
   for (const a of demoAccounts) {
-    const exists = await db.selectFrom("users").select("id").where("email", "=", a.email).executeTakeFirst();
-    if (exists) continue;
-    await db
+    if (userIds.has(a.email)) continue;
+    const added = await db
       .insertInto("users")
       .values({ email: a.email, name: a.name, role: a.role, password_hash: await hashPassword(a.password) })
       .onConflict((oc) => oc.column("email").doNothing())
-      .execute();
+      .returning("id")
+      .executeTakeFirst();
+    // Added meanwhile by another run: the conflict left that row in place.
+    userIds.set(a.email, added?.id ?? (await db.selectFrom("users").select("id").where("email", "=", a.email).executeTakeFirstOrThrow()).id);
     usersAdded++;
   }
-  let presetsAdded = 0;
-  for (const p of seedPresets()) {
+
+  const presetNames = new Set((await db.selectFrom("curve_presets").select(sql<string>`lower(name)`.as("name")).execute()).map((p) => p.name));
+  const newPresets = seedPresets().filter((p) => !presetNames.has(p.name.toLowerCase()));
+  if (newPresets.length) {
     await db.transaction().execute(async (trx) => {
-      const exists = await trx.selectFrom("curve_presets").select("id").where(sql`lower(name)`, "=", p.name.toLowerCase()).executeTakeFirst();
-      if (exists) return;
-      const preset = await trx.insertInto("curve_presets").values({ name: p.name, current_version: 1 }).returning("id").executeTakeFirstOrThrow();
-      await trx
-        .insertInto("curve_preset_versions")
-        .values({ preset_id: preset.id, version: 1, name: p.name, spec: JSON.stringify(p.spec), notes: p.notes, change_note: "Seeded into the starting library.", created_by: null })
-        .execute();
-      presetsAdded++;
+      for (const p of newPresets) {
+        const preset = await trx.insertInto("curve_presets").values({ name: p.name, current_version: 1 }).returning("id").executeTakeFirstOrThrow();
+        await trx
+          .insertInto("curve_preset_versions")
+          .values({ preset_id: preset.id, version: 1, name: p.name, spec: JSON.stringify(p.spec), notes: p.notes, change_note: "Seeded into the starting library.", created_by: null })
+          .execute();
+      }
     });
   }
-  const archivist = await db.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "archivist")!.email).executeTakeFirst();
-  const engineer = await db.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email).executeTakeFirst();
-  const { discsAdded } = await seedCatalogue(db, archivist?.id ?? null, engineer?.id ?? null);
-  return { usersAdded, presetsAdded, discsAdded };
+
+  const idOf = (role: (typeof demoAccounts)[number]["role"]) => userIds.get(demoAccounts.find((a) => a.role === role)!.email) ?? null;
+  const { discsAdded } = await seedCatalogue(db, idOf("archivist"), idOf("engineer"));
+  return { usersAdded, presetsAdded: newPresets.length, discsAdded };
 }

@@ -5,9 +5,8 @@
 import { CsvError, parse } from "csv-parse/sync";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
-import { createDiscSchema, discFieldsSchema, discFormats, formatLabels, sideInputSchema } from "../validation/catalogue";
+import { createDiscSchema, type DiscInput, discFieldsSchema, discFormats, formatLabels, sideInputSchema } from "../validation/catalogue";
 
-export type DiscInput = z.infer<typeof createDiscSchema>;
 type DiscFields = z.infer<typeof discFieldsSchema>;
 type SideInput = z.infer<typeof sideInputSchema>;
 
@@ -454,7 +453,7 @@ export interface ExportDisc {
 const num = (v: number | null) => (v === null || v === undefined ? "" : String(v));
 
 /** The rows of one disc: one per side, or one with empty side columns. */
-export function discRows(d: ExportDisc): string[][] {
+function discRows(d: ExportDisc): string[][] {
   const disc: Record<string, string> = {
     shelf_mark: d.shelfMark,
     accession: d.accessionIdentifier,

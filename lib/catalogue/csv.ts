@@ -7,7 +7,7 @@ import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
-import { discListQuerySchema } from "../validation/catalogue";
+import { blankToUndefined, discListQuerySchema } from "../validation/catalogue";
 import {
   type BuiltSheet,
   buildDiscs,
@@ -21,15 +21,14 @@ import {
   summariseDisc,
   toCatalogueCsv,
 } from "./csv-format";
-import { insertDiscs, listDiscs } from "./discs";
+import { insertDiscs } from "./discs";
+import { listDiscIds } from "./list-query";
 import { readDiscs } from "./records";
 
 /** Uploads larger than this are refused before they are read (20 000 rows of long notes fit well below). */
 export const maxUploadBytes = 40 * 1024 * 1024;
 /** Discs listed in a preview; the counts cover the whole file. */
 export const previewDiscLimit = 200;
-
-const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
 const importOptionsSchema = z.object({
   fileName: z.preprocess(blankToUndefined, z.string().trim().max(255, "The file name is too long.").default("catalogue.csv")),
@@ -228,26 +227,11 @@ const exportQuerySchema = discListQuerySchema.omit({ page: true, pageSize: true 
 /** Every disc of the catalogue view the query describes, as catalogue CSV. */
 export async function exportCatalogueCsv(input: unknown): Promise<string> {
   const q = exportQuerySchema.parse(input);
-  // Page through the same listing the catalogue shows, so the filters mean exactly the same.
-  const ids: string[] = [];
-  const seen = new Set<string>();
-  const pageSize = 200;
-  for (let page = 1; ; page++) {
-    const { rows, total } = await listDiscs({ ...q, page, pageSize });
-    for (const r of rows) if (!seen.has(r.id)) (seen.add(r.id), ids.push(r.id));
-    if (rows.length < pageSize || page * pageSize >= total) break;
-  }
+  // The catalogue page's own filters and order, so the file holds exactly the view.
+  const ids = await listDiscIds(db, q);
   const discs: ExportDisc[] = [];
-  for (let i = 0; i < ids.length; i += 1000) {
-    const chunk = ids.slice(i, i + 1000);
-    // Deleted since it was listed: left out.
-    for (const d of await readDiscs(db, chunk)) {
-      discs.push({
-        ...d,
-        sides: d.sides.map((s) => ({ designation: s.designation, matrixNumber: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })),
-      });
-    }
-  }
+  // Deleted since it was listed: left out.
+  for (let i = 0; i < ids.length; i += 1000) discs.push(...(await readDiscs(db, ids.slice(i, i + 1000))));
   return toCatalogueCsv(discs);
 }
 

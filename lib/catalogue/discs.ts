@@ -1,18 +1,15 @@
 import "server-only";
 import { sql, type Transaction } from "kysely";
-import type { z } from "zod";
 import { db } from "../../db";
 import type { Database } from "../../db/types";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { appendEvent, appendEvents } from "../provenance";
-import { createDiscSchema, updateDiscSchema } from "../validation/catalogue";
+import { createDiscSchema, type DiscInput, updateDiscSchema } from "../validation/catalogue";
 import { listDiscsWith } from "./list-query";
 import { type DiscRecord, readDisc, refreshSearch } from "./records";
 
-export type DiscInput = z.infer<typeof createDiscSchema>;
-
-function discColumns(d: z.infer<typeof createDiscSchema>) {
+function discColumns(d: DiscInput) {
   return {
     accession_id: d.accessionId,
     shelf_mark: d.shelfMark,
@@ -32,6 +29,10 @@ function discColumns(d: z.infer<typeof createDiscSchema>) {
     condition_notes: d.conditionNotes,
     handling_notes: d.handlingNotes,
   };
+}
+
+function sideColumns(s: DiscInput["sides"][number]) {
+  return { designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes };
 }
 
 /** The fields that go into events: the disc as the archivist sees it, without bookkeeping. */
@@ -67,10 +68,7 @@ export async function insertDisc(trx: Transaction<Database>, actor: SessionUser,
     const key = s.designation.toLowerCase();
     if (seen.has(key)) throw new AppError("invalid", 422, `Side ${s.designation} is listed twice.`, { sides: [`Side ${s.designation} is listed twice.`] });
     seen.add(key);
-    await trx
-      .insertInto("sides")
-      .values({ disc_id: disc.id, designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })
-      .execute();
+    await trx.insertInto("sides").values({ disc_id: disc.id, ...sideColumns(s) }).execute();
   }
   await refreshSearch(trx, [disc.id]);
   const created = (await readDisc(trx, disc.id))!;
@@ -97,9 +95,7 @@ export async function insertDiscs(trx: Transaction<Database>, actor: SessionUser
     const rows = await trx.insertInto("discs").values(chunk.map((c) => discColumns(c.disc))).returning("id").execute();
     ids.push(...rows.map((r) => r.id));
   }
-  const sideRows = items.flatMap((item, n) =>
-    item.disc.sides.map((s) => ({ disc_id: ids[n], designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })),
-  );
+  const sideRows = items.flatMap((item, n) => item.disc.sides.map((s) => ({ disc_id: ids[n], ...sideColumns(s) })));
   for (let i = 0; i < sideRows.length; i += 1000) await trx.insertInto("sides").values(sideRows.slice(i, i + 1000)).execute();
   for (let i = 0; i < ids.length; i += 1000) await refreshSearch(trx, ids.slice(i, i + 1000));
   await appendEvents(
@@ -162,14 +158,11 @@ export async function updateDisc(actor: SessionUser, id: string, input: unknown)
         keep.add(s.id);
         await trx
           .updateTable("sides")
-          .set({ designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes, version: old.version + 1, updated_at: sql`now()` })
+          .set({ ...sideColumns(s), version: old.version + 1, updated_at: sql`now()` })
           .where("id", "=", s.id)
           .execute();
       } else {
-        await trx
-          .insertInto("sides")
-          .values({ disc_id: id, designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes })
-          .execute();
+        await trx.insertInto("sides").values({ disc_id: id, ...sideColumns(s) }).execute();
       }
     }
     for (const old of before.sides) {

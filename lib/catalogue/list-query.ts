@@ -27,12 +27,16 @@ const sortColumns = {
   updatedAt: "d.updated_at",
 } as const;
 
-function escapeLike(s: string): string {
+/** Escapes LIKE's wildcards so the text matches only itself. */
+export function escapeLike(s: string): string {
   return s.replace(/[\\%_]/g, (c) => `\\${c}`);
 }
 
+/** The filters of a list query, without its paging. */
+type DiscFilter = Omit<DiscListQuery, "page" | "pageSize">;
+
 /** The catalogue's WHERE clause for a list query: shared by the page, the export and the benchmark. */
-export function filteredDiscs(db: Db, q: DiscListQuery) {
+export function filteredDiscs(db: Db, q: DiscFilter) {
   let query = db.selectFrom("discs as d");
   if (q.format) query = query.where("d.format", "=", q.format);
   if (q.accession) query = query.where("d.accession_id", "=", q.accession);
@@ -58,11 +62,23 @@ export function filteredDiscs(db: Db, q: DiscListQuery) {
   return query;
 }
 
+/** The list's order: the chosen column, then the shelf mark in the same direction, so one index serves the whole ordering. */
+function ordering(q: DiscFilter) {
+  const direction: "asc" | "desc" = q.sort.startsWith("-") ? "desc" : "asc";
+  return { column: sortColumns[q.sort.replace(/^-/, "") as keyof typeof sortColumns], direction };
+}
+
+/** Every disc a list query selects, in the list's order and without paging (the CSV export). */
+export async function listDiscIds(db: Db, q: DiscFilter): Promise<string[]> {
+  const { column, direction } = ordering(q);
+  const rows = await filteredDiscs(db, q).select("d.id").orderBy(column, direction).orderBy("d.shelf_mark", direction).execute();
+  return rows.map((r) => r.id);
+}
+
 /** The catalogue: filtered, searched, sorted and paged on the server. */
 export async function listDiscsWith(db: Db, input: unknown): Promise<{ rows: DiscListRow[]; total: number; page: number; pageSize: number }> {
   const q = discListQuerySchema.parse(input);
-  const desc = q.sort.startsWith("-");
-  const column = sortColumns[q.sort.replace(/^-/, "") as keyof typeof sortColumns];
+  const { column, direction } = ordering(q);
   const [rows, count] = await Promise.all([
     filteredDiscs(db, q)
       .innerJoin("accessions as a", "a.id", "d.accession_id")
@@ -77,9 +93,8 @@ export async function listDiscsWith(db: Db, input: unknown): Promise<{ rows: Dis
         "d.condition_grade as conditionGrade",
         "d.updated_at as updatedAt",
       ])
-      .orderBy(column, desc ? "desc" : "asc")
-      // Tie-breaker in the same direction, so one index serves the whole ordering.
-      .orderBy("d.shelf_mark", desc ? "desc" : "asc")
+      .orderBy(column, direction)
+      .orderBy("d.shelf_mark", direction)
       .limit(q.pageSize)
       .offset((q.page - 1) * q.pageSize)
       .execute(),

@@ -7,7 +7,7 @@ import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { enqueueMail } from "../mail/outbox";
 import { env } from "../env";
-import { appendEvent } from "../provenance";
+import { appendEvent, appendEvents, type NewEvent } from "../provenance";
 import { decideReview } from "../review";
 import { assignSchema, statusLabels, transitionSchema } from "../validation/catalogue";
 
@@ -114,6 +114,7 @@ export async function assignSides(actor: SessionUser, input: unknown): Promise<{
     const sides = await q.execute();
     const skipped: { sideId: string; reason: string }[] = [];
     const done: string[] = [];
+    const events: NewEvent[] = [];
     for (const s of sides) {
       if (!["catalogued", "returned", "assigned"].includes(s.status)) {
         skipped.push({ sideId: s.id, reason: `${s.shelf_mark} side ${s.designation} is already ${statusLabels[s.status].toLowerCase()}` });
@@ -121,7 +122,7 @@ export async function assignSides(actor: SessionUser, input: unknown): Promise<{
       }
       if (s.status === "assigned" && s.assigned_engineer_id === engineerId) continue;
       await trx.updateTable("sides").set({ status: "assigned", assigned_engineer_id: engineerId, return_reason: null, version: s.version + 1, updated_at: sql`now()` }).where("id", "=", s.id).execute();
-      await appendEvent(trx, {
+      events.push({
         actorId: actor.id,
         kind: "side.assigned",
         subjectType: "side",
@@ -131,6 +132,8 @@ export async function assignSides(actor: SessionUser, input: unknown): Promise<{
       });
       done.push(`${s.shelf_mark} side ${s.designation}`);
     }
+    // One lock and batched inserts for the whole assignment (it may cover thousands of sides).
+    await appendEvents(trx, events);
     if (done.length) {
       await enqueueMail(trx, {
         to: engineer.email,

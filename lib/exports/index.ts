@@ -5,9 +5,9 @@ import { db } from "../../db";
 import { AppError } from "../http/errors";
 import { discPackage } from "./package";
 import { premisXml } from "./premis";
-import { discRecord, premisRecord } from "./record";
+import { discRecord, fileNameBase, premisRecord } from "./record";
 
-export const exportQuerySchema = z.object({ format: z.enum(["json", "premis", "zip"], { error: "format is json, premis or zip." }).default("json") });
+const exportQuerySchema = z.object({ format: z.enum(["json", "premis", "zip"], { error: "format is json, premis or zip." }).default("json") });
 
 function download(body: BodyInit, type: string, fileName: string): Response {
   return new Response(body, { headers: { "content-type": type, "content-disposition": `attachment; filename="${fileName}"`, "cache-control": "no-store" } });
@@ -20,7 +20,7 @@ export async function exportDisc(discId: string, input: unknown): Promise<Respon
     return download(Readable.toWeb(pkg.stream) as ReadableStream, "application/zip", pkg.fileName);
   }
   const record = await discRecord(discId);
-  const base = record.disc.shelfMark.replace(/[^A-Za-z0-9._-]+/g, "_");
+  const base = fileNameBase(record.disc.shelfMark);
   if (format === "premis") return download(premisXml(premisRecord([record])), "application/xml; charset=utf-8", `${base}-premis.xml`);
   return download(`${JSON.stringify(record, null, 2)}\n`, "application/json; charset=utf-8", `${base}-record.json`);
 }
@@ -34,7 +34,7 @@ export async function exportAccession(accessionId: string, input: unknown): Prom
   const discs = await db.selectFrom("discs").select("id").where("accession_id", "=", accessionId).orderBy("shelf_mark").execute();
   const records = [];
   for (const d of discs) records.push(await discRecord(d.id));
-  const base = accession.identifier.replace(/[^A-Za-z0-9._-]+/g, "_");
+  const base = fileNameBase(accession.identifier);
   if (format === "premis") {
     if (!records.length) throw new AppError("conflict", 409, "The accession has no discs to describe yet.");
     return download(premisXml(premisRecord(records)), "application/xml; charset=utf-8", `${base}-premis.xml`);

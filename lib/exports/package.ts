@@ -5,7 +5,7 @@ import yazl from "yazl";
 import { AppError } from "../http/errors";
 import { objectStream } from "../storage/objects";
 import { premisXml } from "./premis";
-import { discRecord, premisRecord } from "./record";
+import { discRecord, fileNameBase, premisRecord } from "./record";
 
 function sha256(text: string): string {
   return createHash("sha256").update(text, "utf8").digest("hex");
@@ -23,7 +23,7 @@ export async function discPackage(discId: string): Promise<{ fileName: string; s
   if (!record.disc.sides.length || unapproved.length) {
     throw new AppError("conflict", 409, `Only an approved disc is packaged: ${unapproved.length ? `side ${unapproved.map((s) => s.designation).join(", ")} ${unapproved.length > 1 ? "are" : "is"} not approved yet` : "it has no sides"}.`);
   }
-  const base = record.disc.shelfMark.replace(/[^A-Za-z0-9._-]+/g, "_");
+  const base = fileNameBase(record.disc.shelfMark);
   const json = `${JSON.stringify(record, null, 2)}\n`;
   const xml = premisXml(premisRecord([record]));
   // The latest access copy of each side is the one approved.

@@ -4,7 +4,7 @@
 // PREMIS event-type vocabulary), date-time, detail, outcome, agents and objects.
 import { create } from "xmlbuilder2";
 
-export const PREMIS_NS = "http://www.loc.gov/premis/v3";
+const PREMIS_NS = "http://www.loc.gov/premis/v3";
 const XSI_NS = "http://www.w3.org/2001/XMLSchema-instance";
 const EVENT_TYPE_AUTHORITY = "http://id.loc.gov/vocabulary/preservation/eventType";
 

@@ -40,6 +40,11 @@ export async function discRecord(discId: string) {
 
 export type DiscRecordExport = Awaited<ReturnType<typeof discRecord>>;
 
+/** A shelf mark or accession identifier as the start of a file name: other characters than letters, digits, ".", "_" and "-" become "_". */
+export function fileNameBase(name: string): string {
+  return name.replace(/[^A-Za-z0-9._-]+/g, "_");
+}
+
 function sideName(r: DiscRecordExport, sideId: string): string {
   const s = r.disc.sides.find((x) => x.id === sideId);
   return `${r.disc.shelfMark} side ${s?.designation ?? "?"}`;

@@ -17,13 +17,21 @@ async function activeAdminCount(trx: Transaction<Database>): Promise<number> {
   return row.n;
 }
 
+/**
+ * Locks the users table for the rest of the transaction, so that two admins cannot demote
+ * or deactivate each other at once, and reads the person to change.
+ */
+async function lockPerson(trx: Transaction<Database>, userId: string) {
+  await sql`LOCK TABLE users IN SHARE ROW EXCLUSIVE MODE`.execute(trx);
+  const user = await trx.selectFrom("users").select(["id", "email", "role", "active"]).where("id", "=", userId).executeTakeFirst();
+  if (!user) throw new AppError("not_found", 404, "No such person.");
+  return user;
+}
+
 export async function changeRole(actor: SessionUser, input: { userId: unknown; role: unknown }): Promise<void> {
   const { userId, role } = changeRoleSchema.parse(input);
   await db.transaction().execute(async (trx) => {
-    // Serialise role changes so two admins cannot demote each other at once.
-    await sql`LOCK TABLE users IN SHARE ROW EXCLUSIVE MODE`.execute(trx);
-    const user = await trx.selectFrom("users").select(["id", "email", "role", "active"]).where("id", "=", userId).executeTakeFirst();
-    if (!user) throw new AppError("not_found", 404, "No such person.");
+    const user = await lockPerson(trx, userId);
     if (user.role === role) return;
     if (user.role === "admin" && user.active && (await activeAdminCount(trx)) <= 1) {
       throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
@@ -37,9 +45,7 @@ export async function changeRole(actor: SessionUser, input: { userId: unknown; r
 export async function setActive(actor: SessionUser, input: { userId: unknown; active: unknown }): Promise<void> {
   const { userId, active } = setActiveSchema.parse(input);
   await db.transaction().execute(async (trx) => {
-    await sql`LOCK TABLE users IN SHARE ROW EXCLUSIVE MODE`.execute(trx);
-    const user = await trx.selectFrom("users").select(["id", "email", "role", "active"]).where("id", "=", userId).executeTakeFirst();
-    if (!user) throw new AppError("not_found", 404, "No such person.");
+    const user = await lockPerson(trx, userId);
     if (user.active === active) return;
     if (!active && userId === actor.id) throw new AppError("conflict", 409, "You cannot deactivate your own account.");
     if (!active && user.role === "admin" && (await activeAdminCount(trx)) <= 1) {

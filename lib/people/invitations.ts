@@ -47,6 +47,14 @@ export type InvitationState =
   | { state: "open"; email: string; role: Role; expiresAt: Date }
   | { state: "expired" | "used" | "revoked" | "unknown" };
 
+/** Why an invitation can no longer be used (in the order the person is told), or null while it is open. */
+function closedBecause(inv: { accepted_at: Date | null; revoked_at: Date | null; expires_at: Date }): "used" | "revoked" | "expired" | null {
+  if (inv.accepted_at) return "used";
+  if (inv.revoked_at) return "revoked";
+  if (inv.expires_at.getTime() <= Date.now()) return "expired";
+  return null;
+}
+
 /** What the invitation page shows for a token, without changing anything. */
 export async function lookUpInvitation(token: string): Promise<InvitationState> {
   const inv = await db
@@ -55,9 +63,8 @@ export async function lookUpInvitation(token: string): Promise<InvitationState> 
     .where("token_hash", "=", hashToken(token))
     .executeTakeFirst();
   if (!inv) return { state: "unknown" };
-  if (inv.accepted_at) return { state: "used" };
-  if (inv.revoked_at) return { state: "revoked" };
-  if (inv.expires_at.getTime() <= Date.now()) return { state: "expired" };
+  const closed = closedBecause(inv);
+  if (closed) return { state: closed };
   return { state: "open", email: inv.email, role: inv.role, expiresAt: inv.expires_at };
 }
 
@@ -80,9 +87,8 @@ export async function acceptInvitation(input: { token: unknown; name: unknown; p
       .forUpdate()
       .executeTakeFirst();
     if (!inv) throw new AppError("not_found", 404, invitationProblems.unknown);
-    if (inv.accepted_at) throw new AppError("used", 410, invitationProblems.used);
-    if (inv.revoked_at) throw new AppError("used", 410, invitationProblems.revoked);
-    if (inv.expires_at.getTime() <= Date.now()) throw new AppError("expired", 410, invitationProblems.expired);
+    const closed = closedBecause(inv);
+    if (closed) throw new AppError(closed === "expired" ? "expired" : "used", 410, invitationProblems[closed]);
     const taken = await trx.selectFrom("users").select("id").where("email", "=", inv.email).executeTakeFirst();
     if (taken) throw new AppError("conflict", 409, `${inv.email} already has an account. Sign in instead.`);
     const user = await trx

@@ -38,12 +38,17 @@ export async function requestPasswordReset(input: { email: unknown }): Promise<v
   });
 }
 
+/** Why a reset link can no longer be used, or null while it is open. */
+function closedBecause(row: { used_at: Date | null; expires_at: Date }): "used" | "expired" | null {
+  if (row.used_at) return "used";
+  if (row.expires_at.getTime() <= Date.now()) return "expired";
+  return null;
+}
+
 export async function lookUpReset(token: string): Promise<"open" | keyof typeof resetProblems> {
   const row = await db.selectFrom("password_resets").select(["expires_at", "used_at"]).where("token_hash", "=", hashToken(token)).executeTakeFirst();
   if (!row) return "unknown";
-  if (row.used_at) return "used";
-  if (row.expires_at.getTime() <= Date.now()) return "expired";
-  return "open";
+  return closedBecause(row) ?? "open";
 }
 
 export async function resetPassword(input: { token: unknown; password: unknown; confirm: unknown }): Promise<{ email: string }> {
@@ -58,8 +63,8 @@ export async function resetPassword(input: { token: unknown; password: unknown; 
       .forUpdate()
       .executeTakeFirst();
     if (!row) throw new AppError("not_found", 404, resetProblems.unknown);
-    if (row.used_at) throw new AppError("used", 410, resetProblems.used);
-    if (row.expires_at.getTime() <= Date.now()) throw new AppError("expired", 410, resetProblems.expired);
+    const closed = closedBecause(row);
+    if (closed) throw new AppError(closed, 410, resetProblems[closed]);
     if (!row.active) throw new AppError("forbidden", 403, "This account has been deactivated. Ask the lab's admin.");
     await trx.updateTable("password_resets").set({ used_at: sql`now()` }).where("id", "=", row.id).execute();
     await trx.updateTable("users").set({ password_hash: passwordHash, updated_at: sql`now()` }).where("id", "=", row.userId).execute();

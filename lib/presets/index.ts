@@ -47,11 +47,6 @@ export async function getPreset(id: string): Promise<PresetSummary> {
   return toSummary(row);
 }
 
-export async function getPresetByName(name: string): Promise<PresetSummary | null> {
-  const row = await presetQuery().where(sql`lower(p.name)`, "=", name.toLowerCase()).executeTakeFirst();
-  return row ? toSummary(row) : null;
-}
-
 export async function listPresetVersions(id: string): Promise<PresetVersion[]> {
   await getPreset(id);
   const rows = await db
@@ -71,7 +66,7 @@ async function assertNameFree(name: string, exceptId?: string): Promise<void> {
 }
 
 /** A new preset and its version 1, in one transaction. */
-export async function createPreset(actor: SessionUser | null, input: unknown): Promise<PresetSummary> {
+export async function createPreset(actor: SessionUser, input: unknown): Promise<PresetSummary> {
   const { name, spec, notes, changeNote } = createPresetSchema.parse(input);
   checkSpec(spec as CurveSpec);
   await assertNameFree(name);
@@ -79,9 +74,9 @@ export async function createPreset(actor: SessionUser | null, input: unknown): P
     const preset = await trx.insertInto("curve_presets").values({ name, current_version: 1 }).returning("id").executeTakeFirstOrThrow();
     await trx
       .insertInto("curve_preset_versions")
-      .values({ preset_id: preset.id, version: 1, name, spec: JSON.stringify(spec), notes, change_note: changeNote, created_by: actor?.id ?? null })
+      .values({ preset_id: preset.id, version: 1, name, spec: JSON.stringify(spec), notes, change_note: changeNote, created_by: actor.id })
       .execute();
-    await appendEvent(trx, { actorId: actor?.id ?? null, kind: "preset.created", subjectType: "preset", subjectId: preset.id, payload: { name, version: 1, after: spec, notes, changeNote } });
+    await appendEvent(trx, { actorId: actor.id, kind: "preset.created", subjectType: "preset", subjectId: preset.id, payload: { name, version: 1, after: spec, notes, changeNote } });
     return preset.id;
   });
   return getPreset(id);

@@ -2,6 +2,7 @@ import "server-only";
 import { z } from "zod";
 import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
+import { escapeLike } from "../catalogue/list-query";
 import { verifyChain } from ".";
 
 /** Walks the whole chain, records the run, and answers the report. */
@@ -24,7 +25,7 @@ export async function lastChainCheck() {
     .executeTakeFirst();
 }
 
-export const eventQuerySchema = z.object({
+const eventQuerySchema = z.object({
   disc: z.uuid().optional(),
   kind: z.string().trim().max(80).optional(),
   actor: z.uuid().optional(),
@@ -43,7 +44,7 @@ export async function listEvents(input: unknown) {
     .orderBy("e.seq", "desc")
     .limit(q.limit);
   if (q.disc) query = query.where("e.disc_id", "=", q.disc);
-  if (q.kind) query = query.where("e.kind", "like", `${q.kind.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
+  if (q.kind) query = query.where("e.kind", "like", `${escapeLike(q.kind)}%`);
   if (q.actor) query = query.where("e.actor_id", "=", q.actor);
   if (q.before) query = query.where("e.seq", "<", q.before);
   return query.execute();

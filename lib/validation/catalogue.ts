@@ -37,7 +37,7 @@ const year = z.coerce
   .max(2100, "That year is in the future.");
 
 /** Empty strings from forms and spreadsheets mean "not given". */
-const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
+export const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
 export const sideInputSchema = z.object({
   id: z.uuid().optional(),
@@ -78,12 +78,13 @@ export const discFieldsSchema = z
     message: "A base is recorded for lacquer and transcription discs only.",
   });
 
-export const createDiscSchema = discFieldsSchema.and(z.object({ sides: z.array(sideInputSchema).max(8, "At most 8 sides.").default([]) }));
+const sidesSchema = z.array(sideInputSchema).max(8, "At most 8 sides.").default([]);
+
+export const createDiscSchema = discFieldsSchema.and(z.object({ sides: sidesSchema }));
+export type DiscInput = z.infer<typeof createDiscSchema>;
 
 /** An edit carries the version it was made from: a newer version in the database is a conflict. */
-export const updateDiscSchema = discFieldsSchema.and(
-  z.object({ version: z.coerce.number().int().positive(), sides: z.array(sideInputSchema).max(8, "At most 8 sides.").default([]) }),
-);
+export const updateDiscSchema = discFieldsSchema.and(z.object({ version: z.coerce.number().int().positive(), sides: sidesSchema }));
 
 export const accessionSchema = z.object({
   identifier: text(80, "Identifier").min(1, "Give the accession identifier."),

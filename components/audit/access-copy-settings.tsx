@@ -1,16 +1,12 @@
 "use client";
-import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useQueryClient } from "@tanstack/react-query";
 import { useId, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
+import { useLabSettings } from "@/hooks/use-lab-settings";
 import { fetchJson } from "@/lib/http/client";
 import { accessCopyRates } from "@/lib/validation/transfers";
-
-interface Settings {
-  accessCopyRateHz: "transfer" | number;
-  accessCopyBitDepth: 16 | 24;
-}
 
 function rateWords(rate: "transfer" | number): string {
   return rate === "transfer" ? "the transfer's own rate" : `${rate / 1000} kHz`;
@@ -20,7 +16,7 @@ function rateWords(rate: "transfer" | number): string {
 export function AccessCopySettings({ canEdit }: { canEdit: boolean }) {
   const uid = useId();
   const queryClient = useQueryClient();
-  const settings = useQuery({ queryKey: ["settings"], queryFn: () => fetchJson<Settings>("/api/settings") });
+  const settings = useLabSettings();
   const [rate, setRate] = useState<"transfer" | number | null>(null);
   const [bits, setBits] = useState<16 | 24 | null>(null);
   const [state, setState] = useState<{ ok: boolean; text: string } | null>(null);

@@ -3,10 +3,11 @@
  * Everything shown comes from the event itself (its payload as it was hashed), so
  * a curve event shows the preset values of that moment, not today's version.
  */
+import { formatBytes } from "@/components/bench/progress-bar";
 import { discFieldLabels, fieldText, sideChanges } from "@/components/catalogue/fields";
 import { statusLabel } from "@/components/catalogue/format";
-import { formatNumber } from "@/components/curves/plot-format";
-import { CORNER_NAMES, type CornerInput, type CornerName, type CurveSpec, hzToUs, usToHz } from "@/lib/curves";
+import { CORNER_WORDS, formatNumber } from "@/components/curves/plot-format";
+import { CORNER_NAMES, type CornerInput, type CurveSpec, hzToUs, usToHz } from "@/lib/curves";
 import { channelModeLabels, evidenceLabels } from "@/lib/validation/transfers";
 import type { AuditEvent } from "./types";
 
@@ -24,8 +25,6 @@ export interface EventReading {
   details: EventDetail[];
   tone: "plain" | "good" | "bad";
 }
-
-const CORNER_WORDS: Record<CornerName, string> = { turnover: "turnover", shelf: "shelf", rolloff: "rolloff", highpass: "high-pass", ultrasonic: "ultrasonic" };
 
 export function cornerText(c: CornerInput | null | undefined): string {
   if (!c) return "none";
@@ -49,18 +48,10 @@ export function curveText(spec: Partial<CurveSpec> | null | undefined): string {
 
 const objectWords = (kind: unknown) => (kind === "render" ? "access copy" : "flat transfer");
 
+/** "1.4 GiB (1,503,238,553 bytes)": the exact count beside the readable size. */
 function bytesText(n: unknown): string {
   const v = Number(n);
-  if (!Number.isFinite(v)) return "—";
-  if (v < 1024) return `${v} bytes`;
-  const units = ["KiB", "MiB", "GiB", "TiB"];
-  let x = v / 1024;
-  let u = 0;
-  while (x >= 1024 && u < units.length - 1) {
-    x /= 1024;
-    u++;
-  }
-  return `${x.toFixed(x >= 100 ? 0 : 1)} ${units[u]} (${v.toLocaleString("en-GB")} bytes)`;
+  return Number.isFinite(v) && v >= 1024 ? `${formatBytes(v)} (${v.toLocaleString("en-GB")} bytes)` : formatBytes(v);
 }
 
 export function describeEvent(e: AuditEvent): EventReading {

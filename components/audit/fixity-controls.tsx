@@ -9,6 +9,7 @@ import { useEffect, useId, useRef, useState } from "react";
 import { when } from "@/components/catalogue/format";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
+import { useLabSettings } from "@/hooks/use-lab-settings";
 import { AppError } from "@/lib/http/errors";
 import { fetchJson } from "@/lib/http/client";
 import { DiscPicker } from "./disc-picker";
@@ -17,7 +18,7 @@ import type { AuditEvent, DiscPick } from "./types";
 export function FixityCycle({ canEdit }: { canEdit: boolean }) {
   const uid = useId();
   const queryClient = useQueryClient();
-  const settings = useQuery({ queryKey: ["settings"], queryFn: () => fetchJson<{ fixityCycleDays: number }>("/api/settings") });
+  const settings = useLabSettings();
   const [draft, setDraft] = useState<string | null>(null);
   const [saving, setSaving] = useState(false);
   const [error, setError] = useState<string | null>(null);
@@ -139,14 +140,11 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
   const fresh = run ? (results.data?.events ?? []).filter((e) => new Date(e.at).getTime() >= run.askedAt - 1000) : [];
   const failed = fresh.filter((e) => (e.payload as { outcome?: string }).outcome !== "pass");
   const complete = !!run && fresh.length >= run.queued;
-  const [seenComplete, setSeenComplete] = useState(false);
-  if (complete !== seenComplete) {
-    setSeenComplete(complete);
-    if (complete) {
-      void queryClient.invalidateQueries({ queryKey: ["fixity-alerts"] });
-      void queryClient.invalidateQueries({ queryKey: ["audit-events"] });
-    }
-  }
+  useEffect(() => {
+    if (!complete) return;
+    void queryClient.invalidateQueries({ queryKey: ["fixity-alerts"] });
+    void queryClient.invalidateQueries({ queryKey: ["audit-events"] });
+  }, [complete, queryClient]);
 
   const start = async () => {
     if (!disc) return;

@@ -3,7 +3,6 @@
  * The transfer bench for one side: choose and record the curve, compare
  * candidates by eye and by ear, upload the flat transfer, render the access copy.
  */
-import { useQuery } from "@tanstack/react-query";
 import { useCallback, useId, useMemo, useState } from "react";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { CURVE_COLORS } from "@/components/curves/plot-format";
@@ -11,26 +10,25 @@ import { ResponsePlot } from "@/components/curves/response-plot";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
+import { usePresets } from "@/hooks/use-presets";
+import { useSide } from "@/hooks/use-side";
 import { defaultChannelMode } from "@/lib/audition/channel-mode";
 import { mergeCurve } from "@/lib/audition/curve-merge";
 import type { CurveSpec } from "@/lib/curves";
-import { fetchJson } from "@/lib/http/client";
 import { AuditionPanel } from "./audition-panel";
 import { ChoiceHistory } from "./choice-history";
 import { CurveChoiceForm } from "./curve-choice-form";
 import { RenderPanel } from "./render-panel";
 import { TransfersList } from "./transfers-list";
-import type { Candidate, ChannelMode, CurveChoiceJson, PresetJson, SideWithDisc, TransferJson } from "./types";
+import type { Candidate, ChannelMode } from "./types";
 import { UploadPanel } from "./upload-panel";
 
 const MAX_CANDIDATES = 4;
 
 export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; userId: string; extraSideIds: string[] }) {
   const uid = useId();
-  const side = useQuery({ queryKey: ["side", sideId], queryFn: () => fetchJson<SideWithDisc>(`/api/sides/${sideId}`) });
-  const choices = useQuery({ queryKey: ["curve-choices", sideId], queryFn: () => fetchJson<{ choices: CurveChoiceJson[] }>(`/api/sides/${sideId}/curve-choices`) });
-  const transfers = useQuery({ queryKey: ["transfers", sideId], queryFn: () => fetchJson<{ transfers: TransferJson[] }>(`/api/sides/${sideId}/transfers`) });
-  const presets = useQuery({ queryKey: ["presets"], queryFn: () => fetchJson<{ presets: PresetJson[] }>("/api/curves/presets") });
+  const { side, choices, transfers } = useSide(sideId);
+  const presets = usePresets();
 
   const [editSpec, setEditSpec] = useState<CurveSpec | null>(null);
   const onEffectiveSpec = useCallback((s: CurveSpec | null) => setEditSpec(s), []);
@@ -152,7 +150,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                 ) : null}
                 <p className="text-xs text-ink-faint">Up to {MAX_CANDIDATES} curves. Presets are shown at the choice&apos;s speeds.</p>
               </div>
-              {candidates.length ? <ResponsePlot curves={candidates.map((c, i) => ({ label: c.label, spec: c.spec, color: CURVE_COLORS[i % CURVE_COLORS.length] }))} height={340} showPhase={false} /> : null}
+              {candidates.length ? <ResponsePlot curves={candidates} height={340} showPhase={false} /> : null}
             </div>
           </Panel>
 

@@ -1,23 +1,26 @@
 "use client";
 import { when } from "@/components/catalogue/format";
-import { formatNumber } from "@/components/curves/plot-format";
+import { CORNER_WORDS, formatNumber } from "@/components/curves/plot-format";
 import { Badge } from "@/components/ui/badge";
-import { type CornerName, CORNER_NAMES, type CurveSpec } from "@/lib/curves";
+import { CORNER_NAMES, type CurveSpec } from "@/lib/curves";
 import { evidenceLabels } from "@/lib/validation/transfers";
 import { describeCorner } from "./curve-choice-form";
 import type { CurveChoiceJson } from "./types";
-
-const SHORT: Record<CornerName, string> = { turnover: "turnover", shelf: "shelf", rolloff: "rolloff", highpass: "high-pass", ultrasonic: "ultrasonic" };
 
 function changed(overrides: Partial<CurveSpec>): string[] {
   const out: string[] = [];
   for (const n of CORNER_NAMES) {
     if (!(n in overrides)) continue;
     const v = overrides[n];
-    out.push(v ? `${SHORT[n]} ${describeCorner(v)}` : `no ${SHORT[n]}`);
+    out.push(v ? `${CORNER_WORDS[n]} ${describeCorner(v)}` : `no ${CORNER_WORDS[n]}`);
   }
   if (overrides.reference) out.push(`${overrides.reference.db} dB at ${overrides.reference.hz} Hz`);
   return out;
+}
+
+/** "RIAA v3", or "Own values" for a choice without a preset. */
+export function curveTitle(c: CurveChoiceJson): string {
+  return c.presetName ? `${c.presetName} v${c.presetVersion}` : "Own values";
 }
 
 /** Every curve recorded for the side, newest first: the first is the one a render uses. */
@@ -32,7 +35,7 @@ export function ChoiceHistory({ choices, loading }: { choices: CurveChoiceJson[]
           <li key={c.id} className={i === 0 ? "rounded-lg border border-groove/40 bg-groove-wash/40 p-3" : "rounded-lg border border-paper-edge p-3"}>
             <div className="flex flex-wrap items-center gap-2">
               {i === 0 ? <Badge tone="groove">Current</Badge> : null}
-              <span className="font-semibold">{c.presetName ? `${c.presetName} v${c.presetVersion}` : "Own values"}</span>
+              <span className="font-semibold">{curveTitle(c)}</span>
               {c.cutSpeedRpm !== c.transferSpeedRpm ? (
                 <span className="font-mono text-xs text-ink-soft">
                   {formatNumber(c.transferSpeedRpm)}/{formatNumber(c.cutSpeedRpm)} rpm

@@ -5,19 +5,21 @@
  * reasons. What it adds up to (the effective curve) is worked out here the same
  * way the server records it, and offered to the plot and the player as "Edits".
  */
-import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useQueryClient } from "@tanstack/react-query";
 import { useEffect, useId, useMemo, useState } from "react";
+import { parseNumber } from "@/components/curves/corner-fields";
 import { formatNumber } from "@/components/curves/plot-format";
 import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
 import { FieldShell, SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
+import { usePresets, usePresetVersions } from "@/hooks/use-presets";
 import { mergeCurve } from "@/lib/audition/curve-merge";
 import { type CornerInput, type CornerName, CurveError, type CurveSpec, hzToUs, resolveCurve, usToHz } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { AppError } from "@/lib/http/errors";
 import { evidenceKinds, evidenceLabels } from "@/lib/validation/transfers";
-import type { CurveChoiceJson, EvidenceKind, PresetJson, PresetVersionJson, SideWithDisc } from "./types";
+import type { CurveChoiceJson, EvidenceKind, SideWithDisc } from "./types";
 
 type Mode = "keep" | "set" | "remove";
 interface CornerDraft {
@@ -38,11 +40,6 @@ const UNIT_TEXT: Record<CornerInput["unit"], string> = { hz: "Hz", us: "µs", db
 const blankCorners = (): Record<CornerName, CornerDraft> =>
   Object.fromEntries(CORNERS.map((c) => [c.name, { mode: "keep", unit: c.units[0], text: "" }])) as Record<CornerName, CornerDraft>;
 
-function parse(text: string): number {
-  const t = text.trim().replace(",", ".");
-  return t === "" ? Number.NaN : Number(t);
-}
-
 /** "318 µs · 500.5 Hz" — a corner as the preset gives it. */
 export function describeCorner(c: CornerInput | null | undefined): string {
   if (!c) return "none";
@@ -55,10 +52,10 @@ function overridesOf(corners: Record<CornerName, CornerDraft>, ref: { on: boolea
   const out: Partial<CurveSpec> = {};
   for (const c of CORNERS) {
     const d = corners[c.name];
-    if (d.mode === "set") out[c.name] = { unit: d.unit, value: parse(d.text) };
+    if (d.mode === "set") out[c.name] = { unit: d.unit, value: parseNumber(d.text) };
     else if (d.mode === "remove") out[c.name] = null;
   }
-  if (ref.on) out.reference = { hz: parse(ref.hz), db: parse(ref.db) };
+  if (ref.on) out.reference = { hz: parseNumber(ref.hz), db: parseNumber(ref.db) };
   return out;
 }
 
@@ -87,7 +84,7 @@ export function CurveChoiceForm({
   const uid = useId();
   const queryClient = useQueryClient();
   const { side, disc } = data;
-  const presets = useQuery({ queryKey: ["presets"], queryFn: () => fetchJson<{ presets: PresetJson[] }>("/api/curves/presets") });
+  const presets = usePresets();
 
   const [presetId, setPresetId] = useState(current?.presetId ?? "");
   const [version, setVersion] = useState<number | null>(current?.presetVersion ?? null);
@@ -103,11 +100,7 @@ export function CurveChoiceForm({
   const [serverError, setServerError] = useState<{ message: string; fields: Record<string, string[]> } | null>(null);
   const [saved, setSaved] = useState<string | null>(null);
 
-  const versions = useQuery({
-    queryKey: ["preset-versions", presetId],
-    queryFn: () => fetchJson<{ versions: PresetVersionJson[] }>(`/api/curves/presets/${presetId}/versions`),
-    enabled: !!presetId,
-  });
+  const versions = usePresetVersions(presetId);
   const preset = presets.data?.presets.find((p) => p.id === presetId) ?? null;
   const chosenVersion = version ?? preset?.currentVersion ?? null;
   const presetSpec: CurveSpec | null = preset
@@ -117,8 +110,8 @@ export function CurveChoiceForm({
     : null;
 
   const overrides = useMemo(() => overridesOf(corners, ref), [corners, ref]);
-  const cut = parse(cutRpm);
-  const transfer = parse(transferRpm);
+  const cut = parseNumber(cutRpm);
+  const transfer = parseNumber(transferRpm);
   const effective = useMemo<{ spec: CurveSpec | null; error: CurveError | null }>(() => {
     if (!preset && Object.keys(overrides).length === 0) return { spec: null, error: null };
     if (preset && !presetSpec) return { spec: null, error: null };

@@ -20,7 +20,7 @@ export function ProgressBar({ value, label, detail, tone = "groove", testId }: {
 
 export function formatBytes(bytes: number): string {
   if (!Number.isFinite(bytes)) return "—";
-  const units = ["bytes", "KiB", "MiB", "GiB"];
+  const units = ["bytes", "KiB", "MiB", "GiB", "TiB"];
   let v = bytes;
   let u = 0;
   while (v >= 1024 && u < units.length - 1) {

@@ -6,12 +6,13 @@
  * whose coding history records the chain.
  */
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useId, useState } from "react";
+import { useEffect, useId, useState } from "react";
 import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
+import { useLabSettings } from "@/hooks/use-lab-settings";
 import { fetchJson } from "@/lib/http/client";
 import { accessCopyRates, channelModeLabels } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
@@ -42,7 +43,7 @@ export function RenderPanel({
   const uid = useId();
   const queryClient = useQueryClient();
   // The lab's defaults for access copies (admins set them on the audit page).
-  const settings = useQuery({ queryKey: ["settings"], queryFn: () => fetchJson<{ accessCopyRateHz: "transfer" | number; accessCopyBitDepth: 16 | 24 }>("/api/settings") });
+  const settings = useLabSettings();
   const [bitChoice, setBitDepth] = useState<16 | 24 | null>(null);
   const [rateChoice, setRate] = useState<"transfer" | number | null>(null);
   const bitDepth = bitChoice ?? settings.data?.accessCopyBitDepth ?? 24;
@@ -58,11 +59,10 @@ export function RenderPanel({
   const list = renders.data?.renders ?? [];
   const busyRender = list.some((r) => r.status === "queued" || r.status === "running");
   const lastStatus = list[0]?.status;
-  const [seen, setSeen] = useState<string | undefined>(undefined);
-  if (lastStatus !== seen) {
-    setSeen(lastStatus);
+  // A finished render moves the side on: read it again.
+  useEffect(() => {
     if (lastStatus === "done") void queryClient.invalidateQueries({ queryKey: ["side", sideId] });
-  }
+  }, [lastStatus, queryClient, sideId]);
 
   const request = async () => {
     setBusy(true);

@@ -2,6 +2,7 @@
 import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
+import { FileFact, Sha256Line } from "./file-facts";
 import { formatBytes, formatDuration } from "./progress-bar";
 import type { TransferJson } from "./types";
 
@@ -23,30 +24,18 @@ export function TransfersList({ transfers, loading, selectedId, onSelect }: { tr
             </Button>
           </div>
           <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-xs sm:grid-cols-4">
-            <Item k="Format" v={`${t.container} · ${t.encoding.toUpperCase()} ${t.bitsPerSample}-bit`} />
-            <Item k="Rate · channels" v={`${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${t.channels === 2 ? "stereo" : "mono"}`} />
-            <Item k="Length" v={`${formatDuration(Number(t.durationSeconds))} · ${Number(t.frames).toLocaleString("en-GB")} frames`} />
-            <Item k="Size" v={formatBytes(Number(t.bytes))} />
-            <Item k="Stylus" v={[t.stylusSize, t.stylusShape].filter(Boolean).join(", ") || "—"} />
-            <Item k="Measured speed" v={t.measuredSpeedRpm ? `${Number(t.measuredSpeedRpm)} rpm` : "—"} />
-            <Item k="Uploaded" v={`${t.uploadedBy} · ${when(t.createdAt)}`} wide />
-            <Item k="Chain" v={t.chain || "—"} wide />
+            <FileFact k="Format" v={`${t.container} · ${t.encoding.toUpperCase()} ${t.bitsPerSample}-bit`} />
+            <FileFact k="Rate · channels" v={`${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${t.channels === 2 ? "stereo" : "mono"}`} />
+            <FileFact k="Length" v={`${formatDuration(Number(t.durationSeconds))} · ${Number(t.frames).toLocaleString("en-GB")} frames`} />
+            <FileFact k="Size" v={formatBytes(Number(t.bytes))} />
+            <FileFact k="Stylus" v={[t.stylusSize, t.stylusShape].filter(Boolean).join(", ") || "—"} />
+            <FileFact k="Measured speed" v={t.measuredSpeedRpm ? `${Number(t.measuredSpeedRpm)} rpm` : "—"} />
+            <FileFact k="Uploaded" v={`${t.uploadedBy} · ${when(t.createdAt)}`} wide />
+            <FileFact k="Chain" v={t.chain || "—"} wide />
           </dl>
-          <p className="mt-2 break-all rounded bg-paper/70 px-2 py-1 font-mono text-[0.7rem] text-ink-soft" data-testid="transfer-sha256">
-            <span className="font-sans font-medium text-ink">SHA-256 </span>
-            {t.sha256}
-          </p>
+          <Sha256Line value={t.sha256} testId="transfer-sha256" />
         </li>
       ))}
     </ul>
-  );
-}
-
-function Item({ k, v, wide }: { k: string; v: string; wide?: boolean }) {
-  return (
-    <div className={wide ? "col-span-2" : undefined}>
-      <dt className="text-ink-faint">{k}</dt>
-      <dd className="font-mono text-ink">{v}</dd>
-    </div>
   );
 }

@@ -4,31 +4,13 @@ import type { CurveSpec } from "@/lib/curves";
 import type { channelModes, evidenceKinds } from "@/lib/validation/transfers";
 
 export type { DiscJson, SideJson };
+export type { PresetJson, PresetVersionJson } from "@/components/curves/types";
 export type EvidenceKind = (typeof evidenceKinds)[number];
 export type ChannelMode = (typeof channelModes)[number];
 
 export interface SideWithDisc {
   side: SideJson;
   disc: DiscJson;
-}
-
-export interface PresetJson {
-  id: string;
-  currentVersion: number;
-  version: number;
-  name: string;
-  spec: CurveSpec;
-  notes: string;
-}
-
-export interface PresetVersionJson {
-  presetId: string;
-  version: number;
-  name: string;
-  spec: CurveSpec;
-  notes: string;
-  changeNote: string;
-  createdAt: string;
 }
 
 export interface CurveChoiceJson {
@@ -91,5 +73,5 @@ export interface RenderJson {
 export interface Candidate {
   id: string;
   label: string;
-  spec: import("@/lib/curves").CurveSpec;
+  spec: CurveSpec;
 }

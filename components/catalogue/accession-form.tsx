@@ -4,12 +4,11 @@ import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { type KeyboardEvent, useId } from "react";
 import { type Resolver, useForm } from "react-hook-form";
 import { Button } from "@/components/ui/button";
-import { FieldShell } from "@/components/ui/field";
+import { controlClass, FieldShell } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { fetchJson } from "@/lib/http/client";
 import type { AppError } from "@/lib/http/errors";
 import { accessionSchema } from "@/lib/validation/catalogue";
-import { controlClass } from "./control";
 import type { AccessionJson } from "./types";
 
 interface Values {

@@ -4,7 +4,7 @@ import { type ColumnDef, getCoreRowModel, type RowSelectionState, type SortingSt
 import Link from "next/link";
 import { usePathname, useRouter, useSearchParams } from "next/navigation";
 import { useCallback, useEffect, useMemo, useState } from "react";
-import { Button } from "@/components/ui/button";
+import { Button, buttonClass } from "@/components/ui/button";
 import { TableView } from "@/components/ui/data-table";
 import { cx } from "@/components/ui/cx";
 import { fetchJson } from "@/lib/http/client";
@@ -351,7 +351,7 @@ export function ExportViewLink() {
   }
   q.set("sort", params.get("sort") || defaultSort);
   return (
-    <a href={`/api/discs/export?${q}`} className="inline-flex h-10 items-center justify-center rounded-md border border-paper-edge bg-white px-4 text-sm font-medium text-ink transition-colors hover:border-ink-faint" data-testid="export-view">
+    <a href={`/api/discs/export?${q}`} className={buttonClass({ variant: "secondary" })} data-testid="export-view">
       Export view
     </a>
   );

@@ -8,7 +8,7 @@ import { cx } from "@/components/ui/cx";
 import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
-import { formatLabels } from "@/lib/validation/catalogue";
+import { formatLabel } from "./format";
 
 interface AccessionChoice {
   id: string;
@@ -294,7 +294,7 @@ export function ImportPanel({ accessions, columns, templateCsv, maxRows }: { acc
                           <td className="whitespace-nowrap px-3 py-2 font-mono font-medium">{d.shelfMark}</td>
                           <td className="px-3 py-2 text-ink-soft">{d.accession || "—"}</td>
                           <td className="px-3 py-2">{[d.labelName, d.catalogueNumber].filter(Boolean).join(" · ") || <span className="text-ink-faint">—</span>}</td>
-                          <td className="px-3 py-2">{formatLabels[d.format] ?? d.format}</td>
+                          <td className="px-3 py-2">{formatLabel(d.format)}</td>
                           <td className="px-3 py-2 text-right tabular-nums">{d.nominalSpeedRpm}</td>
                           <td className="px-3 py-2">
                             {d.sides.length ? (

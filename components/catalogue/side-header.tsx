@@ -1,5 +1,6 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
+import { BackLink } from "@/components/ui/link-button";
 import { Notice } from "@/components/ui/notice";
 import { formatLabel, speedLabel } from "./format";
 import { HandlingCautions } from "./handling-cautions";
@@ -41,11 +42,7 @@ export function SideHeader({
     <>
       <header className="flex flex-wrap items-end justify-between gap-4 border-b border-paper-edge pb-5">
         <div className="space-y-1">
-          <p className="text-sm">
-            <Link href={back.href} className="text-ink-soft underline-offset-2 hover:text-ink hover:underline">
-              ← {back.label}
-            </Link>
-          </p>
+          <BackLink href={back.href}>{back.label}</BackLink>
           <h1 className="text-3xl font-semibold tracking-tight" data-testid={testId}>
             <Link href={`/catalogue/${disc.id}`} className="font-mono hover:underline">
               {disc.shelfMark}

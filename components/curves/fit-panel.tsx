@@ -6,7 +6,7 @@
  * taken into the editor.
  */
 import { scaleLinear, scaleLog } from "d3-scale";
-import { useId, useMemo, useState } from "react";
+import { useId, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import {

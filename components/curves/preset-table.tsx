@@ -4,18 +4,18 @@
  * in the units the trade quotes it in, and the peak gain worked out in the
  * browser from the stored curve.
  */
-import { useQuery } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
 import Link from "next/link";
 import { useMemo } from "react";
+import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
+import { usePresets } from "@/hooks/use-presets";
 import { type CurveSpec, describeCurve, type ResolvedCorner, type ResolvedCurve } from "@/lib/curves";
-import { fetchJson } from "@/lib/http/client";
 import { formatDb, formatHz, formatNumber } from "./plot-format";
-import type { PresetSummaryJson } from "./workbench";
+import type { PresetJson } from "./types";
 
-interface Row extends PresetSummaryJson {
+interface Row extends PresetJson {
   curve: ResolvedCurve | null;
   peakGainDb: number | null;
   peakHz: number | null;
@@ -23,9 +23,8 @@ interface Row extends PresetSummaryJson {
 }
 
 const column = createColumnHelper<Row>();
-const dateFmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
 
-function toRow(p: PresetSummaryJson): Row {
+function toRow(p: PresetJson): Row {
   try {
     const d = describeCurve(p.spec as CurveSpec);
     return { ...p, curve: d.curve, peakGainDb: d.peakGainDb, peakHz: d.peakHz, problem: null };
@@ -46,7 +45,7 @@ function CornerCell({ corner, rolloff }: { corner: ResolvedCorner | null | undef
 }
 
 export function PresetTable() {
-  const { data, isLoading, error } = useQuery({ queryKey: ["curve-presets"], queryFn: () => fetchJson<{ presets: PresetSummaryJson[] }>("/api/curves/presets") });
+  const { data, isLoading, error } = usePresets();
   const rows = useMemo(() => data?.presets.map(toRow), [data]);
 
   const columns = useMemo(
@@ -90,7 +89,7 @@ export function PresetTable() {
           <div className="whitespace-nowrap text-xs">
             <p>{c.row.original.createdBy ?? "—"}</p>
             <p className="text-ink-faint">
-              <time dateTime={c.row.original.createdAt}>{dateFmt.format(new Date(c.row.original.createdAt))}</time>
+              <time dateTime={c.row.original.createdAt}>{when(c.row.original.createdAt)}</time>
             </p>
           </div>
         ),

@@ -7,8 +7,8 @@
  */
 import { scaleLinear, scaleLog } from "d3-scale";
 import { type PointerEvent, useEffect, useId, useMemo, useRef, useState } from "react";
-import { type AnalogModel, analogGainDb, analogModel, analogPhaseRad, analogResponse, type CornerName, type CurveSpec, describeCurve, logGrid } from "@/lib/curves";
-import { CURVE_COLORS, formatDb, formatHz, formatHzTick, formatSigned } from "./plot-format";
+import { type AnalogModel, analogGainDb, analogModel, analogPhaseRad, analogResponse, type Asymptotes, type CurveSpec, describeCurve, logGrid } from "@/lib/curves";
+import { CORNER_WORDS, CURVE_COLORS, formatDb, formatHz, formatHzTick, formatSigned } from "./plot-format";
 
 export interface PlotCurve {
   label: string;
@@ -27,14 +27,6 @@ const GRID_POINTS = 420;
 /** Above this span the lowest part of the magnitude axis is cut off: a high-pass falling to −∞ would squash the rest. */
 const MAX_DB_SPAN = 84;
 
-const CORNER_WORDS: Record<CornerName, string> = {
-  turnover: "turnover",
-  shelf: "shelf",
-  rolloff: "rolloff",
-  highpass: "high-pass",
-  ultrasonic: "ultrasonic",
-};
-
 const LABEL_TICKS = [10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10_000, 20_000];
 const MINOR_TICKS = (() => {
   const out: number[] = [];
@@ -52,6 +44,7 @@ interface DrawnCurve {
   phaseDeg: number[];
   peakGainDb: number | null;
   peakHz: number | null;
+  asymptotes: Asymptotes | null;
 }
 
 function useWidth(fallback: number): [React.RefObject<HTMLDivElement | null>, number] {
@@ -100,9 +93,9 @@ export function ResponsePlot({
           const model = analogModel(c.spec);
           const r = analogResponse(model, grid);
           const d = describeCurve(c.spec);
-          return { label: c.label, color, model, error: null, gainDb: r.gainDb, phaseDeg: r.phaseDeg, peakGainDb: d.peakGainDb, peakHz: d.peakHz };
+          return { label: c.label, color, model, error: null, gainDb: r.gainDb, phaseDeg: r.phaseDeg, peakGainDb: d.peakGainDb, peakHz: d.peakHz, asymptotes: d.asymptotes };
         } catch (err) {
-          return { label: c.label, color, model: null, error: err instanceof Error ? err.message : String(err), gainDb: [], phaseDeg: [], peakGainDb: null, peakHz: null };
+          return { label: c.label, color, model: null, error: err instanceof Error ? err.message : String(err), gainDb: [], phaseDeg: [], peakGainDb: null, peakHz: null, asymptotes: null };
         }
       }),
     [curves, grid],
@@ -110,27 +103,22 @@ export function ResponsePlot({
 
   // Straight-line approximation of the first curve, rebuilt from its corners and segment slopes.
   const asym = useMemo(() => {
-    if (!showAsymptotes || !curves[0] || !drawn[0]?.model) return null;
-    try {
-      const a = describeCurve(curves[0].spec).asymptotes;
-      if (a.corners.length === 0) return null;
-      const { corners, segments } = a;
-      const levelAt = (hz: number): number => {
-        // Segment i ends at corner i; segment i+1 starts there.
-        let k = corners.findIndex((c) => hz <= c.hz);
-        if (k === -1) {
-          const last = corners[corners.length - 1];
-          return last.asymptoteGainDb + segments[segments.length - 1].slopeDbPerDecade * Math.log10(hz / last.hz);
-        }
-        const c = corners[k];
-        return c.asymptoteGainDb + segments[k].slopeDbPerDecade * Math.log10(hz / c.hz);
-      };
-      const xs = [PLOT_LOW_HZ, ...corners.map((c) => c.hz).filter((hz) => hz > PLOT_LOW_HZ && hz < PLOT_HIGH_HZ), PLOT_HIGH_HZ];
-      return { corners, segments, line: xs.map((hz) => ({ hz, db: levelAt(hz) })), levelAt };
-    } catch {
-      return null;
-    }
-  }, [showAsymptotes, curves, drawn]);
+    const a = showAsymptotes ? drawn[0]?.asymptotes : null;
+    if (!a || a.corners.length === 0) return null;
+    const { corners, segments } = a;
+    const levelAt = (hz: number): number => {
+      // Segment i ends at corner i; segment i+1 starts there.
+      const k = corners.findIndex((c) => hz <= c.hz);
+      if (k === -1) {
+        const last = corners[corners.length - 1];
+        return last.asymptoteGainDb + segments[segments.length - 1].slopeDbPerDecade * Math.log10(hz / last.hz);
+      }
+      const c = corners[k];
+      return c.asymptoteGainDb + segments[k].slopeDbPerDecade * Math.log10(hz / c.hz);
+    };
+    const xs = [PLOT_LOW_HZ, ...corners.map((c) => c.hz).filter((hz) => hz > PLOT_LOW_HZ && hz < PLOT_HIGH_HZ), PLOT_HIGH_HZ];
+    return { corners, segments, line: xs.map((hz) => ({ hz, db: levelAt(hz) })), levelAt };
+  }, [showAsymptotes, drawn]);
 
   const phasePanel = showPhase ? Math.round(height * 0.3) : 0;
   const gap = showPhase ? 30 : 0;
@@ -192,8 +180,6 @@ export function ResponsePlot({
     .map((c) => (c.error ? `${c.label}: cannot be drawn (${c.error})` : `${c.label}: peak ${formatDb(c.peakGainDb ?? NaN)} at ${formatHz(c.peakHz ?? NaN)}`))
     .join("; ");
 
-  const yMagTicks = yMag.ticks(8);
-  const yPhaseTicks = yPhase.ticks(4);
   const clipMag = `clip-mag-${uid}`;
   const clipPhase = `clip-phase-${uid}`;
   const ink = "#1d2327";
@@ -249,17 +235,7 @@ export function ResponsePlot({
           <g transform={`translate(${margin.left},${magTop})`}>
             <rect width={innerW} height={magHeight} fill="#fffdf8" stroke="#d9d1bf" />
             <FrequencyGrid x={x} height={magHeight} />
-            {yMagTicks.map((t) => (
-              <g key={t} transform={`translate(0,${yMag(t)})`}>
-                <line x2={innerW} stroke={t === 0 ? "#9aa1a3" : "#e6dfcf"} strokeWidth={t === 0 ? 1.2 : 1} />
-                <text x={-8} dy="0.32em" textAnchor="end" fontSize={11.5} fill={faint} className="font-mono">
-                  {formatSigned(t, 0)}
-                </text>
-              </g>
-            ))}
-            <text transform={`translate(${-44},${magHeight / 2}) rotate(-90)`} textAnchor="middle" fontSize={12} fill={ink} fontWeight={600}>
-              Gain (dB)
-            </text>
+            <ValueAxis ticks={yMag.ticks(8)} y={yMag} width={innerW} height={magHeight} title="Gain (dB)" />
             <g clipPath={`url(#${clipMag})`}>
               {asym ? (
                 <path
@@ -295,17 +271,7 @@ export function ResponsePlot({
             <g transform={`translate(${margin.left},${phaseTop})`}>
               <rect width={innerW} height={phasePanel} fill="#fffdf8" stroke="#d9d1bf" />
               <FrequencyGrid x={x} height={phasePanel} />
-              {yPhaseTicks.map((t) => (
-                <g key={t} transform={`translate(0,${yPhase(t)})`}>
-                  <line x2={innerW} stroke={t === 0 ? "#9aa1a3" : "#e6dfcf"} strokeWidth={t === 0 ? 1.2 : 1} />
-                  <text x={-8} dy="0.32em" textAnchor="end" fontSize={11.5} fill={faint} className="font-mono">
-                    {formatSigned(t, 0)}°
-                  </text>
-                </g>
-              ))}
-              <text transform={`translate(${-44},${phasePanel / 2}) rotate(-90)`} textAnchor="middle" fontSize={12} fill={ink} fontWeight={600}>
-                Phase
-              </text>
+              <ValueAxis ticks={yPhase.ticks(4)} y={yPhase} width={innerW} height={phasePanel} unit="°" title="Phase" />
               <g clipPath={`url(#${clipPhase})`}>
                 {drawn
                   .map((c, i) => ({ c, i }))
@@ -319,6 +285,26 @@ export function ResponsePlot({
         </svg>
       </div>
     </figure>
+  );
+}
+
+/** A panel's horizontal gridlines with their values (0 drawn stronger), and the panel's title beside them. */
+function ValueAxis({ ticks, y, width, height, unit = "", title }: { ticks: number[]; y: (v: number) => number; width: number; height: number; unit?: string; title: string }) {
+  return (
+    <>
+      {ticks.map((t) => (
+        <g key={t} transform={`translate(0,${y(t)})`}>
+          <line x2={width} stroke={t === 0 ? "#9aa1a3" : "#e6dfcf"} strokeWidth={t === 0 ? 1.2 : 1} />
+          <text x={-8} dy="0.32em" textAnchor="end" fontSize={11.5} fill="#737c80" className="font-mono">
+            {formatSigned(t, 0)}
+            {unit}
+          </text>
+        </g>
+      ))}
+      <text transform={`translate(${-44},${height / 2}) rotate(-90)`} textAnchor="middle" fontSize={12} fill="#1d2327" fontWeight={600}>
+        {title}
+      </text>
+    </>
   );
 }
 
@@ -348,11 +334,7 @@ function FrequencyAxis({ x, top }: { x: (hz: number) => number; top: number }) {
   );
 }
 
-interface AsymptoteData {
-  corners: { parameter: CornerName; hz: number; slopeChangeDbPerDecade: number; asymptoteGainDb: number }[];
-  segments: { fromHz: number | null; toHz: number | null; slopeDbPerDecade: number }[];
-  levelAt: (hz: number) => number;
-}
+type AsymptoteData = Asymptotes & { levelAt: (hz: number) => number };
 
 interface Box {
   x0: number;

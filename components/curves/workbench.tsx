@@ -10,30 +10,26 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useEffect, useMemo, useRef, useState, useTransition } from "react";
 import { savePresetAction } from "@/app/(lab)/curves/actions";
+import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
-import { TextField } from "@/components/ui/field";
+import { controlClass, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
+import { usePresets, usePresetVersions } from "@/hooks/use-presets";
 import { useUrlState } from "@/hooks/use-url-state";
 import { analogGainDb, analogModel, CurveError, type CurveSpec, type CurveDescription, describeCurve, RIAA_SPEC } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { CornerFields, type FieldError } from "./corner-fields";
 import { DeviationPlot } from "./deviation-plot";
 import { FitPanel, type FitPoints } from "./fit-panel";
-import { CURVE_COLORS, formatDb, formatHz, formatNumber } from "./plot-format";
+import { CORNER_WORDS, CURVE_COLORS, formatDb, formatHz, formatNumber } from "./plot-format";
 import { type PlotCurve, ResponsePlot } from "./response-plot";
-import type { PresetSummary, PresetVersion } from "@/lib/presets";
-
-/** A preset and a version as the API sends them (dates as ISO strings). */
-type AsJson<T> = { [K in keyof T]: T[K] extends Date ? string : T[K] };
-export type PresetSummaryJson = AsJson<PresetSummary>;
-type PresetVersionJson = AsJson<PresetVersion>;
+import type { PresetJson } from "./types";
 
 const SAMPLE_RATES = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000];
 const MAX_COMPARE = 3;
-const dateFmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
 
 /** A value that follows `value` once it has stopped changing for `ms`. */
 function useSettled<T>(value: T, ms: number): T {
@@ -78,15 +74,11 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
 
   const presetQuery = useQuery({
     queryKey: ["curve-preset", presetId],
-    queryFn: () => fetchJson<{ preset: PresetSummaryJson }>(`/api/curves/presets/${encodeURIComponent(presetId)}`),
+    queryFn: () => fetchJson<{ preset: PresetJson }>(`/api/curves/presets/${encodeURIComponent(presetId)}`),
     enabled: !!presetId,
   });
-  const versionsQuery = useQuery({
-    queryKey: ["curve-preset-versions", presetId],
-    queryFn: () => fetchJson<{ versions: PresetVersionJson[] }>(`/api/curves/presets/${encodeURIComponent(presetId)}/versions`),
-    enabled: !!presetId,
-  });
-  const libraryQuery = useQuery({ queryKey: ["curve-presets"], queryFn: () => fetchJson<{ presets: PresetSummaryJson[] }>("/api/curves/presets") });
+  const versionsQuery = usePresetVersions(presetId);
+  const libraryQuery = usePresets();
   const loaded = presetId ? presetQuery.data?.preset : undefined;
 
   // Put a preset into the editor once per version fetched (a save that created that version sets `applied` itself).
@@ -323,7 +315,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                   value={notes}
                   onChange={(e) => setNotes(e.target.value)}
                   rows={3}
-                  className="block w-full rounded-md border border-paper-edge bg-white px-3 py-2 text-sm shadow-inner shadow-paper-deep/60 focus:border-shellac"
+                  className={controlClass(false)}
                   data-testid="save-notes"
                 />
               </div>
@@ -377,7 +369,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                       <span className="font-mono text-sm font-semibold">v{v.version}</span>
                       <span className="text-sm font-medium">{v.name}</span>
                       <span className="text-xs text-ink-faint">
-                        {v.createdBy ?? "no person recorded"} · <time dateTime={v.createdAt}>{dateFmt.format(new Date(v.createdAt))}</time>
+                        {v.createdBy ?? "no person recorded"} · <time dateTime={v.createdAt}>{when(v.createdAt)}</time>
                       </span>
                     </div>
                     <p className="mt-1 text-sm text-ink-soft">{v.changeNote}</p>
@@ -417,7 +409,6 @@ function SummaryStrip({ desc, stale }: { desc: CurveDescription | null; stale: b
   if (!desc || !gains) return null;
   const c = desc.curve;
   const taus = (["shelf", "turnover", "rolloff", "highpass", "ultrasonic"] as const).flatMap((n) => (c[n] ? [{ n, tau: c[n]!.filterTauUs }] : []));
-  const words = { shelf: "shelf", turnover: "turnover", rolloff: "rolloff", highpass: "high-pass", ultrasonic: "ultrasonic" } as const;
   return (
     <dl className={cx("grid grid-cols-2 gap-px overflow-hidden rounded-xl border border-paper-edge bg-paper-edge text-sm md:grid-cols-4", stale && "opacity-60")} data-testid="curve-summary">
       <div className="bg-white px-4 py-2.5">
@@ -441,7 +432,7 @@ function SummaryStrip({ desc, stale }: { desc: CurveDescription | null; stale: b
           {taus.length ? (
             taus.map((t) => (
               <span key={t.n} className="mr-2 inline-block whitespace-nowrap">
-                <span className="font-sans text-ink-faint">{words[t.n]}</span> {formatNumber(t.tau, 4)} µs
+                <span className="font-sans text-ink-faint">{CORNER_WORDS[t.n]}</span> {formatNumber(t.tau, 4)} µs
               </span>
             ))
           ) : (

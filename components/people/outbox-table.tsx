@@ -1,7 +1,7 @@
 "use client";
 import { useQuery } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
-import { useState } from "react";
+import { useMemo, useState } from "react";
 import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
 import { fetchJson } from "@/lib/http/client";
@@ -25,27 +25,31 @@ const tone = { queued: "accent", sent: "ok", failed: "alarm" } as const;
 export function OutboxTable() {
   const { data, isLoading, error } = useQuery({ queryKey: ["outbox"], queryFn: () => fetchJson<{ messages: Message[] }>("/api/outbox"), refetchInterval: 5000 });
   const [open, setOpen] = useState<Message | null>(null);
-  const columns = [
-    column.accessor("createdAt", { header: "Queued", cell: (c) => <span className="font-mono text-xs">{fmt.format(new Date(c.getValue()))}</span> }),
-    column.accessor("to", { header: "To" }),
-    column.accessor("subject", {
-      header: "Subject",
-      cell: (c) => (
-        <button type="button" className="text-left underline decoration-paper-edge underline-offset-4 hover:decoration-shellac" onClick={() => setOpen(c.row.original)}>
-          {c.getValue()}
-        </button>
-      ),
-    }),
-    column.accessor("status", {
-      header: "Status",
-      cell: (c) => (
-        <span className="space-x-2">
-          <Badge tone={tone[c.getValue()]}>{c.getValue()}</Badge>
-          {c.row.original.attempts > 1 ? <span className="text-xs text-ink-faint">{c.row.original.attempts} tries</span> : null}
-        </span>
-      ),
-    }),
-  ];
+  // The table polls every five seconds: keep the same columns between polls.
+  const columns = useMemo(
+    () => [
+      column.accessor("createdAt", { header: "Queued", cell: (c) => <span className="font-mono text-xs">{fmt.format(new Date(c.getValue()))}</span> }),
+      column.accessor("to", { header: "To" }),
+      column.accessor("subject", {
+        header: "Subject",
+        cell: (c) => (
+          <button type="button" className="text-left underline decoration-paper-edge underline-offset-4 hover:decoration-shellac" onClick={() => setOpen(c.row.original)}>
+            {c.getValue()}
+          </button>
+        ),
+      }),
+      column.accessor("status", {
+        header: "Status",
+        cell: (c) => (
+          <span className="space-x-2">
+            <Badge tone={tone[c.getValue()]}>{c.getValue()}</Badge>
+            {c.row.original.attempts > 1 ? <span className="text-xs text-ink-faint">{c.row.original.attempts} tries</span> : null}
+          </span>
+        ),
+      }),
+    ],
+    [],
+  );
   return (
     <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,28rem)]">
       <DataTable columns={columns} data={data?.messages} label="Outbox" urlKey="outbox" loading={isLoading} error={error?.message} testId="outbox-table" empty="No mail yet." />

@@ -1,5 +1,6 @@
 "use client";
 import { useQuery } from "@tanstack/react-query";
+import { when } from "@/components/catalogue/format";
 import { Panel } from "@/components/ui/panel";
 import { fetchJson } from "@/lib/http/client";
 
@@ -22,8 +23,6 @@ const kindText: Record<string, (c: Change) => string> = {
   password_reset: (c) => `${c.subjectEmail} chose a new password`,
 };
 
-const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
-
 export function PeopleChanges() {
   const { data } = useQuery({ queryKey: ["people-changes"], queryFn: () => fetchJson<{ changes: Change[] }>("/api/people-changes") });
   return (
@@ -35,7 +34,7 @@ export function PeopleChanges() {
           {data.changes.slice(0, 30).map((c) => (
             <li key={c.id} className="flex gap-4">
               <time className="w-36 shrink-0 font-mono text-xs text-ink-faint" dateTime={c.at}>
-                {fmt.format(new Date(c.at))}
+                {when(c.at)}
               </time>
               <span>
                 {c.actorName && !["invitation_accepted", "password_reset"].includes(c.kind) ? <strong className="font-medium">{c.actorName} </strong> : null}

@@ -3,6 +3,7 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
 import { useMemo, useState, useTransition } from "react";
 import { changeRoleAction, setActiveAction } from "@/app/(lab)/people/actions";
+import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
@@ -27,7 +28,6 @@ interface Invitation {
 }
 
 const column = createColumnHelper<Person>();
-const dateFmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
 
 export function PeopleTable({ currentUserId }: { currentUserId: string }) {
   const queryClient = useQueryClient();
@@ -78,7 +78,7 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
       column.accessor("lastSignInAt", {
         header: "Last signed in",
         sortingFn: "datetime",
-        cell: (c) => <span className="font-mono text-xs">{c.getValue() ? dateFmt.format(new Date(c.getValue() as string)) : "never"}</span>,
+        cell: (c) => <span className="font-mono text-xs">{c.getValue() ? when(c.getValue() as string) : "never"}</span>,
       }),
       column.display({
         id: "actions",
@@ -113,7 +113,7 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
                 <span>
                   {i.email} · {roleLabels[i.role]}
                 </span>
-                <span className="font-mono text-xs text-ink-faint">expires {dateFmt.format(new Date(i.expiresAt))}</span>
+                <span className="font-mono text-xs text-ink-faint">expires {when(i.expiresAt)}</span>
               </li>
             ))}
           </ul>

@@ -5,19 +5,16 @@
  * the filter applies (at the transfer's speed); why, and on what evidence.
  */
 import { useMemo } from "react";
+import { curveTitle } from "@/components/bench/choice-history";
 import type { CurveChoiceJson } from "@/components/bench/types";
 import { when } from "@/components/catalogue/format";
-import { CURVE_COLORS, formatDb, formatHz, formatNumber } from "@/components/curves/plot-format";
-import { ResponsePlot } from "@/components/curves/response-plot";
+import { formatDb, formatHz, formatNumber } from "@/components/curves/plot-format";
+import { type PlotCurve, ResponsePlot } from "@/components/curves/response-plot";
 import { cornerText } from "@/components/audit/event-sentence";
 import { CORNER_NAMES, type CornerName, type CurveSpec, describeCurve } from "@/lib/curves";
 import { evidenceLabels } from "@/lib/validation/transfers";
 
 const CORNER_LABELS: Record<CornerName, string> = { turnover: "Bass turnover", shelf: "Low-frequency shelf", rolloff: "Treble rolloff", highpass: "Rumble high-pass", ultrasonic: "Ultrasonic zero" };
-
-export function curveTitle(c: CurveChoiceJson): string {
-  return c.presetName ? `${c.presetName} v${c.presetVersion}` : "Own values";
-}
 
 export function CurveSummary({ current, previous }: { current: CurveChoiceJson; previous: CurveChoiceJson | null }) {
   const described = useMemo(() => {
@@ -31,8 +28,11 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
   const overrides = (current.overrides ?? {}) as Partial<CurveSpec>;
   const rows = CORNER_NAMES.filter((n) => (preset && preset[n]) || n in overrides || current.spec[n]);
   const ratio = current.transferSpeedRpm / current.cutSpeedRpm;
-  const plotCurves: { label: string; spec: CurveSpec; color: string }[] = [{ label: `Chosen: ${curveTitle(current)}`, spec: current.spec, color: CURVE_COLORS[0] }];
-  if (previous) plotCurves.push({ label: `Before: ${curveTitle(previous)}`, spec: previous.spec, color: CURVE_COLORS[1] });
+  // Memoised: the review page re-renders every second while it waits for fixity results.
+  const plotCurves = useMemo<PlotCurve[]>(
+    () => [{ label: `Chosen: ${curveTitle(current)}`, spec: current.spec }, ...(previous ? [{ label: `Before: ${curveTitle(previous)}`, spec: previous.spec }] : [])],
+    [current, previous],
+  );
 
   return (
     <div className="space-y-4" data-testid="curve-summary">

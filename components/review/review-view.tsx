@@ -10,16 +10,17 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { AuditionPanel } from "@/components/bench/audition-panel";
-import { ChoiceHistory } from "@/components/bench/choice-history";
-import type { Candidate, ChannelMode, CurveChoiceJson, RenderJson, SideWithDisc, TransferJson } from "@/components/bench/types";
+import { ChoiceHistory, curveTitle } from "@/components/bench/choice-history";
+import type { Candidate, ChannelMode, RenderJson } from "@/components/bench/types";
 import { statusLabel, when } from "@/components/catalogue/format";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { Badge } from "@/components/ui/badge";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
+import { useSide } from "@/hooks/use-side";
 import { defaultChannelMode } from "@/lib/audition/channel-mode";
 import { fetchJson } from "@/lib/http/client";
-import { CurveSummary, curveTitle } from "./curve-summary";
+import { CurveSummary } from "./curve-summary";
 import { DecisionPanel } from "./decision-panel";
 import { FixityCheckButton, fixityOf, RenderCard, TransferCard } from "./stored-files";
 import type { FixityCheckJson, ReviewJson } from "./types";
@@ -31,9 +32,7 @@ const FIXITY_WAIT_MS = 90_000;
 
 export function ReviewView({ sideId }: { sideId: string }) {
   const queryClient = useQueryClient();
-  const side = useQuery({ queryKey: ["side", sideId], queryFn: () => fetchJson<SideWithDisc>(`/api/sides/${sideId}`) });
-  const choices = useQuery({ queryKey: ["curve-choices", sideId], queryFn: () => fetchJson<{ choices: CurveChoiceJson[] }>(`/api/sides/${sideId}/curve-choices`) });
-  const transfers = useQuery({ queryKey: ["transfers", sideId], queryFn: () => fetchJson<{ transfers: TransferJson[] }>(`/api/sides/${sideId}/transfers`) });
+  const { side, choices, transfers } = useSide(sideId);
   const renders = useQuery({ queryKey: ["renders", sideId], queryFn: () => fetchJson<{ renders: RenderRow[] }>(`/api/sides/${sideId}/renders`) });
   const reviews = useQuery({ queryKey: ["side-reviews", sideId], queryFn: () => fetchJson<{ reviews: ReviewJson[] }>(`/api/sides/${sideId}/review`) });
 

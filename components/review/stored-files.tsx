@@ -4,6 +4,7 @@
  * it — with their SHA-256, technical metadata and latest fixity result, and a
  * check of the disc's files now (the worker reads them back within seconds).
  */
+import { FileFact, Sha256Line } from "@/components/bench/file-facts";
 import { formatBytes, formatDuration } from "@/components/bench/progress-bar";
 import type { RenderJson, TransferJson } from "@/components/bench/types";
 import { when } from "@/components/catalogue/format";
@@ -50,24 +51,6 @@ function FixityLine({ f, testId }: { f: FixityState; testId: string }) {
   );
 }
 
-function Item({ k, v, wide }: { k: string; v: string; wide?: boolean }) {
-  return (
-    <div className={wide ? "col-span-2" : undefined}>
-      <dt className="text-ink-faint">{k}</dt>
-      <dd className="break-words font-mono text-ink">{v}</dd>
-    </div>
-  );
-}
-
-function Sha({ value, testId }: { value: string | null; testId: string }) {
-  return (
-    <p className="mt-2 break-all rounded bg-paper/70 px-2 py-1 font-mono text-[0.7rem] text-ink-soft" data-testid={testId}>
-      <span className="font-sans font-medium text-ink">SHA-256 </span>
-      {value ?? "—"}
-    </p>
-  );
-}
-
 function FileCardHead({ title, href, testId }: { title: string; href: string; testId: string }) {
   return (
     <div className="flex flex-wrap items-center justify-between gap-2">
@@ -85,16 +68,16 @@ export function TransferCard({ t, fixity }: { t: TransferJson; fixity: FixitySta
       <FileCardHead title="Flat transfer" href={`/api/transfers/${t.id}/download`} testId="review-transfer-download" />
       <p className="break-all font-mono text-xs">{t.fileName}</p>
       <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-xs">
-        <Item k="Format" v={`${t.container} · ${t.encoding.toUpperCase()} ${t.bitsPerSample}-bit`} />
-        <Item k="Rate · channels" v={`${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${Number(t.channels) === 2 ? "stereo" : Number(t.channels) === 1 ? "mono" : `${t.channels} ch`}`} />
-        <Item k="Length" v={formatDuration(Number(t.durationSeconds))} />
-        <Item k="Size" v={formatBytes(Number(t.bytes))} />
-        <Item k="Stylus" v={[t.stylusSize, t.stylusShape].filter(Boolean).join(", ") || "—"} />
-        <Item k="Measured speed" v={t.measuredSpeedRpm ? `${formatNumber(Number(t.measuredSpeedRpm))} rpm` : "—"} />
-        <Item k="Chain" v={t.chain || "—"} wide />
-        <Item k="Uploaded" v={`${t.uploadedBy} · ${when(t.createdAt)}`} wide />
+        <FileFact k="Format" v={`${t.container} · ${t.encoding.toUpperCase()} ${t.bitsPerSample}-bit`} />
+        <FileFact k="Rate · channels" v={`${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${Number(t.channels) === 2 ? "stereo" : Number(t.channels) === 1 ? "mono" : `${t.channels} ch`}`} />
+        <FileFact k="Length" v={formatDuration(Number(t.durationSeconds))} />
+        <FileFact k="Size" v={formatBytes(Number(t.bytes))} />
+        <FileFact k="Stylus" v={[t.stylusSize, t.stylusShape].filter(Boolean).join(", ") || "—"} />
+        <FileFact k="Measured speed" v={t.measuredSpeedRpm ? `${formatNumber(Number(t.measuredSpeedRpm))} rpm` : "—"} />
+        <FileFact k="Chain" v={t.chain || "—"} wide />
+        <FileFact k="Uploaded" v={`${t.uploadedBy} · ${when(t.createdAt)}`} wide />
       </dl>
-      <Sha value={t.sha256} testId="review-transfer-sha256" />
+      <Sha256Line value={t.sha256} testId="review-transfer-sha256" />
       <FixityLine f={fixity} testId="review-transfer-fixity" />
     </article>
   );
@@ -107,16 +90,16 @@ export function RenderCard({ r, fixity, stale }: { r: RenderJson; fixity: Fixity
       <FileCardHead title="Access copy" href={`/api/renders/${r.id}/download`} testId="review-render-download" />
       {stale ? <p className="mt-1 rounded bg-alarm-wash px-2 py-1 text-xs font-medium text-alarm">{stale}</p> : null}
       <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-xs">
-        <Item k="Channels" v={channelModeLabels[r.channelMode] ?? r.channelMode} />
-        <Item k="Word length · rate" v={`${r.bitDepth}-bit${r.sampleRateHz ? ` · ${Number(r.sampleRateHz).toLocaleString("en-GB")} Hz` : ""}`} />
-        <Item k="Size" v={r.bytes ? formatBytes(Number(r.bytes)) : "—"} />
-        <Item k="Trim · peak" v={`${r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · ${r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}`} />
-        <Item k="Filter" v={[f.kind, f.taps ? `${f.taps} taps` : null, f.delaySamples !== undefined ? `delay ${f.delaySamples} samples` : null].filter(Boolean).join(" · ") || "—"} wide />
-        <Item k="Worst error vs the curve" v={f.maxErrorDb !== undefined ? `${formatNumber(f.maxErrorDb, 2)} dB · ${f.maxPhaseErrorDeg !== undefined ? `${formatNumber(f.maxPhaseErrorDeg, 2)}°` : "—"} (20 Hz–20 kHz)` : "—"} wide />
-        {f.software ? <Item k="Software" v={[f.software, f.engine ? `${f.engine} engine` : null].filter(Boolean).join(" · ")} wide /> : null}
-        <Item k="Rendered" v={`for ${r.requestedBy} · ${r.finishedAt ? when(r.finishedAt) : "—"}`} wide />
+        <FileFact k="Channels" v={channelModeLabels[r.channelMode] ?? r.channelMode} />
+        <FileFact k="Word length · rate" v={`${r.bitDepth}-bit${r.sampleRateHz ? ` · ${Number(r.sampleRateHz).toLocaleString("en-GB")} Hz` : ""}`} />
+        <FileFact k="Size" v={r.bytes ? formatBytes(Number(r.bytes)) : "—"} />
+        <FileFact k="Trim · peak" v={`${r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · ${r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}`} />
+        <FileFact k="Filter" v={[f.kind, f.taps ? `${f.taps} taps` : null, f.delaySamples !== undefined ? `delay ${f.delaySamples} samples` : null].filter(Boolean).join(" · ") || "—"} wide />
+        <FileFact k="Worst error vs the curve" v={f.maxErrorDb !== undefined ? `${formatNumber(f.maxErrorDb, 2)} dB · ${f.maxPhaseErrorDeg !== undefined ? `${formatNumber(f.maxPhaseErrorDeg, 2)}°` : "—"} (20 Hz–20 kHz)` : "—"} wide />
+        {f.software ? <FileFact k="Software" v={[f.software, f.engine ? `${f.engine} engine` : null].filter(Boolean).join(" · ")} wide /> : null}
+        <FileFact k="Rendered" v={`for ${r.requestedBy} · ${r.finishedAt ? when(r.finishedAt) : "—"}`} wide />
       </dl>
-      <Sha value={r.sha256} testId="review-render-sha256" />
+      <Sha256Line value={r.sha256} testId="review-render-sha256" />
       <FixityLine f={fixity} testId="review-render-fixity" />
     </article>
   );

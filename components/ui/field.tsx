@@ -1,8 +1,14 @@
 import type { InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
 import { cx } from "./cx";
 
-const control =
-  "block w-full rounded-md border bg-white px-3 py-2 text-sm text-ink placeholder:text-ink-faint shadow-inner shadow-paper-deep/60 focus:border-shellac";
+/** The control look (input, select, textarea); also for controls wired straight to react-hook-form. */
+export function controlClass(invalid: boolean, extra?: string): string {
+  return cx(
+    "block w-full rounded-md border bg-white px-3 py-2 text-sm text-ink placeholder:text-ink-faint shadow-inner shadow-paper-deep/60 focus:border-shellac",
+    invalid ? "border-alarm" : "border-paper-edge",
+    extra,
+  );
+}
 
 interface FieldShellProps {
   id: string;
@@ -49,7 +55,7 @@ export function TextField({
         name={props.name ?? id}
         aria-invalid={errors?.length ? true : undefined}
         aria-describedby={errors?.length ? `${id}-error` : hint ? `${id}-hint` : undefined}
-        className={cx(control, errors?.length ? "border-alarm" : "border-paper-edge", className)}
+        className={controlClass(!!errors?.length, className)}
         {...props}
       />
     </FieldShell>
@@ -71,7 +77,7 @@ export function SelectField({
         id={id}
         name={props.name ?? id}
         aria-invalid={errors?.length ? true : undefined}
-        className={cx(control, errors?.length ? "border-alarm" : "border-paper-edge", className)}
+        className={controlClass(!!errors?.length, className)}
         {...props}
       >
         {children}

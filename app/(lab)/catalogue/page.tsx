@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import { Suspense } from "react";
 import { CatalogueTable, ExportViewLink } from "@/components/catalogue/catalogue-table";
-import { LinkButton } from "@/components/catalogue/link-button";
+import { LinkButton } from "@/components/ui/link-button";
 import { PageHeader } from "@/components/ui/panel";
 import { requirePageAccess } from "@/lib/auth/page";
 import { can } from "@/lib/auth/permissions";

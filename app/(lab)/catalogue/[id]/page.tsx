@@ -1,9 +1,8 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { DiscDetail } from "@/components/catalogue/disc-detail";
 import { formatLabel } from "@/components/catalogue/format";
-import { LinkButton } from "@/components/catalogue/link-button";
 import { loadDisc } from "@/components/catalogue/load-disc";
+import { LinkButton } from "@/components/ui/link-button";
 import { PageHeader } from "@/components/ui/panel";
 import { requirePageAccess } from "@/lib/auth/page";
 import { can } from "@/lib/auth/permissions";
@@ -19,12 +18,8 @@ export default async function DiscPage({ params }: { params: Promise<{ id: strin
   const disc = await loadDisc((await params).id);
   return (
     <>
-      <p className="mb-2 text-sm">
-        <Link href="/catalogue" className="text-ink-soft underline-offset-2 hover:text-ink hover:underline">
-          ← Catalogue
-        </Link>
-      </p>
       <PageHeader
+        back={{ href: "/catalogue", label: "Catalogue" }}
         title={disc.shelfMark}
         lead={[disc.labelName, disc.catalogueNumber, formatLabel(disc.format)].filter(Boolean).join(" · ")}
         actions={

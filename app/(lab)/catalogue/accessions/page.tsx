@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { AccessionsView } from "@/components/catalogue/accessions-view";
 import { PageHeader } from "@/components/ui/panel";
 import { requirePageAccess } from "@/lib/auth/page";
@@ -11,12 +10,7 @@ export default async function AccessionsPage() {
   const user = await requirePageAccess("catalogue:read");
   return (
     <>
-      <p className="mb-2 text-sm">
-        <Link href="/catalogue" className="text-ink-soft underline-offset-2 hover:text-ink hover:underline">
-          ← Catalogue
-        </Link>
-      </p>
-      <PageHeader title="Accessions" lead="Each batch of discs the lab received: where it came from and when. Open one to see its discs in the catalogue." />
+      <PageHeader back={{ href: "/catalogue", label: "Catalogue" }} title="Accessions" lead="Each batch of discs the lab received: where it came from and when. Open one to see its discs in the catalogue." />
       <AccessionsView canEdit={can(user.role, "catalogue:edit")} />
     </>
   );

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { ImportPanel } from "@/components/catalogue/import-panel";
+import { LinkButton } from "@/components/ui/link-button";
 import { PageHeader } from "@/components/ui/panel";
 import { requirePageAccess } from "@/lib/auth/page";
 import { listAccessions } from "@/lib/catalogue/accessions";
@@ -16,14 +16,7 @@ export default async function ImportPage() {
       <PageHeader
         title="Import discs from a spreadsheet"
         lead="Check a CSV against the catalogue, fix what it points out, then import every disc in one step: all of them go in together, or none do."
-        actions={
-          <Link
-            href="/catalogue"
-            className="inline-flex h-10 items-center justify-center rounded-md border border-paper-edge bg-white px-4 text-sm font-medium text-ink transition-colors hover:border-ink-faint"
-          >
-            Back to the catalogue
-          </Link>
-        }
+        actions={<LinkButton href="/catalogue">Back to the catalogue</LinkButton>}
       />
       <ImportPanel
         accessions={accessions.map((a) => ({ id: a.id, identifier: a.identifier, source: a.source }))}

@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { DiscForm } from "@/components/catalogue/disc-form";
 import { loadDisc } from "@/components/catalogue/load-disc";
 import { PageHeader } from "@/components/ui/panel";
@@ -15,12 +14,7 @@ export default async function EditDiscPage({ params }: { params: Promise<{ id: s
   const disc = await loadDisc((await params).id);
   return (
     <>
-      <p className="mb-2 text-sm">
-        <Link href={`/catalogue/${disc.id}`} className="text-ink-soft underline-offset-2 hover:text-ink hover:underline">
-          ← {disc.shelfMark}
-        </Link>
-      </p>
-      <PageHeader title={`Edit ${disc.shelfMark}`} lead="If someone else saves this disc while you work, you will see their change beside yours before anything is overwritten." />
+      <PageHeader back={{ href: `/catalogue/${disc.id}`, label: disc.shelfMark }} title={`Edit ${disc.shelfMark}`} lead="If someone else saves this disc while you work, you will see their change beside yours before anything is overwritten." />
       <DiscForm initial={disc} />
     </>
   );

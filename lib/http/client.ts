@@ -6,7 +6,11 @@ export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> 
   const body = await res.json().catch(() => null);
   if (!res.ok) {
     const e = body?.error as { code?: ErrorCode; message?: string; fields?: Record<string, string[]>; details?: unknown } | undefined;
-    throw new AppError(e?.code ?? "internal", res.status, e?.message ?? `The server answered ${res.status}.`, e?.fields, e?.details);
+    const message = e?.message ?? `The server answered ${res.status}.`;
+    // A read (a list's filters from the address, say) has no form to show field errors beside: name them in the message.
+    const read = (init?.method ?? "GET").toUpperCase() === "GET";
+    const said = read && e?.fields ? `${message} ${Object.entries(e.fields).map(([field, msgs]) => `${field}: ${msgs.join(" ")}`).join(" ")}` : message;
+    throw new AppError(e?.code ?? "internal", res.status, said, e?.fields, e?.details);
   }
   return body as T;
 }

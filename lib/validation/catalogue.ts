@@ -95,8 +95,8 @@ export const accessionSchema = z.object({
 
 export const discListQuerySchema = z.object({
   q: z.string().trim().max(200).optional(),
-  format: z.enum(discFormats).optional(),
-  status: z.enum(sideStatuses).optional(),
+  format: z.enum(discFormats, { error: (issue) => `There is no format “${String(issue.input)}”; the formats are ${discFormats.join(", ")}.` }).optional(),
+  status: z.enum(sideStatuses, { error: (issue) => `There is no side status “${String(issue.input)}”; the statuses are ${sideStatuses.join(", ")}.` }).optional(),
   accession: z.uuid().optional(),
   engineer: z.uuid().optional(),
   speed: z.coerce.number().positive().optional(),

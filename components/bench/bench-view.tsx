@@ -15,6 +15,8 @@ import { useSide } from "@/hooks/use-side";
 import { defaultChannelMode } from "@/lib/audition/channel-mode";
 import { mergeCurve } from "@/lib/audition/curve-merge";
 import type { CurveSpec } from "@/lib/curves";
+import { statusLabels } from "@/lib/validation/catalogue";
+import { curveChoosableStatuses, uploadableStatuses } from "@/lib/validation/transfers";
 import { AuditionPanel } from "./audition-panel";
 import { ChoiceHistory } from "./choice-history";
 import { CurveChoiceForm } from "./curve-choice-form";
@@ -83,8 +85,13 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
           <Panel title="Choose the curve">
             {choices.isLoading ? (
               <p className="text-sm text-ink-faint">Loading…</p>
-            ) : (
+            ) : curveChoosableStatuses.has(s.status) ? (
               <CurveChoiceForm key={current?.id ?? "none"} data={data} current={current} extraSideIds={extraSideIds} onEffectiveSpec={onEffectiveSpec} />
+            ) : (
+              // The server refuses a new choice here; the recorded one stands below.
+              <Notice tone="info" title={`${statusLabels[s.status]}: the curve is settled`} testId="choice-locked">
+                {s.status === "in_review" ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it." : "This side's curve can no longer change."}
+              </Notice>
             )}
           </Panel>
           <Panel title="Curves recorded for this side">
@@ -155,7 +162,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
           </Panel>
 
           <Panel title="Flat transfer">
-            <UploadPanel sideId={sideId} curveChosen={curveChosen} canUpload={mine} />
+            <UploadPanel sideId={sideId} curveChosen={curveChosen} canUpload={mine && uploadableStatuses.has(s.status)} />
           </Panel>
 
           <Panel title="Transfers of this side">

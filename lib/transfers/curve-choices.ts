@@ -9,9 +9,7 @@ import { AppError } from "../http/errors";
 import { asCurveAppError } from "../presets/curve-check";
 import { appendEvents, type NewEvent } from "../provenance";
 import { statusLabels } from "../validation/catalogue";
-import { curveChoiceSchema } from "../validation/transfers";
-
-const choosable = new Set(["assigned", "returned", "curve_chosen", "transferred", "rendered"]);
+import { curveChoiceSchema, curveChoosableStatuses } from "../validation/transfers";
 
 /**
  * Records a curve choice for each side, keeping the preset version's values as they are
@@ -60,7 +58,7 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
     for (const s of sides) {
       const where = `${s.shelf_mark} side ${s.designation}`;
       if (s.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, `${where} is not assigned to you.`);
-      if (!choosable.has(s.status)) {
+      if (!curveChoosableStatuses.has(s.status)) {
         throw new AppError("conflict", 409, `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`);
       }
       const previous = previousBySide.get(s.id);

@@ -17,9 +17,8 @@ import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { deleteObject, hashObject, objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
-import { completeUploadSchema, signPartsSchema, startUploadSchema, uploadRefSchema } from "../validation/transfers";
+import { completeUploadSchema, signPartsSchema, startUploadSchema, uploadableStatuses, uploadRefSchema } from "../validation/transfers";
 
-const uploadable = new Set(["curve_chosen", "transferred", "rendered"]);
 const urlLifetimeSeconds = 3600;
 
 /** 8 MiB parts, larger when needed to stay within S3's 10 000 parts. */
@@ -36,7 +35,7 @@ async function sideForUpload(actor: SessionUser, sideId: string) {
   const side = await db.selectFrom("sides").select(["id", "disc_id", "designation", "status", "assigned_engineer_id"]).where("id", "=", sideId).executeTakeFirst();
   if (!side) throw new AppError("not_found", 404, "No such side.");
   if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
-  if (!uploadable.has(side.status)) {
+  if (!uploadableStatuses.has(side.status)) {
     throw new AppError("conflict", 409, side.status === "assigned" || side.status === "returned" ? "Choose the side's curve before uploading its transfer." : `The side is ${side.status.replace("_", " ")}: no new transfer now.`);
   }
   return side;

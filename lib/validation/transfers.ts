@@ -1,5 +1,11 @@
 import { z } from "zod";
+import type { SideStatusName } from "./catalogue";
 import { curveSpecSchema } from "./curves";
+
+/** Where a side's curve may still be chosen or changed (the server refuses it elsewhere; the bench locks its form). */
+export const curveChoosableStatuses: ReadonlySet<SideStatusName> = new Set(["assigned", "returned", "curve_chosen", "transferred", "rendered"]);
+/** Where a flat transfer may be uploaded: after the curve choice, before review. */
+export const uploadableStatuses: ReadonlySet<SideStatusName> = new Set(["curve_chosen", "transferred", "rendered"]);
 
 export const evidenceKinds = ["published_guidance", "test_disc", "listening", "disc_documentation", "other"] as const;
 export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {

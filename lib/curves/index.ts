@@ -4,7 +4,7 @@
  */
 export * from "./types";
 export * from "./units";
-export { resolveCurve, validateSampleRate, DEFAULT_REFERENCE, MIN_SAMPLE_RATE_HZ, MAX_SAMPLE_RATE_HZ, MIN_REFERENCE_HZ, MAX_REFERENCE_HZ } from "./spec";
+export { mergeCurve, resolveCurve, validateSampleRate, DEFAULT_REFERENCE, MIN_SAMPLE_RATE_HZ, MAX_SAMPLE_RATE_HZ, MIN_REFERENCE_HZ, MAX_REFERENCE_HZ } from "./spec";
 export { analogModel, buildAnalogModel, analogResponse, analogGainDb, analogPhaseRad, analogComplexInto, peakGain } from "./analog";
 export type { AnalogModel, AnalogResponse } from "./analog";
 export { asymptotes } from "./asymptotes";

@@ -64,6 +64,20 @@ function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number)
  * Validate a spec and return every corner in all units. Throws CurveError naming
  * the parameter at fault.
  */
+/**
+ * The curve of a side as chosen: a preset version's values, then the overrides for these
+ * sides, then the speed ratio transfer ÷ cut (played at another speed than it was cut, every
+ * frequency moves by that ratio). The bench plots and plays it; the server records it.
+ */
+export function mergeCurve(presetSpec: CurveSpec | null, overrides: Partial<CurveSpec>, cutSpeedRpm: number, transferSpeedRpm: number): CurveSpec {
+  const merged: CurveSpec = { ...(presetSpec ?? {}) };
+  for (const [k, v] of Object.entries(overrides) as [keyof CurveSpec, unknown][]) {
+    if (v !== undefined) (merged as Record<string, unknown>)[k] = v;
+  }
+  merged.speedRatio = transferSpeedRpm / cutSpeedRpm;
+  return merged;
+}
+
 export function resolveCurve(spec: CurveSpec): ResolvedCurve {
   if (typeof spec !== "object" || spec === null) throw new CurveError("spec", "Curve spec must be an object.");
 

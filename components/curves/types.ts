@@ -1,22 +1,12 @@
 /**
- * Curve presets as the API sends them to the browser (dates as ISO text). Written out
- * here rather than derived from lib/presets, which is server-only.
+ * Curve presets as the API sends them to the browser: the server's types with dates as
+ * ISO text. Type-only imports, so nothing of the server-only module reaches the bundle.
  */
-import type { CurveSpec } from "@/lib/curves";
+import type { PresetSummary, PresetVersion } from "@/lib/presets";
 
-export interface PresetVersionJson {
-  presetId: string;
-  version: number;
-  name: string;
-  spec: CurveSpec;
-  notes: string;
-  changeNote: string;
-  createdAt: string;
-  createdBy: string | null;
-}
+type AsJson<T> = { [K in keyof T]: T[K] extends Date ? string : T[K] };
+
+export type PresetVersionJson = AsJson<PresetVersion>;
 
 /** A preset at its current version. */
-export interface PresetJson extends PresetVersionJson {
-  id: string;
-  currentVersion: number;
-}
+export type PresetJson = AsJson<PresetSummary>;

@@ -31,8 +31,29 @@ export const profiles: Record<ProfileName, Omit<Profile, "dir">> = {
   test: { name: "test", pgPort: 55420, s3Port: 55421, smtpPort: 55425, appPort: 3100, distDir: ".next-test", honourExternal: false },
 };
 
+/**
+ * RILLBOOK_TEST_PORT_OFFSET moves every port of the test profile by that much, so two
+ * checkouts on one machine can each run their own test stack at the same time.
+ */
+function testPortOffset(): number {
+  const raw = process.env.RILLBOOK_TEST_PORT_OFFSET;
+  if (!raw) return 0;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 0 || n > 900) throw new Error(`RILLBOOK_TEST_PORT_OFFSET must be a whole number from 0 to 900, not "${raw}"`);
+  return n;
+}
+
 export function profile(name: ProfileName): Profile {
-  return { ...profiles[name], dir: path.join(root, "storage", name) };
+  const base = profiles[name];
+  const offset = name === "test" ? testPortOffset() : 0;
+  return {
+    ...base,
+    pgPort: base.pgPort + offset,
+    s3Port: base.s3Port + offset,
+    smtpPort: base.smtpPort + offset,
+    appPort: base.appPort + offset,
+    dir: path.join(root, "storage", name),
+  };
 }
 
 const isRoot = typeof process.getuid === "function" && process.getuid() === 0;

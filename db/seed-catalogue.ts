@@ -1,7 +1,8 @@
 import { type Kysely, sql } from "kysely";
 import { seededRandom } from "../lib/audio/codecs";
 import { refreshSearch } from "../lib/catalogue/records";
-import { appendEvent, appendEvents } from "../lib/provenance";
+import { appendEvent, appendEvents, type NewEvent } from "../lib/provenance";
+import { assignSide, lockSides } from "../lib/sides/lifecycle";
 import type { Database, DiscFormat } from "./types";
 
 /**
@@ -121,15 +122,14 @@ export async function seedCatalogue(db: Kysely<Database>, actorId: string | null
       discs.map((d) => ({ actorId, kind: "disc.created", subjectType: "disc", subjectId: d.id, discId: d.id, payload: { after: { shelfMark: d.shelf_mark, labelName: d.label_name, catalogueNumber: d.catalogue_number, format: d.format }, origin: "demo seed" } })),
     );
     // Some work already handed to the demo engineer.
-    if (engineerId) {
-      const sides = await trx.selectFrom("sides as s").innerJoin("discs as d", "d.id", "s.disc_id").select(["s.id", "s.disc_id", "s.designation"]).where("d.shelf_mark", "<=", "MH-D00012").execute();
-      if (sides.length) {
-        await trx.updateTable("sides").set({ status: "assigned", assigned_engineer_id: engineerId }).where("id", "in", sides.map((s) => s.id)).execute();
-        await appendEvents(
-          trx,
-          sides.map((s) => ({ actorId, kind: "side.assigned", subjectType: "side", subjectId: s.id, discId: s.disc_id, payload: { side: s.designation, before: { status: "catalogued", engineerId: null }, after: { status: "assigned", engineerId } } })),
-        );
-      }
+    // Some work already handed to the demo engineer, through the side lifecycle like any assignment.
+    if (engineerId && actorId) {
+      const actor = await trx.selectFrom("users").select(["id", "role"]).where("id", "=", actorId).executeTakeFirstOrThrow();
+      const engineer = await trx.selectFrom("users").select(["id", "name"]).where("id", "=", engineerId).executeTakeFirstOrThrow();
+      const wanted = await trx.selectFrom("sides as s").innerJoin("discs as d", "d.id", "s.disc_id").select("s.id").where("d.shelf_mark", "<=", "MH-D00012").execute();
+      const events: NewEvent[] = [];
+      for (const side of await lockSides(trx, wanted.map((w) => w.id))) await assignSide(trx, actor, side, engineer, events);
+      await appendEvents(trx, events);
     }
   });
   return { discsAdded: added };

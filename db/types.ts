@@ -1,5 +1,6 @@
 import type { ColumnType, Generated, Insertable, Selectable, Updateable } from "kysely";
 import type { Role } from "../lib/auth/roles";
+import type { StoredCurveSpec, StoredRenderFilter } from "../lib/validation/records";
 
 type Timestamp = ColumnType<Date, Date | string, Date | string>;
 /** A timestamp the database fills in by default. */
@@ -85,7 +86,7 @@ export interface CurvePresetVersionsTable {
   version: number;
   name: string;
   /** The CurveSpec of lib/curves, as JSON. */
-  spec: Json;
+  spec: ColumnType<StoredCurveSpec, string, string>;
   notes: Generated<string>;
   change_note: string;
   created_by: string | null;
@@ -106,7 +107,8 @@ export interface AccessionsTable {
 export type DiscFormat = "shellac_78" | "instantaneous_lacquer" | "transcription" | "vinyl_78" | "microgroove_lp" | "other";
 export type DiscBase = "aluminium" | "glass" | "card" | "unknown";
 export type ConditionGrade = "unassessed" | "excellent" | "good" | "fair" | "poor" | "unplayable";
-export type SideStatus = "catalogued" | "assigned" | "curve_chosen" | "transferred" | "rendered" | "in_review" | "approved" | "returned";
+/** In the archive's order: assigned → flat transfer accepted → curve chosen → rendered → in review → approved or returned. */
+export type SideStatus = "catalogued" | "assigned" | "transferred" | "curve_chosen" | "rendered" | "in_review" | "approved" | "returned";
 
 export interface DiscsTable {
   id: Generated<string>;
@@ -147,6 +149,10 @@ export interface SidesTable {
   status: Generated<SideStatus>;
   assigned_engineer_id: string | null;
   return_reason: string | null;
+  /** What the side stands on now (lib/sides/lifecycle.ts is their only writer). */
+  current_transfer_id: Generated<string | null>;
+  current_curve_choice_id: Generated<string | null>;
+  current_render_id: Generated<string | null>;
   version: Generated<number>;
   created_at: DefaultTimestamp;
   updated_at: DefaultTimestamp;
@@ -174,9 +180,11 @@ export interface CurveChoicesTable {
   preset_id: string | null;
   preset_version: number | null;
   preset_name: string | null;
-  preset_spec: ColumnType<unknown, string | null, never>;
-  overrides: ColumnType<unknown, string, never>;
-  spec: ColumnType<unknown, string, never>;
+  preset_spec: ColumnType<StoredCurveSpec | null, string | null, never>;
+  overrides: ColumnType<StoredCurveSpec, string, never>;
+  spec: ColumnType<StoredCurveSpec, string, never>;
+  /** SHA-256 of the spec's canonical JSON: what a review approves. */
+  spec_sha256: string;
   cut_speed_rpm: ColumnType<string | number, number, never>;
   transfer_speed_rpm: ColumnType<string | number, number, never>;
   rationale: string;
@@ -229,8 +237,10 @@ export interface RendersTable {
   bytes: number | null;
   trim_db: number | null;
   peak_dbfs: number | null;
-  filter: ColumnType<unknown, string | null, string | null>;
+  filter: ColumnType<StoredRenderFilter | null, string | null, string | null>;
   error: string | null;
+  superseded_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  superseded_reason: string | null;
   requested_by: string;
   created_at: DefaultTimestamp;
   started_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
@@ -246,6 +256,9 @@ export interface ReviewsTable {
   transfer_id: string | null;
   render_id: string | null;
   curve_choice_id: string | null;
+  transfer_sha256: string | null;
+  render_sha256: string | null;
+  curve_spec_sha256: string | null;
   decided_at: DefaultTimestamp;
 }
 
@@ -284,7 +297,13 @@ export interface LabSettingsTable {
   updated_at: DefaultTimestamp;
 }
 
+export interface SideTransitionsTable {
+  from_status: SideStatus;
+  to_status: SideStatus;
+}
+
 export interface Database {
+  side_transitions: SideTransitionsTable;
   reviews: ReviewsTable;
   fixity_checks: FixityChecksTable;
   chain_checks: ChainChecksTable;

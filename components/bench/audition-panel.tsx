@@ -24,7 +24,35 @@ import type { Candidate, ChannelMode, TransferJson } from "./types";
 
 const WINDOW_SECONDS = 30;
 
-export function AuditionPanel({ transfer, candidates, channelMode, onChannelMode, channelWhy }: { transfer: TransferJson | null; candidates: Candidate[]; channelMode: ChannelMode; onChannelMode: (m: ChannelMode) => void; channelWhy: string }) {
+/**
+ * What an engineer compared by ear, as evidence for the curve they record from here: the
+ * transfer (file and SHA-256), the stretch listened to, the channel choice, every curve
+ * heard, and the one chosen.
+ */
+export function listeningEvidence(o: { transfer: Pick<TransferJson, "fileName" | "sha256">; fromSeconds: number; toSeconds: number; channelMode: ChannelMode; compared: string[]; chosen: string }): string {
+  return [
+    `Compared by ear on the flat transfer ${o.transfer.fileName} (SHA-256 ${o.transfer.sha256.slice(0, 16)}…), ${formatDuration(o.fromSeconds)}–${formatDuration(o.toSeconds)}, ${channelModeLabels[o.channelMode].toLowerCase()}, at matched level at 1 kHz.`,
+    `Heard: flat; ${o.compared.join("; ")}.`,
+    `Chosen: ${o.chosen}.`,
+  ].join(" ");
+}
+
+export function AuditionPanel({
+  transfer,
+  candidates,
+  channelMode,
+  onChannelMode,
+  channelWhy,
+  onRecord,
+}: {
+  transfer: TransferJson | null;
+  candidates: Candidate[];
+  channelMode: ChannelMode;
+  onChannelMode: (m: ChannelMode) => void;
+  channelWhy: string;
+  /** Offered on the bench: take the curve being heard to the choice form, with what was compared as its evidence. Listening itself records nothing. */
+  onRecord?: (candidateId: string, evidence: string) => void;
+}) {
   const uid = useId();
   const [acknowledged, setAcknowledged] = useState(false);
   const [startAt, setStartAt] = useState(0);
@@ -332,6 +360,34 @@ export function AuditionPanel({ transfer, candidates, channelMode, onChannelMode
           </span>
         </div>
       </div>
+      {onRecord ? (
+        <div className="flex flex-wrap items-center justify-between gap-3 rounded-lg border border-dashed border-groove/50 px-4 py-3">
+          <p className="text-sm text-ink-soft">
+            {activeId === "flat" ? "Pick the curve that sounds right, then record it with what you compared." : <>Record <span className="font-semibold text-ink">{activeLabel}</span> as this side&apos;s curve? The form below is filled in with what you compared; you can edit it before saving.</>}
+          </p>
+          <Button
+            type="button"
+            variant="secondary"
+            disabled={activeId === "flat"}
+            data-testid="audition-record"
+            onClick={() =>
+              onRecord(
+                activeId,
+                listeningEvidence({
+                  transfer,
+                  fromSeconds: win.data?.startSeconds ?? startAt,
+                  toSeconds: Math.min(duration, (win.data?.startSeconds ?? startAt) + WINDOW_SECONDS),
+                  channelMode,
+                  compared: candidates.map((c) => c.label),
+                  chosen: activeLabel,
+                }),
+              )
+            }
+          >
+            Use this curve…
+          </Button>
+        </div>
+      ) : null}
       {playError ? (
         <Notice tone="error" title="The player could not start">
           {playError}

@@ -1,9 +1,13 @@
 "use client";
 /**
- * The transfer bench for one side: choose and record the curve, compare
- * candidates by eye and by ear, upload the flat transfer, render the access copy.
+ * The transfer bench for one side, in the archive's order: (1) the flat transfer, which
+ * never depends on the curve; (2) candidate curves compared by eye and by ear on that
+ * very transfer, which records nothing; (3) the curve recorded, with its evidence; (4) the
+ * access copy rendered from exactly that transfer and curve, heard against the flat
+ * transfer through the curve, and sent for review.
  */
-import { useCallback, useId, useMemo, useState } from "react";
+import { useQuery } from "@tanstack/react-query";
+import { useCallback, useEffect, useId, useMemo, useState } from "react";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { CURVE_COLORS } from "@/components/curves/plot-format";
 import { ResponsePlot } from "@/components/curves/response-plot";
@@ -14,14 +18,16 @@ import { usePresets } from "@/hooks/use-presets";
 import { useSide } from "@/hooks/use-side";
 import { defaultChannelMode } from "@/lib/audition/channel-mode";
 import { type CurveSpec, mergeCurve } from "@/lib/curves";
+import { fetchJson } from "@/lib/http/client";
 import { statusLabels } from "@/lib/validation/catalogue";
 import { curveChoosableStatuses, uploadableStatuses } from "@/lib/validation/transfers";
+import { AccessCopyCompare } from "./access-copy-compare";
 import { AuditionPanel } from "./audition-panel";
-import { ChoiceHistory } from "./choice-history";
-import { CurveChoiceForm } from "./curve-choice-form";
+import { ChoiceHistory, curveTitle } from "./choice-history";
+import { type ChoicePrefill, CurveChoiceForm } from "./curve-choice-form";
 import { RenderPanel } from "./render-panel";
 import { TransfersList } from "./transfers-list";
-import type { Candidate, ChannelMode } from "./types";
+import type { Candidate, ChannelMode, RenderJson } from "./types";
 import { UploadPanel } from "./upload-panel";
 
 const MAX_CANDIDATES = 4;
@@ -39,14 +45,22 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   const [pickedTransfer, setPickedTransfer] = useState<string | null>(null);
   const [modeChoice, setModeChoice] = useState<ChannelMode | null>(null);
 
-  const current = choices.data?.choices[0] ?? null;
   const data = side.data;
+  // What the side stands on now, by the ids the server keeps (never "the latest" of each list).
+  const current = choices.data?.choices.find((c) => c.id === data?.side.currentCurveChoiceId) ?? null;
+  const renders = useQuery({ queryKey: ["renders", sideId], queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`) });
+  const currentRender = renders.data?.renders.find((r) => r.id === data?.side.currentRenderId && r.status === "done") ?? null;
+  // A curve picked in the listening panel, for the form (only while the recorded choice is the one it was picked against).
+  const [prefill, setPrefill] = useState<(ChoicePrefill & { against: string | null }) | null>(null);
+  useEffect(() => {
+    if (prefill && prefill.against !== (current?.id ?? null)) setPrefill(null);
+  }, [current?.id, prefill]);
   const speeds = current ? { cut: current.cutSpeedRpm, transfer: current.transferSpeedRpm } : { cut: data?.disc.nominalSpeedRpm ?? 78, transfer: data?.disc.nominalSpeedRpm ?? 78 };
 
   // Candidates: the recorded choice, the form's edits, and presets added for comparison (at the same speeds).
   const candidates = useMemo<Candidate[]>(() => {
     const out: Candidate[] = [];
-    if (current) out.push({ id: "current", label: `Recorded: ${current.presetName ? `${current.presetName} v${current.presetVersion}` : "own values"}`, spec: current.spec });
+    if (current) out.push({ id: "current", label: `Recorded: ${curveTitle(current)}`, spec: current.spec });
     if (editSpec && (!current || JSON.stringify(editSpec) !== JSON.stringify(current.spec))) out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
     for (const id of extraPresets) {
       const p = presets.data?.presets.find((x) => x.id === id);
@@ -55,7 +69,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
     return out.filter((c) => !hidden.has(c.id)).slice(0, MAX_CANDIDATES);
   }, [current, editSpec, extraPresets, presets.data, speeds.cut, speeds.transfer, hidden]);
 
-  const newest = transfers.data?.transfers[0] ?? null;
+  const newest = transfers.data?.transfers.find((t) => t.id === data?.side.currentTransferId) ?? transfers.data?.transfers[0] ?? null;
   const auditioned = transfers.data?.transfers.find((t) => t.id === pickedTransfer) ?? newest;
   const suggestion = data ? defaultChannelMode(data.disc.cut, Number(auditioned?.channels ?? 2)) : null;
   const channelMode: ChannelMode = modeChoice ?? suggestion?.mode ?? "both";
@@ -66,7 +80,20 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   const { disc } = data;
   const s = data.side;
   const mine = s.assignedEngineerId === userId;
-  const curveChosen = !!current && s.status !== "assigned" && s.status !== "returned";
+  const canChoose = mine && curveChoosableStatuses.has(s.status);
+  const recordFromListening = (candidateId: string, evidence: string) => {
+    const nonce = Date.now();
+    if (candidateId.startsWith("preset:")) {
+      const p = presets.data?.presets.find((x) => `preset:${x.id}` === candidateId);
+      setPrefill({ nonce, against: current?.id ?? null, preset: p ? { id: p.id, version: p.currentVersion } : null, evidence });
+    } else if (candidateId === "current" && current?.presetId && current.presetVersion) {
+      setPrefill({ nonce, against: current.id, preset: { id: current.presetId, version: current.presetVersion }, overrides: current.overrides, evidence });
+    } else {
+      // The form's own edits (or own values): the curve stays as the form has it.
+      setPrefill({ nonce, against: current?.id ?? null, preset: null, evidence });
+    }
+    document.getElementById("bench-step-choose")?.scrollIntoView({ behavior: "smooth", block: "start" });
+  };
 
   return (
     <div className="space-y-6" data-testid="bench">
@@ -79,28 +106,21 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
       />
       {!mine ? <Notice tone="info" title="Not assigned to you">You can look and listen; choices, uploads and renders are for the engineer this side is assigned to ({s.assignedEngineerName ?? "nobody yet"}).</Notice> : null}
 
-      <div className="grid gap-6 xl:grid-cols-[27rem_minmax(0,1fr)]">
-        <div className="space-y-6">
-          <Panel title="Choose the curve">
-            {choices.isLoading ? (
-              <p className="text-sm text-ink-faint">Loading…</p>
-            ) : curveChoosableStatuses.has(s.status) ? (
-              <CurveChoiceForm key={current?.id ?? "none"} data={data} current={current} extraSideIds={extraSideIds} onEffectiveSpec={onEffectiveSpec} />
-            ) : (
-              // The server refuses a new choice here; the recorded one stands below.
-              <Notice tone="info" title={`${statusLabels[s.status]}: the curve is settled`} testId="choice-locked">
-                {s.status === "in_review" ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it." : "This side's curve can no longer change."}
-              </Notice>
-            )}
-          </Panel>
-          <Panel title="Curves recorded for this side">
-            <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
-          </Panel>
+      <Panel title="1 · Flat transfer">
+        <div className="grid gap-6 2xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
+          <UploadPanel sideId={sideId} canUpload={mine && uploadableStatuses.has(s.status)} replaces={!!s.currentTransferId} />
+          <div className="min-w-0 space-y-2">
+            <h3 className="font-sans text-sm font-semibold">Transfers of this side</h3>
+            <TransfersList transfers={transfers.data?.transfers} loading={transfers.isLoading} selectedId={auditioned?.id ?? null} onSelect={setPickedTransfer} currentId={s.currentTransferId} />
+          </div>
         </div>
+      </Panel>
 
+      <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_27rem]">
         <div className="min-w-0 space-y-6">
-          <Panel title="Compare curves">
-            <div className="space-y-4">
+          <Panel title="2 · Listen and compare">
+            <div className="space-y-5">
+              <p className="text-xs text-ink-faint">Listening records nothing: compare as many curves as you like on the flat transfer, then record the one you choose.</p>
               <ul className="flex flex-wrap gap-2" data-testid="candidate-list" aria-label="Curves compared">
                 {candidates.map((c, i) => (
                   <li key={c.id} className="inline-flex items-center gap-2 rounded-full border border-paper-edge bg-white py-1 pl-3 pr-1 text-sm">
@@ -119,7 +139,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                     </button>
                   </li>
                 ))}
-                {!candidates.length ? <li className="text-sm text-ink-faint">Choose a preset in the form, or add one here, to see and hear it.</li> : null}
+                {!candidates.length ? <li className="text-sm text-ink-faint">Add a preset here, or set values in the form, to see and hear it.</li> : null}
               </ul>
               <div className="flex flex-wrap items-end gap-2">
                 <div className="space-y-1">
@@ -156,27 +176,65 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                 ) : null}
                 <p className="text-xs text-ink-faint">Up to {MAX_CANDIDATES} curves. Presets are shown at the choice&apos;s speeds.</p>
               </div>
-              {candidates.length ? <ResponsePlot curves={candidates} height={340} showPhase={false} /> : null}
+              {candidates.length ? <ResponsePlot curves={candidates} height={300} showPhase={false} /> : null}
+              <div className="border-t border-paper-edge pt-5">
+                <AuditionPanel transfer={auditioned} candidates={candidates} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} onRecord={canChoose ? recordFromListening : undefined} />
+              </div>
             </div>
           </Panel>
+        </div>
 
-          <Panel title="Flat transfer">
-            <UploadPanel sideId={sideId} curveChosen={curveChosen} canUpload={mine && uploadableStatuses.has(s.status)} />
-          </Panel>
-
-          <Panel title="Transfers of this side">
-            <TransfersList transfers={transfers.data?.transfers} loading={transfers.isLoading} selectedId={auditioned?.id ?? null} onSelect={setPickedTransfer} />
-          </Panel>
-
-          <Panel title="Listen">
-            <AuditionPanel transfer={auditioned} candidates={candidates} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} />
-          </Panel>
-
-          <Panel title="Access copy">
-            <RenderPanel sideId={sideId} sideStatus={s.status} channels={newest ? Number(newest.channels) : null} transferRateHz={newest ? Number(newest.sampleRateHz) : null} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} canRender={mine} />
+        <div className="min-w-0 space-y-6">
+          <div id="bench-step-choose" className="scroll-mt-4">
+            <Panel title="3 · Record the curve">
+              {choices.isLoading ? (
+                <p className="text-sm text-ink-faint">Loading…</p>
+              ) : curveChoosableStatuses.has(s.status) ? (
+                <div className="space-y-4">
+                  {!s.currentTransferId ? (
+                    <p className="rounded-md bg-paper-deep/60 px-3 py-2 text-xs text-ink-soft">
+                      No flat transfer yet. You may record a curve now (from published guidance for the label, say); the transfer does not wait for it, and you can still change the curve after listening.
+                    </p>
+                  ) : null}
+                  <CurveChoiceForm key={current?.id ?? "none"} data={data} current={current} extraSideIds={extraSideIds} onEffectiveSpec={onEffectiveSpec} prefill={prefill} />
+                </div>
+              ) : (
+                // The server refuses a new choice here; the recorded one stands below.
+                <Notice tone="info" title={`${statusLabels[s.status]}: the curve is settled`} testId="choice-locked">
+                  {s.status === "in_review" ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it." : "This side's curve can no longer change."}
+                </Notice>
+              )}
+            </Panel>
+          </div>
+          <Panel title="Curves recorded for this side">
+            <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
           </Panel>
         </div>
       </div>
+
+      <Panel title="4 · Access copy">
+        <div className="space-y-6">
+          <RenderPanel
+            sideId={sideId}
+            sideStatus={s.status}
+            channels={newest ? Number(newest.channels) : null}
+            transferRateHz={newest ? Number(newest.sampleRateHz) : null}
+            channelMode={channelMode}
+            onChannelMode={setModeChoice}
+            channelWhy={channelWhy}
+            canRender={mine}
+            currentWork={{ transferId: s.currentTransferId, curveChoiceId: s.currentCurveChoiceId }}
+          />
+          {currentRender && newest && current ? (
+            <section className="space-y-2 border-t border-paper-edge pt-5" aria-labelledby={`${uid}-ab`}>
+              <h3 id={`${uid}-ab`} className="font-sans text-sm font-semibold">
+                Hear the access copy against the flat transfer through the chosen curve
+              </h3>
+              <AccessCopyCompare key={currentRender.id} render={currentRender} transfer={newest} spec={current.spec} curveLabel={curveTitle(current)} />
+            </section>
+          ) : null}
+        </div>
+      </Panel>
     </div>
   );
 }

@@ -68,14 +68,28 @@ function draftsFrom(overrides: Partial<CurveSpec>): Record<CornerName, CornerDra
   return d;
 }
 
+/**
+ * A choice brought over from the listening panel: which curve was picked and what was
+ * compared. `nonce` changes with every new pick, so picking twice fills the form twice.
+ */
+export interface ChoicePrefill {
+  nonce: number;
+  /** A preset version to choose (its own values), or null to keep the form's curve as it stands. */
+  preset: { id: string; version: number } | null;
+  overrides?: Partial<CurveSpec>;
+  evidence: string;
+}
+
 export function CurveChoiceForm({
   data,
   current,
   extraSideIds,
   onEffectiveSpec,
+  prefill,
 }: {
   data: SideWithDisc;
   current: CurveChoiceJson | null;
+  prefill?: ChoicePrefill | null;
   /** Sides picked in the catalogue (?sides=…), offered as a third way to apply the choice. */
   extraSideIds: string[];
   onEffectiveSpec: (spec: CurveSpec | null) => void;
@@ -98,6 +112,20 @@ export function CurveChoiceForm({
   const [busy, setBusy] = useState(false);
   const [serverError, setServerError] = useState<{ message: string; fields: Record<string, string[]> } | null>(null);
   const [saved, setSaved] = useState<string | null>(null);
+
+  // A pick from the listening panel: the curve heard, evidence "listening", and what was compared (editable).
+  useEffect(() => {
+    if (!prefill) return;
+    if (prefill.preset) {
+      setPresetId(prefill.preset.id);
+      setVersion(prefill.preset.version);
+      setCorners(draftsFrom(prefill.overrides ?? {}));
+      setRef({ on: !!prefill.overrides?.reference, hz: String(prefill.overrides?.reference?.hz ?? 1000), db: String(prefill.overrides?.reference?.db ?? 0) });
+    }
+    setEvidenceKind("listening");
+    setEvidence(prefill.evidence);
+    setSaved(null);
+  }, [prefill]);
 
   const versions = usePresetVersions(presetId);
   const preset = presets.data?.presets.find((p) => p.id === presetId) ?? null;

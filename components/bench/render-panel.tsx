@@ -1,7 +1,7 @@
 "use client";
 /**
- * The access copy: the server renders the newest flat transfer through the
- * recorded curve (the exact analog response, not the player's sections), with
+ * The access copy: the server renders the side's current flat transfer through its
+ * current curve (the exact analog response, not the player's sections), with
  * the channel choice and word length set here, and writes a Broadcast WAVE
  * whose coding history records the chain.
  */
@@ -14,7 +14,8 @@ import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { useLabSettings } from "@/hooks/use-lab-settings";
 import { fetchJson } from "@/lib/http/client";
-import { accessCopyRates, channelModeLabels } from "@/lib/validation/transfers";
+import type { SideStatusName } from "@/lib/validation/catalogue";
+import { accessCopyRates, channelModeLabels, renderableStatuses } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
 import type { ChannelMode, RenderJson } from "./types";
 
@@ -30,9 +31,12 @@ export function RenderPanel({
   onChannelMode,
   channelWhy,
   canRender,
+  currentWork,
 }: {
   sideId: string;
-  sideStatus: string;
+  sideStatus: SideStatusName;
+  /** What the side stands on now: a render made from anything else is (or will be) superseded. */
+  currentWork: { transferId: string | null; curveChoiceId: string | null };
   channels: number | null;
   transferRateHz: number | null;
   channelMode: ChannelMode;
@@ -89,11 +93,13 @@ export function RenderPanel({
     }
   };
 
-  const ready = sideStatus === "transferred" || sideStatus === "rendered";
+  const ready = renderableStatuses.has(sideStatus);
+  const waiting =
+    sideStatus === "assigned" ? "An access copy is rendered once the flat transfer is in and a curve is recorded." : sideStatus === "transferred" ? "Record the curve (step 3) before rendering." : null;
   const modes: ChannelMode[] = channels === 1 ? ["both"] : (Object.keys(channelModeLabels) as ChannelMode[]);
   return (
     <div className="space-y-4" data-testid="render-panel">
-      {!ready && sideStatus !== "in_review" && sideStatus !== "approved" ? <Notice tone="info">An access copy can be rendered once a flat transfer has been accepted.</Notice> : null}
+      {!ready && waiting ? <Notice tone="info">{waiting}</Notice> : null}
       <div className="grid gap-3 sm:grid-cols-[minmax(0,1fr)_10rem_auto] sm:items-end">
         <SelectField id={`${uid}-mode`} label="Channels" value={channelMode} onChange={(e) => onChannelMode(e.target.value as ChannelMode)} data-testid="render-channel-mode" hint={channelWhy}>
           {modes.map((m) => (
@@ -141,6 +147,8 @@ export function RenderPanel({
               <div className="flex flex-wrap items-center justify-between gap-2">
                 <div className="flex flex-wrap items-center gap-2 text-sm">
                   <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>
+                  {r.status === "done" && r.current ? <Badge tone="groove" testId="render-current">The access copy</Badge> : null}
+                  {r.supersededAt ? <Badge tone="neutral" testId="render-superseded">Superseded</Badge> : null}
                   <span>{channelModeLabels[r.channelMode] ?? r.channelMode}</span>
                   <span className="font-mono text-xs text-ink-soft">
                     {r.bitDepth}-bit{r.sampleRateHz ? ` · ${r.sampleRateHz / 1000} kHz` : ""}
@@ -151,7 +159,7 @@ export function RenderPanel({
                 </div>
                 {r.status === "done" ? (
                   <a href={`/api/renders/${r.id}/download`} className="inline-flex h-8 items-center rounded-md border border-paper-edge bg-white px-3 text-sm font-medium hover:border-ink-faint" data-testid="render-download">
-                    Download access copy
+                    {r.current ? "Download access copy" : "Download (superseded)"}
                   </a>
                 ) : null}
               </div>
@@ -163,6 +171,10 @@ export function RenderPanel({
                 </p>
               ) : null}
               {r.status === "failed" && r.error ? <p className="mt-1.5 text-xs text-alarm">{r.error}</p> : null}
+              {r.supersededReason ? <p className="mt-1.5 text-xs text-ink-soft">Superseded: {r.supersededReason}. Kept with its file and SHA-256; never offered as the access copy.</p> : null}
+              {(r.status === "queued" || r.status === "running") && (r.transferId !== currentWork.transferId || r.curveChoiceId !== currentWork.curveChoiceId) ? (
+                <p className="mt-1.5 text-xs text-shellac-deep">Made from an earlier transfer or curve: it will be recorded as superseded when it finishes. Render again for the access copy.</p>
+              ) : null}
             </li>
           ))}
         </ul>

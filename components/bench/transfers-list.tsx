@@ -6,18 +6,30 @@ import { FileFact, Sha256Line } from "./file-facts";
 import { formatBytes, formatDuration } from "./progress-bar";
 import type { TransferJson } from "./types";
 
-/** The side's accepted flat transfers, newest first (the newest is the one a render reads). */
-export function TransfersList({ transfers, loading, selectedId, onSelect }: { transfers: TransferJson[] | undefined; loading: boolean; selectedId: string | null; onSelect: (id: string) => void }) {
+/** The side's accepted flat transfers, newest first; the side's current one is what a render reads. */
+export function TransfersList({
+  transfers,
+  loading,
+  selectedId,
+  onSelect,
+  currentId,
+}: {
+  transfers: TransferJson[] | undefined;
+  loading: boolean;
+  selectedId: string | null;
+  onSelect: (id: string) => void;
+  currentId: string | null;
+}) {
   if (loading) return <p className="text-sm text-ink-faint">Loading…</p>;
   if (!transfers?.length) return <p className="text-sm text-ink-faint">No flat transfer yet.</p>;
   return (
     <ul className="space-y-3" data-testid="transfers-list">
-      {transfers.map((t, i) => (
+      {transfers.map((t) => (
         <li key={t.id} className="rounded-lg border border-paper-edge bg-white p-3" data-testid="transfer-row">
           <div className="flex flex-wrap items-center justify-between gap-2">
             <div className="flex flex-wrap items-center gap-2">
               <span className="font-mono text-sm font-semibold">{t.fileName}</span>
-              {i === 0 ? <Badge tone="groove">Newest: rendered from</Badge> : null}
+              {t.id === currentId ? <Badge tone="groove" testId="transfer-current">Current: the access copy is made from it</Badge> : <Badge tone="neutral">Earlier transfer</Badge>}
             </div>
             <Button type="button" size="sm" variant={selectedId === t.id ? "primary" : "secondary"} aria-pressed={selectedId === t.id} onClick={() => onSelect(t.id)} data-testid="transfer-audition">
               {selectedId === t.id ? "In the player" : "Listen to this one"}

@@ -64,6 +64,13 @@ export interface RenderJson {
   peakDbfs: number | string | null;
   filter: unknown;
   error: string | null;
+  transferId?: string;
+  curveChoiceId?: string;
+  /** The side's access copy: made from its current transfer and curve. */
+  current?: boolean;
+  /** Set when a newer transfer or curve (or a newer render of them) replaced it; the file and hash stay. */
+  supersededAt?: string | null;
+  supersededReason?: string | null;
   createdAt: string;
   finishedAt: string | null;
   requestedBy: string;

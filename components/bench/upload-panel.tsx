@@ -14,7 +14,8 @@ import { Notice } from "@/components/ui/notice";
 import { useMultipartUpload } from "@/hooks/use-multipart-upload";
 import { formatBytes, ProgressBar } from "./progress-bar";
 
-export function UploadPanel({ sideId, curveChosen, canUpload }: { sideId: string; curveChosen: boolean; canUpload: boolean }) {
+/** The flat transfer comes first: it never waits for the curve, which is decided afterwards by evidence and by ear on it. */
+export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; canUpload: boolean; replaces: boolean }) {
   const uid = useId();
   const queryClient = useQueryClient();
   const { state, start, cancel, reset } = useMultipartUpload();
@@ -51,9 +52,9 @@ export function UploadPanel({ sideId, curveChosen, canUpload }: { sideId: string
   const f = (k: string) => state.fields?.[k];
   return (
     <div className="space-y-4" data-testid="upload-panel">
-      {!curveChosen ? (
-        <Notice tone="info" title="Choose the curve first">
-          A flat transfer is accepted once the side has a recorded curve choice.
+      {replaces && canUpload ? (
+        <Notice tone="info" title="A new transfer replaces the current one">
+          The side keeps every transfer, but a newly accepted one becomes the one the access copy is made from: any access copy rendered so far is superseded and the side is rendered again.
         </Notice>
       ) : null}
       <div className="grid gap-5 lg:grid-cols-[minmax(0,1.1fr)_minmax(0,1fr)]">
@@ -123,7 +124,7 @@ export function UploadPanel({ sideId, curveChosen, canUpload }: { sideId: string
       ) : null}
 
       <div className="flex flex-wrap gap-2">
-        <Button type="button" onClick={() => void send()} disabled={!file || working || !curveChosen || !canUpload} data-testid="upload-start">
+        <Button type="button" onClick={() => void send()} disabled={!file || working || !canUpload} data-testid="upload-start">
           {state.phase === "failed" ? "Try again" : "Upload and check"}
         </Button>
         {working ? (

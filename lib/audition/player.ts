@@ -8,7 +8,12 @@
  *
  *   source ─┬─ [sections] ─ match ─ switch ─┐
  *           ├─ [sections] ─ match ─ switch ─┼─ volume ─ peak guard ─ out
- *           └─────────────── flat ─ switch ─┘
+ *           └─────────────── flat ─ switch ─┤
+ *   companion ────────────── level ─ switch ─┘
+ *
+ * The companion is a second recording of the same stretch (the access copy the server
+ * rendered), started in step with the first, so A/B between "the access copy" and "the
+ * flat transfer through the chosen curve in this browser" switches with no gap either.
  */
 import { type CurveSpec, designIir } from "@/lib/curves";
 import { matchAt1kHzDb } from "./curve-merge";
@@ -43,6 +48,7 @@ export class AuditionPlayer {
   private startedAt = 0;
   private startOffset = 0;
   private active = "flat";
+  private companion: { id: string; buffer: AudioBuffer; chain: Chain; source: AudioBufferSourceNode | null } | null = null;
   onEnded: (() => void) | null = null;
 
   constructor(sampleRateHz: number) {
@@ -102,8 +108,28 @@ export class AuditionPlayer {
       switchGain.connect(this.volume);
       this.chains.set(cand.id, { nodes, switchGain });
     }
-    if (!this.chains.has(this.active)) this.select("flat");
+    if (!this.chains.has(this.active) && this.companion?.id !== this.active) this.select("flat");
     if (wasPlaying && this.buffer) this.play(at);
+  }
+
+  /**
+   * A second recording of the same window, selectable as `id`, played in step with the
+   * first at `levelDb` (so it can be matched in loudness to the curve it is compared with).
+   */
+  loadCompanion(id: string, win: AudioWindow, levelDb: number): void {
+    const wasPlaying = this.source !== null;
+    const at = this.position();
+    this.stopSource();
+    if (this.companion) for (const n of this.companion.chain.nodes) n.disconnect();
+    const buffer = this.ctx.createBuffer(win.channels.length, win.channels[0]?.length || 1, win.sampleRateHz);
+    win.channels.forEach((c, i) => buffer.copyToChannel(c as Float32Array<ArrayBuffer>, i));
+    const level = this.ctx.createGain();
+    level.gain.value = dbToGain(levelDb);
+    const switchGain = this.ctx.createGain();
+    switchGain.gain.value = id === this.active ? 1 : 0;
+    level.connect(switchGain).connect(this.volume);
+    this.companion = { id, buffer, chain: { nodes: [level, switchGain], switchGain }, source: null };
+    if (wasPlaying && this.buffer) void this.play(at);
   }
 
   load(win: AudioWindow): void {
@@ -143,6 +169,13 @@ export class AuditionPlayer {
     };
     src.start(0, offset);
     this.source = src;
+    if (this.companion) {
+      const c = this.ctx.createBufferSource();
+      c.buffer = this.companion.buffer;
+      c.connect(this.companion.chain.nodes[0]);
+      c.start(0, Math.min(offset, Math.max(0, this.companion.buffer.duration - 0.01)));
+      this.companion.source = c;
+    }
     this.startedAt = this.ctx.currentTime;
     this.startOffset = offset;
   }
@@ -162,7 +195,8 @@ export class AuditionPlayer {
   select(id: string): void {
     this.active = id;
     const t = this.ctx.currentTime;
-    for (const [cid, c] of this.chains) {
+    const all: [string, Chain][] = [...this.chains, ...(this.companion ? [[this.companion.id, this.companion.chain] as [string, Chain]] : [])];
+    for (const [cid, c] of all) {
       c.switchGain.gain.cancelScheduledValues(t);
       c.switchGain.gain.setValueAtTime(c.switchGain.gain.value, t);
       c.switchGain.gain.linearRampToValueAtTime(cid === id ? 1 : 0, t + FADE_S);
@@ -174,6 +208,16 @@ export class AuditionPlayer {
   }
 
   private stopSource(): void {
+    const cs = this.companion?.source;
+    if (cs && this.companion) {
+      this.companion.source = null;
+      try {
+        cs.stop();
+      } catch {
+        /* already stopped */
+      }
+      cs.disconnect();
+    }
     const s = this.source;
     this.source = null;
     if (s) {

@@ -15,6 +15,10 @@ export interface SideRecord {
   assignedEngineerId: string | null;
   assignedEngineerName: string | null;
   returnReason: string | null;
+  /** What the side stands on now: its current flat transfer, curve choice and access copy. */
+  currentTransferId: string | null;
+  currentCurveChoiceId: string | null;
+  currentRenderId: string | null;
   version: number;
 }
 
@@ -110,6 +114,9 @@ export async function readSides(db: Db, discIds: string[]): Promise<Map<string, 
       "s.assigned_engineer_id as assignedEngineerId",
       "u.name as assignedEngineerName",
       "s.return_reason as returnReason",
+      "s.current_transfer_id as currentTransferId",
+      "s.current_curve_choice_id as currentCurveChoiceId",
+      "s.current_render_id as currentRenderId",
       "s.version",
     ])
     .where("s.disc_id", "in", discIds)

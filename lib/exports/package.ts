@@ -26,9 +26,8 @@ export async function discPackage(discId: string): Promise<{ fileName: string; s
   const base = fileNameBase(record.disc.shelfMark);
   const json = `${JSON.stringify(record, null, 2)}\n`;
   const xml = premisXml(premisRecord([record]));
-  // The latest access copy of each side is the one approved.
-  const latest = new Map<string, (typeof record.accessCopies)[number]>();
-  for (const a of record.accessCopies) latest.set(a.sideId, a);
+  // Each side's access copy is the render its approval names, never simply the latest.
+  const copies = new Map(record.accessCopies.map((a) => [a.id, a]));
   const manifest: string[] = [];
   const zip = new yazl.ZipFile();
   zip.addBuffer(Buffer.from(json), `${base}/record.json`);
@@ -36,8 +35,9 @@ export async function discPackage(discId: string): Promise<{ fileName: string; s
   zip.addBuffer(Buffer.from(xml), `${base}/premis.xml`);
   manifest.push(`${sha256(xml)}  premis.xml`);
   for (const side of record.disc.sides) {
-    const copy = latest.get(side.id);
-    if (!copy?.objectKey || !copy.sha256) throw new AppError("conflict", 409, `Side ${side.designation} has no access copy.`);
+    const approved = record.approved[side.id];
+    const copy = approved ? copies.get(approved.render.id) : undefined;
+    if (!copy?.objectKey || !copy.sha256 || copy.sha256 !== approved?.render.sha256) throw new AppError("conflict", 409, `Side ${side.designation} has no approved access copy.`);
     const name = `access/${base}-${side.designation.replace(/[^A-Za-z0-9]+/g, "_")}.wav`;
     const through = new PassThrough();
     zip.addReadStream(through, `${base}/${name}`, { compress: false, size: Number(copy.bytes) });

@@ -11,7 +11,7 @@ const EVENT_TYPE_AUTHORITY = "http://id.loc.gov/vocabulary/preservation/eventTyp
 export interface PremisFile {
   /** The object key in the bucket: the file's identifier. */
   key: string;
-  role: "flat transfer" | "access copy";
+  role: "flat transfer" | "access copy" | "superseded access copy";
   sha256: string;
   bytes: number;
   originalName: string;

@@ -1,10 +1,35 @@
 import "server-only";
 import { db } from "../../db";
-import type { CurveSpec } from "../curves";
 import { readDisc } from "../catalogue/records";
 import { env } from "../env";
 import { AppError } from "../http/errors";
+import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { softwareName } from "../version";
+
+interface ReviewRow {
+  sideId: string;
+  decision: "approved" | "returned";
+  transferId: string | null;
+  transferSha256: string | null;
+  curveChoiceId: string | null;
+  curveSpecSha256: string | null;
+  renderId: string | null;
+  renderSha256: string | null;
+}
+
+/** The triple each side's latest approval binds (reviews are in decision order). */
+function approvedWork(reviews: readonly ReviewRow[]) {
+  const bySide: Record<string, { transfer: { id: string; sha256: string }; curveChoice: { id: string; specSha256: string }; render: { id: string; sha256: string } }> = {};
+  for (const r of reviews) {
+    if (r.decision !== "approved" || !r.transferId || !r.curveChoiceId || !r.renderId) continue;
+    bySide[r.sideId] = {
+      transfer: { id: r.transferId, sha256: r.transferSha256 ?? "" },
+      curveChoice: { id: r.curveChoiceId, specSha256: r.curveSpecSha256 ?? "" },
+      render: { id: r.renderId, sha256: r.renderSha256 ?? "" },
+    };
+  }
+  return bySide;
+}
 import type { PremisAgent, PremisEvent, PremisFile, PremisRecord } from "./premis";
 
 /** Everything the lab knows of one disc, for the repository: record, choices, files, reviews, fixity and events. */
@@ -16,10 +41,10 @@ export async function discRecord(discId: string) {
   const none = ["00000000-0000-0000-0000-000000000000"];
   const ids = sideIds.length ? sideIds : none;
   const [choices, transfers, renders, reviews, fixity, events] = await Promise.all([
-    db.selectFrom("curve_choices as c").innerJoin("users as u", "u.id", "c.chosen_by").select(["c.id", "c.side_id as sideId", "c.preset_name as presetName", "c.preset_version as presetVersion", "c.preset_spec as presetSpec", "c.overrides", "c.spec", "c.cut_speed_rpm as cutSpeedRpm", "c.transfer_speed_rpm as transferSpeedRpm", "c.rationale", "c.evidence_kind as evidenceKind", "c.evidence", "c.chosen_at as chosenAt", "u.name as chosenBy"]).where("c.side_id", "in", ids).orderBy("c.chosen_at").execute(),
+    db.selectFrom("curve_choices as c").innerJoin("users as u", "u.id", "c.chosen_by").select(["c.id", "c.side_id as sideId", "c.preset_name as presetName", "c.preset_version as presetVersion", "c.preset_spec as presetSpec", "c.overrides", "c.spec", "c.cut_speed_rpm as cutSpeedRpm", "c.transfer_speed_rpm as transferSpeedRpm", "c.spec_sha256 as specSha256", "c.rationale", "c.evidence_kind as evidenceKind", "c.evidence", "c.chosen_at as chosenAt", "u.name as chosenBy"]).where("c.side_id", "in", ids).orderBy("c.chosen_at").execute(),
     db.selectFrom("transfers as t").innerJoin("users as u", "u.id", "t.uploaded_by").select(["t.id", "t.side_id as sideId", "t.object_key as objectKey", "t.file_name as fileName", "t.sha256", "t.bytes", "t.container", "t.encoding", "t.bits_per_sample as bitsPerSample", "t.channels", "t.sample_rate_hz as sampleRateHz", "t.frames", "t.duration_seconds as durationSeconds", "t.bext", "t.stylus_size as stylusSize", "t.stylus_shape as stylusShape", "t.measured_speed_rpm as measuredSpeedRpm", "t.chain", "t.created_at as createdAt", "u.name as uploadedBy"]).where("t.side_id", "in", ids).orderBy("t.created_at").execute(),
-    db.selectFrom("renders as r").innerJoin("users as u", "u.id", "r.requested_by").select(["r.id", "r.side_id as sideId", "r.transfer_id as transferId", "r.curve_choice_id as curveChoiceId", "r.object_key as objectKey", "r.sha256", "r.bytes", "r.channel_mode as channelMode", "r.bit_depth as bitDepth", "r.trim_db as trimDb", "r.peak_dbfs as peakDbfs", "r.filter", "r.finished_at as finishedAt", "u.name as requestedBy"]).where("r.side_id", "in", ids).where("r.status", "=", "done").orderBy("r.finished_at").execute(),
-    db.selectFrom("reviews as r").innerJoin("users as u", "u.id", "r.curator_id").select(["r.id", "r.side_id as sideId", "r.decision", "r.reason", "r.decided_at as decidedAt", "u.name as curator"]).where("r.side_id", "in", ids).orderBy("r.decided_at").execute(),
+    db.selectFrom("renders as r").innerJoin("users as u", "u.id", "r.requested_by").select(["r.id", "r.side_id as sideId", "r.transfer_id as transferId", "r.curve_choice_id as curveChoiceId", "r.object_key as objectKey", "r.sha256", "r.bytes", "r.channel_mode as channelMode", "r.bit_depth as bitDepth", "r.trim_db as trimDb", "r.peak_dbfs as peakDbfs", "r.filter", "r.finished_at as finishedAt", "r.superseded_at as supersededAt", "r.superseded_reason as supersededReason", "u.name as requestedBy"]).where("r.side_id", "in", ids).where("r.status", "=", "done").orderBy("r.finished_at").execute(),
+    db.selectFrom("reviews as r").innerJoin("users as u", "u.id", "r.curator_id").select(["r.id", "r.side_id as sideId", "r.decision", "r.reason", "r.transfer_id as transferId", "r.transfer_sha256 as transferSha256", "r.curve_choice_id as curveChoiceId", "r.curve_spec_sha256 as curveSpecSha256", "r.render_id as renderId", "r.render_sha256 as renderSha256", "r.decided_at as decidedAt", "u.name as curator"]).where("r.side_id", "in", ids).orderBy("r.decided_at").execute(),
     db.selectFrom("fixity_checks").select(["id", "side_id as sideId", "object_kind as objectKind", "object_key as objectKey", "expected_sha256 as expectedSha256", "actual_sha256 as actualSha256", "outcome", "checked_at as checkedAt"]).where("side_id", "in", ids).orderBy("checked_at").execute(),
     db.selectFrom("provenance_events as e").leftJoin("users as u", "u.id", "e.actor_id").select(["e.seq", "e.id", "e.at", "e.kind", "e.subject_type as subjectType", "e.subject_id as subjectId", "e.payload", "e.hash", "e.prev_hash as prevHash", "e.actor_id as actorId", "u.name as actorName"]).where((eb) => eb.or([eb("e.disc_id", "=", discId), eb.and([eb("e.subject_type", "=", "accession"), eb("e.subject_id", "=", disc.accessionId)])])).orderBy("e.seq").execute(),
   ]);
@@ -29,10 +54,19 @@ export async function discRecord(discId: string) {
     lab: env().LAB_NAME,
     accession,
     disc,
-    curveChoices: choices.map((c) => ({ ...c, cutSpeedRpm: Number(c.cutSpeedRpm), transferSpeedRpm: Number(c.transferSpeedRpm), spec: c.spec as CurveSpec })),
+    curveChoices: choices.map((c) => ({
+      ...c,
+      cutSpeedRpm: Number(c.cutSpeedRpm),
+      transferSpeedRpm: Number(c.transferSpeedRpm),
+      spec: parseStored(storedCurveSpecSchema, c.spec, { table: "curve_choices", id: c.id, column: "spec" }),
+    })),
     transfers,
-    accessCopies: renders,
+    // Every access copy made, each marked superseded or not: only one made from the
+    // approved transfer and curve is the side's access copy.
+    accessCopies: renders.map((r) => ({ ...r, filter: r.filter === null ? null : parseStored(renderFilterRecordSchema, r.filter, { table: "renders", id: r.id, column: "filter" }) })),
     reviews,
+    // Per side, what its latest approval binds: the flat transfer, the curve choice and the render made from them.
+    approved: approvedWork(reviews),
     fixityChecks: fixity,
     events,
   };
@@ -69,9 +103,10 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
     for (const t of r.transfers) {
       files.push({ key: t.objectKey, role: "flat transfer", sha256: t.sha256, bytes: Number(t.bytes), originalName: t.fileName, formatName: t.container === "RF64" ? "RF64" : t.bext ? "Broadcast WAVE" : "WAVE", sideIdentifier: sideName(r, t.sideId) });
     }
+    const renderKeys = new Map(r.accessCopies.map((a) => [a.id, a.objectKey]));
     for (const a of r.accessCopies) {
       if (!a.objectKey || !a.sha256) continue;
-      files.push({ key: a.objectKey, role: "access copy", sha256: a.sha256, bytes: Number(a.bytes), originalName: `${sideName(r, a.sideId).replace(/ side /, "-")}-access.wav`, formatName: "Broadcast WAVE", formatVersion: "2", sideIdentifier: sideName(r, a.sideId), derivedFrom: transferKeys.get(a.transferId) });
+      files.push({ key: a.objectKey, role: a.supersededAt ? "superseded access copy" : "access copy", sha256: a.sha256, bytes: Number(a.bytes), originalName: `${sideName(r, a.sideId).replace(/ side /, "-")}-access.wav`, formatName: "Broadcast WAVE", formatVersion: "2", sideIdentifier: sideName(r, a.sideId), derivedFrom: transferKeys.get(a.transferId) });
     }
     for (const e of r.events) {
       if (e.actorId && !agents.has(e.actorId)) agents.set(e.actorId, { id: e.actorId, name: e.actorName ?? "unknown person", type: "person" });
@@ -103,9 +138,32 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
         case "side.curve_changed":
           events.push(ev("metadata modification", `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ${p.preset ? `preset "${p.preset.name}" version ${p.preset.version}` : "values given"}; curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`, entity));
           break;
-        case "side.approved":
+        case "side.approved": {
+          // The approval names exactly what it binds: the flat transfer, the curve choice and the render made from them.
+          const transferId = p.transfer?.id ?? p.transferId;
+          const renderId = p.render?.id ?? p.renderId;
+          const choiceId = p.curveChoice?.id ?? p.curveChoiceId;
+          events.push(
+            ev(
+              "appraisal",
+              `Approved by a curator: the access copy rendered from this flat transfer through curve choice ${choiceId ?? "?"}${p.curveChoice?.specSha256 ? ` (curve SHA-256 ${p.curveChoice.specSha256})` : ""}`,
+              [
+                ...entity,
+                ...(transferId ? [{ type: "Rillbook object key", value: transferKeys.get(transferId) ?? String(transferId), role: "source" }] : []),
+                ...(choiceId ? [{ type: "Rillbook curve choice", value: String(choiceId), role: "source" }] : []),
+                ...(renderId ? [{ type: "Rillbook object key", value: renderKeys.get(renderId) ?? String(renderId), role: "outcome" }] : []),
+              ],
+              "success",
+              [p.transfer?.sha256 && `flat transfer SHA-256 ${p.transfer.sha256}`, p.render?.sha256 && `access copy SHA-256 ${p.render.sha256}`].filter(Boolean).join("; ") || undefined,
+            ),
+          );
+          break;
+        }
         case "side.returned":
-          events.push(ev("appraisal", e.kind === "side.approved" ? "Transfer and access copy approved by a curator" : `Returned to the engineer: ${p.reason}`, entity, e.kind === "side.approved" ? "success" : "failure"));
+          events.push(ev("appraisal", `Returned to the engineer: ${p.reason}`, entity, "failure"));
+          break;
+        case "side.render_superseded":
+          events.push(ev("metadata modification", `Access copy superseded (${p.reason}); the file and its SHA-256 are kept`, [...entity, { type: "Rillbook object key", value: renderKeys.get(p.renderId) ?? String(p.renderId), role: "source" }]));
           break;
         default:
           events.push(ev("metadata modification", `${e.kind}${p?.before || p?.after ? `: ${JSON.stringify({ before: p.before, after: p.after })}` : ""}`, entity));

@@ -6,12 +6,14 @@ import { createReadStream, promises as fs } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { PutObjectCommand } from "@aws-sdk/client-s3";
-import { type Kysely, sql } from "kysely";
+import type { Kysely } from "kysely";
 import type { Database } from "../../db/types";
 import { readWavHeader, renderAccessCopy } from "../audio";
-import { buildAnalogModel, type CurveSpec, designIirFromModel, designRenderFilterFromModel, type ResolvedCurve, resolveCurve } from "../curves";
+import { buildAnalogModel, designIirFromModel, designRenderFilterFromModel, type ResolvedCurve, resolveCurve } from "../curves";
 import { env } from "../env";
 import { appendEvent } from "../provenance";
+import { renderFinished } from "../sides/lifecycle";
+import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../validation/records";
 import { objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { softwareName } from "../version";
@@ -70,7 +72,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
   const tmp = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-render-"));
   const outputPath = path.join(tmp, "access.wav");
   try {
-    const spec = job.spec as CurveSpec;
+    const spec = parseStored(storedCurveSpecSchema, job.spec, { table: "curve_choices", id: job.choiceId, column: "spec" });
     // One resolved curve and model for the render filter, the coding history and the recorded sections.
     const curve = resolveCurve(spec);
     const model = buildAnalogModel(curve);
@@ -107,7 +109,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     const key = `access/${job.sideId}/${renderId}.wav`;
     await s3().send(new PutObjectCommand({ Bucket: env().S3_BUCKET, Key: key, Body: createReadStream(outputPath), ContentLength: result.outputBytes, ContentType: "audio/wav" }));
     const iir = designIirFromModel(model, job.sampleRateHz);
-    const filterRecord = {
+    const filterRecord: StoredRenderFilter = {
       kind: filter.kind,
       taps: filter.taps.length,
       tapsSha256: createHash("sha256").update(Buffer.from(Float64Array.from(filter.taps).buffer)).digest("hex"),
@@ -146,11 +148,8 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
           codingHistory: result.codingHistory,
         },
       });
-      const side = await trx.selectFrom("sides").select(["status", "version"]).where("id", "=", job.sideId).forUpdate().executeTakeFirstOrThrow();
-      if (side.status === "transferred") {
-        await trx.updateTable("sides").set({ status: "rendered", version: side.version + 1, updated_at: sql`now()` }).where("id", "=", job.sideId).execute();
-        await appendEvent(trx, { actorId: job.requestedBy, kind: "side.status_changed", subjectType: "side", subjectId: job.sideId, discId: job.discId, payload: { side: job.designation, before: { status: "transferred" }, after: { status: "rendered" } } });
-      }
+      // Current only if it was made from the side's current transfer and curve; otherwise superseded (lib/sides).
+      await renderFinished(trx, { id: job.requestedBy, role: null }, { id: renderId, sideId: job.sideId, transferId: job.transferId, curveChoiceId: job.choiceId });
     });
     return "done";
   } catch (err) {

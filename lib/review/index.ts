@@ -1,5 +1,5 @@
 import "server-only";
-import { sql, type Transaction } from "kysely";
+import type { Transaction } from "kysely";
 import { z } from "zod";
 import { db } from "../../db";
 import type { Database } from "../../db/types";
@@ -7,21 +7,41 @@ import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
 import { AppError } from "../http/errors";
 import { enqueueMail } from "../mail/outbox";
-import { appendEvent } from "../provenance";
+import { type LockedSide, lockSide, reviewDecided } from "../sides/lifecycle";
 
 export const decisionSchema = z.object({
   decision: z.enum(["approved", "returned"], { error: "Approve or return." }),
   reason: z.string().trim().max(4000).optional(),
 });
 
-/** What the side stands on now: its latest curve choice, transfer and finished render. */
-async function currentWork(trx: Transaction<Database>, sideId: string) {
-  const [choice, transfer, render] = await Promise.all([
-    trx.selectFrom("curve_choices").select(["id", "chosen_by"]).where("side_id", "=", sideId).orderBy("chosen_at", "desc").limit(1).executeTakeFirst(),
-    trx.selectFrom("transfers").select(["id", "uploaded_by", "created_at"]).where("side_id", "=", sideId).orderBy("created_at", "desc").limit(1).executeTakeFirst(),
-    trx.selectFrom("renders").select(["id", "requested_by", "finished_at"]).where("side_id", "=", sideId).where("status", "=", "done").orderBy("finished_at", "desc").limit(1).executeTakeFirst(),
+/**
+ * What the side stands on now: its current flat transfer, curve choice and the access
+ * copy rendered from exactly those two (lib/sides keeps them; the database holds them
+ * consistent), each with the SHA-256 a review records.
+ */
+async function currentWork(trx: Transaction<Database>, side: LockedSide) {
+  const [transfer, choice, render] = await Promise.all([
+    side.current_transfer_id ? trx.selectFrom("transfers").select(["id", "sha256", "file_name", "created_at"]).where("id", "=", side.current_transfer_id).executeTakeFirst() : undefined,
+    side.current_curve_choice_id
+      ? trx.selectFrom("curve_choices").select(["id", "spec_sha256", "preset_name", "preset_version", "overrides", "spec"]).where("id", "=", side.current_curve_choice_id).executeTakeFirst()
+      : undefined,
+    side.current_render_id
+      ? trx.selectFrom("renders").select(["id", "sha256", "finished_at", "transfer_id", "curve_choice_id", "superseded_at"]).where("id", "=", side.current_render_id).where("status", "=", "done").executeTakeFirst()
+      : undefined,
   ]);
-  return { choice, transfer, render };
+  return { transfer, choice, render };
+}
+
+/** Everyone who made any transfer, curve choice or render of the side, in any round. */
+async function makersOf(trx: Transaction<Database>, sideId: string): Promise<Set<string>> {
+  const rows = await trx
+    .selectFrom("transfers")
+    .select("uploaded_by as who")
+    .where("side_id", "=", sideId)
+    .union(trx.selectFrom("curve_choices").select("chosen_by as who").where("side_id", "=", sideId))
+    .union(trx.selectFrom("renders").select("requested_by as who").where("side_id", "=", sideId))
+    .execute();
+  return new Set(rows.map((r) => r.who));
 }
 
 /** Has the object passed a fixity check since it was stored, with no failure after? */
@@ -47,53 +67,57 @@ export async function decideReview(actor: SessionUser, sideId: string, input: un
   const { decision, reason } = decisionSchema.parse(input);
   if (decision === "returned" && !reason) throw new AppError("invalid", 422, "Say why the side goes back, so the engineer knows what to fix.", { reason: ["A reason is required."] });
   return db.transaction().execute(async (trx) => {
-    const side = await trx
-      .selectFrom("sides as s")
-      .innerJoin("discs as d", "d.id", "s.disc_id")
-      .select(["s.id", "s.disc_id", "s.designation", "s.status", "s.version", "s.assigned_engineer_id", "d.shelf_mark"])
-      .where("s.id", "=", sideId)
-      .forUpdate()
-      .executeTakeFirst();
-    if (!side) throw new AppError("not_found", 404, "No such side.");
+    const side = await lockSide(trx, sideId);
+    const disc = await trx.selectFrom("discs").select("shelf_mark").where("id", "=", side.disc_id).executeTakeFirstOrThrow();
     if (side.status !== "in_review") throw new AppError("conflict", 409, `Only a side in review can be ${decision}; this one is ${side.status.replace("_", " ")}.`);
-    const work = await currentWork(trx, side.id);
+    const work = await currentWork(trx, side);
     if (decision === "approved") {
-      const makers = new Set([work.choice?.chosen_by, work.transfer?.uploaded_by, work.render?.requested_by].filter(Boolean));
-      if (makers.has(actor.id)) throw new AppError("forbidden", 403, "You made this side's transfer, chose its curve or rendered it: another curator must approve it.");
-      if (!work.transfer || !work.render || !work.choice) throw new AppError("conflict", 409, "The side has no finished access copy to approve.");
+      if ((await makersOf(trx, side.id)).has(actor.id)) {
+        throw new AppError("forbidden", 403, "You made a transfer, chose a curve or asked for a render of this side (in this round or an earlier one): another curator must approve it.");
+      }
+      if (!work.transfer || !work.render || !work.choice || work.render.superseded_at) throw new AppError("conflict", 409, "The side has no current access copy rendered from its current transfer and curve to approve.");
       const missing: string[] = [];
       if (!(await fixityPassedSince(trx, "transfer", work.transfer.id, work.transfer.created_at))) missing.push("the flat transfer");
       if (!(await fixityPassedSince(trx, "render", work.render.id, work.render.finished_at ?? new Date(0)))) missing.push("the access copy");
       if (missing.length) throw new AppError("conflict", 409, `Run a fixity check first: ${missing.join(" and ")} ${missing.length > 1 ? "have" : "has"} not passed one since being stored.`);
     }
-    await trx
+    // The review names the triple with the SHA-256s the curator saw; the database refuses
+    // one whose render was not made from its transfer and curve choice.
+    const review = await trx
       .insertInto("reviews")
-      .values({ side_id: side.id, curator_id: actor.id, decision, reason: reason ?? null, transfer_id: work.transfer?.id ?? null, render_id: work.render?.id ?? null, curve_choice_id: work.choice?.id ?? null })
-      .execute();
-    await trx.updateTable("sides").set({ status: decision, return_reason: decision === "returned" ? reason! : null, version: side.version + 1, updated_at: sql`now()` }).where("id", "=", side.id).execute();
-    await appendEvent(trx, {
-      actorId: actor.id,
-      kind: decision === "approved" ? "side.approved" : "side.returned",
-      subjectType: "side",
-      subjectId: side.id,
-      discId: side.disc_id,
-      payload: {
-        side: side.designation,
-        before: { status: "in_review" },
-        after: { status: decision },
-        ...(reason ? { reason } : {}),
-        transferId: work.transfer?.id ?? null,
-        renderId: work.render?.id ?? null,
-        curveChoiceId: work.choice?.id ?? null,
-      },
+      .values({
+        side_id: side.id,
+        curator_id: actor.id,
+        decision,
+        reason: reason ?? null,
+        transfer_id: work.transfer?.id ?? null,
+        transfer_sha256: work.transfer?.sha256 ?? null,
+        curve_choice_id: work.choice?.id ?? null,
+        curve_spec_sha256: work.choice?.spec_sha256 ?? null,
+        render_id: work.render?.id ?? null,
+        render_sha256: work.render?.sha256 ?? null,
+      })
+      .returning("id")
+      .executeTakeFirstOrThrow();
+    await reviewDecided(trx, actor, side, decision, reason ?? null, {
+      reviewId: review.id,
+      transfer: work.transfer ? { id: work.transfer.id, sha256: work.transfer.sha256, fileName: work.transfer.file_name } : null,
+      curveChoice: work.choice
+        ? { id: work.choice.id, specSha256: work.choice.spec_sha256, presetName: work.choice.preset_name, presetVersion: work.choice.preset_version, overrides: work.choice.overrides, spec: work.choice.spec }
+        : null,
+      render: work.render ? { id: work.render.id, sha256: work.render.sha256 } : null,
+      // The flat ids too, as earlier events carried them.
+      transferId: work.transfer?.id ?? null,
+      renderId: work.render?.id ?? null,
+      curveChoiceId: work.choice?.id ?? null,
     });
     if (decision === "returned" && side.assigned_engineer_id) {
       const engineer = await trx.selectFrom("users").select("email").where("id", "=", side.assigned_engineer_id).executeTakeFirst();
       if (engineer) {
         await enqueueMail(trx, {
           to: engineer.email,
-          subject: `${side.shelf_mark} side ${side.designation} came back from review`,
-          text: [`${actor.name} returned ${side.shelf_mark} side ${side.designation}:`, "", reason!, "", `Open it on the bench: ${env().APP_URL}/bench/${side.id}`].join("\n"),
+          subject: `${disc.shelf_mark} side ${side.designation} came back from review`,
+          text: [`${actor.name} returned ${disc.shelf_mark} side ${side.designation}:`, "", reason!, "", `Open it on the bench: ${env().APP_URL}/bench/${side.id}`].join("\n"),
         });
       }
     }

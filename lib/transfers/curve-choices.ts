@@ -1,14 +1,19 @@
 import "server-only";
-import { sql } from "kysely";
+import { createHash } from "node:crypto";
 import { db } from "../../db";
-import type { SideStatus } from "../../db/types";
 import { type CurveSpec, mergeCurve, resolveCurve } from "../curves";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { asCurveAppError } from "../presets/curve-check";
 import { appendEvents, type NewEvent } from "../provenance";
+import { canonicalJson } from "../provenance/chain";
+import { curveChoosableStatuses, curveChosen, lockSides } from "../sides/lifecycle";
 import { statusLabels } from "../validation/catalogue";
-import { curveChoiceSchema, curveChoosableStatuses } from "../validation/transfers";
+import { curveChoiceSchema } from "../validation/transfers";
+
+function sha256Hex(text: string): string {
+  return createHash("sha256").update(text).digest("hex");
+}
 
 /**
  * Records a curve choice for each side, keeping the preset version's values as they are
@@ -27,7 +32,7 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
         .where("version", "=", c.presetVersion)
         .executeTakeFirst();
       if (!v) throw new AppError("invalid", 422, "That preset version does not exist.", { presetVersion: ["Unknown preset version."] });
-      preset = { name: v.name, spec: v.spec as CurveSpec };
+      preset = { name: v.name, spec: v.spec };
     }
     // The same merge the bench plots and plays (preset, then overrides, then transfer ÷ cut speed).
     const spec = mergeCurve(preset?.spec ?? null, c.overrides as Partial<CurveSpec>, c.cutSpeedRpm, c.transferSpeedRpm);
@@ -36,31 +41,28 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
     } catch (err) {
       throw asCurveAppError(err, "overrides");
     }
-    const sides = await trx
-      .selectFrom("sides as s")
-      .innerJoin("discs as d", "d.id", "s.disc_id")
-      .select(["s.id", "s.disc_id", "s.designation", "s.status", "s.assigned_engineer_id", "s.version", "d.shelf_mark"])
-      .where("s.id", "in", c.sideIds)
-      .forUpdate()
-      .execute();
+    // Every side locked through the lifecycle, in a stable order.
+    const sides = await lockSides(trx, c.sideIds);
     if (sides.length !== new Set(c.sideIds).size) throw new AppError("not_found", 404, "One of those sides does not exist.");
-    const ids = sides.map((s) => s.id);
-    // Each side's current choice (the one this replaces) and which sides have a transfer: one query each, not two per side.
-    const [previousRows, transferRows] = await Promise.all([
-      trx.selectFrom("curve_choices").distinctOn("side_id").select(["side_id", "id", "spec"]).where("side_id", "in", ids).orderBy("side_id").orderBy("chosen_at", "desc").execute(),
-      trx.selectFrom("transfers").select("side_id").distinct().where("side_id", "in", ids).execute(),
-    ]);
-    const previousBySide = new Map(previousRows.map((p) => [p.side_id, p]));
-    const transferred = new Set(transferRows.map((t) => t.side_id));
+    const shelfMarks = new Map(
+      (await trx.selectFrom("discs").select(["id", "shelf_mark"]).where("id", "in", [...new Set(sides.map((s) => s.disc_id))]).execute()).map((d) => [d.id, d.shelf_mark]),
+    );
+    // Each side's current choice (the one this replaces): one query, not one per side.
+    const previousIds = sides.map((s) => s.current_curve_choice_id).filter((id): id is string => !!id);
+    const previousRows = previousIds.length ? await trx.selectFrom("curve_choices").select(["id", "spec"]).where("id", "in", previousIds).execute() : [];
+    const previousById = new Map(previousRows.map((p) => [p.id, p]));
+    const specSha256 = sha256Hex(canonicalJson(spec));
     const choices: { sideId: string; choiceId: string }[] = [];
     const events: NewEvent[] = [];
+    const order = new Map(c.sideIds.map((id, i) => [id, i]));
+    sides.sort((a, b) => order.get(a.id)! - order.get(b.id)!);
     for (const s of sides) {
-      const where = `${s.shelf_mark} side ${s.designation}`;
+      const where = `${shelfMarks.get(s.disc_id)} side ${s.designation}`;
       if (s.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, `${where} is not assigned to you.`);
       if (!curveChoosableStatuses.has(s.status)) {
         throw new AppError("conflict", 409, `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`);
       }
-      const previous = previousBySide.get(s.id);
+      const previous = s.current_curve_choice_id ? previousById.get(s.current_curve_choice_id) : undefined;
       const row = await trx
         .insertInto("curve_choices")
         .values({
@@ -71,6 +73,7 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
           preset_spec: preset ? JSON.stringify(preset.spec) : null,
           overrides: JSON.stringify(c.overrides),
           spec: JSON.stringify(spec),
+          spec_sha256: specSha256,
           cut_speed_rpm: c.cutSpeedRpm,
           transfer_speed_rpm: c.transferSpeedRpm,
           rationale: c.rationale,
@@ -94,37 +97,15 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
           cutSpeedRpm: c.cutSpeedRpm,
           transferSpeedRpm: c.transferSpeedRpm,
           spec,
+          specSha256,
           rationale: c.rationale,
           evidenceKind: c.evidenceKind,
           evidence: c.evidence,
           ...(previous ? { before: { choiceId: previous.id, spec: previous.spec } } : {}),
         },
       });
-      // Where the side goes: waiting for a curve → curve chosen, and on to transferred
-      // when an accepted transfer already stands (a returned side); a rendered side's
-      // access copy is out of date with the new curve → back to transferred.
-      const path: SideStatus[] = [];
-      if (s.status === "assigned" || s.status === "returned") {
-        path.push("curve_chosen");
-        if (transferred.has(s.id)) path.push("transferred");
-      } else if (s.status === "rendered") {
-        path.push("transferred");
-      }
-      let from: SideStatus = s.status;
-      for (const to of path) {
-        events.push({
-          actorId: actor.id,
-          kind: "side.status_changed",
-          subjectType: "side",
-          subjectId: s.id,
-          discId: s.disc_id,
-          payload: { side: s.designation, before: { status: from }, after: { status: to }, ...(to === "transferred" ? { note: from === "rendered" ? "the curve changed: the access copy must be rendered again" : "the accepted flat transfer stands" } : {}) },
-        });
-        from = to;
-      }
-      if (path.length) {
-        await trx.updateTable("sides").set({ status: from, return_reason: null, version: s.version + 1, updated_at: sql`now()` }).where("id", "=", s.id).execute();
-      }
+      // The side's current curve, and where the side goes (lib/sides/lifecycle.ts).
+      await curveChosen(trx, actor, s, row.id, events);
       choices.push({ sideId: s.id, choiceId: row.id });
     }
     // In the order they happened, chained in one append.
@@ -156,5 +137,5 @@ export async function listCurveChoices(sideId: string) {
     .where("c.side_id", "=", sideId)
     .orderBy("c.chosen_at", "desc")
     .execute();
-  return rows.map((r) => ({ ...r, cutSpeedRpm: Number(r.cutSpeedRpm), transferSpeedRpm: Number(r.transferSpeedRpm), spec: r.spec as CurveSpec }));
+  return rows.map((r) => ({ ...r, cutSpeedRpm: Number(r.cutSpeedRpm), transferSpeedRpm: Number(r.transferSpeedRpm) }));
 }

@@ -1,6 +1,7 @@
 import "server-only";
 import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { getSignedUrl } from "@aws-sdk/s3-request-presigner";
+import { sql } from "kysely";
 import { z } from "zod";
 import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
@@ -9,9 +10,10 @@ import { AppError } from "../http/errors";
 import { RENDER_QUEUE } from "../jobs/boss";
 import { sendInTransaction } from "../jobs/web-boss";
 import { appendEvent } from "../provenance";
+import { lockSide } from "../sides/lifecycle";
 import { s3 } from "../storage/s3";
 import { getSettings } from "../settings";
-import { accessCopyBitDepthSchema, accessCopyRateSchema, channelModes } from "../validation/transfers";
+import { accessCopyBitDepthSchema, accessCopyRateSchema, channelModes, renderableStatuses } from "../validation/transfers";
 
 export const renderRequestSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),
@@ -23,19 +25,20 @@ export const renderRequestSchema = z.object({
 });
 
 /**
- * Queues a render of the side's latest transfer through its current curve. The render
+ * Queues a render of the side's current transfer through its current curve. The render
  * row, its event and the job are written in one transaction.
  */
 export async function requestRender(actor: SessionUser, input: unknown) {
   const r = renderRequestSchema.parse(input);
   return db.transaction().execute(async (trx) => {
-    const side = await trx.selectFrom("sides").select(["id", "disc_id", "designation", "status", "assigned_engineer_id"]).where("id", "=", r.sideId).forUpdate().executeTakeFirst();
-    if (!side) throw new AppError("not_found", 404, "No such side.");
+    const side = await lockSide(trx, r.sideId);
     if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
-    if (side.status !== "transferred" && side.status !== "rendered") throw new AppError("conflict", 409, "Render needs an accepted transfer and a chosen curve first.");
-    const transfer = await trx.selectFrom("transfers").select(["id", "channels", "sha256", "sample_rate_hz"]).where("side_id", "=", side.id).orderBy("created_at", "desc").limit(1).executeTakeFirst();
-    const choice = await trx.selectFrom("curve_choices").select(["id"]).where("side_id", "=", side.id).orderBy("chosen_at", "desc").limit(1).executeTakeFirst();
-    if (!transfer || !choice) throw new AppError("conflict", 409, "Render needs an accepted transfer and a chosen curve first.");
+    if (!renderableStatuses.has(side.status) || !side.current_transfer_id || !side.current_curve_choice_id) {
+      throw new AppError("conflict", 409, side.status === "in_review" || side.status === "approved" ? `The side is ${side.status.replace("_", " ")}: nothing to render now.` : "A render needs the side's flat transfer and a chosen curve first.");
+    }
+    // Always the side's current transfer and curve: what a render is made from is the lifecycle's record, not "the latest".
+    const transfer = await trx.selectFrom("transfers").select(["id", "channels", "sha256", "sample_rate_hz"]).where("id", "=", side.current_transfer_id).executeTakeFirstOrThrow();
+    const choice = { id: side.current_curve_choice_id };
     if (r.channelMode !== "both" && transfer.channels !== 2) throw new AppError("invalid", 422, "That channel choice needs a stereo transfer; this one is mono.", { channelMode: ["Needs a stereo transfer."] });
     const busy = await trx.selectFrom("renders").select("id").where("side_id", "=", side.id).where("status", "in", ["queued", "running"]).executeTakeFirst();
     if (busy) throw new AppError("conflict", 409, "A render of this side is already queued or running.");
@@ -65,6 +68,7 @@ export async function listRenders(sideId: string) {
   return db
     .selectFrom("renders as r")
     .innerJoin("users as u", "u.id", "r.requested_by")
+    .innerJoin("sides as s", "s.id", "r.side_id")
     .select([
       "r.id",
       "r.status",
@@ -80,6 +84,9 @@ export async function listRenders(sideId: string) {
       "r.error",
       "r.transfer_id as transferId",
       "r.curve_choice_id as curveChoiceId",
+      "r.superseded_at as supersededAt",
+      "r.superseded_reason as supersededReason",
+      sql<boolean>`s.current_render_id IS NOT DISTINCT FROM r.id`.as("current"),
       "r.created_at as createdAt",
       "r.finished_at as finishedAt",
       "u.name as requestedBy",

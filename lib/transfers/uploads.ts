@@ -8,13 +8,13 @@ import {
   UploadPartCommand,
 } from "@aws-sdk/client-s3";
 import { getSignedUrl } from "@aws-sdk/s3-request-presigner";
-import { sql } from "kysely";
 import { db } from "../../db";
 import { readWavHeader, WavError } from "../audio";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
 import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
+import { lockSide, transferAccepted } from "../sides/lifecycle";
 import { deleteObject, hashObject, objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { completeUploadSchema, signPartsSchema, startUploadSchema, uploadableStatuses, uploadRefSchema } from "../validation/transfers";
@@ -36,7 +36,7 @@ async function sideForUpload(actor: SessionUser, sideId: string) {
   if (!side) throw new AppError("not_found", 404, "No such side.");
   if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
   if (!uploadableStatuses.has(side.status)) {
-    throw new AppError("conflict", 409, side.status === "assigned" || side.status === "returned" ? "Choose the side's curve before uploading its transfer." : `The side is ${side.status.replace("_", " ")}: no new transfer now.`);
+    throw new AppError("conflict", 409, `The side is ${side.status.replace("_", " ")}: no new transfer now.`);
   }
   return side;
 }
@@ -124,7 +124,7 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
       throw err;
     }
     return await db.transaction().execute(async (trx) => {
-      const locked = await trx.selectFrom("sides").select(["status", "version"]).where("id", "=", side.id).forUpdate().executeTakeFirstOrThrow();
+      const locked = await lockSide(trx, side.id);
       const fileName = c.key.split("/").pop()!;
       const row = await trx
         .insertInto("transfers")
@@ -167,10 +167,8 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
         discId: side.disc_id,
         payload: { side: side.designation, transferId: row.id, objectKey: c.key, bytes, sha256, technical, bext: header.bext ?? null, stylusSize: c.stylusSize, stylusShape: c.stylusShape, measuredSpeedRpm: c.measuredSpeedRpm ?? null, chain: c.chain },
       });
-      if (locked.status === "curve_chosen") {
-        await trx.updateTable("sides").set({ status: "transferred", version: locked.version + 1, updated_at: sql`now()` }).where("id", "=", side.id).execute();
-        await appendEvent(trx, { actorId: actor.id, kind: "side.status_changed", subjectType: "side", subjectId: side.id, discId: side.disc_id, payload: { side: side.designation, before: { status: "curve_chosen" }, after: { status: "transferred" } } });
-      }
+      // The new transfer is the side's current one; what was rendered from the old one is superseded.
+      await transferAccepted(trx, actor, locked, row.id);
       return { transferId: row.id, sha256, bytes, technical };
     });
   } catch (err) {

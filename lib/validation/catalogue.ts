@@ -12,13 +12,14 @@ export const formatLabels: Record<(typeof discFormats)[number], string> = {
 export const discBases = ["aluminium", "glass", "card", "unknown"] as const;
 export const conditionGrades = ["unassessed", "excellent", "good", "fair", "poor", "unplayable"] as const;
 export const conditionFlags = ["cracks", "warp", "delamination", "residue", "mould", "wear", "chips", "scratches"] as const;
-export const sideStatuses = ["catalogued", "assigned", "curve_chosen", "transferred", "rendered", "in_review", "approved", "returned"] as const;
+/** In the archive's order: assigned → flat transfer accepted → curve chosen → rendered → in review → approved or returned. */
+export const sideStatuses = ["catalogued", "assigned", "transferred", "curve_chosen", "rendered", "in_review", "approved", "returned"] as const;
 export type SideStatusName = (typeof sideStatuses)[number];
 export const statusLabels: Record<SideStatusName, string> = {
   catalogued: "Catalogued",
   assigned: "Assigned",
+  transferred: "Flat transfer in",
   curve_chosen: "Curve chosen",
-  transferred: "Transferred",
   rendered: "Rendered",
   in_review: "In review",
   approved: "Approved",

@@ -2,10 +2,15 @@ import { z } from "zod";
 import type { SideStatusName } from "./catalogue";
 import { curveSpecSchema } from "./curves";
 
-/** Where a side's curve may still be chosen or changed (the server refuses it elsewhere; the bench locks its form). */
-export const curveChoosableStatuses: ReadonlySet<SideStatusName> = new Set(["assigned", "returned", "curve_chosen", "transferred", "rendered"]);
-/** Where a flat transfer may be uploaded: after the curve choice, before review. */
-export const uploadableStatuses: ReadonlySet<SideStatusName> = new Set(["curve_chosen", "transferred", "rendered"]);
+// Which work a side takes in which status (lib/sides/lifecycle.ts enforces them; the bench
+// uses them to lock its forms). The order: assigned → flat transfer accepted → curve chosen
+// → rendered → in review → approved or returned.
+/** Where a flat transfer may be uploaded: from assignment until the side is sent for review; it never waits for the curve. */
+export const uploadableStatuses: ReadonlySet<SideStatusName> = new Set(["assigned", "returned", "transferred", "curve_chosen", "rendered"]);
+/** Where a curve may be recorded or changed: from assignment (even before the transfer) until review. */
+export const curveChoosableStatuses: ReadonlySet<SideStatusName> = new Set(["assigned", "returned", "transferred", "curve_chosen", "rendered"]);
+/** Where an access copy may be rendered: once a transfer and a curve stand, until review. */
+export const renderableStatuses: ReadonlySet<SideStatusName> = new Set(["curve_chosen", "rendered", "returned"]);
 
 export const evidenceKinds = ["published_guidance", "test_disc", "listening", "disc_documentation", "other"] as const;
 export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {

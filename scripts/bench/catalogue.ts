@@ -48,17 +48,19 @@ async function main(): Promise<void> {
            (ARRAY['excellent','good','fair','poor'])[1 + g % 4]
     FROM generate_series(1, ${discCount}) g`.execute(db);
   await sql`
-    INSERT INTO sides (disc_id, designation, matrix_number, take, title, performers, status, assigned_engineer_id)
+    INSERT INTO sides (disc_id, designation, matrix_number, take, title, performers)
     SELECT d.id, s.designation,
            chr(65 + (h % 26)) || (10000 + (h % 89999)) || '-' || s.designation,
            (1 + h % 4)::text,
            (${words}::text[])[1 + h % 14] || ' ' || (${words}::text[])[1 + (h / 14) % 14] || ' Song',
-           (${names}::text[])[1 + h % 14] || ' and the ' || (${names}::text[])[1 + (h / 7) % 14] || ' Quartet',
-           (ARRAY['catalogued','catalogued','catalogued','assigned','curve_chosen','transferred','rendered','in_review','approved','returned'])[1 + h % 10],
-           NULL
+           (${names}::text[])[1 + h % 14] || ' and the ' || (${names}::text[])[1 + (h / 7) % 14] || ' Quartet'
     FROM discs d CROSS JOIN (VALUES ('A'), ('B')) s(designation)
     CROSS JOIN LATERAL (SELECT abs(hashtext(d.shelf_mark || s.designation)) AS h) hh
     WHERE s.designation = 'A' OR hashtext(d.shelf_mark) % 10 <> 0`.execute(db);
+  // A tenth of the sides handed out, so a status filter selects a tenth as in a working lab.
+  // (Every side starts catalogued, and the database allows only the lifecycle's steps:
+  // catalogued → assigned is the one step that needs no transfer, curve or render.)
+  await sql`UPDATE sides SET status = 'assigned' WHERE abs(hashtext(id::text)) % 10 = 0`.execute(db);
   // The same search columns the app keeps, built in one statement.
   await sql`
     UPDATE discs d SET
@@ -76,7 +78,7 @@ async function main(): Promise<void> {
     "first page, by shelf mark": {},
     "page 40, newest first": { sort: "-updatedAt", page: 40 },
     "filter format + speed": { format: "instantaneous_lacquer", speed: 78 },
-    "filter status in review": { status: "in_review", sort: "labelName" },
+    "filter status assigned": { status: "assigned", sort: "labelName" },
     "filter accession": { accession: someAccession },
     "search a word (title/performer)": { q: "harbour" },
     "search two words": { q: "willow carrow" },

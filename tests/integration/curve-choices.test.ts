@@ -62,12 +62,16 @@ const choice = (extra: Record<string, unknown> = {}) => ({
 });
 
 describe("curve choices", () => {
-  it("records the choice for both sides with the preset values and the speed ratio, and moves them on", async () => {
+  it("records the choice for both sides with the preset values and the speed ratio, even before their transfers", async () => {
     const res = await api("/api/curve-choices", { cookie: cookie.engineer, method: "POST", body: choice() });
     expect(res.status).toBe(201);
     expect(res.body.choices).toHaveLength(2);
-    const sides = await testDb.selectFrom("sides").select("status").where("id", "in", sideIds).execute();
-    expect(sides.map((s) => s.status)).toEqual(["curve_chosen", "curve_chosen"]);
+    // Recorded before any flat transfer (from the label's own leaflet): the choice becomes
+    // each side's current curve, and the sides stay assigned until their transfers arrive.
+    const sides = await testDb.selectFrom("sides").select(["status", "current_curve_choice_id"]).where("id", "in", sideIds).orderBy("id").execute();
+    expect(sides.map((s) => s.status)).toEqual(["assigned", "assigned"]);
+    const chosen = new Set(res.body.choices.map((c: { choiceId: string }) => c.choiceId));
+    for (const s of sides) expect(chosen.has(s.current_curve_choice_id)).toBe(true);
     const history = await api(`/api/sides/${sideIds[0]}/curve-choices`, { cookie: cookie.curator });
     const [current] = history.body.choices;
     // Played at 80 rpm what was cut at 78: every corner moves up by 80/78.

@@ -4,6 +4,7 @@ import { deliverDueMail, enqueueMail, retryDelaySeconds } from "@/lib/mail/outbo
 import { createMailTransport } from "@/lib/mail/transport";
 import { uniqueEmail, waitForMail } from "../support/app";
 import { testDb } from "../support/db";
+import { until } from "../support/pipeline";
 
 afterAll(async () => {
   await testDb.destroy();
@@ -31,7 +32,11 @@ describe("the outbox", () => {
     await testDb.updateTable("outbox").set({ next_attempt_at: new Date() }).where("id", "=", id).execute();
     const mail = await waitForMail((m) => m.to.includes(to));
     expect(mail.subject).toBe("Fixity report");
-    const sent = await testDb.selectFrom("outbox").select(["status", "sent_at"]).where("id", "=", id).executeTakeFirstOrThrow();
+    // The sink may hold the message a moment before the worker's transaction marks it sent.
+    const sent = await until("the message marked sent", async () => {
+      const row = await testDb.selectFrom("outbox").select(["status", "sent_at"]).where("id", "=", id).executeTakeFirstOrThrow();
+      return row.status === "queued" ? undefined : row;
+    }, 20_000);
     expect(sent.status).toBe("sent");
     expect(sent.sent_at).not.toBeNull();
   });

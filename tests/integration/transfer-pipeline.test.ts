@@ -62,10 +62,11 @@ afterAll(async () => {
 });
 
 describe("uploading a flat transfer", () => {
-  it("asks for the curve first", async () => {
+  it("takes the flat transfer before any curve is chosen", async () => {
+    // The flat transfer never depends on the curve: an assigned side with no choice may upload.
     const r = await api("/api/uploads", { cookie: cookie.engineer, method: "POST", body: { sideId: sideIds[0], fileName: "a.wav", bytes: 1000 } });
-    expect(r.status).toBe(409);
-    expect(r.body.error.message).toMatch(/curve/);
+    expect(r.status).toBe(201);
+    await api("/api/uploads/abort", { cookie: cookie.engineer, method: "POST", body: { key: r.body.key, uploadId: r.body.uploadId } });
   });
 
   it("accepts a good file after checking its size, SHA-256 and header, and records it", async () => {
@@ -84,8 +85,10 @@ describe("uploading a flat transfer", () => {
     expect(t.sha256).toBe(createHash("sha256").update(bytes).digest("hex"));
     expect(Number(t.bytes)).toBe(bytes.length);
     expect(t.stylus_shape).toBe("truncated elliptical");
-    const side = await testDb.selectFrom("sides").select("status").where("id", "=", sideIds[0]).executeTakeFirstOrThrow();
-    expect(side.status).toBe("transferred");
+    // The curve was recorded first here, so the accepted transfer takes the side straight on to "curve chosen".
+    const side = await testDb.selectFrom("sides").select(["status", "current_transfer_id"]).where("id", "=", sideIds[0]).executeTakeFirstOrThrow();
+    expect(side.status).toBe("curve_chosen");
+    expect(side.current_transfer_id).toBe(done.body.transferId);
   });
 
   it("refuses a file that is not audio, and a checksum that does not match, keeping nothing", async () => {
@@ -176,14 +179,14 @@ describe("review", () => {
     const mail = await waitForMail((m) => m.subject.includes(`TP-${tag} side A came back`));
     expect(mail.text).toMatch(/sibilants/);
 
-    // The engineer changes the curve: the accepted transfer stands; render again and resubmit.
+    // The engineer changes the curve: the accepted transfer stands, the side needs its render again; render and resubmit.
     const rechoose = await api("/api/curve-choices", {
       cookie: cookie.engineer,
       method: "POST",
       body: { sideIds: [sideA], overrides: { turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 50 } }, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale: "Lighter rolloff after the curator's note.", evidenceKind: "listening" },
     });
     expect(rechoose.status).toBe(201);
-    expect((await testDb.selectFrom("sides").select("status").where("id", "=", sideA).executeTakeFirstOrThrow()).status).toBe("transferred");
+    expect((await testDb.selectFrom("sides").select("status").where("id", "=", sideA).executeTakeFirstOrThrow()).status).toBe("curve_chosen");
     await renderAndWait(sideA);
     expect((await api(`/api/sides/${sideA}/transition`, { cookie: cookie.engineer, method: "POST", body: { to: "in_review" } })).status).toBe(200);
 

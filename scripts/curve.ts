@@ -31,6 +31,7 @@ import {
   resolveCurve,
 } from "../lib/curves";
 import type { CornerInput, CurveSpec, FitParameter } from "../lib/curves";
+import { storedCurveSpecSchema } from "../lib/validation/records";
 
 class UsageError extends Error {}
 
@@ -89,13 +90,14 @@ async function loadPreset(name: string): Promise<CurveSpec> {
   const client = new pg.Client({ connectionString: url });
   await client.connect();
   try {
-    const result = await client.query<{ spec: CurveSpec }>(
+    const result = await client.query<{ spec: unknown }>(
       "SELECT v.spec FROM curve_presets p JOIN curve_preset_versions v ON v.preset_id = p.id AND v.version = p.current_version WHERE lower(p.name) = lower($1)",
       [name],
     );
     if (result.rows.length === 0) throw new UsageError(`No preset named "${name}" in the library at ${new URL(url).host}.`);
-    const spec = result.rows[0].spec;
-    return typeof spec === "string" ? (JSON.parse(spec) as CurveSpec) : spec;
+    const stored = result.rows[0].spec;
+    // The stored JSON is parsed with its schema, never trusted as it comes.
+    return storedCurveSpecSchema.parse(typeof stored === "string" ? JSON.parse(stored) : stored);
   } finally {
     await client.end();
   }

@@ -1,6 +1,7 @@
 /** Shapes of the bench's API answers as the browser receives them (dates as ISO text). */
 import type { DiscJson, SideJson } from "@/components/catalogue/types";
 import type { CurveSpec } from "@/lib/curves";
+import type { StoredRenderFilter } from "@/lib/validation/records";
 import type { channelModes, evidenceKinds } from "@/lib/validation/transfers";
 
 export type { DiscJson, SideJson };
@@ -62,7 +63,7 @@ export interface RenderJson {
   bytes: number | string | null;
   trimDb: number | string | null;
   peakDbfs: number | string | null;
-  filter: unknown;
+  filter: StoredRenderFilter | null;
   error: string | null;
   transferId?: string;
   curveChoiceId?: string;

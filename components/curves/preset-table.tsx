@@ -11,7 +11,7 @@ import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { DataTable } from "@/components/ui/data-table";
 import { usePresets } from "@/hooks/use-presets";
-import { type CurveSpec, describeCurve, type ResolvedCorner, type ResolvedCurve } from "@/lib/curves";
+import { describeCurve, type ResolvedCorner, type ResolvedCurve } from "@/lib/curves";
 import { formatDb, formatHz, formatNumber } from "./plot-format";
 import type { PresetJson } from "./types";
 
@@ -26,7 +26,7 @@ const column = createColumnHelper<Row>();
 
 function toRow(p: PresetJson): Row {
   try {
-    const d = describeCurve(p.spec as CurveSpec);
+    const d = describeCurve(p.spec);
     return { ...p, curve: d.curve, peakGainDb: d.peakGainDb, peakHz: d.peakHz, problem: null };
   } catch (err) {
     return { ...p, curve: null, peakGainDb: null, peakHz: null, problem: err instanceof Error ? err.message : String(err) };

@@ -24,8 +24,8 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
       return { d: null, error: err instanceof Error ? err.message : String(err) };
     }
   }, [current.spec]);
-  const preset = current.presetSpec as CurveSpec | null;
-  const overrides = (current.overrides ?? {}) as Partial<CurveSpec>;
+  const preset = current.presetSpec;
+  const overrides: Partial<CurveSpec> = current.overrides ?? {};
   const rows = CORNER_NAMES.filter((n) => (preset && preset[n]) || n in overrides || current.spec[n]);
   const ratio = current.transferSpeedRpm / current.cutSpeedRpm;
   // Memoised: the review page re-renders every second while it waits for fixity results.

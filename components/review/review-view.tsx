@@ -9,6 +9,7 @@
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useEffect, useMemo, useRef, useState } from "react";
+import { AccessCopyCompare } from "@/components/bench/access-copy-compare";
 import { AuditionPanel } from "@/components/bench/audition-panel";
 import { ChoiceHistory, curveTitle } from "@/components/bench/choice-history";
 import type { Candidate, ChannelMode, RenderJson } from "@/components/bench/types";
@@ -39,10 +40,12 @@ export function ReviewView({ sideId }: { sideId: string }) {
   // Fixity: after "Check fixity now", poll until both files have a result newer than the request.
   const [fixityAsk, setFixityAsk] = useState<{ askedAt: number; startedAt: number } | null>(null);
   const [fixityError, setFixityError] = useState<string | null>(null);
-  const current = choices.data?.choices[0] ?? null;
-  const previous = choices.data?.choices[1] ?? null;
-  const transfer = transfers.data?.transfers[0] ?? null;
-  const render = renders.data?.renders.find((r) => r.status === "done") ?? null;
+  // What the side stands on: the ids the server keeps, so the page shows exactly what an approval binds.
+  const sideNow = side.data?.side;
+  const current = choices.data?.choices.find((c) => c.id === sideNow?.currentCurveChoiceId) ?? null;
+  const previous = choices.data?.choices.find((c) => c.id !== current?.id) ?? null;
+  const transfer = transfers.data?.transfers.find((t) => t.id === sideNow?.currentTransferId) ?? null;
+  const render = renders.data?.renders.find((r) => r.id === sideNow?.currentRenderId && r.status === "done") ?? null;
   const watched = [transfer?.id, render?.id].filter(Boolean) as string[];
   const fixity = useQuery({
     queryKey: ["side-fixity", sideId],
@@ -100,12 +103,11 @@ export function ReviewView({ sideId }: { sideId: string }) {
   const tFix = fixityOf(fixity.data?.checks, transfer?.id, transfer?.createdAt);
   const rFix = fixityOf(fixity.data?.checks, render?.id, render?.finishedAt);
   const fixityMissing = [tFix.state !== "passed" ? "the flat transfer" : null, rFix.state !== "passed" ? "the access copy" : null].filter(Boolean) as string[];
+  // The database holds the current render to the current transfer and curve; say so if the page ever reads otherwise.
   const renderStale =
-    render && current && render.curveChoiceId && render.curveChoiceId !== current.id
-      ? "Rendered through an earlier curve choice, not the one shown here."
-      : render && transfer && render.transferId && render.transferId !== transfer.id
-        ? "Rendered from an earlier flat transfer, not the newest one."
-        : null;
+    render && ((current && render.curveChoiceId && render.curveChoiceId !== current.id) || (transfer && render.transferId && render.transferId !== transfer.id))
+      ? "This access copy was not made from the side's current transfer and curve."
+      : null;
   const fixityProgress = fixityError
     ? `The check was not queued: ${fixityError}`
     : !fixityAsk
@@ -153,8 +155,14 @@ export function ReviewView({ sideId }: { sideId: string }) {
                 <h3 id="review-access-listen" className="font-sans text-sm font-semibold">
                   The access copy, as rendered on the server
                 </h3>
+                {render && transfer && current ? (
+                  <div className="rounded-lg border border-paper-edge bg-paper/40 p-3">
+                    <AccessCopyCompare key={render.id} render={render} transfer={transfer} spec={current.spec} curveLabel={curveTitle(current)} />
+                  </div>
+                ) : null}
                 {render ? (
                   <>
+                    <p className="text-xs text-ink-faint">The whole side, as stored:</p>
                     <audio controls preload="none" src={`/api/renders/${render.id}/download`} className="w-full" data-testid="access-copy-player" aria-label={`Access copy of ${disc.shelfMark} side ${s.designation}`}>
                       <a href={`/api/renders/${render.id}/download`}>Download the access copy</a>
                     </audio>

@@ -84,7 +84,7 @@ export function TransferCard({ t, fixity }: { t: TransferJson; fixity: FixitySta
 }
 
 export function RenderCard({ r, fixity, stale }: { r: RenderJson; fixity: FixityState; stale: string | null }) {
-  const f = (r.filter ?? {}) as RenderFilterJson;
+  const f: Partial<RenderFilterJson> = r.filter ?? {};
   return (
     <article className="rounded-lg border border-paper-edge bg-white p-3" data-testid="review-render">
       <FileCardHead title="Access copy" href={`/api/renders/${r.id}/download`} testId="review-render-download" />

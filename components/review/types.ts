@@ -1,3 +1,4 @@
+import type { StoredRenderFilter } from "@/lib/validation/records";
 /** Shapes of the review API answers as the browser receives them (dates as ISO text). */
 export interface ReviewQueueRow {
   id: string;
@@ -35,13 +36,5 @@ export interface ReviewJson {
   curatorName: string;
 }
 
-export interface RenderFilterJson {
-  kind?: string;
-  taps?: number;
-  delaySamples?: number;
-  maxErrorDb?: number;
-  maxPhaseErrorDeg?: number;
-  software?: string;
-  /** The implementation that ran the render's arithmetic, e.g. "native (fftw-3.3.10-sse2-avx)". */
-  engine?: string;
-}
+/** What a finished render records of its filter (parsed on the server with its schema). */
+export type RenderFilterJson = StoredRenderFilter;

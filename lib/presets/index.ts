@@ -33,7 +33,7 @@ function presetQuery() {
 }
 
 function toSummary(row: Awaited<ReturnType<ReturnType<typeof presetQuery>["execute"]>>[number]): PresetSummary {
-  return { ...row, spec: row.spec as CurveSpec };
+  return { ...row, spec: row.spec };
 }
 
 export async function listPresets(): Promise<PresetSummary[]> {
@@ -56,7 +56,7 @@ export async function listPresetVersions(id: string): Promise<PresetVersion[]> {
     .where("v.preset_id", "=", id)
     .orderBy("v.version", "desc")
     .execute();
-  return rows.map((r) => ({ ...r, spec: r.spec as CurveSpec }));
+  return rows.map((r) => ({ ...r, spec: r.spec }));
 }
 
 async function assertNameFree(name: string, exceptId?: string): Promise<void> {
@@ -68,7 +68,7 @@ async function assertNameFree(name: string, exceptId?: string): Promise<void> {
 /** A new preset and its version 1, in one transaction. */
 export async function createPreset(actor: SessionUser, input: unknown): Promise<PresetSummary> {
   const { name, spec, notes, changeNote } = createPresetSchema.parse(input);
-  checkSpec(spec as CurveSpec);
+  checkSpec(spec);
   await assertNameFree(name);
   const id = await db.transaction().execute(async (trx) => {
     const preset = await trx.insertInto("curve_presets").values({ name, current_version: 1 }).returning("id").executeTakeFirstOrThrow();
@@ -90,7 +90,7 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
   const patch = updatePresetSchema.parse(input);
   const current = await getPreset(id);
   const name = patch.name ?? current.name;
-  const spec = (patch.spec ?? current.spec) as CurveSpec;
+  const spec: CurveSpec = patch.spec ?? current.spec;
   checkSpec(spec);
   if (name.toLowerCase() !== current.name.toLowerCase()) await assertNameFree(name, id);
   await db.transaction().execute(async (trx) => {

@@ -8,6 +8,7 @@ import { env } from "../env";
 import { AppError } from "../http/errors";
 import { enqueueMail } from "../mail/outbox";
 import { type LockedSide, lockSide, reviewDecided } from "../sides/lifecycle";
+import { parseStored, storedCurveSpecSchema } from "../validation/records";
 
 export const decisionSchema = z.object({
   decision: z.enum(["approved", "returned"], { error: "Approve or return." }),
@@ -29,7 +30,13 @@ async function currentWork(trx: Transaction<Database>, side: LockedSide) {
       ? trx.selectFrom("renders").select(["id", "sha256", "finished_at", "transfer_id", "curve_choice_id", "superseded_at"]).where("id", "=", side.current_render_id).where("status", "=", "done").executeTakeFirst()
       : undefined,
   ]);
-  return { transfer, choice, render };
+  // The curve as stored, parsed with its schema before it goes into the approval's record.
+  const parsedChoice = choice && {
+    ...choice,
+    spec: parseStored(storedCurveSpecSchema, choice.spec, { table: "curve_choices", id: choice.id, column: "spec" }),
+    overrides: parseStored(storedCurveSpecSchema, choice.overrides, { table: "curve_choices", id: choice.id, column: "overrides" }),
+  };
+  return { transfer, choice: parsedChoice, render };
 }
 
 /** Everyone who made any transfer, curve choice or render of the side, in any round. */

@@ -13,6 +13,7 @@ import { appendEvent } from "../provenance";
 import { lockSide } from "../sides/lifecycle";
 import { s3 } from "../storage/s3";
 import { getSettings } from "../settings";
+import { parseStored, renderFilterRecordSchema } from "../validation/records";
 import { accessCopyBitDepthSchema, accessCopyRateSchema, channelModes, renderableStatuses } from "../validation/transfers";
 
 export const renderRequestSchema = z.object({
@@ -93,7 +94,8 @@ export async function listRenders(sideId: string) {
     ])
     .where("r.side_id", "=", sideId)
     .orderBy("r.created_at", "desc")
-    .execute();
+    .execute()
+    .then((rows) => rows.map((r) => ({ ...r, filter: r.filter === null ? null : parseStored(renderFilterRecordSchema, r.filter, { table: "renders", id: r.id, column: "filter" }) })));
 }
 
 export async function listTransfers(sideId: string) {

@@ -1,11 +1,13 @@
-// The transfer bench end to end: an archivist catalogues a two-sided shellac disc and
-// assigns it to the engineer Wen Okafor (through the API). Wen opens side A on the
-// bench, picks a preset with a rationale and records it, uploads a generated flat
-// transfer through the page (the progress bar reaches 100 %), listens through two
-// curves (the player starts, switching changes what is playing), renders the access
-// copy, waits for the worker to finish it and downloads it. Screenshots
-// "bench-choose", "bench-upload", "bench-audition" and "bench-render" land in
-// storage/test/screenshots.
+// The transfer bench end to end, in the archive's order: an archivist catalogues a
+// two-sided shellac disc and assigns it to the engineer Wen Okafor (through the API).
+// Wen opens side A on the bench and uploads the generated flat transfer first, with no
+// curve recorded (the progress bar reaches 100 %); listens through two candidate presets
+// (the player starts, switching changes what is playing, and nothing is recorded);
+// records the one chosen from the listening panel, whose evidence is filled in with what
+// was compared; renders the access copy, plays it A/B against the flat transfer through
+// the curve, downloads it and sends the side for review; the curator Della Prior checks
+// fixity and approves it in the browser. Screenshots "bench-upload", "bench-audition",
+// "bench-choose", "bench-render" and "bench-approved" land in storage/test/screenshots.
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
@@ -16,8 +18,11 @@ import { makeWav } from "../support/make-wav";
 let browser: Browser;
 const archivist = demoAccounts.find((a) => a.role === "archivist")!;
 const engineer = demoAccounts.find((a) => a.role === "engineer")!;
+const curator = demoAccounts.find((a) => a.role === "curator")!;
 const run = `${Date.now().toString(36)}${Math.random().toString(36).slice(2, 5)}`.toUpperCase();
 let sideA: string;
+let discId: string;
+let engineerCookie: string;
 
 beforeAll(async () => {
   browser = await launchBrowser();
@@ -46,6 +51,8 @@ beforeAll(async () => {
   });
   expect(disc.status).toBe(201);
   sideA = disc.body.disc.sides.find((s: { designation: string }) => s.designation === "A").id;
+  discId = disc.body.disc.id;
+  engineerCookie = await signInCookie(engineer.email, engineer.password);
   const assigned = await api("/api/assignments", { cookie, method: "POST", body: { engineerId: wen.id, discIds: [disc.body.disc.id] } });
   expect(assigned.status).toBeLessThan(300);
 });
@@ -55,7 +62,7 @@ afterAll(async () => {
 });
 
 describe("transfer bench", () => {
-  it("takes a side from curve choice to a downloaded access copy", async () => {
+  it("takes a side from its flat transfer, through listening and the curve heard, to an approved access copy", async () => {
     const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
     const page = await context.newPage();
     await (await new SignInPage(page).open()).signIn(engineer.email, engineer.password);
@@ -70,20 +77,9 @@ describe("transfer bench", () => {
     await page.getByTestId("bench-title").getByText(`E2E-B-${run}`).waitFor();
     await page.getByTestId("handling-cautions").getByText(/Shellac is brittle/).waitFor();
 
-    // Choose: a preset, a rationale, what it rests on; recorded for this side.
-    const form = page.getByTestId("curve-choice-form");
-    await form.getByTestId("choice-preset").locator("option", { hasText: "BS 1928" }).waitFor({ state: "attached" });
-    const bs1928 = await form.getByTestId("choice-preset").locator("option", { hasText: "BS 1928" }).first().getAttribute("value");
-    await form.getByTestId("choice-preset").selectOption(bs1928!);
-    await expect(form.getByTestId("choice-cut-rpm").inputValue()).resolves.toBe("78");
-    await form.getByTestId("choice-rationale").fill("British coarse-groove side of the period; the BS 1928 curve is the published guidance.");
-    await form.getByTestId("choice-evidence-kind").selectOption("published_guidance");
-    await form.getByTestId("record-choice").click();
-    await page.getByTestId("choice-history").getByText(/^BS 1928:1955 .* v1$/).waitFor();
-    await page.getByTestId("response-plot").waitFor();
-    await screenshot(page, "bench-choose");
-
-    // Upload: the generated flat transfer through the drop area's file input.
+    // 1 · The flat transfer first: nothing recorded about the curve yet.
+    await page.getByTestId("curve-choice-form").waitFor();
+    await page.getByTestId("choice-history-empty").waitFor();
     const wav = makeWav({ seconds: 10 });
     await page.getByTestId("upload-input").setInputFiles({ name: `E2E-B-${run} A flat.wav`, mimeType: "audio/wav", buffer: Buffer.from(wav) });
     await page.getByTestId("upload-stylus-size").fill("3.0 mil");
@@ -95,11 +91,16 @@ describe("transfer bench", () => {
     await expect(page.getByTestId("upload-progress-percent").innerText()).resolves.toMatch(/^100 %/);
     const row = page.getByTestId("transfer-row").first();
     await row.waitFor();
+    await row.getByTestId("transfer-current").waitFor();
     await expect(row.getByTestId("transfer-sha256").innerText()).resolves.toMatch(/[0-9a-f]{64}/);
     await expect(row.innerText()).resolves.toMatch(/44,100 Hz · stereo/);
+    await expect.poll(async () => (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side.status).toBe("transferred");
     await screenshot(page, "bench-upload");
 
-    // Audition: a second curve to compare, the caution, play, switch between curves.
+    // 2 · Listen: two candidate presets on the flat transfer; listening records nothing.
+    const eventsBefore = (await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events.length;
+    await page.getByTestId("candidate-add-select").selectOption({ label: "BS 1928:1955 coarse groove (3180/450/50 µs)" });
+    await page.getByTestId("candidate-add").click();
     await page.getByTestId("candidate-add-select").selectOption({ label: "RIAA / IEC 60098 (3180/318/75 µs)" });
     await page.getByTestId("candidate-add").click();
     await page.getByTestId("audition-overview").waitFor({ timeout: 30_000 });
@@ -112,13 +113,33 @@ describe("transfer bench", () => {
     await expect.poll(() => state.getAttribute("data-context-state"), { timeout: 10_000 }).toBe("running");
     await expect.poll(() => state.innerText()).toMatch(/^Playing/);
     await page.getByTestId("audition-candidate-1").check({ force: true });
-    await expect.poll(() => state.getAttribute("data-active")).toBe("current");
-    await expect(state.innerText()).resolves.toMatch(/Playing · Recorded: BS 1928/);
+    await expect.poll(() => state.innerText()).toMatch(/Playing · BS 1928/);
     await page.getByTestId("audition-candidate-2").check({ force: true });
     await expect.poll(() => state.innerText()).toMatch(/Playing · RIAA/);
-    await page.getByTestId("spectrum-plot").locator('[data-testid^="spectrum-line-preset:"]').waitFor();
+    await page.getByTestId("spectrum-plot").locator('[data-testid^="spectrum-line-preset:"]').first().waitFor();
     await screenshot(page, "bench-audition");
     await page.getByTestId("audition-pause").click();
+    expect((await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events.length).toBe(eventsBefore);
+
+    // 3 · Record the curve heard, from the listening panel: the form is filled in with what was compared.
+    await page.getByTestId("audition-record").click();
+    const form = page.getByTestId("curve-choice-form");
+    const riaaId = await form.getByTestId("choice-preset").locator("option", { hasText: "RIAA / IEC 60098" }).first().getAttribute("value");
+    await expect.poll(() => form.getByTestId("choice-preset").inputValue()).toBe(riaaId);
+    await expect(form.getByTestId("choice-evidence-kind").inputValue()).resolves.toBe("listening");
+    const evidence = await form.getByTestId("choice-evidence").inputValue();
+    expect(evidence).toMatch(/Compared by ear on the flat transfer E2E-B-.*flat\.wav \(SHA-256 [0-9a-f]{16}…\)/);
+    expect(evidence).toMatch(/BS 1928/);
+    expect(evidence).toMatch(/Chosen: RIAA/);
+    await form.getByTestId("choice-evidence").fill(`${evidence} Surface noise lower with RIAA; the strings keep their edge.`);
+    await form.getByTestId("choice-rationale").fill("By ear on the flat transfer: RIAA sits best against the BS 1928 curve for this pressing.");
+    await form.getByTestId("record-choice").click();
+    await page.getByTestId("choice-history").getByText(/^RIAA/).first().waitFor();
+    await expect.poll(async () => (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side.status).toBe("curve_chosen");
+    const recorded = (await api(`/api/sides/${sideA}/curve-choices`, { cookie: engineerCookie })).body.choices[0];
+    expect(recorded.evidenceKind).toBe("listening");
+    expect(recorded.evidence).toMatch(/Surface noise lower with RIAA/);
+    await screenshot(page, "bench-choose");
 
     // Render: lateral cut, stereo transfer → the sum is suggested; wait for the worker.
     await expect(page.getByTestId("render-channel-mode").inputValue()).resolves.toBe("sum");
@@ -129,6 +150,20 @@ describe("transfer bench", () => {
     const link = render.getByTestId("render-download");
     await link.waitFor();
     await page.getByTestId("send-for-review").waitFor({ timeout: 15_000 });
+
+    // The access copy, A/B against the flat transfer through the chosen curve.
+    await render.getByTestId("render-current").waitFor();
+    const ab = page.getByTestId("access-ab");
+    await ab.waitFor();
+    await ab.getByTestId("access-ab-acknowledge").click();
+    await expect.poll(() => ab.getByTestId("access-ab-play").isDisabled(), { timeout: 30_000 }).toBe(false);
+    await ab.getByTestId("access-ab-play").click();
+    const abState = ab.getByTestId("access-ab-state");
+    await expect.poll(() => abState.getAttribute("data-playing")).toBe("yes");
+    await expect(abState.innerText()).resolves.toMatch(/Playing · A, the access copy/);
+    await ab.getByTestId("access-ab-option-curve").check({ force: true });
+    await expect.poll(() => abState.innerText()).toMatch(/Playing · B, the flat transfer through the curve/);
+    await ab.getByTestId("access-ab-pause").click();
     await screenshot(page, "bench-render");
 
     const href = await link.getAttribute("href");
@@ -138,6 +173,28 @@ describe("transfer bench", () => {
     const body = await res.body();
     expect(["RIFF", "RF64"]).toContain(body.subarray(0, 4).toString("latin1"));
     expect(body.subarray(8, 12).toString("latin1")).toBe("WAVE");
+
+    // Send for review; the curator checks fixity and approves in the browser.
+    await page.getByTestId("send-for-review").click();
+    await page.getByTestId("choice-locked").waitFor();
     await context.close();
-  }, 240_000);
+
+    const curatorContext = await browser.newContext({ viewport: { width: 1440, height: 900 } });
+    const cpage = await curatorContext.newPage();
+    await (await new SignInPage(cpage).open()).signIn(curator.email, curator.password);
+    await cpage.waitForURL(`${appUrl}/`);
+    await cpage.goto(`${appUrl}/review/${sideA}`);
+    await cpage.getByTestId("curve-name").getByText(/^RIAA/).waitFor();
+    await cpage.getByTestId("fixity-check").click();
+    await expect.poll(() => cpage.getByTestId("review-transfer-fixity").getAttribute("data-state"), { timeout: 60_000, interval: 500 }).toBe("passed");
+    await expect.poll(() => cpage.getByTestId("review-render-fixity").getAttribute("data-state"), { timeout: 60_000, interval: 500 }).toBe("passed");
+    await cpage.getByTestId("review-approve").click();
+    await cpage.getByTestId("review-decided").getByText(/^Approved$/).waitFor();
+    await screenshot(cpage, "bench-approved");
+    const side = (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side;
+    expect(side.status).toBe("approved");
+    const renders = (await api(`/api/sides/${sideA}/renders`, { cookie: engineerCookie })).body.renders;
+    expect(side.currentRenderId).toBe(renders.find((r: { current: boolean }) => r.current).id);
+    await curatorContext.close();
+  }, 300_000);
 });

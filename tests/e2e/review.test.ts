@@ -156,7 +156,8 @@ describe("review and audit", () => {
       body: { sideIds: [sideId], presetId: riaa.id, presetVersion: riaa.currentVersion, overrides: {}, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale: "Returned for too much bass: the lab's RIAA preset, as the curator asked.", evidenceKind: "listening", evidence: "Compared on the bench around 1:10." },
     });
     expect(chosen.status).toBe(201);
-    expect(await sideStatus()).toBe("transferred");
+    // The returned side keeps its flat transfer; with the new curve it needs its render again.
+    expect(await sideStatus()).toBe("curve_chosen");
     await renderAndWait();
     await submitForReview();
     expect(await sideStatus()).toBe("in_review");

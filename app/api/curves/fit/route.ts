@@ -1,4 +1,4 @@
-import { type CurveSpec, fitCurve } from "@/lib/curves";
+import { fitCurve } from "@/lib/curves";
 import { route } from "@/lib/http/route";
 import { asCurveAppError } from "@/lib/presets/curve-check";
 import { fitRequestSchema } from "@/lib/validation/curves";
@@ -9,7 +9,7 @@ export const dynamic = "force-dynamic";
 export const POST = route("POST /api/curves/fit", async (req) => {
   const body = fitRequestSchema.parse(await req.json().catch(() => ({})));
   try {
-    return { fit: fitCurve({ points: body.points, kind: body.kind, fit: body.fit, initial: body.initial as CurveSpec, levelOffsetDb: body.levelOffsetDb }) };
+    return { fit: fitCurve({ points: body.points, kind: body.kind, fit: body.fit, initial: body.initial, levelOffsetDb: body.levelOffsetDb }) };
   } catch (err) {
     throw asCurveAppError(err, "fit");
   }

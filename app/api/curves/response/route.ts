@@ -1,4 +1,4 @@
-import { analogModel, analogResponse, type CurveSpec, describeCurve, designRenderFilter } from "@/lib/curves";
+import { analogModel, analogResponse, describeCurve, designRenderFilter } from "@/lib/curves";
 import { route } from "@/lib/http/route";
 import { asCurveAppError } from "@/lib/presets/curve-check";
 import { responseRequestSchema } from "@/lib/validation/curves";
@@ -9,11 +9,11 @@ export const dynamic = "force-dynamic";
 export const POST = route("POST /api/curves/response", async (req) => {
   const { spec, sampleRateHz, frequenciesHz, renderFilter } = responseRequestSchema.parse(await req.json().catch(() => ({})));
   try {
-    const description = describeCurve(spec as CurveSpec, sampleRateHz);
+    const description = describeCurve(spec, sampleRateHz);
     const freqs = frequenciesHz ?? [20, 50, 100, 200, 500, 1000, 2000, 5000, 10_000, 20_000];
-    const r = analogResponse(analogModel(spec as CurveSpec), freqs);
+    const r = analogResponse(analogModel(spec), freqs);
     const table = freqs.map((hz, i) => ({ hz, db: r.gainDb[i], phaseDeg: r.phaseDeg[i] }));
-    const render = renderFilter ? designRenderFilter(spec as CurveSpec, sampleRateHz) : undefined;
+    const render = renderFilter ? designRenderFilter(spec, sampleRateHz) : undefined;
     return {
       ...description,
       sampleRateHz,

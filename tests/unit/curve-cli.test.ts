@@ -17,7 +17,8 @@ async function cli(args: string[]): Promise<{ code: number; stdout: string; stde
   }
 }
 
-describe("curve CLI", () => {
+// Each case starts the command through tsx (a second or more apiece, longer on a busy machine).
+describe("curve CLI", { timeout: 60_000 }, () => {
   it("design --json prints the sections, poles, zeros, gain and errors", async () => {
     const r = await cli(["design", "--turnover-hz", "500", "--shelf-hz", "50", "--rolloff-db", "13.7", "--rate", "44100", "--json"]);
     expect(r.code).toBe(0);

@@ -166,9 +166,12 @@ describe("the side workflow", () => {
     expect(mail.text).toMatch(/side A/);
 
     // The next step happens on the bench, not by a button: a manual move is refused.
-    const manual = await api(`/api/sides/${sideA.id}/transition`, { cookie: cookie.engineer, method: "POST", body: { to: "curve_chosen" } });
+    const manual = await api(`/api/sides/${sideA.id}/transition`, { cookie: cookie.engineer, method: "POST", body: { to: "transferred" } });
     expect(manual.status).toBe(409);
-    expect(manual.body.error.message).toMatch(/when its curve is chosen/);
+    expect(manual.body.error.message).toMatch(/when its flat transfer was accepted/);
+    const skipping = await api(`/api/sides/${sideA.id}/transition`, { cookie: cookie.engineer, method: "POST", body: { to: "curve_chosen" } });
+    expect(skipping.status).toBe(409);
+    expect(skipping.body.error.message).toMatch(/cannot become curve chosen; next is flat transfer in/);
     const byArchivist = await api(`/api/sides/${sideA.id}/transition`, { cookie: cookie.archivist, method: "POST", body: { to: "approved" } });
     expect(byArchivist.status).toBe(403);
 

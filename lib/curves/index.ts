@@ -23,3 +23,5 @@ export { logGrid, linearGrid } from "./grid";
 export { RIAA_SPEC, IEC_HIGHPASS_SPEC, BS1928_COARSE_SPEC } from "./standard-curves";
 export { describeCurve } from "./describe";
 export type { CurveDescription } from "./describe";
+export { formatNumber, formatRolloffDb, normalizeRolloffDb, parseRolloffDb, formatCorner, cornerChanges, curveChoiceName, CORNER_WORDS } from "./names";
+export type { CurveChoiceNaming } from "./names";

@@ -13,7 +13,7 @@ import { Panel } from "@/components/ui/panel";
 import { usePresets } from "@/hooks/use-presets";
 import { useSide } from "@/hooks/use-side";
 import { defaultChannelMode } from "@/lib/audition/channel-mode";
-import { type CurveSpec, mergeCurve } from "@/lib/curves";
+import { curveChoiceName, type CurveSpec, mergeCurve } from "@/lib/curves";
 import { statusLabels } from "@/lib/validation/catalogue";
 import { curveChoosableStatuses, uploadableStatuses } from "@/lib/validation/transfers";
 import { AuditionPanel } from "./audition-panel";
@@ -46,11 +46,11 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   // Candidates: the recorded choice, the form's edits, and presets added for comparison (at the same speeds).
   const candidates = useMemo<Candidate[]>(() => {
     const out: Candidate[] = [];
-    if (current) out.push({ id: "current", label: `Recorded: ${current.presetName ? `${current.presetName} v${current.presetVersion}` : "own values"}`, spec: current.spec });
+    if (current) out.push({ id: "current", label: `Recorded: ${curveChoiceName(current)}`, spec: current.spec });
     if (editSpec && (!current || JSON.stringify(editSpec) !== JSON.stringify(current.spec))) out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
     for (const id of extraPresets) {
       const p = presets.data?.presets.find((x) => x.id === id);
-      if (p) out.push({ id: `preset:${p.id}`, label: p.name, spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer) });
+      if (p) out.push({ id: `preset:${p.id}`, label: curveChoiceName({ presetName: p.name, presetVersion: p.version, cutSpeedRpm: speeds.cut, transferSpeedRpm: speeds.transfer }), spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer) });
     }
     return out.filter((c) => !hidden.has(c.id)).slice(0, MAX_CANDIDATES);
   }, [current, editSpec, extraPresets, presets.data, speeds.cut, speeds.transfer, hidden]);

@@ -264,7 +264,9 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       return { sentence: `${who} approved ${side}${on}: its flat transfer, curve and access copy are accepted together.`, details: d, tone: "good" };
     case "side.returned":
       workDetails(p, ctx, d);
-      return { sentence: `${who} returned ${side}${on} to the engineer${p.reason ? `: “${String(p.reason).trim()}”` : ""}.`, details: d, tone: "bad" };
+      // The reason as written, in quotes; its own full stop ends the sentence.
+      const reason = p.reason ? String(p.reason).trim() : "";
+      return { sentence: `${who} returned ${side}${on} to the engineer${reason ? `: “${reason}”${/[.!?]$/.test(reason) ? "" : "."}` : "."}`, details: d, tone: "bad" };
     case "lab.settings_changed": {
       const names: Record<string, string> = { fixityCycleDays: "fixity cycle (days)", accessCopyRateHz: "access copy rate", accessCopyBitDepth: "access copy word length" };
       const changes = Object.keys(p.after ?? {}).map((k) => `${names[k] ?? k} from ${String(p.before?.[k] ?? "?")} to ${String(p.after?.[k])}`);
@@ -298,7 +300,7 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
         if (k === "side") continue;
         if ((k === "before" || k === "after") && v && typeof v === "object") continue;
         const text = plainValue(v);
-        if (text !== null && d.length < 8) d.push({ label: k.replace(/([A-Z])/g, " $1").replace(/_/g, " ").replace(/^./, (c) => c.toUpperCase()), value: text, mono: /Id$|sha|key/i.test(k) });
+        if (text !== null && d.length < 8) d.push({ label: k.replace(/([A-Z])/g, " $1").replace(/_/g, " ").toLowerCase().replace(/^./, (c) => c.toUpperCase()), value: text, mono: /Id$|sha|key/i.test(k) });
       }
       if (p.before?.status || p.after?.status) d.unshift({ label: "Status", value: `${statusWords(p.before?.status)} → ${statusWords(p.after?.status)}` });
       return { sentence: `${who} recorded: ${what}${p.side ? ` (${side}${on})` : on ? ` (${e.shelfMark})` : ""}.`, details: d, tone: "plain" };

@@ -8,9 +8,9 @@ const turnover500: CurveSpec = { turnover: { unit: "hz", value: 500 }, highpass:
 
 describe("filter deviations for the workbench", () => {
   it.each([
-    ["RIAA", RIAA_SPEC, 44_100],
-    ["turnover 500 Hz with a high-pass", turnover500, 96_000],
-  ] as [string, CurveSpec, number][])("%s at %s Hz: the FIR is the render job's, within the render targets; the sections are the preview's", (_name, spec, fs) => {
+    ["RIAA", 44_100, RIAA_SPEC],
+    ["turnover 500 Hz with a high-pass", 96_000, turnover500],
+  ] as [string, number, CurveSpec][])("%s at %i Hz: the FIR is the render job's, within the render targets; the sections are the preview's", (_name, fs, spec) => {
     const dev = filterDeviations(spec, fs);
     // The same design the render job runs (lib/jobs/render-job.ts: designRenderFilterFromModel at the transfer's rate).
     const model = buildAnalogModel(resolveCurve(spec));

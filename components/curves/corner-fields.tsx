@@ -101,13 +101,13 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
         </div>
       </div>
       {on ? (
-        <div className={cx("mt-2 grid gap-2", def.units.length === 3 ? "grid-cols-3" : "grid-cols-2")}>
+        <div className={cx("mt-2 grid items-end gap-2", def.units.length === 3 ? "grid-cols-[minmax(0,1.5fr)_minmax(0,1fr)_minmax(0,1fr)]" : "grid-cols-2")}>
           {def.units.map((unit) => {
             const entered = value.unit === unit;
             const text = draft?.unit === unit ? draft.text : derived(value, unit);
             return (
               <div key={unit} className="space-y-0.5">
-                <label htmlFor={`${id}-${unit}`} className="flex items-center gap-1 text-xs font-medium text-ink-soft">
+                <label htmlFor={`${id}-${unit}`} className="flex flex-wrap items-center gap-x-1 text-xs font-medium leading-tight text-ink-soft">
                   {UNIT_LABEL[unit]}
                   {entered ? <span className="rounded bg-groove-wash px-1 text-[0.65rem] text-groove">as entered</span> : null}
                 </label>

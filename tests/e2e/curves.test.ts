@@ -2,11 +2,12 @@
 // moves the turnover in Hz and sees the time constant follow, sees the plot, saves the
 // curve as a new preset with a change note, and finds it in the library. Screenshots
 // "curves-library" and "curves-workbench" land in storage/test/screenshots.
+import path from "node:path";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { appUrl } from "../support/app";
-import { launchBrowser, screenshot, SignInPage } from "../support/browser";
+import { launchBrowser, screenshot, screenshotDir, SignInPage } from "../support/browser";
 
 let browser: Browser;
 
@@ -82,6 +83,8 @@ describe("curve library and workbench", () => {
     await expect.poll(() => deviation.getAttribute("data-pending"), { timeout: 30_000 }).toBe("false");
     await deviation.scrollIntoViewIfNeeded();
     await screenshot(page, "curves-workbench-filters");
+    await deviation.screenshot({ path: path.join(screenshotDir, "curves-workbench-filter-panel.png") });
+    await page.getByTestId("corner-rolloff").screenshot({ path: path.join(screenshotDir, "curves-workbench-rolloff.png") });
 
     const name = `E2E turnover 500 Hz ${Date.now().toString(36)}`;
     await page.getByTestId("save-name").fill(name);

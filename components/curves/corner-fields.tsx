@@ -32,7 +32,7 @@ const CORNERS: CornerDef[] = [
   { name: "ultrasonic", title: "Ultrasonic zero", role: "A rise far above the audio band, from some cutting chains.", units: ["hz", "us"], startUs: 3.18 },
 ];
 
-const UNIT_LABEL: Record<CornerUnit, string> = { hz: "Hz", us: "µs", db10k: "dB attenuation at 10 kHz" };
+const UNIT_LABEL: Record<CornerUnit, string> = { hz: "Hz", us: "µs", db10k: "Attenuation at 10 kHz (dB)" };
 const UNIT_WORDS: Record<CornerUnit, string> = { hz: "in Hz", us: "in µs", db10k: "in dB of attenuation at 10 kHz" };
 
 /** Typed text → number; empty or unreadable text gives NaN, which lib/curves refuses with a message naming the field. */
@@ -101,13 +101,14 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
         </div>
       </div>
       {on ? (
-        <div className={cx("mt-2 grid items-end gap-2", def.units.length === 3 ? "grid-cols-[minmax(0,1.5fr)_minmax(0,1fr)_minmax(0,1fr)]" : "grid-cols-2")}>
+        <div className="mt-2 grid grid-cols-2 items-end gap-2">
           {def.units.map((unit) => {
             const entered = value.unit === unit;
             const text = draft?.unit === unit ? draft.text : derived(value, unit);
             return (
-              <div key={unit} className="space-y-0.5">
-                <label htmlFor={`${id}-${unit}`} className="flex flex-wrap items-center gap-x-1 text-xs font-medium leading-tight text-ink-soft">
+              // The rolloff's attenuation in dB, the way it is quoted, gets the whole first line.
+              <div key={unit} className={cx("space-y-0.5", unit === "db10k" && "col-span-2")}>
+                <label htmlFor={`${id}-${unit}`} className="flex items-center gap-1 text-xs font-medium text-ink-soft">
                   {UNIT_LABEL[unit]}
                   {entered ? <span className="rounded bg-groove-wash px-1 text-[0.65rem] text-groove">as entered</span> : null}
                 </label>

@@ -7,6 +7,7 @@
  *
  * Curve flags: --turnover-hz|--turnover-us, --shelf-hz|--shelf-us,
  * --rolloff-db|--rolloff-us|--rolloff-hz, --highpass-hz|--highpass-us,
+ * (--rolloff-db is the attenuation at 10 kHz: 10, -10 and −10 all mean 10 dB of cut),
  * --ultrasonic-hz|--ultrasonic-us, --ref-hz, --ref-db, --speed-ratio,
  * --preset NAME (reads the lab's current preset version from PostgreSQL via
  * DATABASE_URL; other flags override its values).
@@ -27,6 +28,8 @@ import {
   fitCurve,
   parsePointsCsv,
   peakGain,
+  formatRolloffDb,
+  parseRolloffDb,
   PointsParseError,
   resolveCurve,
 } from "../lib/curves";
@@ -39,7 +42,7 @@ const USAGE = `usage:
   curve design   [curve flags] [--rate HZ] [--render-filter] [--json]
   curve response [curve flags] [--freqs 20,1000,20000] [--json]
   curve fit POINTS.csv --fit turnover,rolloff[,shelf,highpass,ultrasonic,levelOffset] [--recording] [curve flags] [--json]
-curve flags: --turnover-hz|--turnover-us  --shelf-hz|--shelf-us  --rolloff-db|--rolloff-us|--rolloff-hz
+curve flags: --turnover-hz|--turnover-us  --shelf-hz|--shelf-us  --rolloff-db (attenuation at 10 kHz; 10 or -10)|--rolloff-us|--rolloff-hz
              --highpass-hz|--highpass-us  --ultrasonic-hz|--ultrasonic-us  --ref-hz  --ref-db  --speed-ratio  --preset NAME`;
 
 const CORNER_FLAGS: Record<string, [keyof CurveSpec, CornerInput["unit"]]> = {
@@ -76,7 +79,8 @@ type Values = Record<string, string | boolean | undefined>;
 function numberFlag(values: Values, name: string): number | undefined {
   const raw = values[name];
   if (raw === undefined) return undefined;
-  const n = Number(raw);
+  // The rolloff in dB is read as attenuation whichever sign it is given with (lib/curves parseRolloffDb).
+  const n = name === "rolloff-db" && typeof raw === "string" ? parseRolloffDb(raw) : Number(raw);
   if (typeof raw !== "string" || raw.trim() === "" || !Number.isFinite(n)) {
     throw new UsageError(`--${name} expects a number, got "${String(raw)}".`);
   }
@@ -168,7 +172,7 @@ async function design(values: Values): Promise<void> {
   const lines: string[] = [];
   for (const c of model.curve ? [model.curve.turnover, model.curve.shelf, model.curve.rolloff, model.curve.highpass, model.curve.ultrasonic] : []) {
     if (!c) continue;
-    const extra = c.db10k !== undefined ? `, ${fmt(c.db10k, 2)} dB at 10 kHz` : "";
+    const extra = c.db10k !== undefined ? `, ${formatRolloffDb(c.db10k)}` : "";
     lines.push(`${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra} (entered ${c.entered.value} ${c.entered.unit}; filter uses ${fmt(c.filterTauUs, 3)} µs)`);
   }
   if (lines.length === 0) lines.push("flat curve (no corners)");
@@ -232,7 +236,7 @@ async function fit(values: Values, positionals: string[]): Promise<void> {
   }
   const lines: string[] = [];
   for (const c of result.corners) {
-    const extra = c.db10k !== undefined ? `, ${fmt(c.db10k, 2)} dB at 10 kHz` : "";
+    const extra = c.db10k !== undefined ? `, ${formatRolloffDb(c.db10k)}` : "";
     lines.push(`${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra}${c.fitted ? "  (fitted)" : ""}`);
   }
   lines.push(`level offset ${fmt(result.levelOffsetDb, 3)} dB${params.includes("levelOffset") ? "  (fitted)" : ""}`);
@@ -247,10 +251,24 @@ async function fit(values: Values, positionals: string[]): Promise<void> {
   process.stdout.write(lines.join("\n") + "\n");
 }
 
+/** "--rolloff-db -10" → "--rolloff-db=-10": parseArgs takes a value that starts with a dash only in the joined form. */
+function joinNegativeValues(argv: string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const flag = argv[i].startsWith("--") ? argv[i].slice(2) : null;
+    const next = argv[i + 1];
+    if (flag && !flag.includes("=") && OPTIONS[flag as keyof typeof OPTIONS]?.type === "string" && next !== undefined && /^-(\d|\.\d)/.test(next)) {
+      out.push(`${argv[i]}=${next}`);
+      i++;
+    } else out.push(argv[i]);
+  }
+  return out;
+}
+
 async function main(argv: string[]): Promise<number> {
   let parsed: ReturnType<typeof parseArgs<{ options: typeof OPTIONS; allowPositionals: true; args: string[] }>>;
   try {
-    parsed = parseArgs({ args: argv, options: OPTIONS, allowPositionals: true, strict: true });
+    parsed = parseArgs({ args: joinNegativeValues(argv), options: OPTIONS, allowPositionals: true, strict: true });
   } catch (error) {
     process.stderr.write(`${(error as Error).message}\n${USAGE}\n`);
     return 2;

@@ -1,17 +1,27 @@
 /**
  * One provenance event as a sentence a person reads, with its particulars beneath.
- * Everything shown comes from the event itself (its payload as it was hashed), so
- * a curve event shows the preset values of that moment, not today's version.
+ * The audit log and the disc page's timeline both read events through here, so an
+ * event reads the same wherever it is shown. Everything shown comes from the event
+ * itself (its payload as it was hashed), so a curve event shows the preset values of
+ * that moment, not today's version; the other events in view name what an event only
+ * refers to by id (which curve a render went through, which file a review approved).
  */
 import { formatBytes } from "@/components/bench/progress-bar";
 import { discFieldLabels, fieldText, sideChanges } from "@/components/catalogue/fields";
 import { statusLabel } from "@/components/catalogue/format";
-import { CORNER_WORDS, formatNumber } from "@/components/curves/plot-format";
-import { CORNER_NAMES, type CornerInput, type CurveSpec, hzToUs, usToHz } from "@/lib/curves";
+import { CORNER_NAMES, CORNER_WORDS, type CornerInput, type CurveSpec, curveChoiceName, formatCorner, formatNumber } from "@/lib/curves";
 import { channelModeLabels, evidenceLabels } from "@/lib/validation/transfers";
-import type { AuditEvent } from "./types";
 
 type P = Record<string, any>;
+
+/** What the sentence builder needs of an event; the audit log and the disc timeline each send a little more. */
+export interface EventLike {
+  kind: string;
+  payload: Record<string, unknown> | null;
+  actorName: string | null;
+  /** Given on the audit log, where events of many discs mix; the disc page leaves it out. */
+  shelfMark?: string | null;
+}
 
 export interface EventDetail {
   label: string;
@@ -26,11 +36,41 @@ export interface EventReading {
   tone: "plain" | "good" | "bad";
 }
 
+/** What other events in view say about the things an event names only by id. */
+export interface EventContext {
+  /** curve choice id → its name ("RIAA v3 + rolloff 10 dB attenuation at 10 kHz"). */
+  choices: Map<string, string>;
+  /** transfer id → its file name and SHA-256. */
+  transfers: Map<string, { fileName: string; sha256: string }>;
+  /** render id → the access copy's SHA-256, rate, word length and the choice it went through. */
+  renders: Map<string, { sha256?: string; sampleRateHz?: number; bitDepth?: number; choiceId?: string }>;
+  /** Turns an accession id into its identifier, where the page knows them. */
+  accessionName?: (id: string) => string | undefined;
+}
+
+/** Reads the events in view once, so each sentence can name what the others recorded. */
+export function eventContext(events: EventLike[], accessionName?: (id: string) => string | undefined): EventContext {
+  const ctx: EventContext = { choices: new Map(), transfers: new Map(), renders: new Map(), accessionName };
+  for (const e of events) {
+    const p = (e.payload ?? {}) as P;
+    if ((e.kind === "side.curve_chosen" || e.kind === "side.curve_changed") && p.choiceId) ctx.choices.set(String(p.choiceId), choiceNameOf(p));
+    if (e.kind === "side.transfer_accepted" && p.transferId) ctx.transfers.set(String(p.transferId), { fileName: fileNameOf(p), sha256: String(p.sha256 ?? "") });
+    if (e.kind === "side.rendered" && p.renderId)
+      ctx.renders.set(String(p.renderId), { sha256: p.accessCopy?.sha256, sampleRateHz: num(p.accessCopy?.sampleRateHz), bitDepth: num(p.accessCopy?.bitDepth), choiceId: p.curveChoiceId ?? p.curveChoice?.id });
+  }
+  return ctx;
+}
+
+const emptyContext: EventContext = { choices: new Map(), transfers: new Map(), renders: new Map() };
+
+function num(v: unknown): number | undefined {
+  const n = Number(v);
+  return v === null || v === undefined || !Number.isFinite(n) ? undefined : n;
+}
+
+/** A corner as entered, with its other unit: "500 Hz (318.3 µs)", "10 dB attenuation at 10 kHz" (lib/curves formatCorner). */
 export function cornerText(c: CornerInput | null | undefined): string {
-  if (!c) return "none";
-  if (c.unit === "db10k") return `${formatNumber(c.value)} dB at 10 kHz`;
-  if (c.unit === "hz") return `${formatNumber(c.value)} Hz (${formatNumber(hzToUs(c.value))} µs)`;
-  return `${formatNumber(c.value)} µs (${formatNumber(usToHz(c.value))} Hz)`;
+  return formatCorner(c);
 }
 
 /** A curve's corners in one line: "turnover 318 µs (500.5 Hz); shelf …". */
@@ -46,7 +86,43 @@ export function curveText(spec: Partial<CurveSpec> | null | undefined): string {
   return parts.length ? parts.join("; ") : "no corners";
 }
 
+/** The name of the curve a choice event recorded: preset version, changes for the side, speed ratio. */
+function choiceNameOf(p: P): string {
+  return curveChoiceName({ presetName: p.preset?.name, presetVersion: p.preset?.version, overrides: p.overrides, cutSpeedRpm: num(p.cutSpeedRpm), transferSpeedRpm: num(p.transferSpeedRpm) });
+}
+
+/** The name the engineer's file had: the last part of the object key (the server keeps it there). */
+function fileNameOf(p: P): string {
+  if (p.fileName) return String(p.fileName);
+  const key = String(p.objectKey ?? "");
+  return key.includes("/") ? key.slice(key.lastIndexOf("/") + 1) : key || "the file";
+}
+
+/** "SHA-256 3fa2b1c0…": enough of a checksum to tell two files apart in a sentence; the whole one is in the details. */
+function shaShort(sha: unknown): string {
+  return typeof sha === "string" && sha ? `SHA-256 ${sha.slice(0, 8)}…` : "";
+}
+
+const idOf = (v: unknown): string | undefined => (typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String((v as { id: unknown }).id) : undefined);
+
 const objectWords = (kind: unknown) => (kind === "render" ? "access copy" : "flat transfer");
+
+/** A status in running text; a status this page does not know yet is still readable ("needs_render" → "needs render"). */
+function statusWords(status: unknown): string {
+  const s = String(status ?? "?");
+  const label = statusLabel(s);
+  return (label === s ? s.replace(/_/g, " ") : label).toLowerCase();
+}
+
+/** "48 kHz, 24-bit" */
+function rateText(rateHz: unknown, bitDepth: unknown): string {
+  const parts: string[] = [];
+  const r = num(rateHz);
+  if (r) parts.push(`${formatNumber(r / 1000)} kHz`);
+  const b = num(bitDepth);
+  if (b) parts.push(`${b}-bit`);
+  return parts.join(", ");
+}
 
 /** "1.4 GiB (1,503,238,553 bytes)": the exact count beside the readable size. */
 function bytesText(n: unknown): string {
@@ -54,7 +130,30 @@ function bytesText(n: unknown): string {
   return Number.isFinite(v) && v >= 1024 ? `${formatBytes(v)} (${v.toLocaleString("en-GB")} bytes)` : formatBytes(v);
 }
 
-export function describeEvent(e: AuditEvent): EventReading {
+/** A payload value in a detail line, for kinds this page has no words for yet. */
+function plainValue(v: unknown): string | null {
+  if (v === null || v === undefined || v === "") return null;
+  if (typeof v === "string" || typeof v === "number" || typeof v === "boolean") return String(v);
+  if (typeof v === "object" && v && "status" in v && Object.keys(v).length === 1) return statusWords((v as { status: unknown }).status);
+  return null;
+}
+
+/** Which transfer, curve and access copy a decision or a render names, each as far as the events in view tell. */
+function workDetails(p: P, ctx: EventContext, d: EventDetail[]): void {
+  const transferId = p.transferId ?? idOf(p.transfer);
+  const choiceId = p.curveChoiceId ?? idOf(p.curveChoice);
+  const renderId = p.renderId ?? idOf(p.render);
+  const t = transferId ? ctx.transfers.get(String(transferId)) : undefined;
+  const tSha = p.transfer?.sha256 ?? p.transferSha256 ?? t?.sha256;
+  if (transferId || tSha) d.push({ label: "Flat transfer", value: [t?.fileName, tSha ? `SHA-256 ${tSha}` : null].filter(Boolean).join(" · ") || String(transferId), mono: !t?.fileName });
+  const curve = choiceId ? ctx.choices.get(String(choiceId)) : undefined;
+  if (choiceId || p.curveChoice?.name) d.push({ label: "Curve", value: p.curveChoice?.name ?? curve ?? "a curve choice recorded earlier" });
+  const r = renderId ? ctx.renders.get(String(renderId)) : undefined;
+  const rSha = p.render?.sha256 ?? p.renderSha256 ?? r?.sha256;
+  if (renderId || rSha) d.push({ label: "Access copy", value: [rSha ? `SHA-256 ${rSha}` : null, rateText(r?.sampleRateHz, r?.bitDepth) || null].filter(Boolean).join(" · ") || String(renderId), mono: true });
+}
+
+export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): EventReading {
   const who = e.actorName ?? "The system";
   const p = (e.payload ?? {}) as P;
   const side = p.side ? `side ${p.side}` : "a side";
@@ -69,22 +168,26 @@ export function describeEvent(e: AuditEvent): EventReading {
       return { sentence: `${who} committed a spreadsheet import${p.rows ? ` of ${p.rows} row${p.rows === 1 ? "" : "s"}` : ""}${Array.isArray(p.discs) ? `, ${p.discs.length} disc${p.discs.length === 1 ? "" : "s"}` : typeof p.discs === "number" ? `, ${p.discs} disc${p.discs === 1 ? "" : "s"}` : ""}.`, details: d, tone: "plain" };
     case "disc.created": {
       const n = Array.isArray(p.after?.sides) ? p.after.sides.length : 0;
-      return { sentence: `${who} catalogued ${e.shelfMark ?? p.after?.shelfMark ?? "a disc"}${n ? ` with ${n} side${n === 1 ? "" : "s"}` : ""}.`, details: [], tone: "plain" };
+      const how = Object.keys(p).some((k) => /import/i.test(k)) ? " from a spreadsheet import" : "";
+      return { sentence: `${who} catalogued ${e.shelfMark ?? "the disc"}${how}${n ? ` with ${n} side${n === 1 ? "" : "s"}` : ""}.`, details: [], tone: "plain" };
     }
     case "disc.edited": {
       const changed: string[] = Array.isArray(p.changed) ? p.changed : [];
       for (const f of changed) {
         if (f === "sides") for (const s of sideChanges(p.before?.sides ?? [], p.after?.sides ?? [])) d.push({ label: "Sides", value: s });
-        else d.push({ label: discFieldLabels[f] ?? f, value: `${fieldText(f, p.before?.[f])} → ${fieldText(f, p.after?.[f])}` });
+        else d.push({ label: discFieldLabels[f] ?? f, value: `${fieldText(f, p.before?.[f], ctx.accessionName)} → ${fieldText(f, p.after?.[f], ctx.accessionName)}` });
       }
-      return { sentence: `${who} edited ${e.shelfMark ?? "the disc"}${changed.length ? `: ${changed.map((f) => (discFieldLabels[f] ?? f).toLowerCase()).join(", ")}` : ""}.`, details: d, tone: "plain" };
+      if (!changed.length) return { sentence: `${who} saved ${e.shelfMark ?? "the disc"} without changes.`, details: [], tone: "plain" };
+      return { sentence: `${who} edited ${e.shelfMark ?? "the disc"}: ${changed.map((f) => (discFieldLabels[f] ?? f).toLowerCase()).join(", ")}.`, details: d, tone: "plain" };
     }
-    case "side.assigned":
-      return { sentence: `${who} assigned ${side}${on} to ${p.after?.engineerName ?? "an engineer"}.`, details: [], tone: "plain" };
-    case "side.status_changed":
-      if (p.note) d.push({ label: "Note", value: String(p.note) });
-      if (p.reason) d.push({ label: "Reason", value: String(p.reason) });
-      return { sentence: `${who} moved ${side}${on} from ${statusLabel(p.before?.status ?? "?").toLowerCase()} to ${statusLabel(p.after?.status ?? "?").toLowerCase()}.`, details: d, tone: "plain" };
+    case "side.assigned": {
+      const was = p.before?.status && p.before.status !== "catalogued" ? ` (it was ${statusWords(p.before.status)})` : "";
+      return { sentence: `${who} assigned ${side}${on} to ${p.after?.engineerName ?? "an engineer"}${was}.`, details: [], tone: "plain" };
+    }
+    case "side.status_changed": {
+      const why = p.note ?? p.reason;
+      return { sentence: `${who === "The system" ? "Rillbook" : who} moved ${side}${on} from ${statusWords(p.before?.status)} to ${statusWords(p.after?.status)}${why ? `: ${String(why).replace(/\.$/, "")}` : ""}.`, details: [], tone: "plain" };
+    }
     case "side.curve_chosen":
     case "side.curve_changed": {
       const preset = p.preset as { name?: string; version?: number; values?: CurveSpec } | null | undefined;
@@ -96,8 +199,7 @@ export function describeEvent(e: AuditEvent): EventReading {
       if (Number.isFinite(cut)) d.push({ label: "Speeds", value: cut === tr ? `${formatNumber(cut)} rpm` : `cut at ${formatNumber(cut)} rpm, transferred at ${formatNumber(tr)} rpm (ratio ${formatNumber(tr / cut)})` });
       if (p.rationale) d.push({ label: "Rationale", value: String(p.rationale) });
       if (p.evidenceKind) d.push({ label: "Rests on", value: `${evidenceLabels[p.evidenceKind as keyof typeof evidenceLabels] ?? p.evidenceKind}${p.evidence ? ` — ${p.evidence}` : ""}` });
-      const what = preset ? `${preset.name} v${preset.version}` : "its own values";
-      return { sentence: `${who} ${e.kind === "side.curve_changed" ? "changed the curve of" : "chose the curve for"} ${side}${on}: ${what}.`, details: d, tone: "plain" };
+      return { sentence: `${who} ${e.kind === "side.curve_changed" ? "changed the curve of" : "chose the curve for"} ${side}${on}: ${choiceNameOf(p)}.`, details: d, tone: "plain" };
     }
     case "side.transfer_accepted": {
       const t = (p.technical ?? {}) as P;
@@ -105,33 +207,66 @@ export function describeEvent(e: AuditEvent): EventReading {
       if (p.bytes !== undefined) d.push({ label: "Size", value: bytesText(p.bytes) });
       if (t.sampleRateHz) d.push({ label: "Technical", value: `${t.container ?? ""} ${String(t.encoding ?? "").toUpperCase()} ${t.bitsPerSample ?? "?"}-bit · ${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${t.channels === 2 ? "stereo" : t.channels === 1 ? "mono" : `${t.channels} channels`}${t.durationSeconds ? ` · ${Number(t.durationSeconds).toFixed(1)} s` : ""}`.trim() });
       if (p.objectKey) d.push({ label: "Stored as", value: String(p.objectKey), mono: true });
-      return { sentence: `${who} uploaded the flat transfer of ${side}${on}; its size, checksum and header were checked and it was accepted.`, details: d, tone: "plain" };
+      const sha = shaShort(p.sha256);
+      return { sentence: `${who} uploaded the flat transfer ${fileNameOf(p)} of ${side}${on}${sha ? ` (${sha})` : ""}; its size, checksum and header were checked and it was accepted.`, details: d, tone: "plain" };
     }
-    case "side.render_requested":
+    case "side.render_requested": {
       if (p.channelMode) d.push({ label: "Channels", value: channelModeLabels[p.channelMode as keyof typeof channelModeLabels] ?? String(p.channelMode) });
-      if (p.bitDepth) d.push({ label: "Word length", value: `${p.bitDepth}-bit` });
-      return { sentence: `${who} asked for an access copy of ${side}${on}.`, details: d, tone: "plain" };
+      workDetails({ transferId: p.transferId, curveChoiceId: p.curveChoiceId }, ctx, d);
+      const curve = p.curveChoiceId ? ctx.choices.get(String(p.curveChoiceId)) : undefined;
+      const rate = rateText(p.sampleRateHz, p.bitDepth);
+      return { sentence: `${who} asked for an access copy of ${side}${on}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}.`, details: d, tone: "plain" };
+    }
     case "side.rendered": {
       const f = (p.filter ?? {}) as P;
+      const choiceId = p.curveChoiceId ?? idOf(p.curveChoice);
+      const curve = choiceId ? ctx.choices.get(String(choiceId)) : undefined;
+      const transferId = idOf(p.transfer) ?? p.transferId;
+      const source = transferId ? ctx.transfers.get(String(transferId))?.fileName : undefined;
+      const rate = rateText(p.accessCopy?.sampleRateHz, p.accessCopy?.bitDepth);
       if (p.accessCopy?.sha256) d.push({ label: "SHA-256", value: String(p.accessCopy.sha256), mono: true });
       if (p.accessCopy?.bytes !== undefined) d.push({ label: "Size", value: bytesText(p.accessCopy.bytes) });
-      if (f.kind) d.push({ label: "Filter", value: `${f.kind}${f.taps ? `, ${f.taps} taps` : ""}${f.delaySamples !== undefined ? `, delay ${f.delaySamples} samples` : ""}${f.software ? ` · ${f.software}` : ""}` });
+      if (!curve && f.spec) d.push({ label: "Curve", value: curveText(f.spec) });
+      if (p.transfer?.sha256) d.push({ label: "From flat transfer", value: `${source ? `${source} · ` : ""}SHA-256 ${p.transfer.sha256}`, mono: !source });
+      if (f.kind) d.push({ label: "Filter", value: `${f.kind === "fir" ? "FIR" : f.kind}${f.taps ? `, ${f.taps} taps` : ""}${f.delaySamples !== undefined ? `, delay ${f.delaySamples} samples` : ""}${f.software ? ` · ${f.software}` : ""}` });
       if (p.trimDb !== undefined && p.trimDb !== null) d.push({ label: "Trim", value: `${Number(p.trimDb).toFixed(2)} dB` });
       if (p.codingHistory) d.push({ label: "Coding history", value: String(p.codingHistory), mono: true });
-      return { sentence: `The worker rendered the access copy of ${side}${on}${e.actorName ? ` for ${e.actorName}` : ""}.`, details: d, tone: "plain" };
+      const sha = shaShort(p.accessCopy?.sha256);
+      return {
+        sentence: `The worker rendered the access copy of ${side}${on}${e.actorName ? ` for ${e.actorName}` : ""}${source ? ` from ${source}` : ""}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}${sha ? ` (${sha})` : ""}.`,
+        details: d,
+        tone: "plain",
+      };
+    }
+    case "side.render_superseded": {
+      const r = p.renderId ? ctx.renders.get(String(p.renderId)) : undefined;
+      const curve = r?.choiceId ? ctx.choices.get(r.choiceId) : undefined;
+      if (r?.sha256) d.push({ label: "Access copy", value: `SHA-256 ${r.sha256}`, mono: true });
+      if (curve) d.push({ label: "Curve", value: curve });
+      d.push({ label: "Kept", value: "The file and its checksum stay in the history; it is no longer the side's access copy." });
+      const sha = shaShort(r?.sha256);
+      return { sentence: `The access copy of ${side}${on}${sha ? ` (${sha})` : ""} was superseded${p.reason ? `: ${String(p.reason).replace(/\.$/, "")}` : ""}.`, details: d, tone: "plain" };
     }
     case "side.fixity_checked": {
       const ok = p.outcome === "pass";
       d.push({ label: "Expected SHA-256", value: String(p.expectedSha256 ?? "—"), mono: true });
       if (!ok) d.push({ label: "Read back", value: p.actualSha256 ? String(p.actualSha256) : "nothing", mono: true });
+      if (p.object?.key) d.push({ label: "Object", value: String(p.object.key), mono: true });
       if (p.detail) d.push({ label: "Detail", value: String(p.detail) });
       const outcome = ok ? "passed" : p.outcome === "mismatch" ? "found a checksum MISMATCH" : p.outcome === "missing" ? "found the file MISSING" : "could not read the file";
-      return { sentence: `A fixity check of the ${objectWords(p.object?.kind)} of ${side}${on} ${outcome}.`, details: d, tone: ok ? "good" : "bad" };
+      const file = p.object?.kind === "render" ? "" : p.object?.key ? ` ${fileNameOf({ objectKey: p.object.key })}` : "";
+      const sha = shaShort(p.expectedSha256);
+      return { sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${side}${on}${sha ? ` (${sha})` : ""} ${outcome}.`, details: d, tone: ok ? "good" : "bad" };
     }
     case "side.approved":
-      return { sentence: `${who} approved ${side}${on}.`, details: p.reason ? [{ label: "Note", value: String(p.reason) }] : [], tone: "good" };
+      workDetails(p, ctx, d);
+      if (p.reason) d.push({ label: "Note", value: String(p.reason) });
+      return { sentence: `${who} approved ${side}${on}: its flat transfer, curve and access copy are accepted together.`, details: d, tone: "good" };
     case "side.returned":
-      return { sentence: `${who} returned ${side}${on} to the engineer.`, details: p.reason ? [{ label: "Reason", value: String(p.reason) }] : [], tone: "bad" };
+      workDetails(p, ctx, d);
+      // The reason as written, in quotes; its own full stop ends the sentence.
+      const reason = p.reason ? String(p.reason).trim() : "";
+      return { sentence: `${who} returned ${side}${on} to the engineer${reason ? `: “${reason}”${/[.!?]$/.test(reason) ? "" : "."}` : "."}`, details: d, tone: "bad" };
     case "lab.settings_changed": {
       const names: Record<string, string> = { fixityCycleDays: "fixity cycle (days)", accessCopyRateHz: "access copy rate", accessCopyBitDepth: "access copy word length" };
       const changes = Object.keys(p.after ?? {}).map((k) => `${names[k] ?? k} from ${String(p.before?.[k] ?? "?")} to ${String(p.after?.[k])}`);
@@ -158,9 +293,47 @@ export function describeEvent(e: AuditEvent): EventReading {
       return { sentence: `A password reset was asked for ${p.email ?? "an account"}.`, details: [], tone: "plain" };
     case "person.password_reset":
       return { sentence: `${p.email ?? who} set a new password.`, details: [], tone: "plain" };
-    default:
-      return { sentence: `${who}: ${e.kind.replace(/[._]/g, " ")}${on}.`, details: [], tone: "plain" };
+    default: {
+      // A kind without its own words yet: say what it is and who did it to which side, and show its plain fields.
+      const what = kindLabel(e.kind).toLowerCase();
+      for (const [k, v] of Object.entries(p)) {
+        if (k === "side") continue;
+        if ((k === "before" || k === "after") && v && typeof v === "object") continue;
+        const text = plainValue(v);
+        if (text !== null && d.length < 8) d.push({ label: k.replace(/([A-Z])/g, " $1").replace(/_/g, " ").toLowerCase().replace(/^./, (c) => c.toUpperCase()), value: text, mono: /Id$|sha|key/i.test(k) });
+      }
+      if (p.before?.status || p.after?.status) d.unshift({ label: "Status", value: `${statusWords(p.before?.status)} → ${statusWords(p.after?.status)}` });
+      return { sentence: `${who} recorded: ${what}${p.side ? ` (${side}${on})` : on ? ` (${e.shelfMark})` : ""}.`, details: d, tone: "plain" };
+    }
   }
+}
+
+const KIND_LABELS: Record<string, string> = {
+  "accession.received": "Accession received",
+  "import.committed": "Spreadsheet import",
+  "disc.created": "Catalogued",
+  "disc.edited": "Disc edited",
+  "side.assigned": "Assigned",
+  "side.status_changed": "Status changed",
+  "side.curve_chosen": "Curve chosen",
+  "side.curve_changed": "Curve changed",
+  "side.transfer_accepted": "Flat transfer accepted",
+  "side.render_requested": "Access copy asked for",
+  "side.rendered": "Access copy rendered",
+  "side.render_superseded": "Access copy superseded",
+  "side.fixity_checked": "Fixity check",
+  "side.approved": "Approved",
+  "side.returned": "Returned",
+  "lab.settings_changed": "Lab settings changed",
+  "preset.created": "Curve preset added",
+  "preset.versioned": "Curve preset versioned",
+};
+
+/** A kind in a few words for filters and the fallback sentence: "side.render_superseded" → "Access copy superseded". */
+export function kindLabel(kind: string): string {
+  if (KIND_LABELS[kind]) return KIND_LABELS[kind];
+  const words = kind.replace(/^[a-z]+\./, "").replace(/[._]/g, " ");
+  return words.charAt(0).toUpperCase() + words.slice(1);
 }
 
 /** Kinds offered in the log's filter: prefixes first, then single kinds (the server filters by prefix). */
@@ -169,7 +342,7 @@ export const kindFilters: { value: string; label: string }[] = [
   { value: "side.", label: "Sides: all work on sides" },
   { value: "side.curve_", label: "— curve chosen or changed" },
   { value: "side.transfer_accepted", label: "— flat transfer accepted" },
-  { value: "side.render", label: "— access copy asked for or rendered" },
+  { value: "side.render", label: "— access copy asked for, rendered or superseded" },
   { value: "side.fixity_checked", label: "— fixity checks" },
   { value: "side.approved", label: "— approvals" },
   { value: "side.returned", label: "— returns" },

@@ -11,7 +11,7 @@ import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
 import { useUrlState } from "@/hooks/use-url-state";
 import { fetchJson } from "@/lib/http/client";
-import { describeEvent, kindFilters } from "./event-sentence";
+import { describeEvent, type EventContext, eventContext, kindFilters } from "./event-sentence";
 import { DiscPicker } from "./disc-picker";
 import type { AuditEvent, DiscPick } from "./types";
 
@@ -37,6 +37,8 @@ export function ProvenanceLog({ disc, onPickDisc, canListPeople }: { disc: DiscP
     getNextPageParam: (last) => (last.events.length === PAGE ? last.events[last.events.length - 1].seq : undefined),
   });
   const events = useMemo(() => log.data?.pages.flatMap((p) => p.events) ?? [], [log.data]);
+  // Which curve a render went through, which file a review approved: named from the other entries loaded.
+  const ctx = useMemo(() => eventContext(events), [events]);
 
   // People: an admin may list everyone; others choose among the people seen in the log so far.
   const users = useQuery({ queryKey: ["users"], enabled: canListPeople, queryFn: () => fetchJson<{ people: { id: string; name: string }[] }>("/api/users") });
@@ -91,7 +93,7 @@ export function ProvenanceLog({ disc, onPickDisc, canListPeople }: { disc: DiscP
 
       <ol className="space-y-2" aria-label="Provenance entries, newest first" data-testid="log-entries">
         {events.map((e) => (
-          <EventItem key={e.id} e={e} showDisc={!disc} />
+          <EventItem key={e.id} e={e} ctx={ctx} showDisc={!disc} />
         ))}
       </ol>
 
@@ -109,8 +111,8 @@ export function ProvenanceLog({ disc, onPickDisc, canListPeople }: { disc: DiscP
   );
 }
 
-function EventItem({ e, showDisc }: { e: AuditEvent; showDisc: boolean }) {
-  const { sentence, details, tone } = describeEvent(e);
+function EventItem({ e, ctx, showDisc }: { e: AuditEvent; ctx: EventContext; showDisc: boolean }) {
+  const { sentence, details, tone } = describeEvent(e, ctx);
   return (
     <li
       className={cx("grid gap-x-4 gap-y-1 rounded-lg border bg-white px-4 py-3 sm:grid-cols-[5.5rem_minmax(0,1fr)]", tone === "bad" ? "border-alarm/50 border-l-4" : tone === "good" ? "border-paper-edge border-l-4 border-l-moss" : "border-paper-edge")}

@@ -298,7 +298,7 @@ export function AuditionPanel({
                 <input type="radio" name={`${uid}-cand`} className="sr-only" checked={activeId === o.id} onChange={() => choose(o.id)} data-testid={`audition-candidate-${i}`} />
                 <span aria-hidden className="inline-block h-3 w-3 shrink-0 rounded-full" style={{ background: o.id === "flat" ? FLAT_COLOR : candidateColor(i - 1) }} />
                 <span className="font-mono text-xs text-ink-faint">{i}</span>
-                <span className="truncate" title={o.label}>{o.label}</span>
+                <span className="min-w-0 break-words leading-snug">{o.label}</span>
               </label>
             ))}
           </div>

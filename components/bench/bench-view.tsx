@@ -17,13 +17,13 @@ import { Panel } from "@/components/ui/panel";
 import { usePresets } from "@/hooks/use-presets";
 import { useSide } from "@/hooks/use-side";
 import { defaultChannelMode } from "@/lib/audition/channel-mode";
-import { type CurveSpec, mergeCurve } from "@/lib/curves";
+import { curveChoiceName, type CurveSpec, mergeCurve } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { statusLabels } from "@/lib/validation/catalogue";
 import { curveChoosableStatuses, uploadableStatuses } from "@/lib/validation/transfers";
 import { AccessCopyCompare } from "./access-copy-compare";
 import { AuditionPanel } from "./audition-panel";
-import { ChoiceHistory, curveTitle } from "./choice-history";
+import { ChoiceHistory } from "./choice-history";
 import { type ChoicePrefill, CurveChoiceForm } from "./curve-choice-form";
 import { RenderPanel } from "./render-panel";
 import { TransfersList } from "./transfers-list";
@@ -60,11 +60,11 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   // Candidates: the recorded choice, the form's edits, and presets added for comparison (at the same speeds).
   const candidates = useMemo<Candidate[]>(() => {
     const out: Candidate[] = [];
-    if (current) out.push({ id: "current", label: `Recorded: ${curveTitle(current)}`, spec: current.spec });
+    if (current) out.push({ id: "current", label: `Recorded: ${curveChoiceName(current)}`, spec: current.spec });
     if (editSpec && (!current || JSON.stringify(editSpec) !== JSON.stringify(current.spec))) out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
     for (const id of extraPresets) {
       const p = presets.data?.presets.find((x) => x.id === id);
-      if (p) out.push({ id: `preset:${p.id}`, label: p.name, spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer) });
+      if (p) out.push({ id: `preset:${p.id}`, label: curveChoiceName({ presetName: p.name, presetVersion: p.version, cutSpeedRpm: speeds.cut, transferSpeedRpm: speeds.transfer }), spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer) });
     }
     return out.filter((c) => !hidden.has(c.id)).slice(0, MAX_CANDIDATES);
   }, [current, editSpec, extraPresets, presets.data, speeds.cut, speeds.transfer, hidden]);
@@ -230,7 +230,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
               <h3 id={`${uid}-ab`} className="font-sans text-sm font-semibold">
                 Hear the access copy against the flat transfer through the chosen curve
               </h3>
-              <AccessCopyCompare key={currentRender.id} render={currentRender} transfer={newest} spec={current.spec} curveLabel={curveTitle(current)} />
+              <AccessCopyCompare key={currentRender.id} render={currentRender} transfer={newest} spec={current.spec} curveLabel={curveChoiceName(current)} />
             </section>
           ) : null}
         </div>

@@ -7,14 +7,14 @@
  */
 import { useQueryClient } from "@tanstack/react-query";
 import { useEffect, useId, useMemo, useState } from "react";
-import { parseNumber } from "@/components/curves/corner-fields";
+import { parseCornerText, parseNumber } from "@/components/curves/corner-fields";
 import { formatNumber } from "@/components/curves/plot-format";
 import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
 import { FieldShell, SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { usePresets, usePresetVersions } from "@/hooks/use-presets";
-import { type CornerInput, type CornerName, CurveError, type CurveSpec, hzToUs, mergeCurve, resolveCurve, usToHz } from "@/lib/curves";
+import { type CornerInput, type CornerName, CurveError, type CurveSpec, formatCorner, mergeCurve, resolveCurve } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { AppError } from "@/lib/http/errors";
 import { evidenceKinds, evidenceLabels } from "@/lib/validation/transfers";
@@ -34,24 +34,21 @@ const CORNERS: { name: CornerName; title: string; units: CornerInput["unit"][] }
   { name: "highpass", title: "Rumble high-pass", units: ["hz", "us"] },
   { name: "ultrasonic", title: "Ultrasonic zero", units: ["hz", "us"] },
 ];
-const UNIT_TEXT: Record<CornerInput["unit"], string> = { hz: "Hz", us: "µs", db10k: "dB at 10 kHz" };
+const UNIT_TEXT: Record<CornerInput["unit"], string> = { hz: "Hz", us: "µs", db10k: "dB attenuation at 10 kHz" };
 
 const blankCorners = (): Record<CornerName, CornerDraft> =>
   Object.fromEntries(CORNERS.map((c) => [c.name, { mode: "keep", unit: c.units[0], text: "" }])) as Record<CornerName, CornerDraft>;
 
-/** "318 µs · 500.5 Hz" — a corner as the preset gives it. */
+/** "318 µs (500.5 Hz)" — a corner as the preset gives it, written as everywhere else (lib/curves formatCorner). */
 export function describeCorner(c: CornerInput | null | undefined): string {
-  if (!c) return "none";
-  if (c.unit === "db10k") return `${formatNumber(c.value)} dB at 10 kHz`;
-  if (c.unit === "hz") return `${formatNumber(c.value)} Hz · ${formatNumber(hzToUs(c.value))} µs`;
-  return `${formatNumber(c.value)} µs · ${formatNumber(usToHz(c.value))} Hz`;
+  return formatCorner(c);
 }
 
 function overridesOf(corners: Record<CornerName, CornerDraft>, ref: { on: boolean; hz: string; db: string }): Partial<CurveSpec> {
   const out: Partial<CurveSpec> = {};
   for (const c of CORNERS) {
     const d = corners[c.name];
-    if (d.mode === "set") out[c.name] = { unit: d.unit, value: parseNumber(d.text) };
+    if (d.mode === "set") out[c.name] = { unit: d.unit, value: parseCornerText(d.unit, d.text) };
     else if (d.mode === "remove") out[c.name] = null;
   }
   if (ref.on) out.reference = { hz: parseNumber(ref.hz), db: parseNumber(ref.db) };

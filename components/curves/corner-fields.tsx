@@ -6,7 +6,7 @@
  * field they name.
  */
 import { useId, useState } from "react";
-import { type CornerInput, type CornerName, type CornerUnit, type CurveSpec, db10kToUs, hzToUs, usToDb10k, usToHz } from "@/lib/curves";
+import { type CornerInput, type CornerName, type CornerUnit, type CurveSpec, db10kToUs, hzToUs, parseRolloffDb, usToDb10k, usToHz } from "@/lib/curves";
 import { cx } from "@/components/ui/cx";
 import { formatNumber } from "./plot-format";
 
@@ -27,19 +27,24 @@ interface CornerDef {
 const CORNERS: CornerDef[] = [
   { name: "turnover", title: "Bass turnover", role: "Bass boost rises below it at 6 dB/octave.", units: ["hz", "us"], startUs: 318 },
   { name: "shelf", title: "Low-frequency shelf", role: "Where the bass boost levels off.", units: ["hz", "us"], startUs: 3180 },
-  { name: "rolloff", title: "Treble rolloff", role: "Playback cut in the treble, often quoted at 10 kHz.", units: ["db10k", "us", "hz"], startUs: 75 },
+  { name: "rolloff", title: "Treble rolloff", role: "Playback cut in the treble, quoted as its attenuation at 10 kHz (10 and −10 both mean 10 dB of cut).", units: ["db10k", "us", "hz"], startUs: 75 },
   { name: "highpass", title: "Rumble high-pass", role: "Cuts subsonic rumble below it.", units: ["hz", "us"], startUs: 7950 },
   { name: "ultrasonic", title: "Ultrasonic zero", role: "A rise far above the audio band, from some cutting chains.", units: ["hz", "us"], startUs: 3.18 },
 ];
 
-const UNIT_LABEL: Record<CornerUnit, string> = { hz: "Hz", us: "µs", db10k: "dB at 10 kHz" };
-const UNIT_WORDS: Record<CornerUnit, string> = { hz: "in Hz", us: "in µs", db10k: "in dB at 10 kHz" };
+const UNIT_LABEL: Record<CornerUnit, string> = { hz: "Hz", us: "µs", db10k: "Attenuation at 10 kHz (dB)" };
+const UNIT_WORDS: Record<CornerUnit, string> = { hz: "in Hz", us: "in µs", db10k: "in dB of attenuation at 10 kHz" };
 
 /** Typed text → number; empty or unreadable text gives NaN, which lib/curves refuses with a message naming the field. */
 export function parseNumber(text: string): number {
   const t = text.trim().replace(",", ".");
   if (t === "") return Number.NaN;
   return Number(t);
+}
+
+/** Typed text of a corner in a unit: a rolloff in dB is read as attenuation whichever sign it has (lib/curves parseRolloffDb). */
+export function parseCornerText(unit: CornerUnit, text: string): number {
+  return unit === "db10k" ? parseRolloffDb(text) : parseNumber(text);
 }
 
 function tauOf(input: CornerInput): number {
@@ -96,12 +101,13 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
         </div>
       </div>
       {on ? (
-        <div className={cx("mt-2 grid gap-2", def.units.length === 3 ? "grid-cols-3" : "grid-cols-2")}>
+        <div className="mt-2 grid grid-cols-2 items-end gap-2">
           {def.units.map((unit) => {
             const entered = value.unit === unit;
             const text = draft?.unit === unit ? draft.text : derived(value, unit);
             return (
-              <div key={unit} className="space-y-0.5">
+              // The rolloff's attenuation in dB, the way it is quoted, gets the whole first line.
+              <div key={unit} className={cx("space-y-0.5", unit === "db10k" && "col-span-2")}>
                 <label htmlFor={`${id}-${unit}`} className="flex items-center gap-1 text-xs font-medium text-ink-soft">
                   {UNIT_LABEL[unit]}
                   {entered ? <span className="rounded bg-groove-wash px-1 text-[0.65rem] text-groove">as entered</span> : null}
@@ -118,10 +124,11 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
                   value={text}
                   onChange={(e) => {
                     setDraft({ unit, text: e.target.value });
-                    onChange({ unit, value: parseNumber(e.target.value) });
+                    onChange({ unit, value: parseCornerText(unit, e.target.value) });
                   }}
                   onBlur={() => {
-                    if (draft && Number.isFinite(parseNumber(draft.text))) setDraft(null);
+                    // Once readable, the field shows the value the one way it is always shown (a rolloff as a positive attenuation).
+                    if (draft && Number.isFinite(parseCornerText(draft.unit, draft.text))) setDraft(null);
                   }}
                   className={cx(inputBase, error ? "border-alarm" : "border-paper-edge", entered ? "bg-white text-ink" : "bg-paper/70 text-ink-soft")}
                 />

@@ -229,7 +229,7 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
               Hz
             </th>
             <th scope="col" className="py-1 pr-2 text-right font-semibold">
-              dB at 10 kHz
+              dB attenuation at 10 kHz
             </th>
             <th scope="col" className="py-1 font-semibold">
               &nbsp;

@@ -1,13 +1,7 @@
 /** Number formats shared by the curve plots and fields (one decimal style across the workbench). */
-import type { CornerName } from "@/lib/curves";
-
-/** "500", "50.05", "2122", "15915": four significant figures, no exponent, for inputs and labels. */
-export function formatNumber(value: number, significant = 4): string {
-  if (!Number.isFinite(value)) return "";
-  const abs = Math.abs(value);
-  if (abs >= 10 ** significant) return String(Math.round(value));
-  return String(Number(value.toPrecision(significant)));
-}
+// The number style and corner words are lib/curves' own, so names and plots agree.
+export { CORNER_WORDS, formatNumber } from "@/lib/curves";
+import { formatNumber } from "@/lib/curves";
 
 /** 500 → "500 Hz", 2122 → "2.12 kHz". */
 export function formatHz(hz: number): string {
@@ -35,8 +29,6 @@ export function formatSigned(value: number, digits = 1): string {
   return `${value < 0 ? "−" : "+"}${s}`;
 }
 
-/** A corner's short name, in plot labels and running text ("no high-pass"). */
-export const CORNER_WORDS: Record<CornerName, string> = { turnover: "turnover", shelf: "shelf", rolloff: "rolloff", highpass: "high-pass", ultrasonic: "ultrasonic" };
 
 /** The plot colours, in the order the compare slots take them: groove teal first (the curve being edited). */
 export const CURVE_COLORS = ["#2f6f6a", "#a9591a", "#5a4f9e", "#b03a6f"] as const;

@@ -65,7 +65,7 @@ export function PresetTable() {
       column.accessor("version", { header: "Version", cell: (c) => <span className="font-mono">v{c.getValue()}</span> }),
       column.accessor((r) => r.curve?.turnover?.hz ?? 0, { id: "turnover", header: "Turnover", cell: (c) => <CornerCell corner={c.row.original.curve?.turnover} /> }),
       column.accessor((r) => r.curve?.shelf?.hz ?? 0, { id: "shelf", header: "Shelf", cell: (c) => <CornerCell corner={c.row.original.curve?.shelf} /> }),
-      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, { id: "rolloff", header: "Rolloff (10 kHz)", cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff /> }),
+      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, { id: "rolloff", header: "Rolloff (attenuation at 10 kHz)", cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff /> }),
       column.accessor((r) => r.curve?.highpass?.hz ?? 0, { id: "highpass", header: "High-pass", cell: (c) => <CornerCell corner={c.row.original.curve?.highpass} /> }),
       column.accessor((r) => r.peakGainDb ?? -Infinity, {
         id: "peak",

@@ -268,7 +268,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
         actions={
           <div className="flex items-center gap-2">
             <label htmlFor="sample-rate" className="text-sm text-ink-soft">
-              Sample rate
+              Transfer&apos;s sample rate
             </label>
             <select
               id="sample-rate"
@@ -286,7 +286,9 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
           </div>
         }
       >
-        <p className="mb-3 text-sm text-ink-soft">How closely the filter that renders the access copy follows the analog curve at this rate.</p>
+        <p className="mb-3 text-sm text-ink-soft">
+          How closely the digital filters follow the analog curve at a transfer&apos;s sample rate: the filter that renders the access copies, and the sections the bench listens through.
+        </p>
         <DeviationPlot spec={settledSpec} sampleRateHz={sampleRateHz} />
       </Panel>
 

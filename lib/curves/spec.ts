@@ -4,6 +4,7 @@
  */
 import { CORNER_NAMES, CurveError } from "./types";
 import type { CornerInput, CornerName, CurveSpec, ReferenceLevel, ResolvedCorner, ResolvedCurve } from "./types";
+import { normalizeRolloffDb } from "./names";
 import { db10kToUs, hzToUs, usToDb10k, usToHz } from "./units";
 
 export const DEFAULT_REFERENCE: ReferenceLevel = { hz: 1000, db: 0 };
@@ -22,7 +23,9 @@ function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number)
   if (typeof input !== "object" || input === null) {
     throw new CurveError(name, `${name}: expected { unit, value }.`);
   }
-  const { unit, value } = input;
+  const { unit } = input;
+  // A rolloff in dB at 10 kHz only ever cuts: "−10" and "10" are the same 10 dB of attenuation (names.ts).
+  const value = unit === "db10k" && isFiniteNumber(input.value) ? normalizeRolloffDb(input.value) : input.value;
   if (unit !== "hz" && unit !== "us" && unit !== "db10k") {
     throw new CurveError(name, `${name}: unit must be "hz", "us" or "db10k", got ${JSON.stringify(unit)}.`);
   }
@@ -33,9 +36,6 @@ function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number)
     throw new CurveError(name, `${name}: value must be a finite number, got ${String(value)}.`);
   }
   if (unit === "db10k") {
-    if (value < 0) {
-      throw new CurveError(name, `${name}: attenuation at 10 kHz must be 0 dB or more (0 dB means no rolloff), got ${value}.`);
-    }
     if (value === 0) return null;
     if (value > 60) {
       throw new CurveError(name, `${name}: ${value} dB at 10 kHz is beyond any playback curve (limit 60 dB).`);

@@ -1,5 +1,6 @@
 import "server-only";
 import { db } from "../../db";
+import { curveChoiceName } from "../curves";
 import { readDisc } from "../catalogue/records";
 import { env } from "../env";
 import { AppError } from "../http/errors";
@@ -136,7 +137,7 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
           break;
         case "side.curve_chosen":
         case "side.curve_changed":
-          events.push(ev("metadata modification", `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ${p.preset ? `preset "${p.preset.name}" version ${p.preset.version}` : "values given"}; curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`, entity));
+          events.push(ev("metadata modification", `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ${curveChoiceName({ presetName: p.preset?.name, presetVersion: p.preset?.version, overrides: p.overrides, cutSpeedRpm: Number(p.cutSpeedRpm), transferSpeedRpm: Number(p.transferSpeedRpm) })}; curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`, entity));
           break;
         case "side.approved": {
           // The approval names exactly what it binds: the flat transfer, the curve choice and the render made from them.

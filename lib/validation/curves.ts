@@ -1,11 +1,15 @@
 import { z } from "zod";
+import { normalizeRolloffDb } from "../curves/names";
 
 const finite = (what: string) => z.number({ error: `${what} must be a number.` }).refine(Number.isFinite, `${what} must be a finite number.`);
 
-export const cornerInputSchema = z.object({
-  unit: z.enum(["hz", "us", "db10k"], { error: "Unit must be hz, us or db10k." }),
-  value: finite("The value"),
-});
+/** A corner as sent. A rolloff in dB at 10 kHz is kept as attenuation (≥ 0): −10 and 10 are both 10 dB of cut (lib/curves/names.ts). */
+export const cornerInputSchema = z
+  .object({
+    unit: z.enum(["hz", "us", "db10k"], { error: "Unit must be hz, us or db10k." }),
+    value: finite("The value"),
+  })
+  .transform((c) => (c.unit === "db10k" ? { ...c, value: normalizeRolloffDb(c.value) } : c));
 
 /** The JSON shape of a lib/curves CurveSpec; lib/curves then checks the maths (order of corners, bounded bass). */
 export const curveSpecSchema = z.object({

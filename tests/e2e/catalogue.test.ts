@@ -149,7 +149,7 @@ describe("catalogue", () => {
     await expect(second.page.getByLabel("Label", { exact: true }).inputValue()).resolves.toBe("Varrowby Red Label");
     await second.page.getByTestId("save-disc").click();
     await second.page.waitForURL(`${appUrl}/catalogue/${disc.id}`);
-    await second.page.getByTestId("provenance-timeline").getByText("Label: Varrowby Gold Seal → Varrowby Red Label").waitFor();
+    await second.page.getByTestId("provenance-timeline").getByText("Varrowby Gold Seal → Varrowby Red Label").waitFor();
 
     await first.context.close();
     await second.context.close();

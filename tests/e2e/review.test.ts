@@ -5,8 +5,8 @@
 // reason; Wen (API) changes the curve to a preset, renders again and resubmits; a
 // second curator (made directly in the database, signed in through the page) opens
 // the review, runs "Check fixity now" and approves. The audit page's history of the
-// disc then shows every step. Screenshots "review" and "audit" land in
-// storage/test/screenshots.
+// disc then shows every step, and the disc page's timeline reads as fully. Screenshots
+// "review", "audit" and "disc-timeline" land in storage/test/screenshots.
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
@@ -153,9 +153,12 @@ describe("review and audit", () => {
     const chosen = await api("/api/curve-choices", {
       cookie: cookie.engineer,
       method: "POST",
-      body: { sideIds: [sideId], presetId: riaa.id, presetVersion: riaa.currentVersion, overrides: {}, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale: "Returned for too much bass: the lab's RIAA preset, as the curator asked.", evidenceKind: "listening", evidence: "Compared on the bench around 1:10." },
+      // The rolloff is sent as −13.7 dB: the same attenuation as 13.7, kept and shown as 13.7.
+      body: { sideIds: [sideId], presetId: riaa.id, presetVersion: riaa.currentVersion, overrides: { rolloff: { unit: "db10k", value: -13.7 } }, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale: "Returned for too much bass: the lab's RIAA preset, as the curator asked, with its rolloff given at 10 kHz.", evidenceKind: "listening", evidence: "Compared on the bench around 1:10." },
     });
     expect(chosen.status).toBe(201);
+    const history = await api(`/api/sides/${sideId}/curve-choices`, { cookie: cookie.engineer });
+    expect(history.body.choices[0].overrides.rolloff).toEqual({ unit: "db10k", value: 13.7 });
     // The returned side keeps its flat transfer; with the new curve it needs its render again.
     expect(await sideStatus()).toBe("curve_chosen");
     await renderAndWait();
@@ -169,7 +172,9 @@ describe("review and audit", () => {
     await signIn(page, second.email, second.password);
     await page.goto(`${appUrl}/review/${sideId}`);
     await page.getByTestId("review-title").getByText(shelfMark).waitFor();
-    await page.getByTestId("curve-name").getByText(/^RIAA/).waitFor();
+    // The recorded curve is named with what was changed for the side, here and in the listening list.
+    await page.getByTestId("curve-name").getByText(/^RIAA .* v\d+ \+ rolloff 13\.7 dB attenuation at 10 kHz$/).waitFor();
+    await page.getByTestId("audition-candidates").getByText(/Chosen: RIAA .* v\d+ \+ rolloff 13\.7 dB attenuation at 10 kHz/).waitFor();
     await page.getByTestId("review-history").getByText(returnReason).waitFor();
 
     // Before the new access copy has passed fixity, the server refuses the approval and the page says why.
@@ -228,6 +233,24 @@ describe("review and audit", () => {
     await page.getByTestId("chain-result").waitFor({ timeout: 60_000 });
     await expect.poll(() => page.getByTestId("chain-last").innerText(), { timeout: 15_000 }).toContain(second.name);
     await screenshot(page, "audit");
+
+    // The disc page's timeline reads as the audit page does: which side, which file, which curve, which outcome.
+    await page.goto(`${appUrl}/catalogue/${discId}`);
+    const timeline = page.getByTestId("provenance-timeline");
+    const item = (kind: string) => timeline.locator(`[data-testid="timeline-entry"][data-kind="${kind}"]`);
+    await item("side.approved").waitFor();
+    await expect(item("side.approved").innerText()).resolves.toMatch(new RegExp(`${second.name} approved side A: its flat transfer, curve and access copy`));
+    await expect(item("side.approved").innerText()).resolves.toMatch(/Curve\s*RIAA .* \+ rolloff 13\.7 dB attenuation at 10 kHz/);
+    await expect(item("side.returned").innerText()).resolves.toContain(`returned side A to the engineer: “${returnReason}”`);
+    await expect(item("side.transfer_accepted").innerText()).resolves.toMatch(new RegExp(`uploaded the flat transfer ${shelfMark}_A_flat\\.wav of side A \\(SHA-256 [0-9a-f]{8}…\\)`));
+    await expect(item("side.rendered").first().innerText()).resolves.toMatch(/rendered the access copy of side A .*from .*flat\.wav through RIAA .* \+ rolloff 13\.7 dB attenuation at 10 kHz, at [\d.]+ kHz, \d+-bit \(SHA-256 [0-9a-f]{8}…\)/);
+    const fixity = await item("side.fixity_checked").allInnerTexts();
+    expect(fixity.length).toBeGreaterThanOrEqual(2);
+    for (const text of fixity) expect(text).toMatch(/A fixity check of the (flat transfer \S+\.wav|access copy) of side A \(SHA-256 [0-9a-f]{8}…\) passed\./);
+    expect(fixity.some((t) => /of the flat transfer /.test(t))).toBe(true);
+    expect(fixity.some((t) => /of the access copy /.test(t))).toBe(true);
+    await timeline.scrollIntoViewIfNeeded();
+    await screenshot(page, "disc-timeline");
     await context.close();
   }, 180_000);
 });

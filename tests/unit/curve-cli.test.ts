@@ -38,6 +38,19 @@ describe("curve CLI", { timeout: 60_000 }, () => {
     expect(typeof out.maxPhaseErrorDeg).toBe("number");
   });
 
+  it("reads --rolloff-db as attenuation whichever sign it has, and prints it one way", async () => {
+    const runs = await Promise.all([["10"], ["-10"], ["\u221210"], ["+10"]].map(([db]) => cli(["design", "--turnover-hz", "500", "--shelf-hz", "50", "--rolloff-db", db, "--rate", "48000", "--json"])));
+    const poles = runs.map((r) => {
+      expect(r.code).toBe(0);
+      return JSON.parse(r.stdout).poles;
+    });
+    for (const p of poles) expect(p).toEqual(poles[0]);
+    // τr = sqrt(10^(10/10) − 1)/(2π·10 000) = 47.746 µs (DESIGN.md, "The curve model"): a pole at −1/τr.
+    expect(Math.min(...poles[0])).toBeCloseTo(-1e6 / 47.746, 0);
+    const text = await cli(["design", "--turnover-hz", "500", "--shelf-hz", "50", "--rolloff-db", "-10"]);
+    expect(text.stdout).toContain("10 dB attenuation at 10 kHz");
+  }, 60_000);
+
   it("design --render-filter adds the FIR with its delay", async () => {
     const r = await cli(["design", "--turnover-us", "318", "--shelf-us", "3180", "--rolloff-us", "75", "--rate", "48000", "--render-filter", "--json"]);
     expect(r.code).toBe(0);

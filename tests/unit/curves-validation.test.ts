@@ -13,7 +13,7 @@ describe("curve validation names the parameter", () => {
     ["turnover", { ...riaa, turnover: { unit: "hz", value: 0 } }],
     ["rolloff", { ...riaa, rolloff: { unit: "us", value: Number.NaN } }],
     ["shelf", { ...riaa, shelf: { unit: "us", value: Number.POSITIVE_INFINITY } }],
-    ["rolloff", { ...riaa, rolloff: { unit: "db10k", value: -3 } }],
+    ["rolloff", { ...riaa, rolloff: { unit: "db10k", value: 61 } }],
     ["highpass", { ...riaa, highpass: { unit: "db10k", value: 3 } }],
   ] as [string, CurveSpec][])("refuses a bad %s value", (parameter, spec) => {
     expect(errorOf(() => resolveCurve(spec)).parameter).toBe(parameter);

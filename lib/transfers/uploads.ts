@@ -200,18 +200,53 @@ export async function listUploadedParts(actor: SessionUser, input: unknown) {
   const { uploadId } = uploadRefSchema.parse(input);
   const { upload } = await ownUpload(actor, uploadId);
   await requireOpen(upload);
-  const parts: { partNumber: number; etag: string; size: number }[] = [];
-  let marker: string | undefined;
   try {
-    do {
-      const res = await s3().send(new ListPartsCommand({ Bucket: env().S3_BUCKET, Key: upload.object_key, UploadId: upload.storage_upload_id, PartNumberMarker: marker }));
-      for (const p of res.Parts ?? []) parts.push({ partNumber: p.PartNumber!, etag: p.ETag!, size: Number(p.Size ?? 0) });
-      marker = res.IsTruncated ? res.NextPartNumberMarker : undefined;
-    } while (marker);
+    return { parts: await storedParts(upload) };
   } catch (err) {
     throw storageUnavailable("list the parts already stored", err);
   }
-  return { parts };
+}
+
+type StoredPart = { partNumber: number; etag: string; size: number };
+
+async function storedParts(u: Upload): Promise<StoredPart[]> {
+  const parts: StoredPart[] = [];
+  let marker: string | undefined;
+  do {
+    const res = await s3().send(new ListPartsCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id, PartNumberMarker: marker }));
+    for (const p of res.Parts ?? []) parts.push({ partNumber: p.PartNumber!, etag: p.ETag!, size: Number(p.Size ?? 0) });
+    marker = res.IsTruncated ? res.NextPartNumberMarker : undefined;
+  } while (marker);
+  return parts;
+}
+
+/** The size part `n` must have: the part size, the rest of the declared bytes for the last. */
+const expectedPartSize = (u: Upload, n: number) => (n < u.part_count ? u.part_size : u.declared_bytes - (u.part_count - 1) * u.part_size);
+const bareEtag = (etag: string) => etag.replace(/"/g, "");
+
+/**
+ * Before asking the storage to assemble anything: every part the client names is stored,
+ * is the one it sent (same ETag), and has the size the declared size gives it. A storage
+ * that cannot list parts (the local stand-in) is checked after assembly instead.
+ */
+async function checkStoredParts(u: Upload, parts: { partNumber: number; etag: string }[]): Promise<void> {
+  let stored: StoredPart[];
+  try {
+    stored = await storedParts(u);
+  } catch (err) {
+    const { status } = storageAnswer(err);
+    if (status === 405 || status === 501) return;
+    if (status === 404) throw refusal("The storage no longer holds this upload's parts. Upload the file again.", undefined, 409);
+    throw storageUnavailable("list the uploaded parts", err);
+  }
+  const byNumber = new Map(stored.map((p) => [p.partNumber, p]));
+  for (const { partNumber, etag } of parts) {
+    const p = byNumber.get(partNumber);
+    if (!p) throw refusal(`Part ${partNumber} never reached the storage. Upload the file again.`, { parts: [`Part ${partNumber} is missing.`] });
+    if (bareEtag(p.etag) !== bareEtag(etag)) throw refusal(`Part ${partNumber} in the storage is not the one your browser sent. Upload the file again.`, { parts: [`Part ${partNumber} differs.`] });
+    const want = expectedPartSize(u, partNumber);
+    if (p.size !== want) throw refusal(`Part ${partNumber} has ${p.size} bytes, but an upload started for ${u.declared_bytes} bytes needs ${want} there. Upload the file again.`, { parts: [`Part ${partNumber} has the wrong size.`] });
+  }
 }
 
 /** Cancels an open upload and drops what it stored. Cancelling one already cancelled answers the same. */
@@ -319,6 +354,7 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
       const expected = upload.part_count === 1 ? "part 1" : `parts 1 to ${upload.part_count}`;
       throw refusal(`An upload of ${declared} bytes is made of ${expected}, each once. Upload the file again.`, { parts: [`Send ${expected}.`] });
     }
+    await checkStoredParts(upload, parts);
     await assemble(upload, parts);
     const stored = await objectSource(upload.object_key).catch((err) => {
       throw storageUnavailable("read the uploaded file", err);

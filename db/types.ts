@@ -215,7 +215,31 @@ export interface TransfersTable {
   chain: Generated<string>;
   derived_from: string | null;
   uploaded_by: string;
+  /** The upload it came from (null only for transfers recorded before uploads were kept). */
+  upload_id: string | null;
   created_at: DefaultTimestamp;
+}
+
+export type UploadState = "open" | "completing" | "completed" | "aborted" | "refused";
+
+export interface UploadsTable {
+  id: string;
+  side_id: string;
+  started_by: string;
+  object_key: string;
+  storage_upload_id: string;
+  file_name: string;
+  declared_bytes: ColumnType<number, number, never>;
+  part_size: ColumnType<number, number, never>;
+  part_count: number;
+  state: Generated<UploadState>;
+  claim: string | null;
+  claimed_at: Timestamp | null;
+  reason: string | null;
+  expires_at: Timestamp;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+  finished_at: Timestamp | null;
 }
 
 export type RenderStatus = "queued" | "running" | "done" | "failed";
@@ -310,6 +334,7 @@ export interface Database {
   lab_settings: LabSettingsTable;
   curve_choices: CurveChoicesTable;
   transfers: TransfersTable;
+  uploads: UploadsTable;
   renders: RendersTable;
   curve_presets: CurvePresetsTable;
   curve_preset_versions: CurvePresetVersionsTable;

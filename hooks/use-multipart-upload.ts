@@ -4,8 +4,8 @@
  * hashing it (SHA-256) on the way. The file is read one part at a time, in
  * order: each slice is hashed, then sent, with at most three parts in flight, so
  * memory stays at a few parts whatever the file's size. A failed part is retried
- * up to three times with a fresh URL. The upload's key and id are kept in
- * sessionStorage (per side, file name and size), so "try again" after a failure
+ * up to three times with a fresh URL. The upload's id (the only name the server
+ * takes for it) is kept in sessionStorage (per side, file name and size), so "try again" after a failure
  * or a reload lists the parts already stored and sends only the rest (they are
  * still read and hashed: the checksum covers the whole file).
  */
@@ -44,19 +44,26 @@ export interface UploadState {
   error: string | null;
   /** Field errors from the server (stylus, speed, chain). */
   fields: Record<string, string[]> | null;
+  /** Whether "try again" picks up the same upload (false once the server has refused or closed it). */
+  resumable: boolean;
   result: AcceptedTransfer | null;
 }
 
 interface Session {
-  key: string;
   uploadId: string;
   partSize: number;
   partCount: number;
 }
 
-const idle: UploadState = { phase: "idle", fileName: null, totalBytes: 0, sentBytes: 0, hashedBytes: 0, resumedParts: 0, error: null, fields: null, result: null };
+const idle: UploadState = { phase: "idle", fileName: null, totalBytes: 0, sentBytes: 0, hashedBytes: 0, resumedParts: 0, error: null, fields: null, resumable: false, result: null };
 
-const storageKey = (sideId: string, file: File) => `rillbook:upload:${sideId}:${file.name}:${file.size}`;
+/** The server has closed the upload (refused, completed, cancelled, expired): a new try starts a new one. */
+function uploadClosed(err: unknown): boolean {
+  const state = err instanceof AppError ? (err.details as { uploadState?: string } | undefined)?.uploadState : undefined;
+  return state !== undefined && state !== "completing";
+}
+
+const storageKey = (sideId: string, file: File) => `rillbook:upload:v2:${sideId}:${file.name}:${file.size}`;
 
 function readSession(k: string): Session | null {
   try {
@@ -114,7 +121,7 @@ export function useMultipartUpload() {
       session = readSession(sk);
       if (session) {
         try {
-          const listed = await fetchJson<{ parts: { partNumber: number; etag: string; size: number }[] }>(`/api/uploads?key=${encodeURIComponent(session.key)}&uploadId=${encodeURIComponent(session.uploadId)}`);
+          const listed = await fetchJson<{ parts: { partNumber: number; etag: string; size: number }[] }>(`/api/uploads?uploadId=${encodeURIComponent(session.uploadId)}`);
           const expected = (n: number) => Math.min(session!.partSize, file.size - (n - 1) * session!.partSize);
           done = new Map(listed.parts.filter((p) => p.size === expected(p.partNumber)).map((p) => [p.partNumber, p.etag]));
         } catch {
@@ -125,13 +132,13 @@ export function useMultipartUpload() {
       const urls = new Map<number, string>();
       if (!session) {
         const started = await fetchJson<Session & { urls: { partNumber: number; url: string }[] }>("/api/uploads", { method: "POST", body: JSON.stringify({ sideId, fileName: file.name, bytes: file.size }) });
-        session = { key: started.key, uploadId: started.uploadId, partSize: started.partSize, partCount: started.partCount };
+        session = { uploadId: started.uploadId, partSize: started.partSize, partCount: started.partCount };
         sessionStorage.setItem(sk, JSON.stringify(session));
         for (const u of started.urls) urls.set(u.partNumber, u.url);
       }
       const s = session;
       const sign = async (partNumbers: number[]) => {
-        const r = await fetchJson<{ urls: { partNumber: number; url: string }[] }>("/api/uploads/parts", { method: "POST", body: JSON.stringify({ key: s.key, uploadId: s.uploadId, partNumbers }) });
+        const r = await fetchJson<{ urls: { partNumber: number; url: string }[] }>("/api/uploads/parts", { method: "POST", body: JSON.stringify({ uploadId: s.uploadId, partNumbers }) });
         for (const u of r.urls) urls.set(u.partNumber, u.url);
       };
       const urlFor = async (n: number) => {
@@ -215,27 +222,29 @@ export function useMultipartUpload() {
       try {
         const result = await fetchJson<AcceptedTransfer>("/api/uploads/complete", {
           method: "POST",
-          body: JSON.stringify({ key: s.key, uploadId: s.uploadId, parts, sha256, bytes: file.size, ...details }),
+          body: JSON.stringify({ uploadId: s.uploadId, parts, sha256, bytes: file.size, ...details }),
         });
         sessionStorage.removeItem(sk);
         setState((st) => ({ ...st, phase: "done", result }));
         return result;
       } catch (err) {
-        // 422: the server refused the file and deleted what was stored; a new try starts afresh.
-        if (err instanceof AppError && err.status === 422 && !err.fields) sessionStorage.removeItem(sk);
+        // Refused (and what was stored deleted), or already closed: a new try starts afresh.
+        if (uploadClosed(err)) sessionStorage.removeItem(sk);
         throw err;
       }
     } catch (err) {
       if (err instanceof Cancelled || cancelled) {
         if (session) {
-          await fetchJson("/api/uploads/abort", { method: "POST", body: JSON.stringify({ key: session.key, uploadId: session.uploadId }) }).catch(() => undefined);
+          await fetchJson("/api/uploads/abort", { method: "POST", body: JSON.stringify({ uploadId: session.uploadId }) }).catch(() => undefined);
           sessionStorage.removeItem(sk);
         }
         setState((st) => ({ ...st, phase: "cancelled", error: null }));
         return null;
       }
+      if (uploadClosed(err)) sessionStorage.removeItem(sk);
       const fields = err instanceof AppError && err.fields ? err.fields : null;
-      setState((st) => ({ ...st, phase: "failed", error: err instanceof Error ? err.message : String(err), fields }));
+      const resumable = !fields && !uploadClosed(err);
+      setState((st) => ({ ...st, phase: "failed", error: err instanceof Error ? err.message : String(err), fields, resumable }));
       return null;
     } finally {
       cancelRef.current = null;

@@ -111,7 +111,7 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
 
       {state.phase === "failed" && state.error ? (
         <Notice tone="error" title="The transfer was not accepted" testId="upload-error">
-          {state.error} {state.fields ? null : "Try again to pick up where it stopped."}
+          {state.error} {state.resumable ? "Try again to pick up where it stopped." : null}
         </Notice>
       ) : null}
       {state.phase === "cancelled" ? <Notice tone="info">Upload cancelled; nothing was kept.</Notice> : null}

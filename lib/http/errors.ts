@@ -9,6 +9,7 @@ export type ErrorCode =
   | "expired"
   | "used"
   | "throttled"
+  | "unavailable"
   | "internal";
 
 /** The one error type: a code, an HTTP status, a message a person can act on, and field errors. */

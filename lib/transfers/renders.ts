@@ -6,6 +6,7 @@ import { z } from "zod";
 import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
+import { attachmentDisposition } from "../http/content-disposition";
 import { AppError } from "../http/errors";
 import { RENDER_QUEUE } from "../jobs/boss";
 import { sendInTransaction } from "../jobs/web-boss";
@@ -127,8 +128,9 @@ export async function listTransfers(sideId: string) {
     .execute();
 }
 
+/** The download is named from stored text (a shelf mark, an engineer's file name): made safe for a header whatever it holds. */
 async function presignedGet(key: string, fileName: string): Promise<string> {
-  return getSignedUrl(s3(), new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: key, ResponseContentDisposition: `attachment; filename="${fileName.replace(/"/g, "")}"` }), { expiresIn: 3600 });
+  return getSignedUrl(s3(), new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: key, ResponseContentDisposition: attachmentDisposition(fileName, "transfer.wav") }), { expiresIn: 3600 });
 }
 
 /** A short-lived URL to a transfer (flat) or an access copy, for download or for playback by byte ranges. */

@@ -4,11 +4,14 @@ import {
   AbortMultipartUploadCommand,
   CompleteMultipartUploadCommand,
   CreateMultipartUploadCommand,
+  HeadObjectCommand,
   ListPartsCommand,
   UploadPartCommand,
 } from "@aws-sdk/client-s3";
 import { getSignedUrl } from "@aws-sdk/s3-request-presigner";
+import { type Selectable, sql } from "kysely";
 import { db } from "../../db";
+import type { UploadsTable } from "../../db/types";
 import { readWavHeader, WavError } from "../audio";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
@@ -19,7 +22,17 @@ import { deleteObject, hashObject, objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { completeUploadSchema, signPartsSchema, startUploadSchema, uploadableStatuses, uploadRefSchema } from "../validation/transfers";
 
+type Upload = Selectable<UploadsTable>;
+
 const urlLifetimeSeconds = 3600;
+/** An upload can be resumed for a day; after that it is refused and what it stored is dropped. */
+export const uploadLifetimeHours = 24;
+/**
+ * A completion holds its upload while the file is assembled and checked (a 64 GiB file
+ * takes minutes to hash). One that has held it this long has died with its server, and
+ * another completion may take over; the claim it held no longer lets it finish.
+ */
+const claimLeaseMinutes = 120;
 
 /** 8 MiB parts, larger when needed to stay within S3's 10 000 parts. */
 export function partSizeFor(bytes: number): number {
@@ -27,8 +40,12 @@ export function partSizeFor(bytes: number): number {
   return Math.max(min, Math.ceil(bytes / 10_000 / min) * min);
 }
 
-function safeName(name: string): string {
-  return name.replace(/[^A-Za-z0-9._-]+/g, "_").slice(0, 120) || "transfer.wav";
+/**
+ * The object key of an upload: made only of server-made ids, so nothing the client sends
+ * can name another side's file (the database checks the same shape).
+ */
+function objectKeyFor(sideId: string, uploadId: string): string {
+  return `transfers/${sideId}/${uploadId}/flat.wav`;
 }
 
 async function sideForUpload(actor: SessionUser, sideId: string) {
@@ -41,97 +58,332 @@ async function sideForUpload(actor: SessionUser, sideId: string) {
   return side;
 }
 
-/** The key names the side, so completing an upload can check the side again. */
-function sideIdOfKey(key: string): string {
-  const m = /^transfers\/([0-9a-f-]{36})\/[0-9a-f-]{36}\//.exec(key);
-  if (!m) throw new AppError("invalid", 422, "That upload key is not one Rillbook made.", { key: ["Unknown upload."] });
-  return m[1];
+/** The signed-in person's own upload, on a side still assigned to them and open to a transfer. */
+async function ownUpload(actor: SessionUser, uploadId: string) {
+  const upload = await db.selectFrom("uploads").selectAll().where("id", "=", uploadId).executeTakeFirst();
+  // Someone else's upload is not told apart from one that does not exist.
+  if (!upload || upload.started_by !== actor.id) throw new AppError("not_found", 404, "No such upload of yours. Start the upload again.");
+  const side = await sideForUpload(actor, upload.side_id);
+  return { upload, side };
 }
 
-async function signParts(key: string, uploadId: string, partNumbers: number[]) {
+const isExpired = (u: Upload) => new Date(u.expires_at).getTime() <= Date.now();
+
+/** Why a finished (or expired) upload takes nothing more; `details.uploadState` tells the browser not to resume it. */
+function closedError(u: Upload): AppError {
+  const why = u.reason ? ` (${u.reason})` : "";
+  const details = (uploadState: string) => ({ uploadState });
+  switch (u.state) {
+    case "completed":
+      return new AppError("conflict", 409, "This upload is already complete and its transfer recorded: there is nothing more to send for it.", undefined, details("completed"));
+    case "completing":
+      return new AppError("conflict", 409, "This upload is being completed by another request right now: wait for that answer.", undefined, details("completing"));
+    case "aborted":
+      return new AppError("conflict", 409, `This upload was cancelled${why}. Start the upload again.`, undefined, details("aborted"));
+    case "refused":
+      return new AppError("conflict", 409, `This upload was not accepted${why}. Start the upload again.`, undefined, details("refused"));
+    case "open":
+      return new AppError("expired", 410, `This upload expired (uploads can be resumed for ${uploadLifetimeHours} hours). Start the upload again.`, undefined, details("expired"));
+  }
+}
+
+function storageUnavailable(what: string, err: unknown): AppError {
+  console.error(`[rillbook] storage could not ${what}:`, err);
+  return new AppError("unavailable", 503, `The storage could not ${what} just now. Try again in a moment.`);
+}
+
+/** The HTTP status and error code of a refusal from the storage, when it gave one. */
+function storageAnswer(err: unknown): { status?: number; code?: string } {
+  const e = err as { name?: string; Code?: string; $metadata?: { httpStatusCode?: number } } | null;
+  return { status: e?.$metadata?.httpStatusCode, code: e?.Code ?? e?.name };
+}
+
+async function objectExists(key: string): Promise<boolean> {
+  try {
+    await s3().send(new HeadObjectCommand({ Bucket: env().S3_BUCKET, Key: key }));
+    return true;
+  } catch (err) {
+    if (storageAnswer(err).status === 404) return false;
+    throw storageUnavailable("look at the uploaded file", err);
+  }
+}
+
+/** Drops whatever this upload stored: its unassembled parts and its assembled object. Only ever its own key. */
+async function dropStored(u: Upload): Promise<void> {
+  await s3()
+    .send(new AbortMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id }))
+    .catch(() => undefined); // already assembled or already gone; a bucket lifecycle rule sweeps what remains.
+  await deleteObject(u.object_key).catch((err) => console.error(`[rillbook] could not delete ${u.object_key}:`, err));
+}
+
+/** An open upload past its time: marked aborted and its parts dropped, once. */
+async function expire(u: Upload): Promise<void> {
+  const done = await db
+    .updateTable("uploads")
+    .set({ state: "aborted", reason: "expired", finished_at: sql`now()`, updated_at: sql`now()` })
+    .where("id", "=", u.id)
+    .where("state", "=", "open")
+    .where("expires_at", "<=", sql<Date>`now()`)
+    .executeTakeFirst();
+  if (Number(done.numUpdatedRows) > 0) await dropStored(u);
+}
+
+/** The upload must be open and within its time to take more parts or a completion. */
+async function requireOpen(u: Upload): Promise<void> {
+  if (u.state !== "open") throw closedError(u);
+  if (isExpired(u)) {
+    await expire(u);
+    throw closedError(u);
+  }
+}
+
+async function signParts(u: Upload, partNumbers: number[]) {
+  const beyond = partNumbers.filter((n) => n > u.part_count);
+  if (beyond.length) {
+    const message = `This upload was started for ${u.declared_bytes} bytes: ${u.part_count === 1 ? "one part" : `${u.part_count} parts`} of up to ${u.part_size} bytes. There is no part ${beyond[0]}.`;
+    throw new AppError("invalid", 422, message, { partNumbers: [message] });
+  }
+  const expiresIn = Math.max(1, Math.min(urlLifetimeSeconds, Math.floor((new Date(u.expires_at).getTime() - Date.now()) / 1000)));
   return Promise.all(
-    partNumbers.map(async (partNumber) => ({
+    [...new Set(partNumbers)].map(async (partNumber) => ({
       partNumber,
-      url: await getSignedUrl(s3(), new UploadPartCommand({ Bucket: env().S3_BUCKET, Key: key, UploadId: uploadId, PartNumber: partNumber }), { expiresIn: urlLifetimeSeconds }),
+      url: await getSignedUrl(s3(), new UploadPartCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id, PartNumber: partNumber }), { expiresIn }),
     })),
   );
 }
 
+/**
+ * Starts an upload: the server makes its id and key, asks the storage for a multipart
+ * upload, and remembers both with the declared size. The client gets the upload's id
+ * (the only name it uses from now on), the part size and the first part URLs.
+ */
 export async function startUpload(actor: SessionUser, input: unknown) {
   const { sideId, fileName, bytes } = startUploadSchema.parse(input);
   await sideForUpload(actor, sideId);
-  const key = `transfers/${sideId}/${randomUUID()}/${safeName(fileName)}`;
-  const created = await s3().send(new CreateMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, ContentType: "audio/wav" }));
+  const id = randomUUID();
+  const key = objectKeyFor(sideId, id);
   const partSize = partSizeFor(bytes);
   const partCount = Math.ceil(bytes / partSize);
+  let storageUploadId: string;
+  try {
+    const created = await s3().send(new CreateMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, ContentType: "audio/wav" }));
+    if (!created.UploadId) throw new Error("the storage gave no upload id");
+    storageUploadId = created.UploadId;
+  } catch (err) {
+    throw storageUnavailable("start the upload", err);
+  }
+  const values = { id, side_id: sideId, started_by: actor.id, object_key: key, storage_upload_id: storageUploadId, file_name: fileName, declared_bytes: bytes, part_size: partSize, part_count: partCount };
+  let upload: Upload;
+  try {
+    upload = await db
+      .insertInto("uploads")
+      .values({ ...values, expires_at: sql<Date>`now() + make_interval(hours => ${uploadLifetimeHours})` })
+      .returningAll()
+      .executeTakeFirstOrThrow();
+  } catch (err) {
+    await s3().send(new AbortMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, UploadId: storageUploadId })).catch(() => undefined);
+    throw err;
+  }
   const first = Array.from({ length: Math.min(partCount, 100) }, (_, i) => i + 1);
-  return { key, uploadId: created.UploadId!, partSize, partCount, urls: await signParts(key, created.UploadId!, first) };
+  return { uploadId: id, partSize, partCount, expiresAt: upload.expires_at, urls: await signParts(upload, first) };
 }
 
-/** Fresh URLs for given parts (more parts, or a retry after a failure), and the parts already stored. */
+/** Fresh URLs for given parts (more parts, or a retry after a failure), never beyond the declared size. */
 export async function signUploadParts(actor: SessionUser, input: unknown) {
-  const { key, uploadId, partNumbers } = signPartsSchema.parse(input);
-  await sideForUpload(actor, sideIdOfKey(key));
-  return { urls: await signParts(key, uploadId, partNumbers) };
+  const { uploadId, partNumbers } = signPartsSchema.parse(input);
+  const { upload } = await ownUpload(actor, uploadId);
+  await requireOpen(upload);
+  return { urls: await signParts(upload, partNumbers) };
 }
 
+/** The parts already stored, to resume after a failure. */
 export async function listUploadedParts(actor: SessionUser, input: unknown) {
-  const { key, uploadId } = uploadRefSchema.parse(input);
-  await sideForUpload(actor, sideIdOfKey(key));
-  const parts: { partNumber: number; etag: string; size: number }[] = [];
+  const { uploadId } = uploadRefSchema.parse(input);
+  const { upload } = await ownUpload(actor, uploadId);
+  await requireOpen(upload);
+  try {
+    return { parts: await storedParts(upload) };
+  } catch (err) {
+    throw storageUnavailable("list the parts already stored", err);
+  }
+}
+
+type StoredPart = { partNumber: number; etag: string; size: number };
+
+async function storedParts(u: Upload): Promise<StoredPart[]> {
+  const parts: StoredPart[] = [];
   let marker: string | undefined;
   do {
-    const res = await s3().send(new ListPartsCommand({ Bucket: env().S3_BUCKET, Key: key, UploadId: uploadId, PartNumberMarker: marker }));
+    const res = await s3().send(new ListPartsCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id, PartNumberMarker: marker }));
     for (const p of res.Parts ?? []) parts.push({ partNumber: p.PartNumber!, etag: p.ETag!, size: Number(p.Size ?? 0) });
     marker = res.IsTruncated ? res.NextPartNumberMarker : undefined;
   } while (marker);
-  return { parts };
+  return parts;
 }
 
+/** The size part `n` must have: the part size, the rest of the declared bytes for the last. */
+const expectedPartSize = (u: Upload, n: number) => (n < u.part_count ? u.part_size : u.declared_bytes - (u.part_count - 1) * u.part_size);
+const bareEtag = (etag: string) => etag.replace(/"/g, "");
+
+/**
+ * Before asking the storage to assemble anything: every part the client names is stored,
+ * is the one it sent (same ETag), and has the size the declared size gives it. A storage
+ * that cannot list parts (the local stand-in) is checked after assembly instead.
+ */
+async function checkStoredParts(u: Upload, parts: { partNumber: number; etag: string }[]): Promise<void> {
+  let stored: StoredPart[];
+  try {
+    stored = await storedParts(u);
+  } catch (err) {
+    const { status } = storageAnswer(err);
+    if (status === 405 || status === 501) return;
+    if (status === 404) throw refusal("The storage no longer holds this upload's parts. Upload the file again.", undefined, 409);
+    throw storageUnavailable("list the uploaded parts", err);
+  }
+  const byNumber = new Map(stored.map((p) => [p.partNumber, p]));
+  for (const { partNumber, etag } of parts) {
+    const p = byNumber.get(partNumber);
+    if (!p) throw refusal(`Part ${partNumber} never reached the storage. Upload the file again.`, { parts: [`Part ${partNumber} is missing.`] });
+    if (bareEtag(p.etag) !== bareEtag(etag)) throw refusal(`Part ${partNumber} in the storage is not the one your browser sent. Upload the file again.`, { parts: [`Part ${partNumber} differs.`] });
+    const want = expectedPartSize(u, partNumber);
+    if (p.size !== want) throw refusal(`Part ${partNumber} has ${p.size} bytes, but an upload started for ${u.declared_bytes} bytes needs ${want} there. Upload the file again.`, { parts: [`Part ${partNumber} has the wrong size.`] });
+  }
+}
+
+/** Cancels an open upload and drops what it stored. Cancelling one already cancelled answers the same. */
 export async function abortUpload(actor: SessionUser, input: unknown) {
-  const { key, uploadId } = uploadRefSchema.parse(input);
-  await sideForUpload(actor, sideIdOfKey(key));
-  await s3().send(new AbortMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, UploadId: uploadId }));
+  const { uploadId } = uploadRefSchema.parse(input);
+  const { upload } = await ownUpload(actor, uploadId);
+  if (upload.state === "aborted") return { aborted: true };
+  const done = await db
+    .updateTable("uploads")
+    .set({ state: "aborted", reason: "cancelled", finished_at: sql`now()`, updated_at: sql`now()` })
+    .where("id", "=", upload.id)
+    .where("state", "=", "open")
+    .executeTakeFirst();
+  if (Number(done.numUpdatedRows) === 0) {
+    const now = await db.selectFrom("uploads").selectAll().where("id", "=", upload.id).executeTakeFirstOrThrow();
+    if (now.state === "aborted") return { aborted: true };
+    throw closedError(now);
+  }
+  await dropStored(upload);
   return { aborted: true };
 }
 
+/** A check the file failed: the upload is refused and what it stored is deleted. */
+class Refusal extends Error {
+  constructor(readonly error: AppError) {
+    super(error.message);
+  }
+}
+
+const refusal = (message: string, fields?: Record<string, string[]>, status = 422) => new Refusal(new AppError("invalid", status, message, fields, { uploadState: "refused" }));
+
 /**
- * Completes the upload, then checks what arrived before accepting it: the size, the
- * SHA-256 (recomputed by streaming the stored object), and the WAV/BWF/RF64 header. Any
- * failure deletes the object and writes nothing; success records the transfer and its
- * event and moves the side to "transferred", in one transaction.
+ * Takes the upload for one completion. A conditional update, so of two completions sent
+ * at once exactly one proceeds; the other is told why not.
+ */
+async function claimForCompletion(u: Upload): Promise<string> {
+  const claim = randomUUID();
+  const taken = await db
+    .updateTable("uploads")
+    .set({ state: "completing", claim, claimed_at: sql`now()`, updated_at: sql`now()` })
+    .where("id", "=", u.id)
+    .where("expires_at", ">", sql<Date>`now()`)
+    .where((eb) => eb.or([eb("state", "=", "open"), eb.and([eb("state", "=", "completing"), eb("claimed_at", "<", sql<Date>`now() - make_interval(mins => ${claimLeaseMinutes})`)])]))
+    .executeTakeFirst();
+  if (Number(taken.numUpdatedRows) === 1) return claim;
+  const now = await db.selectFrom("uploads").selectAll().where("id", "=", u.id).executeTakeFirstOrThrow();
+  if (now.state === "open" && isExpired(now)) await expire(now);
+  throw closedError(now);
+}
+
+/** Gives the upload back as open (a passing failure: the storage did not answer), if this completion still holds it. */
+async function release(u: Upload, claim: string): Promise<void> {
+  await db.updateTable("uploads").set({ state: "open", claim: null, claimed_at: null, updated_at: sql`now()` }).where("id", "=", u.id).where("claim", "=", claim).execute();
+}
+
+/** Refuses the upload and deletes what it stored, if this completion still holds it: never anything but its own object. */
+async function refuse(u: Upload, claim: string, reason: string): Promise<void> {
+  const done = await db
+    .updateTable("uploads")
+    .set({ state: "refused", reason: reason.slice(0, 1000), claim: null, claimed_at: null, finished_at: sql`now()`, updated_at: sql`now()` })
+    .where("id", "=", u.id)
+    .where("claim", "=", claim)
+    .executeTakeFirst();
+  if (Number(done.numUpdatedRows) > 0) await dropStored(u);
+}
+
+/** Asks the storage to assemble the parts into the upload's own object. */
+async function assemble(u: Upload, parts: { partNumber: number; etag: string }[]): Promise<void> {
+  try {
+    await s3().send(
+      new CompleteMultipartUploadCommand({
+        Bucket: env().S3_BUCKET,
+        Key: u.object_key,
+        UploadId: u.storage_upload_id,
+        MultipartUpload: { Parts: parts.map((p) => ({ PartNumber: p.partNumber, ETag: p.etag })) },
+      }),
+    );
+  } catch (err) {
+    // A completion that died after the storage assembled the file left it in place; this key is this upload's alone.
+    if (await objectExists(u.object_key)) return;
+    const { status, code } = storageAnswer(err);
+    if (status === 404) throw refusal("The storage no longer holds this upload's parts. Upload the file again.", undefined, 409);
+    if (status !== undefined && status >= 400 && status < 500) throw refusal(`The storage refused to put the parts together (${code ?? status}). Upload the file again.`);
+    throw storageUnavailable("put the uploaded parts together", err);
+  }
+}
+
+/**
+ * Completes an upload the signed-in person started, then checks what arrived before
+ * accepting it: the size declared at the start, the SHA-256 (recomputed by streaming the
+ * stored object), and the WAV/BWF/RF64 header. A failed check refuses the upload and
+ * deletes its own object; success records the transfer and its event and moves the side
+ * to "transferred", in one transaction.
  */
 export async function completeUpload(actor: SessionUser, input: unknown) {
   const c = completeUploadSchema.parse(input);
-  const side = await sideForUpload(actor, sideIdOfKey(c.key));
-  await s3().send(
-    new CompleteMultipartUploadCommand({
-      Bucket: env().S3_BUCKET,
-      Key: c.key,
-      UploadId: c.uploadId,
-      MultipartUpload: { Parts: [...c.parts].sort((a, b) => a.partNumber - b.partNumber).map((p) => ({ PartNumber: p.partNumber, ETag: p.etag })) },
-    }),
-  );
+  const { upload, side } = await ownUpload(actor, c.uploadId);
+  if (upload.state !== "open" && upload.state !== "completing") throw closedError(upload);
+  const claim = await claimForCompletion(upload);
   try {
-    const { sha256, bytes } = await hashObject(c.key);
-    if (bytes !== c.bytes) throw new AppError("invalid", 422, `The stored file has ${bytes} bytes, not the ${c.bytes} that were sent: the upload is incomplete. Upload it again.`);
-    if (sha256 !== c.sha256) throw new AppError("invalid", 422, `The stored file's SHA-256 (${sha256.slice(0, 12)}…) does not match the one your browser computed (${c.sha256.slice(0, 12)}…). Upload it again.`);
+    const declared = upload.declared_bytes;
+    if (c.bytes !== declared) throw refusal(`The file has ${c.bytes} bytes, but this upload was started for ${declared}. Upload the file again.`, { bytes: ["Not the size the upload was started for."] });
+    const parts = [...c.parts].sort((a, b) => a.partNumber - b.partNumber);
+    if (parts.length !== upload.part_count || parts.some((p, i) => p.partNumber !== i + 1)) {
+      const expected = upload.part_count === 1 ? "part 1" : `parts 1 to ${upload.part_count}`;
+      throw refusal(`An upload of ${declared} bytes is made of ${expected}, each once. Upload the file again.`, { parts: [`Send ${expected}.`] });
+    }
+    await checkStoredParts(upload, parts);
+    await assemble(upload, parts);
+    const stored = await objectSource(upload.object_key).catch((err) => {
+      throw storageUnavailable("read the uploaded file", err);
+    });
+    if (stored.size !== declared) throw refusal(`The stored file has ${stored.size} bytes, not the ${declared} this upload was started for. Upload the file again.`);
+    const { sha256, bytes } = await hashObject(upload.object_key).catch((err) => {
+      throw storageUnavailable("read the uploaded file", err);
+    });
+    if (bytes !== declared) throw refusal(`The stored file has ${bytes} bytes, not the ${declared} this upload was started for. Upload the file again.`);
+    if (sha256 !== c.sha256) throw refusal(`The stored file's SHA-256 (${sha256.slice(0, 12)}…) does not match the one your browser computed (${c.sha256.slice(0, 12)}…). Upload it again.`);
     let header;
     try {
-      header = await readWavHeader(await objectSource(c.key));
+      header = await readWavHeader(stored);
     } catch (err) {
-      if (err instanceof WavError) throw new AppError("invalid", 422, `Not accepted: ${err.message}`, { file: [err.message] });
-      throw err;
+      if (err instanceof WavError) throw refusal(`Not accepted: ${err.message}`, { file: [err.message] });
+      throw storageUnavailable("read the uploaded file's header", err);
     }
     return await db.transaction().execute(async (trx) => {
+      const held = await trx.selectFrom("uploads").select(["state", "claim"]).where("id", "=", upload.id).forUpdate().executeTakeFirstOrThrow();
+      if (held.state !== "completing" || held.claim !== claim) throw new AppError("conflict", 409, "This upload was taken over by another completion: wait for that answer.");
       const locked = await lockSide(trx, side.id);
-      const fileName = c.key.split("/").pop()!;
       const row = await trx
         .insertInto("transfers")
         .values({
           side_id: side.id,
-          object_key: c.key,
-          file_name: fileName,
+          upload_id: upload.id,
+          object_key: upload.object_key,
+          file_name: upload.file_name,
           sha256,
           bytes,
           container: header.container,
@@ -165,15 +417,21 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
         subjectType: "side",
         subjectId: side.id,
         discId: side.disc_id,
-        payload: { side: side.designation, transferId: row.id, objectKey: c.key, bytes, sha256, technical, bext: header.bext ?? null, stylusSize: c.stylusSize, stylusShape: c.stylusShape, measuredSpeedRpm: c.measuredSpeedRpm ?? null, chain: c.chain },
+        payload: { side: side.designation, transferId: row.id, uploadId: upload.id, objectKey: upload.object_key, fileName: upload.file_name, bytes, sha256, technical, bext: header.bext ?? null, stylusSize: c.stylusSize, stylusShape: c.stylusShape, measuredSpeedRpm: c.measuredSpeedRpm ?? null, chain: c.chain },
       });
       // The new transfer is the side's current one; what was rendered from the old one is superseded.
       await transferAccepted(trx, actor, locked, row.id);
+      await trx.updateTable("uploads").set({ state: "completed", claim: null, claimed_at: null, finished_at: sql`now()`, updated_at: sql`now()` }).where("id", "=", upload.id).execute();
       return { transferId: row.id, sha256, bytes, technical };
     });
   } catch (err) {
-    // Nothing half-registered: the object goes when the transfer is not accepted.
-    await deleteObject(c.key).catch(() => undefined);
+    if (err instanceof Refusal) {
+      // Nothing half-registered: a refused upload's own object goes, and nothing else.
+      await refuse(upload, claim, err.error.message);
+      throw err.error;
+    }
+    // A passing failure (the storage, the database): the upload stays open for another try.
+    await release(upload, claim);
     throw err;
   }
 }

@@ -63,22 +63,31 @@ export const channelModeLabels: Record<(typeof channelModes)[number], string> = 
 /** Up to 10 000 parts of at most 5 GiB each (S3 limits); files up to 64 GiB here. */
 export const maxTransferBytes = 64 * 1024 ** 3;
 
+/** A file name as the engineer's computer gave it: kept as a record, never part of a storage key. */
+const fileName = z
+  .string()
+  .trim()
+  .min(1, "The file has no name.")
+  .max(255, "The file's name is over 255 characters: rename it.")
+  .refine((v) => !/[\u0000-\u001f\u007f]/.test(v), "The file's name holds a control character: rename it.");
+
 export const startUploadSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),
-  fileName: z.string().trim().min(1, "The file has no name.").max(255),
+  fileName,
   bytes: z.coerce.number().int().positive("The file is empty (0 bytes).").max(maxTransferBytes, "Files over 64 GiB are not accepted."),
 });
 
-export const signPartsSchema = z.object({
-  key: z.string().min(1),
-  uploadId: z.string().min(1),
-  partNumbers: z.array(z.number().int().min(1).max(10_000)).min(1).max(1000),
+/** An upload as the client names it: by the id the server gave it when it started, and nothing else. */
+const uploadId = z.uuid({ error: "Unknown upload: use the id Rillbook gave when the upload started." });
+
+export const uploadRefSchema = z.object({ uploadId });
+
+export const signPartsSchema = uploadRefSchema.extend({
+  partNumbers: z.array(z.number({ error: "Part numbers are whole numbers." }).int("Part numbers are whole numbers.").min(1, "Parts are numbered from 1.").max(10_000, "S3 allows 10 000 parts at most.")).min(1, "Name at least one part.").max(1000, "At most 1000 parts at a time."),
 });
 
-export const uploadRefSchema = z.object({ key: z.string().min(1), uploadId: z.string().min(1) });
-
 export const completeUploadSchema = uploadRefSchema.extend({
-  parts: z.array(z.object({ partNumber: z.number().int().min(1).max(10_000), etag: z.string().min(1) })).min(1),
+  parts: z.array(z.object({ partNumber: z.number().int().min(1).max(10_000), etag: z.string().min(1).max(200) })).min(1).max(10_000),
   sha256: z.string().regex(/^[0-9a-f]{64}$/, "The SHA-256 must be 64 lower-case hex digits."),
   bytes: z.coerce.number().int().positive(),
   stylusSize: z.string().trim().max(80).default(""),

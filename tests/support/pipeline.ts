@@ -29,9 +29,9 @@ export async function until<T>(what: string, probe: () => Promise<T | undefined>
   throw new Error(`timed out waiting for ${what}`);
 }
 
-/** A catalogued disc with the given sides, assigned to the demo engineer. */
-export async function assignedDisc(c: LabCookies, shelfMark: string, sides: string[]): Promise<{ discId: string; sideIds: string[] }> {
-  const engineerId = (await testDb.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email).executeTakeFirstOrThrow()).id;
+/** A catalogued disc with the given sides, assigned to the demo engineer (or to the engineer named). */
+export async function assignedDisc(c: LabCookies, shelfMark: string, sides: string[], engineerEmail = demoAccounts.find((a) => a.role === "engineer")!.email): Promise<{ discId: string; sideIds: string[] }> {
+  const engineerId = (await testDb.selectFrom("users").select("id").where("email", "=", engineerEmail).executeTakeFirstOrThrow()).id;
   const acc = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `ACC-${shelfMark}`, source: "Integration tests", receivedOn: "2026-11-30" } });
   expect(acc.status).toBe(201);
   const disc = await api("/api/discs", {
@@ -61,24 +61,38 @@ export function flatTransfer(seconds = 3, seed = 7): Uint8Array {
   return wav.toBuffer();
 }
 
-/** Uploads through presigned multipart URLs as the browser does, then asks the server to accept it. */
-export async function uploadTransfer(c: LabCookies, sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) {
-  const start = await api("/api/uploads", { cookie: c.engineer, method: "POST", body: { sideId, fileName: name, bytes: bytes.length } });
+/** Starts an upload as the browser does: the server answers the upload's id, its part size and the first part URLs. */
+export async function startUpload(cookie: string, sideId: string, fileName: string, bytes: number) {
+  const start = await api("/api/uploads", { cookie, method: "POST", body: { sideId, fileName, bytes } });
   expect(start.status).toBe(201);
-  const { key, uploadId, partSize, urls } = start.body;
+  const { uploadId, partSize, urls } = start.body as { uploadId: string; partSize: number; urls: { partNumber: number; url: string }[] };
+  // The key is the server's own; the tests read it from the database to look at the bucket.
+  const { object_key: key } = await testDb.selectFrom("uploads").select("object_key").where("id", "=", uploadId).executeTakeFirstOrThrow();
+  return { uploadId, partSize, urls, key };
+}
+
+/** PUTs each slice of `bytes` to its presigned part URL, as the browser does; answers the parts with their ETags. */
+export async function sendParts(bytes: Uint8Array, partSize: number, urls: { partNumber: number; url: string }[]) {
   const parts: { partNumber: number; etag: string }[] = [];
-  for (const { partNumber, url } of urls as { partNumber: number; url: string }[]) {
+  for (const { partNumber, url } of urls) {
     const put = await fetch(url, { method: "PUT", body: Buffer.from(bytes.subarray((partNumber - 1) * partSize, partNumber * partSize)) });
     expect(put.status).toBe(200);
     parts.push({ partNumber, etag: put.headers.get("etag")! });
   }
-  const sha256 = opts.sha256 ?? createHash("sha256").update(bytes).digest("hex");
-  const done = await api("/api/uploads/complete", {
-    cookie: c.engineer,
-    method: "POST",
-    body: { key, uploadId, parts, sha256, bytes: bytes.length, stylusSize: "3.0 mil", stylusShape: "truncated elliptical", measuredSpeedRpm: 78.26, chain: "Turntable, flat preamp, converter at 44.1 kHz/24" },
-  });
-  return { key: key as string, done };
+  return parts;
+}
+
+export const transferDetails = { stylusSize: "3.0 mil", stylusShape: "truncated elliptical", measuredSpeedRpm: 78.26, chain: "Turntable, flat preamp, converter at 44.1 kHz/24" };
+
+export const sha256Of = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
+
+/** Uploads through presigned multipart URLs as the browser does, then asks the server to accept it. */
+export async function uploadTransfer(c: LabCookies, sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) {
+  const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, name, bytes.length);
+  const parts = await sendParts(bytes, partSize, urls);
+  const sha256 = opts.sha256 ?? sha256Of(bytes);
+  const done = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId, parts, sha256, bytes: bytes.length, ...transferDetails } });
+  return { key, uploadId, done };
 }
 
 export async function renderAndWait(c: LabCookies, sideId: string, channelMode = "sum"): Promise<{ id: string; sha256: string; error: string | null; status: string }> {

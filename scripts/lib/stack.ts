@@ -297,7 +297,7 @@ async function ensureRoles(p: Profile, secrets: RoleSecrets): Promise<void> {
   }
 }
 
-async function startPostgres(p: Profile): Promise<void> {
+export async function startPostgres(p: Profile): Promise<void> {
   const bin = postgresBinDir();
   const data = path.join(p.dir, "pg");
   await fs.mkdir(data, { recursive: true });
@@ -323,7 +323,7 @@ async function startPostgres(p: Profile): Promise<void> {
   await ensureRoles(p, await roleSecretsFor(p));
 }
 
-async function stopPostgres(p: Profile): Promise<void> {
+export async function stopPostgres(p: Profile): Promise<void> {
   const data = path.join(p.dir, "pg");
   if (!existsSync(path.join(data, "PG_VERSION"))) return;
   const bin = postgresBinDir();

@@ -2,13 +2,27 @@ import "./lib/demo-env";
 import { promises as fs } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import { FileMigrationProvider, Migrator } from "kysely";
+import { type Migration, type MigrationProvider, Migrator } from "kysely";
 import { createDb } from "../db/client";
 import { grantAppRole, roleOf } from "../db/roles";
 import { env } from "../lib/env";
 import { ensureQueues } from "../lib/jobs/boss";
 
 const migrationFolder = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "migrations");
+
+/**
+ * The migrations folder, each file named as Kysely's file provider names it (without its
+ * extension). Imported from here rather than from inside Kysely so that whatever loads
+ * this script's TypeScript (tsx, or vitest in the tests) loads the migrations too.
+ */
+export const migrationProvider: MigrationProvider = {
+  async getMigrations(): Promise<Record<string, Migration>> {
+    const files = (await fs.readdir(migrationFolder)).filter((f) => /\.(ts|mts|js|mjs)$/.test(f) && !f.endsWith(".d.ts")).sort();
+    const migrations: Record<string, Migration> = {};
+    for (const f of files) migrations[f.replace(/\.[^.]+$/, "")] = (await import(path.join(migrationFolder, f))) as Migration;
+    return migrations;
+  },
+};
 
 export interface MigrateOptions {
   /** The owner role's connection: runs the migrations and owns what they create. */
@@ -24,10 +38,7 @@ export interface MigrateOptions {
 export async function migrateToLatest(opts: MigrateOptions): Promise<{ applied: string[]; appendOnly: string[] | null }> {
   const db = createDb(opts.ownerUrl, 2);
   try {
-    const migrator = new Migrator({
-      db,
-      provider: new FileMigrationProvider({ fs, path, migrationFolder }),
-    });
+    const migrator = new Migrator({ db, provider: migrationProvider });
     const { error, results } = await migrator.migrateToLatest();
     const failed = results?.find((r) => r.status === "Error");
     if (error || failed) {

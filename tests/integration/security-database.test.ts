@@ -6,7 +6,7 @@ import { promises as fs, readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { promisify } from "node:util";
 import { GetObjectCommand } from "@aws-sdk/client-s3";
-import { FileMigrationProvider, type Kysely, Migrator, sql, type Transaction } from "kysely";
+import { type Kysely, Migrator, sql, type Transaction } from "kysely";
 import pg from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb } from "@/db/client";
@@ -21,7 +21,7 @@ import { checkpointPrefix, putCheckpointObject, readCheckpointObjects } from "@/
 import { takeCheckpoint } from "@/lib/provenance/checkpoints";
 import { s3 } from "@/lib/storage/s3";
 import { localRoleUrls, profile, type Profile, readRoleSecrets, startPostgres, stopPostgres } from "@/scripts/lib/stack";
-import { migrateToLatest } from "@/scripts/migrate";
+import { migrateToLatest, migrationProvider } from "@/scripts/migrate";
 import { api, signInCookie, waitForMail } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
 
@@ -309,11 +309,14 @@ describe("a cluster made by an earlier version", () => {
       await admin.query("CREATE DATABASE rillbook");
       await admin.end();
       const legacy = createDb(legacyUrl("rillbook"), 2);
-      const migrator = new Migrator({ db: legacy, provider: new FileMigrationProvider({ fs, path, migrationFolder: path.join(process.cwd(), "migrations") }) });
-      expect((await migrator.migrateTo("2026_12_02_1500_access_copy_rate")).error).toBeUndefined();
-      await ensureQueues(legacyUrl("rillbook"));
-      await legacy.transaction().execute((trx) => appendEvent(trx, { actorId: null, kind: "lab.legacy_entry", subjectType: "lab", subjectId: null, payload: { tag } }));
-      await legacy.destroy();
+      try {
+        const migrator = new Migrator({ db: legacy, provider: migrationProvider });
+        expect((await migrator.migrateTo("2026_12_02_1500_access_copy_rate")).error).toBeUndefined();
+        await ensureQueues(legacyUrl("rillbook"));
+        await legacy.transaction().execute((trx) => appendEvent(trx, { actorId: null, kind: "lab.legacy_entry", subjectType: "lab", subjectId: null, payload: { tag } }));
+      } finally {
+        await legacy.destroy();
+      }
 
       // What `npm start` does now, twice over (it must be idempotent).
       for (let run = 0; run < 2; run++) {

@@ -2,7 +2,7 @@
 // rewrite the record, and the provenance chain is anchored by checkpoints in the bucket
 // that a truncated or rewritten log contradicts.
 import { execFile } from "node:child_process";
-import { promises as fs, readdirSync, readFileSync } from "node:fs";
+import { promises as fs, readdirSync } from "node:fs";
 import path from "node:path";
 import { promisify } from "node:util";
 import { GetObjectCommand } from "@aws-sdk/client-s3";
@@ -20,7 +20,8 @@ import { eventHash } from "@/lib/provenance/chain";
 import { checkpointPrefix, putCheckpointObject, readCheckpointObjects } from "@/lib/provenance/checkpoint-store";
 import { takeCheckpoint } from "@/lib/provenance/checkpoints";
 import { s3 } from "@/lib/storage/s3";
-import { localRoleUrls, profile, type Profile, readRoleSecrets, startPostgres, stopPostgres } from "@/scripts/lib/stack";
+import { localRoleUrls, readRoleSecrets } from "@/scripts/lib/local-roles";
+import { profile, type Profile, startPostgres, stopPostgres } from "@/scripts/lib/stack";
 import { migrateToLatest, migrationProvider } from "@/scripts/migrate";
 import { api, signInCookie, waitForMail } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
@@ -321,11 +322,11 @@ describe("a cluster made by an earlier version", () => {
       // What `npm start` does now, twice over (it must be idempotent).
       for (let run = 0; run < 2; run++) {
         await startPostgres(p);
-        const urls = localRoleUrls(p, readRoleSecrets(p, (f, e) => readFileSync(f, e))!);
+        const urls = localRoleUrls(p.pgPort, readRoleSecrets(p.dir)!);
         const { appendOnly } = await migrateToLatest({ ownerUrl: urls.owner, appUrl: urls.app });
         expect(appendOnly).toContain("provenance_events");
       }
-      const urls = localRoleUrls(p, readRoleSecrets(p, (f, e) => readFileSync(f, e))!);
+      const urls = localRoleUrls(p.pgPort, readRoleSecrets(p.dir)!);
       const app = createDb(urls.app, 2);
       try {
         const notOwned = await sql<{ name: string }>`

@@ -312,6 +312,24 @@ export interface ChainChecksTable {
   broken_reason: string | null;
   run_by: string | null;
   checked_at: DefaultTimestamp;
+  /** How many checkpoints the chain was checked against, and where they were read from. */
+  checkpoints: Generated<number>;
+  checkpoint_source: string | null;
+  /** The object key of the first checkpoint the log contradicted. */
+  contradicted_checkpoint: string | null;
+}
+
+/** The database's note of each checkpoint written to the bucket (append-only). */
+export interface ChainCheckpointsTable {
+  id: Generated<string>;
+  object_key: string;
+  head_seq: number;
+  head_hash: string;
+  events: number;
+  taken_at: ColumnType<Date, Date | string, never>;
+  reason: "scheduled" | "requested";
+  requested_by: string | null;
+  created_at: DefaultTimestamp;
 }
 
 export interface LabSettingsTable {
@@ -331,6 +349,7 @@ export interface Database {
   reviews: ReviewsTable;
   fixity_checks: FixityChecksTable;
   chain_checks: ChainChecksTable;
+  chain_checkpoints: ChainCheckpointsTable;
   lab_settings: LabSettingsTable;
   curve_choices: CurveChoicesTable;
   transfers: TransfersTable;

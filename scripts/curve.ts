@@ -14,6 +14,7 @@
  *
  * Exit codes: 0 done, 2 bad flags or an invalid curve, 1 anything else.
  */
+import "./lib/demo-env";
 import { env } from "../lib/env";
 import { readFile } from "node:fs/promises";
 import { parseArgs } from "node:util";

@@ -1,3 +1,4 @@
+import "./lib/demo-env";
 import { createDb } from "../db/client";
 import { seed } from "../db/seed";
 import { env } from "../lib/env";

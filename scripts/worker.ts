@@ -2,13 +2,15 @@
 // access copies). Several workers may run against one database and bucket: mail is
 // claimed under a row lock, and pg-boss hands each job to exactly one worker, retrying
 // it after a crash or a failure.
+import "./lib/demo-env";
 import { createDb } from "../db/client";
 import { defaultDsp } from "../lib/audio/dsp";
 import { env } from "../lib/env";
 import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
-import { createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, fixityJobKey, RENDER_QUEUE } from "../lib/jobs/boss";
+import { CHAIN_CHECKPOINT_CRON, CHAIN_CHECKPOINT_QUEUE, createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, fixityJobKey, RENDER_QUEUE } from "../lib/jobs/boss";
 import { runRenderJob } from "../lib/jobs/render-job";
 import { deliverDueMail } from "../lib/mail/outbox";
+import { takeCheckpoint } from "../lib/provenance/checkpoints";
 import { createMailTransport } from "../lib/mail/transport";
 
 const db = createDb(env().DATABASE_URL, 4);
@@ -50,6 +52,14 @@ async function main(): Promise<void> {
   await boss.work<{ kind: StoredObjectKind; id: string }>(FIXITY_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
     const outcome = await checkObject(db, job.data.kind, job.data.id);
     console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
+  });
+  // The provenance chain is anchored daily, and whenever a curator or an admin asks: a
+  // checkpoint object in the bucket, never overwritten, mailed to the curators.
+  await boss.schedule(CHAIN_CHECKPOINT_QUEUE, CHAIN_CHECKPOINT_CRON, { reason: "scheduled" }, { singletonKey: "chain-checkpoint" });
+  await boss.work<{ reason: "scheduled" | "requested"; requestedBy?: string }>(CHAIN_CHECKPOINT_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
+    const outcome = await takeCheckpoint(db, { reason: job.data.reason === "requested" ? "requested" : "scheduled", requestedBy: job.data.requestedBy ?? null });
+    const detail = outcome.status === "written" ? ` ${outcome.key} (${outcome.checkpoint.events} entries, mailed to ${outcome.mailedTo} curators)` : outcome.status === "refused" ? ": the chain did not verify, curators told" : "";
+    console.log(`[worker] chain checkpoint: ${outcome.status}${detail}`);
   });
   await mailLoop();
 }

@@ -2,7 +2,9 @@
 /**
  * The provenance log is hash-chained: each entry carries the SHA-256 of the one
  * before it. Verifying walks the whole log, recomputes every hash and names the
- * first entry whose link or content does not hold. Each run is itself recorded.
+ * first entry whose link or content does not hold, then checks it against every
+ * checkpoint stored in the bucket (a log cut short or rewritten with fresh hashes
+ * contradicts one). Each run is itself recorded.
  */
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
@@ -10,12 +12,23 @@ import { when } from "@/components/catalogue/format";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { fetchJson } from "@/lib/http/client";
-import type { ChainReport, LastChainCheck } from "./types";
+import type { ChainReport, CheckpointRef, LastChainCheck, LastCheckpoint } from "./types";
+
+const shortKey = (key: string) => key.split("/").pop() ?? key;
+
+function CheckpointLine({ c }: { c: CheckpointRef }) {
+  return (
+    <>
+      the checkpoint of <time dateTime={c.takenAt}>{when(c.takenAt)}</time> (entry {c.headSeq}, {c.events.toLocaleString("en-GB")} entries; <span className="font-mono text-xs break-all">{shortKey(c.key)}</span>)
+    </>
+  );
+}
 
 export function ChainCheck() {
   const queryClient = useQueryClient();
-  const last = useQuery({ queryKey: ["chain-last"], queryFn: () => fetchJson<{ last: LastChainCheck | null }>("/api/provenance/verify?last=1") });
+  const last = useQuery({ queryKey: ["chain-last"], queryFn: () => fetchJson<{ last: LastChainCheck | null; lastCheckpoint: LastCheckpoint | null }>("/api/provenance/verify?last=1") });
   const [running, setRunning] = useState(false);
+  const [anchoring, setAnchoring] = useState<"idle" | "sending" | "queued">("idle");
   const [report, setReport] = useState<ChainReport | null>(null);
   const [error, setError] = useState<string | null>(null);
 
@@ -33,7 +46,21 @@ export function ChainCheck() {
     }
   };
 
+  const anchor = async () => {
+    setAnchoring("sending");
+    setError(null);
+    try {
+      await fetchJson<{ queued: boolean }>("/api/provenance/checkpoints", { method: "POST", body: "{}" });
+      setAnchoring("queued");
+      setTimeout(() => void queryClient.invalidateQueries({ queryKey: ["chain-last"] }), 5000);
+    } catch (err) {
+      setAnchoring("idle");
+      setError(err instanceof Error ? err.message : String(err));
+    }
+  };
+
   const l = last.data?.last;
+  const cp = last.data?.lastCheckpoint;
   return (
     <div className="space-y-4" data-testid="chain-check">
       <div className="rounded-lg border border-paper-edge bg-white px-4 py-3 text-sm" data-testid="chain-last">
@@ -51,33 +78,84 @@ export function ChainCheck() {
               <span className="font-semibold text-moss">all {l.events.toLocaleString("en-GB")} entries linked and intact</span>
             ) : (
               <span className="font-semibold text-alarm">
-                broken at entry {l.brokenSeq}
+                {l.brokenSeq !== null ? `broken at entry ${l.brokenSeq}` : "did not verify"}
                 {l.brokenReason ? `: ${l.brokenReason}` : ""}
+                {l.contradictedCheckpoint ? ` (contradicts checkpoint ${shortKey(l.contradictedCheckpoint)})` : ""}
               </span>
             )}
+            {l.checkpointSource ? (
+              <span className="block text-xs text-ink-faint">
+                Checked against {l.checkpoints} checkpoint{l.checkpoints === 1 ? "" : "s"} read from the {l.checkpointSource}.
+              </span>
+            ) : null}
           </p>
         )}
+        <p className="mt-2 text-xs text-ink-soft" data-testid="chain-last-checkpoint">
+          {cp ? (
+            <>
+              Newest checkpoint: <time dateTime={cp.takenAt}>{when(cp.takenAt)}</time>, entry {cp.headSeq} of {cp.events.toLocaleString("en-GB")}, head <span className="font-mono">{cp.headHash.slice(0, 16)}…</span>
+              {cp.requestedBy ? `, asked for by ${cp.requestedBy}` : " (daily)"}.
+            </>
+          ) : (
+            "No checkpoint has been written yet."
+          )}
+        </p>
       </div>
 
       <div className="flex flex-wrap items-center gap-3">
         <Button type="button" onClick={() => void verify()} disabled={running} data-testid="chain-verify">
           {running ? "Verifying…" : "Verify the whole log now"}
         </Button>
-        <p className="text-xs text-ink-faint">Recomputes the SHA-256 of every entry in order. The run is recorded with your name.</p>
+        <Button type="button" variant="secondary" onClick={() => void anchor()} disabled={anchoring === "sending"} data-testid="chain-checkpoint">
+          {anchoring === "sending" ? "Asking…" : "Write a checkpoint now"}
+        </Button>
+        <p className="text-xs text-ink-faint">
+          Verifying recomputes the SHA-256 of every entry in order and checks the log against every checkpoint in the bucket; the run is recorded with your name. A checkpoint (written daily, or now) stores the log&apos;s head in the bucket, where it is never overwritten, and is mailed to the curators.
+        </p>
       </div>
+      {anchoring === "queued" ? (
+        <p className="text-xs text-moss" role="status" data-testid="chain-checkpoint-queued">
+          Asked: the worker verifies the log, writes the checkpoint and mails it to the curators within a minute.
+        </p>
+      ) : null}
 
       <div aria-live="polite">
         {report ? (
           report.ok ? (
             <Notice tone="success" title="The chain holds" testId="chain-result">
-              All {report.events.toLocaleString("en-GB")} entries link to the one before and their content matches their hash (checked {when(report.checkedAt)}).
+              <p>
+                All {report.events.toLocaleString("en-GB")} entries link to the one before and their content matches their hash (checked {when(report.checkedAt)}).
+              </p>
+              <p data-testid="chain-checkpoints">
+                {report.checkpoints.total === 0
+                  ? "No checkpoint in the bucket yet to check it against."
+                  : `It agrees with all ${report.checkpoints.checked} checkpoint${report.checkpoints.checked === 1 ? "" : "s"} read from the bucket (not from the database, whose copy could be rewritten too).`}
+              </p>
+            </Notice>
+          ) : report.contradicts ? (
+            <Notice tone="error" title={`The log contradicts a checkpoint at entry ${report.contradicts.headSeq}`} testId="chain-result">
+              <p>
+                It contradicts <CheckpointLine c={report.contradicts} />, read from the bucket: {report.contradicts.reason}.
+              </p>
+              <p className="mt-1">
+                The log was cut short or rewritten after that checkpoint was taken. Follow the institution&apos;s procedure: restore the log from a verified backup, compare it with the checkpoint mails the curators received, and find out what changed it.
+              </p>
+            </Notice>
+          ) : report.brokenAt ? (
+            <Notice tone="error" title={`The chain is broken at entry ${report.brokenAt.seq}`} testId="chain-result">
+              <p>{report.brokenAt.reason}</p>
+              <p className="mt-1">
+                Entries before {report.brokenAt.seq} verify; from this one on the record cannot be trusted as it stands. Follow the institution&apos;s procedure: restore the log from a verified backup and find out what changed it.
+              </p>
             </Notice>
           ) : (
-            <Notice tone="error" title={`The chain is broken at entry ${report.brokenAt?.seq ?? "?"}`} testId="chain-result">
-              <p>{report.brokenAt?.reason ?? "An entry does not verify."}</p>
-              <p className="mt-1">
-                Entries before {report.brokenAt?.seq} verify; from this one on the record cannot be trusted as it stands. Follow the institution&apos;s procedure: restore the log from a verified backup and find out what changed it.
-              </p>
+            <Notice tone="error" title="The checkpoints do not hold" testId="chain-result">
+              <p>The {report.events.toLocaleString("en-GB")} entries link and match their hashes, but:</p>
+              <ul className="mt-1 list-disc pl-5">
+                {report.checkpoints.problems.map((p) => (
+                  <li key={p}>{p}</li>
+                ))}
+              </ul>
             </Notice>
           )
         ) : null}

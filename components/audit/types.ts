@@ -15,10 +15,20 @@ export interface AuditEvent {
   actorId: string | null;
 }
 
+export interface CheckpointRef {
+  key: string;
+  headSeq: number;
+  events: number;
+  takenAt: string;
+}
+
 export interface ChainReport {
   ok: boolean;
   events: number;
-  brokenAt?: { seq: number; id: string; reason: string };
+  head: { seq: number; hash: string } | null;
+  brokenAt?: { seq: number; id: string | null; reason: string };
+  contradicts?: CheckpointRef & { reason: string };
+  checkpoints: { source: "bucket"; checked: number; total: number; newest: CheckpointRef | null; problems: string[] };
   checkedAt: string;
 }
 
@@ -29,6 +39,19 @@ export interface LastChainCheck {
   brokenReason: string | null;
   checkedAt: string;
   runBy: string | null;
+  checkpoints: number;
+  checkpointSource: string | null;
+  contradictedCheckpoint: string | null;
+}
+
+export interface LastCheckpoint {
+  key: string;
+  headSeq: number;
+  headHash: string;
+  events: number;
+  takenAt: string;
+  reason: "scheduled" | "requested";
+  requestedBy: string | null;
 }
 
 export interface FixityAlert {

@@ -18,6 +18,7 @@ export const actions = {
   "bench:use": "use the transfer bench",
   "review:decide": "approve or return sides",
   "audit:read": "read the provenance record",
+  "audit:checkpoint": "write a checkpoint of the provenance log now",
   "fixity:run": "run fixity checks now",
   "settings:edit": "change the lab's settings",
 } as const;
@@ -25,10 +26,10 @@ export const actions = {
 export type Action = keyof typeof actions;
 
 export const permissionTable: Record<Role, readonly Action[]> = {
-  admin: ["lab:enter", "people:read", "people:manage", "outbox:read", "curves:read", "curves:edit", "catalogue:read", "catalogue:edit", "catalogue:assign", "audit:read", "fixity:run", "settings:edit"],
+  admin: ["lab:enter", "people:read", "people:manage", "outbox:read", "curves:read", "curves:edit", "catalogue:read", "catalogue:edit", "catalogue:assign", "audit:read", "audit:checkpoint", "fixity:run", "settings:edit"],
   archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit", "catalogue:assign"],
   engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use"],
-  curator: ["lab:enter", "curves:read", "catalogue:read", "review:decide", "audit:read", "fixity:run"],
+  curator: ["lab:enter", "curves:read", "catalogue:read", "review:decide", "audit:read", "audit:checkpoint", "fixity:run"],
 };
 
 export function can(role: Role, action: Action): boolean {

@@ -55,6 +55,7 @@ export const routeAccess = {
   "GET /api/sides/[id]/review": "catalogue:read",
   "GET /api/reviews": "review:decide",
   "GET /api/provenance/verify": "audit:read",
+  "POST /api/provenance/checkpoints": "audit:checkpoint",
   "GET /api/provenance/events": "audit:read",
   "GET /api/settings": "lab:enter",
   "PATCH /api/settings": "settings:edit",

@@ -9,6 +9,10 @@ export const FIXITY_SWEEP_QUEUE = "fixity-sweep";
 /** The sweep runs every hour and queues what has come due. */
 export const FIXITY_SWEEP_CRON = "7 * * * *";
 
+/** Checkpoints of the provenance chain: daily, and whenever a curator or an admin asks. */
+export const CHAIN_CHECKPOINT_QUEUE = "chain-checkpoint";
+export const CHAIN_CHECKPOINT_CRON = "23 2 * * *";
+
 /** Renders and fixity checks: a crashed or failed attempt is tried twice more, a minute apart. */
 const retried = { retryLimit: 2, retryDelay: 60, expireInSeconds: 6 * 3600 };
 
@@ -16,6 +20,10 @@ const queues: PgBoss.Queue[] = [
   { name: RENDER_QUEUE, ...retried },
   { name: FIXITY_QUEUE, ...retried },
   { name: FIXITY_SWEEP_QUEUE, retryLimit: 0, expireInSeconds: 3600 },
+  { name: CHAIN_CHECKPOINT_QUEUE, retryLimit: 2, retryDelay: 300, expireInSeconds: 3600 },
+  // pg-boss's own queue for cron schedules: made here, by the owner, because the worker's
+  // role cannot create a queue's table when pg-boss's scheduler asks for it.
+  { name: "__pgboss__send-it" },
 ];
 
 /** One fixity job per object at a time, whether the sweep or a curator queued it. */
@@ -25,7 +33,9 @@ export function fixityJobKey(o: { kind: string; id: string }): string {
 
 /**
  * A pg-boss instance on the app's database. Workers supervise and maintain the queue;
- * the web tier only sends jobs (inside its own transactions).
+ * the web tier only sends jobs (inside its own transactions). Only the migration run
+ * (as the owner role) creates or migrates pg-boss's schema and its queues: the app's
+ * role owns nothing and cannot, and refuses to start on an out-of-date schema.
  */
 export function createBoss(databaseUrl: string, role: "worker" | "web" | "migrate"): PgBoss {
   const boss = new PgBoss({
@@ -33,7 +43,7 @@ export function createBoss(databaseUrl: string, role: "worker" | "web" | "migrat
     max: role === "worker" ? 4 : 2,
     supervise: role === "worker",
     schedule: role === "worker",
-    migrate: role !== "web",
+    migrate: role === "migrate",
   });
   boss.on("error", (err) => console.error(`[jobs] ${role}:`, err));
   return boss;

@@ -5,12 +5,22 @@ import type { SessionUser } from "../auth/session-user";
 import { escapeLike } from "../catalogue/list-query";
 import { verifyChain } from ".";
 
-/** Walks the whole chain, records the run, and answers the report. */
+/** Walks the whole chain against every checkpoint in the bucket, records the run, and answers the report. */
 export async function runChainCheck(actor: SessionUser) {
   const report = await verifyChain(db);
+  const brokenReason = report.brokenAt?.reason ?? (report.checkpoints.problems.length ? report.checkpoints.problems.join(" ") : null);
   await db
     .insertInto("chain_checks")
-    .values({ ok: report.ok, events: report.events, broken_seq: report.brokenAt?.seq ?? null, broken_reason: report.brokenAt?.reason ?? null, run_by: actor.id })
+    .values({
+      ok: report.ok,
+      events: report.events,
+      broken_seq: report.brokenAt?.seq ?? null,
+      broken_reason: brokenReason,
+      run_by: actor.id,
+      checkpoints: report.checkpoints.checked,
+      checkpoint_source: report.checkpoints.source,
+      contradicted_checkpoint: report.contradicts?.key ?? null,
+    })
     .execute();
   return report;
 }
@@ -19,7 +29,17 @@ export async function lastChainCheck() {
   return db
     .selectFrom("chain_checks as c")
     .leftJoin("users as u", "u.id", "c.run_by")
-    .select(["c.ok", "c.events", "c.broken_seq as brokenSeq", "c.broken_reason as brokenReason", "c.checked_at as checkedAt", "u.name as runBy"])
+    .select([
+      "c.ok",
+      "c.events",
+      "c.broken_seq as brokenSeq",
+      "c.broken_reason as brokenReason",
+      "c.checked_at as checkedAt",
+      "u.name as runBy",
+      "c.checkpoints",
+      "c.checkpoint_source as checkpointSource",
+      "c.contradicted_checkpoint as contradictedCheckpoint",
+    ])
     .orderBy("c.checked_at", "desc")
     .limit(1)
     .executeTakeFirst();

@@ -4,6 +4,7 @@
 // p50/p95/p99 server time per query and the plan of the slowest one.
 //   npm run bench:catalogue            (the demo services must be running: npm start)
 //   BENCH_DISCS=20000 npm run bench:catalogue
+import "../lib/demo-env";
 import { performance } from "node:perf_hooks";
 import { sql } from "kysely";
 import pg from "pg";
@@ -15,7 +16,8 @@ import { migrateToLatest } from "../migrate";
 
 const discCount = Number(process.env.BENCH_DISCS ?? 100_000);
 const runs = Number(process.env.BENCH_RUNS ?? 60);
-const base = new URL(env().DATABASE_URL);
+// The owner role builds and fills the side database (the demo cluster gives it CREATEDB).
+const base = new URL(env().DATABASE_OWNER_URL ?? env().DATABASE_URL);
 const benchName = "rillbook_bench";
 
 async function recreateDatabase(): Promise<string> {
@@ -29,7 +31,7 @@ async function recreateDatabase(): Promise<string> {
 
 async function main(): Promise<void> {
   const url = await recreateDatabase();
-  await migrateToLatest(url);
+  await migrateToLatest({ ownerUrl: url });
   const db = createDb(url, 4);
   const t0 = performance.now();
   await sql`INSERT INTO accessions (identifier, source, received_on) SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(db);

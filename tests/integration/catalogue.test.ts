@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { verifyChain } from "@/lib/provenance";
 import { api, signInCookie, waitForMail } from "../support/app";
-import { testDb } from "../support/db";
+import { ownerDb, testDb } from "../support/db";
 
 const cookie = {} as Record<"archivist" | "engineer" | "curator" | "admin", string>;
 let accessionId: string;
@@ -24,6 +24,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await testDb.destroy();
+  await ownerDb.destroy();
 });
 
 function disc(shelfMark: string, extra: Record<string, unknown> = {}) {
@@ -62,16 +63,17 @@ describe("the provenance log", () => {
   });
 
   it("is refused UPDATE and DELETE by the database", async () => {
-    await expect(sql`UPDATE provenance_events SET kind = 'rewritten' WHERE seq = (SELECT max(seq) FROM provenance_events)`.execute(testDb)).rejects.toThrow(/append-only/);
-    await expect(sql`DELETE FROM provenance_events WHERE seq = (SELECT max(seq) FROM provenance_events)`.execute(testDb)).rejects.toThrow(/append-only/);
-    await expect(sql`TRUNCATE provenance_events`.execute(testDb)).rejects.toThrow(/append-only/);
+    // Even the owner, who has every right on the table, meets the triggers.
+    await expect(sql`UPDATE provenance_events SET kind = 'rewritten' WHERE seq = (SELECT max(seq) FROM provenance_events)`.execute(ownerDb)).rejects.toThrow(/append-only/);
+    await expect(sql`DELETE FROM provenance_events WHERE seq = (SELECT max(seq) FROM provenance_events)`.execute(ownerDb)).rejects.toThrow(/append-only/);
+    await expect(sql`TRUNCATE provenance_events`.execute(ownerDb)).rejects.toThrow(/append-only/);
   });
 
   it("finds an event altered behind the app's back", async () => {
     const victim = await testDb.selectFrom("provenance_events").select(["seq", "payload"]).where("kind", "=", "disc.created").orderBy("seq", "desc").limit(1).executeTakeFirstOrThrow();
     const original = JSON.stringify(victim.payload);
     // As the database owner, with the guard switched off for this one change.
-    await testDb.transaction().execute(async (trx) => {
+    await ownerDb.transaction().execute(async (trx) => {
       await sql`ALTER TABLE provenance_events DISABLE TRIGGER provenance_append_only`.execute(trx);
       await sql`UPDATE provenance_events SET payload = jsonb_set(payload, '{after,labelName}', '"Forged"') WHERE seq = ${victim.seq}`.execute(trx);
       await sql`ALTER TABLE provenance_events ENABLE TRIGGER provenance_append_only`.execute(trx);
@@ -82,7 +84,7 @@ describe("the provenance log", () => {
       expect(report.brokenAt?.seq).toBe(Number(victim.seq));
       expect(report.brokenAt?.reason).toMatch(/content/);
     } finally {
-      await testDb.transaction().execute(async (trx) => {
+      await ownerDb.transaction().execute(async (trx) => {
         await sql`ALTER TABLE provenance_events DISABLE TRIGGER provenance_append_only`.execute(trx);
         await sql`UPDATE provenance_events SET payload = ${original}::jsonb WHERE seq = ${victim.seq}`.execute(trx);
         await sql`ALTER TABLE provenance_events ENABLE TRIGGER provenance_append_only`.execute(trx);

@@ -3,7 +3,7 @@ import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { api, signInCookie } from "../support/app";
-import { testDb } from "../support/db";
+import { ownerDb, testDb } from "../support/db";
 
 let engineer: string;
 let curator: string;
@@ -15,6 +15,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await testDb.destroy();
+  await ownerDb.destroy();
 });
 
 const spec = (turnoverHz: number) => ({
@@ -92,8 +93,8 @@ describe("editing presets", () => {
 
   it("is refused by the database when someone tries to alter or remove a version", async () => {
     const row = await testDb.selectFrom("curve_preset_versions").select(["preset_id", "version"]).limit(1).executeTakeFirstOrThrow();
-    await expect(sql`UPDATE curve_preset_versions SET change_note = 'rewritten' WHERE preset_id = ${row.preset_id} AND version = ${row.version}`.execute(testDb)).rejects.toThrow(/immutable/);
-    await expect(sql`DELETE FROM curve_preset_versions WHERE preset_id = ${row.preset_id}`.execute(testDb)).rejects.toThrow(/immutable/);
+    await expect(sql`UPDATE curve_preset_versions SET change_note = 'rewritten' WHERE preset_id = ${row.preset_id} AND version = ${row.version}`.execute(ownerDb)).rejects.toThrow(/immutable/);
+    await expect(sql`DELETE FROM curve_preset_versions WHERE preset_id = ${row.preset_id}`.execute(ownerDb)).rejects.toThrow(/immutable/);
   });
 });
 

@@ -25,6 +25,9 @@ export const appendOnlyTables = [
   "sign_in_attempts",
 ] as const;
 
+/** Rules the migrations write and the app only reads (the side lifecycle's steps). */
+export const readOnlyTables = ["side_transitions"] as const;
+
 /** The migrator's own bookkeeping: none of the app's business. */
 const migratorTables = ["kysely_migration", "kysely_migration_lock"];
 
@@ -90,6 +93,10 @@ export async function grantAppRole(db: Kysely<any>, appRole: string): Promise<st
 
   for (const t of migratorTables) {
     if (await tableExists(db, "public", t)) await sql`REVOKE ALL ON TABLE ${ident(t)} FROM ${app}, PUBLIC`.execute(db);
+  }
+
+  for (const t of readOnlyTables) {
+    if (await tableExists(db, "public", t)) await sql`REVOKE INSERT, UPDATE, DELETE, TRUNCATE ON TABLE ${ident(t)} FROM ${app}, PUBLIC`.execute(db);
   }
 
   const appendOnly = [...new Set([...appendOnlyTables, ...(await guardedTables(db))])].sort();

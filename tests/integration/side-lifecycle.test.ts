@@ -216,6 +216,8 @@ describe("the database holds the lifecycle", () => {
     const inDb = rows.map((r) => `${r.from_status}→${r.to_status}`).sort();
     const inCode = [...new Set(transitions.map((t) => `${t.from}→${t.to}`))].sort();
     expect(inDb).toEqual(inCode);
+    // …and the app's own role cannot add a step.
+    await expect(testDb.insertInto("side_transitions").values({ from_status: "catalogued", to_status: "approved" }).execute()).rejects.toThrow(/permission denied/);
   });
 });
 

@@ -25,7 +25,7 @@ describe("where a state-changing request comes from", () => {
   });
 
   it("refuses another origin, another port, 'null', and a cross-site Sec-Fetch-Site or Referer", () => {
-    for (const headers of [
+    for (const headers of <Record<string, string>[]>[
       { origin: "http://127.0.0.1:3199" },
       { origin: "http://localhost:3100" },
       { origin: "null" },

@@ -13,7 +13,8 @@ export function bucketOrigins(opts: { s3Endpoint: string; bucket: string; forceP
  * app's chunks). The browser talks to one other origin, the bucket: presigned uploads and
  * ranged reads for listening (connect-src), playback (media-src). Styles allow inline
  * `style` attributes: plots and progress bars size themselves with them, and a style
- * cannot run code. Nothing may frame a page (frame-ancestors), which stops clickjacking of
+ * cannot run code. 'wasm-unsafe-eval' lets the bench hash an upload's SHA-256 in
+ * WebAssembly (hash-wasm) without allowing eval of JavaScript. Nothing may frame a page (frame-ancestors), which stops clickjacking of
  * the approve, return, role and deactivate buttons. React's development build evaluates
  * strings, so 'unsafe-eval' is there under `next dev` only.
  */
@@ -21,7 +22,7 @@ export function pagePolicy(opts: { nonce: string; development: boolean; bucketOr
   const bucket = opts.bucketOrigins.join(" ");
   const directives = [
     "default-src 'self'",
-    `script-src 'self' 'nonce-${opts.nonce}' 'strict-dynamic'${opts.development ? " 'unsafe-eval'" : ""}`,
+    `script-src 'self' 'nonce-${opts.nonce}' 'strict-dynamic' 'wasm-unsafe-eval'${opts.development ? " 'unsafe-eval'" : ""}`,
     "style-src 'self' 'unsafe-inline'",
     "img-src 'self' data: blob:",
     "font-src 'self' data:",

@@ -24,6 +24,11 @@ export async function launchBrowser(): Promise<Browser> {
   const newContext = browser.newContext.bind(browser);
   browser.newContext = async (...args) => {
     const context = await newContext(...args);
+    // Some refusals (WebAssembly compilation, say) throw in the page without a console
+    // line: the violation event reports every one.
+    await context.addInitScript(() => {
+      document.addEventListener("securitypolicyviolation", (e) => console.error(`Content Security Policy violation: ${e.effectiveDirective} blocked ${e.blockedURI || "inline"}`));
+    });
     context.on("page", watchCsp);
     return context;
   };

@@ -131,8 +131,8 @@ describe("the Content-Security-Policy", () => {
   const bucket = bucketOrigins({ s3Endpoint: "http://127.0.0.1:54321", bucket: "rillbook", forcePathStyle: true });
   it("lets scripts run only with the nonce, lets the bucket in for uploads and playback, and forbids framing", () => {
     const p = pagePolicy({ nonce: "abc", development: false, bucketOrigins: bucket, https: false });
-    expect(p).toContain("script-src 'self' 'nonce-abc' 'strict-dynamic';");
-    expect(p).not.toContain("unsafe-eval");
+    expect(p).toContain("script-src 'self' 'nonce-abc' 'strict-dynamic' 'wasm-unsafe-eval';");
+    expect(p).not.toContain("'unsafe-eval'");
     expect(p).toContain("connect-src 'self' http://127.0.0.1:54321");
     expect(p).toContain("media-src 'self' blob: http://127.0.0.1:54321");
     expect(p).toContain("frame-ancestors 'none'");

@@ -1,3 +1,4 @@
+import "../validation/zod-setup";
 import { ZodError } from "zod";
 
 export type ErrorCode =

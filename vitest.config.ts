@@ -44,6 +44,7 @@ export default defineConfig({
         test: {
           name: "e2e",
           include: ["tests/e2e/**/*.test.ts"],
+          setupFiles: ["tests/support/e2e-setup.ts"],
           environment: "node",
           testTimeout: 120_000,
           hookTimeout: 120_000,

@@ -14,6 +14,8 @@ export interface UsersTable {
   role: Role;
   password_hash: string;
   active: Generated<boolean>;
+  /** Moves on when the person's sessions must end; a session cookie carries the version it began under. */
+  session_version: Generated<number>;
   created_at: DefaultTimestamp;
   updated_at: DefaultTimestamp;
 }

@@ -118,6 +118,52 @@ export function parseBext(body: Uint8Array): Bext {
   return out;
 }
 
+/**
+ * Letters that Unicode does not decompose into a base letter and marks (NFKD leaves them
+ * whole), written as the usual Latin transliteration (as in library romanization tables).
+ */
+const LETTERS: Record<string, string> = {
+  ß: "ss", ẞ: "SS", æ: "ae", Æ: "AE", œ: "oe", Œ: "OE", ø: "o", Ø: "O", ł: "l", Ł: "L",
+  đ: "d", Đ: "D", ð: "d", Ð: "D", þ: "th", Þ: "Th", ħ: "h", Ħ: "H", ı: "i", ŀ: "l", Ŀ: "L",
+  ŧ: "t", Ŧ: "T", ĸ: "k", ŋ: "ng", Ŋ: "NG", ſ: "s", µ: "u", μ: "u",
+  "‘": "'", "’": "'", "‚": "'", "‛": "'", "“": '"', "”": '"', "„": '"', "‟": '"', "«": '"', "»": '"', "‹": "'", "›": "'",
+  "‐": "-", "‑": "-", "‒": "-", "–": "-", "—": "-", "―": "-", "−": "-", "•": "*", "·": ".", "×": "x", "°": " deg", "⁄": "/",
+};
+
+/**
+ * Text in the ASCII that bext strings are (EBU Tech 3285): each letter in its nearest
+ * faithful form ("Pathé" → "Pathe", "Łódź" → "Lodz", "Straße" → "Strasse"): the table
+ * above, then Unicode compatibility decomposition (NFKD) with the combining marks left out.
+ * A character with no Latin form becomes "?", so a reader sees that something was there.
+ * Control characters are dropped (line breaks too, unless `keepLineBreaks`, for the
+ * coding history, whose lines end in CR/LF). Nothing here throws: a render never fails
+ * on a name.
+ */
+export function bextAscii(text: string, opts: { keepLineBreaks?: boolean } = {}): string {
+  let out = "";
+  for (const ch of text) {
+    const mapped = LETTERS[ch];
+    if (mapped !== undefined) {
+      out += mapped;
+      continue;
+    }
+    for (const part of ch.normalize("NFKD")) {
+      const c = part.codePointAt(0)!;
+      if (c >= 0x20 && c <= 0x7e) out += part;
+      else if (opts.keepLineBreaks && (c === 0x0d || c === 0x0a)) out += part;
+      else if (/\p{M}/u.test(part) || c < 0x20 || (c >= 0x7f && c <= 0x9f) || c === 0xfeff || (c >= 0x200b && c <= 0x200f)) continue;
+      else if (/\s/u.test(part)) out += " ";
+      else out += LETTERS[part] ?? "?";
+    }
+  }
+  return out;
+}
+
+/** The coding history as the chunk stores it (ASCII, CR/LF kept): its length sets the chunk's size. */
+export function bextCodingHistory(history: string): string {
+  return bextAscii(history, { keepLineBreaks: true });
+}
+
 function checkAscii(name: string, value: string, max: number): void {
   if (value.length > max) throw new RangeError(`bext ${name} is ${value.length} characters; EBU Tech 3285 allows ${max}.`);
   for (let i = 0; i < value.length; i++) {
@@ -127,15 +173,22 @@ function checkAscii(name: string, value: string, max: number): void {
   }
 }
 
-/** The bext chunk body for these fields: 602 bytes plus the coding history, padded to an even length. */
+/** The free-text fields: written in their ASCII form (bextAscii) and cut to the field's size. */
+const TEXT_FIELDS = new Set(["description", "originator", "originatorReference"]);
+
+/**
+ * The bext chunk body for these fields: 602 bytes plus the coding history, padded to an
+ * even length. Description, Originator and OriginatorReference take any text (its ASCII
+ * form, cut to fit); the date and time must be in Tech 3285's form.
+ */
 export function encodeBext(input: BextInput): Uint8Array {
-  const history = input.codingHistory ?? "";
-  checkAscii("codingHistory", history, Number.MAX_SAFE_INTEGER);
+  const history = bextCodingHistory(input.codingHistory ?? "");
   const length = BEXT_FIXED_BYTES + history.length;
   const body = new Uint8Array(length + (length & 1));
   const view = new DataView(body.buffer);
   for (const [name, offset, size] of FIELDS) {
-    const value = input[name] ?? "";
+    const raw = input[name] ?? "";
+    const value = TEXT_FIELDS.has(name) ? bextAscii(raw).slice(0, size) : raw;
     checkAscii(name, value, size);
     for (let i = 0; i < value.length; i++) body[offset + i] = value.charCodeAt(i);
   }
@@ -225,10 +278,5 @@ export function parseCodingHistory(history: string): CodingHistoryLine[] {
 }
 
 function asciiText(text: string): string {
-  return text
-    .normalize("NFKD")
-    .replace(/[µμ]/g, "u")
-    .replace(/[−–—]/g, "-")
-    .replace(/\s*[\r\n,]+\s*/g, "; ")
-    .replace(/[^\x20-\x7e]/g, "");
+  return bextAscii(text.replace(/\s*[\r\n,]+\s*/g, "; "));
 }

@@ -28,7 +28,7 @@ import { createHash } from "node:crypto";
 import type { Hash } from "node:crypto";
 import { open } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
-import { encodeBext } from "./bext";
+import { bextCodingHistory, encodeBext } from "./bext";
 import type { BextInput } from "./bext";
 import { encodeInterleavedFloat, interleave, TpdfDither } from "./codecs";
 import type { SampleEncoding } from "./codecs";
@@ -189,7 +189,7 @@ export class BwfWriter {
     const parts: Uint8Array[] = [chunkHeader("RIFF", 0), new Uint8Array([0x57, 0x41, 0x56, 0x45])];
     parts.push(chunkHeader("JUNK", DS64_BODY), new Uint8Array(DS64_BODY));
     // bext body is already padded to even length; its size field holds the unpadded length.
-    const bextSize = 602 + (options.bext?.codingHistory?.length ?? 0);
+    const bextSize = 602 + bextCodingHistory(options.bext?.codingHistory ?? "").length;
     parts.push(chunkHeader("bext", bextSize), bextBody);
     parts.push(chunkHeader("fmt ", fmtBody.length), fmtBody);
     let offset = parts.reduce((s, p) => s + p.length, 0);

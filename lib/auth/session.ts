@@ -10,13 +10,17 @@ import type { SessionUser } from "./session-user";
 /**
  * The signed-in person, read afresh from the database on every request: a role change
  * or a deactivation takes effect at the next request, whatever the session cookie says.
+ * A cookie signed in under an older session version (lib/auth/session-version.ts: the
+ * person signed out, reset the password, was deactivated or changed role since) is no
+ * session at all.
  */
 export async function currentUser(): Promise<SessionUser | null> {
   const session = await getServerSession(authOptions);
   const id = session?.user?.id;
   if (!id) return null;
-  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active"]).where("id", "=", id).executeTakeFirst();
+  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active", "session_version"]).where("id", "=", id).executeTakeFirst();
   if (!user || !user.active) return null;
+  if (session.user?.sessionVersion !== user.session_version) return null;
   return { id: user.id, email: user.email, name: user.name, role: user.role };
 }
 

@@ -36,7 +36,7 @@ async function record(email: string, succeeded: boolean, reason: string | null, 
 }
 
 /** Checks an e-mail and password; returns the person, or throws SignInRefused with a message to show. */
-export async function checkCredentials(input: { email: unknown; password: unknown }, ip: string | null): Promise<SessionUser> {
+export async function checkCredentials(input: { email: unknown; password: unknown }, ip: string | null): Promise<SessionUser & { sessionVersion: number }> {
   const parsed = signInSchema.safeParse(input);
   if (!parsed.success) throw new SignInRefused(parsed.error.issues[0]?.message ?? signInMessages.wrong);
   const { email, password } = parsed.data;
@@ -49,7 +49,7 @@ export async function checkCredentials(input: { email: unknown; password: unknow
   const delay = throttleDelayMs(failures);
   if (delay) await new Promise((r) => setTimeout(r, delay));
 
-  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active", "password_hash"]).where("email", "=", email).executeTakeFirst();
+  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active", "password_hash", "session_version"]).where("email", "=", email).executeTakeFirst();
   const ok = user ? await verifyPassword(password, user.password_hash) : await verifyAgainstDecoy(password);
   if (!user || !ok) {
     await record(email, false, user ? "wrong-password" : "unknown-address", ip);
@@ -60,5 +60,5 @@ export async function checkCredentials(input: { email: unknown; password: unknow
     throw new SignInRefused(signInMessages.inactive);
   }
   await record(email, true, null, ip);
-  return { id: user.id, email: user.email, name: user.name, role: user.role };
+  return { id: user.id, email: user.email, name: user.name, role: user.role, sessionVersion: user.session_version };
 }

@@ -54,6 +54,9 @@ export interface Upload {
  * fields alongside it), or the CSV itself as a text/csv body with the other fields in
  * the query string.
  */
+/** The bodies readUpload takes: route() refuses any other (lib/http/route.ts). */
+export const uploadMediaTypes = ["multipart/form-data", "text/csv", "text/plain", "application/csv"] as const;
+
 export async function readUpload(req: NextRequest): Promise<Upload> {
   const type = (req.headers.get("content-type") ?? "").toLowerCase();
   const declared = Number(req.headers.get("content-length") ?? 0);

@@ -69,6 +69,17 @@ function eventTypeUri(type: string): string | undefined {
   return slug ? `${EVENT_TYPE_AUTHORITY}/${slug}` : undefined;
 }
 
+/**
+ * Text as XML 1.0 can carry it. XML 1.0 allows only tab, line feed, carriage return and
+ * U+0020–U+D7FF, U+E000–U+FFFD, U+10000–U+10FFFF (XML 1.0 §2.2, production [2] Char);
+ * a stored title may hold others (a vertical tab pasted from a word processor, half of a
+ * surrogate pair). Each is written as U+FFFD, the Unicode replacement character, so the
+ * export stays well-formed and still shows that something was there.
+ */
+export function xmlText(text: string): string {
+  return text.replace(/[^\t\n\r\u0020-\uD7FF\uE000-\uFFFD\u{10000}-\u{10FFFF}]/gu, "\uFFFD");
+}
+
 export function premisXml(record: PremisRecord): string {
   const root = create({ version: "1.0", encoding: "UTF-8" }).ele(PREMIS_NS, "premis:premis", {
     "xmlns:xsi": XSI_NS,
@@ -76,8 +87,9 @@ export function premisXml(record: PremisRecord): string {
     version: "3.0",
   });
   const p = (parent: ReturnType<typeof root.ele>, name: string, text?: string, attrs?: Record<string, string>) => {
-    const el = parent.ele(PREMIS_NS, `premis:${name}`, attrs);
-    if (text !== undefined) el.txt(text);
+    const safeAttrs = attrs ? Object.fromEntries(Object.entries(attrs).map(([k, v]) => [k, xmlText(v)])) : undefined;
+    const el = parent.ele(PREMIS_NS, `premis:${name}`, safeAttrs);
+    if (text !== undefined) el.txt(xmlText(text));
     return el;
   };
 

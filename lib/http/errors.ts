@@ -1,3 +1,4 @@
+import "../validation/zod-setup";
 import { ZodError } from "zod";
 
 export type ErrorCode =
@@ -10,6 +11,8 @@ export type ErrorCode =
   | "used"
   | "throttled"
   | "unavailable"
+  | "cross_site"
+  | "unsupported_media_type"
   | "internal";
 
 /** The one error type: a code, an HTTP status, a message a person can act on, and field errors. */
@@ -41,9 +44,17 @@ export function fromZod(error: ZodError, message = "Some fields need attention."
   return new AppError("invalid", 422, message, fields);
 }
 
+/** PostgreSQL's answer to a NUL character in text (SQLSTATE 22021, character_not_in_repertoire). */
+function isNulRefusedByDatabase(err: unknown): boolean {
+  return typeof err === "object" && err !== null && (err as { code?: unknown }).code === "22021";
+}
+
 export function toAppError(err: unknown): AppError {
   if (err instanceof AppError) return err;
   if (err instanceof ZodError) return fromZod(err);
+  // A backstop: inputs are checked where they come in (lib/validation/text.ts); text that
+  // slipped past is still the sender's mistake, not the server's.
+  if (isNulRefusedByDatabase(err)) return new AppError("invalid", 422, "Some text holds a NUL character (U+0000), which the record cannot keep: remove it.", { _: ["Text holds a NUL character."] });
   console.error("[rillbook] unexpected error:", err);
   return new AppError("internal", 500, "Something went wrong on the server. The error has been logged.");
 }

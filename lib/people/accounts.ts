@@ -3,6 +3,7 @@ import { sql, type Transaction } from "kysely";
 import { db } from "../../db";
 import type { Database } from "../../db/types";
 import type { SessionUser } from "../auth/session-user";
+import { endSessions } from "../auth/session-version";
 import { AppError } from "../http/errors";
 import { changeRoleSchema, setActiveSchema } from "../validation/people";
 import { recordPeopleChange } from "./changes";
@@ -37,11 +38,16 @@ export async function changeRole(actor: SessionUser, input: { userId: unknown; r
       throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
     }
     await trx.updateTable("users").set({ role, updated_at: sql`now()` }).where("id", "=", userId).execute();
+    // The person signs in again under the new role: no session keeps the old one's pages open.
+    await endSessions(trx, userId);
     await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: userId, subjectEmail: user.email, kind: "role_changed", detail: { from: user.role, to: role } });
   });
 }
 
-/** Deactivation takes effect at the person's next request: every check reads `active` afresh. */
+/**
+ * Deactivation takes effect at the person's next request: every check reads `active` afresh,
+ * and the person's sessions end, so a reactivation does not bring an old cookie back to life.
+ */
 export async function setActive(actor: SessionUser, input: { userId: unknown; active: unknown }): Promise<void> {
   const { userId, active } = setActiveSchema.parse(input);
   await db.transaction().execute(async (trx) => {
@@ -52,6 +58,7 @@ export async function setActive(actor: SessionUser, input: { userId: unknown; ac
       throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
     }
     await trx.updateTable("users").set({ active, updated_at: sql`now()` }).where("id", "=", userId).execute();
+    await endSessions(trx, userId);
     await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: userId, subjectEmail: user.email, kind: active ? "reactivated" : "deactivated" });
   });
 }

@@ -2,6 +2,7 @@ import "server-only";
 import { sql } from "kysely";
 import { db } from "../../db";
 import { hashPassword } from "../auth/password";
+import { endSessions } from "../auth/session-version";
 import { hashToken, newToken } from "../auth/tokens";
 import { env } from "../env";
 import { AppError } from "../http/errors";
@@ -68,6 +69,8 @@ export async function resetPassword(input: { token: unknown; password: unknown; 
     if (!row.active) throw new AppError("forbidden", 403, "This account has been deactivated. Ask the lab's admin.");
     await trx.updateTable("password_resets").set({ used_at: sql`now()` }).where("id", "=", row.id).execute();
     await trx.updateTable("users").set({ password_hash: passwordHash, updated_at: sql`now()` }).where("id", "=", row.userId).execute();
+    // Whoever knew the old password may hold a session: every session of the account ends.
+    await endSessions(trx, row.userId);
     await recordPeopleChange(trx, { actorId: row.userId, subjectUserId: row.userId, subjectEmail: row.email, kind: "password_reset" });
     return { email: row.email };
   });

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { cleanString } from "./text";
 
 export const discFormats = ["shellac_78", "instantaneous_lacquer", "transcription", "vinyl_78", "microgroove_lp", "other"] as const;
 export const formatLabels: Record<(typeof discFormats)[number], string> = {
@@ -29,7 +30,7 @@ export const statusLabels: Record<SideStatusName, string> = {
 /** Nominal speeds archivists log; "other" takes a value. 33⅓ is stored as 33.33. */
 export const nominalSpeeds = [78, 80, 33.33, 45] as const;
 
-const text = (max: number, what: string) => z.string().trim().max(max, `${what}: at most ${max} characters.`);
+const text = (max: number, what: string) => cleanString().trim().max(max, `${what}: at most ${max} characters.`);
 const optionalText = (max: number, what: string) => text(max, what).default("");
 const year = z.coerce
   .number({ error: "Give a year as four digits." })

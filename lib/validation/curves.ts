@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { normalizeRolloffDb } from "../curves/names";
+import { cleanString } from "./text";
 
 const finite = (what: string) => z.number({ error: `${what} must be a number.` }).refine(Number.isFinite, `${what} must be a finite number.`);
 
@@ -22,20 +23,20 @@ export const curveSpecSchema = z.object({
   speedRatio: finite("Speed ratio").nullish(),
 });
 
-export const presetNameSchema = z.string().trim().min(1, "Give the preset a name.").max(120, "Use at most 120 characters for the name.");
-export const changeNoteSchema = z.string().trim().min(3, "Say why (a short note is required for every version).").max(2000);
+export const presetNameSchema = cleanString().trim().min(1, "Give the preset a name.").max(120, "Use at most 120 characters for the name.");
+export const changeNoteSchema = cleanString().trim().min(3, "Say why (a short note is required for every version).").max(2000);
 
 export const createPresetSchema = z.object({
   name: presetNameSchema,
   spec: curveSpecSchema,
-  notes: z.string().max(8000).default(""),
+  notes: cleanString().max(8000).default(""),
   changeNote: changeNoteSchema,
 });
 
 export const updatePresetSchema = z.object({
   name: presetNameSchema.optional(),
   spec: curveSpecSchema.optional(),
-  notes: z.string().max(8000).optional(),
+  notes: cleanString().max(8000).optional(),
   changeNote: changeNoteSchema,
 });
 

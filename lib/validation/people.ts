@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { roles } from "../auth/roles";
+import { cleanString } from "./text";
 
 export const emailSchema = z
   .string({ error: "Enter an e-mail address." })
@@ -15,7 +16,7 @@ export const passwordSchema = z
   .min(12, "Use at least 12 characters for the password.")
   .max(200, "Use at most 200 characters for the password.");
 
-export const nameSchema = z.string().trim().min(1, "Enter your name.").max(120, "Use at most 120 characters for the name.");
+export const nameSchema = cleanString().trim().min(1, "Enter your name.").max(120, "Use at most 120 characters for the name.");
 
 export const roleSchema = z.enum(roles, { error: `Unknown role: choose one of ${roles.join(", ")}.` });
 

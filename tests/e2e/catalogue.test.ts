@@ -7,7 +7,7 @@
 import type { Browser, BrowserContext, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
-import { appUrl } from "../support/app";
+import { appUrl, sameOrigin } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 
 let browser: Browser;
@@ -118,6 +118,7 @@ describe("catalogue", () => {
 
     const { accessions } = (await (await first.page.request.get(`${appUrl}/api/accessions`)).json()) as { accessions: { id: string }[] };
     const created = await first.page.request.post(`${appUrl}/api/discs`, {
+      headers: sameOrigin,
       data: { accessionId: accessions[0].id, shelfMark: `E2E-EDIT-${run}`, labelName: "Varrowby", format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: [{ designation: "A" }] },
     });
     expect(created.status()).toBe(201);

@@ -7,7 +7,7 @@ import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { catalogueColumns, readCatalogueCsv } from "@/lib/catalogue/csv-format";
-import { api, appUrl, signInCookie } from "../support/app";
+import { api, appUrl, sameOrigin, signInCookie } from "../support/app";
 import { testDb } from "../support/db";
 
 let archivist: string;
@@ -51,12 +51,12 @@ async function upload(
   let res: Response;
   if (opts.as === "text") {
     const query = new URLSearchParams({ ...opts.fields, fileName: opts.fileName ?? "discs.csv" });
-    res = await fetch(`${appUrl}${path}?${query}`, { method: "POST", headers: { cookie: opts.cookie, accept: "application/json", "content-type": "text/csv; charset=utf-8" }, body: csv });
+    res = await fetch(`${appUrl}${path}?${query}`, { method: "POST", headers: { ...sameOrigin, cookie: opts.cookie, accept: "application/json", "content-type": "text/csv; charset=utf-8" }, body: csv });
   } else {
     const form = new FormData();
     form.set("file", new Blob([csv], { type: "text/csv" }), opts.fileName ?? "discs.csv");
     for (const [k, v] of Object.entries(opts.fields ?? {})) form.set(k, v);
-    res = await fetch(`${appUrl}${path}`, { method: "POST", headers: { cookie: opts.cookie, accept: "application/json" }, body: form });
+    res = await fetch(`${appUrl}${path}`, { method: "POST", headers: { ...sameOrigin, cookie: opts.cookie, accept: "application/json" }, body: form });
   }
   const text = await res.text();
   let body: unknown = text;

@@ -4,6 +4,13 @@ import path from "node:path";
 
 export const appUrl = process.env.APP_URL ?? "http://127.0.0.1:3100";
 
+/**
+ * The header a browser sends with every state-changing request from the app's own pages.
+ * The app refuses a POST, PUT, PATCH or DELETE that does not show where it comes from
+ * (lib/http/same-origin.ts), so every test request that changes something sends it.
+ */
+export const sameOrigin = { origin: new URL(appUrl).origin } as const;
+
 /** Signs in through next-auth's credentials endpoint and returns the cookie header of the session. */
 export async function signInCookie(email: string, password: string): Promise<string> {
   const csrfRes = await fetch(`${appUrl}/api/auth/csrf`);
@@ -33,7 +40,7 @@ export async function api(pathname: string, opts: { cookie?: string; method?: st
   const res = await fetch(`${appUrl}${pathname}`, {
     method: opts.method ?? "GET",
     redirect: "manual",
-    headers: { accept: "application/json", ...(opts.cookie ? { cookie: opts.cookie } : {}), ...(opts.body !== undefined ? { "content-type": "application/json" } : {}) },
+    headers: { accept: "application/json", ...sameOrigin, ...(opts.cookie ? { cookie: opts.cookie } : {}), ...(opts.body !== undefined ? { "content-type": "application/json" } : {}) },
     body: opts.body !== undefined ? JSON.stringify(opts.body) : undefined,
   });
   const text = await res.text();

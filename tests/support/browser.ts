@@ -5,7 +5,37 @@ import path from "node:path";
 import { type Browser, chromium, type Page } from "playwright-core";
 import { appUrl } from "./app";
 
+/**
+ * Every Content-Security-Policy violation chromium reports on any page of this test file
+ * (tests/support/e2e-setup.ts fails the file if there is one): the end-to-end tests
+ * double as the proof that the pages work under the policy.
+ */
+export const cspViolations: string[] = [];
+
+function watchCsp(page: Page): void {
+  page.on("console", (m) => {
+    if (/Content Security Policy/i.test(m.text())) cspViolations.push(`${page.url()}: ${m.text()}`);
+  });
+}
+
 export async function launchBrowser(): Promise<Browser> {
+  const browser = await launch();
+  // browser.newPage() makes its context through newContext() as well.
+  const newContext = browser.newContext.bind(browser);
+  browser.newContext = async (...args) => {
+    const context = await newContext(...args);
+    // Some refusals (WebAssembly compilation, say) throw in the page without a console
+    // line: the violation event reports every one.
+    await context.addInitScript(() => {
+      document.addEventListener("securitypolicyviolation", (e) => console.error(`Content Security Policy violation: ${e.effectiveDirective} blocked ${e.blockedURI || "inline"}`));
+    });
+    context.on("page", watchCsp);
+    return context;
+  };
+  return browser;
+}
+
+function launch(): Promise<Browser> {
   return chromium.launch({
     executablePath: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
     args: [

@@ -4,7 +4,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { WaveFile } from "wavefile";
-import { BwfWriter, bufferSource, encodeBext, formatCodingHistoryLine, parseBext, parseCodingHistory, readWavHeader } from "@/lib/audio";
+import { BwfWriter, bextAscii, bufferSource, encodeBext, formatCodingHistoryLine, parseBext, parseCodingHistory, readWavHeader } from "@/lib/audio";
 import type { SampleEncoding } from "@/lib/audio";
 import { CORPUS_BEXT, testSignal } from "../support/wav-corpus";
 
@@ -151,10 +151,22 @@ describe("bext and coding history", () => {
     expect(parseBext(body)).toEqual({ ...CORPUS_BEXT });
   });
 
-  it("refuses fields that would not fit or are not ASCII", () => {
-    expect(() => encodeBext({ originator: "x".repeat(33) })).toThrow(/originator is 33 characters; EBU Tech 3285 allows 32/);
-    expect(() => encodeBext({ description: "Café" })).toThrow(/non-ASCII/);
+  it("writes any name in the free-text fields as faithful ASCII cut to the field, and refuses a malformed date", () => {
+    const body = encodeBext({ description: "Pathé Frères, Łódź: Straße der Nørre Æbelø — «Œuvres» 33⅓", originator: "x".repeat(40), originatorReference: "Ærø\u0000\u000b" });
+    const read = parseBext(body);
+    expect(read.description).toBe('Pathe Freres, Lodz: Strasse der Norre AEbelo - "OEuvres" 331/3');
+    expect(read.originator).toBe("x".repeat(32));
+    expect(read.originatorReference).toBe("AEro");
+    // Every byte of the 602-byte fixed part's text fields is ASCII (Tech 3285).
+    expect(body.subarray(0, 320).every((b) => b < 0x80)).toBe(true);
+    expect(bextAscii("Дом 東京")).toBe("??? ??");
     expect(() => encodeBext({ originationDate: "14/03/2026" })).toThrow(/yyyy-mm-dd/);
+  });
+
+  it("writes a coding history with accents as ASCII and sizes the chunk by what it wrote", () => {
+    const body = encodeBext({ codingHistory: "A=ANALOGUE,M=mono,T=Pathé 78\r\n" });
+    expect(parseBext(body).codingHistory).toBe("A=ANALOGUE,M=mono,T=Pathe 78\r\n");
+    expect(body.length).toBe(602 + 30);
   });
 
   it("formats EBU R98 lines and parses them back", () => {

@@ -1,4 +1,4 @@
-import { commitImport, readUpload } from "@/lib/catalogue/csv";
+import { commitImport, readUpload, uploadMediaTypes } from "@/lib/catalogue/csv";
 import { route } from "@/lib/http/route";
 
 export const dynamic = "force-dynamic";
@@ -16,4 +16,4 @@ export const POST = route("POST /api/imports", async (req, { user }) => {
   }
   const { ok, ...done } = result;
   return Response.json(done, { status: 201 });
-});
+}, { accepts: uploadMediaTypes });

@@ -242,7 +242,7 @@ describe("review and audit", () => {
     await expect(item("side.approved").innerText()).resolves.toMatch(new RegExp(`${second.name} approved side A: its flat transfer, curve and access copy`));
     await expect(item("side.approved").innerText()).resolves.toMatch(/Curve\s*RIAA .* \+ rolloff 13\.7 dB attenuation at 10 kHz/);
     await expect(item("side.returned").innerText()).resolves.toContain(`returned side A to the engineer: “${returnReason}”`);
-    await expect(item("side.transfer_accepted").innerText()).resolves.toMatch(new RegExp(`uploaded the flat transfer ${shelfMark}_A_flat\\.wav of side A \\(SHA-256 [0-9a-f]{8}…\\)`));
+    await expect(item("side.transfer_accepted").innerText()).resolves.toMatch(new RegExp(`uploaded the flat transfer ${shelfMark} A flat\\.wav of side A \\(SHA-256 [0-9a-f]{8}…\\)`));
     await expect(item("side.rendered").first().innerText()).resolves.toMatch(/rendered the access copy of side A .*from .*flat\.wav through RIAA .* \+ rolloff 13\.7 dB attenuation at 10 kHz, at [\d.]+ kHz, \d+-bit \(SHA-256 [0-9a-f]{8}…\)/);
     const fixity = await item("side.fixity_checked").allInnerTexts();
     expect(fixity.length).toBeGreaterThanOrEqual(2);

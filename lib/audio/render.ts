@@ -76,6 +76,8 @@ export interface RenderOptions {
   chunkFrames?: number;
   /** bext fields of the access copy; the coding history is built here. */
   bext?: Omit<BextInput, "codingHistory">;
+  /** The description and originator in full Unicode (an iXML chunk), where bext holds them as ASCII. */
+  unicodeText?: { project?: string; note: string };
   /** Recorded as the equalization line of the coding history. */
   equalization?: EqualizationNote;
   /** Fraction done, 0…1, called after each chunk. */
@@ -268,6 +270,7 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       channels: channelsOut,
       encoding: output,
       bext: { ...opts.bext, codingHistory: codingHistoryFor(toDb(gain)) },
+      unicodeText: opts.unicodeText,
       ditherSeed: opts.ditherSeed,
       rf64ThresholdBytes: opts.rf64ThresholdBytes,
       dsp,

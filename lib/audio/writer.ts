@@ -47,6 +47,12 @@ export interface BwfWriterOptions {
   encoding: SampleEncoding;
   /** bext fields; a bext chunk is always written (empty fields when absent). */
   bext?: BextInput;
+  /**
+   * Text in full Unicode that the bext chunk can carry only as ASCII (the bext fields are
+   * ASCII: EBU Tech 3285), written as an iXML chunk (UTF-8 XML, the iXML specification's
+   * PROJECT and NOTE fields) beside it.
+   */
+  unicodeText?: { project?: string; note: string };
   /** TPDF dither for integer output (default true). */
   dither?: boolean;
   /** Seed of the dither generator (default fixed), so renders reproduce byte for byte. */
@@ -77,6 +83,28 @@ export interface BwfWriteResult {
   clippedSamples: number;
   /** SHA-256 of the whole file, when `expectedFrames` was given and met; else null. */
   sha256: string | null;
+}
+
+/** Characters XML 1.0 cannot carry (C0 controls but tab and line ends, lone surrogates, U+FFFE/U+FFFF) become U+FFFD. */
+function xmlEscape(text: string): string {
+  return text
+    .replace(/[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g, "\uFFFD")
+    .replace(/&/g, "&amp;")
+    .replace(/</g, "&lt;")
+    .replace(/>/g, "&gt;");
+}
+
+/** A minimal iXML document (UTF-8): the project and a note, in full Unicode. */
+export function ixmlDocument(text: { project?: string; note: string }): string {
+  return [
+    '<?xml version="1.0" encoding="UTF-8"?>',
+    "<BWFXML>",
+    "<IXML_VERSION>2.10</IXML_VERSION>",
+    ...(text.project ? [`<PROJECT>${xmlEscape(text.project)}</PROJECT>`] : []),
+    `<NOTE>${xmlEscape(text.note)}</NOTE>`,
+    "</BWFXML>",
+    "",
+  ].join("\n");
 }
 
 function chunkHeader(id: string, size: number): Uint8Array {
@@ -191,6 +219,12 @@ export class BwfWriter {
     // bext body is already padded to even length; its size field holds the unpadded length.
     const bextSize = 602 + bextCodingHistory(options.bext?.codingHistory ?? "").length;
     parts.push(chunkHeader("bext", bextSize), bextBody);
+    if (options.unicodeText) {
+      const xml = new TextEncoder().encode(ixmlDocument(options.unicodeText));
+      const padded = new Uint8Array(xml.length + (xml.length & 1));
+      padded.set(xml);
+      parts.push(chunkHeader("iXML", xml.length), padded);
+    }
     parts.push(chunkHeader("fmt ", fmtBody.length), fmtBody);
     let offset = parts.reduce((s, p) => s + p.length, 0);
     let factAt: number | null = null;

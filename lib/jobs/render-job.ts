@@ -78,6 +78,8 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     const model = buildAnalogModel(curve);
     const filter = designRenderFilterFromModel(model, job.sampleRateHz);
     const outputRateHz = job.outputRateHz ?? job.sampleRateHz;
+    // The bext fields are ASCII (transliterated by the writer); the full text goes in an iXML chunk and the render's record.
+    const description = `${job.shelfMark} side ${job.designation}: ${[job.labelName, job.catalogueNumber].filter(Boolean).join(" ")}. Equalized access copy.`;
     const source = await objectSource(job.transferKey);
     const header = await readWavHeader(source);
     let lastWrite = 0;
@@ -91,13 +93,14 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       output: { format: "pcm", bitsPerSample: job.bitDepth as 16 | 24 },
       outputSampleRateHz: outputRateHz,
       bext: {
-        description: `${job.shelfMark} side ${job.designation}: ${[job.labelName, job.catalogueNumber].filter(Boolean).join(" ")}. Equalized access copy.`.slice(0, 256),
+        description: description.slice(0, 256),
         originator: env().LAB_NAME.slice(0, 32),
         originatorReference: `RB${renderId.replace(/-/g, "").slice(0, 30)}`,
         originationDate: now.toISOString().slice(0, 10),
         originationTime: now.toISOString().slice(11, 19),
         timeReference: header.bext?.timeReference ?? 0,
       },
+      unicodeText: { project: env().LAB_NAME, note: description },
       equalization: { curve: curveText(curve), speedRatio: curve.speedRatio, software: softwareName() },
       onProgress: (fraction) => {
         const t = Date.now();
@@ -142,6 +145,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
           transfer: { id: job.transferId, sha256: job.transferSha256 },
           curveChoiceId: job.choiceId,
           accessCopy: { objectKey: key, sha256: result.sha256, bytes: result.outputBytes, container: result.container, bitDepth: job.bitDepth, sampleRateHz: outputRateHz, channelMode: job.channelMode },
+          description,
           trimDb: result.trimDb,
           peakDbfs: result.peakDbfs,
           filter: filterRecord,

@@ -288,7 +288,7 @@ describe("odd text", () => {
     expect(xml).toContain("Copper\ufffdMeadow Serenade");
   });
 
-  it("renders a disc labelled Pathé, with the label transliterated in the bext Description", async () => {
+  it("renders a disc labelled Pathé, with the label transliterated in the bext Description and in full in the iXML chunk", async () => {
     const engineerId = (await testDb.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email).executeTakeFirstOrThrow()).id;
     const acc = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `PA-${tag}`, source: "Security tests", receivedOn: "2026-12-01" } });
     const disc = await api("/api/discs", {
@@ -309,5 +309,10 @@ describe("odd text", () => {
     const file = new Uint8Array(await (await fetch(link.headers.get("location")!)).arrayBuffer());
     const header = await readWavHeader(bufferSource(file));
     expect(header.bext?.description).toBe(`PA-${tag} side A: Pathe Freres O 1207. Equalized access copy.`);
+    // The full text where Unicode is allowed: the file's iXML chunk (UTF-8) and the render's record.
+    const full = `PA-${tag} side A: Pathé Frères Ø 1207. Equalized access copy.`;
+    expect(Buffer.from(file).toString("utf8")).toContain(`<NOTE>${full}</NOTE>`);
+    const rendered = await testDb.selectFrom("provenance_events").select("payload").where("subject_id", "=", sideId).where("kind", "=", "side.rendered").executeTakeFirstOrThrow();
+    expect((rendered.payload as { description: string }).description).toBe(full);
   }, 180_000);
 });

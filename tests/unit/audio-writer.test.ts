@@ -180,3 +180,38 @@ describe("bext and coding history", () => {
     ]);
   });
 });
+
+describe("the full Unicode text beside the ASCII bext", () => {
+  it("writes an iXML chunk in UTF-8 that general-purpose readers parse, with the samples where they were", async () => {
+    const path = join(dir, "unicode-text.wav");
+    const note = "MH-D00007 side A: Pathé Frères Ø 1207 — “Łódź” <take 2> & co. Equalized access copy.";
+    const values = testSignal(2000, 2, 5, 0.5);
+    const writer = await BwfWriter.create(path, {
+      sampleRateHz: 48_000,
+      channels: 2,
+      encoding: { format: "pcm", bitsPerSample: 24 },
+      bext: { description: note, originator: "Marrow Hill Sound Archive" },
+      unicodeText: { project: "Marrow Hill Sound Archive", note },
+      dither: false,
+    });
+    await writer.write(values);
+    await writer.close();
+    const bytes = new Uint8Array(await readFile(path));
+    // Source: wavefile (npm) reads the iXML chunk and the bext chunk on its own.
+    const wav = new WaveFile(bytes);
+    const ixml = (wav as unknown as { getiXML(): string }).getiXML();
+    expect(ixml).toContain("<NOTE>MH-D00007 side A: Pathé Frères Ø 1207 — “Łódź” &lt;take 2&gt; &amp; co. Equalized access copy.</NOTE>");
+    expect(ixml).toContain("<PROJECT>Marrow Hill Sound Archive</PROJECT>");
+    // The bext description stays ASCII, transliterated (EBU Tech 3285 text fields are ASCII).
+    const description = String((wav.bext as Record<string, unknown>).description).replace(/\0+$/, "");
+    expect(description).toMatch(/^MH-D00007 side A: Pathe Freres O 1207/);
+    expect(/^[\x20-\x7e]*$/.test(description)).toBe(true);
+    // The samples are unchanged by the extra chunk.
+    const samples = wav.getSamples(false) as unknown as Float64Array[];
+    expect(Array.from(samples[0].subarray(0, 50))).toEqual(Array.from(values[0].subarray(0, 50), (v) => Math.round(v * 2 ** 23)));
+    // Our own reader skips it and finds the data.
+    const header = await readWavHeader(bufferSource(bytes));
+    expect(header.frames).toBe(2000);
+    expect(ascii(bytes, 12)).toBe("JUNK");
+  });
+});

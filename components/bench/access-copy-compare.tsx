@@ -17,6 +17,7 @@ import { openTransfer, readWindow } from "@/lib/audition/transfer-window";
 import type { CurveSpec } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { formatDuration } from "./progress-bar";
+import { VolumeControl } from "./volume-control";
 import type { ChannelMode, TransferJson } from "./types";
 
 const WINDOW_SECONDS = 30;
@@ -154,25 +155,13 @@ export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { rend
           {playing ? "Playing" : "Stopped"} · <span className="font-semibold">{active === "access" ? "A, the access copy" : "B, the flat transfer through the curve"}</span>
         </p>
         <div className="ml-auto flex items-center gap-2">
-          <label htmlFor={`${uid}-vol`} className="text-sm font-medium">
-            Volume
-          </label>
-          <input
-            id={`${uid}-vol`}
-            type="range"
-            min={-60}
-            max={0}
-            step={1}
-            value={volumeDb}
-            onChange={(e) => {
-              const v = Number(e.target.value);
+          <VolumeControl
+            valueDb={volumeDb}
+            onChange={(v) => {
               setVolumeDb(v);
               playerRef.current?.setVolumeDb(v);
             }}
-            aria-valuetext={`${volumeDb} dB`}
-            className="w-32 accent-[#a9591a]"
           />
-          <span className="w-12 font-mono text-xs">{volumeDb} dB</span>
         </div>
       </div>
       <div className="flex items-center gap-3">

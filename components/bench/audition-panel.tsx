@@ -19,6 +19,7 @@ import { describeCurve } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { channelModeLabels } from "@/lib/validation/transfers";
 import { formatDuration } from "./progress-bar";
+import { VolumeControl } from "./volume-control";
 import { candidateColor, FLAT_COLOR, type SpectrumLine, SpectrumPlot } from "./spectrum-plot";
 import type { Candidate, ChannelMode, TransferJson } from "./types";
 
@@ -335,26 +336,14 @@ export function AuditionPanel({
           {playing ? "Playing" : "Stopped"} · <span className="font-semibold">{activeLabel}</span>
         </p>
         <div className="ml-auto flex items-center gap-2">
-          <label htmlFor={`${uid}-vol`} className="text-sm font-medium">
-            Volume
-          </label>
-          <input
-            id={`${uid}-vol`}
-            type="range"
-            min={-60}
-            max={0}
-            step={1}
-            value={volumeDb}
-            onChange={(e) => {
-              const v = Number(e.target.value);
+          <VolumeControl
+            valueDb={volumeDb}
+            onChange={(v) => {
               setVolumeDb(v);
               playerRef.current?.setVolumeDb(v);
             }}
-            aria-valuetext={`${volumeDb} dB`}
-            className="w-36 accent-[#a9591a]"
-            data-testid="audition-volume"
+            testId="audition-volume"
           />
-          <span className="w-14 font-mono text-xs">{volumeDb} dB</span>
           <span className={cx("rounded px-1.5 py-0.5 text-[0.7rem] font-medium", guardDb < -1 ? "bg-shellac-wash text-shellac-deep" : "bg-paper-deep text-ink-faint")} title="How much the peak guard is holding back">
             guard {guardDb < -0.1 ? `${guardDb.toFixed(0)} dB` : "idle"}
           </span>

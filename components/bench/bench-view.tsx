@@ -196,7 +196,7 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                       No flat transfer yet. You may record a curve now (from published guidance for the label, say); the transfer does not wait for it, and you can still change the curve after listening.
                     </p>
                   ) : null}
-                  <CurveChoiceForm key={current?.id ?? "none"} data={data} current={current} extraSideIds={extraSideIds} onEffectiveSpec={onEffectiveSpec} prefill={prefill} />
+                  <CurveChoiceForm key={current?.id ?? "none"} data={data} current={current} extraSideIds={extraSideIds} onEffectiveSpec={onEffectiveSpec} prefill={prefill && prefill.against === (current?.id ?? null) ? prefill : null} />
                 </div>
               ) : (
                 // The server refuses a new choice here; the recorded one stands below.

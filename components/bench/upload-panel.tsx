@@ -52,7 +52,7 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
   const f = (k: string) => state.fields?.[k];
   return (
     <div className="space-y-4" data-testid="upload-panel">
-      {replaces && canUpload ? (
+      {replaces && canUpload && file && state.phase !== "done" ? (
         <Notice tone="info" title="A new transfer replaces the current one">
           The side keeps every transfer, but a newly accepted one becomes the one the access copy is made from: any access copy rendered so far is superseded and the side is rendered again.
         </Notice>

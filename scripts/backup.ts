@@ -22,11 +22,13 @@ import {
   type BackupDescription,
   databaseNameOf,
   descriptionFile,
+  descriptionSchema,
   dumpFile,
   hashFile,
   type Manifest,
   type ManifestObject,
   manifestFile,
+  manifestSchema,
   objectPath,
   pgConnection,
   pgProgram,
@@ -116,7 +118,7 @@ async function main(): Promise<number> {
     // everything below reads the very same state of the database.
     await client.query("BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY");
     const snapshot = (await client.query<{ s: string }>("SELECT pg_export_snapshot() AS s")).rows[0].s;
-    const serverVersion = (await client.query<{ v: string }>("SHOW server_version")).rows[0].v;
+    const serverVersion = (await client.query<{ v: string }>("SELECT current_setting('server_version') AS v")).rows[0].v;
 
     const dumpPath = path.join(dir, dumpFile);
     const { dbname, env: pgEnv } = pgConnection(ownerUrl);
@@ -194,8 +196,9 @@ async function main(): Promise<number> {
     database: { name: databaseNameOf(ownerUrl), serverVersion: dbInfo.serverVersion, dumpVersion, file: dumpFile, bytes: dumpStat.bytes, sha256: dumpStat.sha256, snapshot: dbInfo.snapshot, lastMigration: dbInfo.lastMigration },
     counts: { ...description.counts, objects: manifest.objects.length, objectBytes: manifest.objects.reduce((s, o) => s + (o.bytes ?? 0), 0) },
   };
-  await fs.writeFile(path.join(dir, manifestFile), `${JSON.stringify(manifest, null, 2)}\n`);
-  await fs.writeFile(path.join(dir, descriptionFile), `${JSON.stringify(finished, null, 2)}\n`);
+  // Written only in the form the restore reads.
+  await fs.writeFile(path.join(dir, manifestFile), `${JSON.stringify(manifestSchema.parse(manifest), null, 2)}\n`);
+  await fs.writeFile(path.join(dir, descriptionFile), `${JSON.stringify(descriptionSchema.parse(finished), null, 2)}\n`);
 
   const c = finished.counts;
   console.log(`backup written to ${dir}`);

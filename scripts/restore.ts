@@ -88,9 +88,10 @@ async function readBackup(dir: string): Promise<{ description: BackupDescription
     }
   };
   const description = descriptionSchema.safeParse(await read(descriptionFile));
-  if (!description.success) throw new Refused(`${descriptionFile} is not a backup description this version can read`);
+  const issues = (e: z.ZodError) => e.issues.slice(0, 3).map((i) => `${i.path.join(".")}: ${i.message}`).join("; ");
+  if (!description.success) throw new Refused(`${descriptionFile} is not a backup description this version can read (${issues(description.error)})`);
   const manifest = manifestSchema.safeParse(await read(manifestFile));
-  if (!manifest.success) throw new Refused(`${manifestFile} is not a manifest this version can read`);
+  if (!manifest.success) throw new Refused(`${manifestFile} is not a manifest this version can read (${issues(manifest.error)})`);
   return { description: description.data, manifest: manifest.data };
 }
 

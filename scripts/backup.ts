@@ -59,7 +59,7 @@ function runProgram(file: string, args: string[], extraEnv: Record<string, strin
   });
 }
 
-async function statusOf(key: string): Promise<number | null> {
+async function storedSize(key: string): Promise<number | null> {
   try {
     const head = await s3().send(new HeadObjectCommand({ Bucket: env().S3_BUCKET, Key: key }));
     return Number(head.ContentLength ?? 0);
@@ -178,7 +178,7 @@ async function main(): Promise<number> {
         if (o.source !== "record") Object.assign(o, { ...got, source: "measured" });
         copied++;
       } else {
-        const size = await statusOf(o.key);
+        const size = await storedSize(o.key);
         if (size === null) problems.push(`${o.kind} object ${o.key} is missing from the bucket`);
         else if (o.bytes !== null && size !== o.bytes) problems.push(`${o.kind} object ${o.key} holds ${size} bytes; the record says ${o.bytes}`);
         else if (o.bytes === null) Object.assign(o, { bytes: size, source: "measured" });

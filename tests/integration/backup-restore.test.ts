@@ -15,6 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb } from "@/db/client";
 import type { Database } from "@/db/types";
 import { takeCheckpoint } from "@/lib/provenance/checkpoints";
+import { api } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
 import { approvedDisc, type LabCookies, labCookies } from "../support/pipeline";
 
@@ -90,9 +91,22 @@ describe("backup and restore", () => {
     const cp = await takeCheckpoint(testDb, { reason: "requested" });
     expect(cp.status).toBe("written");
 
+    // The lab keeps working while the backup runs: an archivist records accessions back to back.
+    let writing = true;
+    let written = 0;
+    const writer = (async () => {
+      while (writing) {
+        const r = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `ACC-BR-${tag}-${written}`, source: "Backup drill", receivedOn: "2026-12-02" } });
+        expect(r.status).toBe(201);
+        written++;
+      }
+    })();
     const backup = await runScript("backup.ts", [dir, "--with-objects"]);
+    writing = false;
+    await writer;
     expect(backup.output).toContain("backup written");
     expect(backup.code).toBe(0);
+    expect(written).toBeGreaterThan(0);
     const description = JSON.parse(await fs.readFile(path.join(dir, "backup.json"), "utf8"));
     const manifest = JSON.parse(await fs.readFile(path.join(dir, "manifest.json"), "utf8"));
     const transfer = await testDb.selectFrom("transfers").select(["id", "object_key", "sha256"]).where("side_id", "=", sideId).executeTakeFirstOrThrow();
@@ -110,6 +124,15 @@ describe("backup and restore", () => {
     const restore = await runScript("restore.ts", [dir], target.env);
     expect(restore.output).toContain("restore verified: no differences");
     expect(restore.code).toBe(0);
+
+    // Dump and chain come from one moment: every accession recorded during the backup that the
+    // restored database holds has its event in the restored log, and none has one without its row.
+    const during = await target.db.selectFrom("accessions").select("id").where("identifier", "like", `ACC-BR-${tag}-%`).execute();
+    expect(during.length).toBeLessThanOrEqual(written);
+    const received = await target.db.selectFrom("provenance_events").select("subject_id").where("kind", "=", "accession.received").where("subject_id", "in", during.length ? during.map((a) => a.id) : ["00000000-0000-0000-0000-000000000000"]).execute();
+    expect(received.length).toBe(during.length);
+    const eventsDuring = await target.db.selectFrom("provenance_events").select(sql<number>`count(*)::int`.as("n")).where("kind", "=", "accession.received").where(sql<boolean>`payload->'after'->>'identifier' LIKE ${`ACC-BR-${tag}-%`}`).executeTakeFirstOrThrow();
+    expect(eventsDuring.n).toBe(during.length);
 
     // The same catalogue, as of the backup (nothing else changes it while this file runs).
     const discsLive = await testDb.selectFrom("discs").selectAll().orderBy("id").execute();

@@ -342,6 +342,13 @@ export interface StackEnv extends NodeJS.ProcessEnv {
   APP_URL: string;
 }
 
+/**
+ * The test profile's render lease is short, so a fault drill (tests/integration/faults.test.ts) sees a dead worker's render
+ * taken up again within seconds; the demo and production keep lib/jobs/render-lease.ts's defaults
+ * (renew every 10 s, stale after 90 s, swept every 30 s).
+ */
+const testLease = { RENDER_HEARTBEAT_SECONDS: "2", RENDER_LEASE_STALE_SECONDS: "15", RENDER_SWEEP_SECONDS: "5" };
+
 /** The environment the app, worker, scripts and tests of a profile run with. */
 export async function stackEnv(p: Profile): Promise<StackEnv> {
   const external = (key: string) => (p.honourExternal ? process.env[key] : undefined);
@@ -366,6 +373,7 @@ export async function stackEnv(p: Profile): Promise<StackEnv> {
     NEXTAUTH_SECRET: external("NEXTAUTH_SECRET") ?? (await secretFor(p)),
     MAIL_SINK_DIR: path.join(p.dir, "mail"),
     RILLBOOK_PROFILE: p.name,
+    ...(p.name === "test" ? testLease : {}),
   };
 }
 
@@ -415,13 +423,6 @@ export function workerChildPidFile(p: Profile): string {
 }
 
 /**
- * The test profile's render lease is short, so a fault drill sees a dead worker's render
- * taken up again within seconds; the demo and production keep the worker's defaults
- * (renew every 10 s, stale after 90 s, swept every 30 s).
- */
-const testLease = { RENDER_HEARTBEAT_SECONDS: "2", RENDER_LEASE_STALE_SECONDS: "15", RENDER_SWEEP_SECONDS: "5" };
-
-/**
  * Starts the worker under its supervisor (scripts/supervise-worker.ts), which starts it
  * again, after a back-off, whenever it exits and logs why. worker.pid records the
  * supervisor; the worker is its child in the same process group, so stopping the group
@@ -429,8 +430,7 @@ const testLease = { RENDER_HEARTBEAT_SECONDS: "2", RENDER_LEASE_STALE_SECONDS: "
  */
 export async function startWorker(p: Profile, env: NodeJS.ProcessEnv): Promise<void> {
   await stopPid(p, "worker");
-  const lease = p.name === "test" ? testLease : {};
-  await startDetached(p, "worker", ["--import", "tsx", "scripts/supervise-worker.ts"], { ...env, ...lease, WORKER_CHILD_PID_FILE: workerChildPidFile(p) });
+  await startDetached(p, "worker", ["--import", "tsx", "scripts/supervise-worker.ts"], { ...env, WORKER_CHILD_PID_FILE: workerChildPidFile(p) });
   log("worker started (supervised)");
 }
 

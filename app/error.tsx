@@ -3,6 +3,7 @@
 // restart, an outage) says so plainly: the server hides an error's text from the browser
 // in production, so this asks /api/health, which names each service's state.
 import { useEffect, useState } from "react";
+import { DatabaseUnavailable } from "@/components/shell/database-unavailable";
 import { GrooveMark } from "@/components/shell/groove-mark";
 
 type Cause = "checking" | "database" | "other";
@@ -19,20 +20,19 @@ export default function ErrorPage({ reset }: { error: Error & { digest?: string 
       live = false;
     };
   }, []);
-  const database = cause === "database";
+  const retry = (
+    <button type="button" onClick={() => { reset(); window.location.reload(); }} className="inline-block rounded-md bg-shellac px-4 py-2 text-sm font-medium text-white hover:bg-shellac-deep" data-testid="error-retry">
+      Try again
+    </button>
+  );
+  if (cause === "database") return <DatabaseUnavailable retry={retry} />;
   return (
-    <main className="flex min-h-screen items-center justify-center px-6" data-testid={database ? "database-unavailable" : "page-error"} data-cause={cause}>
+    <main className="flex min-h-screen items-center justify-center px-6" data-testid="page-error" data-cause={cause}>
       <div className="max-w-md space-y-4 text-center">
         <GrooveMark size={44} className="mx-auto" />
-        <h1 className="text-3xl font-semibold">{database ? "The lab's database is unavailable" : cause === "checking" ? "This page could not be shown" : "Something went wrong"}</h1>
-        <p className="text-ink-soft">
-          {database
-            ? "Rillbook cannot reach its database just now (it may be restarting). Nothing you did was half-saved: what was not confirmed was not recorded. Try again in a minute; if it lasts, tell the lab's admin."
-            : "The server could not show this page. The error has been logged; try again, and tell the lab's admin if it keeps happening."}
-        </p>
-        <button type="button" onClick={() => { reset(); window.location.reload(); }} className="inline-block rounded-md bg-shellac px-4 py-2 text-sm font-medium text-white hover:bg-shellac-deep" data-testid="error-retry">
-          Try again
-        </button>
+        <h1 className="text-3xl font-semibold">{cause === "checking" ? "This page could not be shown" : "Something went wrong"}</h1>
+        <p className="text-ink-soft">The server could not show this page. The error has been logged; try again, and tell the lab&apos;s admin if it keeps happening.</p>
+        {retry}
       </div>
     </main>
   );

@@ -17,7 +17,7 @@ import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../
 import { objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { softwareName } from "../version";
-import { leaseTimes, workerIdentity } from "./render-lease";
+import { leaseTimes, renderTmpPrefix, workerIdentity } from "./render-lease";
 
 /** The curve as the coding history records it: each corner's time constant as the filter uses it. */
 function curveText(c: ResolvedCurve): string {
@@ -84,14 +84,14 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
   const held = () => db.selectFrom("renders").select("id").where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).executeTakeFirst();
   // The lease is renewed while the render runs; a lost lease (cancelled, or handed back
   // after this worker stalled) is noticed here and before anything is stored.
+  const tmp = await fs.mkdtemp(path.join(os.tmpdir(), renderTmpPrefix()));
+  const outputPath = path.join(tmp, "access.wav");
   let leaseLost = false;
   const heartbeat = setInterval(() => {
     db.updateTable("renders").set({ heartbeat_at: new Date() }).where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).executeTakeFirst()
       .then((r) => { if (Number(r.numUpdatedRows) === 0) leaseLost = true; })
       .catch((err) => console.error(`[render ${renderId}] could not renew the lease: ${err instanceof Error ? err.message : String(err)}`));
   }, heartbeatSeconds * 1000);
-  const tmp = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-render-"));
-  const outputPath = path.join(tmp, "access.wav");
   try {
     const spec = parseStored(storedCurveSpecSchema, job.spec, { table: "curve_choices", id: job.choiceId, column: "spec" });
     // One resolved curve and model for the render filter, the coding history and the recorded sections.

@@ -60,10 +60,26 @@ export async function releaseStaleRenders(db: Kysely<Database>, staleSeconds: nu
   return rows.map((r) => r.id);
 }
 
+/** The prefix of a render's temporary folder: names the worker's PID, so a later worker knows whose it was. */
+export function renderTmpPrefix(pid = process.pid): string {
+  return `rillbook-render-${pid}-`;
+}
+
+function processAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (err) {
+    // EPERM: it exists, under another user.
+    return (err as NodeJS.ErrnoException).code === "EPERM";
+  }
+}
+
 /**
- * Removes the temporary folders of renders that a killed worker could not clean up
- * (the job removes its own in `finally`). Only folders older than `olderThanMs`, so a
- * render running in another worker on this machine keeps its own.
+ * Removes the temporary folders of renders that a killed worker could not clean up (the
+ * job removes its own in `finally`): those of a worker process that no longer runs, and
+ * any not written to for `olderThanMs` (a folder of another machine's worker sharing the
+ * folder, or of a PID since reused). A render running in another worker keeps its own.
  */
 export async function removeStaleRenderTmp(olderThanMs = 3600_000, now = Date.now()): Promise<string[]> {
   const removed: string[] = [];
@@ -72,10 +88,14 @@ export async function removeStaleRenderTmp(olderThanMs = 3600_000, now = Date.no
     if (!name.startsWith("rillbook-render-")) continue;
     const full = path.join(dir, name);
     try {
-      // The newest of the folder and what it holds: a long render keeps writing its file.
-      let newest = (await fs.stat(full)).mtimeMs;
-      for (const f of await fs.readdir(full)) newest = Math.max(newest, (await fs.stat(path.join(full, f)).catch(() => ({ mtimeMs: 0 }))).mtimeMs);
-      if (now - newest < olderThanMs) continue;
+      const pid = Number(/^rillbook-render-(\d+)-/.exec(name)?.[1]);
+      const ownerGone = Number.isInteger(pid) && pid > 0 && pid !== process.pid && !processAlive(pid);
+      if (!ownerGone) {
+        // The newest of the folder and what it holds: a long render keeps writing its file.
+        let newest = (await fs.stat(full)).mtimeMs;
+        for (const f of await fs.readdir(full)) newest = Math.max(newest, (await fs.stat(path.join(full, f)).catch(() => ({ mtimeMs: 0 }))).mtimeMs);
+        if (now - newest < olderThanMs) continue;
+      }
       await fs.rm(full, { recursive: true, force: true });
       removed.push(full);
     } catch {

@@ -24,7 +24,7 @@ const leaseSchema = z.object({
 
 export type LeaseTimes = z.infer<typeof leaseSchema>;
 
-export function leaseTimes(source: NodeJS.ProcessEnv = process.env): LeaseTimes {
+export function leaseTimes(source: Record<string, string | undefined> = process.env): LeaseTimes {
   return leaseSchema.parse({
     RENDER_HEARTBEAT_SECONDS: source.RENDER_HEARTBEAT_SECONDS,
     RENDER_LEASE_STALE_SECONDS: source.RENDER_LEASE_STALE_SECONDS,

@@ -244,7 +244,7 @@ export interface UploadsTable {
   finished_at: Timestamp | null;
 }
 
-export type RenderStatus = "queued" | "running" | "done" | "failed";
+export type RenderStatus = "queued" | "running" | "done" | "failed" | "cancelled";
 export type ChannelMode = "both" | "sum" | "difference" | "left" | "right";
 
 export interface RendersTable {
@@ -271,6 +271,10 @@ export interface RendersTable {
   created_at: DefaultTimestamp;
   started_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
   finished_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  /** Renewed every few seconds by the worker running the render (its lease). */
+  heartbeat_at: Generated<Date | null>;
+  /** The worker holding the running render's lease. */
+  lease_owner: Generated<string | null>;
 }
 
 export interface ReviewsTable {

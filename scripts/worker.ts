@@ -9,6 +9,7 @@ import { env } from "../lib/env";
 import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
 import { CHAIN_CHECKPOINT_CRON, CHAIN_CHECKPOINT_QUEUE, createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, fixityJobKey, RENDER_QUEUE } from "../lib/jobs/boss";
 import { runRenderJob } from "../lib/jobs/render-job";
+import { leaseTimes, releaseStaleRenders, removeStaleRenderTmp, workerIdentity } from "../lib/jobs/render-lease";
 import { deliverDueMail } from "../lib/mail/outbox";
 import { takeCheckpoint } from "../lib/provenance/checkpoints";
 import { createMailTransport } from "../lib/mail/transport";
@@ -30,8 +31,31 @@ async function mailLoop(): Promise<void> {
   }
 }
 
+/**
+ * Every worker looks for renders whose worker died (a stale lease) and sends them to the
+ * render queue again, so another worker, or this one, takes them up and finishes them.
+ * A round that fails (the database away) is logged and the next one tries again.
+ */
+async function leaseSweepLoop(): Promise<void> {
+  const { RENDER_SWEEP_SECONDS: every, RENDER_LEASE_STALE_SECONDS: stale } = leaseTimes();
+  while (!stopping) {
+    await new Promise((r) => setTimeout(r, every * 1000));
+    if (stopping) break;
+    try {
+      for (const renderId of await releaseStaleRenders(db, stale)) {
+        await boss.send(RENDER_QUEUE, { renderId });
+        console.log(`[worker] render ${renderId}: its worker stopped renewing the lease; handed back to the queue`);
+      }
+    } catch (err) {
+      console.error("[worker] lease sweep failed:", err instanceof Error ? err.message : err);
+    }
+  }
+}
+
 async function main(): Promise<void> {
-  console.log(`[worker] started, sending mail through ${new URL(env().SMTP_URL).host}; renders run on the ${defaultDsp().name} engine`);
+  console.log(`[worker] started as ${workerIdentity}, sending mail through ${new URL(env().SMTP_URL).host}; renders run on the ${defaultDsp().name} engine`);
+  // A killed worker cannot remove its render's temporary folder: the next one does.
+  for (const dir of await removeStaleRenderTmp()) console.log(`[worker] removed a stale render folder ${dir}`);
   await boss.start();
   await createMissingQueues(boss);
   await boss.work<{ renderId: string }>(RENDER_QUEUE, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 1 }, async ([job]) => {
@@ -61,7 +85,7 @@ async function main(): Promise<void> {
     const detail = outcome.status === "written" ? ` ${outcome.key} (${outcome.checkpoint.events} entries, mailed to ${outcome.mailedTo} curators)` : outcome.status === "refused" ? ": the chain did not verify, curators told" : "";
     console.log(`[worker] chain checkpoint: ${outcome.status}${detail}`);
   });
-  await mailLoop();
+  await Promise.all([mailLoop(), leaseSweepLoop()]);
 }
 
 async function shutdown(): Promise<void> {
@@ -74,6 +98,9 @@ async function shutdown(): Promise<void> {
 }
 
 for (const signal of ["SIGTERM", "SIGINT"] as const) process.on(signal, () => void shutdown());
+// A query that failed while the database was away must not end the worker: it is logged
+// and the loops go on; pg-boss and the pool reconnect once the database is back.
+process.on("unhandledRejection", (reason) => console.error("[worker] a background task failed:", reason));
 
 main().catch((err) => {
   console.error("[worker] failed to start:", err);

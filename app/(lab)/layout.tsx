@@ -1,17 +1,28 @@
 import { redirect } from "next/navigation";
 import type { ReactNode } from "react";
+import { DatabaseUnavailable } from "@/components/shell/database-unavailable";
 import { Sidebar } from "@/components/shell/sidebar";
 import { Providers } from "@/components/shell/providers";
 import { can } from "@/lib/auth/permissions";
 import { roleLabels } from "@/lib/auth/roles";
 import { currentUser } from "@/lib/auth/session";
 import { env } from "@/lib/env";
+import { isDatabaseUnavailable } from "@/lib/http/errors";
 import { navItems } from "@/lib/navigation";
 
 export const dynamic = "force-dynamic";
 
 export default async function LabLayout({ children }: { children: ReactNode }) {
-  const user = await currentUser();
+  // Every lab page starts by reading who is signed in: with the database away, the page
+  // says so plainly instead of failing (app/error.tsx covers a failure further in).
+  let user: Awaited<ReturnType<typeof currentUser>>;
+  try {
+    user = await currentUser();
+  } catch (err) {
+    if (!isDatabaseUnavailable(err)) throw err;
+    console.error("[rillbook] the database is unavailable:", err instanceof Error ? err.message : err);
+    return <DatabaseUnavailable />;
+  }
   if (!user) redirect("/sign-in");
   const items = navItems.filter((i) => can(user.role, i.action));
   return (

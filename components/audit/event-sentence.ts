@@ -217,6 +217,10 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       const rate = rateText(p.sampleRateHz, p.bitDepth);
       return { sentence: `${who} asked for an access copy of ${side}${on}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}.`, details: d, tone: "plain" };
     }
+    case "side.render_cancelled": {
+      if (p.progress !== undefined) d.push({ label: "Progress then", value: `${Math.round(Number(p.progress) * 100)} %` });
+      return { sentence: `${who} cancelled the render of ${side}${on}${p.stalled ? ": its worker had stopped" : ""}.`, details: d, tone: "plain" };
+    }
     case "side.rendered": {
       const f = (p.filter ?? {}) as P;
       const choiceId = p.curveChoiceId ?? idOf(p.curveChoice);
@@ -320,6 +324,7 @@ const KIND_LABELS: Record<string, string> = {
   "side.transfer_accepted": "Flat transfer accepted",
   "side.render_requested": "Access copy asked for",
   "side.rendered": "Access copy rendered",
+  "side.render_cancelled": "Render cancelled",
   "side.render_superseded": "Access copy superseded",
   "side.fixity_checked": "Fixity check",
   "side.approved": "Approved",

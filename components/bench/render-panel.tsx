@@ -19,8 +19,8 @@ import { accessCopyRates, channelModeLabels, renderableStatuses } from "@/lib/va
 import { formatBytes, ProgressBar } from "./progress-bar";
 import type { ChannelMode, RenderJson } from "./types";
 
-const statusTone = { queued: "neutral", running: "accent", done: "ok", failed: "alarm" } as const;
-const statusWords = { queued: "Queued", running: "Rendering", done: "Done", failed: "Failed" } as const;
+const statusTone = { queued: "neutral", running: "accent", done: "ok", failed: "alarm", cancelled: "neutral" } as const;
+const statusWords = { queued: "Queued", running: "Rendering", done: "Done", failed: "Failed", cancelled: "Cancelled" } as const;
 
 export function RenderPanel({
   sideId,
@@ -73,6 +73,18 @@ export function RenderPanel({
     setError(null);
     try {
       await fetchJson("/api/renders", { method: "POST", body: JSON.stringify({ sideId, channelMode, bitDepth, sampleRateHz }) });
+      await queryClient.invalidateQueries({ queryKey: ["renders", sideId] });
+    } catch (err) {
+      setError(err instanceof Error ? err.message : String(err));
+    } finally {
+      setBusy(false);
+    }
+  };
+  const cancel = async (renderId: string) => {
+    setBusy(true);
+    setError(null);
+    try {
+      await fetchJson(`/api/renders/${renderId}/cancel`, { method: "POST", body: JSON.stringify({}) });
       await queryClient.invalidateQueries({ queryKey: ["renders", sideId] });
     } catch (err) {
       setError(err instanceof Error ? err.message : String(err));
@@ -146,7 +158,7 @@ export function RenderPanel({
             <li key={r.id} className="rounded-lg border border-paper-edge bg-white p-3" data-testid="render-row" data-status={r.status}>
               <div className="flex flex-wrap items-center justify-between gap-2">
                 <div className="flex flex-wrap items-center gap-2 text-sm">
-                  <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>
+                  {r.stalled ? <Badge tone="alarm" testId="render-stalled">Stalled</Badge> : <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>}
                   {r.status === "done" && r.current ? <Badge tone="groove" testId="render-current">The access copy</Badge> : null}
                   {r.supersededAt ? <Badge tone="neutral" testId="render-superseded">Superseded</Badge> : null}
                   <span>{channelModeLabels[r.channelMode] ?? r.channelMode}</span>
@@ -170,7 +182,17 @@ export function RenderPanel({
                   <span className="block break-all">SHA-256 {r.sha256}</span>
                 </p>
               ) : null}
-              {r.status === "failed" && r.error ? <p className="mt-1.5 text-xs text-alarm">{r.error}</p> : null}
+              {(r.status === "failed" || r.status === "cancelled") && r.error ? <p className="mt-1.5 text-xs text-alarm">{r.error}</p> : null}
+              {r.stalled ? (
+                <div className="mt-2 flex flex-wrap items-center justify-between gap-2 rounded-md border border-alarm/30 bg-alarm-wash px-3 py-2" data-testid="render-stalled-notice">
+                  <p className="text-xs text-alarm">The worker rendering this stopped answering at {Math.round(r.progress * 100)} %. It is handed back to the queue and started again; or cancel it and render again.</p>
+                  {canRender ? (
+                    <Button type="button" size="sm" variant="danger" onClick={() => void cancel(r.id)} disabled={busy} data-testid="render-cancel">
+                      Cancel render
+                    </Button>
+                  ) : null}
+                </div>
+              ) : null}
               {r.supersededReason ? <p className="mt-1.5 text-xs text-ink-soft">Superseded: {r.supersededReason}. Kept with its file and SHA-256; never offered as the access copy.</p> : null}
               {(r.status === "queued" || r.status === "running") && (r.transferId !== currentWork.transferId || r.curveChoiceId !== currentWork.curveChoiceId) ? (
                 <p className="mt-1.5 text-xs text-shellac-deep">Made from an earlier transfer or curve: it will be recorded as superseded when it finishes. Render again for the access copy.</p>

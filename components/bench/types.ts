@@ -54,8 +54,10 @@ export interface TransferJson {
 
 export interface RenderJson {
   id: string;
-  status: "queued" | "running" | "done" | "failed";
+  status: "queued" | "running" | "done" | "failed" | "cancelled";
   progress: number;
+  /** Running, but its worker stopped renewing the lease: it will be taken up again, or the engineer cancels it. */
+  stalled?: boolean;
   channelMode: ChannelMode;
   bitDepth: number;
   sampleRateHz?: number | null;

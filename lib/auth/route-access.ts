@@ -44,6 +44,7 @@ export const routeAccess = {
   "POST /api/uploads/complete": "bench:use",
   "POST /api/uploads/abort": "bench:use",
   "POST /api/renders": "bench:use",
+  "POST /api/renders/[id]/cancel": "bench:use",
   "GET /api/renders/[id]/download": "catalogue:read",
   "GET /api/transfers/[id]/download": "catalogue:read",
   "GET /api/sides/[id]/renders": "catalogue:read",

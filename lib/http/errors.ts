@@ -49,9 +49,32 @@ function isNulRefusedByDatabase(err: unknown): boolean {
   return typeof err === "object" && err !== null && (err as { code?: unknown }).code === "22021";
 }
 
+/**
+ * True for a failure to reach PostgreSQL, not a failed statement: the server refused or
+ * dropped the connection (stopped, restarting), or it is starting up or shutting down
+ * (SQLSTATE class 08, and 57P01–57P03). A request that meets one changed nothing: its
+ * transaction never committed.
+ */
+export function isDatabaseUnavailable(err: unknown): boolean {
+  if (typeof err !== "object" || err === null) return false;
+  const e = err as { code?: unknown; message?: unknown; errors?: unknown };
+  const code = typeof e.code === "string" ? e.code : "";
+  if (["ECONNREFUSED", "ECONNRESET", "EPIPE", "ETIMEDOUT", "57P01", "57P02", "57P03"].includes(code) || code.startsWith("08")) return true;
+  const message = typeof e.message === "string" ? e.message : "";
+  if (/Connection terminated|terminating connection due to administrator command|the database system is (starting up|shutting down)|Client has encountered a connection error/i.test(message)) return true;
+  // Node reports a refused connection to every address of a host as an AggregateError.
+  return Array.isArray(e.errors) && e.errors.some(isDatabaseUnavailable);
+}
+
+export const databaseUnavailableMessage = "The lab's database is unavailable just now, so nothing was read or changed. Try again in a minute; if it lasts, tell the lab's admin.";
+
 export function toAppError(err: unknown): AppError {
   if (err instanceof AppError) return err;
   if (err instanceof ZodError) return fromZod(err);
+  if (isDatabaseUnavailable(err)) {
+    console.error("[rillbook] the database is unavailable:", err instanceof Error ? err.message : err);
+    return new AppError("unavailable", 503, databaseUnavailableMessage);
+  }
   // A backstop: inputs are checked where they come in (lib/validation/text.ts); text that
   // slipped past is still the sender's mistake, not the server's.
   if (isNulRefusedByDatabase(err)) return new AppError("invalid", 422, "Some text holds a NUL character (U+0000), which the record cannot keep: remove it.", { _: ["Text holds a NUL character."] });

@@ -6,7 +6,7 @@ import { createReadStream, promises as fs } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { PutObjectCommand } from "@aws-sdk/client-s3";
-import type { Kysely } from "kysely";
+import { type Kysely, sql } from "kysely";
 import type { Database } from "../../db/types";
 import { readWavHeader, renderAccessCopy } from "../audio";
 import { buildAnalogModel, designIirFromModel, designRenderFilterFromModel, type ResolvedCurve, resolveCurve } from "../curves";
@@ -17,6 +17,7 @@ import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../
 import { objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { softwareName } from "../version";
+import { leaseTimes, renderTmpPrefix, workerIdentity } from "./render-lease";
 
 /** The curve as the coding history records it: each corner's time constant as the filter uses it. */
 function curveText(c: ResolvedCurve): string {
@@ -51,6 +52,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       "r.bit_depth as bitDepth",
       "r.sample_rate_hz as outputRateHz",
       "r.requested_by as requestedBy",
+      "r.created_at as createdAt",
       "t.id as transferId",
       "t.object_key as transferKey",
       "t.sha256 as transferSha256",
@@ -65,12 +67,31 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     ])
     .where("r.id", "=", renderId)
     .executeTakeFirst();
-  // Done already (a redelivered job): nothing to do twice.
-  if (!job || job.status === "done") return "skipped";
+  // Done, failed or cancelled already (a redelivered job): nothing to do twice.
+  if (!job || (job.status !== "queued" && job.status !== "running")) return "skipped";
 
-  await db.updateTable("renders").set({ status: "running", started_at: new Date(), progress: 0, error: null }).where("id", "=", renderId).execute();
-  const tmp = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-render-"));
+  // Take the lease: only a queued render, or a running one whose lease went stale (its
+  // worker died before the sweep came by). A render another worker holds is left alone.
+  const { RENDER_HEARTBEAT_SECONDS: heartbeatSeconds, RENDER_LEASE_STALE_SECONDS: staleSeconds } = leaseTimes();
+  const owner = workerIdentity;
+  const taken = await db
+    .updateTable("renders")
+    .set({ status: "running", started_at: new Date(), heartbeat_at: new Date(), lease_owner: owner, progress: 0, error: null })
+    .where("id", "=", renderId)
+    .where((eb) => eb.or([eb("status", "=", "queued"), eb.and([eb("status", "=", "running"), eb(sql<Date>`coalesce(heartbeat_at, started_at, created_at)`, "<", sql<Date>`now() - make_interval(secs => ${staleSeconds})`)])]))
+    .executeTakeFirst();
+  if (Number(taken.numUpdatedRows) === 0) return "skipped";
+  const held = () => db.selectFrom("renders").select("id").where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).executeTakeFirst();
+  // The lease is renewed while the render runs; a lost lease (cancelled, or handed back
+  // after this worker stalled) is noticed here and before anything is stored.
+  const tmp = await fs.mkdtemp(path.join(os.tmpdir(), renderTmpPrefix()));
   const outputPath = path.join(tmp, "access.wav");
+  let leaseLost = false;
+  const heartbeat = setInterval(() => {
+    db.updateTable("renders").set({ heartbeat_at: new Date() }).where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).executeTakeFirst()
+      .then((r) => { if (Number(r.numUpdatedRows) === 0) leaseLost = true; })
+      .catch((err) => console.error(`[render ${renderId}] could not renew the lease: ${err instanceof Error ? err.message : String(err)}`));
+  }, heartbeatSeconds * 1000);
   try {
     const spec = parseStored(storedCurveSpecSchema, job.spec, { table: "curve_choices", id: job.choiceId, column: "spec" });
     // One resolved curve and model for the render filter, the coding history and the recorded sections.
@@ -83,7 +104,9 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     const source = await objectSource(job.transferKey);
     const header = await readWavHeader(source);
     let lastWrite = 0;
-    const now = new Date();
+    // The render's own creation time, not the clock: a render taken up again after its
+    // worker died writes the same bytes under the same key.
+    const now = new Date(job.createdAt);
     const result = await renderAccessCopy({
       source,
       header,
@@ -106,10 +129,14 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
         const t = Date.now();
         if (t - lastWrite < 500 && fraction < 1) return;
         lastWrite = t;
-        void db.updateTable("renders").set({ progress: fraction }).where("id", "=", renderId).where("status", "=", "running").execute();
+        db.updateTable("renders").set({ progress: fraction }).where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).execute().catch(() => undefined);
       },
     });
+    // The key is the server's own, the same on every attempt. The access copy goes up in
+    // one PutObject of the finished file: the bucket stores an object only when the whole
+    // body arrived, so a worker killed during the upload leaves no partial object.
     const key = `access/${job.sideId}/${renderId}.wav`;
+    if (leaseLost || !(await held())) return "skipped";
     await s3().send(new PutObjectCommand({ Bucket: env().S3_BUCKET, Key: key, Body: createReadStream(outputPath), ContentLength: result.outputBytes, ContentType: "audio/wav" }));
     const iir = designIirFromModel(model, job.sampleRateHz);
     const filterRecord: StoredRenderFilter = {
@@ -127,12 +154,16 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       // Which implementation of the same arithmetic ran (lib/audio/dsp.ts): native FFTW or JavaScript.
       engine: result.engine,
     };
-    await db.transaction().execute(async (trx) => {
-      await trx
+    const recorded = await db.transaction().execute(async (trx) => {
+      // Recorded once: only by the worker still holding the running render's lease.
+      const finished = await trx
         .updateTable("renders")
-        .set({ status: "done", progress: 1, object_key: key, sha256: result.sha256, bytes: result.outputBytes, trim_db: result.trimDb, peak_dbfs: result.peakDbfs, filter: JSON.stringify(filterRecord), finished_at: new Date() })
+        .set({ status: "done", progress: 1, object_key: key, sha256: result.sha256, bytes: result.outputBytes, trim_db: result.trimDb, peak_dbfs: result.peakDbfs, filter: JSON.stringify(filterRecord), finished_at: new Date(), lease_owner: null })
         .where("id", "=", renderId)
-        .execute();
+        .where("status", "=", "running")
+        .where("lease_owner", "=", owner)
+        .executeTakeFirst();
+      if (Number(finished.numUpdatedRows) === 0) return false;
       await appendEvent(trx, {
         actorId: job.requestedBy,
         kind: "side.rendered",
@@ -154,17 +185,22 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       });
       // Current only if it was made from the side's current transfer and curve; otherwise superseded (lib/sides).
       await renderFinished(trx, { id: job.requestedBy, role: null }, { id: renderId, sideId: job.sideId, transferId: job.transferId, curveChoiceId: job.choiceId });
+      return true;
     });
-    return "done";
+    return recorded ? "done" : "skipped";
   } catch (err) {
     const message = err instanceof Error ? err.message : String(err);
     await db
       .updateTable("renders")
-      .set({ status: ctx.finalAttempt ? "failed" : "queued", error: ctx.finalAttempt ? message : `${message} (will retry)`, ...(ctx.finalAttempt ? { finished_at: new Date() } : {}) })
+      .set({ status: ctx.finalAttempt ? "failed" : "queued", lease_owner: null, error: ctx.finalAttempt ? message : `${message} (will retry)`, ...(ctx.finalAttempt ? { finished_at: new Date() } : {}) })
       .where("id", "=", renderId)
-      .execute();
+      .where("status", "=", "running")
+      .where("lease_owner", "=", owner)
+      .execute()
+      .catch(() => undefined);
     throw err;
   } finally {
+    clearInterval(heartbeat);
     await fs.rm(tmp, { recursive: true, force: true });
   }
 }

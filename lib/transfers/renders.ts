@@ -9,6 +9,7 @@ import { env } from "../env";
 import { attachmentDisposition } from "../http/content-disposition";
 import { AppError } from "../http/errors";
 import { RENDER_QUEUE } from "../jobs/boss";
+import { leaseIsStale } from "../jobs/render-lease";
 import { sendInTransaction } from "../jobs/web-boss";
 import { appendEvent } from "../provenance";
 import { lockSide } from "../sides/lifecycle";
@@ -90,13 +91,55 @@ export async function listRenders(sideId: string) {
       "r.superseded_reason as supersededReason",
       sql<boolean>`s.current_render_id IS NOT DISTINCT FROM r.id`.as("current"),
       "r.created_at as createdAt",
+      "r.started_at as startedAt",
+      "r.heartbeat_at as heartbeatAt",
       "r.finished_at as finishedAt",
       "u.name as requestedBy",
     ])
     .where("r.side_id", "=", sideId)
     .orderBy("r.created_at", "desc")
     .execute()
-    .then((rows) => rows.map((r) => ({ ...r, filter: r.filter === null ? null : parseStored(renderFilterRecordSchema, r.filter, { table: "renders", id: r.id, column: "filter" }) })));
+    .then((rows) => {
+      const now = Date.now();
+      return rows.map(({ startedAt, ...r }) => ({
+        ...r,
+        // Running, but its worker has not renewed the lease in time: it has stopped (lib/jobs/render-lease.ts).
+        stalled: leaseIsStale({ status: r.status, heartbeatAt: r.heartbeatAt, startedAt }, now),
+        filter: r.filter === null ? null : parseStored(renderFilterRecordSchema, r.filter, { table: "renders", id: r.id, column: "filter" }),
+      }));
+    });
+}
+
+/**
+ * Cancels a queued or running render (a stalled one, usually): only the engineer the side
+ * is assigned to. The render is marked cancelled and its worker, if one still runs it,
+ * loses its lease and records nothing; the side may be rendered again at once.
+ */
+export async function cancelRender(actor: SessionUser, renderId: string) {
+  const id = z.uuid({ error: "Unknown render." }).parse(renderId);
+  return db.transaction().execute(async (trx) => {
+    const found = await trx.selectFrom("renders").select(["side_id"]).where("id", "=", id).executeTakeFirst();
+    if (!found) throw new AppError("not_found", 404, "No such render.");
+    const side = await lockSide(trx, found.side_id);
+    if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
+    const r = await trx.selectFrom("renders").select(["status", "progress", "heartbeat_at", "started_at"]).where("id", "=", id).forUpdate().executeTakeFirstOrThrow();
+    if (r.status !== "queued" && r.status !== "running") throw new AppError("conflict", 409, `The render is ${r.status}: there is nothing to cancel.`);
+    const stalled = leaseIsStale({ status: r.status, heartbeatAt: r.heartbeat_at, startedAt: r.started_at });
+    await trx
+      .updateTable("renders")
+      .set({ status: "cancelled", lease_owner: null, error: stalled ? "Cancelled by the engineer: its worker had stopped." : "Cancelled by the engineer.", finished_at: new Date() })
+      .where("id", "=", id)
+      .execute();
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "side.render_cancelled",
+      subjectType: "side",
+      subjectId: side.id,
+      discId: side.disc_id,
+      payload: { side: side.designation, renderId: id, was: r.status, progress: r.progress, stalled },
+    });
+    return { renderId: id, status: "cancelled" as const };
+  });
 }
 
 export async function listTransfers(sideId: string) {

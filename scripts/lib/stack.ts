@@ -84,7 +84,7 @@ async function mustRun(cmd: string, args: string[], opts: Parameters<typeof run>
   return output;
 }
 
-function pidFile(p: Profile, name: string): string {
+export function pidFile(p: Profile, name: string): string {
   return path.join(p.dir, "run", `${name}.pid`);
 }
 
@@ -342,6 +342,13 @@ export interface StackEnv extends NodeJS.ProcessEnv {
   APP_URL: string;
 }
 
+/**
+ * The test profile's render lease is short, so a fault drill (tests/integration/faults.test.ts) sees a dead worker's render
+ * taken up again within seconds; the demo and production keep lib/jobs/render-lease.ts's defaults
+ * (renew every 10 s, stale after 90 s, swept every 30 s).
+ */
+const testLease = { RENDER_HEARTBEAT_SECONDS: "2", RENDER_LEASE_STALE_SECONDS: "15", RENDER_SWEEP_SECONDS: "5" };
+
 /** The environment the app, worker, scripts and tests of a profile run with. */
 export async function stackEnv(p: Profile): Promise<StackEnv> {
   const external = (key: string) => (p.honourExternal ? process.env[key] : undefined);
@@ -366,6 +373,7 @@ export async function stackEnv(p: Profile): Promise<StackEnv> {
     NEXTAUTH_SECRET: external("NEXTAUTH_SECRET") ?? (await secretFor(p)),
     MAIL_SINK_DIR: path.join(p.dir, "mail"),
     RILLBOOK_PROFILE: p.name,
+    ...(p.name === "test" ? testLease : {}),
   };
 }
 
@@ -409,10 +417,21 @@ export async function build(env: NodeJS.ProcessEnv): Promise<void> {
   await mustRun(process.execPath, ["node_modules/next/dist/bin/next", "build"], { env });
 }
 
+/** Where the supervisor writes the PID of the worker it runs now (worker.pid is the supervisor's). */
+export function workerChildPidFile(p: Profile): string {
+  return pidFile(p, "worker-child");
+}
+
+/**
+ * Starts the worker under its supervisor (scripts/supervise-worker.ts), which starts it
+ * again, after a back-off, whenever it exits and logs why. worker.pid records the
+ * supervisor; the worker is its child in the same process group, so stopping the group
+ * stops both.
+ */
 export async function startWorker(p: Profile, env: NodeJS.ProcessEnv): Promise<void> {
   await stopPid(p, "worker");
-  await startDetached(p, "worker", ["--import", "tsx", "scripts/worker.ts"], env);
-  log("worker started");
+  await startDetached(p, "worker", ["--import", "tsx", "scripts/supervise-worker.ts"], { ...env, WORKER_CHILD_PID_FILE: workerChildPidFile(p) });
+  log("worker started (supervised)");
 }
 
 export async function startApp(p: Profile, env: StackEnv): Promise<void> {

@@ -9,7 +9,7 @@ import { promises as fs } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import type { Readable } from "node:stream";
-import { CreateBucketCommand, GetObjectCommand, PutObjectCommand, S3Client } from "@aws-sdk/client-s3";
+import { CreateBucketCommand, GetObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
 import { type Kysely, sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb } from "@/db/client";
@@ -18,17 +18,11 @@ import { takeCheckpoint } from "@/lib/provenance/checkpoints";
 import { api } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
 import { approvedDisc, type LabCookies, labCookies } from "../support/pipeline";
+import { testBucketClient } from "../support/bucket";
 
 const root = process.cwd();
 const tag = Date.now().toString(36);
-const bucket = new S3Client({
-  endpoint: process.env.S3_ENDPOINT,
-  region: "us-east-1",
-  forcePathStyle: true,
-  credentials: { accessKeyId: "S3RVER", secretAccessKey: "S3RVER" },
-  requestChecksumCalculation: "WHEN_REQUIRED",
-  responseChecksumValidation: "WHEN_REQUIRED",
-});
+const bucket = testBucketClient();
 
 function withDatabase(url: string, name: string): string {
   const u = new URL(url);

@@ -3,7 +3,7 @@
 // else, its declared size holds, it completes once, and download names are safe for
 // any stored text. Against the running app, worker, PostgreSQL and s3rver.
 import { createHash } from "node:crypto";
-import { GetObjectCommand, HeadObjectCommand, S3Client } from "@aws-sdk/client-s3";
+import { GetObjectCommand, HeadObjectCommand } from "@aws-sdk/client-s3";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { hashPassword } from "@/lib/auth/password";
@@ -22,16 +22,10 @@ import {
   transferDetails,
   uploadTransfer,
 } from "../support/pipeline";
+import { testBucketClient } from "../support/bucket";
 
 const tag = Date.now().toString(36);
-const bucket = new S3Client({
-  endpoint: process.env.S3_ENDPOINT,
-  region: "us-east-1",
-  forcePathStyle: true,
-  credentials: { accessKeyId: "S3RVER", secretAccessKey: "S3RVER" },
-  requestChecksumCalculation: "WHEN_REQUIRED",
-  responseChecksumValidation: "WHEN_REQUIRED",
-});
+const bucket = testBucketClient();
 
 let c: LabCookies;
 /** The same lab, with a second engineer (a colleague) in the engineer's place. */

@@ -2,7 +2,7 @@
 // PostgreSQL and s3rver: presigned multipart upload, the server's checks, the queued
 // render, and the stored access copy.
 import { createHash } from "node:crypto";
-import { HeadObjectCommand, S3Client } from "@aws-sdk/client-s3";
+import { HeadObjectCommand } from "@aws-sdk/client-s3";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { bufferSource, readWavHeader } from "@/lib/audio";
@@ -10,20 +10,14 @@ import { hashPassword } from "@/lib/auth/password";
 import { api, appUrl, signInCookie, waitForMail } from "../support/app";
 import { testDb } from "../support/db";
 import { flatTransfer, fixityNow as fixityFor, renderAndWait as renderFor, uploadTransfer } from "../support/pipeline";
+import { testBucketClient } from "../support/bucket";
 
 const tag = Date.now().toString(36);
 const cookie = {} as Record<"archivist" | "engineer" | "curator" | "curator2", string>;
 let sideIds: string[];
 let discId: string;
 
-const bucket = new S3Client({
-  endpoint: process.env.S3_ENDPOINT,
-  region: "us-east-1",
-  forcePathStyle: true,
-  credentials: { accessKeyId: "S3RVER", secretAccessKey: "S3RVER" },
-  requestChecksumCalculation: "WHEN_REQUIRED",
-  responseChecksumValidation: "WHEN_REQUIRED",
-});
+const bucket = testBucketClient();
 
 const upload = (sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) => uploadTransfer(cookie, sideId, bytes, name, opts);
 

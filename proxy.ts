@@ -34,7 +34,10 @@ export async function proxy(req: NextRequest) {
   if (stateChangingMethods.has(req.method.toUpperCase())) {
     const verdict = checkSameOrigin(req.headers, new URL(e.APP_URL).origin);
     if (!verdict.ok) {
-      return NextResponse.json({ error: { code: "cross_site", message: originMessages[verdict.reason] } }, { status: 403, headers: { "content-security-policy": apiPolicy, "cache-control": "no-store" } });
+      return NextResponse.json(
+        { error: { code: "cross_site", message: originMessages[verdict.reason] } },
+        { status: 403, headers: { "content-security-policy": apiPolicy, "cache-control": "no-store" } },
+      );
     }
   }
 
@@ -52,7 +55,11 @@ export async function proxy(req: NextRequest) {
   const policy = pagePolicy({
     nonce,
     development: e.NODE_ENV === "development",
-    bucketOrigins: bucketOrigins({ s3Endpoint: e.S3_ENDPOINT, bucket: e.S3_BUCKET, forcePathStyle: e.S3_FORCE_PATH_STYLE }),
+    bucketOrigins: bucketOrigins({
+      s3Endpoint: e.S3_ENDPOINT,
+      bucket: e.S3_BUCKET,
+      forcePathStyle: e.S3_FORCE_PATH_STYLE,
+    }),
     https: e.APP_URL.startsWith("https:"),
   });
   const requestHeaders = new Headers(req.headers);

@@ -21,17 +21,34 @@ export default function ErrorPage({ reset }: { error: Error & { digest?: string 
     };
   }, []);
   const retry = (
-    <button type="button" onClick={() => { reset(); window.location.reload(); }} className="inline-block rounded-md bg-shellac px-4 py-2 text-sm font-medium text-white hover:bg-shellac-deep" data-testid="error-retry">
+    <button
+      type="button"
+      onClick={() => {
+        reset();
+        window.location.reload();
+      }}
+      className="inline-block rounded-md bg-shellac px-4 py-2 text-sm font-medium text-white hover:bg-shellac-deep"
+      data-testid="error-retry"
+    >
       Try again
     </button>
   );
   if (cause === "database") return <DatabaseUnavailable retry={retry} />;
   return (
-    <main className="flex min-h-screen items-center justify-center px-6" data-testid="page-error" data-cause={cause}>
+    <main
+      className="flex min-h-screen items-center justify-center px-6"
+      data-testid="page-error"
+      data-cause={cause}
+    >
       <div className="max-w-md space-y-4 text-center">
         <GrooveMark size={44} className="mx-auto" />
-        <h1 className="text-3xl font-semibold">{cause === "checking" ? "This page could not be shown" : "Something went wrong"}</h1>
-        <p className="text-ink-soft">The server could not show this page. The error has been logged; try again, and tell the lab&apos;s admin if it keeps happening.</p>
+        <h1 className="text-3xl font-semibold">
+          {cause === "checking" ? "This page could not be shown" : "Something went wrong"}
+        </h1>
+        <p className="text-ink-soft">
+          The server could not show this page. The error has been logged; try again, and tell the lab&apos;s
+          admin if it keeps happening.
+        </p>
         {retry}
       </div>
     </main>

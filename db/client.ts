@@ -16,6 +16,8 @@ export function createDb(databaseUrl: string, max = 10): Kysely<Database> {
   // An idle client whose server went away (a restart's "terminating connection due to
   // administrator command") is reported here; without a listener Node would end the
   // process. The pool drops that client and makes a new one on the next query.
-  pool.on("error", (err) => console.error(`[db] an idle connection was lost (the pool reconnects on the next query): ${err.message}`));
+  pool.on("error", (err) =>
+    console.error(`[db] an idle connection was lost (the pool reconnects on the next query): ${err.message}`),
+  );
   return new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 }

@@ -60,12 +60,16 @@ async function guardedTables(db: Kysely<any>): Promise<string[]> {
 }
 
 async function tableExists(db: Kysely<any>, schema: string, table: string): Promise<boolean> {
-  const { rows } = await sql<{ ok: boolean }>`SELECT to_regclass(${`${schema}.${table}`}) IS NOT NULL AS ok`.execute(db);
+  const { rows } = await sql<{
+    ok: boolean;
+  }>`SELECT to_regclass(${`${schema}.${table}`}) IS NOT NULL AS ok`.execute(db);
   return rows[0]?.ok ?? false;
 }
 
 async function schemaExists(db: Kysely<any>, schema: string): Promise<boolean> {
-  const { rows } = await sql<{ ok: boolean }>`SELECT EXISTS (SELECT 1 FROM pg_namespace WHERE nspname = ${schema}) AS ok`.execute(db);
+  const { rows } = await sql<{
+    ok: boolean;
+  }>`SELECT EXISTS (SELECT 1 FROM pg_namespace WHERE nspname = ${schema}) AS ok`.execute(db);
   return rows[0]?.ok ?? false;
 }
 
@@ -74,9 +78,13 @@ async function schemaExists(db: Kysely<any>, schema: string): Promise<boolean> {
  * Idempotent. Answers the append-only tables it withheld changes from.
  */
 export async function grantAppRole(db: Kysely<any>, appRole: string): Promise<string[]> {
-  const { rows } = await sql<{ owner: string; database: string }>`SELECT current_user AS owner, current_database() AS database`.execute(db);
+  const { rows } = await sql<{
+    owner: string;
+    database: string;
+  }>`SELECT current_user AS owner, current_database() AS database`.execute(db);
   const { owner, database } = rows[0];
-  if (owner === appRole) throw new Error(`the app's role (${appRole}) must not be the role that runs migrations`);
+  if (owner === appRole)
+    throw new Error(`the app's role (${appRole}) must not be the role that runs migrations`);
   const app = ident(appRole);
   const own = ident(owner);
 
@@ -88,15 +96,21 @@ export async function grantAppRole(db: Kysely<any>, appRole: string): Promise<st
   await sql`REVOKE TRUNCATE, REFERENCES, TRIGGER ON ALL TABLES IN SCHEMA public FROM ${app}`.execute(db);
   await sql`GRANT USAGE, SELECT ON ALL SEQUENCES IN SCHEMA public TO ${app}`.execute(db);
   // Tables a later migration creates get the same rights without waiting for this step.
-  await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA public GRANT SELECT, INSERT, UPDATE, DELETE ON TABLES TO ${app}`.execute(db);
-  await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA public GRANT USAGE, SELECT ON SEQUENCES TO ${app}`.execute(db);
+  await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA public GRANT SELECT, INSERT, UPDATE, DELETE ON TABLES TO ${app}`.execute(
+    db,
+  );
+  await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA public GRANT USAGE, SELECT ON SEQUENCES TO ${app}`.execute(
+    db,
+  );
 
   for (const t of migratorTables) {
-    if (await tableExists(db, "public", t)) await sql`REVOKE ALL ON TABLE ${ident(t)} FROM ${app}, PUBLIC`.execute(db);
+    if (await tableExists(db, "public", t))
+      await sql`REVOKE ALL ON TABLE ${ident(t)} FROM ${app}, PUBLIC`.execute(db);
   }
 
   for (const t of readOnlyTables) {
-    if (await tableExists(db, "public", t)) await sql`REVOKE INSERT, UPDATE, DELETE, TRUNCATE ON TABLE ${ident(t)} FROM ${app}, PUBLIC`.execute(db);
+    if (await tableExists(db, "public", t))
+      await sql`REVOKE INSERT, UPDATE, DELETE, TRUNCATE ON TABLE ${ident(t)} FROM ${app}, PUBLIC`.execute(db);
   }
 
   const appendOnly = [...new Set([...appendOnlyTables, ...(await guardedTables(db))])].sort();
@@ -114,8 +128,12 @@ export async function grantAppRole(db: Kysely<any>, appRole: string): Promise<st
     await sql`GRANT USAGE ON SCHEMA ${boss} TO ${app}`.execute(db);
     await sql`GRANT SELECT, INSERT, UPDATE, DELETE ON ALL TABLES IN SCHEMA ${boss} TO ${app}`.execute(db);
     await sql`GRANT USAGE, SELECT ON ALL SEQUENCES IN SCHEMA ${boss} TO ${app}`.execute(db);
-    await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA ${boss} GRANT SELECT, INSERT, UPDATE, DELETE ON TABLES TO ${app}`.execute(db);
-    await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA ${boss} GRANT USAGE, SELECT ON SEQUENCES TO ${app}`.execute(db);
+    await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA ${boss} GRANT SELECT, INSERT, UPDATE, DELETE ON TABLES TO ${app}`.execute(
+      db,
+    );
+    await sql`ALTER DEFAULT PRIVILEGES FOR ROLE ${own} IN SCHEMA ${boss} GRANT USAGE, SELECT ON SEQUENCES TO ${app}`.execute(
+      db,
+    );
   }
   return withheld;
 }

@@ -16,17 +16,20 @@ export function seedPresets(): SeedPreset[] {
     {
       name: "RIAA / IEC 60098 (3180/318/75 µs)",
       spec: RIAA_SPEC,
-      notes: "Source: IEC 60098, Analogue audio disk records and reproducing equipment (the RIAA characteristic): time constants 3180 µs, 318 µs and 75 µs. The standard playback curve for microgroove discs from the mid-1950s on.",
+      notes:
+        "Source: IEC 60098, Analogue audio disk records and reproducing equipment (the RIAA characteristic): time constants 3180 µs, 318 µs and 75 µs. The standard playback curve for microgroove discs from the mid-1950s on.",
     },
     {
       name: "IEC 60098 with 7950 µs high-pass",
       spec: IEC_HIGHPASS_SPEC,
-      notes: "Source: IEC 60098 amendment (1976) adding a 7950 µs time constant, a rumble high-pass with its corner near 20 Hz, to the RIAA characteristic.",
+      notes:
+        "Source: IEC 60098 amendment (1976) adding a 7950 µs time constant, a rumble high-pass with its corner near 20 Hz, to the RIAA characteristic.",
     },
     {
       name: "BS 1928:1955 coarse groove (3180/450/50 µs)",
       spec: BS1928_COARSE_SPEC,
-      notes: "Source: British Standard BS 1928:1955, recording characteristic for coarse-groove (78 rpm) discs: time constants 3180 µs, 450 µs and 50 µs.",
+      notes:
+        "Source: British Standard BS 1928:1955, recording characteristic for coarse-groove (78 rpm) discs: time constants 3180 µs, 450 µs and 50 µs.",
     },
   ];
 

@@ -106,11 +106,20 @@ export interface AccessionsTable {
   updated_at: DefaultTimestamp;
 }
 
-export type DiscFormat = "shellac_78" | "instantaneous_lacquer" | "transcription" | "vinyl_78" | "microgroove_lp" | "other";
+export type DiscFormat =
+  "shellac_78" | "instantaneous_lacquer" | "transcription" | "vinyl_78" | "microgroove_lp" | "other";
 export type DiscBase = "aluminium" | "glass" | "card" | "unknown";
 export type ConditionGrade = "unassessed" | "excellent" | "good" | "fair" | "poor" | "unplayable";
 /** In the archive's order: assigned → flat transfer accepted → curve chosen → rendered → in review → approved or returned. */
-export type SideStatus = "catalogued" | "assigned" | "transferred" | "curve_chosen" | "rendered" | "in_review" | "approved" | "returned";
+export type SideStatus =
+  | "catalogued"
+  | "assigned"
+  | "transferred"
+  | "curve_chosen"
+  | "rendered"
+  | "in_review"
+  | "approved"
+  | "returned";
 
 export interface DiscsTable {
   id: Generated<string>;

@@ -8,7 +8,9 @@ export interface DeviationRequest {
   sampleRateHz: number;
 }
 
-export type DeviationResponse = { id: number; ok: true; result: FilterDeviations; ms: number } | { id: number; ok: false; message: string; parameter: string | null };
+export type DeviationResponse =
+  | { id: number; ok: true; result: FilterDeviations; ms: number }
+  | { id: number; ok: false; message: string; parameter: string | null };
 
 export interface FilterDeviationState {
   result: FilterDeviations | null;
@@ -27,7 +29,13 @@ export interface FilterDeviationState {
  * is kept.
  */
 export function useFilterDeviation(spec: CurveSpec, sampleRateHz: number): FilterDeviationState {
-  const [state, setState] = useState<FilterDeviationState>({ result: null, error: null, pending: true, ms: null, where: null });
+  const [state, setState] = useState<FilterDeviationState>({
+    result: null,
+    error: null,
+    pending: true,
+    ms: null,
+    where: null,
+  });
   const worker = useRef<Worker | null>(null);
   const broken = useRef(false);
   const latest = useRef(0);
@@ -42,7 +50,11 @@ export function useFilterDeviation(spec: CurveSpec, sampleRateHz: number): Filte
         const result = filterDeviations(req.spec, req.sampleRateHz);
         setState({ result, error: null, pending: false, ms: performance.now() - started, where: "page" });
       } catch (err) {
-        setState((s) => ({ ...s, error: err instanceof CurveError || err instanceof Error ? err.message : String(err), pending: false }));
+        setState((s) => ({
+          ...s,
+          error: err instanceof CurveError || err instanceof Error ? err.message : String(err),
+          pending: false,
+        }));
       }
     }, 0);
   };
@@ -54,7 +66,9 @@ export function useFilterDeviation(spec: CurveSpec, sampleRateHz: number): Filte
     }
     let w: Worker;
     try {
-      w = new Worker(new URL("../components/curves/deviation.worker.ts", import.meta.url), { type: "module" });
+      w = new Worker(new URL("../components/curves/deviation.worker.ts", import.meta.url), {
+        type: "module",
+      });
     } catch {
       broken.current = true;
       return;

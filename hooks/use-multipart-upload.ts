@@ -29,7 +29,15 @@ export interface AcceptedTransfer {
   transferId: string;
   sha256: string;
   bytes: number;
-  technical: { container: string; encoding: string; bitsPerSample: number; channels: number; sampleRateHz: number; frames: number; durationSeconds: number };
+  technical: {
+    container: string;
+    encoding: string;
+    bitsPerSample: number;
+    channels: number;
+    sampleRateHz: number;
+    frames: number;
+    durationSeconds: number;
+  };
 }
 
 export type UploadPhase = "idle" | "starting" | "uploading" | "checking" | "done" | "failed" | "cancelled";
@@ -55,11 +63,23 @@ interface Session {
   partCount: number;
 }
 
-const idle: UploadState = { phase: "idle", fileName: null, totalBytes: 0, sentBytes: 0, hashedBytes: 0, resumedParts: 0, error: null, fields: null, resumable: false, result: null };
+const idle: UploadState = {
+  phase: "idle",
+  fileName: null,
+  totalBytes: 0,
+  sentBytes: 0,
+  hashedBytes: 0,
+  resumedParts: 0,
+  error: null,
+  fields: null,
+  resumable: false,
+  result: null,
+};
 
 /** The server has closed the upload (refused, completed, cancelled, expired): a new try starts a new one. */
 function uploadClosed(err: unknown): boolean {
-  const state = err instanceof AppError ? (err.details as { uploadState?: string } | undefined)?.uploadState : undefined;
+  const state =
+    err instanceof AppError ? (err.details as { uploadState?: string } | undefined)?.uploadState : undefined;
   return state !== undefined && state !== "completing";
 }
 
@@ -77,7 +97,12 @@ function readSession(k: string): Session | null {
 class Cancelled extends Error {}
 
 /** PUT one part with progress; resolves with its ETag. */
-function putPart(url: string, body: ArrayBuffer, onProgress: (sent: number) => void, xhrs: Set<XMLHttpRequest>): Promise<string> {
+function putPart(
+  url: string,
+  body: ArrayBuffer,
+  onProgress: (sent: number) => void,
+  xhrs: Set<XMLHttpRequest>,
+): Promise<string> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhrs.add(xhr);
@@ -87,7 +112,14 @@ function putPart(url: string, body: ArrayBuffer, onProgress: (sent: number) => v
       xhrs.delete(xhr);
       const etag = xhr.getResponseHeader("ETag");
       if (xhr.status >= 200 && xhr.status < 300 && etag) resolve(etag);
-      else reject(new Error(xhr.status >= 200 && xhr.status < 300 ? "The storage did not return the part's ETag (check its CORS ExposeHeaders)." : `The storage answered ${xhr.status}.`));
+      else
+        reject(
+          new Error(
+            xhr.status >= 200 && xhr.status < 300
+              ? "The storage did not return the part's ETag (check its CORS ExposeHeaders)."
+              : `The storage answered ${xhr.status}.`,
+          ),
+        );
     };
     xhr.onerror = () => {
       xhrs.delete(xhr);
@@ -121,9 +153,14 @@ export function useMultipartUpload() {
       session = readSession(sk);
       if (session) {
         try {
-          const listed = await fetchJson<{ parts: { partNumber: number; etag: string; size: number }[] }>(`/api/uploads?uploadId=${encodeURIComponent(session.uploadId)}`);
-          const expected = (n: number) => Math.min(session!.partSize, file.size - (n - 1) * session!.partSize);
-          done = new Map(listed.parts.filter((p) => p.size === expected(p.partNumber)).map((p) => [p.partNumber, p.etag]));
+          const listed = await fetchJson<{ parts: { partNumber: number; etag: string; size: number }[] }>(
+            `/api/uploads?uploadId=${encodeURIComponent(session.uploadId)}`,
+          );
+          const expected = (n: number) =>
+            Math.min(session!.partSize, file.size - (n - 1) * session!.partSize);
+          done = new Map(
+            listed.parts.filter((p) => p.size === expected(p.partNumber)).map((p) => [p.partNumber, p.etag]),
+          );
         } catch {
           session = null;
           sessionStorage.removeItem(sk);
@@ -131,20 +168,27 @@ export function useMultipartUpload() {
       }
       const urls = new Map<number, string>();
       if (!session) {
-        const started = await fetchJson<Session & { urls: { partNumber: number; url: string }[] }>("/api/uploads", { method: "POST", body: JSON.stringify({ sideId, fileName: file.name, bytes: file.size }) });
+        const started = await fetchJson<Session & { urls: { partNumber: number; url: string }[] }>(
+          "/api/uploads",
+          { method: "POST", body: JSON.stringify({ sideId, fileName: file.name, bytes: file.size }) },
+        );
         session = { uploadId: started.uploadId, partSize: started.partSize, partCount: started.partCount };
         sessionStorage.setItem(sk, JSON.stringify(session));
         for (const u of started.urls) urls.set(u.partNumber, u.url);
       }
       const s = session;
       const sign = async (partNumbers: number[]) => {
-        const r = await fetchJson<{ urls: { partNumber: number; url: string }[] }>("/api/uploads/parts", { method: "POST", body: JSON.stringify({ uploadId: s.uploadId, partNumbers }) });
+        const r = await fetchJson<{ urls: { partNumber: number; url: string }[] }>("/api/uploads/parts", {
+          method: "POST",
+          body: JSON.stringify({ uploadId: s.uploadId, partNumbers }),
+        });
         for (const u of r.urls) urls.set(u.partNumber, u.url);
       };
       const urlFor = async (n: number) => {
         if (!urls.has(n)) {
           const batch: number[] = [];
-          for (let p = n; p <= s.partCount && batch.length < SIGN_BATCH; p++) if (!done.has(p) && !urls.has(p)) batch.push(p);
+          for (let p = n; p <= s.partCount && batch.length < SIGN_BATCH; p++)
+            if (!done.has(p) && !urls.has(p)) batch.push(p);
           await sign(batch.length ? batch : [n]);
         }
         return urls.get(n)!;
@@ -155,7 +199,12 @@ export function useMultipartUpload() {
       const report = (hashed: number) => {
         let inFlight = 0;
         for (const v of sentPerPart.values()) inFlight += v;
-        setState((st) => ({ ...st, phase: "uploading", sentBytes: Math.min(file.size, doneBytes + inFlight), hashedBytes: hashed }));
+        setState((st) => ({
+          ...st,
+          phase: "uploading",
+          sentBytes: Math.min(file.size, doneBytes + inFlight),
+          hashedBytes: hashed,
+        }));
       };
       setState((st) => ({ ...st, phase: "uploading", resumedParts: done.size }));
 
@@ -171,10 +220,15 @@ export function useMultipartUpload() {
           if (cancelled) throw new Cancelled("Cancelled.");
           try {
             const url = await urlFor(n);
-            const etag = await putPart(url, body, (sent) => {
-              sentPerPart.set(n, sent);
-              report(hashed);
-            }, xhrs);
+            const etag = await putPart(
+              url,
+              body,
+              (sent) => {
+                sentPerPart.set(n, sent);
+                report(hashed);
+              },
+              xhrs,
+            );
             etags.set(n, etag);
             sentPerPart.delete(n);
             doneBytes += body.byteLength;
@@ -218,7 +272,9 @@ export function useMultipartUpload() {
       const sha256 = hasher.digest("hex");
 
       setState((st) => ({ ...st, phase: "checking", sentBytes: file.size, hashedBytes: file.size }));
-      const parts = [...etags.entries()].sort((a, b) => a[0] - b[0]).map(([partNumber, etag]) => ({ partNumber, etag }));
+      const parts = [...etags.entries()]
+        .sort((a, b) => a[0] - b[0])
+        .map(([partNumber, etag]) => ({ partNumber, etag }));
       try {
         const result = await fetchJson<AcceptedTransfer>("/api/uploads/complete", {
           method: "POST",
@@ -235,7 +291,10 @@ export function useMultipartUpload() {
     } catch (err) {
       if (err instanceof Cancelled || cancelled) {
         if (session) {
-          await fetchJson("/api/uploads/abort", { method: "POST", body: JSON.stringify({ uploadId: session.uploadId }) }).catch(() => undefined);
+          await fetchJson("/api/uploads/abort", {
+            method: "POST",
+            body: JSON.stringify({ uploadId: session.uploadId }),
+          }).catch(() => undefined);
           sessionStorage.removeItem(sk);
         }
         setState((st) => ({ ...st, phase: "cancelled", error: null }));
@@ -244,7 +303,13 @@ export function useMultipartUpload() {
       if (uploadClosed(err)) sessionStorage.removeItem(sk);
       const fields = err instanceof AppError && err.fields ? err.fields : null;
       const resumable = !fields && !uploadClosed(err);
-      setState((st) => ({ ...st, phase: "failed", error: err instanceof Error ? err.message : String(err), fields, resumable }));
+      setState((st) => ({
+        ...st,
+        phase: "failed",
+        error: err instanceof Error ? err.message : String(err),
+        fields,
+        resumable,
+      }));
       return null;
     } finally {
       cancelRef.current = null;

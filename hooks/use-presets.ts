@@ -8,13 +8,19 @@ import type { PresetJson, PresetVersionJson } from "@/components/curves/types";
 import { fetchJson } from "@/lib/http/client";
 
 export function usePresets() {
-  return useQuery({ queryKey: ["curve-presets"], queryFn: () => fetchJson<{ presets: PresetJson[] }>("/api/curves/presets") });
+  return useQuery({
+    queryKey: ["curve-presets"],
+    queryFn: () => fetchJson<{ presets: PresetJson[] }>("/api/curves/presets"),
+  });
 }
 
 export function usePresetVersions(presetId: string) {
   return useQuery({
     queryKey: ["curve-preset-versions", presetId],
-    queryFn: () => fetchJson<{ versions: PresetVersionJson[] }>(`/api/curves/presets/${encodeURIComponent(presetId)}/versions`),
+    queryFn: () =>
+      fetchJson<{ versions: PresetVersionJson[] }>(
+        `/api/curves/presets/${encodeURIComponent(presetId)}/versions`,
+      ),
     enabled: !!presetId,
   });
 }

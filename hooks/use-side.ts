@@ -9,8 +9,17 @@ import type { CurveChoiceJson, SideWithDisc, TransferJson } from "@/components/b
 import { fetchJson } from "@/lib/http/client";
 
 export function useSide(sideId: string) {
-  const side = useQuery({ queryKey: ["side", sideId], queryFn: () => fetchJson<SideWithDisc>(`/api/sides/${sideId}`) });
-  const choices = useQuery({ queryKey: ["curve-choices", sideId], queryFn: () => fetchJson<{ choices: CurveChoiceJson[] }>(`/api/sides/${sideId}/curve-choices`) });
-  const transfers = useQuery({ queryKey: ["transfers", sideId], queryFn: () => fetchJson<{ transfers: TransferJson[] }>(`/api/sides/${sideId}/transfers`) });
+  const side = useQuery({
+    queryKey: ["side", sideId],
+    queryFn: () => fetchJson<SideWithDisc>(`/api/sides/${sideId}`),
+  });
+  const choices = useQuery({
+    queryKey: ["curve-choices", sideId],
+    queryFn: () => fetchJson<{ choices: CurveChoiceJson[] }>(`/api/sides/${sideId}/curve-choices`),
+  });
+  const transfers = useQuery({
+    queryKey: ["transfers", sideId],
+    queryFn: () => fetchJson<{ transfers: TransferJson[] }>(`/api/sides/${sideId}/transfers`),
+  });
   return { side, choices, transfers };
 }

@@ -10,7 +10,12 @@ export type ServiceState = "ok" | string;
 
 async function probe(check: () => Promise<unknown>, timeoutMs = 3000): Promise<ServiceState> {
   try {
-    await Promise.race([check(), new Promise((_, reject) => setTimeout(() => reject(new Error(`no answer within ${timeoutMs} ms`)), timeoutMs))]);
+    await Promise.race([
+      check(),
+      new Promise((_, reject) =>
+        setTimeout(() => reject(new Error(`no answer within ${timeoutMs} ms`)), timeoutMs),
+      ),
+    ]);
     return "ok";
   } catch (err) {
     return err instanceof Error ? err.message || err.name : String(err);
@@ -18,7 +23,11 @@ async function probe(check: () => Promise<unknown>, timeoutMs = 3000): Promise<S
 }
 
 /** The state of each service the app depends on: "ok", or what went wrong. */
-export async function checkHealth(): Promise<{ database: ServiceState; bucket: ServiceState; mail: ServiceState }> {
+export async function checkHealth(): Promise<{
+  database: ServiceState;
+  bucket: ServiceState;
+  mail: ServiceState;
+}> {
   const transport = createMailTransport(env().SMTP_URL);
   const [database, bucket, mail] = await Promise.all([
     probe(() => sql`SELECT 1`.execute(db)),

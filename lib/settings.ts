@@ -5,10 +5,13 @@ import type { SessionUser } from "./auth/session-user";
 import { appendEvent } from "./provenance";
 import { accessCopyBitDepthSchema, accessCopyRateSchema } from "./validation/transfers";
 
-
 export const settingsSchema = z
   .object({
-    fixityCycleDays: z.coerce.number().int("Whole days, please.").min(1, "At least one day.").max(3650, "At most ten years."),
+    fixityCycleDays: z.coerce
+      .number()
+      .int("Whole days, please.")
+      .min(1, "At least one day.")
+      .max(3650, "At most ten years."),
     accessCopyRateHz: accessCopyRateSchema,
     accessCopyBitDepth: accessCopyBitDepthSchema,
   })
@@ -20,7 +23,11 @@ export interface LabSettings {
   accessCopyBitDepth: 16 | 24;
 }
 
-const keys = { fixityCycleDays: "fixity_cycle_days", accessCopyRateHz: "access_copy_rate_hz", accessCopyBitDepth: "access_copy_bit_depth" } as const;
+const keys = {
+  fixityCycleDays: "fixity_cycle_days",
+  accessCopyRateHz: "access_copy_rate_hz",
+  accessCopyBitDepth: "access_copy_bit_depth",
+} as const;
 
 export async function getSettings(): Promise<LabSettings> {
   const rows = await db.selectFrom("lab_settings").select(["key", "value"]).execute();
@@ -44,7 +51,9 @@ export async function updateSettings(actor: SessionUser, input: unknown): Promis
       await trx
         .insertInto("lab_settings")
         .values({ key: keys[k], value, updated_by: actor.id })
-        .onConflict((oc) => oc.column("key").doUpdateSet({ value, updated_by: actor.id, updated_at: new Date() }))
+        .onConflict((oc) =>
+          oc.column("key").doUpdateSet({ value, updated_by: actor.id, updated_at: new Date() }),
+        )
         .execute();
     }
     if (changed.length) {
@@ -53,7 +62,10 @@ export async function updateSettings(actor: SessionUser, input: unknown): Promis
         kind: "lab.settings_changed",
         subjectType: "lab",
         subjectId: changed.map((k) => keys[k]).join(","),
-        payload: { before: Object.fromEntries(changed.map((k) => [k, before[k]])), after: Object.fromEntries(changed.map((k) => [k, s[k]])) },
+        payload: {
+          before: Object.fromEntries(changed.map((k) => [k, before[k]])),
+          after: Object.fromEntries(changed.map((k) => [k, s[k]])),
+        },
       });
     }
   });

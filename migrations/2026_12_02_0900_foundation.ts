@@ -52,7 +52,11 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("ip", "text")
     .addColumn("at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
     .execute();
-  await db.schema.createIndex("sign_in_attempts_email_at").on("sign_in_attempts").columns(["email", "at"]).execute();
+  await db.schema
+    .createIndex("sign_in_attempts_email_at")
+    .on("sign_in_attempts")
+    .columns(["email", "at"])
+    .execute();
 
   await db.schema
     .createTable("people_changes")
@@ -80,15 +84,18 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("sent_at", "timestamptz")
     .addCheckConstraint("outbox_status", sql`status IN ('queued', 'sent', 'failed')`)
     .execute();
-  await db.schema
-    .createIndex("outbox_due")
-    .on("outbox")
-    .columns(["status", "next_attempt_at"])
-    .execute();
+  await db.schema.createIndex("outbox_due").on("outbox").columns(["status", "next_attempt_at"]).execute();
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
-  for (const t of ["outbox", "people_changes", "sign_in_attempts", "password_resets", "invitations", "users"]) {
+  for (const t of [
+    "outbox",
+    "people_changes",
+    "sign_in_attempts",
+    "password_resets",
+    "invitations",
+    "users",
+  ]) {
     await db.schema.dropTable(t).execute();
   }
   await sql`DROP TYPE role`.execute(db);

@@ -55,14 +55,23 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("search_codes", "text", (c) => c.notNull().defaultTo(""))
     .addColumn("created_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
     .addColumn("updated_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
-    .addCheckConstraint("discs_format", sql`format IN ('shellac_78', 'instantaneous_lacquer', 'transcription', 'vinyl_78', 'microgroove_lp', 'other')`)
+    .addCheckConstraint(
+      "discs_format",
+      sql`format IN ('shellac_78', 'instantaneous_lacquer', 'transcription', 'vinyl_78', 'microgroove_lp', 'other')`,
+    )
     .addCheckConstraint("discs_base", sql`base IS NULL OR base IN ('aluminium', 'glass', 'card', 'unknown')`)
     .addCheckConstraint("discs_groove", sql`groove IN ('coarse', 'micro')`)
     .addCheckConstraint("discs_cut", sql`cut IN ('lateral', 'vertical')`)
     .addCheckConstraint("discs_speed_positive", sql`nominal_speed_rpm > 0`)
     .addCheckConstraint("discs_diameter_positive", sql`diameter_in IS NULL OR diameter_in > 0`)
-    .addCheckConstraint("discs_years_ordered", sql`recorded_from_year IS NULL OR recorded_to_year IS NULL OR recorded_from_year <= recorded_to_year`)
-    .addCheckConstraint("discs_condition_grade", sql`condition_grade IN ('unassessed', 'excellent', 'good', 'fair', 'poor', 'unplayable')`)
+    .addCheckConstraint(
+      "discs_years_ordered",
+      sql`recorded_from_year IS NULL OR recorded_to_year IS NULL OR recorded_from_year <= recorded_to_year`,
+    )
+    .addCheckConstraint(
+      "discs_condition_grade",
+      sql`condition_grade IN ('unassessed', 'excellent', 'good', 'fair', 'poor', 'unplayable')`,
+    )
     .execute();
   await sql`CREATE UNIQUE INDEX discs_shelf_mark_key ON discs (lower(shelf_mark))`.execute(db);
   await sql`CREATE INDEX discs_accession ON discs (accession_id)`.execute(db);
@@ -103,7 +112,12 @@ export async function up(db: Kysely<any>): Promise<void> {
   await db.schema
     .createTable("provenance_events")
     .addColumn("seq", "bigserial", (c) => c.primaryKey())
-    .addColumn("id", "uuid", (c) => c.notNull().unique().defaultTo(sql`gen_random_uuid()`))
+    .addColumn("id", "uuid", (c) =>
+      c
+        .notNull()
+        .unique()
+        .defaultTo(sql`gen_random_uuid()`),
+    )
     .addColumn("at", "timestamptz", (c) => c.notNull())
     .addColumn("actor_id", "uuid", (c) => c.references("users.id"))
     .addColumn("kind", "text", (c) => c.notNull())
@@ -130,8 +144,18 @@ export async function up(db: Kysely<any>): Promise<void> {
     FOR EACH STATEMENT EXECUTE FUNCTION refuse_provenance_change()`.execute(db);
 
   // Fold the foundation's people changes into the log, oldest first, then retire the table.
-  const { rows } = await sql<{ id: string; actor_id: string | null; subject_user_id: string | null; subject_email: string; kind: string; detail: Record<string, unknown>; at: Date }>`
-    SELECT id, actor_id, subject_user_id, subject_email, kind, detail, at FROM people_changes ORDER BY at, id`.execute(db);
+  const { rows } = await sql<{
+    id: string;
+    actor_id: string | null;
+    subject_user_id: string | null;
+    subject_email: string;
+    kind: string;
+    detail: Record<string, unknown>;
+    at: Date;
+  }>`
+    SELECT id, actor_id, subject_user_id, subject_email, kind, detail, at FROM people_changes ORDER BY at, id`.execute(
+    db,
+  );
   let prev = genesis;
   for (const r of rows) {
     const event = {
@@ -144,10 +168,14 @@ export async function up(db: Kysely<any>): Promise<void> {
       discId: null,
       payload: { email: r.subject_email, ...r.detail },
     };
-    const hash = createHash("sha256").update(`${prev}\n${canonicalJson(event)}`, "utf8").digest("hex");
+    const hash = createHash("sha256")
+      .update(`${prev}\n${canonicalJson(event)}`, "utf8")
+      .digest("hex");
     await sql`
       INSERT INTO provenance_events (id, at, actor_id, kind, subject_type, subject_id, disc_id, payload, prev_hash, hash)
-      VALUES (${event.id}, ${event.at}, ${event.actorId}, ${event.kind}, ${event.subjectType}, ${event.subjectId}, NULL, ${JSON.stringify(event.payload)}::jsonb, ${prev}, ${hash})`.execute(db);
+      VALUES (${event.id}, ${event.at}, ${event.actorId}, ${event.kind}, ${event.subjectType}, ${event.subjectId}, NULL, ${JSON.stringify(event.payload)}::jsonb, ${prev}, ${hash})`.execute(
+      db,
+    );
     prev = hash;
   }
   await db.schema.dropTable("people_changes").execute();

@@ -21,11 +21,16 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("evidence", "text", (c) => c.notNull().defaultTo(""))
     .addColumn("chosen_by", "uuid", (c) => c.notNull().references("users.id"))
     .addColumn("chosen_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
-    .addCheckConstraint("curve_choices_evidence", sql`evidence_kind IN ('published_guidance', 'test_disc', 'listening', 'disc_documentation', 'other')`)
+    .addCheckConstraint(
+      "curve_choices_evidence",
+      sql`evidence_kind IN ('published_guidance', 'test_disc', 'listening', 'disc_documentation', 'other')`,
+    )
     .addCheckConstraint("curve_choices_speeds", sql`cut_speed_rpm > 0 AND transfer_speed_rpm > 0`)
     .addCheckConstraint("curve_choices_preset_pair", sql`(preset_id IS NULL) = (preset_version IS NULL)`)
     .execute();
-  await sql`ALTER TABLE curve_choices ADD FOREIGN KEY (preset_id, preset_version) REFERENCES curve_preset_versions (preset_id, version)`.execute(db);
+  await sql`ALTER TABLE curve_choices ADD FOREIGN KEY (preset_id, preset_version) REFERENCES curve_preset_versions (preset_id, version)`.execute(
+    db,
+  );
   await sql`CREATE INDEX curve_choices_side ON curve_choices (side_id, chosen_at DESC)`.execute(db);
 
   await db.schema
@@ -76,7 +81,10 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("started_at", "timestamptz")
     .addColumn("finished_at", "timestamptz")
     .addCheckConstraint("renders_status", sql`status IN ('queued', 'running', 'done', 'failed')`)
-    .addCheckConstraint("renders_channel_mode", sql`channel_mode IN ('both', 'sum', 'difference', 'left', 'right')`)
+    .addCheckConstraint(
+      "renders_channel_mode",
+      sql`channel_mode IN ('both', 'sum', 'difference', 'left', 'right')`,
+    )
     .execute();
   await sql`CREATE INDEX renders_side ON renders (side_id, created_at DESC)`.execute(db);
 }

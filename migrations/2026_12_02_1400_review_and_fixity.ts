@@ -16,7 +16,10 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("curve_choice_id", "uuid", (c) => c.references("curve_choices.id"))
     .addColumn("decided_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
     .addCheckConstraint("reviews_decision", sql`decision IN ('approved', 'returned')`)
-    .addCheckConstraint("reviews_reason", sql`decision = 'approved' OR (reason IS NOT NULL AND length(reason) > 0)`)
+    .addCheckConstraint(
+      "reviews_reason",
+      sql`decision = 'approved' OR (reason IS NOT NULL AND length(reason) > 0)`,
+    )
     .execute();
   await sql`CREATE INDEX reviews_side ON reviews (side_id, decided_at DESC)`.execute(db);
 
@@ -38,9 +41,13 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addCheckConstraint("fixity_kind", sql`object_kind IN ('transfer', 'render')`)
     .addCheckConstraint("fixity_outcome", sql`outcome IN ('pass', 'mismatch', 'missing', 'error')`)
     .execute();
-  await sql`CREATE INDEX fixity_object ON fixity_checks (object_kind, object_id, checked_at DESC)`.execute(db);
+  await sql`CREATE INDEX fixity_object ON fixity_checks (object_kind, object_id, checked_at DESC)`.execute(
+    db,
+  );
   await sql`CREATE INDEX fixity_side ON fixity_checks (side_id, checked_at DESC)`.execute(db);
-  await sql`CREATE INDEX fixity_failures ON fixity_checks (checked_at DESC) WHERE outcome <> 'pass'`.execute(db);
+  await sql`CREATE INDEX fixity_failures ON fixity_checks (checked_at DESC) WHERE outcome <> 'pass'`.execute(
+    db,
+  );
 
   await db.schema
     .createTable("chain_checks")
@@ -64,5 +71,6 @@ export async function up(db: Kysely<any>): Promise<void> {
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
-  for (const t of ["lab_settings", "chain_checks", "fixity_checks", "reviews"]) await db.schema.dropTable(t).execute();
+  for (const t of ["lab_settings", "chain_checks", "fixity_checks", "reviews"])
+    await db.schema.dropTable(t).execute();
 }

@@ -35,18 +35,32 @@ export async function up(db: Kysely<any>): Promise<void> {
   await sql`ALTER TABLE curve_choices ADD COLUMN spec_sha256 text`.execute(db);
   // The spec's SHA-256 as the app computes it (canonical JSON, keys sorted); for rows
   // made before this migration, of the stored jsonb text, which is what they had.
-  await sql`UPDATE curve_choices SET spec_sha256 = encode(sha256(convert_to(spec::text, 'UTF8')), 'hex')`.execute(db);
+  await sql`UPDATE curve_choices SET spec_sha256 = encode(sha256(convert_to(spec::text, 'UTF8')), 'hex')`.execute(
+    db,
+  );
   await sql`ALTER TABLE curve_choices ALTER COLUMN spec_sha256 SET NOT NULL`.execute(db);
-  await sql`ALTER TABLE curve_choices ADD CONSTRAINT curve_choices_id_sha UNIQUE (id, spec_sha256)`.execute(db);
+  await sql`ALTER TABLE curve_choices ADD CONSTRAINT curve_choices_id_sha UNIQUE (id, spec_sha256)`.execute(
+    db,
+  );
   await sql`ALTER TABLE renders ADD CONSTRAINT renders_id_side UNIQUE (id, side_id)`.execute(db);
-  await sql`ALTER TABLE renders ADD CONSTRAINT renders_id_made_from UNIQUE (id, transfer_id, curve_choice_id)`.execute(db);
+  await sql`ALTER TABLE renders ADD CONSTRAINT renders_id_made_from UNIQUE (id, transfer_id, curve_choice_id)`.execute(
+    db,
+  );
   await sql`ALTER TABLE renders ADD CONSTRAINT renders_id_sha UNIQUE (id, sha256)`.execute(db);
-  await sql`ALTER TABLE renders ADD CONSTRAINT renders_transfer_of_side FOREIGN KEY (transfer_id, side_id) REFERENCES transfers (id, side_id)`.execute(db);
-  await sql`ALTER TABLE renders ADD CONSTRAINT renders_choice_of_side FOREIGN KEY (curve_choice_id, side_id) REFERENCES curve_choices (id, side_id)`.execute(db);
+  await sql`ALTER TABLE renders ADD CONSTRAINT renders_transfer_of_side FOREIGN KEY (transfer_id, side_id) REFERENCES transfers (id, side_id)`.execute(
+    db,
+  );
+  await sql`ALTER TABLE renders ADD CONSTRAINT renders_choice_of_side FOREIGN KEY (curve_choice_id, side_id) REFERENCES curve_choices (id, side_id)`.execute(
+    db,
+  );
 
   // Superseded renders stay with their files and hashes, marked and never offered as the access copy.
-  await sql`ALTER TABLE renders ADD COLUMN superseded_at timestamptz, ADD COLUMN superseded_reason text`.execute(db);
-  await sql`ALTER TABLE renders ADD CONSTRAINT renders_superseded_reason CHECK ((superseded_at IS NULL) = (superseded_reason IS NULL))`.execute(db);
+  await sql`ALTER TABLE renders ADD COLUMN superseded_at timestamptz, ADD COLUMN superseded_reason text`.execute(
+    db,
+  );
+  await sql`ALTER TABLE renders ADD CONSTRAINT renders_superseded_reason CHECK ((superseded_at IS NULL) = (superseded_reason IS NULL))`.execute(
+    db,
+  );
 
   await sql`
     ALTER TABLE sides
@@ -59,7 +73,9 @@ export async function up(db: Kysely<any>): Promise<void> {
   await sql`
     UPDATE sides s SET
       current_transfer_id = (SELECT t.id FROM transfers t WHERE t.side_id = s.id ORDER BY t.created_at DESC LIMIT 1),
-      current_curve_choice_id = (SELECT c.id FROM curve_choices c WHERE c.side_id = s.id ORDER BY c.chosen_at DESC LIMIT 1)`.execute(db);
+      current_curve_choice_id = (SELECT c.id FROM curve_choices c WHERE c.side_id = s.id ORDER BY c.chosen_at DESC LIMIT 1)`.execute(
+    db,
+  );
   await sql`
     UPDATE sides s SET current_render_id = (
       SELECT r.id FROM renders r
@@ -71,14 +87,26 @@ export async function up(db: Kysely<any>): Promise<void> {
       AND r.status IN ('done', 'queued', 'running')`.execute(db);
   // Statuses in the new order: a curve recorded before any transfer leaves the side assigned;
   // a transfer with a curve is "curve chosen"; a side without the render it claims needs one.
-  await sql`UPDATE sides SET status = 'assigned' WHERE status = 'curve_chosen' AND current_transfer_id IS NULL`.execute(db);
-  await sql`UPDATE sides SET status = 'curve_chosen' WHERE status = 'transferred' AND current_curve_choice_id IS NOT NULL`.execute(db);
-  await sql`UPDATE sides SET status = 'curve_chosen' WHERE status IN ('rendered', 'in_review') AND current_render_id IS NULL AND current_transfer_id IS NOT NULL AND current_curve_choice_id IS NOT NULL`.execute(db);
+  await sql`UPDATE sides SET status = 'assigned' WHERE status = 'curve_chosen' AND current_transfer_id IS NULL`.execute(
+    db,
+  );
+  await sql`UPDATE sides SET status = 'curve_chosen' WHERE status = 'transferred' AND current_curve_choice_id IS NOT NULL`.execute(
+    db,
+  );
+  await sql`UPDATE sides SET status = 'curve_chosen' WHERE status IN ('rendered', 'in_review') AND current_render_id IS NULL AND current_transfer_id IS NOT NULL AND current_curve_choice_id IS NOT NULL`.execute(
+    db,
+  );
 
-  await sql`ALTER TABLE sides ADD CONSTRAINT sides_current_transfer FOREIGN KEY (current_transfer_id, id) REFERENCES transfers (id, side_id)`.execute(db);
-  await sql`ALTER TABLE sides ADD CONSTRAINT sides_current_choice FOREIGN KEY (current_curve_choice_id, id) REFERENCES curve_choices (id, side_id)`.execute(db);
+  await sql`ALTER TABLE sides ADD CONSTRAINT sides_current_transfer FOREIGN KEY (current_transfer_id, id) REFERENCES transfers (id, side_id)`.execute(
+    db,
+  );
+  await sql`ALTER TABLE sides ADD CONSTRAINT sides_current_choice FOREIGN KEY (current_curve_choice_id, id) REFERENCES curve_choices (id, side_id)`.execute(
+    db,
+  );
   // The current render was made from the current transfer and the current choice.
-  await sql`ALTER TABLE sides ADD CONSTRAINT sides_current_render FOREIGN KEY (current_render_id, current_transfer_id, current_curve_choice_id) REFERENCES renders (id, transfer_id, curve_choice_id)`.execute(db);
+  await sql`ALTER TABLE sides ADD CONSTRAINT sides_current_render FOREIGN KEY (current_render_id, current_transfer_id, current_curve_choice_id) REFERENCES renders (id, transfer_id, curve_choice_id)`.execute(
+    db,
+  );
   await sql`
     ALTER TABLE sides ADD CONSTRAINT sides_status_has_its_work CHECK (
       (current_render_id IS NULL OR (current_transfer_id IS NOT NULL AND current_curve_choice_id IS NOT NULL))
@@ -95,7 +123,9 @@ export async function up(db: Kysely<any>): Promise<void> {
     END $$`.execute(db);
 
   // The steps a status may take, and the trigger that holds every UPDATE to them.
-  await sql`CREATE TABLE side_transitions (from_status text NOT NULL, to_status text NOT NULL, PRIMARY KEY (from_status, to_status))`.execute(db);
+  await sql`CREATE TABLE side_transitions (from_status text NOT NULL, to_status text NOT NULL, PRIMARY KEY (from_status, to_status))`.execute(
+    db,
+  );
   for (const [from, to] of steps) await sql`INSERT INTO side_transitions VALUES (${from}, ${to})`.execute(db);
   await sql`
     CREATE FUNCTION sides_status_step() RETURNS trigger LANGUAGE plpgsql AS $$
@@ -105,7 +135,9 @@ export async function up(db: Kysely<any>): Promise<void> {
       END IF;
       RETURN NEW;
     END $$`.execute(db);
-  await sql`CREATE TRIGGER sides_status_step BEFORE UPDATE OF status ON sides FOR EACH ROW WHEN (OLD.status IS DISTINCT FROM NEW.status) EXECUTE FUNCTION sides_status_step()`.execute(db);
+  await sql`CREATE TRIGGER sides_status_step BEFORE UPDATE OF status ON sides FOR EACH ROW WHEN (OLD.status IS DISTINCT FROM NEW.status) EXECUTE FUNCTION sides_status_step()`.execute(
+    db,
+  );
   await sql`
     CREATE FUNCTION sides_new_status() RETURNS trigger LANGUAGE plpgsql AS $$
     BEGIN
@@ -114,22 +146,41 @@ export async function up(db: Kysely<any>): Promise<void> {
       END IF;
       RETURN NEW;
     END $$`.execute(db);
-  await sql`CREATE TRIGGER sides_new_status BEFORE INSERT ON sides FOR EACH ROW EXECUTE FUNCTION sides_new_status()`.execute(db);
+  await sql`CREATE TRIGGER sides_new_status BEFORE INSERT ON sides FOR EACH ROW EXECUTE FUNCTION sides_new_status()`.execute(
+    db,
+  );
 
   // Reviews bind the triple, with the SHA-256s the curator saw.
-  await sql`ALTER TABLE reviews ADD COLUMN transfer_sha256 text, ADD COLUMN render_sha256 text, ADD COLUMN curve_spec_sha256 text`.execute(db);
-  await sql`UPDATE reviews v SET transfer_sha256 = t.sha256 FROM transfers t WHERE t.id = v.transfer_id`.execute(db);
-  await sql`UPDATE reviews v SET render_sha256 = r.sha256 FROM renders r WHERE r.id = v.render_id`.execute(db);
-  await sql`UPDATE reviews v SET curve_spec_sha256 = c.spec_sha256 FROM curve_choices c WHERE c.id = v.curve_choice_id`.execute(db);
+  await sql`ALTER TABLE reviews ADD COLUMN transfer_sha256 text, ADD COLUMN render_sha256 text, ADD COLUMN curve_spec_sha256 text`.execute(
+    db,
+  );
+  await sql`UPDATE reviews v SET transfer_sha256 = t.sha256 FROM transfers t WHERE t.id = v.transfer_id`.execute(
+    db,
+  );
+  await sql`UPDATE reviews v SET render_sha256 = r.sha256 FROM renders r WHERE r.id = v.render_id`.execute(
+    db,
+  );
+  await sql`UPDATE reviews v SET curve_spec_sha256 = c.spec_sha256 FROM curve_choices c WHERE c.id = v.curve_choice_id`.execute(
+    db,
+  );
   // An older approval that named mismatched work cannot be mended; new rows are checked.
   const checks: [string, string][] = [
-    ["reviews_render_made_from", "FOREIGN KEY (render_id, transfer_id, curve_choice_id) REFERENCES renders (id, transfer_id, curve_choice_id)"],
+    [
+      "reviews_render_made_from",
+      "FOREIGN KEY (render_id, transfer_id, curve_choice_id) REFERENCES renders (id, transfer_id, curve_choice_id)",
+    ],
     ["reviews_render_of_side", "FOREIGN KEY (render_id, side_id) REFERENCES renders (id, side_id)"],
     ["reviews_transfer_of_side", "FOREIGN KEY (transfer_id, side_id) REFERENCES transfers (id, side_id)"],
-    ["reviews_choice_of_side", "FOREIGN KEY (curve_choice_id, side_id) REFERENCES curve_choices (id, side_id)"],
+    [
+      "reviews_choice_of_side",
+      "FOREIGN KEY (curve_choice_id, side_id) REFERENCES curve_choices (id, side_id)",
+    ],
     ["reviews_transfer_sha", "FOREIGN KEY (transfer_id, transfer_sha256) REFERENCES transfers (id, sha256)"],
     ["reviews_render_sha", "FOREIGN KEY (render_id, render_sha256) REFERENCES renders (id, sha256)"],
-    ["reviews_choice_sha", "FOREIGN KEY (curve_choice_id, curve_spec_sha256) REFERENCES curve_choices (id, spec_sha256)"],
+    [
+      "reviews_choice_sha",
+      "FOREIGN KEY (curve_choice_id, curve_spec_sha256) REFERENCES curve_choices (id, spec_sha256)",
+    ],
     [
       "reviews_approval_names_all",
       `CHECK (decision <> 'approved' OR (transfer_id IS NOT NULL AND render_id IS NOT NULL AND curve_choice_id IS NOT NULL
@@ -167,12 +218,18 @@ export async function up(db: Kysely<any>): Promise<void> {
       END IF;
       RETURN NEW;
     END $$`.execute(db);
-  await sql`CREATE TRIGGER reviews_bind_current_work BEFORE INSERT ON reviews FOR EACH ROW EXECUTE FUNCTION reviews_bind_current_work()`.execute(db);
+  await sql`CREATE TRIGGER reviews_bind_current_work BEFORE INSERT ON reviews FOR EACH ROW EXECUTE FUNCTION reviews_bind_current_work()`.execute(
+    db,
+  );
   // A review is a record: it is never rewritten.
   await sql`
     CREATE FUNCTION reviews_are_final() RETURNS trigger LANGUAGE plpgsql AS $$
-    BEGIN RAISE EXCEPTION 'reviews are permanent: % refused', TG_OP USING ERRCODE = 'insufficient_privilege'; END $$`.execute(db);
-  await sql`CREATE TRIGGER reviews_are_final BEFORE UPDATE OR DELETE ON reviews FOR EACH ROW EXECUTE FUNCTION reviews_are_final()`.execute(db);
+    BEGIN RAISE EXCEPTION 'reviews are permanent: % refused', TG_OP USING ERRCODE = 'insufficient_privilege'; END $$`.execute(
+    db,
+  );
+  await sql`CREATE TRIGGER reviews_are_final BEFORE UPDATE OR DELETE ON reviews FOR EACH ROW EXECUTE FUNCTION reviews_are_final()`.execute(
+    db,
+  );
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
@@ -194,11 +251,17 @@ export async function down(db: Kysely<any>): Promise<void> {
   await sql`
     ALTER TABLE sides DROP CONSTRAINT sides_status_has_its_work, DROP CONSTRAINT sides_current_render,
       DROP CONSTRAINT sides_current_choice, DROP CONSTRAINT sides_current_transfer,
-      DROP COLUMN current_render_id, DROP COLUMN current_curve_choice_id, DROP COLUMN current_transfer_id`.execute(db);
+      DROP COLUMN current_render_id, DROP COLUMN current_curve_choice_id, DROP COLUMN current_transfer_id`.execute(
+    db,
+  );
   await sql`
     ALTER TABLE renders DROP CONSTRAINT renders_superseded_reason, DROP COLUMN superseded_reason, DROP COLUMN superseded_at,
       DROP CONSTRAINT renders_choice_of_side, DROP CONSTRAINT renders_transfer_of_side, DROP CONSTRAINT renders_id_sha,
       DROP CONSTRAINT renders_id_made_from, DROP CONSTRAINT renders_id_side`.execute(db);
-  await sql`ALTER TABLE curve_choices DROP CONSTRAINT curve_choices_id_sha, DROP COLUMN spec_sha256, DROP CONSTRAINT curve_choices_id_side`.execute(db);
-  await sql`ALTER TABLE transfers DROP CONSTRAINT transfers_id_sha, DROP CONSTRAINT transfers_id_side`.execute(db);
+  await sql`ALTER TABLE curve_choices DROP CONSTRAINT curve_choices_id_sha, DROP COLUMN spec_sha256, DROP CONSTRAINT curve_choices_id_side`.execute(
+    db,
+  );
+  await sql`ALTER TABLE transfers DROP CONSTRAINT transfers_id_sha, DROP CONSTRAINT transfers_id_side`.execute(
+    db,
+  );
 }

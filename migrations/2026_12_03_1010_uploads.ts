@@ -29,24 +29,42 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("created_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
     .addColumn("updated_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
     .addColumn("finished_at", "timestamptz")
-    .addCheckConstraint("uploads_state", sql`state IN ('open', 'completing', 'completed', 'aborted', 'refused')`)
+    .addCheckConstraint(
+      "uploads_state",
+      sql`state IN ('open', 'completing', 'completed', 'aborted', 'refused')`,
+    )
     // S3: 10 000 parts at most; files up to 64 GiB here.
     .addCheckConstraint("uploads_declared_bytes", sql`declared_bytes > 0 AND declared_bytes <= 68719476736`)
-    .addCheckConstraint("uploads_parts", sql`part_size > 0 AND part_count BETWEEN 1 AND 10000 AND part_count = (declared_bytes + part_size - 1) / part_size`)
-    .addCheckConstraint("uploads_claim", sql`(state = 'completing') = (claim IS NOT NULL AND claimed_at IS NOT NULL)`)
+    .addCheckConstraint(
+      "uploads_parts",
+      sql`part_size > 0 AND part_count BETWEEN 1 AND 10000 AND part_count = (declared_bytes + part_size - 1) / part_size`,
+    )
+    .addCheckConstraint(
+      "uploads_claim",
+      sql`(state = 'completing') = (claim IS NOT NULL AND claimed_at IS NOT NULL)`,
+    )
     .addCheckConstraint("uploads_finished", sql`(state IN ('open', 'completing')) = (finished_at IS NULL)`)
     .addCheckConstraint("uploads_expiry", sql`expires_at > created_at`)
-    .addCheckConstraint("uploads_key", sql`object_key LIKE 'transfers/' || side_id::text || '/' || id::text || '/%'`)
+    .addCheckConstraint(
+      "uploads_key",
+      sql`object_key LIKE 'transfers/' || side_id::text || '/' || id::text || '/%'`,
+    )
     .execute();
   // The target of the transfers' foreign key below: a transfer's side and object are its upload's.
-  await sql`ALTER TABLE uploads ADD CONSTRAINT uploads_id_side_key UNIQUE (id, side_id, object_key)`.execute(db);
+  await sql`ALTER TABLE uploads ADD CONSTRAINT uploads_id_side_key UNIQUE (id, side_id, object_key)`.execute(
+    db,
+  );
   await sql`CREATE INDEX uploads_started_by ON uploads (started_by, state)`.execute(db);
-  await sql`CREATE INDEX uploads_open_expiry ON uploads (expires_at) WHERE state IN ('open', 'completing')`.execute(db);
+  await sql`CREATE INDEX uploads_open_expiry ON uploads (expires_at) WHERE state IN ('open', 'completing')`.execute(
+    db,
+  );
 
   // Transfers recorded before uploads were remembered keep a null upload_id.
   await sql`ALTER TABLE transfers ADD COLUMN upload_id uuid`.execute(db);
   await sql`ALTER TABLE transfers ADD CONSTRAINT transfers_upload_once UNIQUE (upload_id)`.execute(db);
-  await sql`ALTER TABLE transfers ADD CONSTRAINT transfers_upload_fk FOREIGN KEY (upload_id, side_id, object_key) REFERENCES uploads (id, side_id, object_key)`.execute(db);
+  await sql`ALTER TABLE transfers ADD CONSTRAINT transfers_upload_fk FOREIGN KEY (upload_id, side_id, object_key) REFERENCES uploads (id, side_id, object_key)`.execute(
+    db,
+  );
 }
 
 export async function down(db: Kysely<any>): Promise<void> {

@@ -44,7 +44,9 @@ export async function up(db: Kysely<any>): Promise<void> {
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
-  await sql`ALTER TABLE chain_checks DROP COLUMN contradicted_checkpoint, DROP COLUMN checkpoint_source, DROP COLUMN checkpoints`.execute(db);
+  await sql`ALTER TABLE chain_checks DROP COLUMN contradicted_checkpoint, DROP COLUMN checkpoint_source, DROP COLUMN checkpoints`.execute(
+    db,
+  );
   await db.schema.dropTable("chain_checkpoints").execute();
   await sql`DROP FUNCTION refuse_checkpoint_change()`.execute(db);
 }

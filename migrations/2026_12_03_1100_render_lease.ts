@@ -9,15 +9,21 @@ export async function up(db: Kysely<any>): Promise<void> {
   await sql`ALTER TABLE renders ADD COLUMN heartbeat_at timestamptz`.execute(db);
   await sql`ALTER TABLE renders ADD COLUMN lease_owner text`.execute(db);
   await sql`ALTER TABLE renders DROP CONSTRAINT renders_status`.execute(db);
-  await sql`ALTER TABLE renders ADD CONSTRAINT renders_status CHECK (status IN ('queued', 'running', 'done', 'failed', 'cancelled'))`.execute(db);
-  await sql`CREATE INDEX renders_running_lease ON renders (heartbeat_at) WHERE status = 'running'`.execute(db);
+  await sql`ALTER TABLE renders ADD CONSTRAINT renders_status CHECK (status IN ('queued', 'running', 'done', 'failed', 'cancelled'))`.execute(
+    db,
+  );
+  await sql`CREATE INDEX renders_running_lease ON renders (heartbeat_at) WHERE status = 'running'`.execute(
+    db,
+  );
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
   await sql`DROP INDEX renders_running_lease`.execute(db);
   await sql`UPDATE renders SET status = 'failed' WHERE status = 'cancelled'`.execute(db);
   await sql`ALTER TABLE renders DROP CONSTRAINT renders_status`.execute(db);
-  await sql`ALTER TABLE renders ADD CONSTRAINT renders_status CHECK (status IN ('queued', 'running', 'done', 'failed'))`.execute(db);
+  await sql`ALTER TABLE renders ADD CONSTRAINT renders_status CHECK (status IN ('queued', 'running', 'done', 'failed'))`.execute(
+    db,
+  );
   await sql`ALTER TABLE renders DROP COLUMN lease_owner`.execute(db);
   await sql`ALTER TABLE renders DROP COLUMN heartbeat_at`.execute(db);
 }

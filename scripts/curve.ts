@@ -99,7 +99,8 @@ async function loadPreset(name: string): Promise<CurveSpec> {
       "SELECT v.spec FROM curve_presets p JOIN curve_preset_versions v ON v.preset_id = p.id AND v.version = p.current_version WHERE lower(p.name) = lower($1)",
       [name],
     );
-    if (result.rows.length === 0) throw new UsageError(`No preset named "${name}" in the library at ${new URL(url).host}.`);
+    if (result.rows.length === 0)
+      throw new UsageError(`No preset named "${name}" in the library at ${new URL(url).host}.`);
     const stored = result.rows[0].spec;
     // The stored JSON is parsed with its schema, never trusted as it comes.
     return storedCurveSpecSchema.parse(typeof stored === "string" ? JSON.parse(stored) : stored);
@@ -114,7 +115,8 @@ async function specFromFlags(values: Values): Promise<CurveSpec> {
   for (const [flag, [corner, unit]] of Object.entries(CORNER_FLAGS)) {
     const value = numberFlag(values, flag);
     if (value === undefined) continue;
-    if (seen.has(corner)) throw new UsageError(`--${flag} and --${seen.get(corner)} both give the ${corner}; give one.`);
+    if (seen.has(corner))
+      throw new UsageError(`--${flag} and --${seen.get(corner)} both give the ${corner}; give one.`);
     seen.set(corner, flag);
     (spec as Record<string, unknown>)[corner] = { unit, value };
   }
@@ -141,7 +143,9 @@ async function design(values: Values): Promise<void> {
   const peak = peakGain(model);
   const out: Record<string, unknown> = {
     spec,
-    corners: ["turnover", "shelf", "rolloff", "highpass", "ultrasonic"].map((n) => model.curve[n as "turnover"]).filter(Boolean),
+    corners: ["turnover", "shelf", "rolloff", "highpass", "ultrasonic"]
+      .map((n) => model.curve[n as "turnover"])
+      .filter(Boolean),
     sampleRateHz: rate,
     sos: iir.sos,
     zeros: model.zerosRadS,
@@ -171,30 +175,52 @@ async function design(values: Values): Promise<void> {
     return;
   }
   const lines: string[] = [];
-  for (const c of model.curve ? [model.curve.turnover, model.curve.shelf, model.curve.rolloff, model.curve.highpass, model.curve.ultrasonic] : []) {
+  for (const c of model.curve
+    ? [
+        model.curve.turnover,
+        model.curve.shelf,
+        model.curve.rolloff,
+        model.curve.highpass,
+        model.curve.ultrasonic,
+      ]
+    : []) {
     if (!c) continue;
     const extra = c.db10k !== undefined ? `, ${formatRolloffDb(c.db10k)}` : "";
-    lines.push(`${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra} (entered ${c.entered.value} ${c.entered.unit}; filter uses ${fmt(c.filterTauUs, 3)} µs)`);
+    lines.push(
+      `${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra} (entered ${c.entered.value} ${c.entered.unit}; filter uses ${fmt(c.filterTauUs, 3)} µs)`,
+    );
   }
   if (lines.length === 0) lines.push("flat curve (no corners)");
-  lines.push(`reference  ${model.curve.reference.db} dB at ${model.curve.reference.hz} Hz; speed ratio ${model.curve.speedRatio}`);
+  lines.push(
+    `reference  ${model.curve.reference.db} dB at ${model.curve.reference.hz} Hz; speed ratio ${model.curve.speedRatio}`,
+  );
   lines.push(`peak gain  ${fmt(peak.peakGainDb, 2)} dB at ${fmt(peak.peakHz, 1)} Hz`);
   lines.push(`zeros      ${model.zerosRadS.map((z) => fmt(z, 3)).join(", ") || "none"} rad/s`);
   lines.push(`poles      ${model.polesRadS.map((p) => fmt(p, 3)).join(", ") || "none"} rad/s`);
   lines.push(`k          ${model.k}`);
   lines.push(`IIR at ${rate} Hz, ${iir.sos.length} sections:`);
   for (const row of iir.sos) lines.push("  " + row.map((v) => v.toPrecision(12)).join("  "));
-  lines.push(`  worst deviation 20 Hz–20 kHz: ${fmt(iir.maxErrorDb, 5)} dB, ${fmt(iir.maxPhaseErrorDeg, 2)}° (phase of a minimum-phase IIR departs near Nyquist)`);
+  lines.push(
+    `  worst deviation 20 Hz–20 kHz: ${fmt(iir.maxErrorDb, 5)} dB, ${fmt(iir.maxPhaseErrorDeg, 2)}° (phase of a minimum-phase IIR departs near Nyquist)`,
+  );
   if (out.renderFilter) {
-    const rf = out.renderFilter as { taps: number[]; delaySamples: number; maxErrorDb: number; maxPhaseErrorDeg: number };
-    lines.push(`render filter: FIR, ${rf.taps.length} taps, delay ${rf.delaySamples} samples, worst ${rf.maxErrorDb.toExponential(2)} dB, ${rf.maxPhaseErrorDeg.toExponential(2)}°`);
+    const rf = out.renderFilter as {
+      taps: number[];
+      delaySamples: number;
+      maxErrorDb: number;
+      maxPhaseErrorDeg: number;
+    };
+    lines.push(
+      `render filter: FIR, ${rf.taps.length} taps, delay ${rf.delaySamples} samples, worst ${rf.maxErrorDb.toExponential(2)} dB, ${rf.maxPhaseErrorDeg.toExponential(2)}°`,
+    );
   }
   process.stdout.write(lines.join("\n") + "\n");
 }
 
 async function response(values: Values): Promise<void> {
   const spec = await specFromFlags(values);
-  const freqText = typeof values.freqs === "string" ? values.freqs : "20,50,100,200,500,1000,2000,5000,10000,20000";
+  const freqText =
+    typeof values.freqs === "string" ? values.freqs : "20,50,100,200,500,1000,2000,5000,10000,20000";
   const freqs = freqText.split(",").map((f) => {
     const n = Number(f.trim());
     if (!(n > 0) || !Number.isFinite(n)) throw new UsageError(`--freqs: "${f}" is not a positive frequency.`);
@@ -208,17 +234,23 @@ async function response(values: Values): Promise<void> {
     return;
   }
   const lines = ["      Hz      dB     phase°"];
-  r.hz.forEach((hz, i) => lines.push(`${fmt(hz, 1).padStart(8)} ${fmt(r.gainDb[i], 3).padStart(8)} ${fmt(r.phaseDeg[i], 2).padStart(9)}`));
+  r.hz.forEach((hz, i) =>
+    lines.push(
+      `${fmt(hz, 1).padStart(8)} ${fmt(r.gainDb[i], 3).padStart(8)} ${fmt(r.phaseDeg[i], 2).padStart(9)}`,
+    ),
+  );
   process.stdout.write(lines.join("\n") + "\n");
 }
 
 async function fit(values: Values, positionals: string[]): Promise<void> {
   const file = positionals[1];
   if (!file) throw new UsageError("fit needs a points file: curve fit POINTS.csv --fit turnover,rolloff");
-  if (typeof values.fit !== "string" || values.fit.trim() === "") throw new UsageError("fit needs --fit with the parameters to fit, e.g. --fit turnover,rolloff");
+  if (typeof values.fit !== "string" || values.fit.trim() === "")
+    throw new UsageError("fit needs --fit with the parameters to fit, e.g. --fit turnover,rolloff");
   const params = values.fit.split(",").map((p) => p.trim());
   for (const p of params) {
-    if (!FIT_PARAMETERS.includes(p as FitParameter)) throw new UsageError(`--fit: unknown parameter "${p}"; choose from ${FIT_PARAMETERS.join(", ")}.`);
+    if (!FIT_PARAMETERS.includes(p as FitParameter))
+      throw new UsageError(`--fit: unknown parameter "${p}"; choose from ${FIT_PARAMETERS.join(", ")}.`);
   }
   let text: string;
   try {
@@ -228,7 +260,12 @@ async function fit(values: Values, positionals: string[]): Promise<void> {
   }
   const points = parsePointsCsv(text);
   const initial = await specFromFlags(values);
-  const result = fitCurve({ points, kind: values.recording ? "recording" : "playback", fit: params as FitParameter[], initial });
+  const result = fitCurve({
+    points,
+    kind: values.recording ? "recording" : "playback",
+    fit: params as FitParameter[],
+    initial,
+  });
   if (values.json) {
     const { curve: _curve, ...rest } = result;
     void _curve;
@@ -238,16 +275,24 @@ async function fit(values: Values, positionals: string[]): Promise<void> {
   const lines: string[] = [];
   for (const c of result.corners) {
     const extra = c.db10k !== undefined ? `, ${formatRolloffDb(c.db10k)}` : "";
-    lines.push(`${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra}${c.fitted ? "  (fitted)" : ""}`);
+    lines.push(
+      `${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra}${c.fitted ? "  (fitted)" : ""}`,
+    );
   }
-  lines.push(`level offset ${fmt(result.levelOffsetDb, 3)} dB${params.includes("levelOffset") ? "  (fitted)" : ""}`);
-  lines.push(`RMS residual ${fmt(result.rmsDb, 4)} dB, worst ${fmt(result.worstDb, 4)} dB at ${result.worstHz} Hz (${result.kind} table, ${points.length} points)`);
+  lines.push(
+    `level offset ${fmt(result.levelOffsetDb, 3)} dB${params.includes("levelOffset") ? "  (fitted)" : ""}`,
+  );
+  lines.push(
+    `RMS residual ${fmt(result.rmsDb, 4)} dB, worst ${fmt(result.worstDb, 4)} dB at ${result.worstHz} Hz (${result.kind} table, ${points.length} points)`,
+  );
   // Show the model in the table's own convention (recording = −playback).
   const sign = result.kind === "recording" ? -1 : 1;
   lines.push(`      Hz    given    model  residual   (${result.kind} levels)`);
   for (const r of result.residuals) {
     const model = sign * r.modelDb;
-    lines.push(`${fmt(r.hz, 1).padStart(8)} ${fmt(r.db, 3).padStart(8)} ${fmt(model, 3).padStart(8)} ${fmt(r.db - model, 4).padStart(9)}`);
+    lines.push(
+      `${fmt(r.hz, 1).padStart(8)} ${fmt(r.db, 3).padStart(8)} ${fmt(model, 3).padStart(8)} ${fmt(r.db - model, 4).padStart(9)}`,
+    );
   }
   process.stdout.write(lines.join("\n") + "\n");
 }
@@ -258,7 +303,13 @@ function joinNegativeValues(argv: string[]): string[] {
   for (let i = 0; i < argv.length; i++) {
     const flag = argv[i].startsWith("--") ? argv[i].slice(2) : null;
     const next = argv[i + 1];
-    if (flag && !flag.includes("=") && OPTIONS[flag as keyof typeof OPTIONS]?.type === "string" && next !== undefined && /^-(\d|\.\d)/.test(next)) {
+    if (
+      flag &&
+      !flag.includes("=") &&
+      OPTIONS[flag as keyof typeof OPTIONS]?.type === "string" &&
+      next !== undefined &&
+      /^-(\d|\.\d)/.test(next)
+    ) {
       out.push(`${argv[i]}=${next}`);
       i++;
     } else out.push(argv[i]);
@@ -267,9 +318,16 @@ function joinNegativeValues(argv: string[]): string[] {
 }
 
 async function main(argv: string[]): Promise<number> {
-  let parsed: ReturnType<typeof parseArgs<{ options: typeof OPTIONS; allowPositionals: true; args: string[] }>>;
+  let parsed: ReturnType<
+    typeof parseArgs<{ options: typeof OPTIONS; allowPositionals: true; args: string[] }>
+  >;
   try {
-    parsed = parseArgs({ args: joinNegativeValues(argv), options: OPTIONS, allowPositionals: true, strict: true });
+    parsed = parseArgs({
+      args: joinNegativeValues(argv),
+      options: OPTIONS,
+      allowPositionals: true,
+      strict: true,
+    });
   } catch (error) {
     process.stderr.write(`${(error as Error).message}\n${USAGE}\n`);
     return 2;

@@ -17,9 +17,12 @@ const migrationFolder = path.join(path.dirname(fileURLToPath(import.meta.url)), 
  */
 export const migrationProvider: MigrationProvider = {
   async getMigrations(): Promise<Record<string, Migration>> {
-    const files = (await fs.readdir(migrationFolder)).filter((f) => /\.(ts|mts|js|mjs)$/.test(f) && !f.endsWith(".d.ts")).sort();
+    const files = (await fs.readdir(migrationFolder))
+      .filter((f) => /\.(ts|mts|js|mjs)$/.test(f) && !f.endsWith(".d.ts"))
+      .sort();
     const migrations: Record<string, Migration> = {};
-    for (const f of files) migrations[f.replace(/\.[^.]+$/, "")] = (await import(path.join(migrationFolder, f))) as Migration;
+    for (const f of files)
+      migrations[f.replace(/\.[^.]+$/, "")] = (await import(path.join(migrationFolder, f))) as Migration;
     return migrations;
   },
 };
@@ -35,7 +38,9 @@ export interface MigrateOptions {
  * Runs every pending Kysely migration and pg-boss's own schema migration as the owner,
  * then grants the app's role its rights (db/roles.ts). Returns the names applied.
  */
-export async function migrateToLatest(opts: MigrateOptions): Promise<{ applied: string[]; appendOnly: string[] | null }> {
+export async function migrateToLatest(
+  opts: MigrateOptions,
+): Promise<{ applied: string[]; appendOnly: string[] | null }> {
   const db = createDb(opts.ownerUrl, 2);
   try {
     const migrator = new Migrator({ db, provider: migrationProvider });
@@ -46,7 +51,8 @@ export async function migrateToLatest(opts: MigrateOptions): Promise<{ applied: 
     }
     await ensureQueues(opts.ownerUrl);
     let appendOnly: string[] | null = null;
-    if (opts.appUrl && roleOf(opts.appUrl) !== roleOf(opts.ownerUrl)) appendOnly = await grantAppRole(db, roleOf(opts.appUrl));
+    if (opts.appUrl && roleOf(opts.appUrl) !== roleOf(opts.ownerUrl))
+      appendOnly = await grantAppRole(db, roleOf(opts.appUrl));
     return { applied: (results ?? []).map((r) => r.migrationName), appendOnly };
   } finally {
     await db.destroy();
@@ -63,7 +69,10 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.a
   migrateToLatest({ ownerUrl: DATABASE_OWNER_URL ?? DATABASE_URL, appUrl: DATABASE_URL })
     .then(({ applied, appendOnly }) => {
       console.log(applied.length ? `migrated: ${applied.join(", ")}` : "database is up to date");
-      if (appendOnly) console.log(`granted ${roleOf(DATABASE_URL)} its rights; append-only for it: ${appendOnly.join(", ")}`);
+      if (appendOnly)
+        console.log(
+          `granted ${roleOf(DATABASE_URL)} its rights; append-only for it: ${appendOnly.join(", ")}`,
+        );
     })
     .catch((err) => {
       console.error(String(err));

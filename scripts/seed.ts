@@ -6,7 +6,11 @@ import { env } from "../lib/env";
 const db = createDb(env().DATABASE_URL, 2);
 seed(db)
   .then((r) =>
-    console.log(r.usersAdded || r.presetsAdded || r.discsAdded ? `seeded the demo lab (${r.usersAdded} people, ${r.presetsAdded} curve presets, ${r.discsAdded} discs)` : "demo lab already seeded"),
+    console.log(
+      r.usersAdded || r.presetsAdded || r.discsAdded
+        ? `seeded the demo lab (${r.usersAdded} people, ${r.presetsAdded} curve presets, ${r.discsAdded} discs)`
+        : "demo lab already seeded",
+    ),
   )
   .catch((err) => {
     console.error(err);

@@ -3,7 +3,17 @@ import { spawn } from "node:child_process";
 import { promises as fs } from "node:fs";
 import path from "node:path";
 import { demoAccounts } from "../db/seed-data";
-import { build, log, profile, root, runTsx, startApp, startServices, startWorker, stopAll } from "./lib/stack";
+import {
+  build,
+  log,
+  profile,
+  root,
+  runTsx,
+  startApp,
+  startServices,
+  startWorker,
+  stopAll,
+} from "./lib/stack";
 
 async function prepare(name: "demo" | "test") {
   const p = profile(name);
@@ -21,18 +31,24 @@ async function start(): Promise<void> {
   console.log(`\nRillbook is serving at ${env.APP_URL}\n`);
   console.log("Demo sign-ins:");
   for (const a of demoAccounts) console.log(`  ${a.role.padEnd(10)} ${a.email.padEnd(34)} ${a.password}`);
-  console.log(`\nMail sent by the app lands in ${path.relative(root, env.MAIL_SINK_DIR ?? "")} (admins also see it on the Outbox page).`);
+  console.log(
+    `\nMail sent by the app lands in ${path.relative(root, env.MAIL_SINK_DIR ?? "")} (admins also see it on the Outbox page).`,
+  );
   console.log("Stop everything with: npm run stop\n");
 }
 
 async function dev(): Promise<void> {
   const { p, env } = await prepare("demo");
   await startWorker(p, env);
-  const child = spawn(process.execPath, ["node_modules/next/dist/bin/next", "dev", "-H", "127.0.0.1", "-p", String(p.appPort)], {
-    cwd: root,
-    env: { ...env, NEXT_DIST_DIR: ".next-dev" },
-    stdio: "inherit",
-  });
+  const child = spawn(
+    process.execPath,
+    ["node_modules/next/dist/bin/next", "dev", "-H", "127.0.0.1", "-p", String(p.appPort)],
+    {
+      cwd: root,
+      env: { ...env, NEXT_DIST_DIR: ".next-dev" },
+      stdio: "inherit",
+    },
+  );
   child.on("close", (code) => process.exit(code ?? 0));
 }
 
@@ -40,16 +56,33 @@ async function dev(): Promise<void> {
 async function vitest(env: NodeJS.ProcessEnv, args: string[]): Promise<number> {
   const report = path.join(profile("test").dir, "vitest-report.json");
   const code = await new Promise<number>((resolve) => {
-    const child = spawn(process.execPath, ["node_modules/vitest/vitest.mjs", "run", "--reporter=default", "--reporter=json", `--outputFile.json=${report}`, ...args], {
-      cwd: root,
-      env,
-      stdio: "inherit",
-    });
+    const child = spawn(
+      process.execPath,
+      [
+        "node_modules/vitest/vitest.mjs",
+        "run",
+        "--reporter=default",
+        "--reporter=json",
+        `--outputFile.json=${report}`,
+        ...args,
+      ],
+      {
+        cwd: root,
+        env,
+        stdio: "inherit",
+      },
+    );
     child.on("close", (c) => resolve(c ?? 1));
   });
   try {
-    const r = JSON.parse(await fs.readFile(report, "utf8")) as { numPassedTests: number; numFailedTests: number; numPendingTests: number };
-    console.log(`\ntests: ${r.numPassedTests} passed, ${r.numFailedTests} failed, ${r.numPendingTests} skipped`);
+    const r = JSON.parse(await fs.readFile(report, "utf8")) as {
+      numPassedTests: number;
+      numFailedTests: number;
+      numPendingTests: number;
+    };
+    console.log(
+      `\ntests: ${r.numPassedTests} passed, ${r.numFailedTests} failed, ${r.numPendingTests} skipped`,
+    );
   } catch {
     console.log("\ntests: no report was written");
   }

@@ -24,7 +24,10 @@ function log(message: string): void {
 
 function startChild(): void {
   const startedAt = Date.now();
-  const c = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], { stdio: "inherit", env: process.env });
+  const c = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], {
+    stdio: "inherit",
+    env: process.env,
+  });
   child = c;
   if (childPidFile && c.pid) void fs.writeFile(childPidFile, String(c.pid)).catch(() => undefined);
   log(`worker started (pid ${c.pid}${restarts ? `, restart ${restarts}` : ""})`);
@@ -39,7 +42,9 @@ function startChild(): void {
     }
     const ran = Date.now() - startedAt;
     if (ran >= healthyRunMs) delayMs = minDelayMs;
-    log(`worker (pid ${c.pid}) ${why} after ${(ran / 1000).toFixed(1)} s; starting it again in ${delayMs / 1000} s`);
+    log(
+      `worker (pid ${c.pid}) ${why} after ${(ran / 1000).toFixed(1)} s; starting it again in ${delayMs / 1000} s`,
+    );
     const wait = delayMs;
     delayMs = Math.min(maxDelayMs, delayMs * 2);
     restarts += 1;

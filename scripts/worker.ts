@@ -7,9 +7,24 @@ import { createDb } from "../db/client";
 import { defaultDsp } from "../lib/audio/dsp";
 import { env } from "../lib/env";
 import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
-import { CHAIN_CHECKPOINT_CRON, CHAIN_CHECKPOINT_QUEUE, createBoss, createMissingQueues, FIXITY_QUEUE, FIXITY_SWEEP_CRON, FIXITY_SWEEP_QUEUE, fixityJobKey, RENDER_QUEUE } from "../lib/jobs/boss";
+import {
+  CHAIN_CHECKPOINT_CRON,
+  CHAIN_CHECKPOINT_QUEUE,
+  createBoss,
+  createMissingQueues,
+  FIXITY_QUEUE,
+  FIXITY_SWEEP_CRON,
+  FIXITY_SWEEP_QUEUE,
+  fixityJobKey,
+  RENDER_QUEUE,
+} from "../lib/jobs/boss";
 import { runRenderJob } from "../lib/jobs/render-job";
-import { leaseTimes, releaseStaleRenders, removeStaleRenderTmp, workerIdentity } from "../lib/jobs/render-lease";
+import {
+  leaseTimes,
+  releaseStaleRenders,
+  removeStaleRenderTmp,
+  workerIdentity,
+} from "../lib/jobs/render-lease";
 import { deliverDueMail } from "../lib/mail/outbox";
 import { takeCheckpoint } from "../lib/provenance/checkpoints";
 import { createMailTransport } from "../lib/mail/transport";
@@ -44,7 +59,9 @@ async function leaseSweepLoop(): Promise<void> {
     try {
       for (const renderId of await releaseStaleRenders(db, stale)) {
         await boss.send(RENDER_QUEUE, { renderId });
-        console.log(`[worker] render ${renderId}: its worker stopped renewing the lease; handed back to the queue`);
+        console.log(
+          `[worker] render ${renderId}: its worker stopped renewing the lease; handed back to the queue`,
+        );
       }
     } catch (err) {
       console.error("[worker] lease sweep failed:", err instanceof Error ? err.message : err);
@@ -53,38 +70,69 @@ async function leaseSweepLoop(): Promise<void> {
 }
 
 async function main(): Promise<void> {
-  console.log(`[worker] started as ${workerIdentity}, sending mail through ${new URL(env().SMTP_URL).host}; renders run on the ${defaultDsp().name} engine`);
+  console.log(
+    `[worker] started as ${workerIdentity}, sending mail through ${new URL(env().SMTP_URL).host}; renders run on the ${defaultDsp().name} engine`,
+  );
   // A killed worker cannot remove its render's temporary folder: the next one does.
-  for (const dir of await removeStaleRenderTmp()) console.log(`[worker] removed a stale render folder ${dir}`);
+  for (const dir of await removeStaleRenderTmp())
+    console.log(`[worker] removed a stale render folder ${dir}`);
   await boss.start();
   await createMissingQueues(boss);
-  await boss.work<{ renderId: string }>(RENDER_QUEUE, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 1 }, async ([job]) => {
-    const finalAttempt = job.retryCount >= job.retryLimit;
-    console.log(`[worker] render ${job.data.renderId} (attempt ${job.retryCount + 1} of ${job.retryLimit + 1})`);
-    const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
-    console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
-  });
+  await boss.work<{ renderId: string }>(
+    RENDER_QUEUE,
+    { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 1 },
+    async ([job]) => {
+      const finalAttempt = job.retryCount >= job.retryLimit;
+      console.log(
+        `[worker] render ${job.data.renderId} (attempt ${job.retryCount + 1} of ${job.retryLimit + 1})`,
+      );
+      const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
+      console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
+    },
+  );
   // Fixity: an hourly sweep queues every object whose last check is older than the
   // lab's cycle; each object is one job (singleton per object), so several workers
   // share the work and never check an object twice at once.
   await boss.schedule(FIXITY_SWEEP_QUEUE, FIXITY_SWEEP_CRON);
   await boss.work(FIXITY_SWEEP_QUEUE, async () => {
     const due = await dueObjects(db, await fixityCycleDays(db));
-    for (const o of due) await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
+    for (const o of due)
+      await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
     if (due.length) console.log(`[worker] fixity sweep queued ${due.length} objects`);
   });
-  await boss.work<{ kind: StoredObjectKind; id: string }>(FIXITY_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
-    const outcome = await checkObject(db, job.data.kind, job.data.id);
-    console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
-  });
+  await boss.work<{ kind: StoredObjectKind; id: string }>(
+    FIXITY_QUEUE,
+    { batchSize: 1, pollingIntervalSeconds: 1 },
+    async ([job]) => {
+      const outcome = await checkObject(db, job.data.kind, job.data.id);
+      console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
+    },
+  );
   // The provenance chain is anchored daily, and whenever a curator or an admin asks: a
   // checkpoint object in the bucket, never overwritten, mailed to the curators.
-  await boss.schedule(CHAIN_CHECKPOINT_QUEUE, CHAIN_CHECKPOINT_CRON, { reason: "scheduled" }, { singletonKey: "chain-checkpoint" });
-  await boss.work<{ reason: "scheduled" | "requested"; requestedBy?: string }>(CHAIN_CHECKPOINT_QUEUE, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
-    const outcome = await takeCheckpoint(db, { reason: job.data.reason === "requested" ? "requested" : "scheduled", requestedBy: job.data.requestedBy ?? null });
-    const detail = outcome.status === "written" ? ` ${outcome.key} (${outcome.checkpoint.events} entries, mailed to ${outcome.mailedTo} curators)` : outcome.status === "refused" ? ": the chain did not verify, curators told" : "";
-    console.log(`[worker] chain checkpoint: ${outcome.status}${detail}`);
-  });
+  await boss.schedule(
+    CHAIN_CHECKPOINT_QUEUE,
+    CHAIN_CHECKPOINT_CRON,
+    { reason: "scheduled" },
+    { singletonKey: "chain-checkpoint" },
+  );
+  await boss.work<{ reason: "scheduled" | "requested"; requestedBy?: string }>(
+    CHAIN_CHECKPOINT_QUEUE,
+    { batchSize: 1, pollingIntervalSeconds: 1 },
+    async ([job]) => {
+      const outcome = await takeCheckpoint(db, {
+        reason: job.data.reason === "requested" ? "requested" : "scheduled",
+        requestedBy: job.data.requestedBy ?? null,
+      });
+      const detail =
+        outcome.status === "written"
+          ? ` ${outcome.key} (${outcome.checkpoint.events} entries, mailed to ${outcome.mailedTo} curators)`
+          : outcome.status === "refused"
+            ? ": the chain did not verify, curators told"
+            : "";
+      console.log(`[worker] chain checkpoint: ${outcome.status}${detail}`);
+    },
+  );
   await Promise.all([mailLoop(), leaseSweepLoop()]);
 }
 

@@ -9,18 +9,24 @@ import { requestPasswordReset, resetPassword } from "@/lib/people/password-reset
 
 export async function acceptInvitationAction(_prev: ActionState, form: FormData): Promise<ActionState> {
   const v = formValues(form);
-  const state = await runAction(async () => {
-    await acceptInvitation({ token: v.token, name: v.name, password: v.password, confirm: v.confirm });
-  }, { name: v.name ?? "" });
+  const state = await runAction(
+    async () => {
+      await acceptInvitation({ token: v.token, name: v.name, password: v.password, confirm: v.confirm });
+    },
+    { name: v.name ?? "" },
+  );
   if (state?.ok) redirect("/sign-in?welcome=1");
   return state;
 }
 
 export async function requestResetAction(_prev: ActionState, form: FormData): Promise<ActionState> {
-  return runAction(async () => {
-    await requestPasswordReset({ email: form.get("email") });
-    return "If that address belongs to an active account, a link to choose a new password is on its way. It works once, for two hours.";
-  }, { email: String(form.get("email") ?? "") });
+  return runAction(
+    async () => {
+      await requestPasswordReset({ email: form.get("email") });
+      return "If that address belongs to an active account, a link to choose a new password is on its way. It works once, for two hours.";
+    },
+    { email: String(form.get("email") ?? "") },
+  );
 }
 
 export async function resetPasswordAction(_prev: ActionState, form: FormData): Promise<ActionState> {

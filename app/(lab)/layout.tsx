@@ -27,13 +27,20 @@ export default async function LabLayout({ children }: { children: ReactNode }) {
   const items = navItems.filter((i) => can(user.role, i.action));
   return (
     <Providers>
-      <a href="#main" className="sr-only focus:not-sr-only focus:fixed focus:left-4 focus:top-4 focus:z-50 focus:rounded focus:bg-white focus:px-3 focus:py-2">
+      <a
+        href="#main"
+        className="sr-only focus:not-sr-only focus:fixed focus:left-4 focus:top-4 focus:z-50 focus:rounded focus:bg-white focus:px-3 focus:py-2"
+      >
         Skip to content
       </a>
       <div className="grid min-h-screen md:grid-cols-[15.5rem_minmax(0,1fr)]">
         <div className="bg-lacquer">
           <div className="md:sticky md:top-0 md:h-screen">
-            <Sidebar items={items} user={{ name: user.name, email: user.email, roleLabel: roleLabels[user.role] }} labName={env().LAB_NAME} />
+            <Sidebar
+              items={items}
+              user={{ name: user.name, email: user.email, roleLabel: roleLabels[user.role] }}
+              labName={env().LAB_NAME}
+            />
           </div>
         </div>
         <main id="main" className="mx-auto w-full max-w-[90rem] px-6 py-8 lg:px-10">

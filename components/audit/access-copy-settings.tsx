@@ -25,8 +25,9 @@ export function AccessCopySettings({ canEdit }: { canEdit: boolean }) {
   if (!canEdit) {
     return (
       <p className="text-sm" data-testid="access-copy-settings">
-        Access copies are written at <strong>{rateWords(current.accessCopyRateHz)}</strong>, <strong>{current.accessCopyBitDepth}-bit</strong>, unless the engineer
-        chooses otherwise for a render. An admin sets these defaults.
+        Access copies are written at <strong>{rateWords(current.accessCopyRateHz)}</strong>,{" "}
+        <strong>{current.accessCopyBitDepth}-bit</strong>, unless the engineer chooses otherwise for a render.
+        An admin sets these defaults.
       </p>
     );
   }
@@ -34,7 +35,10 @@ export function AccessCopySettings({ canEdit }: { canEdit: boolean }) {
   const b = bits ?? current.accessCopyBitDepth;
   const save = async () => {
     try {
-      await fetchJson("/api/settings", { method: "PATCH", body: JSON.stringify({ accessCopyRateHz: r, accessCopyBitDepth: b }) });
+      await fetchJson("/api/settings", {
+        method: "PATCH",
+        body: JSON.stringify({ accessCopyRateHz: r, accessCopyBitDepth: b }),
+      });
       await queryClient.invalidateQueries({ queryKey: ["settings"] });
       setState({ ok: true, text: `Access copies now default to ${rateWords(r)}, ${b}-bit.` });
     } catch (err) {
@@ -51,7 +55,12 @@ export function AccessCopySettings({ canEdit }: { canEdit: boolean }) {
       data-testid="access-copy-settings"
     >
       <div className="grid gap-3 sm:grid-cols-2">
-        <SelectField id={`${uid}-rate`} label="Access copy sample rate" value={String(r)} onChange={(e) => setRate(e.target.value === "transfer" ? "transfer" : Number(e.target.value))}>
+        <SelectField
+          id={`${uid}-rate`}
+          label="Access copy sample rate"
+          value={String(r)}
+          onChange={(e) => setRate(e.target.value === "transfer" ? "transfer" : Number(e.target.value))}
+        >
           <option value="transfer">As the transfer</option>
           {accessCopyRates.map((x) => (
             <option key={x} value={x}>
@@ -59,12 +68,20 @@ export function AccessCopySettings({ canEdit }: { canEdit: boolean }) {
             </option>
           ))}
         </SelectField>
-        <SelectField id={`${uid}-bits`} label="Word length" value={String(b)} onChange={(e) => setBits(Number(e.target.value) as 16 | 24)}>
+        <SelectField
+          id={`${uid}-bits`}
+          label="Word length"
+          value={String(b)}
+          onChange={(e) => setBits(Number(e.target.value) as 16 | 24)}
+        >
           <option value="24">24-bit</option>
           <option value="16">16-bit</option>
         </SelectField>
       </div>
-      <p className="text-xs text-ink-faint">Another rate than the transfer&apos;s is reached by resampling after the equalization (libsamplerate, best quality); the flat transfer is never changed.</p>
+      <p className="text-xs text-ink-faint">
+        Another rate than the transfer&apos;s is reached by resampling after the equalization (libsamplerate,
+        best quality); the flat transfer is never changed.
+      </p>
       <Button type="submit" size="sm">
         Save the defaults
       </Button>

@@ -21,12 +21,28 @@ import type { DiscPick } from "./types";
 
 const UUID = /^[0-9a-f-]{36}$/i;
 
-export function AuditView({ canEditSettings, canRunFixity, canListPeople }: { canEditSettings: boolean; canRunFixity: boolean; canListPeople: boolean }) {
+export function AuditView({
+  canEditSettings,
+  canRunFixity,
+  canListPeople,
+}: {
+  canEditSettings: boolean;
+  canRunFixity: boolean;
+  canListPeople: boolean;
+}) {
   const [discParam, setDiscParam] = useUrlState("disc");
   const discId = UUID.test(discParam) ? discParam : "";
-  const disc = useQuery({ queryKey: ["disc", discId], enabled: !!discId, queryFn: () => fetchJson<{ disc: DiscJson }>(`/api/discs/${discId}`) });
+  const disc = useQuery({
+    queryKey: ["disc", discId],
+    enabled: !!discId,
+    queryFn: () => fetchJson<{ disc: DiscJson }>(`/api/discs/${discId}`),
+  });
   const d = disc.data?.disc;
-  const pick: DiscPick | null = d ? { id: d.id, shelfMark: d.shelfMark, labelName: d.labelName, catalogueNumber: d.catalogueNumber } : discId ? { id: discId, shelfMark: "…" } : null;
+  const pick: DiscPick | null = d
+    ? { id: d.id, shelfMark: d.shelfMark, labelName: d.labelName, catalogueNumber: d.catalogueNumber }
+    : discId
+      ? { id: discId, shelfMark: "…" }
+      : null;
 
   return (
     <div className="space-y-6">
@@ -60,13 +76,27 @@ export function AuditView({ canEditSettings, canRunFixity, canListPeople }: { ca
       ) : null}
 
       {d ? (
-        <Panel title={`Exports for ${d.shelfMark}`} actions={<Link href={`/catalogue/${d.id}`} className="text-sm text-shellac-deep underline underline-offset-2">Open the disc</Link>}>
+        <Panel
+          title={`Exports for ${d.shelfMark}`}
+          actions={
+            <Link
+              href={`/catalogue/${d.id}`}
+              className="text-sm text-shellac-deep underline underline-offset-2"
+            >
+              Open the disc
+            </Link>
+          }
+        >
           <ExportLinks disc={d} />
         </Panel>
       ) : null}
 
       <Panel title={d ? `Provenance of ${d.shelfMark}` : "Provenance log"}>
-        <ProvenanceLog disc={pick} onPickDisc={(p) => setDiscParam(p?.id ?? "")} canListPeople={canListPeople} />
+        <ProvenanceLog
+          disc={pick}
+          onPickDisc={(p) => setDiscParam(p?.id ?? "")}
+          canListPeople={canListPeople}
+        />
       </Panel>
     </div>
   );

@@ -19,14 +19,22 @@ const shortKey = (key: string) => key.split("/").pop() ?? key;
 function CheckpointLine({ c }: { c: CheckpointRef }) {
   return (
     <>
-      the checkpoint of <time dateTime={c.takenAt}>{when(c.takenAt)}</time> (entry {c.headSeq}, {c.events.toLocaleString("en-GB")} entries; <span className="font-mono text-xs break-all">{shortKey(c.key)}</span>)
+      the checkpoint of <time dateTime={c.takenAt}>{when(c.takenAt)}</time> (entry {c.headSeq},{" "}
+      {c.events.toLocaleString("en-GB")} entries;{" "}
+      <span className="font-mono text-xs break-all">{shortKey(c.key)}</span>)
     </>
   );
 }
 
 export function ChainCheck() {
   const queryClient = useQueryClient();
-  const last = useQuery({ queryKey: ["chain-last"], queryFn: () => fetchJson<{ last: LastChainCheck | null; lastCheckpoint: LastCheckpoint | null }>("/api/provenance/verify?last=1") });
+  const last = useQuery({
+    queryKey: ["chain-last"],
+    queryFn: () =>
+      fetchJson<{ last: LastChainCheck | null; lastCheckpoint: LastCheckpoint | null }>(
+        "/api/provenance/verify?last=1",
+      ),
+  });
   const [running, setRunning] = useState(false);
   const [anchoring, setAnchoring] = useState<"idle" | "sending" | "queued">("idle");
   const [report, setReport] = useState<ChainReport | null>(null);
@@ -63,7 +71,10 @@ export function ChainCheck() {
   const cp = last.data?.lastCheckpoint;
   return (
     <div className="space-y-4" data-testid="chain-check">
-      <div className="rounded-lg border border-paper-edge bg-white px-4 py-3 text-sm" data-testid="chain-last">
+      <div
+        className="rounded-lg border border-paper-edge bg-white px-4 py-3 text-sm"
+        data-testid="chain-last"
+      >
         <p className="text-xs font-semibold uppercase tracking-wide text-ink-faint">Last verification</p>
         {last.isLoading ? (
           <p className="text-ink-faint">Loading…</p>
@@ -75,17 +86,22 @@ export function ChainCheck() {
           <p className="mt-1">
             <time dateTime={l.checkedAt}>{when(l.checkedAt)}</time> by {l.runBy ?? "the system"} —{" "}
             {l.ok ? (
-              <span className="font-semibold text-moss">all {l.events.toLocaleString("en-GB")} entries linked and intact</span>
+              <span className="font-semibold text-moss">
+                all {l.events.toLocaleString("en-GB")} entries linked and intact
+              </span>
             ) : (
               <span className="font-semibold text-alarm">
                 {l.brokenSeq !== null ? `broken at entry ${l.brokenSeq}` : "did not verify"}
                 {l.brokenReason ? `: ${l.brokenReason}` : ""}
-                {l.contradictedCheckpoint ? ` (contradicts checkpoint ${shortKey(l.contradictedCheckpoint)})` : ""}
+                {l.contradictedCheckpoint
+                  ? ` (contradicts checkpoint ${shortKey(l.contradictedCheckpoint)})`
+                  : ""}
               </span>
             )}
             {l.checkpointSource ? (
               <span className="block text-xs text-ink-faint">
-                Checked against {l.checkpoints} checkpoint{l.checkpoints === 1 ? "" : "s"} read from the {l.checkpointSource}.
+                Checked against {l.checkpoints} checkpoint{l.checkpoints === 1 ? "" : "s"} read from the{" "}
+                {l.checkpointSource}.
               </span>
             ) : null}
           </p>
@@ -93,7 +109,9 @@ export function ChainCheck() {
         <p className="mt-2 text-xs text-ink-soft" data-testid="chain-last-checkpoint">
           {cp ? (
             <>
-              Newest checkpoint: <time dateTime={cp.takenAt}>{when(cp.takenAt)}</time>, entry {cp.headSeq} of {cp.events.toLocaleString("en-GB")}, head <span className="font-mono">{cp.headHash.slice(0, 16)}…</span>
+              Newest checkpoint: <time dateTime={cp.takenAt}>{when(cp.takenAt)}</time>, entry {cp.headSeq} of{" "}
+              {cp.events.toLocaleString("en-GB")}, head{" "}
+              <span className="font-mono">{cp.headHash.slice(0, 16)}…</span>
               {cp.requestedBy ? `, asked for by ${cp.requestedBy}` : " (daily)"}.
             </>
           ) : (
@@ -106,16 +124,25 @@ export function ChainCheck() {
         <Button type="button" onClick={() => void verify()} disabled={running} data-testid="chain-verify">
           {running ? "Verifying…" : "Verify the whole log now"}
         </Button>
-        <Button type="button" variant="secondary" onClick={() => void anchor()} disabled={anchoring === "sending"} data-testid="chain-checkpoint">
+        <Button
+          type="button"
+          variant="secondary"
+          onClick={() => void anchor()}
+          disabled={anchoring === "sending"}
+          data-testid="chain-checkpoint"
+        >
           {anchoring === "sending" ? "Asking…" : "Write a checkpoint now"}
         </Button>
         <p className="text-xs text-ink-faint">
-          Verifying recomputes the SHA-256 of every entry in order and checks the log against every checkpoint in the bucket; the run is recorded with your name. A checkpoint (written daily, or now) stores the log&apos;s head in the bucket, where it is never overwritten, and is mailed to the curators.
+          Verifying recomputes the SHA-256 of every entry in order and checks the log against every checkpoint
+          in the bucket; the run is recorded with your name. A checkpoint (written daily, or now) stores the
+          log&apos;s head in the bucket, where it is never overwritten, and is mailed to the curators.
         </p>
       </div>
       {anchoring === "queued" ? (
         <p className="text-xs text-moss" role="status" data-testid="chain-checkpoint-queued">
-          Asked: the worker verifies the log, writes the checkpoint and mails it to the curators within a minute.
+          Asked: the worker verifies the log, writes the checkpoint and mails it to the curators within a
+          minute.
         </p>
       ) : null}
 
@@ -124,7 +151,8 @@ export function ChainCheck() {
           report.ok ? (
             <Notice tone="success" title="The chain holds" testId="chain-result">
               <p>
-                All {report.events.toLocaleString("en-GB")} entries link to the one before and their content matches their hash (checked {when(report.checkedAt)}).
+                All {report.events.toLocaleString("en-GB")} entries link to the one before and their content
+                matches their hash (checked {when(report.checkedAt)}).
               </p>
               <p data-testid="chain-checkpoints">
                 {report.checkpoints.total === 0
@@ -133,19 +161,32 @@ export function ChainCheck() {
               </p>
             </Notice>
           ) : report.contradicts ? (
-            <Notice tone="error" title={`The log contradicts a checkpoint at entry ${report.contradicts.headSeq}`} testId="chain-result">
+            <Notice
+              tone="error"
+              title={`The log contradicts a checkpoint at entry ${report.contradicts.headSeq}`}
+              testId="chain-result"
+            >
               <p>
-                It contradicts <CheckpointLine c={report.contradicts} />, read from the bucket: {report.contradicts.reason}.
+                It contradicts <CheckpointLine c={report.contradicts} />, read from the bucket:{" "}
+                {report.contradicts.reason}.
               </p>
               <p className="mt-1">
-                The log was cut short or rewritten after that checkpoint was taken. Follow the institution&apos;s procedure: restore the log from a verified backup, compare it with the checkpoint mails the curators received, and find out what changed it.
+                The log was cut short or rewritten after that checkpoint was taken. Follow the
+                institution&apos;s procedure: restore the log from a verified backup, compare it with the
+                checkpoint mails the curators received, and find out what changed it.
               </p>
             </Notice>
           ) : report.brokenAt ? (
-            <Notice tone="error" title={`The chain is broken at entry ${report.brokenAt.seq}`} testId="chain-result">
+            <Notice
+              tone="error"
+              title={`The chain is broken at entry ${report.brokenAt.seq}`}
+              testId="chain-result"
+            >
               <p>{report.brokenAt.reason}</p>
               <p className="mt-1">
-                Entries before {report.brokenAt.seq} verify; from this one on the record cannot be trusted as it stands. Follow the institution&apos;s procedure: restore the log from a verified backup and find out what changed it.
+                Entries before {report.brokenAt.seq} verify; from this one on the record cannot be trusted as
+                it stands. Follow the institution&apos;s procedure: restore the log from a verified backup and
+                find out what changed it.
               </p>
             </Notice>
           ) : (

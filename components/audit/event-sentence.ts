@@ -9,7 +9,15 @@
 import { formatBytes } from "@/components/bench/progress-bar";
 import { discFieldLabels, fieldText, sideChanges } from "@/components/catalogue/fields";
 import { statusLabel } from "@/components/catalogue/format";
-import { CORNER_NAMES, CORNER_WORDS, type CornerInput, type CurveSpec, curveChoiceName, formatCorner, formatNumber } from "@/lib/curves";
+import {
+  CORNER_NAMES,
+  CORNER_WORDS,
+  type CornerInput,
+  type CurveSpec,
+  curveChoiceName,
+  formatCorner,
+  formatNumber,
+} from "@/lib/curves";
 import { channelModeLabels, evidenceLabels } from "@/lib/validation/transfers";
 
 type P = Record<string, any>;
@@ -49,14 +57,24 @@ export interface EventContext {
 }
 
 /** Reads the events in view once, so each sentence can name what the others recorded. */
-export function eventContext(events: EventLike[], accessionName?: (id: string) => string | undefined): EventContext {
+export function eventContext(
+  events: EventLike[],
+  accessionName?: (id: string) => string | undefined,
+): EventContext {
   const ctx: EventContext = { choices: new Map(), transfers: new Map(), renders: new Map(), accessionName };
   for (const e of events) {
     const p = (e.payload ?? {}) as P;
-    if ((e.kind === "side.curve_chosen" || e.kind === "side.curve_changed") && p.choiceId) ctx.choices.set(String(p.choiceId), choiceNameOf(p));
-    if (e.kind === "side.transfer_accepted" && p.transferId) ctx.transfers.set(String(p.transferId), { fileName: fileNameOf(p), sha256: String(p.sha256 ?? "") });
+    if ((e.kind === "side.curve_chosen" || e.kind === "side.curve_changed") && p.choiceId)
+      ctx.choices.set(String(p.choiceId), choiceNameOf(p));
+    if (e.kind === "side.transfer_accepted" && p.transferId)
+      ctx.transfers.set(String(p.transferId), { fileName: fileNameOf(p), sha256: String(p.sha256 ?? "") });
     if (e.kind === "side.rendered" && p.renderId)
-      ctx.renders.set(String(p.renderId), { sha256: p.accessCopy?.sha256, sampleRateHz: num(p.accessCopy?.sampleRateHz), bitDepth: num(p.accessCopy?.bitDepth), choiceId: p.curveChoiceId ?? p.curveChoice?.id });
+      ctx.renders.set(String(p.renderId), {
+        sha256: p.accessCopy?.sha256,
+        sampleRateHz: num(p.accessCopy?.sampleRateHz),
+        bitDepth: num(p.accessCopy?.bitDepth),
+        choiceId: p.curveChoiceId ?? p.curveChoice?.id,
+      });
   }
   return ctx;
 }
@@ -82,13 +100,20 @@ export function curveText(spec: Partial<CurveSpec> | null | undefined): string {
     const v = spec[n];
     parts.push(v ? `${CORNER_WORDS[n]} ${cornerText(v)}` : `no ${CORNER_WORDS[n]}`);
   }
-  if (spec.reference) parts.push(`${formatNumber(spec.reference.db)} dB at ${formatNumber(spec.reference.hz)} Hz`);
+  if (spec.reference)
+    parts.push(`${formatNumber(spec.reference.db)} dB at ${formatNumber(spec.reference.hz)} Hz`);
   return parts.length ? parts.join("; ") : "no corners";
 }
 
 /** The name of the curve a choice event recorded: preset version, changes for the side, speed ratio. */
 function choiceNameOf(p: P): string {
-  return curveChoiceName({ presetName: p.preset?.name, presetVersion: p.preset?.version, overrides: p.overrides, cutSpeedRpm: num(p.cutSpeedRpm), transferSpeedRpm: num(p.transferSpeedRpm) });
+  return curveChoiceName({
+    presetName: p.preset?.name,
+    presetVersion: p.preset?.version,
+    overrides: p.overrides,
+    cutSpeedRpm: num(p.cutSpeedRpm),
+    transferSpeedRpm: num(p.transferSpeedRpm),
+  });
 }
 
 /** The name the engineer's file had: the last part of the object key (the server keeps it there). */
@@ -103,7 +128,12 @@ function shaShort(sha: unknown): string {
   return typeof sha === "string" && sha ? `SHA-256 ${sha.slice(0, 8)}…` : "";
 }
 
-const idOf = (v: unknown): string | undefined => (typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String((v as { id: unknown }).id) : undefined);
+const idOf = (v: unknown): string | undefined =>
+  typeof v === "string"
+    ? v
+    : v && typeof v === "object" && "id" in v
+      ? String((v as { id: unknown }).id)
+      : undefined;
 
 const objectWords = (kind: unknown) => (kind === "render" ? "access copy" : "flat transfer");
 
@@ -127,14 +157,17 @@ function rateText(rateHz: unknown, bitDepth: unknown): string {
 /** "1.4 GiB (1,503,238,553 bytes)": the exact count beside the readable size. */
 function bytesText(n: unknown): string {
   const v = Number(n);
-  return Number.isFinite(v) && v >= 1024 ? `${formatBytes(v)} (${v.toLocaleString("en-GB")} bytes)` : formatBytes(v);
+  return Number.isFinite(v) && v >= 1024
+    ? `${formatBytes(v)} (${v.toLocaleString("en-GB")} bytes)`
+    : formatBytes(v);
 }
 
 /** A payload value in a detail line, for kinds this page has no words for yet. */
 function plainValue(v: unknown): string | null {
   if (v === null || v === undefined || v === "") return null;
   if (typeof v === "string" || typeof v === "number" || typeof v === "boolean") return String(v);
-  if (typeof v === "object" && v && "status" in v && Object.keys(v).length === 1) return statusWords((v as { status: unknown }).status);
+  if (typeof v === "object" && v && "status" in v && Object.keys(v).length === 1)
+    return statusWords((v as { status: unknown }).status);
   return null;
 }
 
@@ -145,12 +178,26 @@ function workDetails(p: P, ctx: EventContext, d: EventDetail[]): void {
   const renderId = p.renderId ?? idOf(p.render);
   const t = transferId ? ctx.transfers.get(String(transferId)) : undefined;
   const tSha = p.transfer?.sha256 ?? p.transferSha256 ?? t?.sha256;
-  if (transferId || tSha) d.push({ label: "Flat transfer", value: [t?.fileName, tSha ? `SHA-256 ${tSha}` : null].filter(Boolean).join(" · ") || String(transferId), mono: !t?.fileName });
+  if (transferId || tSha)
+    d.push({
+      label: "Flat transfer",
+      value: [t?.fileName, tSha ? `SHA-256 ${tSha}` : null].filter(Boolean).join(" · ") || String(transferId),
+      mono: !t?.fileName,
+    });
   const curve = choiceId ? ctx.choices.get(String(choiceId)) : undefined;
-  if (choiceId || p.curveChoice?.name) d.push({ label: "Curve", value: p.curveChoice?.name ?? curve ?? "a curve choice recorded earlier" });
+  if (choiceId || p.curveChoice?.name)
+    d.push({ label: "Curve", value: p.curveChoice?.name ?? curve ?? "a curve choice recorded earlier" });
   const r = renderId ? ctx.renders.get(String(renderId)) : undefined;
   const rSha = p.render?.sha256 ?? p.renderSha256 ?? r?.sha256;
-  if (renderId || rSha) d.push({ label: "Access copy", value: [rSha ? `SHA-256 ${rSha}` : null, rateText(r?.sampleRateHz, r?.bitDepth) || null].filter(Boolean).join(" · ") || String(renderId), mono: true });
+  if (renderId || rSha)
+    d.push({
+      label: "Access copy",
+      value:
+        [rSha ? `SHA-256 ${rSha}` : null, rateText(r?.sampleRateHz, r?.bitDepth) || null]
+          .filter(Boolean)
+          .join(" · ") || String(renderId),
+      mono: true,
+    });
 }
 
 export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): EventReading {
@@ -161,65 +208,145 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
   const d: EventDetail[] = [];
   switch (e.kind) {
     case "accession.received":
-      return { sentence: `${who} recorded accession ${p.after?.identifier ?? ""} as received${p.after?.source ? ` from ${p.after.source}` : ""}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${who} recorded accession ${p.after?.identifier ?? ""} as received${p.after?.source ? ` from ${p.after.source}` : ""}.`,
+        details: [],
+        tone: "plain",
+      };
     case "import.committed":
       if (p.fileName) d.push({ label: "File", value: String(p.fileName) });
       if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
-      return { sentence: `${who} committed a spreadsheet import${p.rows ? ` of ${p.rows} row${p.rows === 1 ? "" : "s"}` : ""}${Array.isArray(p.discs) ? `, ${p.discs.length} disc${p.discs.length === 1 ? "" : "s"}` : typeof p.discs === "number" ? `, ${p.discs} disc${p.discs === 1 ? "" : "s"}` : ""}.`, details: d, tone: "plain" };
+      return {
+        sentence: `${who} committed a spreadsheet import${p.rows ? ` of ${p.rows} row${p.rows === 1 ? "" : "s"}` : ""}${Array.isArray(p.discs) ? `, ${p.discs.length} disc${p.discs.length === 1 ? "" : "s"}` : typeof p.discs === "number" ? `, ${p.discs} disc${p.discs === 1 ? "" : "s"}` : ""}.`,
+        details: d,
+        tone: "plain",
+      };
     case "disc.created": {
       const n = Array.isArray(p.after?.sides) ? p.after.sides.length : 0;
       const how = Object.keys(p).some((k) => /import/i.test(k)) ? " from a spreadsheet import" : "";
-      return { sentence: `${who} catalogued ${e.shelfMark ?? "the disc"}${how}${n ? ` with ${n} side${n === 1 ? "" : "s"}` : ""}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${who} catalogued ${e.shelfMark ?? "the disc"}${how}${n ? ` with ${n} side${n === 1 ? "" : "s"}` : ""}.`,
+        details: [],
+        tone: "plain",
+      };
     }
     case "disc.edited": {
       const changed: string[] = Array.isArray(p.changed) ? p.changed : [];
       for (const f of changed) {
-        if (f === "sides") for (const s of sideChanges(p.before?.sides ?? [], p.after?.sides ?? [])) d.push({ label: "Sides", value: s });
-        else d.push({ label: discFieldLabels[f] ?? f, value: `${fieldText(f, p.before?.[f], ctx.accessionName)} → ${fieldText(f, p.after?.[f], ctx.accessionName)}` });
+        if (f === "sides")
+          for (const s of sideChanges(p.before?.sides ?? [], p.after?.sides ?? []))
+            d.push({ label: "Sides", value: s });
+        else
+          d.push({
+            label: discFieldLabels[f] ?? f,
+            value: `${fieldText(f, p.before?.[f], ctx.accessionName)} → ${fieldText(f, p.after?.[f], ctx.accessionName)}`,
+          });
       }
-      if (!changed.length) return { sentence: `${who} saved ${e.shelfMark ?? "the disc"} without changes.`, details: [], tone: "plain" };
-      return { sentence: `${who} edited ${e.shelfMark ?? "the disc"}: ${changed.map((f) => (discFieldLabels[f] ?? f).toLowerCase()).join(", ")}.`, details: d, tone: "plain" };
+      if (!changed.length)
+        return {
+          sentence: `${who} saved ${e.shelfMark ?? "the disc"} without changes.`,
+          details: [],
+          tone: "plain",
+        };
+      return {
+        sentence: `${who} edited ${e.shelfMark ?? "the disc"}: ${changed.map((f) => (discFieldLabels[f] ?? f).toLowerCase()).join(", ")}.`,
+        details: d,
+        tone: "plain",
+      };
     }
     case "side.assigned": {
-      const was = p.before?.status && p.before.status !== "catalogued" ? ` (it was ${statusWords(p.before.status)})` : "";
-      return { sentence: `${who} assigned ${side}${on} to ${p.after?.engineerName ?? "an engineer"}${was}.`, details: [], tone: "plain" };
+      const was =
+        p.before?.status && p.before.status !== "catalogued"
+          ? ` (it was ${statusWords(p.before.status)})`
+          : "";
+      return {
+        sentence: `${who} assigned ${side}${on} to ${p.after?.engineerName ?? "an engineer"}${was}.`,
+        details: [],
+        tone: "plain",
+      };
     }
     case "side.status_changed": {
       const why = p.note ?? p.reason;
-      return { sentence: `${who === "The system" ? "Rillbook" : who} moved ${side}${on} from ${statusWords(p.before?.status)} to ${statusWords(p.after?.status)}${why ? `: ${String(why).replace(/\.$/, "")}` : ""}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${who === "The system" ? "Rillbook" : who} moved ${side}${on} from ${statusWords(p.before?.status)} to ${statusWords(p.after?.status)}${why ? `: ${String(why).replace(/\.$/, "")}` : ""}.`,
+        details: [],
+        tone: "plain",
+      };
     }
     case "side.curve_chosen":
     case "side.curve_changed": {
       const preset = p.preset as { name?: string; version?: number; values?: CurveSpec } | null | undefined;
-      if (preset) d.push({ label: "Preset values then", value: `${preset.name ?? "preset"} v${preset.version ?? "?"}: ${curveText(preset.values)}` });
+      if (preset)
+        d.push({
+          label: "Preset values then",
+          value: `${preset.name ?? "preset"} v${preset.version ?? "?"}: ${curveText(preset.values)}`,
+        });
       const overrides = (p.overrides ?? {}) as Partial<CurveSpec>;
-      if (Object.keys(overrides).length) d.push({ label: preset ? "Changed for this side" : "Own values", value: curveText(overrides) });
+      if (Object.keys(overrides).length)
+        d.push({ label: preset ? "Changed for this side" : "Own values", value: curveText(overrides) });
       const cut = Number(p.cutSpeedRpm);
       const tr = Number(p.transferSpeedRpm);
-      if (Number.isFinite(cut)) d.push({ label: "Speeds", value: cut === tr ? `${formatNumber(cut)} rpm` : `cut at ${formatNumber(cut)} rpm, transferred at ${formatNumber(tr)} rpm (ratio ${formatNumber(tr / cut)})` });
+      if (Number.isFinite(cut))
+        d.push({
+          label: "Speeds",
+          value:
+            cut === tr
+              ? `${formatNumber(cut)} rpm`
+              : `cut at ${formatNumber(cut)} rpm, transferred at ${formatNumber(tr)} rpm (ratio ${formatNumber(tr / cut)})`,
+        });
       if (p.rationale) d.push({ label: "Rationale", value: String(p.rationale) });
-      if (p.evidenceKind) d.push({ label: "Rests on", value: `${evidenceLabels[p.evidenceKind as keyof typeof evidenceLabels] ?? p.evidenceKind}${p.evidence ? ` — ${p.evidence}` : ""}` });
-      return { sentence: `${who} ${e.kind === "side.curve_changed" ? "changed the curve of" : "chose the curve for"} ${side}${on}: ${choiceNameOf(p)}.`, details: d, tone: "plain" };
+      if (p.evidenceKind)
+        d.push({
+          label: "Rests on",
+          value: `${evidenceLabels[p.evidenceKind as keyof typeof evidenceLabels] ?? p.evidenceKind}${p.evidence ? ` — ${p.evidence}` : ""}`,
+        });
+      return {
+        sentence: `${who} ${e.kind === "side.curve_changed" ? "changed the curve of" : "chose the curve for"} ${side}${on}: ${choiceNameOf(p)}.`,
+        details: d,
+        tone: "plain",
+      };
     }
     case "side.transfer_accepted": {
       const t = (p.technical ?? {}) as P;
       if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
       if (p.bytes !== undefined) d.push({ label: "Size", value: bytesText(p.bytes) });
-      if (t.sampleRateHz) d.push({ label: "Technical", value: `${t.container ?? ""} ${String(t.encoding ?? "").toUpperCase()} ${t.bitsPerSample ?? "?"}-bit · ${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${t.channels === 2 ? "stereo" : t.channels === 1 ? "mono" : `${t.channels} channels`}${t.durationSeconds ? ` · ${Number(t.durationSeconds).toFixed(1)} s` : ""}`.trim() });
+      if (t.sampleRateHz)
+        d.push({
+          label: "Technical",
+          value:
+            `${t.container ?? ""} ${String(t.encoding ?? "").toUpperCase()} ${t.bitsPerSample ?? "?"}-bit · ${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${t.channels === 2 ? "stereo" : t.channels === 1 ? "mono" : `${t.channels} channels`}${t.durationSeconds ? ` · ${Number(t.durationSeconds).toFixed(1)} s` : ""}`.trim(),
+        });
       if (p.objectKey) d.push({ label: "Stored as", value: String(p.objectKey), mono: true });
       const sha = shaShort(p.sha256);
-      return { sentence: `${who} uploaded the flat transfer ${fileNameOf(p)} of ${side}${on}${sha ? ` (${sha})` : ""}; its size, checksum and header were checked and it was accepted.`, details: d, tone: "plain" };
+      return {
+        sentence: `${who} uploaded the flat transfer ${fileNameOf(p)} of ${side}${on}${sha ? ` (${sha})` : ""}; its size, checksum and header were checked and it was accepted.`,
+        details: d,
+        tone: "plain",
+      };
     }
     case "side.render_requested": {
-      if (p.channelMode) d.push({ label: "Channels", value: channelModeLabels[p.channelMode as keyof typeof channelModeLabels] ?? String(p.channelMode) });
+      if (p.channelMode)
+        d.push({
+          label: "Channels",
+          value: channelModeLabels[p.channelMode as keyof typeof channelModeLabels] ?? String(p.channelMode),
+        });
       workDetails({ transferId: p.transferId, curveChoiceId: p.curveChoiceId }, ctx, d);
       const curve = p.curveChoiceId ? ctx.choices.get(String(p.curveChoiceId)) : undefined;
       const rate = rateText(p.sampleRateHz, p.bitDepth);
-      return { sentence: `${who} asked for an access copy of ${side}${on}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}.`, details: d, tone: "plain" };
+      return {
+        sentence: `${who} asked for an access copy of ${side}${on}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}.`,
+        details: d,
+        tone: "plain",
+      };
     }
     case "side.render_cancelled": {
-      if (p.progress !== undefined) d.push({ label: "Progress then", value: `${Math.round(Number(p.progress) * 100)} %` });
-      return { sentence: `${who} cancelled the render of ${side}${on}${p.stalled ? ": its worker had stopped" : ""}.`, details: d, tone: "plain" };
+      if (p.progress !== undefined)
+        d.push({ label: "Progress then", value: `${Math.round(Number(p.progress) * 100)} %` });
+      return {
+        sentence: `${who} cancelled the render of ${side}${on}${p.stalled ? ": its worker had stopped" : ""}.`,
+        details: d,
+        tone: "plain",
+      };
     }
     case "side.rendered": {
       const f = (p.filter ?? {}) as P;
@@ -231,9 +358,19 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       if (p.accessCopy?.sha256) d.push({ label: "SHA-256", value: String(p.accessCopy.sha256), mono: true });
       if (p.accessCopy?.bytes !== undefined) d.push({ label: "Size", value: bytesText(p.accessCopy.bytes) });
       if (!curve && f.spec) d.push({ label: "Curve", value: curveText(f.spec) });
-      if (p.transfer?.sha256) d.push({ label: "From flat transfer", value: `${source ? `${source} · ` : ""}SHA-256 ${p.transfer.sha256}`, mono: !source });
-      if (f.kind) d.push({ label: "Filter", value: `${f.kind === "fir" ? "FIR" : f.kind}${f.taps ? `, ${f.taps} taps` : ""}${f.delaySamples !== undefined ? `, delay ${f.delaySamples} samples` : ""}${f.software ? ` · ${f.software}` : ""}` });
-      if (p.trimDb !== undefined && p.trimDb !== null) d.push({ label: "Trim", value: `${Number(p.trimDb).toFixed(2)} dB` });
+      if (p.transfer?.sha256)
+        d.push({
+          label: "From flat transfer",
+          value: `${source ? `${source} · ` : ""}SHA-256 ${p.transfer.sha256}`,
+          mono: !source,
+        });
+      if (f.kind)
+        d.push({
+          label: "Filter",
+          value: `${f.kind === "fir" ? "FIR" : f.kind}${f.taps ? `, ${f.taps} taps` : ""}${f.delaySamples !== undefined ? `, delay ${f.delaySamples} samples` : ""}${f.software ? ` · ${f.software}` : ""}`,
+        });
+      if (p.trimDb !== undefined && p.trimDb !== null)
+        d.push({ label: "Trim", value: `${Number(p.trimDb).toFixed(2)} dB` });
       if (p.codingHistory) d.push({ label: "Coding history", value: String(p.codingHistory), mono: true });
       const sha = shaShort(p.accessCopy?.sha256);
       return {
@@ -247,54 +384,126 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       const curve = r?.choiceId ? ctx.choices.get(r.choiceId) : undefined;
       if (r?.sha256) d.push({ label: "Access copy", value: `SHA-256 ${r.sha256}`, mono: true });
       if (curve) d.push({ label: "Curve", value: curve });
-      d.push({ label: "Kept", value: "The file and its checksum stay in the history; it is no longer the side's access copy." });
+      d.push({
+        label: "Kept",
+        value: "The file and its checksum stay in the history; it is no longer the side's access copy.",
+      });
       const sha = shaShort(r?.sha256);
-      return { sentence: `The access copy of ${side}${on}${sha ? ` (${sha})` : ""} was superseded${p.reason ? `: ${String(p.reason).replace(/\.$/, "")}` : ""}.`, details: d, tone: "plain" };
+      return {
+        sentence: `The access copy of ${side}${on}${sha ? ` (${sha})` : ""} was superseded${p.reason ? `: ${String(p.reason).replace(/\.$/, "")}` : ""}.`,
+        details: d,
+        tone: "plain",
+      };
     }
     case "side.fixity_checked": {
       const ok = p.outcome === "pass";
       d.push({ label: "Expected SHA-256", value: String(p.expectedSha256 ?? "—"), mono: true });
-      if (!ok) d.push({ label: "Read back", value: p.actualSha256 ? String(p.actualSha256) : "nothing", mono: true });
+      if (!ok)
+        d.push({
+          label: "Read back",
+          value: p.actualSha256 ? String(p.actualSha256) : "nothing",
+          mono: true,
+        });
       if (p.object?.key) d.push({ label: "Object", value: String(p.object.key), mono: true });
       if (p.detail) d.push({ label: "Detail", value: String(p.detail) });
-      const outcome = ok ? "passed" : p.outcome === "mismatch" ? "found a checksum MISMATCH" : p.outcome === "missing" ? "found the file MISSING" : "could not read the file";
-      const file = p.object?.kind === "render" ? "" : p.object?.key ? ` ${fileNameOf({ objectKey: p.object.key })}` : "";
+      const outcome = ok
+        ? "passed"
+        : p.outcome === "mismatch"
+          ? "found a checksum MISMATCH"
+          : p.outcome === "missing"
+            ? "found the file MISSING"
+            : "could not read the file";
+      const file =
+        p.object?.kind === "render" ? "" : p.object?.key ? ` ${fileNameOf({ objectKey: p.object.key })}` : "";
       const sha = shaShort(p.expectedSha256);
-      return { sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${side}${on}${sha ? ` (${sha})` : ""} ${outcome}.`, details: d, tone: ok ? "good" : "bad" };
+      return {
+        sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${side}${on}${sha ? ` (${sha})` : ""} ${outcome}.`,
+        details: d,
+        tone: ok ? "good" : "bad",
+      };
     }
     case "side.approved":
       workDetails(p, ctx, d);
       if (p.reason) d.push({ label: "Note", value: String(p.reason) });
-      return { sentence: `${who} approved ${side}${on}: its flat transfer, curve and access copy are accepted together.`, details: d, tone: "good" };
+      return {
+        sentence: `${who} approved ${side}${on}: its flat transfer, curve and access copy are accepted together.`,
+        details: d,
+        tone: "good",
+      };
     case "side.returned":
       workDetails(p, ctx, d);
       // The reason as written, in quotes; its own full stop ends the sentence.
       const reason = p.reason ? String(p.reason).trim() : "";
-      return { sentence: `${who} returned ${side}${on} to the engineer${reason ? `: “${reason}”${/[.!?]$/.test(reason) ? "" : "."}` : "."}`, details: d, tone: "bad" };
+      return {
+        sentence: `${who} returned ${side}${on} to the engineer${reason ? `: “${reason}”${/[.!?]$/.test(reason) ? "" : "."}` : "."}`,
+        details: d,
+        tone: "bad",
+      };
     case "lab.settings_changed": {
-      const names: Record<string, string> = { fixityCycleDays: "fixity cycle (days)", accessCopyRateHz: "access copy rate", accessCopyBitDepth: "access copy word length" };
-      const changes = Object.keys(p.after ?? {}).map((k) => `${names[k] ?? k} from ${String(p.before?.[k] ?? "?")} to ${String(p.after?.[k])}`);
-      return { sentence: `${who} changed the lab's settings: ${changes.join("; ") || "no change"}.`, details: [], tone: "plain" };
+      const names: Record<string, string> = {
+        fixityCycleDays: "fixity cycle (days)",
+        accessCopyRateHz: "access copy rate",
+        accessCopyBitDepth: "access copy word length",
+      };
+      const changes = Object.keys(p.after ?? {}).map(
+        (k) => `${names[k] ?? k} from ${String(p.before?.[k] ?? "?")} to ${String(p.after?.[k])}`,
+      );
+      return {
+        sentence: `${who} changed the lab's settings: ${changes.join("; ") || "no change"}.`,
+        details: [],
+        tone: "plain",
+      };
     }
     case "preset.created":
-      return { sentence: `${who} added the curve preset "${p.name ?? "?"}".`, details: [{ label: "Values", value: curveText(p.after) }, ...(p.changeNote ? [{ label: "Note", value: String(p.changeNote) }] : [])], tone: "plain" };
+      return {
+        sentence: `${who} added the curve preset "${p.name ?? "?"}".`,
+        details: [
+          { label: "Values", value: curveText(p.after) },
+          ...(p.changeNote ? [{ label: "Note", value: String(p.changeNote) }] : []),
+        ],
+        tone: "plain",
+      };
     case "preset.versioned":
       return {
         sentence: `${who} made version ${p.version ?? "?"} of the curve preset "${p.name ?? "?"}".`,
-        details: [{ label: "Before", value: curveText(p.before?.spec) }, { label: "After", value: curveText(p.after) }, ...(p.changeNote ? [{ label: "Why", value: String(p.changeNote) }] : [])],
+        details: [
+          { label: "Before", value: curveText(p.before?.spec) },
+          { label: "After", value: curveText(p.after) },
+          ...(p.changeNote ? [{ label: "Why", value: String(p.changeNote) }] : []),
+        ],
         tone: "plain",
       };
     case "person.invited":
-      return { sentence: `${who} invited ${p.email ?? "someone"}${p.role ? ` as ${p.role}` : ""}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${who} invited ${p.email ?? "someone"}${p.role ? ` as ${p.role}` : ""}.`,
+        details: [],
+        tone: "plain",
+      };
     case "person.invitation_accepted":
-      return { sentence: `${p.email ?? who} accepted an invitation${p.role ? ` as ${p.role}` : ""}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${p.email ?? who} accepted an invitation${p.role ? ` as ${p.role}` : ""}.`,
+        details: [],
+        tone: "plain",
+      };
     case "person.role_changed":
-      return { sentence: `${who} changed the role of ${p.email ?? "someone"} from ${p.from ?? "?"} to ${p.to ?? "?"}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${who} changed the role of ${p.email ?? "someone"} from ${p.from ?? "?"} to ${p.to ?? "?"}.`,
+        details: [],
+        tone: "plain",
+      };
     case "person.deactivated":
     case "person.reactivated":
-      return { sentence: `${who} ${e.kind === "person.deactivated" ? "deactivated" : "reactivated"} the account of ${p.email ?? "someone"}.`, details: [], tone: "plain" };
+      return {
+        sentence: `${who} ${e.kind === "person.deactivated" ? "deactivated" : "reactivated"} the account of ${p.email ?? "someone"}.`,
+        details: [],
+        tone: "plain",
+      };
     case "person.password_reset_requested":
-      return { sentence: `A password reset was asked for ${p.email ?? "an account"}.`, details: [], tone: "plain" };
+      return {
+        sentence: `A password reset was asked for ${p.email ?? "an account"}.`,
+        details: [],
+        tone: "plain",
+      };
     case "person.password_reset":
       return { sentence: `${p.email ?? who} set a new password.`, details: [], tone: "plain" };
     default: {
@@ -304,10 +513,27 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
         if (k === "side") continue;
         if ((k === "before" || k === "after") && v && typeof v === "object") continue;
         const text = plainValue(v);
-        if (text !== null && d.length < 8) d.push({ label: k.replace(/([A-Z])/g, " $1").replace(/_/g, " ").toLowerCase().replace(/^./, (c) => c.toUpperCase()), value: text, mono: /Id$|sha|key/i.test(k) });
+        if (text !== null && d.length < 8)
+          d.push({
+            label: k
+              .replace(/([A-Z])/g, " $1")
+              .replace(/_/g, " ")
+              .toLowerCase()
+              .replace(/^./, (c) => c.toUpperCase()),
+            value: text,
+            mono: /Id$|sha|key/i.test(k),
+          });
       }
-      if (p.before?.status || p.after?.status) d.unshift({ label: "Status", value: `${statusWords(p.before?.status)} → ${statusWords(p.after?.status)}` });
-      return { sentence: `${who} recorded: ${what}${p.side ? ` (${side}${on})` : on ? ` (${e.shelfMark})` : ""}.`, details: d, tone: "plain" };
+      if (p.before?.status || p.after?.status)
+        d.unshift({
+          label: "Status",
+          value: `${statusWords(p.before?.status)} → ${statusWords(p.after?.status)}`,
+        });
+      return {
+        sentence: `${who} recorded: ${what}${p.side ? ` (${side}${on})` : on ? ` (${e.shelfMark})` : ""}.`,
+        details: d,
+        tone: "plain",
+      };
     }
   }
 }

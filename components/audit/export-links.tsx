@@ -8,7 +8,8 @@ import { statusLabel } from "@/components/catalogue/format";
 import type { DiscJson } from "@/components/catalogue/types";
 import { cx } from "@/components/ui/cx";
 
-const link = "inline-flex h-9 items-center rounded-md border border-paper-edge bg-white px-3 text-sm font-medium hover:border-ink-faint";
+const link =
+  "inline-flex h-9 items-center rounded-md border border-paper-edge bg-white px-3 text-sm font-medium hover:border-ink-faint";
 
 export function ExportLinks({ disc }: { disc: DiscJson }) {
   const notApproved = disc.sides.filter((s) => s.status !== "approved");
@@ -27,11 +28,20 @@ export function ExportLinks({ disc }: { disc: DiscJson }) {
             PREMIS XML
           </a>
           {notApproved.length ? (
-            <span className={cx(link, "cursor-not-allowed border-dashed text-ink-faint hover:border-paper-edge")} aria-disabled="true" data-testid="export-zip-unavailable">
+            <span
+              className={cx(link, "cursor-not-allowed border-dashed text-ink-faint hover:border-paper-edge")}
+              aria-disabled="true"
+              data-testid="export-zip-unavailable"
+            >
               Package (zip)
             </span>
           ) : (
-            <a href={`${base}?format=zip`} className={cx(link, "border-shellac/50 text-shellac-deep")} download data-testid="export-zip">
+            <a
+              href={`${base}?format=zip`}
+              className={cx(link, "border-shellac/50 text-shellac-deep")}
+              download
+              data-testid="export-zip"
+            >
               Package (zip): record, PREMIS and files
             </a>
           )}
@@ -39,7 +49,10 @@ export function ExportLinks({ disc }: { disc: DiscJson }) {
         {notApproved.length ? (
           <p className="text-xs text-ink-soft" data-testid="export-zip-why">
             The package is made once every side is approved. Not yet:{" "}
-            {notApproved.map((s) => `side ${s.designation} (${statusLabel(s.status).toLowerCase()})`).join(", ")}.
+            {notApproved
+              .map((s) => `side ${s.designation} (${statusLabel(s.status).toLowerCase()})`)
+              .join(", ")}
+            .
           </p>
         ) : null}
       </div>
@@ -48,10 +61,20 @@ export function ExportLinks({ disc }: { disc: DiscJson }) {
           Accession <span className="font-mono">{disc.accessionIdentifier}</span>
         </p>
         <div className="flex flex-wrap gap-2">
-          <a href={`/api/accessions/${disc.accessionId}/export?format=json`} className={link} download data-testid="export-accession-json">
+          <a
+            href={`/api/accessions/${disc.accessionId}/export?format=json`}
+            className={link}
+            download
+            data-testid="export-accession-json"
+          >
             JSON record
           </a>
-          <a href={`/api/accessions/${disc.accessionId}/export?format=premis`} className={link} download data-testid="export-accession-premis">
+          <a
+            href={`/api/accessions/${disc.accessionId}/export?format=premis`}
+            className={link}
+            download
+            data-testid="export-accession-premis"
+          >
             PREMIS XML
           </a>
         </div>

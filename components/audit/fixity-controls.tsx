@@ -36,7 +36,13 @@ export function FixityCycle({ canEdit }: { canEdit: boolean }) {
       setDraft(null);
       setSaved(true);
     } catch (err) {
-      setError(err instanceof AppError && err.fields?.fixityCycleDays ? err.fields.fixityCycleDays.join(" ") : err instanceof Error ? err.message : String(err));
+      setError(
+        err instanceof AppError && err.fields?.fixityCycleDays
+          ? err.fields.fixityCycleDays.join(" ")
+          : err instanceof Error
+            ? err.message
+            : String(err),
+      );
     } finally {
       setSaving(false);
     }
@@ -45,7 +51,8 @@ export function FixityCycle({ canEdit }: { canEdit: boolean }) {
   if (!canEdit) {
     return (
       <p className="text-sm" data-testid="fixity-cycle">
-        The worker re-reads every stored file at least every <strong>{days ?? "…"} days</strong>. An admin sets the cycle.
+        The worker re-reads every stored file at least every <strong>{days ?? "…"} days</strong>. An admin
+        sets the cycle.
       </p>
     );
   }
@@ -81,7 +88,13 @@ export function FixityCycle({ canEdit }: { canEdit: boolean }) {
           data-testid="fixity-cycle-days"
         />
         <span className="text-sm">days</span>
-        <Button type="submit" size="sm" variant="secondary" disabled={saving || draft === null || value === String(days)} data-testid="fixity-cycle-save">
+        <Button
+          type="submit"
+          size="sm"
+          variant="secondary"
+          disabled={saving || draft === null || value === String(days)}
+          data-testid="fixity-cycle-save"
+        >
           {saving ? "Saving…" : "Save"}
         </Button>
         {saved ? (
@@ -96,7 +109,8 @@ export function FixityCycle({ canEdit }: { canEdit: boolean }) {
         </p>
       ) : (
         <p id={`${uid}-hint`} className="text-xs text-ink-faint">
-          The worker checks files whose last check is older than this. Shorter cycles read the bucket more often.
+          The worker checks files whose last check is older than this. Shorter cycles read the bucket more
+          often.
         </p>
       )}
     </form>
@@ -130,14 +144,21 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
   const results = useQuery({
     queryKey: ["fixity-run", run?.disc.id, run?.askedAt],
     enabled: !!run && run.queued > 0,
-    queryFn: () => fetchJson<{ events: AuditEvent[] }>(`/api/provenance/events?disc=${run!.disc.id}&kind=side.fixity_checked&limit=200`),
+    queryFn: () =>
+      fetchJson<{ events: AuditEvent[] }>(
+        `/api/provenance/events?disc=${run!.disc.id}&kind=side.fixity_checked&limit=200`,
+      ),
     refetchInterval: (q) => {
       if (!run) return false;
-      const got = (q.state.data?.events ?? []).filter((e) => new Date(e.at).getTime() >= run!.askedAt - 1000).length;
+      const got = (q.state.data?.events ?? []).filter(
+        (e) => new Date(e.at).getTime() >= run!.askedAt - 1000,
+      ).length;
       return got >= run!.queued || Date.now() - startedAt.current > WAIT_MS ? false : 1000;
     },
   });
-  const fresh = run ? (results.data?.events ?? []).filter((e) => new Date(e.at).getTime() >= run.askedAt - 1000) : [];
+  const fresh = run
+    ? (results.data?.events ?? []).filter((e) => new Date(e.at).getTime() >= run.askedAt - 1000)
+    : [];
   const failed = fresh.filter((e) => (e.payload as { outcome?: string }).outcome !== "pass");
   const complete = !!run && fresh.length >= run.queued;
   useEffect(() => {
@@ -152,7 +173,10 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
     setError(null);
     setRun(null);
     try {
-      const r = await fetchJson<{ queued: number; askedAt: number }>("/api/fixity", { method: "POST", body: JSON.stringify({ discId: disc.id }) });
+      const r = await fetchJson<{ queued: number; askedAt: number }>("/api/fixity", {
+        method: "POST",
+        body: JSON.stringify({ discId: disc.id }),
+      });
       startedAt.current = Date.now();
       setRun({ disc, queued: r.queued, askedAt: r.askedAt });
     } catch (err) {
@@ -165,24 +189,43 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
   return (
     <div className="space-y-3" data-testid="fixity-run">
       <DiscPicker value={disc} onChange={setDisc} label="Disc to check" />
-      <Button type="button" onClick={() => void start()} disabled={!disc || busy} data-testid="fixity-run-start">
+      <Button
+        type="button"
+        onClick={() => void start()}
+        disabled={!disc || busy}
+        data-testid="fixity-run-start"
+      >
         {busy ? "Asking…" : disc ? `Check ${disc.shelfMark} now` : "Check the disc now"}
       </Button>
       <div aria-live="polite">
         {error ? <Notice tone="error">{error}</Notice> : null}
-        {run && run.queued === 0 ? <Notice tone="info">{run.disc.shelfMark} has no stored files yet: nothing to check.</Notice> : null}
+        {run && run.queued === 0 ? (
+          <Notice tone="info">{run.disc.shelfMark} has no stored files yet: nothing to check.</Notice>
+        ) : null}
         {run && run.queued > 0 ? (
           complete ? (
-            <Notice tone={failed.length ? "error" : "success"} title={failed.length ? `${failed.length} of ${fresh.length} files failed` : `All ${fresh.length} files passed`} testId="fixity-run-result">
-              {failed.length ? "See the alerts above and the disc's history below." : `Each stored file of ${run.disc.shelfMark} read back with its recorded SHA-256.`}
+            <Notice
+              tone={failed.length ? "error" : "success"}
+              title={
+                failed.length
+                  ? `${failed.length} of ${fresh.length} files failed`
+                  : `All ${fresh.length} files passed`
+              }
+              testId="fixity-run-result"
+            >
+              {failed.length
+                ? "See the alerts above and the disc's history below."
+                : `Each stored file of ${run.disc.shelfMark} read back with its recorded SHA-256.`}
             </Notice>
           ) : Date.now() - startedAt.current > WAIT_MS ? (
             <Notice tone="caution" title="Still waiting for the worker">
-              {fresh.length} of {run.queued} results so far. Is the worker running? The checks stay queued and will run when it is.
+              {fresh.length} of {run.queued} results so far. Is the worker running? The checks stay queued and
+              will run when it is.
             </Notice>
           ) : (
             <p className="text-sm text-ink-soft" data-testid="fixity-run-progress">
-              Checking {run.disc.shelfMark}: {fresh.length} of {run.queued} file{run.queued === 1 ? "" : "s"} read back (asked {when(new Date(run.askedAt))})…
+              Checking {run.disc.shelfMark}: {fresh.length} of {run.queued} file{run.queued === 1 ? "" : "s"}{" "}
+              read back (asked {when(new Date(run.askedAt))})…
             </p>
           )
         ) : null}

@@ -28,7 +28,13 @@ export interface ChainReport {
   head: { seq: number; hash: string } | null;
   brokenAt?: { seq: number; id: string | null; reason: string };
   contradicts?: CheckpointRef & { reason: string };
-  checkpoints: { source: "bucket"; checked: number; total: number; newest: CheckpointRef | null; problems: string[] };
+  checkpoints: {
+    source: "bucket";
+    checked: number;
+    total: number;
+    newest: CheckpointRef | null;
+    problems: string[];
+  };
   checkedAt: string;
 }
 

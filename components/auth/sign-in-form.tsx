@@ -21,10 +21,18 @@ export function SignInForm() {
     setBusy(true);
     setError(null);
     const form = new FormData(e.currentTarget);
-    const res = await signIn("credentials", { email: form.get("email"), password: form.get("password"), redirect: false });
+    const res = await signIn("credentials", {
+      email: form.get("email"),
+      password: form.get("password"),
+      redirect: false,
+    });
     setBusy(false);
     if (!res || res.error) {
-      setError(res?.error && res.error !== "CredentialsSignin" ? res.error : "That e-mail and password do not match an account.");
+      setError(
+        res?.error && res.error !== "CredentialsSignin"
+          ? res.error
+          : "That e-mail and password do not match an account.",
+      );
       return;
     }
     router.replace(target);
@@ -33,11 +41,38 @@ export function SignInForm() {
 
   return (
     <form onSubmit={onSubmit} className="space-y-5" noValidate data-testid="sign-in-form">
-      {error ? <Notice tone="error" title="Not signed in" testId="sign-in-error">{error}</Notice> : null}
-      {params.get("reset") === "done" ? <Notice tone="success" title="Password changed">Sign in with your new password.</Notice> : null}
-      {params.get("welcome") ? <Notice tone="success" title="Your account is ready">Sign in with the password you just chose.</Notice> : null}
-      <TextField id="email" name="email" type="email" label="E-mail" autoComplete="username" required autoFocus />
-      <TextField id="password" name="password" type="password" label="Password" autoComplete="current-password" required />
+      {error ? (
+        <Notice tone="error" title="Not signed in" testId="sign-in-error">
+          {error}
+        </Notice>
+      ) : null}
+      {params.get("reset") === "done" ? (
+        <Notice tone="success" title="Password changed">
+          Sign in with your new password.
+        </Notice>
+      ) : null}
+      {params.get("welcome") ? (
+        <Notice tone="success" title="Your account is ready">
+          Sign in with the password you just chose.
+        </Notice>
+      ) : null}
+      <TextField
+        id="email"
+        name="email"
+        type="email"
+        label="E-mail"
+        autoComplete="username"
+        required
+        autoFocus
+      />
+      <TextField
+        id="password"
+        name="password"
+        type="password"
+        label="Password"
+        autoComplete="current-password"
+        required
+      />
       <Button type="submit" className="w-full" disabled={busy}>
         {busy ? "Checking…" : "Sign in"}
       </Button>

@@ -31,7 +31,17 @@ export interface ComparedRender {
 
 type Side = "access" | "curve";
 
-export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { render: ComparedRender; transfer: TransferJson; spec: CurveSpec; curveLabel: string }) {
+export function AccessCopyCompare({
+  render,
+  transfer,
+  spec,
+  curveLabel,
+}: {
+  render: ComparedRender;
+  transfer: TransferJson;
+  spec: CurveSpec;
+  curveLabel: string;
+}) {
   const uid = useId();
   const [acknowledged, setAcknowledged] = useState(false);
   const [startAt, setStartAt] = useState(0);
@@ -46,12 +56,20 @@ export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { rend
     queryKey: ["access-compare-open", render.id, transfer.id],
     staleTime: 4 * 60_000,
     queryFn: async () => {
-      const [t, a] = await Promise.all([fetchJson<{ url: string }>(`/api/transfers/${transfer.id}/download?json=1`), fetchJson<{ url: string }>(`/api/renders/${render.id}/download?json=1`)]);
-      const [flat, access] = await Promise.all([openTransfer(t.url, Number(transfer.bytes)), openTransfer(a.url, Number(render.bytes))]);
+      const [t, a] = await Promise.all([
+        fetchJson<{ url: string }>(`/api/transfers/${transfer.id}/download?json=1`),
+        fetchJson<{ url: string }>(`/api/renders/${render.id}/download?json=1`),
+      ]);
+      const [flat, access] = await Promise.all([
+        openTransfer(t.url, Number(transfer.bytes)),
+        openTransfer(a.url, Number(render.bytes)),
+      ]);
       return { flat, access };
     },
   });
-  const duration = files.data ? Math.min(files.data.flat.header.durationSeconds, files.data.access.header.durationSeconds) : Number(transfer.durationSeconds);
+  const duration = files.data
+    ? Math.min(files.data.flat.header.durationSeconds, files.data.access.header.durationSeconds)
+    : Number(transfer.durationSeconds);
   const windows = useQuery({
     queryKey: ["access-compare-window", render.id, transfer.id, startAt],
     enabled: !!files.data,
@@ -59,7 +77,10 @@ export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { rend
     queryFn: async () => {
       const { flat, access } = files.data!;
       // The flat transfer with the render's own channel choice; the access copy as it is.
-      const [f, a] = await Promise.all([readWindow(flat, startAt, WINDOW_SECONDS, render.channelMode), readWindow(access, startAt, WINDOW_SECONDS, "both")]);
+      const [f, a] = await Promise.all([
+        readWindow(flat, startAt, WINDOW_SECONDS, render.channelMode),
+        readWindow(access, startAt, WINDOW_SECONDS, "both"),
+      ]);
       return { flat: f, access: a };
     },
   });
@@ -114,15 +135,28 @@ export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { rend
 
   const options: { id: Side; label: string; hint: string }[] = [
     { id: "access", label: "A · The access copy", hint: "rendered on the server" },
-    { id: "curve", label: "B · The flat transfer through the chosen curve", hint: `in this browser: ${curveLabel}` },
+    {
+      id: "curve",
+      label: "B · The flat transfer through the chosen curve",
+      hint: `in this browser: ${curveLabel}`,
+    },
   ];
 
   return (
     <div className="space-y-3" data-testid="access-ab">
       {!acknowledged ? (
         <Notice tone="caution" title="Mind your ears">
-          <p>An equalized side can carry a lot of bass and surface noise. The player starts at {SAFE_START_DB} dB behind a peak guard; raise the volume slowly.</p>
-          <Button type="button" size="sm" className="mt-2" onClick={() => setAcknowledged(true)} data-testid="access-ab-acknowledge">
+          <p>
+            An equalized side can carry a lot of bass and surface noise. The player starts at {SAFE_START_DB}{" "}
+            dB behind a peak guard; raise the volume slowly.
+          </p>
+          <Button
+            type="button"
+            size="sm"
+            className="mt-2"
+            onClick={() => setAcknowledged(true)}
+            data-testid="access-ab-acknowledge"
+          >
             Understood — enable the player
           </Button>
         </Notice>
@@ -131,9 +165,19 @@ export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { rend
         {options.map((o) => (
           <label
             key={o.id}
-            className={cx("flex min-w-0 cursor-pointer flex-col rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac", active === o.id ? "border-groove bg-groove-wash" : "border-paper-edge bg-white")}
+            className={cx(
+              "flex min-w-0 cursor-pointer flex-col rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac",
+              active === o.id ? "border-groove bg-groove-wash" : "border-paper-edge bg-white",
+            )}
           >
-            <input type="radio" name={`${uid}-ab`} className="sr-only" checked={active === o.id} onChange={() => choose(o.id)} data-testid={`access-ab-option-${o.id}`} />
+            <input
+              type="radio"
+              name={`${uid}-ab`}
+              className="sr-only"
+              checked={active === o.id}
+              onChange={() => choose(o.id)}
+              data-testid={`access-ab-option-${o.id}`}
+            />
             <span className={cx(active === o.id && "font-semibold")}>{o.label}</span>
             <span className="truncate text-xs text-ink-faint" title={o.hint}>
               {o.hint}
@@ -147,12 +191,26 @@ export function AccessCopyCompare({ render, transfer, spec, curveLabel }: { rend
             Pause
           </Button>
         ) : (
-          <Button type="button" onClick={() => void play()} disabled={!acknowledged || !windows.data} data-testid="access-ab-play">
+          <Button
+            type="button"
+            onClick={() => void play()}
+            disabled={!acknowledged || !windows.data}
+            data-testid="access-ab-play"
+          >
             {windows.isFetching || files.isFetching ? "Fetching…" : "Play"}
           </Button>
         )}
-        <p className="text-sm" data-testid="access-ab-state" data-active={active} data-playing={playing ? "yes" : "no"} aria-live="polite">
-          {playing ? "Playing" : "Stopped"} · <span className="font-semibold">{active === "access" ? "A, the access copy" : "B, the flat transfer through the curve"}</span>
+        <p
+          className="text-sm"
+          data-testid="access-ab-state"
+          data-active={active}
+          data-playing={playing ? "yes" : "no"}
+          aria-live="polite"
+        >
+          {playing ? "Playing" : "Stopped"} ·{" "}
+          <span className="font-semibold">
+            {active === "access" ? "A, the access copy" : "B, the flat transfer through the curve"}
+          </span>
         </p>
         <div className="ml-auto flex items-center gap-2">
           <VolumeControl

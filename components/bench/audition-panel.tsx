@@ -14,7 +14,13 @@ import { Notice } from "@/components/ui/notice";
 import { matchAt1kHzDb } from "@/lib/audition/curve-merge";
 import { AuditionPlayer, SAFE_START_DB } from "@/lib/audition/player";
 import { type Spectrum, throughCurve, welchSpectrum } from "@/lib/audition/spectrum";
-import { type AudioWindow, type OpenedTransfer, openTransfer, overviewPeaks, readWindow } from "@/lib/audition/transfer-window";
+import {
+  type AudioWindow,
+  type OpenedTransfer,
+  openTransfer,
+  overviewPeaks,
+  readWindow,
+} from "@/lib/audition/transfer-window";
 import { describeCurve } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { channelModeLabels } from "@/lib/validation/transfers";
@@ -30,7 +36,14 @@ const WINDOW_SECONDS = 30;
  * transfer (file and SHA-256), the stretch listened to, the channel choice, every curve
  * heard, and the one chosen.
  */
-export function listeningEvidence(o: { transfer: Pick<TransferJson, "fileName" | "sha256">; fromSeconds: number; toSeconds: number; channelMode: ChannelMode; compared: string[]; chosen: string }): string {
+export function listeningEvidence(o: {
+  transfer: Pick<TransferJson, "fileName" | "sha256">;
+  fromSeconds: number;
+  toSeconds: number;
+  channelMode: ChannelMode;
+  compared: string[];
+  chosen: string;
+}): string {
   return [
     `Compared by ear on the flat transfer ${o.transfer.fileName} (SHA-256 ${o.transfer.sha256.slice(0, 16)}…), ${formatDuration(o.fromSeconds)}–${formatDuration(o.toSeconds)}, ${channelModeLabels[o.channelMode].toLowerCase()}, at matched level at 1 kHz.`,
     `Heard: flat; ${o.compared.join("; ")}.`,
@@ -77,7 +90,12 @@ export function AuditionPanel({
       return openTransfer(url, Number(transfer!.bytes));
     },
   });
-  const overview = useQuery({ queryKey: ["transfer-overview", transfer?.id], enabled: !!opened.data, staleTime: Infinity, queryFn: () => overviewPeaks(opened.data!) });
+  const overview = useQuery({
+    queryKey: ["transfer-overview", transfer?.id],
+    enabled: !!opened.data,
+    staleTime: Infinity,
+    queryFn: () => overviewPeaks(opened.data!),
+  });
   const duration = opened.data?.header.durationSeconds ?? Number(transfer?.durationSeconds ?? 0);
   const win = useQuery({
     queryKey: ["transfer-window", transfer?.id, startAt, channelMode],
@@ -102,7 +120,12 @@ export function AuditionPanel({
     const out: SpectrumLine[] = [{ id: "flat", label: "Flat", spectrum: flatSpectrum, color: FLAT_COLOR }];
     candidates.forEach((c, i) => {
       try {
-        out.push({ id: c.id, label: c.label, spectrum: throughCurve(flatSpectrum, c.spec, matchAt1kHzDb(c.spec)), color: candidateColor(i) });
+        out.push({
+          id: c.id,
+          label: c.label,
+          spectrum: throughCurve(flatSpectrum, c.spec, matchAt1kHzDb(c.spec)),
+          color: candidateColor(i),
+        });
       } catch {
         /* an invalid curve is reported by the form */
       }
@@ -110,13 +133,20 @@ export function AuditionPanel({
     return out;
   }, [flatSpectrum, candidates]);
 
-  const peakBoost = useMemo(() => Math.max(0, ...candidates.map((c) => {
-    try {
-      return describeCurve(c.spec).peakGainDb + matchAt1kHzDb(c.spec);
-    } catch {
-      return 0;
-    }
-  })), [candidates]);
+  const peakBoost = useMemo(
+    () =>
+      Math.max(
+        0,
+        ...candidates.map((c) => {
+          try {
+            return describeCurve(c.spec).peakGainDb + matchAt1kHzDb(c.spec);
+          } catch {
+            return 0;
+          }
+        }),
+      ),
+    [candidates],
+  );
 
   // Keep the player's chains in step with the candidates.
   const candidateKey = JSON.stringify(candidates.map((c) => [c.id, c.spec]));
@@ -219,7 +249,10 @@ export function AuditionPanel({
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [autoPlay, win.data]);
 
-  const options = [{ id: "flat", label: "Flat (no curve)" }, ...candidates.map((c) => ({ id: c.id, label: c.label }))];
+  const options = [
+    { id: "flat", label: "Flat (no curve)" },
+    ...candidates.map((c) => ({ id: c.id, label: c.label })),
+  ];
   const onCandidateKeys = (e: KeyboardEvent) => {
     const n = Number(e.key);
     if (Number.isInteger(n) && n >= 0 && n < options.length) {
@@ -230,17 +263,36 @@ export function AuditionPanel({
   const activeLabel = options.find((o) => o.id === activeId)?.label ?? "Flat";
   const nowSeconds = (win.data?.startSeconds ?? startAt) + clock;
 
-  if (!transfer) return <p className="text-sm text-ink-faint">Upload a flat transfer to listen to it through the candidate curves.</p>;
+  if (!transfer)
+    return (
+      <p className="text-sm text-ink-faint">
+        Upload a flat transfer to listen to it through the candidate curves.
+      </p>
+    );
 
   return (
     <div className="space-y-5" data-testid="audition-panel" onKeyDown={onCandidateKeys}>
       <Notice tone="caution" title="Mind your ears" testId="audition-caution">
         <p>
-          These curves can add a lot of bass: {peakBoost > 0.5 ? <>the candidates here reach up to <strong>{formatDb(peakBoost)}</strong> above their 1 kHz level</> : "some add 20 dB and more below 100 Hz"}, and rumble gets the same boost. In headphones that can be very loud. The
-          player starts at {SAFE_START_DB} dB and a peak guard holds its output down; raise the volume slowly.
+          These curves can add a lot of bass:{" "}
+          {peakBoost > 0.5 ? (
+            <>
+              the candidates here reach up to <strong>{formatDb(peakBoost)}</strong> above their 1 kHz level
+            </>
+          ) : (
+            "some add 20 dB and more below 100 Hz"
+          )}
+          , and rumble gets the same boost. In headphones that can be very loud. The player starts at{" "}
+          {SAFE_START_DB} dB and a peak guard holds its output down; raise the volume slowly.
         </p>
         {!acknowledged ? (
-          <Button type="button" size="sm" className="mt-2" onClick={() => setAcknowledged(true)} data-testid="audition-acknowledge">
+          <Button
+            type="button"
+            size="sm"
+            className="mt-2"
+            onClick={() => setAcknowledged(true)}
+            data-testid="audition-acknowledge"
+          >
             Understood — enable the player
           </Button>
         ) : null}
@@ -250,7 +302,8 @@ export function AuditionPanel({
         <div className="flex items-baseline justify-between gap-3">
           <h3 className="font-sans text-sm font-semibold">Where to listen</h3>
           <span className="font-mono text-xs text-ink-soft">
-            {formatDuration(startAt)}–{formatDuration(Math.min(duration, startAt + WINDOW_SECONDS))} of {formatDuration(duration)}
+            {formatDuration(startAt)}–{formatDuration(Math.min(duration, startAt + WINDOW_SECONDS))} of{" "}
+            {formatDuration(duration)}
           </span>
         </div>
         <Overview
@@ -289,15 +342,38 @@ export function AuditionPanel({
       <div className="grid gap-4 lg:grid-cols-[minmax(0,1fr)_16rem]">
         <fieldset className="min-w-0 space-y-1.5">
           <legend className="text-sm font-semibold">Listen through</legend>
-          <p className="text-xs text-ink-faint">Switching keeps playing. Keys 0–{options.length - 1} switch too.</p>
-          <div className="grid gap-1.5" role="radiogroup" aria-label="Listen through" data-testid="audition-candidates">
+          <p className="text-xs text-ink-faint">
+            Switching keeps playing. Keys 0–{options.length - 1} switch too.
+          </p>
+          <div
+            className="grid gap-1.5"
+            role="radiogroup"
+            aria-label="Listen through"
+            data-testid="audition-candidates"
+          >
             {options.map((o, i) => (
               <label
                 key={o.id}
-                className={cx("flex min-w-0 cursor-pointer items-center gap-2 rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac", activeId === o.id ? "border-groove bg-groove-wash font-semibold" : "border-paper-edge bg-white")}
+                className={cx(
+                  "flex min-w-0 cursor-pointer items-center gap-2 rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac",
+                  activeId === o.id
+                    ? "border-groove bg-groove-wash font-semibold"
+                    : "border-paper-edge bg-white",
+                )}
               >
-                <input type="radio" name={`${uid}-cand`} className="sr-only" checked={activeId === o.id} onChange={() => choose(o.id)} data-testid={`audition-candidate-${i}`} />
-                <span aria-hidden className="inline-block h-3 w-3 shrink-0 rounded-full" style={{ background: o.id === "flat" ? FLAT_COLOR : candidateColor(i - 1) }} />
+                <input
+                  type="radio"
+                  name={`${uid}-cand`}
+                  className="sr-only"
+                  checked={activeId === o.id}
+                  onChange={() => choose(o.id)}
+                  data-testid={`audition-candidate-${i}`}
+                />
+                <span
+                  aria-hidden
+                  className="inline-block h-3 w-3 shrink-0 rounded-full"
+                  style={{ background: o.id === "flat" ? FLAT_COLOR : candidateColor(i - 1) }}
+                />
                 <span className="font-mono text-xs text-ink-faint">{i}</span>
                 <span className="min-w-0 break-words leading-snug">{o.label}</span>
               </label>
@@ -308,8 +384,17 @@ export function AuditionPanel({
           <label className="block text-sm font-semibold" htmlFor={`${uid}-mode`}>
             Channels
           </label>
-          <select id={`${uid}-mode`} value={channelMode} onChange={(e) => onChannelMode(e.target.value as ChannelMode)} className="h-9 w-full rounded-md border border-paper-edge bg-white px-2 text-sm" data-testid="audition-channel-mode">
-            {(Number(transfer.channels) === 2 ? (Object.keys(channelModeLabels) as ChannelMode[]) : (["both"] as ChannelMode[])).map((m) => (
+          <select
+            id={`${uid}-mode`}
+            value={channelMode}
+            onChange={(e) => onChannelMode(e.target.value as ChannelMode)}
+            className="h-9 w-full rounded-md border border-paper-edge bg-white px-2 text-sm"
+            data-testid="audition-channel-mode"
+          >
+            {(Number(transfer.channels) === 2
+              ? (Object.keys(channelModeLabels) as ChannelMode[])
+              : (["both"] as ChannelMode[])
+            ).map((m) => (
               <option key={m} value={m}>
                 {channelModeLabels[m]}
               </option>
@@ -325,14 +410,25 @@ export function AuditionPanel({
             Pause
           </Button>
         ) : (
-          <Button type="button" onClick={() => void play()} disabled={!acknowledged || !win.data} data-testid="audition-play">
+          <Button
+            type="button"
+            onClick={() => void play()}
+            disabled={!acknowledged || !win.data}
+            data-testid="audition-play"
+          >
             {win.isFetching ? "Fetching…" : "Play"}
           </Button>
         )}
         <div className="min-w-40 font-mono text-sm" aria-live="off">
           {formatDuration(nowSeconds)}
         </div>
-        <p className="text-sm" data-testid="audition-state" data-context-state={contextState} data-active={activeId} aria-live="polite">
+        <p
+          className="text-sm"
+          data-testid="audition-state"
+          data-context-state={contextState}
+          data-active={activeId}
+          aria-live="polite"
+        >
           {playing ? "Playing" : "Stopped"} · <span className="font-semibold">{activeLabel}</span>
         </p>
         <div className="ml-auto flex items-center gap-2">
@@ -344,7 +440,13 @@ export function AuditionPanel({
             }}
             testId="audition-volume"
           />
-          <span className={cx("rounded px-1.5 py-0.5 text-[0.7rem] font-medium", guardDb < -1 ? "bg-shellac-wash text-shellac-deep" : "bg-paper-deep text-ink-faint")} title="How much the peak guard is holding back">
+          <span
+            className={cx(
+              "rounded px-1.5 py-0.5 text-[0.7rem] font-medium",
+              guardDb < -1 ? "bg-shellac-wash text-shellac-deep" : "bg-paper-deep text-ink-faint",
+            )}
+            title="How much the peak guard is holding back"
+          >
             guard {guardDb < -0.1 ? `${guardDb.toFixed(0)} dB` : "idle"}
           </span>
         </div>
@@ -352,7 +454,14 @@ export function AuditionPanel({
       {onRecord ? (
         <div className="flex flex-wrap items-center justify-between gap-3 rounded-lg border border-dashed border-groove/50 px-4 py-3">
           <p className="text-sm text-ink-soft">
-            {activeId === "flat" ? "Pick the curve that sounds right, then record it with what you compared." : <>Record <span className="font-semibold text-ink">{activeLabel}</span> as this side&apos;s curve? The form below is filled in with what you compared; you can edit it before saving.</>}
+            {activeId === "flat" ? (
+              "Pick the curve that sounds right, then record it with what you compared."
+            ) : (
+              <>
+                Record <span className="font-semibold text-ink">{activeLabel}</span> as this side&apos;s
+                curve? The form below is filled in with what you compared; you can edit it before saving.
+              </>
+            )}
           </p>
           <Button
             type="button"
@@ -385,17 +494,43 @@ export function AuditionPanel({
 
       <div>
         <h3 className="mb-2 font-sans text-sm font-semibold">Averaged spectrum of this window</h3>
-        {lines.length ? <SpectrumPlot lines={lines} activeId={activeId} /> : <p className="text-sm text-ink-faint">{win.isFetching || opened.isFetching ? "Reading the window…" : "—"}</p>}
+        {lines.length ? (
+          <SpectrumPlot lines={lines} activeId={activeId} />
+        ) : (
+          <p className="text-sm text-ink-faint">
+            {win.isFetching || opened.isFetching ? "Reading the window…" : "—"}
+          </p>
+        )}
       </div>
     </div>
   );
 }
 
 /** Peak levels across the whole side; click (or use the slider under it) to listen from there. */
-function Overview({ peaks, duration, windowStart, windowSeconds, now, onPick }: { peaks: Float32Array | null; duration: number; windowStart: number; windowSeconds: number; now: number | null; onPick: (seconds: number) => void }) {
+function Overview({
+  peaks,
+  duration,
+  windowStart,
+  windowSeconds,
+  now,
+  onPick,
+}: {
+  peaks: Float32Array | null;
+  duration: number;
+  windowStart: number;
+  windowSeconds: number;
+  now: number | null;
+  onPick: (seconds: number) => void;
+}) {
   const W = 1000;
   const H = 72;
-  if (!peaks) return <div className="h-[72px] animate-pulse rounded-md bg-paper-deep" aria-label="Reading levels across the side…" />;
+  if (!peaks)
+    return (
+      <div
+        className="h-[72px] animate-pulse rounded-md bg-paper-deep"
+        aria-label="Reading levels across the side…"
+      />
+    );
   const bar = W / peaks.length;
   const h = (db: number) => Math.max(1, ((Math.max(-60, db) + 60) / 60) * (H / 2 - 2));
   const xOf = (s: number) => (duration > 0 ? (s / duration) * W : 0);
@@ -414,7 +549,15 @@ function Overview({ peaks, duration, windowStart, windowSeconds, now, onPick }: 
     >
       <rect x={xOf(windowStart)} width={Math.max(2, xOf(windowSeconds))} height={H} fill="#dcebe8" />
       {Array.from(peaks, (db, i) => (
-        <rect key={i} x={i * bar + bar * 0.15} width={bar * 0.7} y={H / 2 - h(db)} height={2 * h(db)} fill="#2f6f6a" fillOpacity={0.8} />
+        <rect
+          key={i}
+          x={i * bar + bar * 0.15}
+          width={bar * 0.7}
+          y={H / 2 - h(db)}
+          height={2 * h(db)}
+          fill="#2f6f6a"
+          fillOpacity={0.8}
+        />
       ))}
       {now !== null ? <line x1={xOf(now)} x2={xOf(now)} y2={H} stroke="#a9591a" strokeWidth={2} /> : null}
     </svg>

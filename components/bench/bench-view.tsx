@@ -32,7 +32,15 @@ import { UploadPanel } from "./upload-panel";
 
 const MAX_CANDIDATES = 4;
 
-export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; userId: string; extraSideIds: string[] }) {
+export function BenchView({
+  sideId,
+  userId,
+  extraSideIds,
+}: {
+  sideId: string;
+  userId: string;
+  extraSideIds: string[];
+}) {
   const uid = useId();
   const { side, choices, transfers } = useSide(sideId);
   const presets = usePresets();
@@ -48,35 +56,64 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
   const data = side.data;
   // What the side stands on now, by the ids the server keeps (never "the latest" of each list).
   const current = choices.data?.choices.find((c) => c.id === data?.side.currentCurveChoiceId) ?? null;
-  const renders = useQuery({ queryKey: ["renders", sideId], queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`) });
-  const currentRender = renders.data?.renders.find((r) => r.id === data?.side.currentRenderId && r.status === "done") ?? null;
+  const renders = useQuery({
+    queryKey: ["renders", sideId],
+    queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`),
+  });
+  const currentRender =
+    renders.data?.renders.find((r) => r.id === data?.side.currentRenderId && r.status === "done") ?? null;
   // A curve picked in the listening panel, for the form (only while the recorded choice is the one it was picked against).
   const [prefill, setPrefill] = useState<(ChoicePrefill & { against: string | null }) | null>(null);
   useEffect(() => {
     if (prefill && prefill.against !== (current?.id ?? null)) setPrefill(null);
   }, [current?.id, prefill]);
-  const speeds = current ? { cut: current.cutSpeedRpm, transfer: current.transferSpeedRpm } : { cut: data?.disc.nominalSpeedRpm ?? 78, transfer: data?.disc.nominalSpeedRpm ?? 78 };
+  const speeds = current
+    ? { cut: current.cutSpeedRpm, transfer: current.transferSpeedRpm }
+    : { cut: data?.disc.nominalSpeedRpm ?? 78, transfer: data?.disc.nominalSpeedRpm ?? 78 };
 
   // Candidates: the recorded choice, the form's edits, and presets added for comparison (at the same speeds).
   const candidates = useMemo<Candidate[]>(() => {
     const out: Candidate[] = [];
-    if (current) out.push({ id: "current", label: `Recorded: ${curveChoiceName(current)}`, spec: current.spec });
-    if (editSpec && (!current || JSON.stringify(editSpec) !== JSON.stringify(current.spec))) out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
+    if (current)
+      out.push({ id: "current", label: `Recorded: ${curveChoiceName(current)}`, spec: current.spec });
+    if (editSpec && (!current || JSON.stringify(editSpec) !== JSON.stringify(current.spec)))
+      out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
     for (const id of extraPresets) {
       const p = presets.data?.presets.find((x) => x.id === id);
-      if (p) out.push({ id: `preset:${p.id}`, label: curveChoiceName({ presetName: p.name, presetVersion: p.version, cutSpeedRpm: speeds.cut, transferSpeedRpm: speeds.transfer }), spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer) });
+      if (p)
+        out.push({
+          id: `preset:${p.id}`,
+          label: curveChoiceName({
+            presetName: p.name,
+            presetVersion: p.version,
+            cutSpeedRpm: speeds.cut,
+            transferSpeedRpm: speeds.transfer,
+          }),
+          spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer),
+        });
     }
     return out.filter((c) => !hidden.has(c.id)).slice(0, MAX_CANDIDATES);
   }, [current, editSpec, extraPresets, presets.data, speeds.cut, speeds.transfer, hidden]);
 
-  const newest = transfers.data?.transfers.find((t) => t.id === data?.side.currentTransferId) ?? transfers.data?.transfers[0] ?? null;
+  const newest =
+    transfers.data?.transfers.find((t) => t.id === data?.side.currentTransferId) ??
+    transfers.data?.transfers[0] ??
+    null;
   const auditioned = transfers.data?.transfers.find((t) => t.id === pickedTransfer) ?? newest;
   const suggestion = data ? defaultChannelMode(data.disc.cut, Number(auditioned?.channels ?? 2)) : null;
   const channelMode: ChannelMode = modeChoice ?? suggestion?.mode ?? "both";
-  const channelWhy = modeChoice && modeChoice !== suggestion?.mode ? `Changed from the suggestion (${suggestion?.mode}). ${suggestion?.why ?? ""}` : (suggestion?.why ?? "");
+  const channelWhy =
+    modeChoice && modeChoice !== suggestion?.mode
+      ? `Changed from the suggestion (${suggestion?.mode}). ${suggestion?.why ?? ""}`
+      : (suggestion?.why ?? "");
 
   if (side.isLoading) return <p className="text-ink-faint">Loading the side…</p>;
-  if (side.error || !data) return <Notice tone="error" title="This side could not be opened">{side.error?.message ?? "Unknown side."}</Notice>;
+  if (side.error || !data)
+    return (
+      <Notice tone="error" title="This side could not be opened">
+        {side.error?.message ?? "Unknown side."}
+      </Notice>
+    );
   const { disc } = data;
   const s = data.side;
   const mine = s.assignedEngineerId === userId;
@@ -85,9 +122,20 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
     const nonce = Date.now();
     if (candidateId.startsWith("preset:")) {
       const p = presets.data?.presets.find((x) => `preset:${x.id}` === candidateId);
-      setPrefill({ nonce, against: current?.id ?? null, preset: p ? { id: p.id, version: p.currentVersion } : null, evidence });
+      setPrefill({
+        nonce,
+        against: current?.id ?? null,
+        preset: p ? { id: p.id, version: p.currentVersion } : null,
+        evidence,
+      });
     } else if (candidateId === "current" && current?.presetId && current.presetVersion) {
-      setPrefill({ nonce, against: current.id, preset: { id: current.presetId, version: current.presetVersion }, overrides: current.overrides, evidence });
+      setPrefill({
+        nonce,
+        against: current.id,
+        preset: { id: current.presetId, version: current.presetVersion },
+        overrides: current.overrides,
+        evidence,
+      });
     } else {
       // The form's own edits (or own values): the curve stays as the form has it.
       setPrefill({ nonce, against: current?.id ?? null, preset: null, evidence });
@@ -102,16 +150,37 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
         side={s}
         back={{ href: "/bench", label: "My bench queue" }}
         testId="bench-title"
-        aside={s.status === "returned" && s.returnReason ? <p className="max-w-72 rounded border-l-2 border-alarm bg-alarm-wash px-2 py-1 text-xs text-alarm">Returned: {s.returnReason}</p> : null}
+        aside={
+          s.status === "returned" && s.returnReason ? (
+            <p className="max-w-72 rounded border-l-2 border-alarm bg-alarm-wash px-2 py-1 text-xs text-alarm">
+              Returned: {s.returnReason}
+            </p>
+          ) : null
+        }
       />
-      {!mine ? <Notice tone="info" title="Not assigned to you">You can look and listen; choices, uploads and renders are for the engineer this side is assigned to ({s.assignedEngineerName ?? "nobody yet"}).</Notice> : null}
+      {!mine ? (
+        <Notice tone="info" title="Not assigned to you">
+          You can look and listen; choices, uploads and renders are for the engineer this side is assigned to
+          ({s.assignedEngineerName ?? "nobody yet"}).
+        </Notice>
+      ) : null}
 
       <Panel title="1 · Flat transfer">
         <div className="grid gap-6 2xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
-          <UploadPanel sideId={sideId} canUpload={mine && uploadableStatuses.has(s.status)} replaces={!!s.currentTransferId} />
+          <UploadPanel
+            sideId={sideId}
+            canUpload={mine && uploadableStatuses.has(s.status)}
+            replaces={!!s.currentTransferId}
+          />
           <div className="min-w-0 space-y-2">
             <h3 className="font-sans text-sm font-semibold">Transfers of this side</h3>
-            <TransfersList transfers={transfers.data?.transfers} loading={transfers.isLoading} selectedId={auditioned?.id ?? null} onSelect={setPickedTransfer} currentId={s.currentTransferId} />
+            <TransfersList
+              transfers={transfers.data?.transfers}
+              loading={transfers.isLoading}
+              selectedId={auditioned?.id ?? null}
+              onSelect={setPickedTransfer}
+              currentId={s.currentTransferId}
+            />
           </div>
         </div>
       </Panel>
@@ -120,18 +189,29 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
         <div className="min-w-0 space-y-6">
           <Panel title="2 · Listen and compare">
             <div className="space-y-5">
-              <p className="text-xs text-ink-faint">Listening records nothing: compare as many curves as you like on the flat transfer, then record the one you choose.</p>
+              <p className="text-xs text-ink-faint">
+                Listening records nothing: compare as many curves as you like on the flat transfer, then
+                record the one you choose.
+              </p>
               <ul className="flex flex-wrap gap-2" data-testid="candidate-list" aria-label="Curves compared">
                 {candidates.map((c, i) => (
-                  <li key={c.id} className="inline-flex items-center gap-2 rounded-full border border-paper-edge bg-white py-1 pl-3 pr-1 text-sm">
-                    <span aria-hidden className="h-2.5 w-2.5 rounded-full" style={{ background: CURVE_COLORS[i % CURVE_COLORS.length] }} />
+                  <li
+                    key={c.id}
+                    className="inline-flex items-center gap-2 rounded-full border border-paper-edge bg-white py-1 pl-3 pr-1 text-sm"
+                  >
+                    <span
+                      aria-hidden
+                      className="h-2.5 w-2.5 rounded-full"
+                      style={{ background: CURVE_COLORS[i % CURVE_COLORS.length] }}
+                    />
                     {c.label}
                     <button
                       type="button"
                       className="rounded-full px-2 text-ink-faint hover:bg-paper-deep hover:text-ink"
                       aria-label={`Stop comparing ${c.label}`}
                       onClick={() => {
-                        if (c.id.startsWith("preset:")) setExtraPresets((l) => l.filter((p) => `preset:${p}` !== c.id));
+                        if (c.id.startsWith("preset:"))
+                          setExtraPresets((l) => l.filter((p) => `preset:${p}` !== c.id));
                         else setHidden((h) => new Set(h).add(c.id));
                       }}
                     >
@@ -139,14 +219,24 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                     </button>
                   </li>
                 ))}
-                {!candidates.length ? <li className="text-sm text-ink-faint">Add a preset here, or set values in the form, to see and hear it.</li> : null}
+                {!candidates.length ? (
+                  <li className="text-sm text-ink-faint">
+                    Add a preset here, or set values in the form, to see and hear it.
+                  </li>
+                ) : null}
               </ul>
               <div className="flex flex-wrap items-end gap-2">
                 <div className="space-y-1">
                   <label htmlFor={`${uid}-add`} className="block text-xs font-medium text-ink-soft">
                     Compare with a preset
                   </label>
-                  <select id={`${uid}-add`} value={addPreset} onChange={(e) => setAddPreset(e.target.value)} className="h-9 w-72 rounded-md border border-paper-edge bg-white px-2 text-sm" data-testid="candidate-add-select">
+                  <select
+                    id={`${uid}-add`}
+                    value={addPreset}
+                    onChange={(e) => setAddPreset(e.target.value)}
+                    className="h-9 w-72 rounded-md border border-paper-edge bg-white px-2 text-sm"
+                    data-testid="candidate-add-select"
+                  >
                     <option value="">Choose a preset…</option>
                     {presets.data?.presets
                       .filter((p) => !extraPresets.includes(p.id))
@@ -174,11 +264,20 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                     Show the recorded and edited curves again
                   </Button>
                 ) : null}
-                <p className="text-xs text-ink-faint">Up to {MAX_CANDIDATES} curves. Presets are shown at the choice&apos;s speeds.</p>
+                <p className="text-xs text-ink-faint">
+                  Up to {MAX_CANDIDATES} curves. Presets are shown at the choice&apos;s speeds.
+                </p>
               </div>
               {candidates.length ? <ResponsePlot curves={candidates} height={300} showPhase={false} /> : null}
               <div className="border-t border-paper-edge pt-5">
-                <AuditionPanel transfer={auditioned} candidates={candidates} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} onRecord={canChoose ? recordFromListening : undefined} />
+                <AuditionPanel
+                  transfer={auditioned}
+                  candidates={candidates}
+                  channelMode={channelMode}
+                  onChannelMode={setModeChoice}
+                  channelWhy={channelWhy}
+                  onRecord={canChoose ? recordFromListening : undefined}
+                />
               </div>
             </div>
           </Panel>
@@ -193,15 +292,30 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
                 <div className="space-y-4">
                   {!s.currentTransferId ? (
                     <p className="rounded-md bg-paper-deep/60 px-3 py-2 text-xs text-ink-soft">
-                      No flat transfer yet. You may record a curve now (from published guidance for the label, say); the transfer does not wait for it, and you can still change the curve after listening.
+                      No flat transfer yet. You may record a curve now (from published guidance for the label,
+                      say); the transfer does not wait for it, and you can still change the curve after
+                      listening.
                     </p>
                   ) : null}
-                  <CurveChoiceForm key={current?.id ?? "none"} data={data} current={current} extraSideIds={extraSideIds} onEffectiveSpec={onEffectiveSpec} prefill={prefill && prefill.against === (current?.id ?? null) ? prefill : null} />
+                  <CurveChoiceForm
+                    key={current?.id ?? "none"}
+                    data={data}
+                    current={current}
+                    extraSideIds={extraSideIds}
+                    onEffectiveSpec={onEffectiveSpec}
+                    prefill={prefill && prefill.against === (current?.id ?? null) ? prefill : null}
+                  />
                 </div>
               ) : (
                 // The server refuses a new choice here; the recorded one stands below.
-                <Notice tone="info" title={`${statusLabels[s.status]}: the curve is settled`} testId="choice-locked">
-                  {s.status === "in_review" ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it." : "This side's curve can no longer change."}
+                <Notice
+                  tone="info"
+                  title={`${statusLabels[s.status]}: the curve is settled`}
+                  testId="choice-locked"
+                >
+                  {s.status === "in_review"
+                    ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it."
+                    : "This side's curve can no longer change."}
                 </Notice>
               )}
             </Panel>
@@ -230,7 +344,13 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
               <h3 id={`${uid}-ab`} className="font-sans text-sm font-semibold">
                 Hear the access copy against the flat transfer through the chosen curve
               </h3>
-              <AccessCopyCompare key={currentRender.id} render={currentRender} transfer={newest} spec={current.spec} curveLabel={curveChoiceName(current)} />
+              <AccessCopyCompare
+                key={currentRender.id}
+                render={currentRender}
+                transfer={newest}
+                spec={current.spec}
+                curveLabel={curveChoiceName(current)}
+              />
             </section>
           ) : null}
         </div>
@@ -238,4 +358,3 @@ export function BenchView({ sideId, userId, extraSideIds }: { sideId: string; us
     </div>
   );
 }
-

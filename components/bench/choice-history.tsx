@@ -12,17 +12,37 @@ export function curveTitle(c: CurveChoiceJson): string {
 }
 
 /** Every curve recorded for the side, newest first: the first is the one a render uses. */
-export function ChoiceHistory({ choices, loading }: { choices: CurveChoiceJson[] | undefined; loading: boolean }) {
+export function ChoiceHistory({
+  choices,
+  loading,
+}: {
+  choices: CurveChoiceJson[] | undefined;
+  loading: boolean;
+}) {
   if (loading) return <p className="text-sm text-ink-faint">Loading…</p>;
-  if (!choices?.length) return <p className="text-sm text-ink-faint" data-testid="choice-history-empty">No curve recorded for this side yet.</p>;
+  if (!choices?.length)
+    return (
+      <p className="text-sm text-ink-faint" data-testid="choice-history-empty">
+        No curve recorded for this side yet.
+      </p>
+    );
   return (
     <ol className="space-y-3" data-testid="choice-history">
       {choices.map((c, i) => {
         return (
-          <li key={c.id} className={i === 0 ? "rounded-lg border border-groove/40 bg-groove-wash/40 p-3" : "rounded-lg border border-paper-edge p-3"}>
+          <li
+            key={c.id}
+            className={
+              i === 0
+                ? "rounded-lg border border-groove/40 bg-groove-wash/40 p-3"
+                : "rounded-lg border border-paper-edge p-3"
+            }
+          >
             <div className="flex flex-wrap items-center gap-2">
               {i === 0 ? <Badge tone="groove">Current</Badge> : null}
-              <span className="font-semibold" data-testid="choice-name">{curveTitle(c)}</span>
+              <span className="font-semibold" data-testid="choice-name">
+                {curveTitle(c)}
+              </span>
               {c.cutSpeedRpm !== c.transferSpeedRpm ? (
                 <span className="font-mono text-xs text-ink-soft">
                   {formatNumber(c.transferSpeedRpm)}/{formatNumber(c.cutSpeedRpm)} rpm

@@ -14,7 +14,15 @@ import { cx } from "@/components/ui/cx";
 import { FieldShell, SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { usePresets, usePresetVersions } from "@/hooks/use-presets";
-import { type CornerInput, type CornerName, CurveError, type CurveSpec, formatCorner, mergeCurve, resolveCurve } from "@/lib/curves";
+import {
+  type CornerInput,
+  type CornerName,
+  CurveError,
+  type CurveSpec,
+  formatCorner,
+  mergeCurve,
+  resolveCurve,
+} from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { AppError } from "@/lib/http/errors";
 import { evidenceKinds, evidenceLabels } from "@/lib/validation/transfers";
@@ -34,17 +42,27 @@ const CORNERS: { name: CornerName; title: string; units: CornerInput["unit"][] }
   { name: "highpass", title: "Rumble high-pass", units: ["hz", "us"] },
   { name: "ultrasonic", title: "Ultrasonic zero", units: ["hz", "us"] },
 ];
-const UNIT_TEXT: Record<CornerInput["unit"], string> = { hz: "Hz", us: "µs", db10k: "dB attenuation at 10 kHz" };
+const UNIT_TEXT: Record<CornerInput["unit"], string> = {
+  hz: "Hz",
+  us: "µs",
+  db10k: "dB attenuation at 10 kHz",
+};
 
 const blankCorners = (): Record<CornerName, CornerDraft> =>
-  Object.fromEntries(CORNERS.map((c) => [c.name, { mode: "keep", unit: c.units[0], text: "" }])) as Record<CornerName, CornerDraft>;
+  Object.fromEntries(CORNERS.map((c) => [c.name, { mode: "keep", unit: c.units[0], text: "" }])) as Record<
+    CornerName,
+    CornerDraft
+  >;
 
 /** "318 µs (500.5 Hz)" — a corner as the preset gives it, written as everywhere else (lib/curves formatCorner). */
 export function describeCorner(c: CornerInput | null | undefined): string {
   return formatCorner(c);
 }
 
-function overridesOf(corners: Record<CornerName, CornerDraft>, ref: { on: boolean; hz: string; db: string }): Partial<CurveSpec> {
+function overridesOf(
+  corners: Record<CornerName, CornerDraft>,
+  ref: { on: boolean; hz: string; db: string },
+): Partial<CurveSpec> {
   const out: Partial<CurveSpec> = {};
   for (const c of CORNERS) {
     const d = corners[c.name];
@@ -99,7 +117,11 @@ export function CurveChoiceForm({
   const [presetId, setPresetId] = useState(current?.presetId ?? "");
   const [version, setVersion] = useState<number | null>(current?.presetVersion ?? null);
   const [corners, setCorners] = useState(() => draftsFrom(current?.overrides ?? {}));
-  const [ref, setRef] = useState(() => ({ on: !!current?.overrides.reference, hz: String(current?.overrides.reference?.hz ?? 1000), db: String(current?.overrides.reference?.db ?? 0) }));
+  const [ref, setRef] = useState(() => ({
+    on: !!current?.overrides.reference,
+    hz: String(current?.overrides.reference?.hz ?? 1000),
+    db: String(current?.overrides.reference?.db ?? 0),
+  }));
   const [cutRpm, setCutRpm] = useState(String(current?.cutSpeedRpm ?? disc.nominalSpeedRpm));
   const [transferRpm, setTransferRpm] = useState(String(current?.transferSpeedRpm ?? disc.nominalSpeedRpm));
   const [rationale, setRationale] = useState("");
@@ -107,7 +129,10 @@ export function CurveChoiceForm({
   const [evidence, setEvidence] = useState("");
   const [applyTo, setApplyTo] = useState<"side" | "disc" | "set">(extraSideIds.length ? "set" : "side");
   const [busy, setBusy] = useState(false);
-  const [serverError, setServerError] = useState<{ message: string; fields: Record<string, string[]> } | null>(null);
+  const [serverError, setServerError] = useState<{
+    message: string;
+    fields: Record<string, string[]>;
+  } | null>(null);
   const [saved, setSaved] = useState<string | null>(null);
 
   // A pick from the listening panel: the curve heard, evidence "listening", and what was compared (editable).
@@ -117,7 +142,11 @@ export function CurveChoiceForm({
       setPresetId(prefill.preset.id);
       setVersion(prefill.preset.version);
       setCorners(draftsFrom(prefill.overrides ?? {}));
-      setRef({ on: !!prefill.overrides?.reference, hz: String(prefill.overrides?.reference?.hz ?? 1000), db: String(prefill.overrides?.reference?.db ?? 0) });
+      setRef({
+        on: !!prefill.overrides?.reference,
+        hz: String(prefill.overrides?.reference?.hz ?? 1000),
+        db: String(prefill.overrides?.reference?.db ?? 0),
+      });
     }
     setEvidenceKind("listening");
     setEvidence(prefill.evidence);
@@ -153,7 +182,12 @@ export function CurveChoiceForm({
   const errorFor = (p: string) => (effective.error?.parameter === p ? effective.error.message : null);
   const fieldErr = (k: string) => serverError?.fields[k];
 
-  const sideIds = applyTo === "side" ? [side.id] : applyTo === "disc" ? disc.sides.map((s) => s.id) : Array.from(new Set([side.id, ...extraSideIds]));
+  const sideIds =
+    applyTo === "side"
+      ? [side.id]
+      : applyTo === "disc"
+        ? disc.sides.map((s) => s.id)
+        : Array.from(new Set([side.id, ...extraSideIds]));
 
   const submit = async () => {
     setBusy(true);
@@ -170,11 +204,15 @@ export function CurveChoiceForm({
         evidenceKind: evidenceKind || undefined,
         evidence,
       };
-      const r = await fetchJson<{ choices: unknown[] }>("/api/curve-choices", { method: "POST", body: JSON.stringify(body) });
+      const r = await fetchJson<{ choices: unknown[] }>("/api/curve-choices", {
+        method: "POST",
+        body: JSON.stringify(body),
+      });
       setSaved(`Recorded for ${r.choices.length === 1 ? "this side" : `${r.choices.length} sides`}.`);
       setRationale("");
       setEvidence("");
-      for (const key of [["curve-choices", side.id], ["side", side.id], ["queue"]]) void queryClient.invalidateQueries({ queryKey: key });
+      for (const key of [["curve-choices", side.id], ["side", side.id], ["queue"]])
+        void queryClient.invalidateQueries({ queryKey: key });
     } catch (err) {
       if (err instanceof AppError) setServerError({ message: err.message, fields: err.fields ?? {} });
       else setServerError({ message: String(err), fields: {} });
@@ -214,9 +252,18 @@ export function CurveChoiceForm({
             </option>
           ))}
         </SelectField>
-        <SelectField id={`${uid}-version`} label="Version" value={chosenVersion ?? ""} disabled={!preset} data-testid="choice-version" onChange={(e) => setVersion(Number(e.target.value))}>
+        <SelectField
+          id={`${uid}-version`}
+          label="Version"
+          value={chosenVersion ?? ""}
+          disabled={!preset}
+          data-testid="choice-version"
+          onChange={(e) => setVersion(Number(e.target.value))}
+        >
           {!preset ? <option value="">—</option> : null}
-          {preset && !versions.data ? <option value={preset.currentVersion}>v{preset.currentVersion}</option> : null}
+          {preset && !versions.data ? (
+            <option value={preset.currentVersion}>v{preset.currentVersion}</option>
+          ) : null}
           {versions.data?.versions.map((v) => (
             <option key={v.version} value={v.version}>
               v{v.version}
@@ -228,14 +275,24 @@ export function CurveChoiceForm({
 
       <fieldset className="space-y-2">
         <legend className="text-sm font-medium text-ink">Corners for these sides</legend>
-        <p className="text-xs text-ink-faint">Keep the preset&apos;s value, give another, or take the corner out. Values are at cut speed.</p>
+        <p className="text-xs text-ink-faint">
+          Keep the preset&apos;s value, give another, or take the corner out. Values are at cut speed.
+        </p>
         {CORNERS.map((c) => {
           const d = corners[c.name];
           const base = presetSpec?.[c.name];
           const err = errorFor(c.name);
-          const set = (patch: Partial<CornerDraft>) => setCorners((all) => ({ ...all, [c.name]: { ...all[c.name], ...patch } }));
+          const set = (patch: Partial<CornerDraft>) =>
+            setCorners((all) => ({ ...all, [c.name]: { ...all[c.name], ...patch } }));
           return (
-            <div key={c.name} className={cx("rounded-lg border px-3 py-2", d.mode === "keep" ? "border-paper-edge/80 bg-paper/40" : "border-groove/40 bg-white")} data-testid={`override-${c.name}`}>
+            <div
+              key={c.name}
+              className={cx(
+                "rounded-lg border px-3 py-2",
+                d.mode === "keep" ? "border-paper-edge/80 bg-paper/40" : "border-groove/40 bg-white",
+              )}
+              data-testid={`override-${c.name}`}
+            >
               <div className="flex flex-wrap items-center justify-between gap-2">
                 <label htmlFor={`${uid}-${c.name}-mode`} className="text-sm font-semibold text-ink">
                   {c.title}
@@ -246,7 +303,8 @@ export function CurveChoiceForm({
                   onChange={(e) => {
                     const mode = e.target.value as Mode;
                     // Start a new value from the preset's, in the unit it was given in.
-                    if (mode === "set" && d.text === "" && base) set({ mode, unit: base.unit, text: String(base.value) });
+                    if (mode === "set" && d.text === "" && base)
+                      set({ mode, unit: base.unit, text: String(base.value) });
                     else set({ mode });
                   }}
                   className="h-8 rounded-md border border-paper-edge bg-white px-2 text-xs"
@@ -258,7 +316,9 @@ export function CurveChoiceForm({
                 </select>
               </div>
               {d.mode === "keep" ? (
-                <p className="mt-0.5 font-mono text-xs text-ink-soft">{preset ? describeCorner(base) : "—"}</p>
+                <p className="mt-0.5 font-mono text-xs text-ink-soft">
+                  {preset ? describeCorner(base) : "—"}
+                </p>
               ) : d.mode === "remove" ? (
                 <p className="mt-0.5 text-xs text-ink-soft">Left out of the curve for these sides.</p>
               ) : (
@@ -271,10 +331,18 @@ export function CurveChoiceForm({
                     aria-invalid={err ? true : undefined}
                     value={d.text}
                     onChange={(e) => set({ text: e.target.value })}
-                    className={cx("h-8 rounded-md border bg-white px-2 font-mono text-sm", err ? "border-alarm" : "border-paper-edge")}
+                    className={cx(
+                      "h-8 rounded-md border bg-white px-2 font-mono text-sm",
+                      err ? "border-alarm" : "border-paper-edge",
+                    )}
                     data-testid={`override-${c.name}-value`}
                   />
-                  <select aria-label={`${c.title} unit`} value={d.unit} onChange={(e) => set({ unit: e.target.value as CornerInput["unit"] })} className="h-8 rounded-md border border-paper-edge bg-white px-2 text-xs">
+                  <select
+                    aria-label={`${c.title} unit`}
+                    value={d.unit}
+                    onChange={(e) => set({ unit: e.target.value as CornerInput["unit"] })}
+                    className="h-8 rounded-md border border-paper-edge bg-white px-2 text-xs"
+                  >
                     {c.units.map((u) => (
                       <option key={u} value={u}>
                         {UNIT_TEXT[u]}
@@ -284,23 +352,53 @@ export function CurveChoiceForm({
                 </div>
               )}
               {err ? (
-                <p role="alert" className="mt-1 text-xs font-medium text-alarm" data-testid={`choice-error-${c.name}`}>
+                <p
+                  role="alert"
+                  className="mt-1 text-xs font-medium text-alarm"
+                  data-testid={`choice-error-${c.name}`}
+                >
                   {err}
                 </p>
               ) : null}
             </div>
           );
         })}
-        <div className={cx("rounded-lg border px-3 py-2", ref.on ? "border-groove/40 bg-white" : "border-paper-edge/80 bg-paper/40")}>
+        <div
+          className={cx(
+            "rounded-lg border px-3 py-2",
+            ref.on ? "border-groove/40 bg-white" : "border-paper-edge/80 bg-paper/40",
+          )}
+        >
           <label className="flex items-center gap-2 text-sm font-semibold text-ink">
-            <input type="checkbox" checked={ref.on} onChange={(e) => setRef({ ...ref, on: e.target.checked })} className="h-4 w-4 accent-[#2f6f6a]" />
+            <input
+              type="checkbox"
+              checked={ref.on}
+              onChange={(e) => setRef({ ...ref, on: e.target.checked })}
+              className="h-4 w-4 accent-[#2f6f6a]"
+            />
             Another level reference
           </label>
-          <p className="text-xs text-ink-faint">{ref.on ? "The curve passes through this gain at this frequency." : `As the preset: ${presetSpec?.reference ? `${presetSpec.reference.db} dB at ${presetSpec.reference.hz} Hz` : "0 dB at 1 kHz"}.`}</p>
+          <p className="text-xs text-ink-faint">
+            {ref.on
+              ? "The curve passes through this gain at this frequency."
+              : `As the preset: ${presetSpec?.reference ? `${presetSpec.reference.db} dB at ${presetSpec.reference.hz} Hz` : "0 dB at 1 kHz"}.`}
+          </p>
           {ref.on ? (
             <div className="mt-1.5 grid grid-cols-2 gap-2">
-              <TextField id={`${uid}-ref-hz`} label="Frequency (Hz)" value={ref.hz} onChange={(e) => setRef({ ...ref, hz: e.target.value })} inputMode="decimal" />
-              <TextField id={`${uid}-ref-db`} label="Gain (dB)" value={ref.db} onChange={(e) => setRef({ ...ref, db: e.target.value })} inputMode="decimal" />
+              <TextField
+                id={`${uid}-ref-hz`}
+                label="Frequency (Hz)"
+                value={ref.hz}
+                onChange={(e) => setRef({ ...ref, hz: e.target.value })}
+                inputMode="decimal"
+              />
+              <TextField
+                id={`${uid}-ref-db`}
+                label="Gain (dB)"
+                value={ref.db}
+                onChange={(e) => setRef({ ...ref, db: e.target.value })}
+                inputMode="decimal"
+              />
             </div>
           ) : null}
           {errorFor("reference") || errorFor("reference.hz") || errorFor("reference.db") ? (
@@ -309,7 +407,10 @@ export function CurveChoiceForm({
             </p>
           ) : null}
         </div>
-        {effective.error && !CORNERS.some((c) => c.name === effective.error!.parameter) && !effective.error.parameter.startsWith("reference") && effective.error.parameter !== "speedRatio" ? (
+        {effective.error &&
+        !CORNERS.some((c) => c.name === effective.error!.parameter) &&
+        !effective.error.parameter.startsWith("reference") &&
+        effective.error.parameter !== "speedRatio" ? (
           <p role="alert" className="text-xs font-medium text-alarm">
             {effective.error.message}
           </p>
@@ -324,13 +425,32 @@ export function CurveChoiceForm({
       <fieldset className="space-y-2">
         <legend className="text-sm font-medium text-ink">Speed</legend>
         <div className="grid grid-cols-[1fr_1fr_auto] items-end gap-3">
-          <TextField id={`${uid}-cut`} label="Cut at (rpm)" value={cutRpm} inputMode="decimal" onChange={(e) => setCutRpm(e.target.value)} errors={fieldErr("cutSpeedRpm")} data-testid="choice-cut-rpm" />
-          <TextField id={`${uid}-transfer`} label="Transferred at (rpm)" value={transferRpm} inputMode="decimal" onChange={(e) => setTransferRpm(e.target.value)} errors={fieldErr("transferSpeedRpm")} data-testid="choice-transfer-rpm" />
+          <TextField
+            id={`${uid}-cut`}
+            label="Cut at (rpm)"
+            value={cutRpm}
+            inputMode="decimal"
+            onChange={(e) => setCutRpm(e.target.value)}
+            errors={fieldErr("cutSpeedRpm")}
+            data-testid="choice-cut-rpm"
+          />
+          <TextField
+            id={`${uid}-transfer`}
+            label="Transferred at (rpm)"
+            value={transferRpm}
+            inputMode="decimal"
+            onChange={(e) => setTransferRpm(e.target.value)}
+            errors={fieldErr("transferSpeedRpm")}
+            data-testid="choice-transfer-rpm"
+          />
           <output className="pb-2 font-mono text-sm" aria-label="Speed ratio">
             ×{Number.isFinite(ratio) ? ratio.toFixed(4) : "—"}
           </output>
         </div>
-        <p className="text-xs text-ink-faint">The disc is logged at {formatNumber(disc.nominalSpeedRpm)} rpm. Played at another speed than it was cut, every corner moves by transfer ÷ cut.</p>
+        <p className="text-xs text-ink-faint">
+          The disc is logged at {formatNumber(disc.nominalSpeedRpm)} rpm. Played at another speed than it was
+          cut, every corner moves by transfer ÷ cut.
+        </p>
         {errorFor("speedRatio") ? (
           <p role="alert" className="text-xs font-medium text-alarm">
             {errorFor("speedRatio")}
@@ -338,18 +458,33 @@ export function CurveChoiceForm({
         ) : null}
       </fieldset>
 
-      <FieldShell id={`${uid}-rationale`} label="Why this curve" errors={fieldErr("rationale")} hint="At least a sentence: what you heard, read or measured.">
+      <FieldShell
+        id={`${uid}-rationale`}
+        label="Why this curve"
+        errors={fieldErr("rationale")}
+        hint="At least a sentence: what you heard, read or measured."
+      >
         <textarea
           id={`${uid}-rationale`}
           value={rationale}
           onChange={(e) => setRationale(e.target.value)}
           rows={3}
           aria-invalid={fieldErr("rationale") ? true : undefined}
-          className={cx("block w-full rounded-md border bg-white px-3 py-2 text-sm", fieldErr("rationale") ? "border-alarm" : "border-paper-edge")}
+          className={cx(
+            "block w-full rounded-md border bg-white px-3 py-2 text-sm",
+            fieldErr("rationale") ? "border-alarm" : "border-paper-edge",
+          )}
           data-testid="choice-rationale"
         />
       </FieldShell>
-      <SelectField id={`${uid}-evidence-kind`} label="It rests on" value={evidenceKind} onChange={(e) => setEvidenceKind(e.target.value as EvidenceKind)} errors={fieldErr("evidenceKind")} data-testid="choice-evidence-kind">
+      <SelectField
+        id={`${uid}-evidence-kind`}
+        label="It rests on"
+        value={evidenceKind}
+        onChange={(e) => setEvidenceKind(e.target.value as EvidenceKind)}
+        errors={fieldErr("evidenceKind")}
+        data-testid="choice-evidence-kind"
+      >
         <option value="">Choose…</option>
         {evidenceKinds.map((k) => (
           <option key={k} value={k}>
@@ -357,29 +492,64 @@ export function CurveChoiceForm({
           </option>
         ))}
       </SelectField>
-      <FieldShell id={`${uid}-evidence`} label="Evidence (optional)" hint="A citation, the test disc and its measurement, the sleeve note…" errors={fieldErr("evidence")}>
-        <textarea id={`${uid}-evidence`} value={evidence} onChange={(e) => setEvidence(e.target.value)} rows={2} className="block w-full rounded-md border border-paper-edge bg-white px-3 py-2 text-sm" data-testid="choice-evidence" />
+      <FieldShell
+        id={`${uid}-evidence`}
+        label="Evidence (optional)"
+        hint="A citation, the test disc and its measurement, the sleeve note…"
+        errors={fieldErr("evidence")}
+      >
+        <textarea
+          id={`${uid}-evidence`}
+          value={evidence}
+          onChange={(e) => setEvidence(e.target.value)}
+          rows={2}
+          className="block w-full rounded-md border border-paper-edge bg-white px-3 py-2 text-sm"
+          data-testid="choice-evidence"
+        />
       </FieldShell>
 
       <fieldset className="space-y-1.5">
         <legend className="text-sm font-medium text-ink">Apply to</legend>
         <label className="flex items-center gap-2 text-sm">
-          <input type="radio" name={`${uid}-apply`} checked={applyTo === "side"} onChange={() => setApplyTo("side")} className="accent-[#2f6f6a]" data-testid="apply-side" />
+          <input
+            type="radio"
+            name={`${uid}-apply`}
+            checked={applyTo === "side"}
+            onChange={() => setApplyTo("side")}
+            className="accent-[#2f6f6a]"
+            data-testid="apply-side"
+          />
           This side ({side.designation})
         </label>
         {otherSides.length ? (
           <label className="flex items-center gap-2 text-sm">
-            <input type="radio" name={`${uid}-apply`} checked={applyTo === "disc"} onChange={() => setApplyTo("disc")} className="accent-[#2f6f6a]" data-testid="apply-disc" />
+            <input
+              type="radio"
+              name={`${uid}-apply`}
+              checked={applyTo === "disc"}
+              onChange={() => setApplyTo("disc")}
+              className="accent-[#2f6f6a]"
+              data-testid="apply-disc"
+            />
             Every side of this disc ({disc.sides.map((s) => s.designation).join(", ")})
           </label>
         ) : null}
         {extraSideIds.length ? (
           <label className="flex items-center gap-2 text-sm">
-            <input type="radio" name={`${uid}-apply`} checked={applyTo === "set"} onChange={() => setApplyTo("set")} className="accent-[#2f6f6a]" data-testid="apply-set" />
+            <input
+              type="radio"
+              name={`${uid}-apply`}
+              checked={applyTo === "set"}
+              onChange={() => setApplyTo("set")}
+              className="accent-[#2f6f6a]"
+              data-testid="apply-set"
+            />
             The {new Set([side.id, ...extraSideIds]).size} sides picked in the catalogue
           </label>
         ) : null}
-        {fieldErr("sideIds") ? <p className="text-xs font-medium text-alarm">{fieldErr("sideIds")!.join(" ")}</p> : null}
+        {fieldErr("sideIds") ? (
+          <p className="text-xs font-medium text-alarm">{fieldErr("sideIds")!.join(" ")}</p>
+        ) : null}
       </fieldset>
 
       {serverError ? (

@@ -10,7 +10,10 @@ export function FileFact({ k, v, wide }: { k: string; v: string; wide?: boolean 
 
 export function Sha256Line({ value, testId }: { value: string | null; testId: string }) {
   return (
-    <p className="mt-2 break-all rounded bg-paper/70 px-2 py-1 font-mono text-[0.7rem] text-ink-soft" data-testid={testId}>
+    <p
+      className="mt-2 break-all rounded bg-paper/70 px-2 py-1 font-mono text-[0.7rem] text-ink-soft"
+      data-testid={testId}
+    >
       <span className="font-sans font-medium text-ink">SHA-256 </span>
       {value ?? "—"}
     </p>

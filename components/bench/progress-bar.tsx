@@ -1,7 +1,19 @@
 import { cx } from "@/components/ui/cx";
 
 /** A labelled progress bar: the fraction in words beside the bar, for screen readers and at a glance. */
-export function ProgressBar({ value, label, detail, tone = "groove", testId }: { value: number; label: string; detail?: string; tone?: "groove" | "shellac" | "alarm"; testId?: string }) {
+export function ProgressBar({
+  value,
+  label,
+  detail,
+  tone = "groove",
+  testId,
+}: {
+  value: number;
+  label: string;
+  detail?: string;
+  tone?: "groove" | "shellac" | "alarm";
+  testId?: string;
+}) {
   const pct = Math.max(0, Math.min(100, Math.round(value * 100)));
   return (
     <div className="space-y-1" data-testid={testId}>
@@ -11,8 +23,21 @@ export function ProgressBar({ value, label, detail, tone = "groove", testId }: {
           {pct} %{detail ? <span className="text-ink-faint"> · {detail}</span> : null}
         </span>
       </div>
-      <div role="progressbar" aria-label={label} aria-valuemin={0} aria-valuemax={100} aria-valuenow={pct} className="h-2.5 overflow-hidden rounded-full bg-paper-deep">
-        <div className={cx("h-full rounded-full transition-[width] duration-200", tone === "groove" ? "bg-groove" : tone === "shellac" ? "bg-shellac" : "bg-alarm")} style={{ width: `${pct}%` }} />
+      <div
+        role="progressbar"
+        aria-label={label}
+        aria-valuemin={0}
+        aria-valuemax={100}
+        aria-valuenow={pct}
+        className="h-2.5 overflow-hidden rounded-full bg-paper-deep"
+      >
+        <div
+          className={cx(
+            "h-full rounded-full transition-[width] duration-200",
+            tone === "groove" ? "bg-groove" : tone === "shellac" ? "bg-shellac" : "bg-alarm",
+          )}
+          style={{ width: `${pct}%` }}
+        />
       </div>
     </div>
   );

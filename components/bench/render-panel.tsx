@@ -19,8 +19,20 @@ import { accessCopyRates, channelModeLabels, renderableStatuses } from "@/lib/va
 import { formatBytes, ProgressBar } from "./progress-bar";
 import type { ChannelMode, RenderJson } from "./types";
 
-const statusTone = { queued: "neutral", running: "accent", done: "ok", failed: "alarm", cancelled: "neutral" } as const;
-const statusWords = { queued: "Queued", running: "Rendering", done: "Done", failed: "Failed", cancelled: "Cancelled" } as const;
+const statusTone = {
+  queued: "neutral",
+  running: "accent",
+  done: "ok",
+  failed: "alarm",
+  cancelled: "neutral",
+} as const;
+const statusWords = {
+  queued: "Queued",
+  running: "Rendering",
+  done: "Done",
+  failed: "Failed",
+  cancelled: "Cancelled",
+} as const;
 
 export function RenderPanel({
   sideId,
@@ -58,7 +70,8 @@ export function RenderPanel({
     queryKey: ["renders", sideId],
     queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`),
     // Poll every second while the worker has one in hand.
-    refetchInterval: (q) => (q.state.data?.renders.some((r) => r.status === "queued" || r.status === "running") ? 1000 : false),
+    refetchInterval: (q) =>
+      q.state.data?.renders.some((r) => r.status === "queued" || r.status === "running") ? 1000 : false,
   });
   const list = renders.data?.renders ?? [];
   const busyRender = list.some((r) => r.status === "queued" || r.status === "running");
@@ -72,7 +85,10 @@ export function RenderPanel({
     setBusy(true);
     setError(null);
     try {
-      await fetchJson("/api/renders", { method: "POST", body: JSON.stringify({ sideId, channelMode, bitDepth, sampleRateHz }) });
+      await fetchJson("/api/renders", {
+        method: "POST",
+        body: JSON.stringify({ sideId, channelMode, bitDepth, sampleRateHz }),
+      });
       await queryClient.invalidateQueries({ queryKey: ["renders", sideId] });
     } catch (err) {
       setError(err instanceof Error ? err.message : String(err));
@@ -96,7 +112,10 @@ export function RenderPanel({
     setBusy(true);
     setError(null);
     try {
-      await fetchJson(`/api/sides/${sideId}/transition`, { method: "POST", body: JSON.stringify({ to: "in_review" }) });
+      await fetchJson(`/api/sides/${sideId}/transition`, {
+        method: "POST",
+        body: JSON.stringify({ to: "in_review" }),
+      });
       for (const key of [["side", sideId], ["queue"]]) await queryClient.invalidateQueries({ queryKey: key });
     } catch (err) {
       setError(err instanceof Error ? err.message : String(err));
@@ -107,20 +126,37 @@ export function RenderPanel({
 
   const ready = renderableStatuses.has(sideStatus);
   const waiting =
-    sideStatus === "assigned" ? "An access copy is rendered once the flat transfer is in and a curve is recorded." : sideStatus === "transferred" ? "Record the curve (step 3) before rendering." : null;
+    sideStatus === "assigned"
+      ? "An access copy is rendered once the flat transfer is in and a curve is recorded."
+      : sideStatus === "transferred"
+        ? "Record the curve (step 3) before rendering."
+        : null;
   const modes: ChannelMode[] = channels === 1 ? ["both"] : (Object.keys(channelModeLabels) as ChannelMode[]);
   return (
     <div className="space-y-4" data-testid="render-panel">
       {!ready && waiting ? <Notice tone="info">{waiting}</Notice> : null}
       <div className="grid gap-3 sm:grid-cols-[minmax(0,1fr)_10rem_auto] sm:items-end">
-        <SelectField id={`${uid}-mode`} label="Channels" value={channelMode} onChange={(e) => onChannelMode(e.target.value as ChannelMode)} data-testid="render-channel-mode" hint={channelWhy}>
+        <SelectField
+          id={`${uid}-mode`}
+          label="Channels"
+          value={channelMode}
+          onChange={(e) => onChannelMode(e.target.value as ChannelMode)}
+          data-testid="render-channel-mode"
+          hint={channelWhy}
+        >
           {modes.map((m) => (
             <option key={m} value={m}>
               {channelModeLabels[m]}
             </option>
           ))}
         </SelectField>
-        <SelectField id={`${uid}-bits`} label="Word length" value={bitDepth} onChange={(e) => setBitDepth(Number(e.target.value) as 16 | 24)} data-testid="render-bit-depth">
+        <SelectField
+          id={`${uid}-bits`}
+          label="Word length"
+          value={bitDepth}
+          onChange={(e) => setBitDepth(Number(e.target.value) as 16 | 24)}
+          data-testid="render-bit-depth"
+        >
           <option value={24}>24-bit</option>
           <option value={16}>16-bit</option>
         </SelectField>
@@ -131,7 +167,9 @@ export function RenderPanel({
           onChange={(e) => setRate(e.target.value === "transfer" ? "transfer" : Number(e.target.value))}
           data-testid="render-rate"
         >
-          <option value="transfer">As the transfer{transferRateHz ? ` (${transferRateHz / 1000} kHz)` : ""}</option>
+          <option value="transfer">
+            As the transfer{transferRateHz ? ` (${transferRateHz / 1000} kHz)` : ""}
+          </option>
           {accessCopyRates
             .filter((r) => r !== transferRateHz)
             .map((r) => (
@@ -141,7 +179,12 @@ export function RenderPanel({
             ))}
         </SelectField>
         <div className="pb-[1.4rem]">
-          <Button type="button" onClick={() => void request()} disabled={!ready || busy || busyRender || !canRender} data-testid="render-start">
+          <Button
+            type="button"
+            onClick={() => void request()}
+            disabled={!ready || busy || busyRender || !canRender}
+            data-testid="render-start"
+          >
             Render access copy
           </Button>
         </div>
@@ -155,12 +198,31 @@ export function RenderPanel({
       {list.length ? (
         <ul className="space-y-2" data-testid="render-list">
           {list.map((r) => (
-            <li key={r.id} className="rounded-lg border border-paper-edge bg-white p-3" data-testid="render-row" data-status={r.status}>
+            <li
+              key={r.id}
+              className="rounded-lg border border-paper-edge bg-white p-3"
+              data-testid="render-row"
+              data-status={r.status}
+            >
               <div className="flex flex-wrap items-center justify-between gap-2">
                 <div className="flex flex-wrap items-center gap-2 text-sm">
-                  {r.stalled ? <Badge tone="alarm" testId="render-stalled">Stalled</Badge> : <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>}
-                  {r.status === "done" && r.current ? <Badge tone="groove" testId="render-current">The access copy</Badge> : null}
-                  {r.supersededAt ? <Badge tone="neutral" testId="render-superseded">Superseded</Badge> : null}
+                  {r.stalled ? (
+                    <Badge tone="alarm" testId="render-stalled">
+                      Stalled
+                    </Badge>
+                  ) : (
+                    <Badge tone={statusTone[r.status]}>{statusWords[r.status]}</Badge>
+                  )}
+                  {r.status === "done" && r.current ? (
+                    <Badge tone="groove" testId="render-current">
+                      The access copy
+                    </Badge>
+                  ) : null}
+                  {r.supersededAt ? (
+                    <Badge tone="neutral" testId="render-superseded">
+                      Superseded
+                    </Badge>
+                  ) : null}
                   <span>{channelModeLabels[r.channelMode] ?? r.channelMode}</span>
                   <span className="font-mono text-xs text-ink-soft">
                     {r.bitDepth}-bit{r.sampleRateHz ? ` · ${r.sampleRateHz / 1000} kHz` : ""}
@@ -170,32 +232,70 @@ export function RenderPanel({
                   </span>
                 </div>
                 {r.status === "done" ? (
-                  <a href={`/api/renders/${r.id}/download`} className="inline-flex h-8 items-center rounded-md border border-paper-edge bg-white px-3 text-sm font-medium hover:border-ink-faint" data-testid="render-download">
+                  <a
+                    href={`/api/renders/${r.id}/download`}
+                    className="inline-flex h-8 items-center rounded-md border border-paper-edge bg-white px-3 text-sm font-medium hover:border-ink-faint"
+                    data-testid="render-download"
+                  >
                     {r.current ? "Download access copy" : "Download (superseded)"}
                   </a>
                 ) : null}
               </div>
-              {r.status === "queued" || r.status === "running" ? <div className="mt-2"><ProgressBar value={r.progress} label={r.status === "queued" ? "Waiting for the worker" : "Rendering"} testId="render-progress" /></div> : null}
+              {r.status === "queued" || r.status === "running" ? (
+                <div className="mt-2">
+                  <ProgressBar
+                    value={r.progress}
+                    label={r.status === "queued" ? "Waiting for the worker" : "Rendering"}
+                    testId="render-progress"
+                  />
+                </div>
+              ) : null}
               {r.status === "done" ? (
                 <p className="mt-1.5 font-mono text-xs text-ink-soft">
-                  {r.bytes ? formatBytes(Number(r.bytes)) : ""} · trim {r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · peak {r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}
+                  {r.bytes ? formatBytes(Number(r.bytes)) : ""} · trim{" "}
+                  {r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · peak{" "}
+                  {r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}
                   <span className="block break-all">SHA-256 {r.sha256}</span>
                 </p>
               ) : null}
-              {(r.status === "failed" || r.status === "cancelled") && r.error ? <p className="mt-1.5 text-xs text-alarm">{r.error}</p> : null}
+              {(r.status === "failed" || r.status === "cancelled") && r.error ? (
+                <p className="mt-1.5 text-xs text-alarm">{r.error}</p>
+              ) : null}
               {r.stalled ? (
-                <div className="mt-2 flex flex-wrap items-center justify-between gap-2 rounded-md border border-alarm/30 bg-alarm-wash px-3 py-2" data-testid="render-stalled-notice">
-                  <p className="text-xs text-alarm">The worker rendering this stopped answering at {Math.round(r.progress * 100)} %. It is handed back to the queue and started again; or cancel it and render again.</p>
+                <div
+                  className="mt-2 flex flex-wrap items-center justify-between gap-2 rounded-md border border-alarm/30 bg-alarm-wash px-3 py-2"
+                  data-testid="render-stalled-notice"
+                >
+                  <p className="text-xs text-alarm">
+                    The worker rendering this stopped answering at {Math.round(r.progress * 100)} %. It is
+                    handed back to the queue and started again; or cancel it and render again.
+                  </p>
                   {canRender ? (
-                    <Button type="button" size="sm" variant="danger" onClick={() => void cancel(r.id)} disabled={busy} data-testid="render-cancel">
+                    <Button
+                      type="button"
+                      size="sm"
+                      variant="danger"
+                      onClick={() => void cancel(r.id)}
+                      disabled={busy}
+                      data-testid="render-cancel"
+                    >
                       Cancel render
                     </Button>
                   ) : null}
                 </div>
               ) : null}
-              {r.supersededReason ? <p className="mt-1.5 text-xs text-ink-soft">Superseded: {r.supersededReason}. Kept with its file and SHA-256; never offered as the access copy.</p> : null}
-              {(r.status === "queued" || r.status === "running") && (r.transferId !== currentWork.transferId || r.curveChoiceId !== currentWork.curveChoiceId) ? (
-                <p className="mt-1.5 text-xs text-shellac-deep">Made from an earlier transfer or curve: it will be recorded as superseded when it finishes. Render again for the access copy.</p>
+              {r.supersededReason ? (
+                <p className="mt-1.5 text-xs text-ink-soft">
+                  Superseded: {r.supersededReason}. Kept with its file and SHA-256; never offered as the
+                  access copy.
+                </p>
+              ) : null}
+              {(r.status === "queued" || r.status === "running") &&
+              (r.transferId !== currentWork.transferId || r.curveChoiceId !== currentWork.curveChoiceId) ? (
+                <p className="mt-1.5 text-xs text-shellac-deep">
+                  Made from an earlier transfer or curve: it will be recorded as superseded when it finishes.
+                  Render again for the access copy.
+                </p>
               ) : null}
             </li>
           ))}
@@ -206,8 +306,15 @@ export function RenderPanel({
 
       {sideStatus === "rendered" ? (
         <div className="flex items-center justify-between gap-3 rounded-lg border border-groove/40 bg-groove-wash/50 px-4 py-3">
-          <p className="text-sm">Listened to the access copy? A curator reviews it next; someone other than you approves it.</p>
-          <Button type="button" onClick={() => void sendForReview()} disabled={busy} data-testid="send-for-review">
+          <p className="text-sm">
+            Listened to the access copy? A curator reviews it next; someone other than you approves it.
+          </p>
+          <Button
+            type="button"
+            onClick={() => void sendForReview()}
+            disabled={busy}
+            data-testid="send-for-review"
+          >
             Send for review
           </Button>
         </div>

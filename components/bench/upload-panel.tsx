@@ -15,7 +15,15 @@ import { useMultipartUpload } from "@/hooks/use-multipart-upload";
 import { formatBytes, ProgressBar } from "./progress-bar";
 
 /** The flat transfer comes first: it never waits for the curve, which is decided afterwards by evidence and by ear on it. */
-export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; canUpload: boolean; replaces: boolean }) {
+export function UploadPanel({
+  sideId,
+  canUpload,
+  replaces,
+}: {
+  sideId: string;
+  canUpload: boolean;
+  replaces: boolean;
+}) {
   const uid = useId();
   const queryClient = useQueryClient();
   const { state, start, cancel, reset } = useMultipartUpload();
@@ -30,9 +38,18 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
   const dz = useDropzone({
     multiple: false,
     disabled: working || !canUpload,
-    accept: { "audio/wav": [".wav", ".bwf", ".rf64"], "audio/x-wav": [".wav", ".bwf", ".rf64"], "audio/vnd.wave": [".wav", ".bwf", ".rf64"], "application/octet-stream": [".bwf", ".rf64"] },
+    accept: {
+      "audio/wav": [".wav", ".bwf", ".rf64"],
+      "audio/x-wav": [".wav", ".bwf", ".rf64"],
+      "audio/vnd.wave": [".wav", ".bwf", ".rf64"],
+      "application/octet-stream": [".bwf", ".rf64"],
+    },
     onDrop: (accepted, rejected) => {
-      setLocalError(rejected.length ? `${rejected[0].file.name}: only WAV, Broadcast WAVE (.bwf) and RF64 files are taken.` : null);
+      setLocalError(
+        rejected.length
+          ? `${rejected[0].file.name}: only WAV, Broadcast WAVE (.bwf) and RF64 files are taken.`
+          : null,
+      );
       if (accepted[0]) {
         setFile(accepted[0]);
         reset();
@@ -45,7 +62,8 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
     const m = measured.trim() === "" ? undefined : Number(measured.replace(",", "."));
     const result = await start(sideId, file, { stylusSize, stylusShape, measuredSpeedRpm: m, chain });
     if (result) {
-      for (const key of [["transfers", sideId], ["side", sideId], ["queue"]]) void queryClient.invalidateQueries({ queryKey: key });
+      for (const key of [["transfers", sideId], ["side", sideId], ["queue"]])
+        void queryClient.invalidateQueries({ queryKey: key });
     }
   };
 
@@ -54,7 +72,8 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
     <div className="space-y-4" data-testid="upload-panel">
       {replaces && canUpload && file && state.phase !== "done" ? (
         <Notice tone="info" title="A new transfer replaces the current one">
-          The side keeps every transfer, but a newly accepted one becomes the one the access copy is made from: any access copy rendered so far is superseded and the side is rendered again.
+          The side keeps every transfer, but a newly accepted one becomes the one the access copy is made
+          from: any access copy rendered so far is superseded and the side is rendered again.
         </Notice>
       ) : null}
       <div className="grid gap-5 lg:grid-cols-[minmax(0,1.1fr)_minmax(0,1fr)]">
@@ -63,7 +82,9 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
             {...dz.getRootProps({
               className: cx(
                 "flex min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl border-2 border-dashed px-4 py-6 text-center transition-colors",
-                dz.isDragActive ? "border-groove bg-groove-wash" : "border-paper-edge bg-paper/50 hover:border-ink-faint",
+                dz.isDragActive
+                  ? "border-groove bg-groove-wash"
+                  : "border-paper-edge bg-paper/50 hover:border-ink-faint",
                 (working || !canUpload) && "cursor-not-allowed opacity-60",
               ),
               "aria-label": "Flat transfer file: drop it here or press Enter to choose",
@@ -71,7 +92,9 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
             data-testid="upload-drop"
           >
             <input {...dz.getInputProps()} data-testid="upload-input" aria-label="Flat transfer file" />
-            <p className="text-sm font-medium">{dz.isDragActive ? "Drop the file to take it" : "Drop the flat transfer here, or choose it"}</p>
+            <p className="text-sm font-medium">
+              {dz.isDragActive ? "Drop the file to take it" : "Drop the flat transfer here, or choose it"}
+            </p>
             <p className="text-xs text-ink-faint">WAV, Broadcast WAVE or RF64 · unequalized · any size</p>
             {file ? (
               <p className="mt-2 rounded bg-white px-2 py-1 font-mono text-xs" data-testid="upload-file">
@@ -86,11 +109,44 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
           ) : null}
         </div>
         <div className="grid grid-cols-2 gap-3">
-          <TextField id={`${uid}-size`} label="Stylus tip size" placeholder="e.g. 3.0 mil" value={stylusSize} onChange={(e) => setStylusSize(e.target.value)} errors={f("stylusSize")} data-testid="upload-stylus-size" />
-          <TextField id={`${uid}-shape`} label="Stylus shape" placeholder="e.g. truncated elliptical" value={stylusShape} onChange={(e) => setStylusShape(e.target.value)} errors={f("stylusShape")} data-testid="upload-stylus-shape" />
-          <TextField id={`${uid}-speed`} label="Measured turntable speed (rpm)" inputMode="decimal" placeholder="optional" value={measured} onChange={(e) => setMeasured(e.target.value)} errors={f("measuredSpeedRpm")} data-testid="upload-measured-speed" />
+          <TextField
+            id={`${uid}-size`}
+            label="Stylus tip size"
+            placeholder="e.g. 3.0 mil"
+            value={stylusSize}
+            onChange={(e) => setStylusSize(e.target.value)}
+            errors={f("stylusSize")}
+            data-testid="upload-stylus-size"
+          />
+          <TextField
+            id={`${uid}-shape`}
+            label="Stylus shape"
+            placeholder="e.g. truncated elliptical"
+            value={stylusShape}
+            onChange={(e) => setStylusShape(e.target.value)}
+            errors={f("stylusShape")}
+            data-testid="upload-stylus-shape"
+          />
+          <TextField
+            id={`${uid}-speed`}
+            label="Measured turntable speed (rpm)"
+            inputMode="decimal"
+            placeholder="optional"
+            value={measured}
+            onChange={(e) => setMeasured(e.target.value)}
+            errors={f("measuredSpeedRpm")}
+            data-testid="upload-measured-speed"
+          />
           <div className="col-span-2">
-            <TextField id={`${uid}-chain`} label="Transfer chain" placeholder="Turntable → arm → cartridge → flat preamp → converter, rate/bits" value={chain} onChange={(e) => setChain(e.target.value)} errors={f("chain")} data-testid="upload-chain" />
+            <TextField
+              id={`${uid}-chain`}
+              label="Transfer chain"
+              placeholder="Turntable → arm → cartridge → flat preamp → converter, rate/bits"
+              value={chain}
+              onChange={(e) => setChain(e.target.value)}
+              errors={f("chain")}
+              data-testid="upload-chain"
+            />
           </div>
         </div>
       </div>
@@ -99,13 +155,27 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
         <div className="space-y-2 rounded-lg border border-paper-edge bg-white p-3" aria-live="polite">
           <ProgressBar
             value={state.totalBytes ? state.sentBytes / state.totalBytes : 0}
-            label={state.phase === "checking" ? "Sent — the server is checking size, checksum and header" : state.phase === "done" ? "Sent and accepted" : "Sent to storage"}
+            label={
+              state.phase === "checking"
+                ? "Sent — the server is checking size, checksum and header"
+                : state.phase === "done"
+                  ? "Sent and accepted"
+                  : "Sent to storage"
+            }
             detail={`${formatBytes(state.sentBytes)} of ${formatBytes(state.totalBytes)}`}
             tone={state.phase === "failed" ? "alarm" : "groove"}
             testId="upload-progress"
           />
-          {state.phase === "uploading" && state.hashedBytes < state.totalBytes ? <p className="text-xs text-ink-faint">Checksum worked out over {formatBytes(state.hashedBytes)} so far.</p> : null}
-          {state.resumedParts ? <p className="text-xs text-ink-faint">Resumed: {state.resumedParts} part{state.resumedParts === 1 ? " was" : "s were"} already stored.</p> : null}
+          {state.phase === "uploading" && state.hashedBytes < state.totalBytes ? (
+            <p className="text-xs text-ink-faint">
+              Checksum worked out over {formatBytes(state.hashedBytes)} so far.
+            </p>
+          ) : null}
+          {state.resumedParts ? (
+            <p className="text-xs text-ink-faint">
+              Resumed: {state.resumedParts} part{state.resumedParts === 1 ? " was" : "s were"} already stored.
+            </p>
+          ) : null}
         </div>
       ) : null}
 
@@ -118,13 +188,21 @@ export function UploadPanel({ sideId, canUpload, replaces }: { sideId: string; c
       {state.phase === "done" && state.result ? (
         <Notice tone="success" title="Flat transfer accepted" testId="upload-done">
           <span className="font-mono text-xs">
-            SHA-256 {state.result.sha256} · {state.result.technical.sampleRateHz} Hz · {state.result.technical.bitsPerSample}-bit · {state.result.technical.channels === 2 ? "stereo" : "mono"} · {state.result.technical.durationSeconds.toFixed(1)} s
+            SHA-256 {state.result.sha256} · {state.result.technical.sampleRateHz} Hz ·{" "}
+            {state.result.technical.bitsPerSample}-bit ·{" "}
+            {state.result.technical.channels === 2 ? "stereo" : "mono"} ·{" "}
+            {state.result.technical.durationSeconds.toFixed(1)} s
           </span>
         </Notice>
       ) : null}
 
       <div className="flex flex-wrap gap-2">
-        <Button type="button" onClick={() => void send()} disabled={!file || working || !canUpload} data-testid="upload-start">
+        <Button
+          type="button"
+          onClick={() => void send()}
+          disabled={!file || working || !canUpload}
+          data-testid="upload-start"
+        >
           {state.phase === "failed" ? "Try again" : "Upload and check"}
         </Button>
         {working ? (

@@ -24,7 +24,15 @@ const today = () => new Date().toISOString().slice(0, 10);
  * Records a new accession. It is a group inside whatever form holds it (HTML forms do
  * not nest), so Enter in its fields saves the accession, not the form around it.
  */
-export function AccessionForm({ onCreated, onCancel, testId = "accession-form" }: { onCreated?: (a: AccessionJson) => void; onCancel?: () => void; testId?: string }) {
+export function AccessionForm({
+  onCreated,
+  onCancel,
+  testId = "accession-form",
+}: {
+  onCreated?: (a: AccessionJson) => void;
+  onCancel?: () => void;
+  testId?: string;
+}) {
   const uid = useId();
   const queryClient = useQueryClient();
   const form = useForm<Values>({
@@ -41,7 +49,8 @@ export function AccessionForm({ onCreated, onCancel, testId = "accession-form" }
     },
     onError: (e) => {
       for (const [k, msgs] of Object.entries(e.fields ?? {})) {
-        if (k in form.getValues()) form.setError(k as keyof Values, { type: "server", message: msgs.join(" ") });
+        if (k in form.getValues())
+          form.setError(k as keyof Values, { type: "server", message: msgs.join(" ") });
       }
     },
   });
@@ -57,16 +66,35 @@ export function AccessionForm({ onCreated, onCancel, testId = "accession-form" }
     const err = errors[name]?.message;
     return (
       <FieldShell id={id} label={label} errors={err ? [err] : undefined}>
-        <input id={id} aria-invalid={err ? true : undefined} aria-describedby={err ? `${id}-error` : undefined} className={controlClass(!!err)} {...form.register(name)} {...props} data-testid={`${testId}-${name}`} />
+        <input
+          id={id}
+          aria-invalid={err ? true : undefined}
+          aria-describedby={err ? `${id}-error` : undefined}
+          className={controlClass(!!err)}
+          {...form.register(name)}
+          {...props}
+          data-testid={`${testId}-${name}`}
+        />
       </FieldShell>
     );
   };
 
   return (
-    <div role="group" aria-label="New accession" className="space-y-3" onKeyDown={enterSaves} data-testid={testId}>
-      {create.error && !Object.keys(create.error.fields ?? {}).some((k) => k in form.getValues()) ? <Notice tone="error">{create.error.message}</Notice> : null}
+    <div
+      role="group"
+      aria-label="New accession"
+      className="space-y-3"
+      onKeyDown={enterSaves}
+      data-testid={testId}
+    >
+      {create.error && !Object.keys(create.error.fields ?? {}).some((k) => k in form.getValues()) ? (
+        <Notice tone="error">{create.error.message}</Notice>
+      ) : null}
       <div className="grid gap-3 sm:grid-cols-2">
-        {field("identifier", "Accession identifier", { placeholder: "e.g. MH-2026-003", autoComplete: "off" })}
+        {field("identifier", "Accession identifier", {
+          placeholder: "e.g. MH-2026-003",
+          autoComplete: "off",
+        })}
         {field("receivedOn", "Received on", { type: "date" })}
       </div>
       {field("source", "Source", { placeholder: "Donor, transfer or purchase" })}
@@ -74,7 +102,13 @@ export function AccessionForm({ onCreated, onCancel, testId = "accession-form" }
         <textarea id={`${uid}-notes`} rows={2} className={controlClass(false)} {...form.register("notes")} />
       </FieldShell>
       <div className="flex gap-2">
-        <Button type="button" size="sm" onClick={() => void submit()} disabled={create.isPending} data-testid={`${testId}-save`}>
+        <Button
+          type="button"
+          size="sm"
+          onClick={() => void submit()}
+          disabled={create.isPending}
+          data-testid={`${testId}-save`}
+        >
           {create.isPending ? "Saving…" : "Save accession"}
         </Button>
         {onCancel ? (

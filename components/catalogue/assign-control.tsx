@@ -12,7 +12,12 @@ interface AssignResult {
 }
 
 export function useEngineers(enabled = true) {
-  return useQuery({ queryKey: ["engineers"], queryFn: () => fetchJson<{ engineers: Engineer[] }>("/api/engineers"), enabled, staleTime: 60_000 });
+  return useQuery({
+    queryKey: ["engineers"],
+    queryFn: () => fetchJson<{ engineers: Engineer[] }>("/api/engineers"),
+    enabled,
+    staleTime: 60_000,
+  });
 }
 
 /**
@@ -39,9 +44,16 @@ export function AssignControl({
   const [result, setResult] = useState<{ engineer: string; r: AssignResult } | null>(null);
   const nothing = discIds.length + sideIds.length === 0;
   const assign = useMutation({
-    mutationFn: () => fetchJson<AssignResult>("/api/assignments", { method: "POST", body: JSON.stringify({ engineerId, discIds, sideIds }) }),
+    mutationFn: () =>
+      fetchJson<AssignResult>("/api/assignments", {
+        method: "POST",
+        body: JSON.stringify({ engineerId, discIds, sideIds }),
+      }),
     onSuccess: (r) => {
-      setResult({ engineer: engineers.data?.engineers.find((e) => e.id === engineerId)?.name ?? "the engineer", r });
+      setResult({
+        engineer: engineers.data?.engineers.find((e) => e.id === engineerId)?.name ?? "the engineer",
+        r,
+      });
       onAssigned?.(r);
     },
     onMutate: () => setResult(null),
@@ -69,14 +81,25 @@ export function AssignControl({
             ))}
           </select>
         </div>
-        <Button type="button" size="sm" className="h-9" disabled={!engineerId || nothing || assign.isPending} onClick={() => assign.mutate()} data-testid={`${testId}-submit`}>
+        <Button
+          type="button"
+          size="sm"
+          className="h-9"
+          disabled={!engineerId || nothing || assign.isPending}
+          onClick={() => assign.mutate()}
+          data-testid={`${testId}-submit`}
+        >
           {assign.isPending ? "Assigning…" : `Assign ${what}`}
         </Button>
       </div>
       {engineers.error ? <Notice tone="error">{engineers.error.message}</Notice> : null}
       {assign.error ? <Notice tone="error">{assign.error.message}</Notice> : null}
       {result ? (
-        <Notice tone={result.r.assigned ? "success" : "info"} title={`${result.r.assigned} side${result.r.assigned === 1 ? "" : "s"} assigned to ${result.engineer}.`} testId={`${testId}-result`}>
+        <Notice
+          tone={result.r.assigned ? "success" : "info"}
+          title={`${result.r.assigned} side${result.r.assigned === 1 ? "" : "s"} assigned to ${result.engineer}.`}
+          testId={`${testId}-result`}
+        >
           {result.r.skipped.length ? (
             <>
               <p>Left as they are ({result.r.skipped.length}):</p>

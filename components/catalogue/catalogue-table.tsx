@@ -1,6 +1,12 @@
 "use client";
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
-import { type ColumnDef, getCoreRowModel, type RowSelectionState, type SortingState, useReactTable } from "@tanstack/react-table";
+import {
+  type ColumnDef,
+  getCoreRowModel,
+  type RowSelectionState,
+  type SortingState,
+  useReactTable,
+} from "@tanstack/react-table";
 import Link from "next/link";
 import { usePathname, useRouter, useSearchParams } from "next/navigation";
 import { useCallback, useEffect, useMemo, useState } from "react";
@@ -8,7 +14,13 @@ import { Button, buttonClass } from "@/components/ui/button";
 import { TableView } from "@/components/ui/data-table";
 import { cx } from "@/components/ui/cx";
 import { fetchJson } from "@/lib/http/client";
-import { discFormats, formatLabels, nominalSpeeds, sideStatuses, statusLabels } from "@/lib/validation/catalogue";
+import {
+  discFormats,
+  formatLabels,
+  nominalSpeeds,
+  sideStatuses,
+  statusLabels,
+} from "@/lib/validation/catalogue";
 import { AssignControl, useEngineers } from "./assign-control";
 import { conditionLabels, formatLabel, speedLabel } from "./format";
 import { StatusBadge } from "./status-badge";
@@ -50,7 +62,10 @@ interface Props {
 export function CatalogueTable({ canAssign, self }: Props) {
   const { params, set } = useViewParams();
   const queryClient = useQueryClient();
-  const filters = Object.fromEntries(filterKeys.map((k) => [k, params.get(k) ?? ""])) as Record<FilterKey, string>;
+  const filters = Object.fromEntries(filterKeys.map((k) => [k, params.get(k) ?? ""])) as Record<
+    FilterKey,
+    string
+  >;
   const sort = params.get("sort") || defaultSort;
   const page = Math.max(1, Number(params.get("page")) || 1);
   const pageSize = pageSizes.includes(Number(params.get("size"))) ? Number(params.get("size")) : 50;
@@ -66,12 +81,21 @@ export function CatalogueTable({ canAssign, self }: Props) {
 
   const discs = useQuery({
     queryKey: ["discs", listUrl],
-    queryFn: () => fetchJson<{ rows: DiscListRowJson[]; total: number; page: number; pageSize: number }>(listUrl),
+    queryFn: () =>
+      fetchJson<{ rows: DiscListRowJson[]; total: number; page: number; pageSize: number }>(listUrl),
     placeholderData: keepPreviousData,
   });
-  const accessions = useQuery({ queryKey: ["accessions"], queryFn: () => fetchJson<{ accessions: AccessionJson[] }>("/api/accessions"), staleTime: 60_000 });
+  const accessions = useQuery({
+    queryKey: ["accessions"],
+    queryFn: () => fetchJson<{ accessions: AccessionJson[] }>("/api/accessions"),
+    staleTime: 60_000,
+  });
   const engineers = useEngineers(canAssign);
-  const engineerOptions = canAssign ? (engineers.data?.engineers ?? []) : self ? [{ id: self.id, name: `${self.name} (me)` }] : [];
+  const engineerOptions = canAssign
+    ? (engineers.data?.engineers ?? [])
+    : self
+      ? [{ id: self.id, name: `${self.name} (me)` }]
+      : [];
 
   // The search box answers as you type, but writes to the URL after a pause.
   const [search, setSearch] = useState(filters.q);
@@ -127,7 +151,10 @@ export function CatalogueTable({ canAssign, self }: Props) {
         id: "shelfMark",
         header: "Shelf mark",
         cell: ({ row }) => (
-          <Link href={`/catalogue/${row.original.id}`} className="font-mono font-medium text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac">
+          <Link
+            href={`/catalogue/${row.original.id}`}
+            className="font-mono font-medium text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac"
+          >
             {row.original.shelfMark}
           </Link>
         ),
@@ -143,7 +170,11 @@ export function CatalogueTable({ canAssign, self }: Props) {
         ),
       },
       { id: "format", header: "Format", cell: ({ row }) => formatLabel(row.original.format) },
-      { id: "speed", header: "Speed", cell: ({ row }) => <span className="font-mono">{speedLabel(row.original.nominalSpeedRpm)}</span> },
+      {
+        id: "speed",
+        header: "Speed",
+        cell: ({ row }) => <span className="font-mono">{speedLabel(row.original.nominalSpeedRpm)}</span>,
+      },
       {
         id: "sides",
         header: "Sides",
@@ -156,7 +187,9 @@ export function CatalogueTable({ canAssign, self }: Props) {
                   <span className="w-6 font-mono font-semibold">{s.designation}</span>
                   <span className="font-mono text-ink-soft">{s.matrixNumber || "—"}</span>
                   <StatusBadge status={s.status} />
-                  {s.assignedEngineerName ? <span className="text-ink-faint">{s.assignedEngineerName}</span> : null}
+                  {s.assignedEngineerName ? (
+                    <span className="text-ink-faint">{s.assignedEngineerName}</span>
+                  ) : null}
                 </li>
               ))}
             </ul>
@@ -164,8 +197,18 @@ export function CatalogueTable({ canAssign, self }: Props) {
             <span className="text-xs text-ink-faint">no sides logged</span>
           ),
       },
-      { id: "accession", header: "Accession", enableSorting: false, cell: ({ row }) => <span className="font-mono text-xs">{row.original.accessionIdentifier}</span> },
-      { id: "condition", header: "Condition", enableSorting: false, cell: ({ row }) => conditionLabels[row.original.conditionGrade] ?? row.original.conditionGrade },
+      {
+        id: "accession",
+        header: "Accession",
+        enableSorting: false,
+        cell: ({ row }) => <span className="font-mono text-xs">{row.original.accessionIdentifier}</span>,
+      },
+      {
+        id: "condition",
+        header: "Condition",
+        enableSorting: false,
+        cell: ({ row }) => conditionLabels[row.original.conditionGrade] ?? row.original.conditionGrade,
+      },
     ],
     [canAssign],
   );
@@ -195,9 +238,17 @@ export function CatalogueTable({ canAssign, self }: Props) {
 
   return (
     <div className="space-y-4">
-      <form role="search" aria-label="Find discs" onSubmit={(e) => e.preventDefault()} className="grid gap-3 rounded-lg border border-paper-edge bg-white/70 p-4 sm:grid-cols-2 lg:grid-cols-[minmax(16rem,2fr)_repeat(5,minmax(8rem,1fr))_auto]">
+      <form
+        role="search"
+        aria-label="Find discs"
+        onSubmit={(e) => e.preventDefault()}
+        className="grid gap-3 rounded-lg border border-paper-edge bg-white/70 p-4 sm:grid-cols-2 lg:grid-cols-[minmax(16rem,2fr)_repeat(5,minmax(8rem,1fr))_auto]"
+      >
         <div className="space-y-1">
-          <label htmlFor="catalogue-search" className="block text-xs font-semibold uppercase tracking-wide text-ink-soft">
+          <label
+            htmlFor="catalogue-search"
+            className="block text-xs font-semibold uppercase tracking-wide text-ink-soft"
+          >
             Search
           </label>
           <input
@@ -210,56 +261,108 @@ export function CatalogueTable({ canAssign, self }: Props) {
             data-testid="catalogue-search"
           />
         </div>
-        <FilterSelect id="filter-format" label="Format" value={filters.format} onChange={(v) => set({ format: v })} className={selectClass}>
+        <FilterSelect
+          id="filter-format"
+          label="Format"
+          value={filters.format}
+          onChange={(v) => set({ format: v })}
+          className={selectClass}
+        >
           {discFormats.map((f) => (
             <option key={f} value={f}>
               {formatLabels[f]}
             </option>
           ))}
         </FilterSelect>
-        <FilterSelect id="filter-status" label="Side status" value={filters.status} onChange={(v) => set({ status: v })} className={selectClass}>
+        <FilterSelect
+          id="filter-status"
+          label="Side status"
+          value={filters.status}
+          onChange={(v) => set({ status: v })}
+          className={selectClass}
+        >
           {sideStatuses.map((s) => (
             <option key={s} value={s}>
               {statusLabels[s]}
             </option>
           ))}
         </FilterSelect>
-        <FilterSelect id="filter-accession" label="Accession" value={filters.accession} onChange={(v) => set({ accession: v })} className={selectClass}>
+        <FilterSelect
+          id="filter-accession"
+          label="Accession"
+          value={filters.accession}
+          onChange={(v) => set({ accession: v })}
+          className={selectClass}
+        >
           {accessions.data?.accessions.map((a) => (
             <option key={a.id} value={a.id}>
               {a.identifier}
             </option>
           ))}
         </FilterSelect>
-        <FilterSelect id="filter-engineer" label="Engineer" value={filters.engineer} onChange={(v) => set({ engineer: v })} className={selectClass} disabled={!engineerOptions.length && !filters.engineer}>
+        <FilterSelect
+          id="filter-engineer"
+          label="Engineer"
+          value={filters.engineer}
+          onChange={(v) => set({ engineer: v })}
+          className={selectClass}
+          disabled={!engineerOptions.length && !filters.engineer}
+        >
           {engineerOptions.map((e) => (
             <option key={e.id} value={e.id}>
               {e.name}
             </option>
           ))}
-          {filters.engineer && !engineerOptions.some((e) => e.id === filters.engineer) ? <option value={filters.engineer}>Chosen engineer</option> : null}
+          {filters.engineer && !engineerOptions.some((e) => e.id === filters.engineer) ? (
+            <option value={filters.engineer}>Chosen engineer</option>
+          ) : null}
         </FilterSelect>
-        <FilterSelect id="filter-speed" label="Speed (rpm)" value={filters.speed} onChange={(v) => set({ speed: v })} className={selectClass}>
+        <FilterSelect
+          id="filter-speed"
+          label="Speed (rpm)"
+          value={filters.speed}
+          onChange={(v) => set({ speed: v })}
+          className={selectClass}
+        >
           {nominalSpeeds.map((s) => (
             <option key={s} value={String(s)}>
               {speedLabel(s)}
             </option>
           ))}
-          {filters.speed && !nominalSpeeds.map(String).includes(filters.speed) ? <option value={filters.speed}>{speedLabel(filters.speed)}</option> : null}
+          {filters.speed && !nominalSpeeds.map(String).includes(filters.speed) ? (
+            <option value={filters.speed}>{speedLabel(filters.speed)}</option>
+          ) : null}
         </FilterSelect>
         <div className="flex items-end">
-          <Button type="button" variant="quiet" size="sm" className="h-9" disabled={!anyFilter} onClick={() => { setSearch(""); set(Object.fromEntries(filterKeys.map((k) => [k, undefined]))); }}>
+          <Button
+            type="button"
+            variant="quiet"
+            size="sm"
+            className="h-9"
+            disabled={!anyFilter}
+            onClick={() => {
+              setSearch("");
+              set(Object.fromEntries(filterKeys.map((k) => [k, undefined])));
+            }}
+          >
             Clear
           </Button>
         </div>
       </form>
 
       {canAssign ? (
-        <div className={cx("rounded-lg border px-4 py-3", selectedIds.length ? "border-shellac/40 bg-shellac-wash/50" : "border-dashed border-paper-edge")}>
+        <div
+          className={cx(
+            "rounded-lg border px-4 py-3",
+            selectedIds.length ? "border-shellac/40 bg-shellac-wash/50" : "border-dashed border-paper-edge",
+          )}
+        >
           <p className="mb-2 text-sm text-ink-soft" aria-live="polite">
             {selectedIds.length ? (
               <>
-                <strong className="text-ink">{selectedIds.length}</strong> disc{selectedIds.length === 1 ? "" : "s"} selected: assign every side that is waiting to one engineer.{" "}
+                <strong className="text-ink">{selectedIds.length}</strong> disc
+                {selectedIds.length === 1 ? "" : "s"} selected: assign every side that is waiting to one
+                engineer.{" "}
                 <button type="button" className="underline" onClick={() => setRowSelection({})}>
                   Clear selection
                 </button>
@@ -270,7 +373,11 @@ export function CatalogueTable({ canAssign, self }: Props) {
           </p>
           <AssignControl
             discIds={selectedIds}
-            what={selectedIds.length ? `sides of ${selectedIds.length} disc${selectedIds.length === 1 ? "" : "s"}` : "sides"}
+            what={
+              selectedIds.length
+                ? `sides of ${selectedIds.length} disc${selectedIds.length === 1 ? "" : "s"}`
+                : "sides"
+            }
             testId="bulk-assign"
             onAssigned={() => {
               setRowSelection({});
@@ -282,7 +389,9 @@ export function CatalogueTable({ canAssign, self }: Props) {
 
       <div className="flex items-center justify-between text-xs text-ink-faint">
         <span aria-live="polite" data-testid="catalogue-count">
-          {discs.isLoading ? "Loading…" : `${total} disc${total === 1 ? "" : "s"}${anyFilter ? (total === 1 ? " matches" : " match") : " in the catalogue"}`}
+          {discs.isLoading
+            ? "Loading…"
+            : `${total} disc${total === 1 ? "" : "s"}${anyFilter ? (total === 1 ? " matches" : " match") : " in the catalogue"}`}
           {discs.isFetching && !discs.isLoading ? " · updating…" : ""}
         </span>
       </div>
@@ -293,7 +402,13 @@ export function CatalogueTable({ canAssign, self }: Props) {
         testId="catalogue-table"
         busy={discs.isFetching}
         error={discs.error?.message}
-        emptyText={discs.isLoading ? "Loading…" : anyFilter ? "No disc matches these filters." : "No discs catalogued yet."}
+        emptyText={
+          discs.isLoading
+            ? "Loading…"
+            : anyFilter
+              ? "No disc matches these filters."
+              : "No discs catalogued yet."
+        }
         rowClassName={(row, i) => (row.getIsSelected() ? "bg-shellac-wash/40" : i % 2 === 1 && "bg-paper/40")}
         headerClassName={(id) => id === "select" && "w-10"}
       />
@@ -303,7 +418,12 @@ export function CatalogueTable({ canAssign, self }: Props) {
           <label htmlFor="page-size" className="text-ink-soft">
             Discs per page
           </label>
-          <select id="page-size" value={pageSize} onChange={(e) => set({ size: e.target.value === "50" ? undefined : e.target.value })} className="h-8 rounded border border-paper-edge bg-white px-2 text-sm">
+          <select
+            id="page-size"
+            value={pageSize}
+            onChange={(e) => set({ size: e.target.value === "50" ? undefined : e.target.value })}
+            className="h-8 rounded border border-paper-edge bg-white px-2 text-sm"
+          >
             {pageSizes.map((n) => (
               <option key={n} value={n}>
                 {n}
@@ -312,13 +432,25 @@ export function CatalogueTable({ canAssign, self }: Props) {
           </select>
         </div>
         <div className="flex items-center gap-2">
-          <Button type="button" variant="secondary" size="sm" disabled={page <= 1} onClick={() => set({ page: page - 1 > 1 ? String(page - 1) : undefined })}>
+          <Button
+            type="button"
+            variant="secondary"
+            size="sm"
+            disabled={page <= 1}
+            onClick={() => set({ page: page - 1 > 1 ? String(page - 1) : undefined })}
+          >
             ← Previous
           </Button>
           <span className="px-2 text-ink-soft" data-testid="catalogue-page">
             Page {Math.min(page, pageCount)} of {pageCount}
           </span>
-          <Button type="button" variant="secondary" size="sm" disabled={page >= pageCount} onClick={() => set({ page: String(page + 1) })}>
+          <Button
+            type="button"
+            variant="secondary"
+            size="sm"
+            disabled={page >= pageCount}
+            onClick={() => set({ page: String(page + 1) })}
+          >
             Next →
           </Button>
         </div>
@@ -327,13 +459,35 @@ export function CatalogueTable({ canAssign, self }: Props) {
   );
 }
 
-function FilterSelect({ id, label, value, onChange, className, disabled, children }: { id: string; label: string; value: string; onChange: (v: string | undefined) => void; className: string; disabled?: boolean; children: React.ReactNode }) {
+function FilterSelect({
+  id,
+  label,
+  value,
+  onChange,
+  className,
+  disabled,
+  children,
+}: {
+  id: string;
+  label: string;
+  value: string;
+  onChange: (v: string | undefined) => void;
+  className: string;
+  disabled?: boolean;
+  children: React.ReactNode;
+}) {
   return (
     <div className="space-y-1">
       <label htmlFor={id} className="block text-xs font-semibold uppercase tracking-wide text-ink-soft">
         {label}
       </label>
-      <select id={id} value={value} onChange={(e) => onChange(e.target.value || undefined)} className={className} disabled={disabled}>
+      <select
+        id={id}
+        value={value}
+        onChange={(e) => onChange(e.target.value || undefined)}
+        className={className}
+        disabled={disabled}
+      >
         <option value="">Any</option>
         {children}
       </select>
@@ -351,7 +505,11 @@ export function ExportViewLink() {
   }
   q.set("sort", params.get("sort") || defaultSort);
   return (
-    <a href={`/api/discs/export?${q}`} className={buttonClass({ variant: "secondary" })} data-testid="export-view">
+    <a
+      href={`/api/discs/export?${q}`}
+      className={buttonClass({ variant: "secondary" })}
+      data-testid="export-view"
+    >
       Export view
     </a>
   );

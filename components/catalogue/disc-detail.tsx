@@ -13,9 +13,23 @@ import { SideSteps, type Step } from "./side-steps";
 import { StatusBadge } from "./status-badge";
 import type { DiscJson } from "./types";
 
-export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJson; steps: readonly Step[]; user: { id: string; role: Role }; canAssign: boolean }) {
+export function DiscDetail({
+  initial,
+  steps,
+  user,
+  canAssign,
+}: {
+  initial: DiscJson;
+  steps: readonly Step[];
+  user: { id: string; role: Role };
+  canAssign: boolean;
+}) {
   const queryClient = useQueryClient();
-  const disc = useQuery({ queryKey: ["disc", initial.id], queryFn: () => fetchJson<{ disc: DiscJson }>(`/api/discs/${initial.id}`), initialData: { disc: initial } }).data.disc;
+  const disc = useQuery({
+    queryKey: ["disc", initial.id],
+    queryFn: () => fetchJson<{ disc: DiscJson }>(`/api/discs/${initial.id}`),
+    initialData: { disc: initial },
+  }).data.disc;
   const refresh = () => {
     void queryClient.invalidateQueries({ queryKey: ["disc", disc.id] });
     void queryClient.invalidateQueries({ queryKey: ["disc-events", disc.id] });
@@ -32,7 +46,12 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
 
   return (
     <div className="space-y-6">
-      <HandlingCautions format={disc.format} base={disc.base} conditionFlags={disc.conditionFlags} conditionGrade={disc.conditionGrade} />
+      <HandlingCautions
+        format={disc.format}
+        base={disc.base}
+        conditionFlags={disc.conditionFlags}
+        conditionGrade={disc.conditionGrade}
+      />
 
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_26rem]">
         <div className="space-y-6">
@@ -42,17 +61,43 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
                 <table className="w-full text-left text-sm" aria-label="Sides" data-testid="sides-table">
                   <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
                     <tr>
-                      <th scope="col" className="px-3 py-2.5 font-semibold">Side</th>
-                      <th scope="col" className="px-3 py-2.5 font-semibold">Matrix · take</th>
-                      <th scope="col" className="px-3 py-2.5 font-semibold">Title · performers</th>
-                      <th scope="col" className="px-3 py-2.5 font-semibold">Status</th>
-                      <th scope="col" className="px-3 py-2.5 font-semibold">Next step</th>
+                      <th scope="col" className="px-3 py-2.5 font-semibold">
+                        Side
+                      </th>
+                      <th scope="col" className="px-3 py-2.5 font-semibold">
+                        Matrix · take
+                      </th>
+                      <th scope="col" className="px-3 py-2.5 font-semibold">
+                        Title · performers
+                      </th>
+                      <th scope="col" className="px-3 py-2.5 font-semibold">
+                        Status
+                      </th>
+                      <th scope="col" className="px-3 py-2.5 font-semibold">
+                        Next step
+                      </th>
                     </tr>
                   </thead>
                   <tbody>
                     {disc.sides.map((s) => (
-                      <tr key={s.id} className="border-t border-paper-edge/70 align-top" data-testid={`side-${s.designation}`}>
-                        <td className="px-3 py-3 font-mono text-base font-semibold">{s.assignedEngineerId === user.id ? <a href={`/bench/${s.id}`} className="text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac" aria-label={`Side ${s.designation} on the bench`}>{s.designation}</a> : s.designation}</td>
+                      <tr
+                        key={s.id}
+                        className="border-t border-paper-edge/70 align-top"
+                        data-testid={`side-${s.designation}`}
+                      >
+                        <td className="px-3 py-3 font-mono text-base font-semibold">
+                          {s.assignedEngineerId === user.id ? (
+                            <a
+                              href={`/bench/${s.id}`}
+                              className="text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac"
+                              aria-label={`Side ${s.designation} on the bench`}
+                            >
+                              {s.designation}
+                            </a>
+                          ) : (
+                            s.designation
+                          )}
+                        </td>
                         <td className="px-3 py-3 font-mono text-xs">
                           <p>{s.matrixNumber || "—"}</p>
                           {s.take ? <p className="text-ink-faint">take {s.take}</p> : null}
@@ -64,9 +109,14 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
                         </td>
                         <td className="px-3 py-3">
                           <StatusBadge status={s.status} />
-                          {s.assignedEngineerName ? <p className="mt-1 text-xs text-ink-soft">with {s.assignedEngineerName}</p> : null}
+                          {s.assignedEngineerName ? (
+                            <p className="mt-1 text-xs text-ink-soft">with {s.assignedEngineerName}</p>
+                          ) : null}
                           {s.status === "returned" && s.returnReason ? (
-                            <p className="mt-1 max-w-56 rounded bg-alarm-wash px-2 py-1 text-xs text-alarm" data-testid={`return-reason-${s.designation}`}>
+                            <p
+                              className="mt-1 max-w-56 rounded bg-alarm-wash px-2 py-1 text-xs text-alarm"
+                              data-testid={`return-reason-${s.designation}`}
+                            >
                               Returned: {s.returnReason}
                             </p>
                           ) : null}
@@ -86,8 +136,16 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
 
           {canAssign ? (
             <Panel title="Assign for transfer">
-              <p className="mb-3 text-sm text-ink-soft">Catalogued, returned and already assigned sides of this disc go to the engineer you choose; sides further along stay as they are.</p>
-              <AssignControl discIds={[disc.id]} what="this disc's sides" testId="disc-assign" onAssigned={refresh} />
+              <p className="mb-3 text-sm text-ink-soft">
+                Catalogued, returned and already assigned sides of this disc go to the engineer you choose;
+                sides further along stay as they are.
+              </p>
+              <AssignControl
+                discIds={[disc.id]}
+                what="this disc's sides"
+                testId="disc-assign"
+                onAssigned={refresh}
+              />
             </Panel>
           ) : null}
 
@@ -97,11 +155,20 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
         </div>
 
         <Panel title="The disc" className="self-start">
-          <dl className="grid grid-cols-[9rem_minmax(0,1fr)] gap-x-4 gap-y-2 text-sm" data-testid="disc-fields">
-            <Row label="Shelf mark"><span className="font-mono">{disc.shelfMark}</span></Row>
-            <Row label="Accession"><span className="font-mono">{disc.accessionIdentifier}</span></Row>
+          <dl
+            className="grid grid-cols-[9rem_minmax(0,1fr)] gap-x-4 gap-y-2 text-sm"
+            data-testid="disc-fields"
+          >
+            <Row label="Shelf mark">
+              <span className="font-mono">{disc.shelfMark}</span>
+            </Row>
+            <Row label="Accession">
+              <span className="font-mono">{disc.accessionIdentifier}</span>
+            </Row>
             <Row label="Label">{fieldText("labelName", disc.labelName)}</Row>
-            <Row label="Catalogue no."><span className="font-mono">{fieldText("catalogueNumber", disc.catalogueNumber)}</span></Row>
+            <Row label="Catalogue no.">
+              <span className="font-mono">{fieldText("catalogueNumber", disc.catalogueNumber)}</span>
+            </Row>
             <Row label="Format">{fieldText("format", disc.format)}</Row>
             <Row label="Base">{fieldText("base", disc.base)}</Row>
             <Row label="Diameter">{fieldText("diameterIn", disc.diameterIn)}</Row>
@@ -112,9 +179,15 @@ export function DiscDetail({ initial, steps, user, canAssign }: { initial: DiscJ
             <Row label="Recorded in">{years ?? "—"}</Row>
             <Row label="Condition">{fieldText("conditionGrade", disc.conditionGrade)}</Row>
             <Row label="Condition flags">{fieldText("conditionFlags", disc.conditionFlags)}</Row>
-            <Row label="Condition notes"><span className="whitespace-pre-line">{fieldText("conditionNotes", disc.conditionNotes)}</span></Row>
-            <Row label="Handling notes"><span className="whitespace-pre-line">{fieldText("handlingNotes", disc.handlingNotes)}</span></Row>
-            <Row label="Record version"><span className="font-mono">{disc.version}</span></Row>
+            <Row label="Condition notes">
+              <span className="whitespace-pre-line">{fieldText("conditionNotes", disc.conditionNotes)}</span>
+            </Row>
+            <Row label="Handling notes">
+              <span className="whitespace-pre-line">{fieldText("handlingNotes", disc.handlingNotes)}</span>
+            </Row>
+            <Row label="Record version">
+              <span className="font-mono">{disc.version}</span>
+            </Row>
             <Row label="Created">{when(disc.createdAt)}</Row>
             <Row label="Last changed">{when(disc.updatedAt)}</Row>
           </dl>

@@ -11,7 +11,16 @@ import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
 import { fetchJson } from "@/lib/http/client";
 import type { AppError } from "@/lib/http/errors";
-import { conditionFlags, conditionGrades, createDiscSchema, discBases, discFormats, formatLabels, nominalSpeeds, updateDiscSchema } from "@/lib/validation/catalogue";
+import {
+  conditionFlags,
+  conditionGrades,
+  createDiscSchema,
+  discBases,
+  discFormats,
+  formatLabels,
+  nominalSpeeds,
+  updateDiscSchema,
+} from "@/lib/validation/catalogue";
 import { AccessionForm } from "./accession-form";
 import { discFieldLabels, fieldText, sideChanges } from "./fields";
 import { baseLabels, conditionLabels, flagLabels, speedLabel } from "./format";
@@ -53,10 +62,20 @@ export interface DiscFormValues {
 }
 
 type ScalarField = Exclude<keyof DiscFormValues, "sides" | "conditionFlags" | "version">;
-const scalarFields = Object.keys(discFieldLabels).filter((k) => k !== "sides" && k !== "conditionFlags") as ScalarField[];
+const scalarFields = Object.keys(discFieldLabels).filter(
+  (k) => k !== "sides" && k !== "conditionFlags",
+) as ScalarField[];
 const basesAllowed = new Set(["instantaneous_lacquer", "transcription", "other"]);
 
-const blankSide = (designation: string): SideValues => ({ sideId: "", designation, matrixNumber: "", take: "", title: "", performers: "", notes: "" });
+const blankSide = (designation: string): SideValues => ({
+  sideId: "",
+  designation,
+  matrixNumber: "",
+  take: "",
+  title: "",
+  performers: "",
+  notes: "",
+});
 
 export function toFormValues(d: DiscJson): DiscFormValues {
   const s = (v: unknown) => (v === null || v === undefined ? "" : String(v));
@@ -78,7 +97,15 @@ export function toFormValues(d: DiscJson): DiscFormValues {
     conditionFlags: [...d.conditionFlags],
     conditionNotes: d.conditionNotes,
     handlingNotes: d.handlingNotes,
-    sides: d.sides.map((x) => ({ sideId: x.id, designation: x.designation, matrixNumber: x.matrixNumber, take: x.take, title: x.title, performers: x.performers, notes: x.notes })),
+    sides: d.sides.map((x) => ({
+      sideId: x.id,
+      designation: x.designation,
+      matrixNumber: x.matrixNumber,
+      take: x.take,
+      title: x.title,
+      performers: x.performers,
+      notes: x.notes,
+    })),
     version: d.version,
   };
 }
@@ -106,13 +133,21 @@ const emptyValues: DiscFormValues = {
 };
 
 const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
-const sideView = (sides: SideValues[]) => sides.map(({ sideId, ...s }) => ({ id: sideId || undefined, ...s }));
+const sideView = (sides: SideValues[]) =>
+  sides.map(({ sideId, ...s }) => ({ id: sideId || undefined, ...s }));
 
 /** The fields someone else changed since `loaded`, with their value and the one in this form. */
 function conflictRows(loaded: DiscFormValues, theirs: DiscFormValues, yours: DiscFormValues) {
-  const fields = (["accessionId", ...scalarFields.filter((f) => f !== "accessionId"), "conditionFlags"] as const).filter((f) => !same(loaded[f], theirs[f]));
+  const fields = (
+    ["accessionId", ...scalarFields.filter((f) => f !== "accessionId"), "conditionFlags"] as const
+  ).filter((f) => !same(loaded[f], theirs[f]));
   return {
-    fields: fields.map((f) => ({ field: f, theirs: theirs[f], yours: yours[f], youChanged: !same(loaded[f], yours[f]) })),
+    fields: fields.map((f) => ({
+      field: f,
+      theirs: theirs[f],
+      yours: yours[f],
+      youChanged: !same(loaded[f], yours[f]),
+    })),
     sides: sideChanges(sideView(loaded.sides), sideView(theirs.sides)),
     sidesYouChanged: !same(loaded.sides, yours.sides),
   };
@@ -125,18 +160,30 @@ interface Conflict {
   yours: DiscFormValues;
 }
 
-export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Preselected accession for a new disc. */ accessionId?: string }) {
+export function DiscForm({
+  initial,
+  accessionId,
+}: {
+  initial?: DiscJson;
+  /** Preselected accession for a new disc. */ accessionId?: string;
+}) {
   const editing = !!initial;
   const router = useRouter();
   const queryClient = useQueryClient();
-  const [loaded, setLoaded] = useState<DiscFormValues>(() => (initial ? toFormValues(initial) : { ...emptyValues, accessionId: accessionId ?? "" }));
-  const [statusById, setStatusById] = useState<Record<string, string>>(() => Object.fromEntries((initial?.sides ?? []).map((s) => [s.id, s.status])));
+  const [loaded, setLoaded] = useState<DiscFormValues>(() =>
+    initial ? toFormValues(initial) : { ...emptyValues, accessionId: accessionId ?? "" },
+  );
+  const [statusById, setStatusById] = useState<Record<string, string>>(() =>
+    Object.fromEntries((initial?.sides ?? []).map((s) => [s.id, s.status])),
+  );
   const [conflict, setConflict] = useState<Conflict | null>(null);
   const [notice, setNotice] = useState<{ tone: "error" | "info"; text: string } | null>(null);
   const [newAccession, setNewAccession] = useState(false);
 
   const form = useForm<DiscFormValues>({
-    resolver: zodResolver(editing ? updateDiscSchema : createDiscSchema) as unknown as Resolver<DiscFormValues>,
+    resolver: zodResolver(
+      editing ? updateDiscSchema : createDiscSchema,
+    ) as unknown as Resolver<DiscFormValues>,
     defaultValues: loaded,
     mode: "onTouched",
   });
@@ -145,13 +192,19 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
   const sides = useFieldArray({ control, name: "sides" });
   const format = watch("format");
   const speed = watch("nominalSpeedRpm");
-  const [speedOther, setSpeedOther] = useState(() => !nominalSpeeds.map(String).includes(loaded.nominalSpeedRpm));
+  const [speedOther, setSpeedOther] = useState(
+    () => !nominalSpeeds.map(String).includes(loaded.nominalSpeedRpm),
+  );
 
   useEffect(() => {
     if (!basesAllowed.has(format) && form.getValues("base")) setValue("base", "");
   }, [format, form, setValue]);
 
-  const accessions = useQuery({ queryKey: ["accessions"], queryFn: () => fetchJson<{ accessions: AccessionJson[] }>("/api/accessions"), staleTime: 30_000 });
+  const accessions = useQuery({
+    queryKey: ["accessions"],
+    queryFn: () => fetchJson<{ accessions: AccessionJson[] }>("/api/accessions"),
+    staleTime: 30_000,
+  });
   const accessionName = (id: string) => accessions.data?.accessions.find((a) => a.id === id)?.identifier;
   // The select had only its placeholder when it mounted: once the options arrive, show the chosen one.
   useEffect(() => {
@@ -159,7 +212,11 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
   }, [accessions.data, form, setValue]);
 
   const save = useMutation<{ disc: DiscJson }, AppError, { body: unknown; yours: DiscFormValues }>({
-    mutationFn: ({ body }) => fetchJson(editing ? `/api/discs/${initial!.id}` : "/api/discs", { method: editing ? "PATCH" : "POST", body: JSON.stringify(body) }),
+    mutationFn: ({ body }) =>
+      fetchJson(editing ? `/api/discs/${initial!.id}` : "/api/discs", {
+        method: editing ? "PATCH" : "POST",
+        body: JSON.stringify(body),
+      }),
     onMutate: () => {
       setNotice(null);
       setConflict(null);
@@ -180,7 +237,11 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
       let placed = false;
       for (const [path, msgs] of Object.entries(e.fields ?? {})) {
         if (path === "_") continue;
-        setError(path as FieldPath<DiscFormValues>, { type: "server", message: msgs.join(" ") }, { shouldFocus: !placed });
+        setError(
+          path as FieldPath<DiscFormValues>,
+          { type: "server", message: msgs.join(" ") },
+          { shouldFocus: !placed },
+        );
         placed = true;
       }
       setNotice({ tone: "error", text: placed ? `${e.message} See the marked fields.` : e.message });
@@ -191,7 +252,10 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
     const raw = form.getValues();
     const out = parsed as unknown as Record<string, unknown> & { sides: Record<string, unknown>[] };
     // The schema drops the field array's bookkeeping; put each side's record id back.
-    out.sides = out.sides.map((s, i) => ({ ...s, ...(raw.sides[i]?.sideId ? { id: raw.sides[i].sideId } : {}) }));
+    out.sides = out.sides.map((s, i) => ({
+      ...s,
+      ...(raw.sides[i]?.sideId ? { id: raw.sides[i].sideId } : {}),
+    }));
     if (editing) out.version = loaded.version;
     save.mutate({ body: out, yours: raw });
   });
@@ -233,21 +297,46 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
     return m ? [m] : undefined;
   };
 
-  const input = (name: FieldPath<DiscFormValues>, label: string, props: Record<string, unknown> = {}, hint?: ReactNode) => {
+  const input = (
+    name: FieldPath<DiscFormValues>,
+    label: string,
+    props: Record<string, unknown> = {},
+    hint?: ReactNode,
+  ) => {
     const id = `disc-${name.replace(/\./g, "-")}`;
     const e = err(name);
     return (
       <FieldShell id={id} label={label} errors={e} hint={hint}>
-        <input id={id} aria-invalid={e ? true : undefined} aria-describedby={e ? `${id}-error` : hint ? `${id}-hint` : undefined} className={controlClass(!!e)} {...register(name)} {...props} />
+        <input
+          id={id}
+          aria-invalid={e ? true : undefined}
+          aria-describedby={e ? `${id}-error` : hint ? `${id}-hint` : undefined}
+          className={controlClass(!!e)}
+          {...register(name)}
+          {...props}
+        />
       </FieldShell>
     );
   };
-  const select = (name: FieldPath<DiscFormValues>, label: string, options: [string, string][], props: Record<string, unknown> = {}, hint?: ReactNode) => {
+  const select = (
+    name: FieldPath<DiscFormValues>,
+    label: string,
+    options: [string, string][],
+    props: Record<string, unknown> = {},
+    hint?: ReactNode,
+  ) => {
     const id = `disc-${name}`;
     const e = err(name);
     return (
       <FieldShell id={id} label={label} errors={e} hint={hint}>
-        <select id={id} aria-invalid={e ? true : undefined} aria-describedby={e ? `${id}-error` : hint ? `${id}-hint` : undefined} className={controlClass(!!e)} {...register(name)} {...props}>
+        <select
+          id={id}
+          aria-invalid={e ? true : undefined}
+          aria-describedby={e ? `${id}-error` : hint ? `${id}-hint` : undefined}
+          className={controlClass(!!e)}
+          {...register(name)}
+          {...props}
+        >
           {options.map(([v, l]) => (
             <option key={v} value={v}>
               {l}
@@ -268,8 +357,16 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
   const base = watch("base");
 
   return (
-    <form onSubmit={onSubmit} noValidate className="space-y-6" data-testid="disc-form" aria-label={editing ? "Edit disc" : "New disc"}>
-      {conflict ? <ConflictPanel conflict={conflict} accessionName={accessionName} onReload={reload} /> : null}
+    <form
+      onSubmit={onSubmit}
+      noValidate
+      className="space-y-6"
+      data-testid="disc-form"
+      aria-label={editing ? "Edit disc" : "New disc"}
+    >
+      {conflict ? (
+        <ConflictPanel conflict={conflict} accessionName={accessionName} onReload={reload} />
+      ) : null}
       {notice ? (
         <Notice tone={notice.tone} testId="disc-form-notice">
           {notice.text}
@@ -283,9 +380,29 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
               <div className="space-y-2 md:col-span-2">
                 <div className="flex flex-wrap items-end gap-3">
                   <div className="min-w-64 flex-1">
-                    {select("accessionId", "Accession", [["", accessions.isLoading ? "Loading…" : "Choose the accession"], ...(accessions.data?.accessions ?? []).map((a): [string, string] => [a.id, `${a.identifier} — ${a.source}`])], {}, "The batch this disc arrived in.")}
+                    {select(
+                      "accessionId",
+                      "Accession",
+                      [
+                        ["", accessions.isLoading ? "Loading…" : "Choose the accession"],
+                        ...(accessions.data?.accessions ?? []).map((a): [string, string] => [
+                          a.id,
+                          `${a.identifier} — ${a.source}`,
+                        ]),
+                      ],
+                      {},
+                      "The batch this disc arrived in.",
+                    )}
                   </div>
-                  <Button type="button" variant="secondary" size="sm" className="mb-6" aria-expanded={newAccession} onClick={() => setNewAccession((v) => !v)} data-testid="toggle-new-accession">
+                  <Button
+                    type="button"
+                    variant="secondary"
+                    size="sm"
+                    className="mb-6"
+                    aria-expanded={newAccession}
+                    onClick={() => setNewAccession((v) => !v)}
+                    data-testid="toggle-new-accession"
+                  >
                     {newAccession ? "Close" : "New accession…"}
                   </Button>
                 </div>
@@ -295,27 +412,56 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
                       testId="inline-accession"
                       onCancel={() => setNewAccession(false)}
                       onCreated={(a) => {
-                        void queryClient.invalidateQueries({ queryKey: ["accessions"] }).then(() => setValue("accessionId", a.id, { shouldValidate: true, shouldDirty: true }));
+                        void queryClient
+                          .invalidateQueries({ queryKey: ["accessions"] })
+                          .then(() =>
+                            setValue("accessionId", a.id, { shouldValidate: true, shouldDirty: true }),
+                          );
                         setNewAccession(false);
                       }}
                     />
                   </div>
                 ) : null}
               </div>
-              {input("shelfMark", "Shelf mark", { autoComplete: "off", className: controlClass(!!err("shelfMark"), "font-mono") })}
+              {input("shelfMark", "Shelf mark", {
+                autoComplete: "off",
+                className: controlClass(!!err("shelfMark"), "font-mono"),
+              })}
               {input("labelName", "Label")}
-              {input("catalogueNumber", "Catalogue number", { className: controlClass(!!err("catalogueNumber"), "font-mono") })}
+              {input("catalogueNumber", "Catalogue number", {
+                className: controlClass(!!err("catalogueNumber"), "font-mono"),
+              })}
             </div>
           </Panel>
 
           <Panel title="Carrier">
             <div className="grid gap-4 md:grid-cols-3">
-              {select("format", "Format", discFormats.map((f) => [f, formatLabels[f]]))}
+              {select(
+                "format",
+                "Format",
+                discFormats.map((f) => [f, formatLabels[f]]),
+              )}
               {basesAllowed.has(format) ? (
-                select("base", "Base", [["", "Not recorded"], ...discBases.map((b): [string, string] => [b, baseLabels[b]])], {}, "Lacquer and transcription discs only.")
+                select(
+                  "base",
+                  "Base",
+                  [["", "Not recorded"], ...discBases.map((b): [string, string] => [b, baseLabels[b]])],
+                  {},
+                  "Lacquer and transcription discs only.",
+                )
               ) : (
-                <FieldShell id="disc-base-na" label="Base" hint="Recorded for lacquer and transcription discs only.">
-                  <input id="disc-base-na" disabled value="—" className={controlClass(false, "opacity-60")} readOnly />
+                <FieldShell
+                  id="disc-base-na"
+                  label="Base"
+                  hint="Recorded for lacquer and transcription discs only."
+                >
+                  <input
+                    id="disc-base-na"
+                    disabled
+                    value="—"
+                    className={controlClass(false, "opacity-60")}
+                    readOnly
+                  />
                 </FieldShell>
               )}
               {input("diameterIn", "Diameter (inches)", { inputMode: "decimal" })}
@@ -331,7 +477,10 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
                       setSpeedOther(true);
                     } else {
                       setSpeedOther(false);
-                      setValue("nominalSpeedRpm", e.target.value, { shouldValidate: true, shouldDirty: true });
+                      setValue("nominalSpeedRpm", e.target.value, {
+                        shouldValidate: true,
+                        shouldDirty: true,
+                      });
                     }
                   }}
                   className={controlClass(!!err("nominalSpeedRpm"))}
@@ -343,26 +492,47 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
                   ))}
                   <option value="other">Other…</option>
                 </select>
-                {!speedOther && err("nominalSpeedRpm") ? <p className="text-xs font-medium text-alarm">{err("nominalSpeedRpm")}</p> : null}
+                {!speedOther && err("nominalSpeedRpm") ? (
+                  <p className="text-xs font-medium text-alarm">{err("nominalSpeedRpm")}</p>
+                ) : null}
               </div>
               {speedOther ? input("nominalSpeedRpm", "Other speed (rpm)", { inputMode: "decimal" }) : null}
-              {select("groove", "Groove", [["coarse", "Coarse groove"], ["micro", "Microgroove"]])}
-              {select("cut", "Cut", [["lateral", "Lateral"], ["vertical", "Vertical (hill-and-dale)"]])}
+              {select("groove", "Groove", [
+                ["coarse", "Coarse groove"],
+                ["micro", "Microgroove"],
+              ])}
+              {select("cut", "Cut", [
+                ["lateral", "Lateral"],
+                ["vertical", "Vertical (hill-and-dale)"],
+              ])}
             </div>
           </Panel>
 
           <Panel title="Date">
             <div className="grid gap-4 md:grid-cols-3">
               {input("recordingDate", "Recording date", { type: "date" }, "When known exactly.")}
-              {input("recordedFromYear", "Recorded from (year)", { inputMode: "numeric", placeholder: "e.g. 1931" })}
-              {input("recordedToYear", "Recorded to (year)", { inputMode: "numeric", placeholder: "e.g. 1933" })}
+              {input("recordedFromYear", "Recorded from (year)", {
+                inputMode: "numeric",
+                placeholder: "e.g. 1931",
+              })}
+              {input("recordedToYear", "Recorded to (year)", {
+                inputMode: "numeric",
+                placeholder: "e.g. 1933",
+              })}
             </div>
           </Panel>
 
           <Panel
             title="Sides"
             actions={
-              <Button type="button" size="sm" variant="secondary" disabled={sides.fields.length >= 8} onClick={() => sides.append(blankSide(nextDesignation()))} data-testid="add-side">
+              <Button
+                type="button"
+                size="sm"
+                variant="secondary"
+                disabled={sides.fields.length >= 8}
+                onClick={() => sides.append(blankSide(nextDesignation()))}
+                data-testid="add-side"
+              >
                 Add side
               </Button>
             }
@@ -372,17 +542,30 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
                 {err("sides")}
               </p>
             ) : null}
-            {sides.fields.length === 0 ? <p className="text-sm text-ink-faint">No sides yet. Add the sides you can read from the disc.</p> : null}
+            {sides.fields.length === 0 ? (
+              <p className="text-sm text-ink-faint">
+                No sides yet. Add the sides you can read from the disc.
+              </p>
+            ) : null}
             <ol className="space-y-4">
               {sides.fields.map((f, i) => {
                 const sideId = form.getValues(`sides.${i}.sideId`);
                 const status = sideId ? statusById[sideId] : undefined;
                 const locked = !!status && status !== "catalogued";
                 return (
-                  <li key={f.id} className="rounded-lg border border-paper-edge bg-paper/40 p-4" data-testid={`side-row-${i}`}>
+                  <li
+                    key={f.id}
+                    className="rounded-lg border border-paper-edge bg-paper/40 p-4"
+                    data-testid={`side-row-${i}`}
+                  >
                     <div className="mb-3 flex items-center justify-between gap-3">
                       <p className="text-sm font-semibold">
-                        Side {i + 1} {status ? <StatusBadge status={status} /> : <span className="text-xs font-normal text-ink-faint">new</span>}
+                        Side {i + 1}{" "}
+                        {status ? (
+                          <StatusBadge status={status} />
+                        ) : (
+                          <span className="text-xs font-normal text-ink-faint">new</span>
+                        )}
                       </p>
                       <Button
                         type="button"
@@ -397,13 +580,21 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
                       </Button>
                     </div>
                     <div className="grid gap-3 md:grid-cols-[6rem_1fr_6rem]">
-                      {input(`sides.${i}.designation`, "Side", { className: controlClass(!!err(`sides.${i}.designation`), "font-mono"), "data-testid": `side-${i}-designation` })}
-                      {input(`sides.${i}.matrixNumber`, "Matrix number", { className: controlClass(!!err(`sides.${i}.matrixNumber`), "font-mono"), "data-testid": `side-${i}-matrix` })}
+                      {input(`sides.${i}.designation`, "Side", {
+                        className: controlClass(!!err(`sides.${i}.designation`), "font-mono"),
+                        "data-testid": `side-${i}-designation`,
+                      })}
+                      {input(`sides.${i}.matrixNumber`, "Matrix number", {
+                        className: controlClass(!!err(`sides.${i}.matrixNumber`), "font-mono"),
+                        "data-testid": `side-${i}-matrix`,
+                      })}
                       {input(`sides.${i}.take`, "Take", { "data-testid": `side-${i}-take` })}
                     </div>
                     <div className="mt-3 grid gap-3 md:grid-cols-2">
                       {input(`sides.${i}.title`, "Title", { "data-testid": `side-${i}-title` })}
-                      {input(`sides.${i}.performers`, "Performers", { "data-testid": `side-${i}-performers` })}
+                      {input(`sides.${i}.performers`, "Performers", {
+                        "data-testid": `side-${i}-performers`,
+                      })}
                     </div>
                     <div className="mt-3">{input(`sides.${i}.notes`, "Notes")}</div>
                   </li>
@@ -416,27 +607,57 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
         <div className="space-y-6">
           <Panel title="Condition">
             <div className="space-y-4">
-              {select("conditionGrade", "Condition", conditionGrades.map((g) => [g, conditionLabels[g]]))}
+              {select(
+                "conditionGrade",
+                "Condition",
+                conditionGrades.map((g) => [g, conditionLabels[g]]),
+              )}
               <fieldset>
                 <legend className="mb-1.5 text-sm font-medium">Condition flags</legend>
                 <div className="grid grid-cols-2 gap-1.5">
                   {conditionFlags.map((f) => (
                     <label key={f} className="flex items-center gap-2 text-sm">
-                      <input type="checkbox" value={f} {...register("conditionFlags")} className="h-4 w-4 accent-shellac" />
+                      <input
+                        type="checkbox"
+                        value={f}
+                        {...register("conditionFlags")}
+                        className="h-4 w-4 accent-shellac"
+                      />
                       {flagLabels[f]}
                     </label>
                   ))}
                 </div>
               </fieldset>
               <FieldShell id="disc-conditionNotes" label="Condition notes" errors={err("conditionNotes")}>
-                <textarea id="disc-conditionNotes" rows={3} className={controlClass(!!err("conditionNotes"))} {...register("conditionNotes")} />
+                <textarea
+                  id="disc-conditionNotes"
+                  rows={3}
+                  className={controlClass(!!err("conditionNotes"))}
+                  {...register("conditionNotes")}
+                />
               </FieldShell>
-              <FieldShell id="disc-handlingNotes" label="Handling notes" errors={err("handlingNotes")} hint="Anything the next person to handle it should know.">
-                <textarea id="disc-handlingNotes" rows={3} aria-describedby="disc-handlingNotes-hint" className={controlClass(!!err("handlingNotes"))} {...register("handlingNotes")} />
+              <FieldShell
+                id="disc-handlingNotes"
+                label="Handling notes"
+                errors={err("handlingNotes")}
+                hint="Anything the next person to handle it should know."
+              >
+                <textarea
+                  id="disc-handlingNotes"
+                  rows={3}
+                  aria-describedby="disc-handlingNotes-hint"
+                  className={controlClass(!!err("handlingNotes"))}
+                  {...register("handlingNotes")}
+                />
               </FieldShell>
             </div>
           </Panel>
-          <HandlingCautions format={format} base={base || null} conditionFlags={flags ?? []} conditionGrade={grade} />
+          <HandlingCautions
+            format={format}
+            base={base || null}
+            conditionFlags={flags ?? []}
+            conditionGrade={grade}
+          />
         </div>
       </div>
 
@@ -444,21 +665,41 @@ export function DiscForm({ initial, accessionId }: { initial?: DiscJson; /** Pre
         <Button type="submit" disabled={save.isPending} data-testid="save-disc">
           {save.isPending ? "Saving…" : editing ? "Save changes" : "Catalogue this disc"}
         </Button>
-        <Link href={editing ? `/catalogue/${initial!.id}` : "/catalogue"} className="rounded px-3 py-2 text-sm text-ink-soft hover:text-ink">
+        <Link
+          href={editing ? `/catalogue/${initial!.id}` : "/catalogue"}
+          className="rounded px-3 py-2 text-sm text-ink-soft hover:text-ink"
+        >
           Cancel
         </Link>
-        {editing ? <span className="ml-auto font-mono text-xs text-ink-faint">editing from version {loaded.version}</span> : null}
+        {editing ? (
+          <span className="ml-auto font-mono text-xs text-ink-faint">
+            editing from version {loaded.version}
+          </span>
+        ) : null}
       </div>
     </form>
   );
 }
 
-function ConflictPanel({ conflict, accessionName, onReload }: { conflict: Conflict; accessionName: (id: string) => string | undefined; onReload: (keepMine: boolean) => void }) {
+function ConflictPanel({
+  conflict,
+  accessionName,
+  onReload,
+}: {
+  conflict: Conflict;
+  accessionName: (id: string) => string | undefined;
+  onReload: (keepMine: boolean) => void;
+}) {
   const theirs = toFormValues(conflict.current);
   const rows = conflictRows(conflict.loaded, theirs, conflict.yours);
-  const show = (f: string, v: unknown) => fieldText(f, f === "accessionId" ? v : v === "" ? null : v, accessionName);
+  const show = (f: string, v: unknown) =>
+    fieldText(f, f === "accessionId" ? v : v === "" ? null : v, accessionName);
   return (
-    <div role="alert" className="space-y-4 rounded-xl border border-alarm/40 bg-alarm-wash/60 p-5" data-testid="disc-conflict">
+    <div
+      role="alert"
+      className="space-y-4 rounded-xl border border-alarm/40 bg-alarm-wash/60 p-5"
+      data-testid="disc-conflict"
+    >
       <div>
         <p className="font-semibold">Someone else saved this disc while you were editing it.</p>
         <p className="text-sm text-ink-soft">{conflict.message}</p>
@@ -468,25 +709,39 @@ function ConflictPanel({ conflict, accessionName, onReload }: { conflict: Confli
           <table className="w-full text-left text-sm" aria-label="What changed" data-testid="conflict-fields">
             <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
               <tr>
-                <th scope="col" className="px-3 py-2">Field</th>
-                <th scope="col" className="px-3 py-2">Theirs (saved, version {conflict.current.version})</th>
-                <th scope="col" className="px-3 py-2">Yours (not saved)</th>
+                <th scope="col" className="px-3 py-2">
+                  Field
+                </th>
+                <th scope="col" className="px-3 py-2">
+                  Theirs (saved, version {conflict.current.version})
+                </th>
+                <th scope="col" className="px-3 py-2">
+                  Yours (not saved)
+                </th>
               </tr>
             </thead>
             <tbody>
               {rows.fields.map((r) => (
                 <tr key={r.field} className="border-t border-paper-edge/70">
-                  <th scope="row" className="px-3 py-2 font-medium">{discFieldLabels[r.field]}</th>
+                  <th scope="row" className="px-3 py-2 font-medium">
+                    {discFieldLabels[r.field]}
+                  </th>
                   <td className="px-3 py-2">{show(r.field, r.theirs)}</td>
                   <td className="px-3 py-2">
                     {show(r.field, r.yours)}
-                    {r.youChanged ? <span className="ml-2 rounded bg-shellac-wash px-1.5 text-xs text-shellac-deep">you changed this too</span> : null}
+                    {r.youChanged ? (
+                      <span className="ml-2 rounded bg-shellac-wash px-1.5 text-xs text-shellac-deep">
+                        you changed this too
+                      </span>
+                    ) : null}
                   </td>
                 </tr>
               ))}
               {rows.sides.length ? (
                 <tr className="border-t border-paper-edge/70 align-top">
-                  <th scope="row" className="px-3 py-2 font-medium">Sides</th>
+                  <th scope="row" className="px-3 py-2 font-medium">
+                    Sides
+                  </th>
                   <td className="px-3 py-2">
                     <ul className="list-disc pl-4 text-xs">
                       {rows.sides.map((s) => (
@@ -494,20 +749,29 @@ function ConflictPanel({ conflict, accessionName, onReload }: { conflict: Confli
                       ))}
                     </ul>
                   </td>
-                  <td className="px-3 py-2 text-xs">{rows.sidesYouChanged ? "You changed the sides too." : "You did not change the sides."}</td>
+                  <td className="px-3 py-2 text-xs">
+                    {rows.sidesYouChanged ? "You changed the sides too." : "You did not change the sides."}
+                  </td>
                 </tr>
               ) : null}
             </tbody>
           </table>
         </div>
       ) : (
-        <p className="text-sm">Their save changed no field you can edit here (for example, a side moved along the workflow).</p>
+        <p className="text-sm">
+          Their save changed no field you can edit here (for example, a side moved along the workflow).
+        </p>
       )}
       <div className="flex flex-wrap gap-2">
         <Button type="button" onClick={() => onReload(true)} data-testid="conflict-reapply">
           Load their version and reapply my changes
         </Button>
-        <Button type="button" variant="secondary" onClick={() => onReload(false)} data-testid="conflict-reload">
+        <Button
+          type="button"
+          variant="secondary"
+          onClick={() => onReload(false)}
+          data-testid="conflict-reload"
+        >
           Load their version, drop mine
         </Button>
       </div>

@@ -32,7 +32,11 @@ export const sideFieldLabels: Record<string, string> = {
 };
 
 /** A field's value as words a person reads ("—" for nothing given). */
-export function fieldText(field: string, value: unknown, accessionName?: (id: string) => string | undefined): string {
+export function fieldText(
+  field: string,
+  value: unknown,
+  accessionName?: (id: string) => string | undefined,
+): string {
   if (value === null || value === undefined || value === "") return "—";
   switch (field) {
     case "format":
@@ -76,7 +80,8 @@ export function sideChanges(before: SideLike[], after: SideLike[]): string[] {
   const seen = new Set<string>();
   for (const s of after) {
     const k = key(s);
-    const o = old.get(k) ?? before.find((b) => !b.id && b.designation.toLowerCase() === s.designation.toLowerCase());
+    const o =
+      old.get(k) ?? before.find((b) => !b.id && b.designation.toLowerCase() === s.designation.toLowerCase());
     if (!o) {
       out.push(`side ${s.designation} added${s.matrixNumber ? ` (matrix ${s.matrixNumber})` : ""}`);
       continue;

@@ -38,7 +38,12 @@ export const flagLabels: Record<string, string> = {
   scratches: "Scratches",
 };
 
-export const baseLabels: Record<string, string> = { aluminium: "Aluminium", glass: "Glass", card: "Card", unknown: "Unknown" };
+export const baseLabels: Record<string, string> = {
+  aluminium: "Aluminium",
+  glass: "Glass",
+  card: "Card",
+  unknown: "Unknown",
+};
 
 const dateTime = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
 export function when(at: string | Date): string {

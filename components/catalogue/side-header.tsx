@@ -49,12 +49,19 @@ export function SideHeader({
             </Link>
             <span className="text-ink-faint"> · </span>side {side.designation}
           </h1>
-          <p className="text-ink-soft">{[side.title, side.performers].filter(Boolean).join(" — ") || <span className="text-ink-faint">untitled</span>}</p>
+          <p className="text-ink-soft">
+            {[side.title, side.performers].filter(Boolean).join(" — ") || (
+              <span className="text-ink-faint">untitled</span>
+            )}
+          </p>
           <dl className="flex flex-wrap gap-x-5 gap-y-1 pt-1 text-sm">
             <Fact k="Label" v={[disc.labelName, disc.catalogueNumber].filter(Boolean).join(" ") || "—"} />
             <Fact k="Matrix" v={side.matrixNumber || "—"} mono />
             <Fact k="Take" v={side.take || "—"} mono />
-            <Fact k="Carrier" v={`${formatLabel(disc.format)} · ${speedLabel(disc.nominalSpeedRpm)} rpm · ${disc.groove} groove · ${disc.cut} cut`} />
+            <Fact
+              k="Carrier"
+              v={`${formatLabel(disc.format)} · ${speedLabel(disc.nominalSpeedRpm)} rpm · ${disc.groove} groove · ${disc.cut} cut`}
+            />
             {extraFacts.map((f) => (
               <Fact key={f.k} {...f} />
             ))}
@@ -65,7 +72,12 @@ export function SideHeader({
           {aside}
         </div>
       </header>
-      <HandlingCautions format={disc.format} base={disc.base} conditionFlags={disc.conditionFlags} conditionGrade={disc.conditionGrade} />
+      <HandlingCautions
+        format={disc.format}
+        base={disc.base}
+        conditionFlags={disc.conditionFlags}
+        conditionGrade={disc.conditionGrade}
+      />
       {notes ? (
         <Notice tone="caution" title="Notes logged for this disc">
           {disc.conditionNotes ? <p>Condition: {disc.conditionNotes}</p> : null}

@@ -34,16 +34,31 @@ const stepLabels: Record<string, string> = {
  */
 export function stepsFor(side: SideJson, steps: readonly Step[], user: { id: string; role: Role }): Step[] {
   return steps.filter(
-    (t) => t.from === side.status && (t.via === "submit" || t.via === "review") && can(user.role, t.action) && (!t.assignedOnly || side.assignedEngineerId === user.id),
+    (t) =>
+      t.from === side.status &&
+      (t.via === "submit" || t.via === "review") &&
+      can(user.role, t.action) &&
+      (!t.assignedOnly || side.assignedEngineerId === user.id),
   );
 }
 
-export function SideSteps({ side, steps, user, onMoved }: { side: SideJson; steps: readonly Step[]; user: { id: string; role: Role }; onMoved: () => void }) {
+export function SideSteps({
+  side,
+  steps,
+  user,
+  onMoved,
+}: {
+  side: SideJson;
+  steps: readonly Step[];
+  user: { id: string; role: Role };
+  onMoved: () => void;
+}) {
   const id = useId();
   const [asking, setAsking] = useState<Step | null>(null);
   const [reason, setReason] = useState("");
   const move = useMutation<unknown, AppError, { to: string; reason?: string }>({
-    mutationFn: (v: { to: string; reason?: string }) => fetchJson(`/api/sides/${side.id}/transition`, { method: "POST", body: JSON.stringify(v) }),
+    mutationFn: (v: { to: string; reason?: string }) =>
+      fetchJson(`/api/sides/${side.id}/transition`, { method: "POST", body: JSON.stringify(v) }),
     onSuccess: () => {
       setAsking(null);
       setReason("");

@@ -2,7 +2,9 @@ import type { DiscListRow } from "@/lib/catalogue/list-query";
 import type { DiscRecord, SideRecord } from "@/lib/catalogue/records";
 
 /** Shapes of the catalogue API answers as the browser receives them (dates as ISO text). */
-type AsJson<T> = { [K in keyof T]: T[K] extends Date ? string : T[K] extends Date | null ? string | null : T[K] };
+type AsJson<T> = {
+  [K in keyof T]: T[K] extends Date ? string : T[K] extends Date | null ? string | null : T[K];
+};
 
 export type SideJson = AsJson<SideRecord>;
 export type DiscJson = Omit<AsJson<DiscRecord>, "sides"> & { sides: SideJson[] };

@@ -6,7 +6,17 @@
  * field they name.
  */
 import { useId, useState } from "react";
-import { type CornerInput, type CornerName, type CornerUnit, type CurveSpec, db10kToUs, hzToUs, parseRolloffDb, usToDb10k, usToHz } from "@/lib/curves";
+import {
+  type CornerInput,
+  type CornerName,
+  type CornerUnit,
+  type CurveSpec,
+  db10kToUs,
+  hzToUs,
+  parseRolloffDb,
+  usToDb10k,
+  usToHz,
+} from "@/lib/curves";
 import { cx } from "@/components/ui/cx";
 import { formatNumber } from "./plot-format";
 
@@ -25,15 +35,49 @@ interface CornerDef {
 }
 
 const CORNERS: CornerDef[] = [
-  { name: "turnover", title: "Bass turnover", role: "Bass boost rises below it at 6 dB/octave.", units: ["hz", "us"], startUs: 318 },
-  { name: "shelf", title: "Low-frequency shelf", role: "Where the bass boost levels off.", units: ["hz", "us"], startUs: 3180 },
-  { name: "rolloff", title: "Treble rolloff", role: "Playback cut in the treble, quoted as its attenuation at 10 kHz (10 and −10 both mean 10 dB of cut).", units: ["db10k", "us", "hz"], startUs: 75 },
-  { name: "highpass", title: "Rumble high-pass", role: "Cuts subsonic rumble below it.", units: ["hz", "us"], startUs: 7950 },
-  { name: "ultrasonic", title: "Ultrasonic zero", role: "A rise far above the audio band, from some cutting chains.", units: ["hz", "us"], startUs: 3.18 },
+  {
+    name: "turnover",
+    title: "Bass turnover",
+    role: "Bass boost rises below it at 6 dB/octave.",
+    units: ["hz", "us"],
+    startUs: 318,
+  },
+  {
+    name: "shelf",
+    title: "Low-frequency shelf",
+    role: "Where the bass boost levels off.",
+    units: ["hz", "us"],
+    startUs: 3180,
+  },
+  {
+    name: "rolloff",
+    title: "Treble rolloff",
+    role: "Playback cut in the treble, quoted as its attenuation at 10 kHz (10 and −10 both mean 10 dB of cut).",
+    units: ["db10k", "us", "hz"],
+    startUs: 75,
+  },
+  {
+    name: "highpass",
+    title: "Rumble high-pass",
+    role: "Cuts subsonic rumble below it.",
+    units: ["hz", "us"],
+    startUs: 7950,
+  },
+  {
+    name: "ultrasonic",
+    title: "Ultrasonic zero",
+    role: "A rise far above the audio band, from some cutting chains.",
+    units: ["hz", "us"],
+    startUs: 3.18,
+  },
 ];
 
 const UNIT_LABEL: Record<CornerUnit, string> = { hz: "Hz", us: "µs", db10k: "Attenuation at 10 kHz (dB)" };
-const UNIT_WORDS: Record<CornerUnit, string> = { hz: "in Hz", us: "in µs", db10k: "in dB of attenuation at 10 kHz" };
+const UNIT_WORDS: Record<CornerUnit, string> = {
+  hz: "in Hz",
+  us: "in µs",
+  db10k: "in dB of attenuation at 10 kHz",
+};
 
 /** Typed text → number; empty or unreadable text gives NaN, which lib/curves refuses with a message naming the field. */
 export function parseNumber(text: string): number {
@@ -48,7 +92,11 @@ export function parseCornerText(unit: CornerUnit, text: string): number {
 }
 
 function tauOf(input: CornerInput): number {
-  return input.unit === "hz" ? hzToUs(input.value) : input.unit === "us" ? input.value : db10kToUs(input.value);
+  return input.unit === "hz"
+    ? hzToUs(input.value)
+    : input.unit === "us"
+      ? input.value
+      : db10kToUs(input.value);
 }
 
 /** The corner shown in another unit; "" where it has no value (0 dB rolloff, unreadable input). */
@@ -56,14 +104,26 @@ function derived(input: CornerInput, unit: CornerUnit): string {
   if (!Number.isFinite(input.value)) return "";
   if (unit === input.unit) return String(input.value);
   const tau = tauOf(input);
-  if (!(tau > 0) || !Number.isFinite(tau)) return unit === "db10k" && input.unit === "db10k" ? String(input.value) : "";
+  if (!(tau > 0) || !Number.isFinite(tau))
+    return unit === "db10k" && input.unit === "db10k" ? String(input.value) : "";
   const v = unit === "hz" ? usToHz(tau) : unit === "us" ? tau : usToDb10k(tau);
   return unit === "db10k" ? v.toFixed(2) : formatNumber(v);
 }
 
-const inputBase = "h-9 w-full rounded-md border px-2.5 text-sm font-mono shadow-inner shadow-paper-deep/60 focus:border-shellac";
+const inputBase =
+  "h-9 w-full rounded-md border px-2.5 text-sm font-mono shadow-inner shadow-paper-deep/60 focus:border-shellac";
 
-function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: CornerInput | null | undefined; onChange: (next: CornerInput | null) => void; error: string | null }) {
+function CornerRow({
+  def,
+  value,
+  onChange,
+  error,
+}: {
+  def: CornerDef;
+  value: CornerInput | null | undefined;
+  onChange: (next: CornerInput | null) => void;
+  error: string | null;
+}) {
   const id = useId();
   const [draft, setDraft] = useState<{ unit: CornerUnit; text: string } | null>(null);
   const [stash, setStash] = useState<CornerInput | null>(null);
@@ -79,7 +139,13 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
   };
 
   return (
-    <fieldset className={cx("rounded-lg border px-3 pb-3 pt-2", on ? "border-paper-edge bg-white" : "border-dashed border-paper-edge bg-transparent")} data-testid={`corner-${def.name}`}>
+    <fieldset
+      className={cx(
+        "rounded-lg border px-3 pb-3 pt-2",
+        on ? "border-paper-edge bg-white" : "border-dashed border-paper-edge bg-transparent",
+      )}
+      data-testid={`corner-${def.name}`}
+    >
       <legend className="sr-only">{def.title}</legend>
       <div className="flex items-start gap-2.5">
         <input
@@ -108,9 +174,14 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
             return (
               // The rolloff's attenuation in dB, the way it is quoted, gets the whole first line.
               <div key={unit} className={cx("space-y-0.5", unit === "db10k" && "col-span-2")}>
-                <label htmlFor={`${id}-${unit}`} className="flex items-center gap-1 text-xs font-medium text-ink-soft">
+                <label
+                  htmlFor={`${id}-${unit}`}
+                  className="flex items-center gap-1 text-xs font-medium text-ink-soft"
+                >
                   {UNIT_LABEL[unit]}
-                  {entered ? <span className="rounded bg-groove-wash px-1 text-[0.65rem] text-groove">as entered</span> : null}
+                  {entered ? (
+                    <span className="rounded bg-groove-wash px-1 text-[0.65rem] text-groove">as entered</span>
+                  ) : null}
                 </label>
                 <input
                   id={`${id}-${unit}`}
@@ -130,7 +201,11 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
                     // Once readable, the field shows the value the one way it is always shown (a rolloff as a positive attenuation).
                     if (draft && Number.isFinite(parseCornerText(draft.unit, draft.text))) setDraft(null);
                   }}
-                  className={cx(inputBase, error ? "border-alarm" : "border-paper-edge", entered ? "bg-white text-ink" : "bg-paper/70 text-ink-soft")}
+                  className={cx(
+                    inputBase,
+                    error ? "border-alarm" : "border-paper-edge",
+                    entered ? "bg-white text-ink" : "bg-paper/70 text-ink-soft",
+                  )}
                 />
               </div>
             );
@@ -138,7 +213,12 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
         </div>
       ) : null}
       {error ? (
-        <p id={`${id}-error`} role="alert" className="mt-2 text-xs font-medium text-alarm" data-testid={`error-${def.name}`}>
+        <p
+          id={`${id}-error`}
+          role="alert"
+          className="mt-2 text-xs font-medium text-alarm"
+          data-testid={`error-${def.name}`}
+        >
           {error}
         </p>
       ) : null}
@@ -146,7 +226,23 @@ function CornerRow({ def, value, onChange, error }: { def: CornerDef; value: Cor
   );
 }
 
-function SmallNumber({ id, label, value, onChange, error, testId, suffix }: { id: string; label: string; value: string; onChange: (text: string) => void; error?: boolean; testId: string; suffix?: string }) {
+function SmallNumber({
+  id,
+  label,
+  value,
+  onChange,
+  error,
+  testId,
+  suffix,
+}: {
+  id: string;
+  label: string;
+  value: string;
+  onChange: (text: string) => void;
+  error?: boolean;
+  testId: string;
+  suffix?: string;
+}) {
   return (
     <div className="space-y-0.5">
       <label htmlFor={id} className="block text-xs font-medium text-ink-soft">
@@ -172,7 +268,15 @@ function SmallNumber({ id, label, value, onChange, error, testId, suffix }: { id
  * Controlled by `spec`; remount it (change its key) when the spec is replaced from outside
  * (a preset loaded, a fit applied) so the typed text starts afresh.
  */
-export function CornerFields({ spec, onChange, error }: { spec: CurveSpec; onChange: (spec: CurveSpec) => void; error: FieldError | null }) {
+export function CornerFields({
+  spec,
+  onChange,
+  error,
+}: {
+  spec: CurveSpec;
+  onChange: (spec: CurveSpec) => void;
+  error: FieldError | null;
+}) {
   const id = useId();
   const ref = spec.reference ?? { hz: 1000, db: 0 };
   const [refHz, setRefHz] = useState(String(ref.hz));
@@ -196,7 +300,13 @@ export function CornerFields({ spec, onChange, error }: { spec: CurveSpec; onCha
   return (
     <div className="space-y-3" data-testid="corner-fields">
       {CORNERS.map((def) => (
-        <CornerRow key={def.name} def={def} value={spec[def.name]} error={errorFor(def.name)} onChange={(next) => onChange({ ...spec, [def.name]: next })} />
+        <CornerRow
+          key={def.name}
+          def={def}
+          value={spec[def.name]}
+          error={errorFor(def.name)}
+          onChange={(next) => onChange({ ...spec, [def.name]: next })}
+        />
       ))}
 
       <fieldset className="rounded-lg border border-paper-edge bg-white px-3 pb-3 pt-2">
@@ -237,11 +347,34 @@ export function CornerFields({ spec, onChange, error }: { spec: CurveSpec; onCha
 
       <fieldset className="rounded-lg border border-paper-edge bg-white px-3 pb-3 pt-2">
         <legend className="px-1 text-sm font-semibold text-ink">Speed</legend>
-        <p className="mb-2 text-xs text-ink-faint">Played at another speed than it was cut, every corner moves by transfer ÷ cut.</p>
+        <p className="mb-2 text-xs text-ink-faint">
+          Played at another speed than it was cut, every corner moves by transfer ÷ cut.
+        </p>
         <div className="grid grid-cols-[1fr_1fr_auto] items-end gap-2">
-          <SmallNumber id={`${id}-cut`} label="Cut at" suffix="rpm" value={cutRpm} error={!!speedError} testId="cut-rpm" onChange={(t) => setSpeeds(t, transferRpm)} />
-          <SmallNumber id={`${id}-transfer`} label="Transferred at" suffix="rpm" value={transferRpm} error={!!speedError} testId="transfer-rpm" onChange={(t) => setSpeeds(cutRpm, t)} />
-          <output htmlFor={`${id}-cut ${id}-transfer`} className="pb-2 font-mono text-sm text-ink" data-testid="speed-ratio" aria-label="Speed ratio">
+          <SmallNumber
+            id={`${id}-cut`}
+            label="Cut at"
+            suffix="rpm"
+            value={cutRpm}
+            error={!!speedError}
+            testId="cut-rpm"
+            onChange={(t) => setSpeeds(t, transferRpm)}
+          />
+          <SmallNumber
+            id={`${id}-transfer`}
+            label="Transferred at"
+            suffix="rpm"
+            value={transferRpm}
+            error={!!speedError}
+            testId="transfer-rpm"
+            onChange={(t) => setSpeeds(cutRpm, t)}
+          />
+          <output
+            htmlFor={`${id}-cut ${id}-transfer`}
+            className="pb-2 font-mono text-sm text-ink"
+            data-testid="speed-ratio"
+            aria-label="Speed ratio"
+          >
             ×{Number.isFinite(ratio) ? ratio.toFixed(4) : "—"}
           </output>
         </div>

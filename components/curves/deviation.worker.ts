@@ -7,7 +7,10 @@ import { CurveError, filterDeviations } from "@/lib/curves";
 import type { DeviationRequest, DeviationResponse } from "@/hooks/use-filter-deviation";
 
 // The page's lib types this file as a window; a dedicated worker only needs these two.
-const scope = self as unknown as { onmessage: ((e: MessageEvent<DeviationRequest>) => void) | null; postMessage(message: DeviationResponse): void };
+const scope = self as unknown as {
+  onmessage: ((e: MessageEvent<DeviationRequest>) => void) | null;
+  postMessage(message: DeviationResponse): void;
+};
 
 scope.onmessage = (e) => {
   const { id, spec, sampleRateHz } = e.data;
@@ -16,6 +19,11 @@ scope.onmessage = (e) => {
     const result = filterDeviations(spec, sampleRateHz);
     scope.postMessage({ id, ok: true, result, ms: performance.now() - started });
   } catch (err) {
-    scope.postMessage({ id, ok: false, message: err instanceof Error ? err.message : String(err), parameter: err instanceof CurveError ? err.parameter : null });
+    scope.postMessage({
+      id,
+      ok: false,
+      message: err instanceof Error ? err.message : String(err),
+      parameter: err instanceof CurveError ? err.parameter : null,
+    });
   }
 };

@@ -40,7 +40,11 @@ const PARAMS: FitParameter[] = ["turnover", "shelf", "rolloff", "highpass", "ult
 function exampleTable(): string {
   const model = analogModel(RIAA_SPEC);
   const hz = [20, 30, 50, 70, 100, 200, 300, 500, 700, 1000, 2000, 3000, 5000, 7000, 10_000, 15_000, 20_000];
-  return ["hz,db", "# recording characteristic, worked out from 3180/318/75 µs", ...hz.map((f) => `${f},${(-analogGainDb(model, f)).toFixed(2)}`)].join("\n");
+  return [
+    "hz,db",
+    "# recording characteristic, worked out from 3180/318/75 µs",
+    ...hz.map((f) => `${f},${(-analogGainDb(model, f)).toFixed(2)}`),
+  ].join("\n");
 }
 
 export interface FitPoints {
@@ -49,7 +53,15 @@ export interface FitPoints {
   label: string;
 }
 
-export function FitPanel({ spec, onLoad, onPoints }: { spec: CurveSpec; onLoad: (spec: CurveSpec) => void; onPoints: (p: FitPoints | null) => void }) {
+export function FitPanel({
+  spec,
+  onLoad,
+  onPoints,
+}: {
+  spec: CurveSpec;
+  onLoad: (spec: CurveSpec) => void;
+  onPoints: (p: FitPoints | null) => void;
+}) {
   const id = useId();
   const [text, setText] = useState("");
   const [kind, setKind] = useState<"playback" | "recording">("recording");
@@ -76,26 +88,36 @@ export function FitPanel({ spec, onLoad, onPoints }: { spec: CurveSpec; onLoad: 
       points = parsePointsCsv(text);
     } catch (err) {
       onPoints(null);
-      setError({ title: "The table cannot be read", message: err instanceof PointsParseError ? err.message : String(err) });
+      setError({
+        title: "The table cannot be read",
+        message: err instanceof PointsParseError ? err.message : String(err),
+      });
       return;
     }
     try {
       const r = fitCurve({ points, kind, fit: params, initial: spec });
       setResult(r);
       onPoints({
-        points: r.residuals.map((p) => ({ hz: p.hz, db: (kind === "recording" ? -p.db : p.db) - r.levelOffsetDb })),
+        points: r.residuals.map((p) => ({
+          hz: p.hz,
+          db: (kind === "recording" ? -p.db : p.db) - r.levelOffsetDb,
+        })),
         label: `Fit points (${kind === "recording" ? "recording table, sign turned" : "playback"}${Math.abs(r.levelOffsetDb) > 0.005 ? `, level ${formatSigned(-r.levelOffsetDb, 2)} dB` : ""})`,
       });
     } catch (err) {
       const sign = kind === "recording" ? -1 : 1;
       onPoints({ points: points.map((p) => ({ hz: p.hz, db: sign * p.db })), label: "Points (not fitted)" });
       const message = err instanceof Error ? err.message : String(err);
-      const where = err instanceof CurveError && err.parameter in PARAM_LABEL ? ` (${PARAM_LABEL[err.parameter as FitParameter]})` : "";
+      const where =
+        err instanceof CurveError && err.parameter in PARAM_LABEL
+          ? ` (${PARAM_LABEL[err.parameter as FitParameter]})`
+          : "";
       setError({ title: `The fit cannot determine the curve${where}`, message });
     }
   };
 
-  const toggle = (p: FitParameter, on: boolean) => setParams((cur) => (on ? [...cur, p] : cur.filter((x) => x !== p)));
+  const toggle = (p: FitParameter, on: boolean) =>
+    setParams((cur) => (on ? [...cur, p] : cur.filter((x) => x !== p)));
 
   return (
     <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,1.15fr)]" data-testid="fit-panel">
@@ -121,7 +143,8 @@ export function FitPanel({ spec, onLoad, onPoints }: { spec: CurveSpec; onLoad: 
             aria-describedby={`${id}-csv-hint`}
           />
           <p id={`${id}-csv-hint`} className="text-xs text-ink-faint">
-            A header line and <span className="font-mono">#</span> comments are allowed. Drop a file on the box or choose one below.
+            A header line and <span className="font-mono">#</span> comments are allowed. Drop a file on the
+            box or choose one below.
           </p>
           <div className="flex flex-wrap items-center gap-3">
             <label htmlFor={`${id}-file`} className="text-sm text-ink-soft">
@@ -152,7 +175,15 @@ export function FitPanel({ spec, onLoad, onPoints }: { spec: CurveSpec; onLoad: 
               ] as const
             ).map(([v, words]) => (
               <label key={v} className="inline-flex items-center gap-2">
-                <input type="radio" name={`${id}-kind`} value={v} checked={kind === v} onChange={() => setKind(v)} className="accent-[#2f6f6a]" data-testid={`fit-kind-${v}`} />
+                <input
+                  type="radio"
+                  name={`${id}-kind`}
+                  value={v}
+                  checked={kind === v}
+                  onChange={() => setKind(v)}
+                  className="accent-[#2f6f6a]"
+                  data-testid={`fit-kind-${v}`}
+                />
                 {words}
               </label>
             ))}
@@ -164,7 +195,13 @@ export function FitPanel({ spec, onLoad, onPoints }: { spec: CurveSpec; onLoad: 
           <div className="grid grid-cols-2 gap-x-4 gap-y-1.5 text-sm sm:grid-cols-3">
             {PARAMS.map((p) => (
               <label key={p} className="inline-flex items-center gap-2">
-                <input type="checkbox" checked={params.includes(p)} onChange={(e) => toggle(p, e.target.checked)} className="h-4 w-4 accent-[#2f6f6a]" data-testid={`fit-param-${p}`} />
+                <input
+                  type="checkbox"
+                  checked={params.includes(p)}
+                  onChange={(e) => toggle(p, e.target.checked)}
+                  className="h-4 w-4 accent-[#2f6f6a]"
+                  data-testid={`fit-param-${p}`}
+                />
                 {PARAM_LABEL[p]}
               </label>
             ))}
@@ -207,7 +244,8 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
         <div className="rounded-md bg-paper-deep/60 px-3 py-2">
           <dt className="text-xs text-ink-soft">Worst point</dt>
           <dd className="font-mono font-semibold">
-            {result.worstDb.toFixed(3)} dB <span className="font-normal text-ink-faint">at {formatHz(result.worstHz)}</span>
+            {result.worstDb.toFixed(3)} dB{" "}
+            <span className="font-normal text-ink-faint">at {formatHz(result.worstHz)}</span>
           </dd>
         </div>
         <div className="rounded-md bg-paper-deep/60 px-3 py-2">
@@ -272,18 +310,38 @@ function ResidualPlot({ result }: { result: FitResult }) {
   const hi = Math.max(30_000, ...hz);
   const x = scaleLog().domain([lo, hi]).range([0, w]);
   const peak = Math.max(0.1, ...result.residuals.map((r) => Math.abs(r.residualDb)));
-  const y = scaleLinear().domain([-peak * 1.15, peak * 1.15]).range([h, 0]).nice(4);
-  const ticks = [10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10_000, 20_000].filter((t) => t >= lo && t <= hi);
+  const y = scaleLinear()
+    .domain([-peak * 1.15, peak * 1.15])
+    .range([h, 0])
+    .nice(4);
+  const ticks = [10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10_000, 20_000].filter(
+    (t) => t >= lo && t <= hi,
+  );
   const digits = peak < 0.5 ? 2 : 1;
   return (
     <figure>
-      <figcaption className="mb-1 text-xs font-medium text-ink-soft">Residual at each point, table − fitted curve (dB)</figcaption>
-      <svg viewBox={`0 0 ${width} ${height}`} className="h-auto w-full" role="img" aria-label={`Residuals of the fit, RMS ${result.rmsDb.toFixed(3)} dB`} data-testid="fit-residual-plot">
+      <figcaption className="mb-1 text-xs font-medium text-ink-soft">
+        Residual at each point, table − fitted curve (dB)
+      </figcaption>
+      <svg
+        viewBox={`0 0 ${width} ${height}`}
+        className="h-auto w-full"
+        role="img"
+        aria-label={`Residuals of the fit, RMS ${result.rmsDb.toFixed(3)} dB`}
+        data-testid="fit-residual-plot"
+      >
         <g transform={`translate(${m.left},${m.top})`}>
           <SmallPlotGrid x={x} y={y} width={w} height={h} frequencyTicks={ticks} digits={digits} />
           {result.residuals.map((r, i) => (
             <g key={i}>
-              <line x1={x(r.hz)} x2={x(r.hz)} y1={y(0)} y2={y(r.residualDb)} stroke="#a9591a" strokeWidth={1.5} />
+              <line
+                x1={x(r.hz)}
+                x2={x(r.hz)}
+                y1={y(0)}
+                y2={y(r.residualDb)}
+                stroke="#a9591a"
+                strokeWidth={1.5}
+              />
               <circle cx={x(r.hz)} cy={y(r.residualDb)} r={3} fill="#a9591a" />
             </g>
           ))}

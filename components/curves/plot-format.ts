@@ -29,6 +29,5 @@ export function formatSigned(value: number, digits = 1): string {
   return `${value < 0 ? "−" : "+"}${s}`;
 }
 
-
 /** The plot colours, in the order the compare slots take them: groove teal first (the curve being edited). */
 export const CURVE_COLORS = ["#2f6f6a", "#a9591a", "#5a4f9e", "#b03a6f"] as const;

@@ -29,7 +29,13 @@ function toRow(p: PresetJson): Row {
     const d = describeCurve(p.spec);
     return { ...p, curve: d.curve, peakGainDb: d.peakGainDb, peakHz: d.peakHz, problem: null };
   } catch (err) {
-    return { ...p, curve: null, peakGainDb: null, peakHz: null, problem: err instanceof Error ? err.message : String(err) };
+    return {
+      ...p,
+      curve: null,
+      peakGainDb: null,
+      peakHz: null,
+      problem: err instanceof Error ? err.message : String(err),
+    };
   }
 }
 
@@ -38,8 +44,14 @@ function CornerCell({ corner, rolloff }: { corner: ResolvedCorner | null | undef
   if (!corner) return <span className="text-ink-faint">none</span>;
   return (
     <div className="whitespace-nowrap font-mono leading-tight">
-      <p className="text-sm text-ink">{rolloff ? `${(corner.db10k ?? 0).toFixed(1)} dB` : formatHz(corner.hz)}</p>
-      <p className="text-xs text-ink-faint">{rolloff ? `${formatNumber(corner.tauUs)} µs · ${formatHz(corner.hz)}` : `${formatNumber(corner.tauUs)} µs`}</p>
+      <p className="text-sm text-ink">
+        {rolloff ? `${(corner.db10k ?? 0).toFixed(1)} dB` : formatHz(corner.hz)}
+      </p>
+      <p className="text-xs text-ink-faint">
+        {rolloff
+          ? `${formatNumber(corner.tauUs)} µs · ${formatHz(corner.hz)}`
+          : `${formatNumber(corner.tauUs)} µs`}
+      </p>
     </div>
   );
 }
@@ -54,19 +66,44 @@ export function PresetTable() {
         header: "Name",
         cell: (c) => (
           <div className="min-w-44 max-w-64">
-            <Link href={`/curves/workbench?preset=${encodeURIComponent(c.row.original.id)}`} className="font-medium text-shellac-deep underline-offset-2 hover:underline" data-testid="preset-link">
+            <Link
+              href={`/curves/workbench?preset=${encodeURIComponent(c.row.original.id)}`}
+              className="font-medium text-shellac-deep underline-offset-2 hover:underline"
+              data-testid="preset-link"
+            >
               {c.getValue()}
             </Link>
-            {c.row.original.notes ? <p className="line-clamp-1 max-w-xs text-xs text-ink-faint">{c.row.original.notes}</p> : null}
+            {c.row.original.notes ? (
+              <p className="line-clamp-1 max-w-xs text-xs text-ink-faint">{c.row.original.notes}</p>
+            ) : null}
             {c.row.original.problem ? <p className="text-xs text-alarm">{c.row.original.problem}</p> : null}
           </div>
         ),
       }),
-      column.accessor("version", { header: "Version", cell: (c) => <span className="font-mono">v{c.getValue()}</span> }),
-      column.accessor((r) => r.curve?.turnover?.hz ?? 0, { id: "turnover", header: "Turnover", cell: (c) => <CornerCell corner={c.row.original.curve?.turnover} /> }),
-      column.accessor((r) => r.curve?.shelf?.hz ?? 0, { id: "shelf", header: "Shelf", cell: (c) => <CornerCell corner={c.row.original.curve?.shelf} /> }),
-      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, { id: "rolloff", header: "Rolloff (attenuation at 10 kHz)", cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff /> }),
-      column.accessor((r) => r.curve?.highpass?.hz ?? 0, { id: "highpass", header: "High-pass", cell: (c) => <CornerCell corner={c.row.original.curve?.highpass} /> }),
+      column.accessor("version", {
+        header: "Version",
+        cell: (c) => <span className="font-mono">v{c.getValue()}</span>,
+      }),
+      column.accessor((r) => r.curve?.turnover?.hz ?? 0, {
+        id: "turnover",
+        header: "Turnover",
+        cell: (c) => <CornerCell corner={c.row.original.curve?.turnover} />,
+      }),
+      column.accessor((r) => r.curve?.shelf?.hz ?? 0, {
+        id: "shelf",
+        header: "Shelf",
+        cell: (c) => <CornerCell corner={c.row.original.curve?.shelf} />,
+      }),
+      column.accessor((r) => r.curve?.rolloff?.db10k ?? 0, {
+        id: "rolloff",
+        header: "Rolloff (attenuation at 10 kHz)",
+        cell: (c) => <CornerCell corner={c.row.original.curve?.rolloff} rolloff />,
+      }),
+      column.accessor((r) => r.curve?.highpass?.hz ?? 0, {
+        id: "highpass",
+        header: "High-pass",
+        cell: (c) => <CornerCell corner={c.row.original.curve?.highpass} />,
+      }),
       column.accessor((r) => r.peakGainDb ?? -Infinity, {
         id: "peak",
         header: "Peak gain",
@@ -75,7 +112,9 @@ export function PresetTable() {
           if (r.peakGainDb === null) return <Badge tone="alarm">invalid</Badge>;
           return (
             <div className="whitespace-nowrap font-mono leading-tight">
-              <p className={r.peakGainDb > 15 ? "text-sm font-semibold text-shellac-deep" : "text-sm"}>{formatDb(r.peakGainDb)}</p>
+              <p className={r.peakGainDb > 15 ? "text-sm font-semibold text-shellac-deep" : "text-sm"}>
+                {formatDb(r.peakGainDb)}
+              </p>
               <p className="text-xs text-ink-faint">at {formatHz(r.peakHz ?? NaN)}</p>
             </div>
           );

@@ -7,7 +7,17 @@
  */
 import { scaleLinear, scaleLog } from "d3-scale";
 import { type PointerEvent, useEffect, useId, useMemo, useRef, useState } from "react";
-import { type AnalogModel, analogGainDb, analogModel, analogPhaseRad, analogResponse, type Asymptotes, type CurveSpec, describeCurve, logGrid } from "@/lib/curves";
+import {
+  type AnalogModel,
+  analogGainDb,
+  analogModel,
+  analogPhaseRad,
+  analogResponse,
+  type Asymptotes,
+  type CurveSpec,
+  describeCurve,
+  logGrid,
+} from "@/lib/curves";
 import { CORNER_WORDS, CURVE_COLORS, formatDb, formatHz, formatHzTick, formatSigned } from "./plot-format";
 
 export interface PlotCurve {
@@ -30,7 +40,8 @@ const MAX_DB_SPAN = 84;
 const LABEL_TICKS = [10, 20, 50, 100, 200, 500, 1000, 2000, 5000, 10_000, 20_000];
 const MINOR_TICKS = (() => {
   const out: number[] = [];
-  for (let decade = 10; decade <= 10_000; decade *= 10) for (let m = 1; m <= 9; m++) if (decade * m <= PLOT_HIGH_HZ) out.push(decade * m);
+  for (let decade = 10; decade <= 10_000; decade *= 10)
+    for (let m = 1; m <= 9; m++) if (decade * m <= PLOT_HIGH_HZ) out.push(decade * m);
   out.push(20_000, 30_000);
   return Array.from(new Set(out));
 })();
@@ -93,9 +104,29 @@ export function ResponsePlot({
           const model = analogModel(c.spec);
           const r = analogResponse(model, grid);
           const d = describeCurve(c.spec);
-          return { label: c.label, color, model, error: null, gainDb: r.gainDb, phaseDeg: r.phaseDeg, peakGainDb: d.peakGainDb, peakHz: d.peakHz, asymptotes: d.asymptotes };
+          return {
+            label: c.label,
+            color,
+            model,
+            error: null,
+            gainDb: r.gainDb,
+            phaseDeg: r.phaseDeg,
+            peakGainDb: d.peakGainDb,
+            peakHz: d.peakHz,
+            asymptotes: d.asymptotes,
+          };
         } catch (err) {
-          return { label: c.label, color, model: null, error: err instanceof Error ? err.message : String(err), gainDb: [], phaseDeg: [], peakGainDb: null, peakHz: null, asymptotes: null };
+          return {
+            label: c.label,
+            color,
+            model: null,
+            error: err instanceof Error ? err.message : String(err),
+            gainDb: [],
+            phaseDeg: [],
+            peakGainDb: null,
+            peakHz: null,
+            asymptotes: null,
+          };
         }
       }),
     [curves, grid],
@@ -111,12 +142,18 @@ export function ResponsePlot({
       const k = corners.findIndex((c) => hz <= c.hz);
       if (k === -1) {
         const last = corners[corners.length - 1];
-        return last.asymptoteGainDb + segments[segments.length - 1].slopeDbPerDecade * Math.log10(hz / last.hz);
+        return (
+          last.asymptoteGainDb + segments[segments.length - 1].slopeDbPerDecade * Math.log10(hz / last.hz)
+        );
       }
       const c = corners[k];
       return c.asymptoteGainDb + segments[k].slopeDbPerDecade * Math.log10(hz / c.hz);
     };
-    const xs = [PLOT_LOW_HZ, ...corners.map((c) => c.hz).filter((hz) => hz > PLOT_LOW_HZ && hz < PLOT_HIGH_HZ), PLOT_HIGH_HZ];
+    const xs = [
+      PLOT_LOW_HZ,
+      ...corners.map((c) => c.hz).filter((hz) => hz > PLOT_LOW_HZ && hz < PLOT_HIGH_HZ),
+      PLOT_HIGH_HZ,
+    ];
     return { corners, segments, line: xs.map((hz) => ({ hz, db: levelAt(hz) })), levelAt };
   }, [showAsymptotes, drawn]);
 
@@ -144,7 +181,10 @@ export function ResponsePlot({
       hi = mid + 6;
     }
     // Headroom above the highest corner so its label fits inside the plot.
-    return scaleLinear().domain([lo - 2, hi + (asym ? 7 : 2)]).range([magHeight, 0]).nice(8);
+    return scaleLinear()
+      .domain([lo - 2, hi + (asym ? 7 : 2)])
+      .range([magHeight, 0])
+      .nice(8);
   }, [drawn, points, asym, magHeight]);
 
   const yPhase = useMemo(() => {
@@ -152,7 +192,10 @@ export function ResponsePlot({
     for (const c of drawn) for (const v of c.phaseDeg) if (Number.isFinite(v)) values.push(v);
     const lo = values.length ? Math.min(...values, -10) : -90;
     const hi = values.length ? Math.max(...values, 10) : 90;
-    return scaleLinear().domain([lo - 5, hi + 5]).range([phasePanel, 0]).nice(5);
+    return scaleLinear()
+      .domain([lo - 5, hi + 5])
+      .range([phasePanel, 0])
+      .nice(5);
   }, [drawn, phasePanel]);
 
   const path = (ys: number[], scale: (v: number) => number) => {
@@ -177,7 +220,11 @@ export function ResponsePlot({
   };
 
   const summary = drawn
-    .map((c) => (c.error ? `${c.label}: cannot be drawn (${c.error})` : `${c.label}: peak ${formatDb(c.peakGainDb ?? NaN)} at ${formatHz(c.peakHz ?? NaN)}`))
+    .map((c) =>
+      c.error
+        ? `${c.label}: cannot be drawn (${c.error})`
+        : `${c.label}: peak ${formatDb(c.peakGainDb ?? NaN)} at ${formatHz(c.peakHz ?? NaN)}`,
+    )
     .join("; ");
 
   const clipMag = `clip-mag-${uid}`;
@@ -187,7 +234,10 @@ export function ResponsePlot({
 
   return (
     <figure className="space-y-2" data-testid={testId}>
-      <figcaption className="flex flex-wrap items-center gap-x-5 gap-y-1 text-sm" data-testid={`${testId}-legend`}>
+      <figcaption
+        className="flex flex-wrap items-center gap-x-5 gap-y-1 text-sm"
+        data-testid={`${testId}-legend`}
+      >
         {drawn.map((c, i) => (
           <span key={`${c.label}-${i}`} className="inline-flex items-center gap-2">
             <svg width="22" height="10" aria-hidden>
@@ -206,7 +256,15 @@ export function ResponsePlot({
         {asym ? (
           <span className="inline-flex items-center gap-2 text-ink-soft">
             <svg width="22" height="10" aria-hidden>
-              <line x1="0" x2="22" y1="5" y2="5" stroke={drawn[0]?.color} strokeWidth="1.5" strokeDasharray="5 3" />
+              <line
+                x1="0"
+                x2="22"
+                y1="5"
+                y2="5"
+                stroke={drawn[0]?.color}
+                strokeWidth="1.5"
+                strokeDasharray="5 3"
+              />
             </svg>
             straight-line approximation
           </span>
@@ -214,14 +272,29 @@ export function ResponsePlot({
         {points?.length ? (
           <span className="inline-flex items-center gap-2 text-ink-soft">
             <svg width="12" height="12" aria-hidden>
-              <rect x="2" y="2" width="8" height="8" fill="white" stroke={ink} strokeWidth="1.5" transform="rotate(45 6 6)" />
+              <rect
+                x="2"
+                y="2"
+                width="8"
+                height="8"
+                fill="white"
+                stroke={ink}
+                strokeWidth="1.5"
+                transform="rotate(45 6 6)"
+              />
             </svg>
             {pointsLabel}
           </span>
         ) : null}
       </figcaption>
       <div ref={wrapRef} className="relative w-full">
-        <svg width={width} height={height} role="img" aria-label={`Frequency response, 10 Hz to 30 kHz. ${summary}`} className="block select-none font-sans">
+        <svg
+          width={width}
+          height={height}
+          role="img"
+          aria-label={`Frequency response, 10 Hz to 30 kHz. ${summary}`}
+          className="block select-none font-sans"
+        >
           <defs>
             <clipPath id={clipMag}>
               <rect x={0} y={0} width={innerW} height={magHeight} />
@@ -239,7 +312,9 @@ export function ResponsePlot({
             <g clipPath={`url(#${clipMag})`}>
               {asym ? (
                 <path
-                  d={asym.line.map((p, i) => `${i ? "L" : "M"}${x(p.hz).toFixed(1)},${yMag(p.db).toFixed(1)}`).join("")}
+                  d={asym.line
+                    .map((p, i) => `${i ? "L" : "M"}${x(p.hz).toFixed(1)},${yMag(p.db).toFixed(1)}`)
+                    .join("")}
                   fill="none"
                   stroke={drawn[0].color}
                   strokeOpacity={0.75}
@@ -252,17 +327,54 @@ export function ResponsePlot({
                 .map((c, i) => ({ c, i }))
                 .reverse()
                 .map(({ c, i }) =>
-                  c.model ? <path key={i} d={path(c.gainDb, yMag)} fill="none" stroke={c.color} strokeWidth={i === 0 ? 2.75 : 2} strokeLinejoin="round" data-testid={`${testId}-curve-${i}`} /> : null,
+                  c.model ? (
+                    <path
+                      key={i}
+                      d={path(c.gainDb, yMag)}
+                      fill="none"
+                      stroke={c.color}
+                      strokeWidth={i === 0 ? 2.75 : 2}
+                      strokeLinejoin="round"
+                      data-testid={`${testId}-curve-${i}`}
+                    />
+                  ) : null,
                 )}
               {(points ?? []).map((p, i) =>
                 p.hz >= PLOT_LOW_HZ && p.hz <= PLOT_HIGH_HZ ? (
-                  <rect key={i} x={x(p.hz) - 4} y={yMag(p.db) - 4} width={8} height={8} fill="white" stroke={ink} strokeWidth={1.5} transform={`rotate(45 ${x(p.hz)} ${yMag(p.db)})`} />
+                  <rect
+                    key={i}
+                    x={x(p.hz) - 4}
+                    y={yMag(p.db) - 4}
+                    width={8}
+                    height={8}
+                    fill="white"
+                    stroke={ink}
+                    strokeWidth={1.5}
+                    transform={`rotate(45 ${x(p.hz)} ${yMag(p.db)})`}
+                  />
                 ) : null,
               )}
             </g>
-            {asym ? <AsymptoteLabels asym={asym} x={x} y={yMag} width={innerW} height={magHeight} color={drawn[0].color} /> : null}
-            {hoverHz !== null ? <HoverReadout hz={hoverHz} x={x} y={yMag} height={magHeight} width={innerW} curves={drawn} /> : null}
-            <rect width={innerW} height={magHeight} fill="transparent" onPointerMove={onMove} onPointerLeave={() => setHoverHz(null)} />
+            {asym ? (
+              <AsymptoteLabels
+                asym={asym}
+                x={x}
+                y={yMag}
+                width={innerW}
+                height={magHeight}
+                color={drawn[0].color}
+              />
+            ) : null}
+            {hoverHz !== null ? (
+              <HoverReadout hz={hoverHz} x={x} y={yMag} height={magHeight} width={innerW} curves={drawn} />
+            ) : null}
+            <rect
+              width={innerW}
+              height={magHeight}
+              fill="transparent"
+              onPointerMove={onMove}
+              onPointerLeave={() => setHoverHz(null)}
+            />
             {!showPhase ? <FrequencyAxis x={x} top={magHeight} /> : null}
           </g>
 
@@ -271,14 +383,33 @@ export function ResponsePlot({
             <g transform={`translate(${margin.left},${phaseTop})`}>
               <rect width={innerW} height={phasePanel} fill="#fffdf8" stroke="#d9d1bf" />
               <FrequencyGrid x={x} height={phasePanel} />
-              <ValueAxis ticks={yPhase.ticks(4)} y={yPhase} width={innerW} height={phasePanel} unit="°" title="Phase" />
+              <ValueAxis
+                ticks={yPhase.ticks(4)}
+                y={yPhase}
+                width={innerW}
+                height={phasePanel}
+                unit="°"
+                title="Phase"
+              />
               <g clipPath={`url(#${clipPhase})`}>
                 {drawn
                   .map((c, i) => ({ c, i }))
                   .reverse()
-                  .map(({ c, i }) => (c.model ? <path key={i} d={path(c.phaseDeg, yPhase)} fill="none" stroke={c.color} strokeWidth={i === 0 ? 2.25 : 1.75} /> : null))}
+                  .map(({ c, i }) =>
+                    c.model ? (
+                      <path
+                        key={i}
+                        d={path(c.phaseDeg, yPhase)}
+                        fill="none"
+                        stroke={c.color}
+                        strokeWidth={i === 0 ? 2.25 : 1.75}
+                      />
+                    ) : null,
+                  )}
               </g>
-              {hoverHz !== null ? <line x1={x(hoverHz)} x2={x(hoverHz)} y2={phasePanel} stroke={faint} strokeDasharray="2 3" /> : null}
+              {hoverHz !== null ? (
+                <line x1={x(hoverHz)} x2={x(hoverHz)} y2={phasePanel} stroke={faint} strokeDasharray="2 3" />
+              ) : null}
               <FrequencyAxis x={x} top={phasePanel} />
             </g>
           ) : null}
@@ -289,7 +420,21 @@ export function ResponsePlot({
 }
 
 /** A panel's horizontal gridlines with their values (0 drawn stronger), and the panel's title beside them. */
-function ValueAxis({ ticks, y, width, height, unit = "", title }: { ticks: number[]; y: (v: number) => number; width: number; height: number; unit?: string; title: string }) {
+function ValueAxis({
+  ticks,
+  y,
+  width,
+  height,
+  unit = "",
+  title,
+}: {
+  ticks: number[];
+  y: (v: number) => number;
+  width: number;
+  height: number;
+  unit?: string;
+  title: string;
+}) {
   return (
     <>
       {ticks.map((t) => (
@@ -301,7 +446,13 @@ function ValueAxis({ ticks, y, width, height, unit = "", title }: { ticks: numbe
           </text>
         </g>
       ))}
-      <text transform={`translate(${-44},${height / 2}) rotate(-90)`} textAnchor="middle" fontSize={12} fill="#1d2327" fontWeight={600}>
+      <text
+        transform={`translate(${-44},${height / 2}) rotate(-90)`}
+        textAnchor="middle"
+        fontSize={12}
+        fill="#1d2327"
+        fontWeight={600}
+      >
         {title}
       </text>
     </>
@@ -313,7 +464,16 @@ function FrequencyGrid({ x, height }: { x: (hz: number) => number; height: numbe
     <g aria-hidden>
       {MINOR_TICKS.map((hz) => {
         const decade = Math.abs(Math.log10(hz) - Math.round(Math.log10(hz))) < 1e-9;
-        return <line key={hz} x1={x(hz)} x2={x(hz)} y2={height} stroke={decade ? "#d3cab5" : "#eee8da"} strokeWidth={decade ? 1.2 : 1} />;
+        return (
+          <line
+            key={hz}
+            x1={x(hz)}
+            x2={x(hz)}
+            y2={height}
+            stroke={decade ? "#d3cab5" : "#eee8da"}
+            strokeWidth={decade ? 1.2 : 1}
+          />
+        );
       })}
     </g>
   );
@@ -323,7 +483,15 @@ function FrequencyAxis({ x, top }: { x: (hz: number) => number; top: number }) {
   return (
     <g transform={`translate(0,${top})`} aria-hidden>
       {LABEL_TICKS.map((hz) => (
-        <text key={hz} x={x(hz)} y={17} textAnchor="middle" fontSize={11.5} fill="#4a5459" className="font-mono">
+        <text
+          key={hz}
+          x={x(hz)}
+          y={17}
+          textAnchor="middle"
+          fontSize={11.5}
+          fill="#4a5459"
+          className="font-mono"
+        >
           {formatHzTick(hz)}
         </text>
       ))}
@@ -364,7 +532,12 @@ function AsymptoteLabels({
   height: number;
   color: string;
 }) {
-  const halo = { paintOrder: "stroke" as const, stroke: "#fffdf8", strokeWidth: 4, strokeLinejoin: "round" as const };
+  const halo = {
+    paintOrder: "stroke" as const,
+    stroke: "#fffdf8",
+    strokeWidth: 4,
+    strokeLinejoin: "round" as const,
+  };
   const inside = (hz: number) => hz >= PLOT_LOW_HZ && hz <= PLOT_HIGH_HZ;
 
   const placed: Box[] = [];
@@ -379,7 +552,8 @@ function AsymptoteLabels({
       const name = CORNER_WORDS[c.parameter];
       const freq = formatHz(c.hz);
       const w = Math.max(name.length * 6.6, freq.length * 6.9) + 6;
-      const anchor: "start" | "middle" | "end" = cx < w / 2 + 4 ? "start" : cx > width - w / 2 - 4 ? "end" : "middle";
+      const anchor: "start" | "middle" | "end" =
+        cx < w / 2 + 4 ? "start" : cx > width - w / 2 - 4 ? "end" : "middle";
       const bx0 = anchor === "start" ? cx - 2 : anchor === "end" ? cx - w + 2 : cx - w / 2;
       // The real curve passes 3 dB below a pole's corner and 3 dB above a zero's: the label goes on the free side first.
       const prefersAbove = c.slopeChangeDbPerDecade < 0;
@@ -429,13 +603,30 @@ function AsymptoteLabels({
   return (
     <g data-testid="asymptote-labels">
       {slopeLabels.map((l) => (
-        <text key={l.key} transform={`translate(${l.cx},${l.cy}) rotate(${l.angle})`} y={-7} textAnchor="middle" fontSize={11} fill={color} fontStyle="italic" style={halo}>
+        <text
+          key={l.key}
+          transform={`translate(${l.cx},${l.cy}) rotate(${l.angle})`}
+          y={-7}
+          textAnchor="middle"
+          fontSize={11}
+          fill={color}
+          fontStyle="italic"
+          style={halo}
+        >
           {l.text}
         </text>
       ))}
       {cornerLabels.map(({ c, cx, cy, ty, above, anchor }) => (
         <g key={c.parameter} data-testid={`breakpoint-${c.parameter}`}>
-          <line x1={cx} x2={cx} y1={above ? cy - 6 : cy + 6} y2={above ? ty + 18 : ty - 12} stroke={color} strokeWidth={1} strokeOpacity={0.7} />
+          <line
+            x1={cx}
+            x2={cx}
+            y1={above ? cy - 6 : cy + 6}
+            y2={above ? ty + 18 : ty - 12}
+            stroke={color}
+            strokeWidth={1}
+            strokeOpacity={0.7}
+          />
           <circle cx={cx} cy={cy} r={4.5} fill="white" stroke={color} strokeWidth={2} />
           <text x={cx} y={ty} textAnchor={anchor} fontSize={11.5} fill="#1d2327" style={halo}>
             <tspan fontWeight={600}>{CORNER_WORDS[c.parameter]}</tspan>
@@ -465,7 +656,9 @@ function HoverReadout({
   curves: DrawnCurve[];
 }) {
   const px = x(hz);
-  const rows = curves.filter((c) => c.model).map((c) => ({ c, db: analogGainDb(c.model!, hz), deg: (analogPhaseRad(c.model!, hz) * 180) / Math.PI }));
+  const rows = curves
+    .filter((c) => c.model)
+    .map((c) => ({ c, db: analogGainDb(c.model!, hz), deg: (analogPhaseRad(c.model!, hz) * 180) / Math.PI }));
   const boxW = 210;
   const boxX = px + 12 + boxW > width ? px - 12 - boxW : px + 12;
   return (
@@ -476,13 +669,21 @@ function HoverReadout({
         return py >= 0 && py <= height ? <circle key={i} cx={px} cy={py} r={3.5} fill={c.color} /> : null;
       })}
       <g transform={`translate(${boxX},${8})`}>
-        <rect width={boxW} height={22 + rows.length * 17} rx={5} fill="white" fillOpacity={0.95} stroke="#d9d1bf" />
+        <rect
+          width={boxW}
+          height={22 + rows.length * 17}
+          rx={5}
+          fill="white"
+          fillOpacity={0.95}
+          stroke="#d9d1bf"
+        />
         <text x={10} y={16} fontSize={11.5} fontWeight={600} fill="#1d2327" className="font-mono">
           {formatHz(hz)}
         </text>
         {rows.map(({ c, db, deg }, i) => (
           <text key={i} x={10} y={33 + i * 17} fontSize={11} fill={c.color} className="font-mono">
-            {formatDb(db, 2)}  {formatSigned(deg, 1)}°  {c.label.length > 12 ? `${c.label.slice(0, 11)}…` : c.label}
+            {formatDb(db, 2)} {formatSigned(deg, 1)}°{" "}
+            {c.label.length > 12 ? `${c.label.slice(0, 11)}…` : c.label}
           </text>
         ))}
       </g>

@@ -29,7 +29,14 @@ export function SmallPlotGrid({
       {frequencyTicks.map((t) => (
         <g key={t}>
           <line x1={x(t)} x2={x(t)} y2={height} stroke={strongHz.includes(t) ? "#d3cab5" : "#eee8da"} />
-          <text x={x(t)} y={height + 15} textAnchor="middle" fontSize={10.5} fill="#4a5459" className="font-mono">
+          <text
+            x={x(t)}
+            y={height + 15}
+            textAnchor="middle"
+            fontSize={10.5}
+            fill="#4a5459"
+            className="font-mono"
+          >
             {formatHzTick(t)}
           </text>
         </g>

@@ -19,7 +19,15 @@ import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
 import { usePresets, usePresetVersions } from "@/hooks/use-presets";
 import { useUrlState } from "@/hooks/use-url-state";
-import { analogGainDb, analogModel, CurveError, type CurveSpec, type CurveDescription, describeCurve, RIAA_SPEC } from "@/lib/curves";
+import {
+  analogGainDb,
+  analogModel,
+  CurveError,
+  type CurveSpec,
+  type CurveDescription,
+  describeCurve,
+  RIAA_SPEC,
+} from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { CornerFields, type FieldError } from "./corner-fields";
 import { DeviationPlot } from "./deviation-plot";
@@ -41,12 +49,18 @@ function useSettled<T>(value: T, ms: number): T {
   return settled;
 }
 
-function checkSpec(spec: CurveSpec): { desc: CurveDescription; error: null } | { desc: null; error: FieldError } {
+function checkSpec(
+  spec: CurveSpec,
+): { desc: CurveDescription; error: null } | { desc: null; error: FieldError } {
   try {
     return { desc: describeCurve(spec), error: null };
   } catch (err) {
-    if (err instanceof CurveError) return { desc: null, error: { parameter: err.parameter, message: err.message } };
-    return { desc: null, error: { parameter: "spec", message: err instanceof Error ? err.message : String(err) } };
+    if (err instanceof CurveError)
+      return { desc: null, error: { parameter: err.parameter, message: err.message } };
+    return {
+      desc: null,
+      error: { parameter: "spec", message: err instanceof Error ? err.message : String(err) },
+    };
   }
 }
 
@@ -68,7 +82,11 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
   const [compare, setCompare] = useState<CompareSlot[]>([]);
   const [pick, setPick] = useState("");
   const [fitPoints, setFitPoints] = useState<FitPoints | null>(null);
-  const [saveResult, setSaveResult] = useState<{ ok: boolean; message: string; fields?: Record<string, string[]> } | null>(null);
+  const [saveResult, setSaveResult] = useState<{
+    ok: boolean;
+    message: string;
+    fields?: Record<string, string[]>;
+  } | null>(null);
   const [saving, startSaving] = useTransition();
   const applied = useRef<string | null>(null);
 
@@ -111,18 +129,31 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
 
   const editingLabel = loaded ? `${name || loaded.name} (editing)` : "This curve";
   const plotCurves: PlotCurve[] = useMemo(
-    () => [{ label: editingLabel, spec: shownSpec, color: CURVE_COLORS[0] }, ...compare.map((c, i) => ({ label: c.label, spec: c.spec, color: CURVE_COLORS[i + 1] }))],
+    () => [
+      { label: editingLabel, spec: shownSpec, color: CURVE_COLORS[0] },
+      ...compare.map((c, i) => ({ label: c.label, spec: c.spec, color: CURVE_COLORS[i + 1] })),
+    ],
     [editingLabel, shownSpec, compare],
   );
 
   const addCompare = (slot: Omit<CompareSlot, "key">) => {
-    setCompare((cur) => (cur.length >= MAX_COMPARE ? cur : [...cur, { ...slot, key: `${Date.now()}-${Math.random().toString(36).slice(2, 6)}` }]));
+    setCompare((cur) =>
+      cur.length >= MAX_COMPARE
+        ? cur
+        : [...cur, { ...slot, key: `${Date.now()}-${Math.random().toString(36).slice(2, 6)}` }],
+    );
   };
 
   const save = (asNewVersion: boolean) => {
     setSaveResult(null);
     startSaving(async () => {
-      const r = await savePresetAction({ presetId: asNewVersion ? presetId : undefined, name, spec, notes, changeNote });
+      const r = await savePresetAction({
+        presetId: asNewVersion ? presetId : undefined,
+        name,
+        spec,
+        notes,
+        changeNote,
+      });
       setSaveResult(r);
       if (r.ok) {
         applied.current = `${r.presetId}:${r.version}`;
@@ -135,7 +166,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
     });
   };
 
-  const fieldErrors = saveResult && !saveResult.ok ? saveResult.fields ?? {} : {};
+  const fieldErrors = saveResult && !saveResult.ok ? (saveResult.fields ?? {}) : {};
   const peak = shownDesc?.peakGainDb ?? 0;
 
   return (
@@ -154,7 +185,11 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
               <span>
                 Editing <strong className="font-semibold">{loaded.name}</strong>, version {loaded.version}
               </span>
-              <button type="button" onClick={() => setPresetId("")} className="text-shellac-deep underline-offset-2 hover:underline">
+              <button
+                type="button"
+                onClick={() => setPresetId("")}
+                className="text-shellac-deep underline-offset-2 hover:underline"
+              >
                 Start a new curve instead
               </button>
             </>
@@ -162,7 +197,9 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
         ) : (
           <>
             <Badge tone="accent">New curve</Badge>
-            <span className="text-ink-soft">Started from RIAA (3180 / 318 / 75 µs). Change any corner; the plot follows as you type.</span>
+            <span className="text-ink-soft">
+              Started from RIAA (3180 / 318 / 75 µs). Change any corner; the plot follows as you type.
+            </span>
           </>
         )}
       </div>
@@ -171,7 +208,18 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
         <aside aria-label="Corners of the curve" className="space-y-3">
           <h2 className="font-sans text-sm font-semibold uppercase tracking-wide text-ink-soft">Corners</h2>
           <CornerFields key={fieldsKey} spec={spec} onChange={setSpec} error={check.error} />
-          {check.error && !["turnover", "shelf", "rolloff", "highpass", "ultrasonic", "reference", "reference.hz", "reference.db", "speedRatio"].includes(check.error.parameter) ? (
+          {check.error &&
+          ![
+            "turnover",
+            "shelf",
+            "rolloff",
+            "highpass",
+            "ultrasonic",
+            "reference",
+            "reference.hz",
+            "reference.db",
+            "speedRatio",
+          ].includes(check.error.parameter) ? (
             <Notice tone="error" title="This curve cannot be built">
               {check.error.message}
             </Notice>
@@ -180,8 +228,17 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
 
         <div className="min-w-0 space-y-4">
           <SummaryStrip desc={shownDesc} stale={!!check.error} />
-          <Notice tone="caution" title={peak > 12 ? `This curve lifts the bass by up to ${formatDb(peak)}` : "Mind the level when you listen"} testId="loudness-caution">
-            Large bass gain can be very loud in headphones and can harm hearing and loudspeakers. Start playback low and raise it slowly.
+          <Notice
+            tone="caution"
+            title={
+              peak > 12
+                ? `This curve lifts the bass by up to ${formatDb(peak)}`
+                : "Mind the level when you listen"
+            }
+            testId="loudness-caution"
+          >
+            Large bass gain can be very loud in headphones and can harm hearing and loudspeakers. Start
+            playback low and raise it slowly.
           </Notice>
           <Panel title="Response">
             {check.error ? (
@@ -189,7 +246,12 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                 Showing the last curve that could be built; fix the field marked in red to update it.
               </p>
             ) : null}
-            <ResponsePlot curves={plotCurves} points={fitPoints?.points} pointsLabel={fitPoints?.label} height={500} />
+            <ResponsePlot
+              curves={plotCurves}
+              points={fitPoints?.points}
+              pointsLabel={fitPoints?.label}
+              height={500}
+            />
           </Panel>
 
           <Panel title="Compare">
@@ -201,13 +263,23 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                   <span className="text-ink-faint">always shown</span>
                 </li>
                 {compare.map((c, i) => (
-                  <li key={c.key} className="flex flex-wrap items-center gap-3 text-sm" data-testid="compare-slot">
+                  <li
+                    key={c.key}
+                    className="flex flex-wrap items-center gap-3 text-sm"
+                    data-testid="compare-slot"
+                  >
                     <Swatch color={CURVE_COLORS[i + 1]} />
                     <span className="min-w-0 flex-1 truncate">{c.label}</span>
                     <Button type="button" variant="quiet" size="sm" onClick={() => replaceSpec(c.spec)}>
                       Edit this one
                     </Button>
-                    <Button type="button" variant="quiet" size="sm" aria-label={`Remove ${c.label} from the comparison`} onClick={() => setCompare((cur) => cur.filter((x) => x.key !== c.key))}>
+                    <Button
+                      type="button"
+                      variant="quiet"
+                      size="sm"
+                      aria-label={`Remove ${c.label} from the comparison`}
+                      onClick={() => setCompare((cur) => cur.filter((x) => x.key !== c.key))}
+                    >
                       Remove
                     </Button>
                   </li>
@@ -225,7 +297,13 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                     className="h-9 w-full rounded-md border border-paper-edge bg-white px-2 text-sm"
                     data-testid="compare-pick"
                   >
-                    <option value="">{libraryQuery.isLoading ? "Loading…" : libraryQuery.data?.presets.length ? "Choose a preset…" : "No presets yet"}</option>
+                    <option value="">
+                      {libraryQuery.isLoading
+                        ? "Loading…"
+                        : libraryQuery.data?.presets.length
+                          ? "Choose a preset…"
+                          : "No presets yet"}
+                    </option>
                     {libraryQuery.data?.presets.map((p) => (
                       <option key={p.id} value={p.id}>
                         {p.name} (v{p.version})
@@ -251,13 +329,21 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                   variant="secondary"
                   size="sm"
                   disabled={!!check.error || compare.length >= MAX_COMPARE}
-                  onClick={() => addCompare({ label: `Snapshot ${new Date().toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit", second: "2-digit" })}`, spec })}
+                  onClick={() =>
+                    addCompare({
+                      label: `Snapshot ${new Date().toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit", second: "2-digit" })}`,
+                      spec,
+                    })
+                  }
                   data-testid="compare-pin"
                 >
                   Pin this curve as it is now
                 </Button>
               </div>
-              <p className="text-xs text-ink-faint">Up to {MAX_COMPARE} curves beside the one you are editing. The straight-line approximation is drawn for the edited curve only.</p>
+              <p className="text-xs text-ink-faint">
+                Up to {MAX_COMPARE} curves beside the one you are editing. The straight-line approximation is
+                drawn for the edited curve only.
+              </p>
             </div>
           </Panel>
         </div>
@@ -287,7 +373,8 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
         }
       >
         <p className="mb-3 text-sm text-ink-soft">
-          How closely the digital filters follow the analog curve at a transfer&apos;s sample rate: the filter that renders the access copies, and the sections the bench listens through.
+          How closely the digital filters follow the analog curve at a transfer&apos;s sample rate: the filter
+          that renders the access copies, and the sections the bench listens through.
         </p>
         <DeviationPlot spec={settledSpec} sampleRateHz={sampleRateHz} />
       </Panel>
@@ -307,7 +394,15 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
               }}
               data-testid="save-form"
             >
-              <TextField id="save-name" label="Name" value={name} onChange={(e) => setName(e.target.value)} errors={fieldErrors.name} placeholder="e.g. Lacquer house curve, 1949" data-testid="save-name" />
+              <TextField
+                id="save-name"
+                label="Name"
+                value={name}
+                onChange={(e) => setName(e.target.value)}
+                errors={fieldErrors.name}
+                placeholder="e.g. Lacquer house curve, 1949"
+                data-testid="save-name"
+              />
               <div className="space-y-1.5">
                 <label htmlFor="save-notes" className="block text-sm font-medium">
                   Notes <span className="font-normal text-ink-faint">(source, which discs it suits)</span>
@@ -330,14 +425,27 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                 hint="Kept with the version, so a later curator knows why."
                 data-testid="save-change-note"
               />
-              {fieldErrors.spec ? <p className="text-xs font-medium text-alarm">{fieldErrors.spec.join(" ")}</p> : null}
+              {fieldErrors.spec ? (
+                <p className="text-xs font-medium text-alarm">{fieldErrors.spec.join(" ")}</p>
+              ) : null}
               <div className="flex flex-wrap gap-2">
                 {loaded ? (
-                  <Button type="button" disabled={saving || !!check.error} onClick={() => save(true)} data-testid="save-new-version">
+                  <Button
+                    type="button"
+                    disabled={saving || !!check.error}
+                    onClick={() => save(true)}
+                    data-testid="save-new-version"
+                  >
                     Save as version {loaded.currentVersion + 1}
                   </Button>
                 ) : null}
-                <Button type="button" variant={loaded ? "secondary" : "primary"} disabled={saving || !!check.error} onClick={() => save(false)} data-testid="save-new-preset">
+                <Button
+                  type="button"
+                  variant={loaded ? "secondary" : "primary"}
+                  disabled={saving || !!check.error}
+                  onClick={() => save(false)}
+                  data-testid="save-new-preset"
+                >
                   Save as new preset
                 </Button>
                 {saving ? <span className="self-center text-sm text-ink-faint">Saving…</span> : null}
@@ -350,13 +458,19 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
               ) : null}
             </form>
           ) : (
-            <p className="text-sm text-ink-soft">Your role can look at curves and try changes here, but not save presets. Ask a transfer engineer to save a curve you have worked out.</p>
+            <p className="text-sm text-ink-soft">
+              Your role can look at curves and try changes here, but not save presets. Ask a transfer engineer
+              to save a curve you have worked out.
+            </p>
           )}
         </Panel>
 
         <Panel title="Version history">
           {!presetId ? (
-            <p className="text-sm text-ink-faint">A saved preset keeps every version with who saved it, when and why. Open one from the library to see its history.</p>
+            <p className="text-sm text-ink-faint">
+              A saved preset keeps every version with who saved it, when and why. Open one from the library to
+              see its history.
+            </p>
           ) : versionsQuery.isLoading ? (
             <p className="text-sm text-ink-faint">Loading…</p>
           ) : versionsQuery.error ? (
@@ -366,12 +480,21 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
               {[...(versionsQuery.data?.versions ?? [])]
                 .sort((a, b) => b.version - a.version)
                 .map((v) => (
-                  <li key={v.version} className={cx("rounded-lg border px-3 py-2", loaded && v.version === loaded.version ? "border-groove/40 bg-groove-wash/40" : "border-paper-edge")}>
+                  <li
+                    key={v.version}
+                    className={cx(
+                      "rounded-lg border px-3 py-2",
+                      loaded && v.version === loaded.version
+                        ? "border-groove/40 bg-groove-wash/40"
+                        : "border-paper-edge",
+                    )}
+                  >
                     <div className="flex flex-wrap items-baseline gap-x-3 gap-y-1">
                       <span className="font-mono text-sm font-semibold">v{v.version}</span>
                       <span className="text-sm font-medium">{v.name}</span>
                       <span className="text-xs text-ink-faint">
-                        {v.createdBy ?? "no person recorded"} · <time dateTime={v.createdAt}>{when(v.createdAt)}</time>
+                        {v.createdBy ?? "no person recorded"} ·{" "}
+                        <time dateTime={v.createdAt}>{when(v.createdAt)}</time>
                       </span>
                     </div>
                     <p className="mt-1 text-sm text-ink-soft">{v.changeNote}</p>
@@ -379,7 +502,13 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                       <Button type="button" variant="quiet" size="sm" onClick={() => replaceSpec(v.spec)}>
                         Put v{v.version} in the editor
                       </Button>
-                      <Button type="button" variant="quiet" size="sm" disabled={compare.length >= MAX_COMPARE} onClick={() => addCompare({ label: `${v.name} v${v.version}`, spec: v.spec })}>
+                      <Button
+                        type="button"
+                        variant="quiet"
+                        size="sm"
+                        disabled={compare.length >= MAX_COMPARE}
+                        onClick={() => addCompare({ label: `${v.name} v${v.version}`, spec: v.spec })}
+                      >
                         Compare
                       </Button>
                     </div>
@@ -410,9 +539,17 @@ function SummaryStrip({ desc, stale }: { desc: CurveDescription | null; stale: b
   }, [desc]);
   if (!desc || !gains) return null;
   const c = desc.curve;
-  const taus = (["shelf", "turnover", "rolloff", "highpass", "ultrasonic"] as const).flatMap((n) => (c[n] ? [{ n, tau: c[n]!.filterTauUs }] : []));
+  const taus = (["shelf", "turnover", "rolloff", "highpass", "ultrasonic"] as const).flatMap((n) =>
+    c[n] ? [{ n, tau: c[n]!.filterTauUs }] : [],
+  );
   return (
-    <dl className={cx("grid grid-cols-2 gap-px overflow-hidden rounded-xl border border-paper-edge bg-paper-edge text-sm md:grid-cols-4", stale && "opacity-60")} data-testid="curve-summary">
+    <dl
+      className={cx(
+        "grid grid-cols-2 gap-px overflow-hidden rounded-xl border border-paper-edge bg-paper-edge text-sm md:grid-cols-4",
+        stale && "opacity-60",
+      )}
+      data-testid="curve-summary"
+    >
       <div className="bg-white px-4 py-2.5">
         <dt className="text-xs text-ink-soft">Peak gain</dt>
         <dd className="font-mono text-lg font-semibold" data-testid="summary-peak">
@@ -429,12 +566,15 @@ function SummaryStrip({ desc, stale }: { desc: CurveDescription | null; stale: b
         <dd className="font-mono text-lg font-semibold">{formatDb(gains.at20k, 2)}</dd>
       </div>
       <div className="bg-white px-4 py-2.5">
-        <dt className="text-xs text-ink-soft">Time constants{c.speedRatio !== 1 ? ` at ×${c.speedRatio.toFixed(3)}` : ""}</dt>
+        <dt className="text-xs text-ink-soft">
+          Time constants{c.speedRatio !== 1 ? ` at ×${c.speedRatio.toFixed(3)}` : ""}
+        </dt>
         <dd className="space-y-0.5 pt-0.5 font-mono text-xs" data-testid="summary-taus">
           {taus.length ? (
             taus.map((t) => (
               <span key={t.n} className="mr-2 inline-block whitespace-nowrap">
-                <span className="font-sans text-ink-faint">{CORNER_WORDS[t.n]}</span> {formatNumber(t.tau, 4)} µs
+                <span className="font-sans text-ink-faint">{CORNER_WORDS[t.n]}</span> {formatNumber(t.tau, 4)}{" "}
+                µs
               </span>
             ))
           ) : (

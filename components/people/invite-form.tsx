@@ -22,15 +22,31 @@ export function InviteForm() {
     <form ref={formRef} action={formAction} className="space-y-4" noValidate data-testid="invite-form">
       {state?.ok ? <Notice tone="success">{state.message}</Notice> : null}
       {state && !state.ok && !state.fields ? <Notice tone="error">{state.message}</Notice> : null}
-      <TextField id="invite-email" name="email" type="email" label="E-mail" errors={state?.fields?.email} defaultValue={state?.values?.email} required />
-      <SelectField id="invite-role" name="role" label="Role" defaultValue={state?.values?.role || "archivist"} errors={state?.fields?.role}>
+      <TextField
+        id="invite-email"
+        name="email"
+        type="email"
+        label="E-mail"
+        errors={state?.fields?.email}
+        defaultValue={state?.values?.email}
+        required
+      />
+      <SelectField
+        id="invite-role"
+        name="role"
+        label="Role"
+        defaultValue={state?.values?.role || "archivist"}
+        errors={state?.fields?.role}
+      >
         {roles.map((r) => (
           <option key={r} value={r}>
             {roleLabels[r]}
           </option>
         ))}
       </SelectField>
-      <p className="text-xs text-ink-faint">They receive a link that works once and expires after 72 hours.</p>
+      <p className="text-xs text-ink-faint">
+        They receive a link that works once and expires after 72 hours.
+      </p>
       <Button type="submit" disabled={pending} className="w-full">
         {pending ? "Sending…" : "Send invitation"}
       </Button>

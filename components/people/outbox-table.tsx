@@ -23,17 +23,28 @@ const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "
 const tone = { queued: "accent", sent: "ok", failed: "alarm" } as const;
 
 export function OutboxTable() {
-  const { data, isLoading, error } = useQuery({ queryKey: ["outbox"], queryFn: () => fetchJson<{ messages: Message[] }>("/api/outbox"), refetchInterval: 5000 });
+  const { data, isLoading, error } = useQuery({
+    queryKey: ["outbox"],
+    queryFn: () => fetchJson<{ messages: Message[] }>("/api/outbox"),
+    refetchInterval: 5000,
+  });
   const [open, setOpen] = useState<Message | null>(null);
   // The table polls every five seconds: keep the same columns between polls.
   const columns = useMemo(
     () => [
-      column.accessor("createdAt", { header: "Queued", cell: (c) => <span className="font-mono text-xs">{fmt.format(new Date(c.getValue()))}</span> }),
+      column.accessor("createdAt", {
+        header: "Queued",
+        cell: (c) => <span className="font-mono text-xs">{fmt.format(new Date(c.getValue()))}</span>,
+      }),
       column.accessor("to", { header: "To" }),
       column.accessor("subject", {
         header: "Subject",
         cell: (c) => (
-          <button type="button" className="text-left underline decoration-paper-edge underline-offset-4 hover:decoration-shellac" onClick={() => setOpen(c.row.original)}>
+          <button
+            type="button"
+            className="text-left underline decoration-paper-edge underline-offset-4 hover:decoration-shellac"
+            onClick={() => setOpen(c.row.original)}
+          >
             {c.getValue()}
           </button>
         ),
@@ -43,7 +54,9 @@ export function OutboxTable() {
         cell: (c) => (
           <span className="space-x-2">
             <Badge tone={tone[c.getValue()]}>{c.getValue()}</Badge>
-            {c.row.original.attempts > 1 ? <span className="text-xs text-ink-faint">{c.row.original.attempts} tries</span> : null}
+            {c.row.original.attempts > 1 ? (
+              <span className="text-xs text-ink-faint">{c.row.original.attempts} tries</span>
+            ) : null}
           </span>
         ),
       }),
@@ -52,8 +65,21 @@ export function OutboxTable() {
   );
   return (
     <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,28rem)]">
-      <DataTable columns={columns} data={data?.messages} label="Outbox" urlKey="outbox" loading={isLoading} error={error?.message} testId="outbox-table" empty="No mail yet." />
-      <aside aria-live="polite" className="rounded-xl border border-paper-edge bg-white/80 p-5" data-testid="outbox-message">
+      <DataTable
+        columns={columns}
+        data={data?.messages}
+        label="Outbox"
+        urlKey="outbox"
+        loading={isLoading}
+        error={error?.message}
+        testId="outbox-table"
+        empty="No mail yet."
+      />
+      <aside
+        aria-live="polite"
+        className="rounded-xl border border-paper-edge bg-white/80 p-5"
+        data-testid="outbox-message"
+      >
         {open ? (
           <div className="space-y-3">
             <h2 className="text-lg font-semibold">{open.subject}</h2>
@@ -61,7 +87,9 @@ export function OutboxTable() {
               to {open.to} · {open.sentAt ? `sent ${fmt.format(new Date(open.sentAt))}` : open.status}
             </p>
             {open.lastError ? <p className="text-xs text-alarm">Last error: {open.lastError}</p> : null}
-            <pre className="whitespace-pre-wrap break-words rounded bg-paper p-3 font-mono text-xs leading-relaxed">{open.text}</pre>
+            <pre className="whitespace-pre-wrap break-words rounded bg-paper p-3 font-mono text-xs leading-relaxed">
+              {open.text}
+            </pre>
           </div>
         ) : (
           <p className="text-sm text-ink-faint">Choose a message to read its text.</p>

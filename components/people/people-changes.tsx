@@ -16,7 +16,8 @@ interface Change {
 const kindText: Record<string, (c: Change) => string> = {
   invited: (c) => `invited ${c.subjectEmail} as ${String(c.detail.role)}`,
   invitation_accepted: (c) => `${c.subjectEmail} accepted the invitation`,
-  role_changed: (c) => `changed the role of ${c.subjectEmail} from ${String(c.detail.from)} to ${String(c.detail.to)}`,
+  role_changed: (c) =>
+    `changed the role of ${c.subjectEmail} from ${String(c.detail.from)} to ${String(c.detail.to)}`,
   deactivated: (c) => `deactivated ${c.subjectEmail}`,
   reactivated: (c) => `reactivated ${c.subjectEmail}`,
   password_reset_requested: (c) => `a password reset was asked for ${c.subjectEmail}`,
@@ -24,7 +25,10 @@ const kindText: Record<string, (c: Change) => string> = {
 };
 
 export function PeopleChanges() {
-  const { data } = useQuery({ queryKey: ["people-changes"], queryFn: () => fetchJson<{ changes: Change[] }>("/api/people-changes") });
+  const { data } = useQuery({
+    queryKey: ["people-changes"],
+    queryFn: () => fetchJson<{ changes: Change[] }>("/api/people-changes"),
+  });
   return (
     <Panel title="Recent changes">
       {!data?.changes.length ? (
@@ -37,7 +41,9 @@ export function PeopleChanges() {
                 {when(c.at)}
               </time>
               <span>
-                {c.actorName && !["invitation_accepted", "password_reset"].includes(c.kind) ? <strong className="font-medium">{c.actorName} </strong> : null}
+                {c.actorName && !["invitation_accepted", "password_reset"].includes(c.kind) ? (
+                  <strong className="font-medium">{c.actorName} </strong>
+                ) : null}
                 {(kindText[c.kind] ?? ((x: Change) => x.kind))(c)}
               </span>
             </li>

@@ -31,7 +31,10 @@ const column = createColumnHelper<Person>();
 
 export function PeopleTable({ currentUserId }: { currentUserId: string }) {
   const queryClient = useQueryClient();
-  const { data, isLoading, error } = useQuery({ queryKey: ["people"], queryFn: () => fetchJson<{ people: Person[]; invitations: Invitation[] }>("/api/users") });
+  const { data, isLoading, error } = useQuery({
+    queryKey: ["people"],
+    queryFn: () => fetchJson<{ people: Person[]; invitations: Invitation[] }>("/api/users"),
+  });
   const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
   const [pending, startTransition] = useTransition();
 
@@ -73,12 +76,15 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
       }),
       column.accessor("active", {
         header: "Access",
-        cell: (c) => (c.getValue() ? <Badge tone="ok">Active</Badge> : <Badge tone="alarm">Deactivated</Badge>),
+        cell: (c) =>
+          c.getValue() ? <Badge tone="ok">Active</Badge> : <Badge tone="alarm">Deactivated</Badge>,
       }),
       column.accessor("lastSignInAt", {
         header: "Last signed in",
         sortingFn: "datetime",
-        cell: (c) => <span className="font-mono text-xs">{c.getValue() ? when(c.getValue() as string) : "never"}</span>,
+        cell: (c) => (
+          <span className="font-mono text-xs">{c.getValue() ? when(c.getValue() as string) : "never"}</span>
+        ),
       }),
       column.display({
         id: "actions",
@@ -103,10 +109,21 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
   return (
     <div className="space-y-4">
       {message ? <Notice tone={message.ok ? "success" : "error"}>{message.text}</Notice> : null}
-      <DataTable columns={columns} data={data?.people} label="People" urlKey="people" loading={isLoading} error={error?.message} testId="people-table" defaultSort="name" />
+      <DataTable
+        columns={columns}
+        data={data?.people}
+        label="People"
+        urlKey="people"
+        loading={isLoading}
+        error={error?.message}
+        testId="people-table"
+        defaultSort="name"
+      />
       {data?.invitations.length ? (
         <div className="rounded-lg border border-dashed border-paper-edge p-4">
-          <h2 className="mb-2 font-sans text-sm font-semibold uppercase tracking-wide text-ink-soft">Waiting for an answer</h2>
+          <h2 className="mb-2 font-sans text-sm font-semibold uppercase tracking-wide text-ink-soft">
+            Waiting for an answer
+          </h2>
           <ul className="space-y-1 text-sm" data-testid="open-invitations">
             {data.invitations.map((i) => (
               <li key={i.id} className="flex justify-between gap-4">

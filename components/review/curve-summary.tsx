@@ -14,9 +14,21 @@ import { cornerText } from "@/components/audit/event-sentence";
 import { CORNER_NAMES, type CornerName, type CurveSpec, describeCurve } from "@/lib/curves";
 import { evidenceLabels } from "@/lib/validation/transfers";
 
-const CORNER_LABELS: Record<CornerName, string> = { turnover: "Bass turnover", shelf: "Low-frequency shelf", rolloff: "Treble rolloff", highpass: "Rumble high-pass", ultrasonic: "Ultrasonic zero" };
+const CORNER_LABELS: Record<CornerName, string> = {
+  turnover: "Bass turnover",
+  shelf: "Low-frequency shelf",
+  rolloff: "Treble rolloff",
+  highpass: "Rumble high-pass",
+  ultrasonic: "Ultrasonic zero",
+};
 
-export function CurveSummary({ current, previous }: { current: CurveChoiceJson; previous: CurveChoiceJson | null }) {
+export function CurveSummary({
+  current,
+  previous,
+}: {
+  current: CurveChoiceJson;
+  previous: CurveChoiceJson | null;
+}) {
   const described = useMemo(() => {
     try {
       return { d: describeCurve(current.spec), error: null };
@@ -30,7 +42,10 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
   const ratio = current.transferSpeedRpm / current.cutSpeedRpm;
   // Memoised: the review page re-renders every second while it waits for fixity results.
   const plotCurves = useMemo<PlotCurve[]>(
-    () => [{ label: `Chosen: ${curveTitle(current)}`, spec: current.spec }, ...(previous ? [{ label: `Before: ${curveTitle(previous)}`, spec: previous.spec }] : [])],
+    () => [
+      { label: `Chosen: ${curveTitle(current)}`, spec: current.spec },
+      ...(previous ? [{ label: `Before: ${curveTitle(previous)}`, spec: previous.spec }] : []),
+    ],
     [current, previous],
   );
 
@@ -41,7 +56,9 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
           {curveTitle(current)}
         </p>
         <p className="font-mono text-sm text-ink-soft">
-          {ratio === 1 ? `${formatNumber(current.cutSpeedRpm)} rpm` : `cut ${formatNumber(current.cutSpeedRpm)} rpm · transferred ${formatNumber(current.transferSpeedRpm)} rpm · ratio ${formatNumber(ratio)}`}
+          {ratio === 1
+            ? `${formatNumber(current.cutSpeedRpm)} rpm`
+            : `cut ${formatNumber(current.cutSpeedRpm)} rpm · transferred ${formatNumber(current.transferSpeedRpm)} rpm · ratio ${formatNumber(ratio)}`}
         </p>
       </div>
 
@@ -51,7 +68,8 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
           {current.rationale}
         </p>
         <p className="pt-1 text-xs text-ink-soft">
-          <span className="font-medium">Rests on:</span> {evidenceLabels[current.evidenceKind] ?? current.evidenceKind}
+          <span className="font-medium">Rests on:</span>{" "}
+          {evidenceLabels[current.evidenceKind] ?? current.evidenceKind}
           {current.evidence ? <> — {current.evidence}</> : null}
         </p>
         <p className="text-xs text-ink-faint">
@@ -63,10 +81,18 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
         <table className="w-full text-left text-sm" aria-label="Curve values" data-testid="curve-values">
           <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
             <tr>
-              <th scope="col" className="px-3 py-2 font-semibold">Corner</th>
-              <th scope="col" className="px-3 py-2 font-semibold">{current.presetName ? `Preset v${current.presetVersion} when chosen` : "Preset"}</th>
-              <th scope="col" className="px-3 py-2 font-semibold">Changed for this side</th>
-              <th scope="col" className="px-3 py-2 font-semibold">Filter applies{ratio !== 1 ? " (at transfer speed)" : ""}</th>
+              <th scope="col" className="px-3 py-2 font-semibold">
+                Corner
+              </th>
+              <th scope="col" className="px-3 py-2 font-semibold">
+                {current.presetName ? `Preset v${current.presetVersion} when chosen` : "Preset"}
+              </th>
+              <th scope="col" className="px-3 py-2 font-semibold">
+                Changed for this side
+              </th>
+              <th scope="col" className="px-3 py-2 font-semibold">
+                Filter applies{ratio !== 1 ? " (at transfer speed)" : ""}
+              </th>
             </tr>
           </thead>
           <tbody>
@@ -74,25 +100,58 @@ export function CurveSummary({ current, previous }: { current: CurveChoiceJson; 
               const resolved = described.d?.curve[n] ?? null;
               return (
                 <tr key={n} className="border-t border-paper-edge/70">
-                  <th scope="row" className="px-3 py-2 font-medium">{CORNER_LABELS[n]}</th>
+                  <th scope="row" className="px-3 py-2 font-medium">
+                    {CORNER_LABELS[n]}
+                  </th>
                   <td className="px-3 py-2 font-mono text-xs">{preset ? cornerText(preset[n]) : "—"}</td>
-                  <td className="px-3 py-2 font-mono text-xs">{n in overrides ? <span className="rounded bg-shellac-wash px-1.5 py-0.5 text-shellac-deep">{cornerText(overrides[n])}</span> : <span className="text-ink-faint">as preset</span>}</td>
-                  <td className="px-3 py-2 font-mono text-xs">{resolved ? `${formatNumber(resolved.filterTauUs)} µs · ${formatHz(resolved.filterHz)}` : "none"}</td>
+                  <td className="px-3 py-2 font-mono text-xs">
+                    {n in overrides ? (
+                      <span className="rounded bg-shellac-wash px-1.5 py-0.5 text-shellac-deep">
+                        {cornerText(overrides[n])}
+                      </span>
+                    ) : (
+                      <span className="text-ink-faint">as preset</span>
+                    )}
+                  </td>
+                  <td className="px-3 py-2 font-mono text-xs">
+                    {resolved
+                      ? `${formatNumber(resolved.filterTauUs)} µs · ${formatHz(resolved.filterHz)}`
+                      : "none"}
+                  </td>
                 </tr>
               );
             })}
             <tr className="border-t border-paper-edge/70">
-              <th scope="row" className="px-3 py-2 font-medium">Normalised to</th>
-              <td className="px-3 py-2 font-mono text-xs">{preset?.reference ? `${formatNumber(preset.reference.db)} dB at ${formatHz(preset.reference.hz)}` : preset ? "0 dB at 1 kHz" : "—"}</td>
-              <td className="px-3 py-2 font-mono text-xs">{overrides.reference ? `${formatNumber(overrides.reference.db)} dB at ${formatHz(overrides.reference.hz)}` : <span className="text-ink-faint">as preset</span>}</td>
-              <td className="px-3 py-2 font-mono text-xs">{described.d ? `${formatNumber(described.d.curve.reference.db)} dB at ${formatHz(described.d.curve.reference.hz)}` : "—"}</td>
+              <th scope="row" className="px-3 py-2 font-medium">
+                Normalised to
+              </th>
+              <td className="px-3 py-2 font-mono text-xs">
+                {preset?.reference
+                  ? `${formatNumber(preset.reference.db)} dB at ${formatHz(preset.reference.hz)}`
+                  : preset
+                    ? "0 dB at 1 kHz"
+                    : "—"}
+              </td>
+              <td className="px-3 py-2 font-mono text-xs">
+                {overrides.reference ? (
+                  `${formatNumber(overrides.reference.db)} dB at ${formatHz(overrides.reference.hz)}`
+                ) : (
+                  <span className="text-ink-faint">as preset</span>
+                )}
+              </td>
+              <td className="px-3 py-2 font-mono text-xs">
+                {described.d
+                  ? `${formatNumber(described.d.curve.reference.db)} dB at ${formatHz(described.d.curve.reference.hz)}`
+                  : "—"}
+              </td>
             </tr>
           </tbody>
         </table>
       </div>
       {described.d ? (
         <p className="text-sm text-ink-soft" data-testid="curve-peak">
-          Peak gain {formatDb(described.d.peakGainDb)} at {formatHz(described.d.peakHz)}: the headroom the render had to leave.
+          Peak gain {formatDb(described.d.peakGainDb)} at {formatHz(described.d.peakHz)}: the headroom the
+          render had to leave.
         </p>
       ) : (
         <p role="alert" className="text-sm font-medium text-alarm">

@@ -11,7 +11,15 @@ import { Notice } from "@/components/ui/notice";
 import { AppError } from "@/lib/http/errors";
 import { fetchJson } from "@/lib/http/client";
 
-export function DecisionPanel({ sideId, fixityMissing, onDecided }: { sideId: string; fixityMissing: string[]; onDecided: (decision: "approved" | "returned") => void }) {
+export function DecisionPanel({
+  sideId,
+  fixityMissing,
+  onDecided,
+}: {
+  sideId: string;
+  fixityMissing: string[];
+  onDecided: (decision: "approved" | "returned") => void;
+}) {
   const uid = useId();
   const [reason, setReason] = useState("");
   const [reasonError, setReasonError] = useState<string | null>(null);
@@ -28,14 +36,22 @@ export function DecisionPanel({ sideId, fixityMissing, onDecided }: { sideId: st
     }
     setBusy(decision);
     try {
-      await fetchJson(`/api/sides/${sideId}/review`, { method: "POST", body: JSON.stringify(decision === "approved" ? { decision } : { decision, reason: reason.trim() }) });
+      await fetchJson(`/api/sides/${sideId}/review`, {
+        method: "POST",
+        body: JSON.stringify(decision === "approved" ? { decision } : { decision, reason: reason.trim() }),
+      });
       setReason("");
       onDecided(decision);
     } catch (err) {
       const message = err instanceof Error ? err.message : String(err);
       if (err instanceof AppError && err.fields?.reason) setReasonError(err.fields.reason.join(" "));
       const status = err instanceof AppError ? err.status : 0;
-      const title = decision === "approved" ? (status === 403 ? "You may not approve this side" : "Not approved") : "Not returned";
+      const title =
+        decision === "approved"
+          ? status === 403
+            ? "You may not approve this side"
+            : "Not approved"
+          : "Not returned";
       setRefusal({ title, message });
     } finally {
       setBusy(null);
@@ -45,15 +61,25 @@ export function DecisionPanel({ sideId, fixityMissing, onDecided }: { sideId: st
   return (
     <div className="space-y-4" data-testid="decision-panel">
       <div className="space-y-2">
-        <Button type="button" className="w-full" onClick={() => void decide("approved")} disabled={!!busy} data-testid="review-approve">
+        <Button
+          type="button"
+          className="w-full"
+          onClick={() => void decide("approved")}
+          disabled={!!busy}
+          data-testid="review-approve"
+        >
           {busy === "approved" ? "Approving…" : "Approve"}
         </Button>
         {fixityMissing.length ? (
           <p className="text-xs text-ink-soft" data-testid="approve-needs-fixity">
-            Approval waits for a passing fixity check of {fixityMissing.join(" and ")} since {fixityMissing.length > 1 ? "they were" : "it was"} stored: use “Check fixity now”.
+            Approval waits for a passing fixity check of {fixityMissing.join(" and ")} since{" "}
+            {fixityMissing.length > 1 ? "they were" : "it was"} stored: use “Check fixity now”.
           </p>
         ) : (
-          <p className="text-xs text-ink-faint">Both files have passed fixity since they were stored. Someone who did not make this transfer, choose its curve or render it approves it.</p>
+          <p className="text-xs text-ink-faint">
+            Both files have passed fixity since they were stored. Someone who did not make this transfer,
+            choose its curve or render it approves it.
+          </p>
         )}
       </div>
 
@@ -93,7 +119,12 @@ export function DecisionPanel({ sideId, fixityMissing, onDecided }: { sideId: st
           data-testid="review-reason"
         />
         {reasonError ? (
-          <p id={`${uid}-reason-error`} role="alert" className="text-xs font-medium text-alarm" data-testid="review-reason-error">
+          <p
+            id={`${uid}-reason-error`}
+            role="alert"
+            className="text-xs font-medium text-alarm"
+            data-testid="review-reason-error"
+          >
             {reasonError}
           </p>
         ) : (
@@ -101,7 +132,13 @@ export function DecisionPanel({ sideId, fixityMissing, onDecided }: { sideId: st
             The engineer gets it by e-mail and sees it on the bench.
           </p>
         )}
-        <Button type="submit" variant="danger" className="w-full" disabled={!!busy} data-testid="review-return">
+        <Button
+          type="submit"
+          variant="danger"
+          className="w-full"
+          disabled={!!busy}
+          data-testid="review-return"
+        >
           {busy === "returned" ? "Returning…" : "Return to the engineer"}
         </Button>
       </form>

@@ -7,7 +7,8 @@ import { DataTable } from "@/components/ui/data-table";
 import { fetchJson } from "@/lib/http/client";
 import type { ReviewQueueRow } from "./types";
 
-const link = "font-mono font-semibold text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac";
+const link =
+  "font-mono font-semibold text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac";
 const column = createColumnHelper<ReviewQueueRow>();
 const columns = [
   column.accessor("shelfMark", {
@@ -17,16 +18,38 @@ const columns = [
         <Link href={`/catalogue/${c.row.original.discId}`} className={link}>
           {c.getValue()}
         </Link>
-        <p className="text-xs text-ink-faint">{[c.row.original.labelName, c.row.original.catalogueNumber].filter(Boolean).join(" · ")}</p>
+        <p className="text-xs text-ink-faint">
+          {[c.row.original.labelName, c.row.original.catalogueNumber].filter(Boolean).join(" · ")}
+        </p>
       </div>
     ),
   }),
-  column.accessor("designation", { header: "Side", cell: (c) => <span className="font-mono text-base font-semibold">{c.getValue()}</span> }),
-  column.accessor("matrixNumber", { header: "Matrix", cell: (c) => <span className="font-mono text-xs">{c.getValue() || "—"}</span> }),
-  column.accessor("title", { header: "Title", cell: (c) => c.getValue() || <span className="text-ink-faint">untitled</span> }),
-  column.accessor((r) => formatLabel(r.format), { id: "format", header: "Format", cell: (c) => <span className="text-xs">{c.getValue()}</span> }),
-  column.accessor((r) => r.engineerName ?? "", { id: "engineer", header: "Engineer", cell: (c) => c.getValue() || <span className="text-ink-faint">—</span> }),
-  column.accessor("submittedAt", { header: "In review since", cell: (c) => <span className="whitespace-nowrap font-mono text-xs">{when(c.getValue())}</span> }),
+  column.accessor("designation", {
+    header: "Side",
+    cell: (c) => <span className="font-mono text-base font-semibold">{c.getValue()}</span>,
+  }),
+  column.accessor("matrixNumber", {
+    header: "Matrix",
+    cell: (c) => <span className="font-mono text-xs">{c.getValue() || "—"}</span>,
+  }),
+  column.accessor("title", {
+    header: "Title",
+    cell: (c) => c.getValue() || <span className="text-ink-faint">untitled</span>,
+  }),
+  column.accessor((r) => formatLabel(r.format), {
+    id: "format",
+    header: "Format",
+    cell: (c) => <span className="text-xs">{c.getValue()}</span>,
+  }),
+  column.accessor((r) => r.engineerName ?? "", {
+    id: "engineer",
+    header: "Engineer",
+    cell: (c) => c.getValue() || <span className="text-ink-faint">—</span>,
+  }),
+  column.accessor("submittedAt", {
+    header: "In review since",
+    cell: (c) => <span className="whitespace-nowrap font-mono text-xs">{when(c.getValue())}</span>,
+  }),
   column.display({
     id: "open",
     header: () => <span className="sr-only">Open</span>,
@@ -45,6 +68,21 @@ const columns = [
 
 /** The sides waiting for a curator, oldest first. */
 export function ReviewQueue() {
-  const queue = useQuery({ queryKey: ["reviews"], queryFn: () => fetchJson<{ sides: ReviewQueueRow[] }>("/api/reviews"), refetchInterval: 30_000 });
-  return <DataTable columns={columns} data={queue.data?.sides} label="Sides in review" urlKey="review" loading={queue.isLoading} error={queue.error?.message} testId="review-table" empty="No side is waiting for review." />;
+  const queue = useQuery({
+    queryKey: ["reviews"],
+    queryFn: () => fetchJson<{ sides: ReviewQueueRow[] }>("/api/reviews"),
+    refetchInterval: 30_000,
+  });
+  return (
+    <DataTable
+      columns={columns}
+      data={queue.data?.sides}
+      label="Sides in review"
+      urlKey="review"
+      loading={queue.isLoading}
+      error={queue.error?.message}
+      testId="review-table"
+      empty="No side is waiting for review."
+    />
+  );
 }

@@ -34,8 +34,14 @@ const FIXITY_WAIT_MS = 90_000;
 export function ReviewView({ sideId }: { sideId: string }) {
   const queryClient = useQueryClient();
   const { side, choices, transfers } = useSide(sideId);
-  const renders = useQuery({ queryKey: ["renders", sideId], queryFn: () => fetchJson<{ renders: RenderRow[] }>(`/api/sides/${sideId}/renders`) });
-  const reviews = useQuery({ queryKey: ["side-reviews", sideId], queryFn: () => fetchJson<{ reviews: ReviewJson[] }>(`/api/sides/${sideId}/review`) });
+  const renders = useQuery({
+    queryKey: ["renders", sideId],
+    queryFn: () => fetchJson<{ renders: RenderRow[] }>(`/api/sides/${sideId}/renders`),
+  });
+  const reviews = useQuery({
+    queryKey: ["side-reviews", sideId],
+    queryFn: () => fetchJson<{ reviews: ReviewJson[] }>(`/api/sides/${sideId}/review`),
+  });
 
   // Fixity: after "Check fixity now", poll until both files have a result newer than the request.
   const [fixityAsk, setFixityAsk] = useState<{ askedAt: number; startedAt: number } | null>(null);
@@ -45,7 +51,8 @@ export function ReviewView({ sideId }: { sideId: string }) {
   const current = choices.data?.choices.find((c) => c.id === sideNow?.currentCurveChoiceId) ?? null;
   const previous = choices.data?.choices.find((c) => c.id !== current?.id) ?? null;
   const transfer = transfers.data?.transfers.find((t) => t.id === sideNow?.currentTransferId) ?? null;
-  const render = renders.data?.renders.find((r) => r.id === sideNow?.currentRenderId && r.status === "done") ?? null;
+  const render =
+    renders.data?.renders.find((r) => r.id === sideNow?.currentRenderId && r.status === "done") ?? null;
   const watched = [transfer?.id, render?.id].filter(Boolean) as string[];
   const fixity = useQuery({
     queryKey: ["side-fixity", sideId],
@@ -64,7 +71,10 @@ export function ReviewView({ sideId }: { sideId: string }) {
     if (!discId) return;
     setFixityError(null);
     try {
-      const r = await fetchJson<{ queued: number; askedAt: number }>("/api/fixity", { method: "POST", body: JSON.stringify({ discId }) });
+      const r = await fetchJson<{ queued: number; askedAt: number }>("/api/fixity", {
+        method: "POST",
+        body: JSON.stringify({ discId }),
+      });
       setFixityAsk({ askedAt: r.askedAt, startedAt: Date.now() });
       await queryClient.invalidateQueries({ queryKey: ["side-fixity", sideId] });
     } catch (err) {
@@ -75,7 +85,8 @@ export function ReviewView({ sideId }: { sideId: string }) {
   const [decided, setDecided] = useState<"approved" | "returned" | null>(null);
   const onDecided = (d: "approved" | "returned") => {
     setDecided(d);
-    for (const key of [["side", sideId], ["side-reviews", sideId], ["reviews"]]) void queryClient.invalidateQueries({ queryKey: key });
+    for (const key of [["side", sideId], ["side-reviews", sideId], ["reviews"]])
+      void queryClient.invalidateQueries({ queryKey: key });
   };
   const decidedRef = useRef<HTMLDivElement | null>(null);
   useEffect(() => {
@@ -90,22 +101,33 @@ export function ReviewView({ sideId }: { sideId: string }) {
     return out;
   }, [current, previous]);
   const [modeChoice, setModeChoice] = useState<ChannelMode | null>(null);
-  const suggestion = side.data && transfer ? defaultChannelMode(side.data.disc.cut, Number(transfer.channels)) : null;
+  const suggestion =
+    side.data && transfer ? defaultChannelMode(side.data.disc.cut, Number(transfer.channels)) : null;
   const channelMode: ChannelMode = modeChoice ?? render?.channelMode ?? suggestion?.mode ?? "both";
   const channelWhy = render && !modeChoice ? "As the access copy was rendered." : (suggestion?.why ?? "");
 
   if (side.isLoading) return <p className="text-ink-faint">Loading the side…</p>;
-  if (side.error || !side.data) return <Notice tone="error" title="This side could not be opened">{side.error?.message ?? "Unknown side."}</Notice>;
+  if (side.error || !side.data)
+    return (
+      <Notice tone="error" title="This side could not be opened">
+        {side.error?.message ?? "Unknown side."}
+      </Notice>
+    );
   const { disc } = side.data;
   const s = side.data.side;
   const inReview = s.status === "in_review";
 
   const tFix = fixityOf(fixity.data?.checks, transfer?.id, transfer?.createdAt);
   const rFix = fixityOf(fixity.data?.checks, render?.id, render?.finishedAt);
-  const fixityMissing = [tFix.state !== "passed" ? "the flat transfer" : null, rFix.state !== "passed" ? "the access copy" : null].filter(Boolean) as string[];
+  const fixityMissing = [
+    tFix.state !== "passed" ? "the flat transfer" : null,
+    rFix.state !== "passed" ? "the access copy" : null,
+  ].filter(Boolean) as string[];
   // The database holds the current render to the current transfer and curve; say so if the page ever reads otherwise.
   const renderStale =
-    render && ((current && render.curveChoiceId && render.curveChoiceId !== current.id) || (transfer && render.transferId && render.transferId !== transfer.id))
+    render &&
+    ((current && render.curveChoiceId && render.curveChoiceId !== current.id) ||
+      (transfer && render.transferId && render.transferId !== transfer.id))
       ? "This access copy was not made from the side's current transfer and curve."
       : null;
   const fixityProgress = fixityError
@@ -131,7 +153,10 @@ export function ReviewView({ sideId }: { sideId: string }) {
         ]}
         showSideNotes
         aside={
-          <Link href={`/audit?disc=${disc.id}`} className="text-xs text-shellac-deep underline underline-offset-2">
+          <Link
+            href={`/audit?disc=${disc.id}`}
+            className="text-xs text-shellac-deep underline underline-offset-2"
+          >
             This disc&apos;s provenance
           </Link>
         }
@@ -157,27 +182,54 @@ export function ReviewView({ sideId }: { sideId: string }) {
                 </h3>
                 {render && transfer && current ? (
                   <div className="rounded-lg border border-paper-edge bg-paper/40 p-3">
-                    <AccessCopyCompare key={render.id} render={render} transfer={transfer} spec={current.spec} curveLabel={curveTitle(current)} />
+                    <AccessCopyCompare
+                      key={render.id}
+                      render={render}
+                      transfer={transfer}
+                      spec={current.spec}
+                      curveLabel={curveTitle(current)}
+                    />
                   </div>
                 ) : null}
                 {render ? (
                   <>
                     <p className="text-xs text-ink-faint">The whole side, as stored:</p>
-                    <audio controls preload="none" src={`/api/renders/${render.id}/download`} className="w-full" data-testid="access-copy-player" aria-label={`Access copy of ${disc.shelfMark} side ${s.designation}`}>
+                    <audio
+                      controls
+                      preload="none"
+                      src={`/api/renders/${render.id}/download`}
+                      className="w-full"
+                      data-testid="access-copy-player"
+                      aria-label={`Access copy of ${disc.shelfMark} side ${s.designation}`}
+                    >
                       <a href={`/api/renders/${render.id}/download`}>Download the access copy</a>
                     </audio>
-                    <p className="text-xs text-ink-faint">Start with your volume low: an equalized side can carry a lot of bass and surface noise.</p>
+                    <p className="text-xs text-ink-faint">
+                      Start with your volume low: an equalized side can carry a lot of bass and surface noise.
+                    </p>
                   </>
                 ) : (
                   <p className="text-sm text-ink-faint">No finished access copy.</p>
                 )}
               </section>
-              <section className="space-y-2 border-t border-paper-edge pt-5" aria-labelledby="review-flat-listen">
+              <section
+                className="space-y-2 border-t border-paper-edge pt-5"
+                aria-labelledby="review-flat-listen"
+              >
                 <h3 id="review-flat-listen" className="font-sans text-sm font-semibold">
                   The flat transfer through the chosen curve, in this browser
                 </h3>
-                <p className="text-xs text-ink-faint">Listening only: nothing here changes the side.{previous ? " The curve before the last change is offered too, for comparison." : ""}</p>
-                <AuditionPanel transfer={transfer} candidates={candidates} channelMode={channelMode} onChannelMode={setModeChoice} channelWhy={channelWhy} />
+                <p className="text-xs text-ink-faint">
+                  Listening only: nothing here changes the side.
+                  {previous ? " The curve before the last change is offered too, for comparison." : ""}
+                </p>
+                <AuditionPanel
+                  transfer={transfer}
+                  candidates={candidates}
+                  channelMode={channelMode}
+                  onChannelMode={setModeChoice}
+                  channelWhy={channelWhy}
+                />
               </section>
             </div>
           </Panel>
@@ -191,8 +243,14 @@ export function ReviewView({ sideId }: { sideId: string }) {
           <Panel title="Decision">
             <div ref={decidedRef} tabIndex={-1} className="space-y-3 outline-none">
               {decided ? (
-                <Notice tone={decided === "approved" ? "success" : "info"} title={decided === "approved" ? "Approved" : "Returned to the engineer"} testId="review-decided">
-                  {decided === "approved" ? "The side is approved and the decision is in its provenance." : "The engineer has been told why, by e-mail and on the bench."}{" "}
+                <Notice
+                  tone={decided === "approved" ? "success" : "info"}
+                  title={decided === "approved" ? "Approved" : "Returned to the engineer"}
+                  testId="review-decided"
+                >
+                  {decided === "approved"
+                    ? "The side is approved and the decision is in its provenance."
+                    : "The engineer has been told why, by e-mail and on the bench."}{" "}
                   <Link href="/review" className="font-medium text-shellac-deep underline underline-offset-2">
                     Back to the sides in review
                   </Link>
@@ -210,10 +268,24 @@ export function ReviewView({ sideId }: { sideId: string }) {
 
           <Panel title="Files and fixity">
             <div className="space-y-3">
-              {transfers.isLoading || renders.isLoading ? <p className="text-sm text-ink-faint">Loading…</p> : null}
-              {transfer ? <TransferCard t={transfer} fixity={tFix} /> : !transfers.isLoading ? <p className="text-sm text-ink-faint">No flat transfer.</p> : null}
-              {render ? <RenderCard r={render} fixity={rFix} stale={renderStale} /> : !renders.isLoading ? <p className="text-sm text-ink-faint">No finished access copy.</p> : null}
-              <FixityCheckButton onCheck={() => void checkFixity()} busy={!!fixityAsk && !fixityDone && !fixityTimedOut} progress={fixityProgress} />
+              {transfers.isLoading || renders.isLoading ? (
+                <p className="text-sm text-ink-faint">Loading…</p>
+              ) : null}
+              {transfer ? (
+                <TransferCard t={transfer} fixity={tFix} />
+              ) : !transfers.isLoading ? (
+                <p className="text-sm text-ink-faint">No flat transfer.</p>
+              ) : null}
+              {render ? (
+                <RenderCard r={render} fixity={rFix} stale={renderStale} />
+              ) : !renders.isLoading ? (
+                <p className="text-sm text-ink-faint">No finished access copy.</p>
+              ) : null}
+              <FixityCheckButton
+                onCheck={() => void checkFixity()}
+                busy={!!fixityAsk && !fixityDone && !fixityTimedOut}
+                progress={fixityProgress}
+              />
             </div>
           </Panel>
 
@@ -228,18 +300,34 @@ export function ReviewView({ sideId }: { sideId: string }) {
 
 function arrived(checks: FixityCheckJson[] | undefined, ids: string[], askedAt: number): boolean {
   // A second of slack: the request's clock and the database's are the same machine's, but rounded differently.
-  return ids.length > 0 && ids.every((id) => (checks ?? []).some((c) => c.objectId === id && new Date(c.checkedAt).getTime() >= askedAt - 1000));
+  return (
+    ids.length > 0 &&
+    ids.every((id) =>
+      (checks ?? []).some((c) => c.objectId === id && new Date(c.checkedAt).getTime() >= askedAt - 1000),
+    )
+  );
 }
 
 function ReviewHistory({ reviews, loading }: { reviews: ReviewJson[] | undefined; loading: boolean }) {
   if (loading) return <p className="text-sm text-ink-faint">Loading…</p>;
-  if (!reviews?.length) return <p className="text-sm text-ink-faint" data-testid="review-history-empty">No decision on this side yet.</p>;
+  if (!reviews?.length)
+    return (
+      <p className="text-sm text-ink-faint" data-testid="review-history-empty">
+        No decision on this side yet.
+      </p>
+    );
   return (
     <ol className="space-y-3" data-testid="review-history">
       {reviews.map((r) => (
-        <li key={r.id} className="rounded-lg border border-paper-edge bg-white p-3" data-testid="review-history-item">
+        <li
+          key={r.id}
+          className="rounded-lg border border-paper-edge bg-white p-3"
+          data-testid="review-history-item"
+        >
           <div className="flex flex-wrap items-center gap-2">
-            <Badge tone={r.decision === "approved" ? "ok" : "alarm"}>{r.decision === "approved" ? "Approved" : "Returned"}</Badge>
+            <Badge tone={r.decision === "approved" ? "ok" : "alarm"}>
+              {r.decision === "approved" ? "Approved" : "Returned"}
+            </Badge>
             <span className="text-sm">{r.curatorName}</span>
             <time dateTime={r.decidedAt} className="text-xs text-ink-faint">
               {when(r.decidedAt)}
@@ -251,4 +339,3 @@ function ReviewHistory({ reviews, loading }: { reviews: ReviewJson[] | undefined
     </ol>
   );
 }
-

@@ -9,7 +9,9 @@ export function DatabaseUnavailable({ retry }: { retry?: ReactNode }) {
         <GrooveMark size={44} className="mx-auto" />
         <h1 className="text-3xl font-semibold">The lab&apos;s database is unavailable</h1>
         <p className="text-ink-soft">
-          Rillbook cannot reach its database just now (it may be restarting). Nothing you did was half-saved: what was not confirmed was not recorded. Try again in a minute; if it lasts, tell the lab&apos;s admin.
+          Rillbook cannot reach its database just now (it may be restarting). Nothing you did was half-saved:
+          what was not confirmed was not recorded. Try again in a minute; if it lasts, tell the lab&apos;s
+          admin.
         </p>
         {retry}
       </div>

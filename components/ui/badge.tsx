@@ -9,9 +9,20 @@ const tones = {
   alarm: "bg-alarm-wash text-alarm",
 } as const;
 
-export function Badge({ tone = "neutral", children, testId }: { tone?: keyof typeof tones; children: ReactNode; testId?: string }) {
+export function Badge({
+  tone = "neutral",
+  children,
+  testId,
+}: {
+  tone?: keyof typeof tones;
+  children: ReactNode;
+  testId?: string;
+}) {
   return (
-    <span className={cx("inline-flex items-center rounded px-2 py-0.5 text-xs font-medium", tones[tone])} data-testid={testId}>
+    <span
+      className={cx("inline-flex items-center rounded px-2 py-0.5 text-xs font-medium", tones[tone])}
+      data-testid={testId}
+    >
       {children}
     </span>
   );

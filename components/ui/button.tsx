@@ -12,7 +12,11 @@ export type ButtonVariant = keyof typeof variants;
 export type ButtonSize = "sm" | "md";
 
 /** The button look, for anything that must look like a button but is not one (links, downloads). */
-export function buttonClass({ variant = "primary", size = "md", className }: { variant?: ButtonVariant; size?: ButtonSize; className?: string } = {}): string {
+export function buttonClass({
+  variant = "primary",
+  size = "md",
+  className,
+}: { variant?: ButtonVariant; size?: ButtonSize; className?: string } = {}): string {
   return cx(
     "inline-flex items-center justify-center gap-2 rounded-md font-medium transition-colors disabled:cursor-not-allowed disabled:opacity-50",
     size === "sm" ? "h-8 px-3 text-sm" : "h-10 px-4 text-sm",

@@ -68,9 +68,18 @@ export function DataTable<T>({
           onChange={(e) => setFilter(e.target.value)}
           className="h-9 w-64 rounded-md border border-paper-edge bg-white px-3 text-sm"
         />
-        <span className="text-xs text-ink-faint">{loading ? "Loading…" : `${table.getRowModel().rows.length} of ${data?.length ?? 0}`}</span>
+        <span className="text-xs text-ink-faint">
+          {loading ? "Loading…" : `${table.getRowModel().rows.length} of ${data?.length ?? 0}`}
+        </span>
       </div>
-      <TableView table={table} label={label} testId={testId} error={error} emptyText={loading ? "Loading…" : empty} cellAlign="middle" />
+      <TableView
+        table={table}
+        label={label}
+        testId={testId}
+        error={error}
+        emptyText={loading ? "Loading…" : empty}
+        cellAlign="middle"
+      />
     </div>
   );
 }
@@ -104,18 +113,34 @@ export function TableView<T>({
   const columnCount = table.getVisibleLeafColumns().length;
   return (
     <div className="overflow-x-auto rounded-lg border border-paper-edge bg-white">
-      <table className="w-full text-left text-sm" aria-label={label} data-testid={testId} aria-busy={busy || undefined}>
+      <table
+        className="w-full text-left text-sm"
+        aria-label={label}
+        data-testid={testId}
+        aria-busy={busy || undefined}
+      >
         <thead className="bg-paper-deep/60 text-xs uppercase tracking-wide text-ink-soft">
           {table.getHeaderGroups().map((hg) => (
             <tr key={hg.id}>
               {hg.headers.map((h) => {
                 const sorted = h.column.getIsSorted();
                 return (
-                  <th key={h.id} scope="col" className={cx("px-3 py-2.5 font-semibold", headerClassName?.(h.column.id))} aria-sort={sorted ? (sorted === "desc" ? "descending" : "ascending") : undefined}>
+                  <th
+                    key={h.id}
+                    scope="col"
+                    className={cx("px-3 py-2.5 font-semibold", headerClassName?.(h.column.id))}
+                    aria-sort={sorted ? (sorted === "desc" ? "descending" : "ascending") : undefined}
+                  >
                     {h.column.getCanSort() ? (
-                      <button type="button" onClick={h.column.getToggleSortingHandler()} className="inline-flex items-center gap-1 uppercase hover:text-ink">
+                      <button
+                        type="button"
+                        onClick={h.column.getToggleSortingHandler()}
+                        className="inline-flex items-center gap-1 uppercase hover:text-ink"
+                      >
                         {flexRender(h.column.columnDef.header, h.getContext())}
-                        <span aria-hidden className="text-[0.65rem]">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
+                        <span aria-hidden className="text-[0.65rem]">
+                          {sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}
+                        </span>
                       </button>
                     ) : (
                       flexRender(h.column.columnDef.header, h.getContext())
@@ -129,17 +154,30 @@ export function TableView<T>({
         <tbody>
           {error ? (
             <tr>
-              <td colSpan={columnCount} className="px-3 py-6 text-center text-alarm">{error}</td>
+              <td colSpan={columnCount} className="px-3 py-6 text-center text-alarm">
+                {error}
+              </td>
             </tr>
           ) : table.getRowModel().rows.length === 0 ? (
             <tr>
-              <td colSpan={columnCount} className="px-3 py-8 text-center text-ink-faint">{emptyText}</td>
+              <td colSpan={columnCount} className="px-3 py-8 text-center text-ink-faint">
+                {emptyText}
+              </td>
             </tr>
           ) : (
             table.getRowModel().rows.map((row, i) => (
-              <tr key={row.id} className={cx("border-t border-paper-edge/70", rowClassName ? rowClassName(row, i) : i % 2 === 1 && "bg-paper/40")}>
+              <tr
+                key={row.id}
+                className={cx(
+                  "border-t border-paper-edge/70",
+                  rowClassName ? rowClassName(row, i) : i % 2 === 1 && "bg-paper/40",
+                )}
+              >
                 {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className={cx("px-3 py-2.5", cellAlign === "middle" ? "align-middle" : "align-top")}>
+                  <td
+                    key={cell.id}
+                    className={cx("px-3 py-2.5", cellAlign === "middle" ? "align-middle" : "align-top")}
+                  >
                     {flexRender(cell.column.columnDef.cell, cell.getContext())}
                   </td>
                 ))}

@@ -32,7 +32,12 @@ export function FieldShell({ id, label, hint, errors, children }: FieldShellProp
         </p>
       ) : null}
       {errors?.length ? (
-        <p id={`${id}-error`} role="alert" className="text-xs font-medium text-alarm" data-testid={`error-${id}`}>
+        <p
+          id={`${id}-error`}
+          role="alert"
+          className="text-xs font-medium text-alarm"
+          data-testid={`error-${id}`}
+        >
           {errors.join(" ")}
         </p>
       ) : null}
@@ -47,7 +52,12 @@ export function TextField({
   errors,
   className,
   ...props
-}: InputHTMLAttributes<HTMLInputElement> & { id: string; label: string; hint?: ReactNode; errors?: string[] }) {
+}: InputHTMLAttributes<HTMLInputElement> & {
+  id: string;
+  label: string;
+  hint?: ReactNode;
+  errors?: string[];
+}) {
   return (
     <FieldShell id={id} label={label} hint={hint} errors={errors}>
       <input
@@ -70,7 +80,12 @@ export function SelectField({
   children,
   className,
   ...props
-}: SelectHTMLAttributes<HTMLSelectElement> & { id: string; label: string; hint?: ReactNode; errors?: string[] }) {
+}: SelectHTMLAttributes<HTMLSelectElement> & {
+  id: string;
+  label: string;
+  hint?: ReactNode;
+  errors?: string[];
+}) {
   return (
     <FieldShell id={id} label={label} hint={hint} errors={errors}>
       <select

@@ -2,7 +2,17 @@ import type { ReactNode } from "react";
 import { cx } from "./cx";
 import { BackLink } from "./link-button";
 
-export function Panel({ title, actions, children, className }: { title?: string; actions?: ReactNode; children: ReactNode; className?: string }) {
+export function Panel({
+  title,
+  actions,
+  children,
+  className,
+}: {
+  title?: string;
+  actions?: ReactNode;
+  children: ReactNode;
+  className?: string;
+}) {
   return (
     <section className={cx("rounded-xl border border-paper-edge bg-white/80 shadow-sm", className)}>
       {title ? (
@@ -17,7 +27,17 @@ export function Panel({ title, actions, children, className }: { title?: string;
 }
 
 /** A page's title and lead; `back` puts the way back to the page above it over the title. */
-export function PageHeader({ title, lead, actions, back }: { title: string; lead?: ReactNode; actions?: ReactNode; back?: { href: string; label: ReactNode } }) {
+export function PageHeader({
+  title,
+  lead,
+  actions,
+  back,
+}: {
+  title: string;
+  lead?: ReactNode;
+  actions?: ReactNode;
+  back?: { href: string; label: ReactNode };
+}) {
   return (
     <>
       {back ? (

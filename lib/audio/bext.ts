@@ -69,7 +69,13 @@ const FIELDS = [
   ["originationTime", 330, 8],
 ] as const;
 
-const LOUDNESS_FIELDS = ["loudnessValue", "loudnessRange", "maxTruePeakLevel", "maxMomentaryLoudness", "maxShortTermLoudness"] as const;
+const LOUDNESS_FIELDS = [
+  "loudnessValue",
+  "loudnessRange",
+  "maxTruePeakLevel",
+  "maxMomentaryLoudness",
+  "maxShortTermLoudness",
+] as const;
 
 function readAscii(bytes: Uint8Array, start: number, length: number): string {
   let end = start;
@@ -123,11 +129,59 @@ export function parseBext(body: Uint8Array): Bext {
  * whole), written as the usual Latin transliteration (as in library romanization tables).
  */
 const LETTERS: Record<string, string> = {
-  ß: "ss", ẞ: "SS", æ: "ae", Æ: "AE", œ: "oe", Œ: "OE", ø: "o", Ø: "O", ł: "l", Ł: "L",
-  đ: "d", Đ: "D", ð: "d", Ð: "D", þ: "th", Þ: "Th", ħ: "h", Ħ: "H", ı: "i", ŀ: "l", Ŀ: "L",
-  ŧ: "t", Ŧ: "T", ĸ: "k", ŋ: "ng", Ŋ: "NG", ſ: "s", µ: "u", μ: "u",
-  "‘": "'", "’": "'", "‚": "'", "‛": "'", "“": '"', "”": '"', "„": '"', "‟": '"', "«": '"', "»": '"', "‹": "'", "›": "'",
-  "‐": "-", "‑": "-", "‒": "-", "–": "-", "—": "-", "―": "-", "−": "-", "•": "*", "·": ".", "×": "x", "°": " deg", "⁄": "/",
+  ß: "ss",
+  ẞ: "SS",
+  æ: "ae",
+  Æ: "AE",
+  œ: "oe",
+  Œ: "OE",
+  ø: "o",
+  Ø: "O",
+  ł: "l",
+  Ł: "L",
+  đ: "d",
+  Đ: "D",
+  ð: "d",
+  Ð: "D",
+  þ: "th",
+  Þ: "Th",
+  ħ: "h",
+  Ħ: "H",
+  ı: "i",
+  ŀ: "l",
+  Ŀ: "L",
+  ŧ: "t",
+  Ŧ: "T",
+  ĸ: "k",
+  ŋ: "ng",
+  Ŋ: "NG",
+  ſ: "s",
+  µ: "u",
+  μ: "u",
+  "‘": "'",
+  "’": "'",
+  "‚": "'",
+  "‛": "'",
+  "“": '"',
+  "”": '"',
+  "„": '"',
+  "‟": '"',
+  "«": '"',
+  "»": '"',
+  "‹": "'",
+  "›": "'",
+  "‐": "-",
+  "‑": "-",
+  "‒": "-",
+  "–": "-",
+  "—": "-",
+  "―": "-",
+  "−": "-",
+  "•": "*",
+  "·": ".",
+  "×": "x",
+  "°": " deg",
+  "⁄": "/",
 };
 
 /**
@@ -151,7 +205,14 @@ export function bextAscii(text: string, opts: { keepLineBreaks?: boolean } = {})
       const c = part.codePointAt(0)!;
       if (c >= 0x20 && c <= 0x7e) out += part;
       else if (opts.keepLineBreaks && (c === 0x0d || c === 0x0a)) out += part;
-      else if (/\p{M}/u.test(part) || c < 0x20 || (c >= 0x7f && c <= 0x9f) || c === 0xfeff || (c >= 0x200b && c <= 0x200f)) continue;
+      else if (
+        /\p{M}/u.test(part) ||
+        c < 0x20 ||
+        (c >= 0x7f && c <= 0x9f) ||
+        c === 0xfeff ||
+        (c >= 0x200b && c <= 0x200f)
+      )
+        continue;
       else if (/\s/u.test(part)) out += " ";
       else out += LETTERS[part] ?? "?";
     }
@@ -165,11 +226,16 @@ export function bextCodingHistory(history: string): string {
 }
 
 function checkAscii(name: string, value: string, max: number): void {
-  if (value.length > max) throw new RangeError(`bext ${name} is ${value.length} characters; EBU Tech 3285 allows ${max}.`);
+  if (value.length > max)
+    throw new RangeError(`bext ${name} is ${value.length} characters; EBU Tech 3285 allows ${max}.`);
   for (let i = 0; i < value.length; i++) {
     const c = value.charCodeAt(i);
-    if (c < 0x20 && c !== 0x0d && c !== 0x0a) throw new RangeError(`bext ${name} holds a control character at position ${i}.`);
-    if (c > 0x7e) throw new RangeError(`bext ${name} holds a non-ASCII character at position ${i} ("${value[i]}"); EBU Tech 3285 strings are ASCII.`);
+    if (c < 0x20 && c !== 0x0d && c !== 0x0a)
+      throw new RangeError(`bext ${name} holds a control character at position ${i}.`);
+    if (c > 0x7e)
+      throw new RangeError(
+        `bext ${name} holds a non-ASCII character at position ${i} ("${value[i]}"); EBU Tech 3285 strings are ASCII.`,
+      );
   }
 }
 
@@ -193,19 +259,23 @@ export function encodeBext(input: BextInput): Uint8Array {
     for (let i = 0; i < value.length; i++) body[offset + i] = value.charCodeAt(i);
   }
   if (input.originationDate && !/^\d{4}[-_:. ]\d{2}[-_:. ]\d{2}$/.test(input.originationDate)) {
-    throw new RangeError(`bext originationDate "${input.originationDate}" is not yyyy-mm-dd (EBU Tech 3285).`);
+    throw new RangeError(
+      `bext originationDate "${input.originationDate}" is not yyyy-mm-dd (EBU Tech 3285).`,
+    );
   }
   if (input.originationTime && !/^\d{2}[-_:. ]\d{2}[-_:. ]\d{2}$/.test(input.originationTime)) {
     throw new RangeError(`bext originationTime "${input.originationTime}" is not hh:mm:ss (EBU Tech 3285).`);
   }
   const timeReference = input.timeReference ?? 0;
-  if (!Number.isSafeInteger(timeReference) || timeReference < 0) throw new RangeError("bext timeReference must be a whole number of samples ≥ 0.");
+  if (!Number.isSafeInteger(timeReference) || timeReference < 0)
+    throw new RangeError("bext timeReference must be a whole number of samples ≥ 0.");
   view.setUint32(338, timeReference % 2 ** 32, true);
   view.setUint32(342, Math.floor(timeReference / 2 ** 32), true);
   view.setUint16(346, input.version ?? BEXT_VERSION, true);
   const umid = input.umid ?? "";
   if (umid !== "") {
-    if (!/^([0-9a-fA-F]{2}){32}$|^([0-9a-fA-F]{2}){64}$/.test(umid)) throw new RangeError("bext umid must be 32 or 64 bytes of hex (SMPTE 330M basic or extended UMID).");
+    if (!/^([0-9a-fA-F]{2}){32}$|^([0-9a-fA-F]{2}){64}$/.test(umid))
+      throw new RangeError("bext umid must be 32 or 64 bytes of hex (SMPTE 330M basic or extended UMID).");
     for (let i = 0; i < umid.length / 2; i++) body[348 + i] = parseInt(umid.slice(2 * i, 2 * i + 2), 16);
   }
   LOUDNESS_FIELDS.forEach((name, i) => {
@@ -213,7 +283,8 @@ export function encodeBext(input: BextInput): Uint8Array {
     let raw = LOUDNESS_UNSET;
     if (value !== null && value !== undefined) {
       raw = Math.round(value * 100);
-      if (raw < -32768 || raw >= LOUDNESS_UNSET) throw new RangeError(`bext ${name} ${value} is outside the int16 × 0.01 range.`);
+      if (raw < -32768 || raw >= LOUDNESS_UNSET)
+        throw new RangeError(`bext ${name} ${value} is outside the int16 × 0.01 range.`);
     }
     view.setInt16(412 + 2 * i, raw, true);
   });

@@ -16,8 +16,14 @@ export const CHANNEL_MODE_TEXT: Record<ChannelMode, string> = {
 };
 
 /** The mono result of `n` interleaved stereo frames of `input` under `mode`, into `dst`. */
-export function mixToMono(mode: Exclude<ChannelMode, "both">, input: ArrayLike<number>, n: number, dst: Float64Array | Float32Array): void {
+export function mixToMono(
+  mode: Exclude<ChannelMode, "both">,
+  input: ArrayLike<number>,
+  n: number,
+  dst: Float64Array | Float32Array,
+): void {
   if (mode === "sum") for (let i = 0; i < n; i++) dst[i] = 0.5 * (input[2 * i] + input[2 * i + 1]);
-  else if (mode === "difference") for (let i = 0; i < n; i++) dst[i] = 0.5 * (input[2 * i] - input[2 * i + 1]);
+  else if (mode === "difference")
+    for (let i = 0; i < n; i++) dst[i] = 0.5 * (input[2 * i] - input[2 * i + 1]);
   else for (let i = 0, o = mode === "left" ? 0 : 1; i < n; i++, o += 2) dst[i] = input[o];
 }

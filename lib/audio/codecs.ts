@@ -59,7 +59,8 @@ export class TpdfDither {
 }
 
 function checkEncoding(enc: SampleEncoding): void {
-  const ok = enc.format === "pcm" ? [16, 24, 32].includes(enc.bitsPerSample) : [32, 64].includes(enc.bitsPerSample);
+  const ok =
+    enc.format === "pcm" ? [16, 24, 32].includes(enc.bitsPerSample) : [32, 64].includes(enc.bitsPerSample);
   if (!ok) throw new RangeError(`No codec for ${enc.bitsPerSample}-bit ${enc.format}.`);
 }
 
@@ -93,7 +94,12 @@ export function decodeInterleaved(bytes: Uint8Array, enc: SampleEncoding, out: F
  * Decode `frames` interleaved frames from `bytes` into per-channel arrays
  * (`out` is reused when given and long enough).
  */
-export function decodeFrames(bytes: Uint8Array, enc: SampleEncoding, channels: number, out?: Float64Array[]): Float64Array[] {
+export function decodeFrames(
+  bytes: Uint8Array,
+  enc: SampleEncoding,
+  channels: number,
+  out?: Float64Array[],
+): Float64Array[] {
   checkEncoding(enc);
   const frames = Math.floor(bytes.length / ((enc.bitsPerSample / 8) * channels));
   const samples = new Float64Array(frames * channels);
@@ -118,7 +124,14 @@ const ROUNDER = 6755399441055744;
  * Rounding is to nearest with halves to even (IEEE 754's own rounding, by adding and
  * taking away 1.5·2^52), the same sums the native encoder does, so both write the same bytes.
  */
-export function encodeInterleavedPcm(samples: Float64Array, count: number, gain: number, bitsPerSample: number, dither: Uint32Array | null, out: Uint8Array): number {
+export function encodeInterleavedPcm(
+  samples: Float64Array,
+  count: number,
+  gain: number,
+  bitsPerSample: number,
+  dither: Uint32Array | null,
+  out: Uint8Array,
+): number {
   checkEncoding({ format: "pcm", bitsPerSample });
   const width = bitsPerSample / 8;
   if (out.length < count * width) throw new RangeError("The output bytes are too short.");
@@ -169,7 +182,12 @@ export interface EncodeResult {
 }
 
 /** Encode interleaved float output (32 or 64-bit IEEE), counting samples beyond full scale. */
-export function encodeInterleavedFloat(samples: Float64Array, count: number, gain: number, bitsPerSample: number): EncodeResult {
+export function encodeInterleavedFloat(
+  samples: Float64Array,
+  count: number,
+  gain: number,
+  bitsPerSample: number,
+): EncodeResult {
   const width = bitsPerSample / 8;
   const bytes = new Uint8Array(count * width);
   const view = new DataView(bytes.buffer);
@@ -195,14 +213,26 @@ export function interleave(channels: Float64Array[], frames = channels[0]?.lengt
 }
 
 /** Interleave and encode the first `frames` samples of each channel. */
-export function encodeFrames(channels: Float64Array[], enc: SampleEncoding, options: EncodeOptions = {}, frames = channels[0]?.length ?? 0): EncodeResult {
+export function encodeFrames(
+  channels: Float64Array[],
+  enc: SampleEncoding,
+  options: EncodeOptions = {},
+  frames = channels[0]?.length ?? 0,
+): EncodeResult {
   checkEncoding(enc);
   const samples = interleave(channels, frames);
   const gain = options.gain ?? 1;
   if (enc.format === "float") return encodeInterleavedFloat(samples, samples.length, gain, enc.bitsPerSample);
   // One dither value per sample in file order (frame-major), so one stream serves all channels.
   const bytes = new Uint8Array(samples.length * (enc.bitsPerSample / 8));
-  const clipped = encodeInterleavedPcm(samples, samples.length, gain, enc.bitsPerSample, options.dither?.state ?? null, bytes);
+  const clipped = encodeInterleavedPcm(
+    samples,
+    samples.length,
+    gain,
+    enc.bitsPerSample,
+    options.dither?.state ?? null,
+    bytes,
+  );
   return { bytes, clipped };
 }
 

@@ -33,7 +33,14 @@ export interface DspEngine {
   /** Interleaved file samples → interleaved float64 (full scale 1.0); returns the sample count. */
   decode(bytes: Uint8Array, encoding: SampleEncoding, out: Float64Array): number;
   /** Interleaved float64 → integer PCM with optional TPDF dither state; returns the clipped count. */
-  encodePcm(samples: Float64Array, count: number, gain: number, bitsPerSample: number, dither: Uint32Array | null, out: Uint8Array): number;
+  encodePcm(
+    samples: Float64Array,
+    count: number,
+    gain: number,
+    bitsPerSample: number,
+    dither: Uint32Array | null,
+    out: Uint8Array,
+  ): number;
   /** Largest magnitude among the first `count` samples (NaN passed over). */
   peak(samples: Float64Array, count: number): number;
   filter(taps: ArrayLike<number>, channels: 1 | 2): FrameFilter;
@@ -54,18 +61,37 @@ export const jsDsp: DspEngine = {
   filter(taps, channels) {
     if (channels === 2) {
       const pair = new PairConvolver(taps);
-      return { channels, blockSize: pair.blockSize, process: (input, frames, output) => pair.processInterleaved(input, frames, output) };
+      return {
+        channels,
+        blockSize: pair.blockSize,
+        process: (input, frames, output) => pair.processInterleaved(input, frames, output),
+      };
     }
     const single = new StreamingConvolver(taps);
-    return { channels, blockSize: single.blockSize, process: (input, frames, output) => single.processInto(input, frames, output) };
+    return {
+      channels,
+      blockSize: single.blockSize,
+      process: (input, frames, output) => single.processInto(input, frames, output),
+    };
   },
 };
 
 interface NativeModule {
   decode(bytes: Uint8Array, bits: number, isFloat: boolean, out: Float64Array): void;
-  encode(samples: Float64Array, count: number, gain: number, bits: number, dither: Uint32Array | null, out: Uint8Array): number;
+  encode(
+    samples: Float64Array,
+    count: number,
+    gain: number,
+    bits: number,
+    dither: Uint32Array | null,
+    out: Uint8Array,
+  ): number;
   peak(samples: Float64Array, count: number): number;
-  Convolver: new (taps: Float64Array, channels: number, fftSize: number) => { process(input: Float64Array, frames: number, output: Float64Array): void };
+  Convolver: new (
+    taps: Float64Array,
+    channels: number,
+    fftSize: number,
+  ) => { process(input: Float64Array, frames: number, output: Float64Array): void };
   fftwVersion: string;
 }
 
@@ -117,7 +143,10 @@ function load(): { engine: DspEngine | null; error: string | null } {
       problems.push(`${path}: ${(error as Error).message.split("\n")[0]}`);
     }
   }
-  loaded = { engine: null, error: `The native render engine is not built (${problems.join("; ")}). Run npm start or npm test to build it.` };
+  loaded = {
+    engine: null,
+    error: `The native render engine is not built (${problems.join("; ")}). Run npm start or npm test to build it.`,
+  };
   return loaded;
 }
 

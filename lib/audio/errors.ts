@@ -13,6 +13,8 @@ export class WavError extends Error {
   }
 
   toJSON(): { message: string; offset?: number } {
-    return this.offset === undefined ? { message: this.message } : { message: this.message, offset: this.offset };
+    return this.offset === undefined
+      ? { message: this.message }
+      : { message: this.message, offset: this.offset };
   }
 }

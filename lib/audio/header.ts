@@ -23,7 +23,6 @@ export const WAVE_FORMAT_EXTENSIBLE = 0xfffe;
 export const MIN_RATE_HZ = 44_100;
 export const MAX_RATE_HZ = 384_000;
 
-
 export interface WavChunk {
   id: string;
   /** Offset of the chunk's 8-byte header. */
@@ -117,7 +116,8 @@ function u32(b: Uint8Array, o: number): number {
 }
 function u64(b: Uint8Array, o: number): number {
   const value = u32(b, o) + u32(b, o + 4) * 2 ** 32;
-  if (!Number.isSafeInteger(value)) throw new WavError(`A 64-bit size at byte offset ${o} (ds64) is beyond 2^53 bytes.`, o);
+  if (!Number.isSafeInteger(value))
+    throw new WavError(`A 64-bit size at byte offset ${o} (ds64) is beyond 2^53 bytes.`, o);
   return value;
 }
 
@@ -135,7 +135,10 @@ interface Fmt {
 
 function parseFmt(body: Uint8Array, at: number): Fmt {
   if (body.length < 16) {
-    throw new WavError(`The fmt chunk at byte offset ${at} is ${body.length} bytes; a PCM fmt chunk needs at least 16 (wFormatTag … wBitsPerSample).`, at);
+    throw new WavError(
+      `The fmt chunk at byte offset ${at} is ${body.length} bytes; a PCM fmt chunk needs at least 16 (wFormatTag … wBitsPerSample).`,
+      at,
+    );
   }
   const formatTag = u16(body, 0);
   const channels = u16(body, 2);
@@ -149,7 +152,10 @@ function parseFmt(body: Uint8Array, at: number): Fmt {
   if (extensible) {
     // WAVEFORMATEXTENSIBLE: cbSize (≥ 22) at 16, wValidBitsPerSample at 18, dwChannelMask at 20, SubFormat GUID at 24.
     if (body.length < 40 || u16(body, 16) < 22) {
-      throw new WavError(`The fmt chunk at byte offset ${at} says WAVE_FORMAT_EXTENSIBLE but is ${body.length} bytes (cbSize ${body.length >= 18 ? u16(body, 16) : "missing"}); it needs 40 bytes with cbSize 22.`, at);
+      throw new WavError(
+        `The fmt chunk at byte offset ${at} says WAVE_FORMAT_EXTENSIBLE but is ${body.length} bytes (cbSize ${body.length >= 18 ? u16(body, 16) : "missing"}); it needs 40 bytes with cbSize 22.`,
+        at,
+      );
     }
     validBitsPerSample = u16(body, 18);
     channelMask = u32(body, 20);
@@ -157,32 +163,58 @@ function parseFmt(body: Uint8Array, at: number): Fmt {
     tag = u16(body, 24);
     if (!guidOk) {
       const hex = Array.from(body.subarray(24, 40), (v) => v.toString(16).padStart(2, "0")).join("");
-      throw new WavError(`Unsupported encoding: the WAVE_FORMAT_EXTENSIBLE SubFormat GUID ${hex} (fmt chunk at byte offset ${at}) is not PCM or IEEE float. ${ACCEPTED}.`, at + 8 + 24);
+      throw new WavError(
+        `Unsupported encoding: the WAVE_FORMAT_EXTENSIBLE SubFormat GUID ${hex} (fmt chunk at byte offset ${at}) is not PCM or IEEE float. ${ACCEPTED}.`,
+        at + 8 + 24,
+      );
     }
   }
-  if (channels === 0) throw new WavError(`0 channels: the fmt chunk at byte offset ${at} declares no audio channels.`, at + 8 + 2);
-  if (channels > 2) throw new WavError(`${channels} channels: Rillbook accepts mono or stereo transfers (fmt chunk at byte offset ${at}).`, at + 8 + 2);
+  if (channels === 0)
+    throw new WavError(
+      `0 channels: the fmt chunk at byte offset ${at} declares no audio channels.`,
+      at + 8 + 2,
+    );
+  if (channels > 2)
+    throw new WavError(
+      `${channels} channels: Rillbook accepts mono or stereo transfers (fmt chunk at byte offset ${at}).`,
+      at + 8 + 2,
+    );
   let format: SampleFormat;
   const where = `fmt chunk at byte offset ${at}`;
   if (tag === WAVE_FORMAT_PCM) {
     if (bitsPerSample !== 16 && bitsPerSample !== 24 && bitsPerSample !== 32) {
-      throw new WavError(`Unsupported encoding: ${bitsPerSample}-bit PCM (${where}). ${ACCEPTED}.`, at + 8 + 14);
+      throw new WavError(
+        `Unsupported encoding: ${bitsPerSample}-bit PCM (${where}). ${ACCEPTED}.`,
+        at + 8 + 14,
+      );
     }
     format = "pcm";
   } else if (tag === WAVE_FORMAT_IEEE_FLOAT) {
     if (bitsPerSample !== 32 && bitsPerSample !== 64) {
-      throw new WavError(`Unsupported encoding: ${bitsPerSample}-bit IEEE float (${where}). ${ACCEPTED}.`, at + 8 + 14);
+      throw new WavError(
+        `Unsupported encoding: ${bitsPerSample}-bit IEEE float (${where}). ${ACCEPTED}.`,
+        at + 8 + 14,
+      );
     }
     format = "float";
   } else {
     const name = FORMAT_NAMES[tag] ?? "an encoding Rillbook does not read";
-    throw new WavError(`Unsupported encoding: ${name} (format tag 0x${tag.toString(16).padStart(4, "0")}, ${where}). ${ACCEPTED}.`, at + 8 + (extensible ? 24 : 0));
+    throw new WavError(
+      `Unsupported encoding: ${name} (format tag 0x${tag.toString(16).padStart(4, "0")}, ${where}). ${ACCEPTED}.`,
+      at + 8 + (extensible ? 24 : 0),
+    );
   }
   if (validBitsPerSample === 0 || validBitsPerSample > bitsPerSample) {
-    throw new WavError(`wValidBitsPerSample ${validBitsPerSample} does not fit the ${bitsPerSample}-bit container (${where}).`, at + 8 + 18);
+    throw new WavError(
+      `wValidBitsPerSample ${validBitsPerSample} does not fit the ${bitsPerSample}-bit container (${where}).`,
+      at + 8 + 18,
+    );
   }
   if (sampleRateHz < MIN_RATE_HZ || sampleRateHz > MAX_RATE_HZ) {
-    throw new WavError(`Sample rate ${sampleRateHz} Hz (${where}) is outside the 44 100–384 000 Hz Rillbook accepts for transfers.`, at + 8 + 4);
+    throw new WavError(
+      `Sample rate ${sampleRateHz} Hz (${where}) is outside the 44 100–384 000 Hz Rillbook accepts for transfers.`,
+      at + 8 + 4,
+    );
   }
   const expected = (channels * bitsPerSample) / 8;
   if (blockAlign !== expected) {
@@ -191,7 +223,17 @@ function parseFmt(body: Uint8Array, at: number): Fmt {
       at + 8 + 12,
     );
   }
-  return { format, formatTag, extensible, channels: channels as 1 | 2, sampleRateHz, blockAlign, bitsPerSample, validBitsPerSample, channelMask };
+  return {
+    format,
+    formatTag,
+    extensible,
+    channels: channels as 1 | 2,
+    sampleRateHz,
+    blockAlign,
+    bitsPerSample,
+    validBitsPerSample,
+    channelMask,
+  };
 }
 
 /** Read and check the header of a WAV, BWF or RF64 file. Throws WavError naming what and where. */
@@ -203,11 +245,21 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
   const id = ascii(first, 0, 4);
   const isRf64 = id === "RF64" || id === "BW64";
   if (id !== "RIFF" && !isRf64) {
-    throw new WavError(`Not a RIFF/RF64 WAVE file: it starts with "${printable(first)}" where "RIFF" or "RF64" belongs.`, 0);
+    throw new WavError(
+      `Not a RIFF/RF64 WAVE file: it starts with "${printable(first)}" where "RIFF" or "RF64" belongs.`,
+      0,
+    );
   }
-  if (size < 12) throw new WavError(`Truncated header: the file is ${size} bytes, shorter than the 12-byte ${id} header.`, size);
+  if (size < 12)
+    throw new WavError(
+      `Truncated header: the file is ${size} bytes, shorter than the 12-byte ${id} header.`,
+      size,
+    );
   if (ascii(first, 8, 4) !== "WAVE") {
-    throw new WavError(`Not a WAVE file: the ${id} form type is "${printable(first.subarray(8, 12))}" instead of "WAVE".`, 8);
+    throw new WavError(
+      `Not a WAVE file: the ${id} form type is "${printable(first.subarray(8, 12))}" instead of "WAVE".`,
+      8,
+    );
   }
 
   const chunks: WavChunk[] = [];
@@ -217,17 +269,34 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
   let p = 12;
   if (isRf64) {
     // EBU Tech 3306 §3: ds64 is the first chunk, holding the 64-bit RIFF, data and sample counts.
-    if (size < 20) throw new WavError(`Truncated header: the file is ${size} bytes and ends before the ds64 chunk an RF64 file starts with.`, size);
+    if (size < 20)
+      throw new WavError(
+        `Truncated header: the file is ${size} bytes and ends before the ds64 chunk an RF64 file starts with.`,
+        size,
+      );
     const h = await r.bytes(12, 8);
-    if (ascii(h) !== "ds64") throw new WavError(`RF64 file without its ds64 chunk: found "${printable(h)}" at byte offset 12, where EBU Tech 3306 puts ds64.`, 12);
+    if (ascii(h) !== "ds64")
+      throw new WavError(
+        `RF64 file without its ds64 chunk: found "${printable(h)}" at byte offset 12, where EBU Tech 3306 puts ds64.`,
+        12,
+      );
     const dsSize = u32(h, 4);
-    if (dsSize < 28) throw new WavError(`The ds64 chunk at byte offset 12 is ${dsSize} bytes; it needs at least 28.`, 12);
-    if (20 + dsSize > size) throw new WavError(`Truncated header: the ds64 chunk at byte offset 12 declares ${dsSize} bytes but the file ends after ${size - 20}.`, 12);
+    if (dsSize < 28)
+      throw new WavError(`The ds64 chunk at byte offset 12 is ${dsSize} bytes; it needs at least 28.`, 12);
+    if (20 + dsSize > size)
+      throw new WavError(
+        `Truncated header: the ds64 chunk at byte offset 12 declares ${dsSize} bytes but the file ends after ${size - 20}.`,
+        12,
+      );
     const ds = await r.bytes(20, dsSize);
     riffSize = u64(ds, 0);
     ds64Data = u64(ds, 8);
     const tableLength = u32(ds, 24);
-    if (28 + tableLength * 12 > dsSize) throw new WavError(`The ds64 chunk at byte offset 12 lists ${tableLength} chunk sizes but has room for ${Math.floor((dsSize - 28) / 12)}.`, 12);
+    if (28 + tableLength * 12 > dsSize)
+      throw new WavError(
+        `The ds64 chunk at byte offset 12 lists ${tableLength} chunk sizes but has room for ${Math.floor((dsSize - 28) / 12)}.`,
+        12,
+      );
     for (let i = 0; i < tableLength; i++) ds64Table.set(ascii(ds, 28 + 12 * i), u64(ds, 32 + 12 * i));
     chunks.push({ id: "ds64", offset: 12, size: dsSize });
     p = 20 + dsSize + (dsSize & 1);
@@ -243,7 +312,11 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
   let bext: Bext | undefined;
   while (p < walkEnd) {
     if (p + 8 > size) {
-      if (!data) throw new WavError(`Truncated header: the file ends at byte ${size}, inside the chunk header at byte offset ${p}.`, p);
+      if (!data)
+        throw new WavError(
+          `Truncated header: the file ends at byte ${size}, inside the chunk header at byte offset ${p}.`,
+          p,
+        );
       break; // a stray pad byte or two after the audio
     }
     if (p + 8 > walkEnd) break;
@@ -253,7 +326,11 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
     let csize = size32;
     if (isRf64 && size32 === U32_MAX) {
       const big = cid === "data" ? ds64Data : ds64Table.get(cid);
-      if (big === undefined || big === null) throw new WavError(`Chunk "${cid}" at byte offset ${p} has size 0xFFFFFFFF but the ds64 chunk gives no 64-bit size for it.`, p);
+      if (big === undefined || big === null)
+        throw new WavError(
+          `Chunk "${cid}" at byte offset ${p} has size 0xFFFFFFFF but the ds64 chunk gives no 64-bit size for it.`,
+          p,
+        );
       csize = big;
     }
     const body = p + 8;
@@ -265,7 +342,10 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
         );
       }
       if (!fmt && !data && (cid === "fmt " || cid === "ds64")) {
-        throw new WavError(`Truncated header: the ${cid.trim()} chunk at byte offset ${p} declares ${csize} bytes but the file ends after ${size - body}.`, p);
+        throw new WavError(
+          `Truncated header: the ${cid.trim()} chunk at byte offset ${p} declares ${csize} bytes but the file ends after ${size - body}.`,
+          p,
+        );
       }
       throw new WavError(
         `Chunk "${printable(h)}" at byte offset ${p} declares ${csize} bytes, which runs ${body + csize - size} bytes past the end of the file (${size} bytes).`,
@@ -278,26 +358,46 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
       if (fmt) throw new WavError(`A second fmt chunk at byte offset ${p}.`, p);
       fmt = parseFmt(await r.bytes(body, Math.min(csize, 64)), p);
     } else if (cid === "data") {
-      if (data) throw new WavError(`A second data chunk at byte offset ${p}; Rillbook reads files with one.`, p);
-      if (!fmt) throw new WavError(`The data chunk at byte offset ${p} comes before any fmt chunk, so its samples cannot be interpreted.`, p);
+      if (data)
+        throw new WavError(`A second data chunk at byte offset ${p}; Rillbook reads files with one.`, p);
+      if (!fmt)
+        throw new WavError(
+          `The data chunk at byte offset ${p} comes before any fmt chunk, so its samples cannot be interpreted.`,
+          p,
+        );
       data = chunk;
     } else if (cid === "bext") {
-      if (csize < BEXT_FIXED_BYTES) throw new WavError(`The bext chunk at byte offset ${p} is ${csize} bytes; EBU Tech 3285 fixes its first ${BEXT_FIXED_BYTES}.`, p);
-      if (csize > MAX_BEXT_BYTES) throw new WavError(`The bext chunk at byte offset ${p} is ${csize} bytes, more than a coding history can sensibly hold.`, p);
+      if (csize < BEXT_FIXED_BYTES)
+        throw new WavError(
+          `The bext chunk at byte offset ${p} is ${csize} bytes; EBU Tech 3285 fixes its first ${BEXT_FIXED_BYTES}.`,
+          p,
+        );
+      if (csize > MAX_BEXT_BYTES)
+        throw new WavError(
+          `The bext chunk at byte offset ${p} is ${csize} bytes, more than a coding history can sensibly hold.`,
+          p,
+        );
       bext = parseBext(await r.bytes(body, csize));
     }
     // RIFF chunks start on even offsets: an odd-sized chunk is followed by a pad byte.
     p = body + csize + (csize & 1);
   }
 
-  const tail = riffEnd < size ? ` within the ${riffSize + 8} bytes the ${id} header at byte offset 4 declares` : "";
+  const tail =
+    riffEnd < size ? ` within the ${riffSize + 8} bytes the ${id} header at byte offset 4 declares` : "";
   if (!fmt) throw new WavError(`No fmt chunk${tail}: the file does not say how its samples are encoded.`);
   if (!data) throw new WavError(`No data chunk${tail}: the file holds no audio.`);
   if (riffEnd > size) {
-    throw new WavError(`Truncated file: the ${id} header at byte offset 4 declares ${riffSize + 8} bytes but the file has ${size}.`, 4);
+    throw new WavError(
+      `Truncated file: the ${id} header at byte offset 4 declares ${riffSize + 8} bytes but the file has ${size}.`,
+      4,
+    );
   }
   if (data.size % fmt.blockAlign !== 0) {
-    throw new WavError(`Block align mismatch: the data chunk at byte offset ${data.offset} holds ${data.size} bytes, not a whole number of ${fmt.blockAlign}-byte frames.`, data.offset);
+    throw new WavError(
+      `Block align mismatch: the data chunk at byte offset ${data.offset} holds ${data.size} bytes, not a whole number of ${fmt.blockAlign}-byte frames.`,
+      data.offset,
+    );
   }
   const frames = data.size / fmt.blockAlign;
   return {

@@ -6,9 +6,24 @@
 export { WavError } from "./errors";
 export { bufferSource, openFileSource } from "./source";
 export type { ByteSource, ClosableByteSource } from "./source";
-export { readWavHeader, WAVE_FORMAT_PCM, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_EXTENSIBLE, MIN_RATE_HZ, MAX_RATE_HZ } from "./header";
+export {
+  readWavHeader,
+  WAVE_FORMAT_PCM,
+  WAVE_FORMAT_IEEE_FLOAT,
+  WAVE_FORMAT_EXTENSIBLE,
+  MIN_RATE_HZ,
+  MAX_RATE_HZ,
+} from "./header";
 export type { WavHeader, WavChunk } from "./header";
-export { parseBext, encodeBext, bextAscii, formatCodingHistoryLine, parseCodingHistory, BEXT_FIXED_BYTES, BEXT_VERSION } from "./bext";
+export {
+  parseBext,
+  encodeBext,
+  bextAscii,
+  formatCodingHistoryLine,
+  parseCodingHistory,
+  BEXT_FIXED_BYTES,
+  BEXT_VERSION,
+} from "./bext";
 export type { Bext, BextInput, BextLoudness, CodingHistoryLine } from "./bext";
 export { decodeFrames, encodeFrames, fullScalePositive, seededRandom, TpdfDither } from "./codecs";
 export type { SampleEncoding, SampleFormat, EncodeOptions, EncodeResult } from "./codecs";

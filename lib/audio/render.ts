@@ -128,7 +128,9 @@ export class RenderError extends Error {
 
 function outputChannels(mode: ChannelMode, inputChannels: number): 1 | 2 {
   if (mode !== "both" && inputChannels !== 2) {
-    throw new RenderError(`Channel mode "${mode}" (${CHANNEL_MODE_TEXT[mode]}) needs a stereo transfer; this one is mono.`);
+    throw new RenderError(
+      `Channel mode "${mode}" (${CHANNEL_MODE_TEXT[mode]}) needs a stereo transfer; this one is mono.`,
+    );
   }
   return mode === "both" ? (inputChannels as 1 | 2) : 1;
 }
@@ -161,13 +163,17 @@ async function runChain(
     filter.process(mixed, n, filtered);
     const drop = Math.min(toDrop, n);
     toDrop -= drop;
-    if (n > drop) return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop)) !== false;
+    if (n > drop)
+      return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop)) !== false;
     return true;
   };
 
   // Read ahead: the next chunk is on its way (from the disk or the bucket) while this one is filtered.
   const readChunk = (start: number) => {
-    const pending = source.read(header.dataOffset + start * header.blockAlign, Math.min(chunkFrames, header.frames - start) * header.blockAlign);
+    const pending = source.read(
+      header.dataOffset + start * header.blockAlign,
+      Math.min(chunkFrames, header.frames - start) * header.blockAlign,
+    );
     pending.catch(() => {}); // awaited below; this only keeps an early failure from going unheard
     return pending;
   };
@@ -177,14 +183,16 @@ async function runChain(
     const bytes = await next!;
     next = start + chunkFrames < header.frames ? readChunk(start + chunkFrames) : null;
     if (bytes.length !== n * header.blockAlign) {
-      throw new RenderError(`The transfer ended early: frame ${start + Math.floor(bytes.length / header.blockAlign)} of ${header.frames} (byte ${header.dataOffset + start * header.blockAlign + bytes.length}).`);
+      throw new RenderError(
+        `The transfer ended early: frame ${start + Math.floor(bytes.length / header.blockAlign)} of ${header.frames} (byte ${header.dataOffset + start * header.blockAlign + bytes.length}).`,
+      );
     }
     dsp.decode(bytes, encoding, decoded);
     if (!(await filterAndEmit(n))) return;
     progress(start + n);
   }
   // Ring-out: the last delaySamples outputs depend on input beyond the end, taken as silence.
-  for (let left = opts.filter.delaySamples; left > 0; ) {
+  for (let left = opts.filter.delaySamples; left > 0;) {
     const n = Math.min(chunkFrames, left);
     decoded.fill(0, 0, n * header.channels);
     if (!(await filterAndEmit(n))) return;
@@ -206,24 +214,36 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
   const mode = opts.channelMode ?? "both";
   const output = opts.output ?? DEFAULT_OUTPUT;
   const ceilingDbfs = opts.ceilingDbfs ?? 0;
-  if (!(ceilingDbfs <= 0)) throw new RenderError(`The peak ceiling must be at most 0 dBFS, not ${ceilingDbfs}.`);
+  if (!(ceilingDbfs <= 0))
+    throw new RenderError(`The peak ceiling must be at most 0 dBFS, not ${ceilingDbfs}.`);
   if (filter.taps.length < 1) throw new RenderError("The render filter has no taps.");
-  if (!Number.isInteger(filter.delaySamples) || filter.delaySamples < 0 || filter.delaySamples >= filter.taps.length) {
-    throw new RenderError(`The filter delay ${filter.delaySamples} is not a whole number of samples within its ${filter.taps.length} taps.`);
+  if (
+    !Number.isInteger(filter.delaySamples) ||
+    filter.delaySamples < 0 ||
+    filter.delaySamples >= filter.taps.length
+  ) {
+    throw new RenderError(
+      `The filter delay ${filter.delaySamples} is not a whole number of samples within its ${filter.taps.length} taps.`,
+    );
   }
   const channelsOut = outputChannels(mode, header.channels);
   const dsp = opts.dsp ?? defaultDsp();
   const { blockSize } = convolverSizes(filter.taps.length); // the sizes both engines use
-  const chunkFrames = opts.chunkFrames ?? Math.max(1, Math.round(TARGET_CHUNK_FRAMES / blockSize)) * blockSize;
+  const chunkFrames =
+    opts.chunkFrames ?? Math.max(1, Math.round(TARGET_CHUNK_FRAMES / blockSize)) * blockSize;
   const outRate = opts.outputSampleRateHz ?? header.sampleRateHz;
   const resampled = outRate !== header.sampleRateHz;
-  const outFrames = resampled ? Resampler.expectedFrames(header.frames, header.sampleRateHz, outRate) : header.frames;
+  const outFrames = resampled
+    ? Resampler.expectedFrames(header.frames, header.sampleRateHz, outRate)
+    : header.frames;
 
   // Integer output keeps 2 LSB below the top code so the dither (< 1 LSB) and
   // rounding (≤ ½ LSB) cannot reach past it.
   const ceiling = 10 ** (ceilingDbfs / 20);
   const limit =
-    output.format === "pcm" ? ceiling * (fullScalePositive(output) - 2 ** -(output.bitsPerSample - 1)) : ceiling * (1 - 2 ** -24);
+    output.format === "pcm"
+      ? ceiling * (fullScalePositive(output) - 2 ** -(output.bitsPerSample - 1))
+      : ceiling * (1 - 2 ** -24);
 
   const transferLine = formatCodingHistoryLine({
     algorithm: "PCM",
@@ -234,7 +254,8 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
   });
   // Keep the transfer's own history (the capture chain) when it has one; otherwise describe it.
   const prior = header.bext?.codingHistory ?? "";
-  const priorLines = prior === "" ? transferLine : prior.endsWith("\r\n") ? prior : `${prior.replace(/[\r\n]+$/, "")}\r\n`;
+  const priorLines =
+    prior === "" ? transferLine : prior.endsWith("\r\n") ? prior : `${prior.replace(/[\r\n]+$/, "")}\r\n`;
   const codingHistoryFor = (trimDb: number): string => {
     const eq = opts.equalization;
     const eqText = [
@@ -251,7 +272,13 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
       .join("; ");
     return (
       priorLines +
-      formatCodingHistoryLine({ algorithm: "PCM", samplingHz: outRate, wordLength: output.bitsPerSample, mode: modeWord(channelsOut), text: eqText })
+      formatCodingHistoryLine({
+        algorithm: "PCM",
+        samplingHz: outRate,
+        wordLength: output.bitsPerSample,
+        mode: modeWord(channelsOut),
+        text: eqText,
+      })
     );
   };
 
@@ -280,8 +307,13 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
     });
 
   /** The chain over the transfer, resampled when asked; `sink` as runChain's. */
-  const filtered = async (passNumber: number, sink: (samples: Float64Array, frames: number) => Promise<boolean | void>) => {
-    const resampler = resampled ? await Resampler.create(channelsOut, header.sampleRateHz, outRate, header.frames) : null;
+  const filtered = async (
+    passNumber: number,
+    sink: (samples: Float64Array, frames: number) => Promise<boolean | void>,
+  ) => {
+    const resampler = resampled
+      ? await Resampler.create(channelsOut, header.sampleRateHz, outRate, header.frames)
+      : null;
     let more = true;
     await runChain(
       opts,
@@ -320,14 +352,20 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
           writer = null;
           passesPlanned = 2;
           const need = (outFrames - emitted) * channelsOut * 8;
-          if (opts.keepFiltered !== "never" && (await hasRoom(spillPath, need))) spill = { handle: await open(spillPath, "w+"), fromFrame: emitted, bytes: 0 };
+          if (opts.keepFiltered !== "never" && (await hasRoom(spillPath, need)))
+            spill = { handle: await open(spillPath, "w+"), fromFrame: emitted, bytes: 0 };
         }
         if (writer) await writer.writeInterleaved(samples, frames, 1);
         else if (spill) {
           // The filtered samples as they are (float64), so pass 2 need not filter them again.
           const kept = spill as { handle: FileHandle; bytes: number };
           try {
-            await kept.handle.write(new Uint8Array(samples.buffer, samples.byteOffset, frames * channelsOut * 8), 0, frames * channelsOut * 8, kept.bytes);
+            await kept.handle.write(
+              new Uint8Array(samples.buffer, samples.byteOffset, frames * channelsOut * 8),
+              0,
+              frames * channelsOut * 8,
+              kept.bytes,
+            );
             kept.bytes += frames * channelsOut * 8;
           } catch {
             // The disk filled up after all (something else wrote to it): drop the working file and filter again in pass 2.
@@ -372,15 +410,19 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
           const { handle } = spill as { handle: FileHandle };
           const buffer = new Float64Array(chunkFrames * channelsOut);
           const bytes = new Uint8Array(buffer.buffer);
-          for (let at = 0; done < outFrames; ) {
+          for (let at = 0; done < outFrames;) {
             const frames = Math.min(chunkFrames, outFrames - done);
             const { bytesRead } = await handle.read(bytes, 0, frames * channelsOut * 8, at);
-            if (bytesRead !== frames * channelsOut * 8) throw new RenderError(`The render's working file ended early, at byte ${at + bytesRead}.`);
+            if (bytesRead !== frames * channelsOut * 8)
+              throw new RenderError(`The render's working file ended early, at byte ${at + bytesRead}.`);
             at += bytesRead;
             await put(buffer, frames);
           }
         }
-        if (done !== outFrames || peak2 > peak) throw new RenderError(`The second pass gave ${done} frames peaking at ${peak2}; the first ${outFrames} at ${peak}.`);
+        if (done !== outFrames || peak2 > peak)
+          throw new RenderError(
+            `The second pass gave ${done} frames peaking at ${peak2}; the first ${outFrames} at ${peak}.`,
+          );
         written = await second.close();
         secondPass = { filteredFrames: keptFrom, readBackFrames: outFrames - keptFrom };
       } catch (error) {
@@ -390,7 +432,8 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
     }
 
     // The writer hashed the file as it wrote it; it cannot have, only if the length came out other than planned.
-    if (written.sha256 === null) throw new RenderError(`The access copy has ${written.frames} frames where ${outFrames} were planned.`);
+    if (written.sha256 === null)
+      throw new RenderError(`The access copy has ${written.frames} frames where ${outFrames} were planned.`);
     const sha256 = written.sha256;
     if (shown < 1) report((shown = 1));
     return {

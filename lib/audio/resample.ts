@@ -19,8 +19,15 @@ export class Resampler {
     readonly expectedFrames: number,
   ) {}
 
-  static async create(channels: number, inputRateHz: number, outputRateHz: number, inputFrames: number): Promise<Resampler> {
-    const src = await srcPkg.create(channels, inputRateHz, outputRateHz, { converterType: srcPkg.ConverterType.SRC_SINC_BEST_QUALITY });
+  static async create(
+    channels: number,
+    inputRateHz: number,
+    outputRateHz: number,
+    inputFrames: number,
+  ): Promise<Resampler> {
+    const src = await srcPkg.create(channels, inputRateHz, outputRateHz, {
+      converterType: srcPkg.ConverterType.SRC_SINC_BEST_QUALITY,
+    });
     return new Resampler(src, channels, Resampler.expectedFrames(inputFrames, inputRateHz, outputRateHz));
   }
 
@@ -38,7 +45,8 @@ export class Resampler {
   finish(): Float64Array {
     const parts: Float64Array[] = [];
     let guard = 0;
-    while (this.written < this.expectedFrames && guard++ < 64) parts.push(this.take(this.src.full(new Float32Array(4096 * this.channels))));
+    while (this.written < this.expectedFrames && guard++ < 64)
+      parts.push(this.take(this.src.full(new Float32Array(4096 * this.channels))));
     this.src.destroy();
     const out = new Float64Array(parts.reduce((a, p) => a + p.length, 0));
     let at = 0;

@@ -88,7 +88,10 @@ export interface BwfWriteResult {
 /** Characters XML 1.0 cannot carry (C0 controls but tab and line ends, lone surrogates, U+FFFE/U+FFFF) become U+FFFD. */
 function xmlEscape(text: string): string {
   return text
-    .replace(/[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g, "\uFFFD")
+    .replace(
+      /[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g,
+      "\uFFFD",
+    )
     .replace(/&/g, "&amp;")
     .replace(/</g, "&lt;")
     .replace(/>/g, "&gt;");
@@ -197,9 +200,13 @@ export class BwfWriter {
     const { encoding, channels, sampleRateHz } = options;
     const okPcm = encoding.format === "pcm" && [16, 24, 32].includes(encoding.bitsPerSample);
     const okFloat = encoding.format === "float" && encoding.bitsPerSample === 32;
-    if (!okPcm && !okFloat) throw new RangeError(`The writer produces 16/24/32-bit PCM or 32-bit float, not ${encoding.bitsPerSample}-bit ${encoding.format}.`);
+    if (!okPcm && !okFloat)
+      throw new RangeError(
+        `The writer produces 16/24/32-bit PCM or 32-bit float, not ${encoding.bitsPerSample}-bit ${encoding.format}.`,
+      );
     if (channels !== 1 && channels !== 2) throw new RangeError("The writer produces mono or stereo files.");
-    if (!Number.isInteger(sampleRateHz) || sampleRateHz <= 0) throw new RangeError(`Sample rate ${sampleRateHz} is not a positive whole number of Hz.`);
+    if (!Number.isInteger(sampleRateHz) || sampleRateHz <= 0)
+      throw new RangeError(`Sample rate ${sampleRateHz} is not a positive whole number of Hz.`);
     const blockAlign = (channels * encoding.bitsPerSample) / 8;
     const isFloat = encoding.format === "float";
 
@@ -239,8 +246,10 @@ export class BwfWriter {
     const layout: Layout = { dataSizeAt, factAt, dataOffset: header.length, blockAlign };
     const expected = options.expectedFrames;
     if (expected !== undefined) {
-      if (!Number.isInteger(expected) || expected < 0) throw new RangeError(`Expected frames ${expected} is not a whole number.`);
-      for (const p of sizePatches(layout, expected, options.rf64ThresholdBytes ?? U32_MAX)) header.set(p.bytes, p.at);
+      if (!Number.isInteger(expected) || expected < 0)
+        throw new RangeError(`Expected frames ${expected} is not a whole number.`);
+      for (const p of sizePatches(layout, expected, options.rf64ThresholdBytes ?? U32_MAX))
+        header.set(p.bytes, p.at);
     }
 
     const handle = await open(path, "w");
@@ -261,7 +270,8 @@ export class BwfWriter {
 
   /** Encode and append frames (one array per channel; `frames` defaults to their length). */
   async write(channels: Float64Array[], frames = channels[0]?.length ?? 0, gain = 1): Promise<void> {
-    if (channels.length !== this.options.channels) throw new RangeError(`Expected ${this.options.channels} channel arrays, got ${channels.length}.`);
+    if (channels.length !== this.options.channels)
+      throw new RangeError(`Expected ${this.options.channels} channel arrays, got ${channels.length}.`);
     await this.writeInterleaved(interleave(channels, frames), frames, gain);
   }
 
@@ -280,7 +290,14 @@ export class BwfWriter {
     }
     const size = count * (encoding.bitsPerSample / 8);
     const target = await this.reserve(size);
-    this.clipped += (this.options.dsp ?? defaultDsp()).encodePcm(samples, count, gain, encoding.bitsPerSample, this.dither?.state ?? null, target);
+    this.clipped += (this.options.dsp ?? defaultDsp()).encodePcm(
+      samples,
+      count,
+      gain,
+      encoding.bitsPerSample,
+      this.dither?.state ?? null,
+      target,
+    );
     this.staged += size;
     this.framesWritten += frames;
     if (this.staged >= WRITE_BUFFER_BYTES) await this.flush();
@@ -309,7 +326,12 @@ export class BwfWriter {
     this.hash?.update(block);
     let done = 0;
     while (done < block.length) {
-      const { bytesWritten } = await this.handle.write(block, done, block.length - done, this.position + done);
+      const { bytesWritten } = await this.handle.write(
+        block,
+        done,
+        block.length - done,
+        this.position + done,
+      );
       done += bytesWritten;
     }
     this.position += block.length;
@@ -332,7 +354,8 @@ export class BwfWriter {
       // Written with its final sizes already when the expected length was met.
       if (this.framesWritten !== this.options.expectedFrames) {
         this.hash = null;
-        for (const p of sizePatches(this.layout, this.framesWritten, threshold)) await this.handle.write(p.bytes, 0, p.bytes.length, p.at);
+        for (const p of sizePatches(this.layout, this.framesWritten, threshold))
+          await this.handle.write(p.bytes, 0, p.bytes.length, p.at);
       }
       if (this.options.sync !== false) await this.handle.sync();
       return {

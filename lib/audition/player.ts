@@ -48,7 +48,12 @@ export class AuditionPlayer {
   private startedAt = 0;
   private startOffset = 0;
   private active = "flat";
-  private companion: { id: string; buffer: AudioBuffer; chain: Chain; source: AudioBufferSourceNode | null } | null = null;
+  private companion: {
+    id: string;
+    buffer: AudioBuffer;
+    chain: Chain;
+    source: AudioBufferSourceNode | null;
+  } | null = null;
   onEnded: (() => void) | null = null;
 
   constructor(sampleRateHz: number) {
@@ -96,7 +101,8 @@ export class AuditionPlayer {
       let matchDb = 0;
       if (cand.spec) {
         const { sos } = designIir(cand.spec, this.ctx.sampleRate);
-        for (const [b0, b1, b2, , a1, a2] of sos) nodes.push(this.ctx.createIIRFilter([b0, b1, b2], [1, a1, a2]));
+        for (const [b0, b1, b2, , a1, a2] of sos)
+          nodes.push(this.ctx.createIIRFilter([b0, b1, b2], [1, a1, a2]));
         matchDb = matchAt1kHzDb(cand.spec);
       }
       const match = this.ctx.createGain();
@@ -195,7 +201,10 @@ export class AuditionPlayer {
   select(id: string): void {
     this.active = id;
     const t = this.ctx.currentTime;
-    const all: [string, Chain][] = [...this.chains, ...(this.companion ? [[this.companion.id, this.companion.chain] as [string, Chain]] : [])];
+    const all: [string, Chain][] = [
+      ...this.chains,
+      ...(this.companion ? [[this.companion.id, this.companion.chain] as [string, Chain]] : []),
+    ];
     for (const [cid, c] of all) {
       c.switchGain.gain.cancelScheduledValues(t);
       c.switchGain.gain.setValueAtTime(c.switchGain.gain.value, t);

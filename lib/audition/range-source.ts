@@ -4,10 +4,16 @@
  */
 import type { ByteSource } from "@/lib/audio/source";
 
-export async function rangeFetch(url: string, offset: number, length: number, signal?: AbortSignal): Promise<Uint8Array> {
+export async function rangeFetch(
+  url: string,
+  offset: number,
+  length: number,
+  signal?: AbortSignal,
+): Promise<Uint8Array> {
   if (length <= 0) return new Uint8Array(0);
   const res = await fetch(url, { headers: { range: `bytes=${offset}-${offset + length - 1}` }, signal });
-  if (res.status !== 206 && res.status !== 200) throw new Error(`The storage answered ${res.status} for bytes ${offset}–${offset + length - 1}.`);
+  if (res.status !== 206 && res.status !== 200)
+    throw new Error(`The storage answered ${res.status} for bytes ${offset}–${offset + length - 1}.`);
   const bytes = new Uint8Array(await res.arrayBuffer());
   // A server that ignores Range sends the whole object: take the slice we asked for.
   return res.status === 200 ? bytes.subarray(offset, offset + length) : bytes;

@@ -12,7 +12,11 @@ export interface OpenedTransfer {
   header: WavHeader;
 }
 
-export async function openTransfer(url: string, bytes: number, signal?: AbortSignal): Promise<OpenedTransfer> {
+export async function openTransfer(
+  url: string,
+  bytes: number,
+  signal?: AbortSignal,
+): Promise<OpenedTransfer> {
   return { url, header: await readWavHeader(rangeSource(url, bytes, signal)) };
 }
 
@@ -21,7 +25,12 @@ export async function openTransfer(url: string, bytes: number, signal?: AbortSig
  * cheap overview to pick a place to listen from (a few hundred kilobytes at most,
  * whatever the file's length).
  */
-export async function overviewPeaks(t: OpenedTransfer, points = 200, signal?: AbortSignal, concurrency = 6): Promise<Float32Array> {
+export async function overviewPeaks(
+  t: OpenedTransfer,
+  points = 200,
+  signal?: AbortSignal,
+  concurrency = 6,
+): Promise<Float32Array> {
   const h = t.header;
   const peaks = new Float32Array(points).fill(-120);
   const stretchFrames = Math.max(1, Math.min(2048, Math.floor(h.frames / points)));
@@ -31,7 +40,12 @@ export async function overviewPeaks(t: OpenedTransfer, points = 200, signal?: Ab
     while (next < points) {
       const i = next++;
       const startFrame = Math.floor((i / points) * Math.max(0, h.frames - stretchFrames));
-      const bytes = await rangeFetch(t.url, h.dataOffset + startFrame * h.blockAlign, stretchFrames * h.blockAlign, signal);
+      const bytes = await rangeFetch(
+        t.url,
+        h.dataOffset + startFrame * h.blockAlign,
+        stretchFrames * h.blockAlign,
+        signal,
+      );
       const whole = bytes.subarray(0, Math.floor(bytes.length / h.blockAlign) * h.blockAlign);
       const samples = new Float64Array(whole.length / (h.bitsPerSample / 8));
       decodeInterleaved(whole, enc, samples);
@@ -70,13 +84,28 @@ function applyChannelMode(interleaved: Float64Array, channels: number, mode: Cha
 }
 
 /** One Range request for `seconds` of audio from `startSeconds` (clamped to the file). */
-export async function readWindow(t: OpenedTransfer, startSeconds: number, seconds: number, mode: ChannelMode, signal?: AbortSignal): Promise<AudioWindow> {
+export async function readWindow(
+  t: OpenedTransfer,
+  startSeconds: number,
+  seconds: number,
+  mode: ChannelMode,
+  signal?: AbortSignal,
+): Promise<AudioWindow> {
   const h = t.header;
   const wantFrames = Math.min(h.frames, Math.round(seconds * h.sampleRateHz));
   const startFrame = Math.max(0, Math.min(h.frames - wantFrames, Math.round(startSeconds * h.sampleRateHz)));
-  const bytes = await rangeFetch(t.url, h.dataOffset + startFrame * h.blockAlign, wantFrames * h.blockAlign, signal);
+  const bytes = await rangeFetch(
+    t.url,
+    h.dataOffset + startFrame * h.blockAlign,
+    wantFrames * h.blockAlign,
+    signal,
+  );
   const whole = bytes.subarray(0, Math.floor(bytes.length / h.blockAlign) * h.blockAlign);
   const samples = new Float64Array(whole.length / (h.bitsPerSample / 8));
   decodeInterleaved(whole, { format: h.format, bitsPerSample: h.bitsPerSample }, samples);
-  return { sampleRateHz: h.sampleRateHz, startSeconds: startFrame / h.sampleRateHz, channels: applyChannelMode(samples, h.channels, mode) };
+  return {
+    sampleRateHz: h.sampleRateHz,
+    startSeconds: startFrame / h.sampleRateHz,
+    channels: applyChannelMode(samples, h.channels, mode),
+  };
 }

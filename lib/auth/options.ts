@@ -19,8 +19,17 @@ export const authOptions: NextAuthOptions = {
         const forwarded = req?.headers?.["x-forwarded-for"];
         const ip = (Array.isArray(forwarded) ? forwarded[0] : forwarded)?.split(",")[0]?.trim() ?? null;
         // A thrown error's message reaches the sign-in form as `error`.
-        const user = await checkCredentials({ email: credentials?.email, password: credentials?.password }, ip);
-        return { id: user.id, email: user.email, name: user.name, role: user.role, sessionVersion: user.sessionVersion };
+        const user = await checkCredentials(
+          { email: credentials?.email, password: credentials?.password },
+          ip,
+        );
+        return {
+          id: user.id,
+          email: user.email,
+          name: user.name,
+          role: user.role,
+          sessionVersion: user.sessionVersion,
+        };
       },
     }),
   ],
@@ -46,7 +55,8 @@ export const authOptions: NextAuthOptions = {
     // Signing out ends the session on the server too: the cookie's version is retired, so a
     // copy of the cookie stops working. (A cookie already retired changes nothing.)
     async signOut({ token }) {
-      if (typeof token?.uid === "string" && typeof token.sv === "number") await endSessions(db, token.uid, token.sv);
+      if (typeof token?.uid === "string" && typeof token.sv === "number")
+        await endSessions(db, token.uid, token.sv);
     },
   },
 };

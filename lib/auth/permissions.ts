@@ -26,10 +26,32 @@ export const actions = {
 export type Action = keyof typeof actions;
 
 export const permissionTable: Record<Role, readonly Action[]> = {
-  admin: ["lab:enter", "people:read", "people:manage", "outbox:read", "curves:read", "curves:edit", "catalogue:read", "catalogue:edit", "catalogue:assign", "audit:read", "audit:checkpoint", "fixity:run", "settings:edit"],
+  admin: [
+    "lab:enter",
+    "people:read",
+    "people:manage",
+    "outbox:read",
+    "curves:read",
+    "curves:edit",
+    "catalogue:read",
+    "catalogue:edit",
+    "catalogue:assign",
+    "audit:read",
+    "audit:checkpoint",
+    "fixity:run",
+    "settings:edit",
+  ],
   archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit", "catalogue:assign"],
   engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use"],
-  curator: ["lab:enter", "curves:read", "catalogue:read", "review:decide", "audit:read", "audit:checkpoint", "fixity:run"],
+  curator: [
+    "lab:enter",
+    "curves:read",
+    "catalogue:read",
+    "review:decide",
+    "audit:read",
+    "audit:checkpoint",
+    "fixity:run",
+  ],
 };
 
 export function can(role: Role, action: Action): boolean {

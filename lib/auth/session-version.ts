@@ -9,8 +9,15 @@ import type { Database } from "../../db/types";
  * password reset, deactivation and role change, inside the transaction of the change.
  * A copied cookie therefore stops working everywhere, not only in the browser it came from.
  */
-export async function endSessions(db: Kysely<Database> | Transaction<Database>, userId: string, onlyIfVersion?: number): Promise<void> {
-  let q = db.updateTable("users").set({ session_version: sql`session_version + 1` }).where("id", "=", userId);
+export async function endSessions(
+  db: Kysely<Database> | Transaction<Database>,
+  userId: string,
+  onlyIfVersion?: number,
+): Promise<void> {
+  let q = db
+    .updateTable("users")
+    .set({ session_version: sql`session_version + 1` })
+    .where("id", "=", userId);
   if (onlyIfVersion !== undefined) q = q.where("session_version", "=", onlyIfVersion);
   await q.execute();
 }

@@ -18,7 +18,11 @@ export async function currentUser(): Promise<SessionUser | null> {
   const session = await getServerSession(authOptions);
   const id = session?.user?.id;
   if (!id) return null;
-  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active", "session_version"]).where("id", "=", id).executeTakeFirst();
+  const user = await db
+    .selectFrom("users")
+    .select(["id", "email", "name", "role", "active", "session_version"])
+    .where("id", "=", id)
+    .executeTakeFirst();
   if (!user || !user.active) return null;
   if (session.user?.sessionVersion !== user.session_version) return null;
   return { id: user.id, email: user.email, name: user.name, role: user.role };
@@ -29,7 +33,11 @@ export async function requirePermission(action: Action): Promise<SessionUser> {
   const user = await currentUser();
   if (!user) throw new AppError("unauthenticated", 401, "Sign in to continue.");
   if (!can(user.role, action)) {
-    throw new AppError("forbidden", 403, `As ${roleLabels[user.role].toLowerCase()} you may not ${actions[action]}.`);
+    throw new AppError(
+      "forbidden",
+      403,
+      `As ${roleLabels[user.role].toLowerCase()} you may not ${actions[action]}.`,
+    );
   }
   return user;
 }

@@ -8,7 +8,6 @@ import { signInMessages, throttle, throttleDelayMs } from "./sign-in-policy";
 
 export class SignInRefused extends Error {}
 
-
 async function recentFailures(email: string): Promise<number> {
   const row = await db
     .selectFrom("sign_in_attempts")
@@ -31,12 +30,20 @@ async function recentFailures(email: string): Promise<number> {
   return row.n;
 }
 
-async function record(email: string, succeeded: boolean, reason: string | null, ip: string | null): Promise<void> {
+async function record(
+  email: string,
+  succeeded: boolean,
+  reason: string | null,
+  ip: string | null,
+): Promise<void> {
   await db.insertInto("sign_in_attempts").values({ email, succeeded, reason, ip }).execute();
 }
 
 /** Checks an e-mail and password; returns the person, or throws SignInRefused with a message to show. */
-export async function checkCredentials(input: { email: unknown; password: unknown }, ip: string | null): Promise<SessionUser & { sessionVersion: number }> {
+export async function checkCredentials(
+  input: { email: unknown; password: unknown },
+  ip: string | null,
+): Promise<SessionUser & { sessionVersion: number }> {
   const parsed = signInSchema.safeParse(input);
   if (!parsed.success) throw new SignInRefused(parsed.error.issues[0]?.message ?? signInMessages.wrong);
   const { email, password } = parsed.data;
@@ -49,16 +56,28 @@ export async function checkCredentials(input: { email: unknown; password: unknow
   const delay = throttleDelayMs(failures);
   if (delay) await new Promise((r) => setTimeout(r, delay));
 
-  const user = await db.selectFrom("users").select(["id", "email", "name", "role", "active", "password_hash", "session_version"]).where("email", "=", email).executeTakeFirst();
+  const user = await db
+    .selectFrom("users")
+    .select(["id", "email", "name", "role", "active", "password_hash", "session_version"])
+    .where("email", "=", email)
+    .executeTakeFirst();
   const ok = user ? await verifyPassword(password, user.password_hash) : await verifyAgainstDecoy(password);
   if (!user || !ok) {
     await record(email, false, user ? "wrong-password" : "unknown-address", ip);
-    throw new SignInRefused(failures + 1 >= throttle.lockAfter ? signInMessages.locked : signInMessages.wrong);
+    throw new SignInRefused(
+      failures + 1 >= throttle.lockAfter ? signInMessages.locked : signInMessages.wrong,
+    );
   }
   if (!user.active) {
     await record(email, false, "inactive", ip);
     throw new SignInRefused(signInMessages.inactive);
   }
   await record(email, true, null, ip);
-  return { id: user.id, email: user.email, name: user.name, role: user.role, sessionVersion: user.session_version };
+  return {
+    id: user.id,
+    email: user.email,
+    name: user.name,
+    role: user.role,
+    sessionVersion: user.session_version,
+  };
 }

@@ -15,7 +15,11 @@ export async function listAccessions() {
       "a.source",
       "a.received_on as receivedOn",
       "a.notes",
-      eb.selectFrom("discs").select(sql<number>`count(*)::int`.as("n")).whereRef("discs.accession_id", "=", "a.id").as("discCount"),
+      eb
+        .selectFrom("discs")
+        .select(sql<number>`count(*)::int`.as("n"))
+        .whereRef("discs.accession_id", "=", "a.id")
+        .as("discCount"),
     ])
     .orderBy("a.received_on", "desc")
     .orderBy("a.identifier")
@@ -25,14 +29,27 @@ export async function listAccessions() {
 export async function createAccession(actor: SessionUser, input: unknown) {
   const a = accessionSchema.parse(input);
   return db.transaction().execute(async (trx) => {
-    const taken = await trx.selectFrom("accessions").select("id").where(sql`lower(identifier)`, "=", a.identifier.toLowerCase()).executeTakeFirst();
-    if (taken) throw new AppError("conflict", 409, `Accession ${a.identifier} already exists.`, { identifier: ["Already exists."] });
+    const taken = await trx
+      .selectFrom("accessions")
+      .select("id")
+      .where(sql`lower(identifier)`, "=", a.identifier.toLowerCase())
+      .executeTakeFirst();
+    if (taken)
+      throw new AppError("conflict", 409, `Accession ${a.identifier} already exists.`, {
+        identifier: ["Already exists."],
+      });
     const row = await trx
       .insertInto("accessions")
       .values({ identifier: a.identifier, source: a.source, received_on: a.receivedOn, notes: a.notes })
       .returning(["id", "identifier", "source", "received_on as receivedOn", "notes"])
       .executeTakeFirstOrThrow();
-    await appendEvent(trx, { actorId: actor.id, kind: "accession.received", subjectType: "accession", subjectId: row.id, payload: { after: a } });
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "accession.received",
+      subjectType: "accession",
+      subjectId: row.id,
+      payload: { after: a },
+    });
     return row;
   });
 }

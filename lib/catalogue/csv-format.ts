@@ -5,7 +5,14 @@
 import { CsvError, parse } from "csv-parse/sync";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
-import { createDiscSchema, type DiscInput, discFieldsSchema, discFormats, formatLabels, sideInputSchema } from "../validation/catalogue";
+import {
+  createDiscSchema,
+  type DiscInput,
+  discFieldsSchema,
+  discFormats,
+  formatLabels,
+  sideInputSchema,
+} from "../validation/catalogue";
 
 type DiscFields = z.infer<typeof discFieldsSchema>;
 type SideInput = z.infer<typeof sideInputSchema>;
@@ -29,24 +36,54 @@ interface ColumnSpec {
 
 /** The columns, in file order. One row per side; a disc's own columns repeat on each of its rows. */
 export const catalogueColumnSpecs = [
-  { name: "shelf_mark", disc: "shelfMark", required: true, hint: "The disc's shelf mark; rows with the same shelf mark are one disc." },
-  { name: "accession", disc: "accessionId", hint: "Accession identifier; empty means the accession chosen for the import." },
+  {
+    name: "shelf_mark",
+    disc: "shelfMark",
+    required: true,
+    hint: "The disc's shelf mark; rows with the same shelf mark are one disc.",
+  },
+  {
+    name: "accession",
+    disc: "accessionId",
+    hint: "Accession identifier; empty means the accession chosen for the import.",
+  },
   { name: "label", disc: "labelName", hint: "Record label as printed." },
   { name: "catalogue_number", disc: "catalogueNumber", hint: "The label's catalogue number." },
   { name: "format", disc: "format", required: true, hint: `One of ${discFormats.join(", ")}.` },
-  { name: "base", disc: "base", hint: "Lacquer and transcription discs only: aluminium, glass, card or unknown." },
+  {
+    name: "base",
+    disc: "base",
+    hint: "Lacquer and transcription discs only: aluminium, glass, card or unknown.",
+  },
   { name: "diameter_in", disc: "diameterIn", hint: "Diameter in inches, e.g. 10 or 16." },
-  { name: "speed_rpm", disc: "nominalSpeedRpm", required: true, hint: "Nominal speed: 78, 80, 33.33 (or 33 1/3), 45, or another number." },
+  {
+    name: "speed_rpm",
+    disc: "nominalSpeedRpm",
+    required: true,
+    hint: "Nominal speed: 78, 80, 33.33 (or 33 1/3), 45, or another number.",
+  },
   { name: "groove", disc: "groove", required: true, hint: "coarse or micro." },
   { name: "cut", disc: "cut", required: true, hint: "lateral or vertical." },
   { name: "recording_date", disc: "recordingDate", hint: "YYYY-MM-DD when known." },
   { name: "year_from", disc: "recordedFromYear", hint: "Earliest year it can have been recorded." },
   { name: "year_to", disc: "recordedToYear", hint: "Latest year it can have been recorded." },
-  { name: "condition", disc: "conditionGrade", hint: "unassessed, excellent, good, fair, poor or unplayable." },
-  { name: "condition_flags", disc: "conditionFlags", hint: "Separated by semicolons: cracks; warp; residue …" },
+  {
+    name: "condition",
+    disc: "conditionGrade",
+    hint: "unassessed, excellent, good, fair, poor or unplayable.",
+  },
+  {
+    name: "condition_flags",
+    disc: "conditionFlags",
+    hint: "Separated by semicolons: cracks; warp; residue …",
+  },
   { name: "condition_notes", disc: "conditionNotes", hint: "What the condition grade leaves out." },
   { name: "handling_notes", disc: "handlingNotes", hint: "Care needed when the disc is handled or played." },
-  { name: "side", side: "designation", hint: "Side designation (A, B, 1, 2 …); empty for a disc logged without sides." },
+  {
+    name: "side",
+    side: "designation",
+    hint: "Side designation (A, B, 1, 2 …); empty for a disc logged without sides.",
+  },
   { name: "matrix_number", side: "matrixNumber", hint: "Matrix number from the run-out area." },
   { name: "take", side: "take", hint: "Take number or letter." },
   { name: "title", side: "title", hint: "Title of the side." },
@@ -118,7 +155,9 @@ export function decodeCsv(bytes: Uint8Array): string {
   try {
     return utf8.decode(bytes);
   } catch {
-    throw new CsvFormatError("The file is not UTF-8 text. Save it from the spreadsheet as “CSV UTF-8” and try again.");
+    throw new CsvFormatError(
+      "The file is not UTF-8 text. Save it from the spreadsheet as “CSV UTF-8” and try again.",
+    );
   }
 }
 
@@ -136,9 +175,17 @@ function csvParseProblem(e: CsvError): ImportError {
   const where = line ? ` (text line ${line})` : "";
   switch (e.code) {
     case "CSV_QUOTE_NOT_CLOSED":
-      return { row, column: "", message: `A quoted field opened in this row is never closed${where}. Check for a stray double quote.` };
+      return {
+        row,
+        column: "",
+        message: `A quoted field opened in this row is never closed${where}. Check for a stray double quote.`,
+      };
     case "CSV_INVALID_CLOSING_QUOTE":
-      return { row, column: "", message: `A double quote inside a field is not doubled${where}. Write "" for a quote inside a quoted field.` };
+      return {
+        row,
+        column: "",
+        message: `A double quote inside a field is not doubled${where}. Write "" for a quote inside a quoted field.`,
+      };
     default:
       return { row, column: "", message: `This row cannot be read as CSV${where}: ${e.message}` };
   }
@@ -162,7 +209,11 @@ export function readCatalogueCsv(text: string): ReadSheet {
   }
   // A file that ends in blank lines has no rows there.
   while (records.length && isBlank(records[records.length - 1])) records.pop();
-  if (!records.length) return { rows: [], errors: [{ row: 1, column: "", message: "The file is empty: the first row must name the columns." }] };
+  if (!records.length)
+    return {
+      rows: [],
+      errors: [{ row: 1, column: "", message: "The file is empty: the first row must name the columns." }],
+    };
 
   const errors: ImportError[] = [];
   const header = records[0].map((h) => h.trim().toLowerCase());
@@ -170,19 +221,33 @@ export function readCatalogueCsv(text: string): ReadSheet {
   const at = new Map<string, number>();
   header.forEach((name, i) => {
     if (name === "") {
-      if (records.some((r, j) => j > 0 && (r[i] ?? "").trim() !== "")) errors.push({ row: 1, column: `column ${i + 1}`, message: `Column ${i + 1} has values but no name in the header.` });
+      if (records.some((r, j) => j > 0 && (r[i] ?? "").trim() !== ""))
+        errors.push({
+          row: 1,
+          column: `column ${i + 1}`,
+          message: `Column ${i + 1} has values but no name in the header.`,
+        });
       return;
     }
     if (!known.has(name)) {
-      errors.push({ row: 1, column: name, message: `Unknown column “${name}”. The columns are: ${catalogueColumns.join(", ")}.` });
+      errors.push({
+        row: 1,
+        column: name,
+        message: `Unknown column “${name}”. The columns are: ${catalogueColumns.join(", ")}.`,
+      });
     } else if (at.has(name)) {
-      errors.push({ row: 1, column: name, message: `Column ${name} appears twice in the header (columns ${at.get(name)! + 1} and ${i + 1}).` });
+      errors.push({
+        row: 1,
+        column: name,
+        message: `Column ${name} appears twice in the header (columns ${at.get(name)! + 1} and ${i + 1}).`,
+      });
     } else {
       at.set(name, i);
     }
   });
   for (const c of specs) {
-    if (c.required && !at.has(c.name)) errors.push({ row: 1, column: c.name, message: `The header has no ${c.name} column; it is required.` });
+    if (c.required && !at.has(c.name))
+      errors.push({ row: 1, column: c.name, message: `The header has no ${c.name} column; it is required.` });
   }
   if (errors.length) return { rows: [], errors };
 
@@ -191,10 +256,20 @@ export function readCatalogueCsv(text: string): ReadSheet {
   if (filled > maxImportRows) {
     return {
       rows: [],
-      errors: [{ row: maxImportRows + 2, column: "", message: `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ${maxImportRows.toLocaleString("en-GB")}. Split it into several files.` }],
+      errors: [
+        {
+          row: maxImportRows + 2,
+          column: "",
+          message: `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ${maxImportRows.toLocaleString("en-GB")}. Split it into several files.`,
+        },
+      ],
     };
   }
-  if (filled === 0) return { rows: [], errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }] };
+  if (filled === 0)
+    return {
+      rows: [],
+      errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }],
+    };
 
   const rows: SheetRow[] = [];
   for (let i = 1; i <= dataRows; i++) {
@@ -202,10 +277,19 @@ export function readCatalogueCsv(text: string): ReadSheet {
     const row = i + 1;
     if (isBlank(cells)) continue;
     if (cells.length > header.length && cells.slice(header.length).some((c) => c.trim() !== "")) {
-      errors.push({ row, column: "", message: `This row has ${cells.length} fields but the header names ${header.length} columns. Check for an unquoted comma.` });
+      errors.push({
+        row,
+        column: "",
+        message: `This row has ${cells.length} fields but the header names ${header.length} columns. Check for an unquoted comma.`,
+      });
       continue;
     }
-    const values = Object.fromEntries(catalogueColumns.map((name) => [name, at.has(name) ? unprotectFormula(cells[at.get(name)!] ?? "") : ""])) as Record<CatalogueColumn, string>;
+    const values = Object.fromEntries(
+      catalogueColumns.map((name) => [
+        name,
+        at.has(name) ? unprotectFormula(cells[at.get(name)!] ?? "") : "",
+      ]),
+    ) as Record<CatalogueColumn, string>;
     rows.push({ row, values });
   }
   return { rows, errors };
@@ -245,7 +329,10 @@ function normaliseCode(value: string): string {
   return value.trim().toLowerCase();
 }
 
-function discCandidate(values: Record<CatalogueColumn, string>, accessionId: string | undefined): Record<string, unknown> {
+function discCandidate(
+  values: Record<CatalogueColumn, string>,
+  accessionId: string | undefined,
+): Record<string, unknown> {
   const format = normaliseCode(values.format);
   const speed = values.speed_rpm.trim();
   return {
@@ -281,8 +368,16 @@ function sideCandidate(values: Record<CatalogueColumn, string>): Record<string, 
   };
 }
 
-function issuesToErrors(row: number, issues: z.core.$ZodIssue[], columns: Map<string, string>): ImportError[] {
-  return issues.map((issue) => ({ row, column: columns.get(String(issue.path[0] ?? "")) ?? "", message: issue.message }));
+function issuesToErrors(
+  row: number,
+  issues: z.core.$ZodIssue[],
+  columns: Map<string, string>,
+): ImportError[] {
+  return issues.map((issue) => ({
+    row,
+    column: columns.get(String(issue.path[0] ?? "")) ?? "",
+    message: issue.message,
+  }));
 }
 
 function sameValue(a: unknown, b: unknown): boolean {
@@ -321,15 +416,28 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
     let accessionId: string | undefined;
     if (identifier) {
       accessionId = options.resolveAccession(identifier);
-      if (!accessionId) rowErrors.push({ row, column: "accession", message: `No accession has the identifier “${identifier}”. Record the accession first, or check the spelling.` });
+      if (!accessionId)
+        rowErrors.push({
+          row,
+          column: "accession",
+          message: `No accession has the identifier “${identifier}”. Record the accession first, or check the spelling.`,
+        });
     } else {
       accessionId = options.defaultAccessionId;
-      if (!accessionId) rowErrors.push({ row, column: "accession", message: "No accession given: fill in the accession column, or choose an accession for rows that leave it empty." });
+      if (!accessionId)
+        rowErrors.push({
+          row,
+          column: "accession",
+          message:
+            "No accession given: fill in the accession column, or choose an accession for rows that leave it empty.",
+        });
     }
     const disc = discFieldsSchema.safeParse(discCandidate(values, accessionId));
     if (!disc.success) {
       // The accession is reported above in words a person can act on, not as a bad id.
-      rowErrors.push(...issuesToErrors(row, disc.error.issues, columnOfDiscField).filter((e) => e.column !== "accession"));
+      rowErrors.push(
+        ...issuesToErrors(row, disc.error.issues, columnOfDiscField).filter((e) => e.column !== "accession"),
+      );
     }
     const sideInput = sideCandidate(values);
     let side: SideInput | null = null;
@@ -387,7 +495,11 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
           const a = head.fields[field as DiscField];
           const b = r.fields[field as DiscField];
           if (!sameValue(a, b)) {
-            errors.push({ row: r.row, column, message: `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} there. Every row of a disc must repeat the same disc values.` });
+            errors.push({
+              row: r.row,
+              column,
+              message: `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} there. Every row of a disc must repeat the same disc values.`,
+            });
           }
         }
       }
@@ -396,12 +508,20 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
     const sideRow = new Map<string, number>();
     for (const r of group) {
       if (r.side === null && group.length > 1 && r.ok) {
-        errors.push({ row: r.row, column: "side", message: `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other rows. Give every row a side; a disc without sides takes one row.` });
+        errors.push({
+          row: r.row,
+          column: "side",
+          message: `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other rows. Give every row a side; a disc without sides takes one row.`,
+        });
       }
       if (!r.side) continue;
       const k = r.side.designation.toLowerCase();
       if (sideRow.has(k)) {
-        errors.push({ row: r.row, column: "side", message: `Side ${r.side.designation} is listed twice for this disc (rows ${sideRow.get(k)} and ${r.row}).` });
+        errors.push({
+          row: r.row,
+          column: "side",
+          message: `Side ${r.side.designation} is listed twice for this disc (rows ${sideRow.get(k)} and ${r.row}).`,
+        });
         continue;
       }
       sideRow.set(k, r.row);
@@ -414,14 +534,32 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
       for (const issue of whole.error.issues) {
         const sideIndex = issue.path[0] === "sides" && typeof issue.path[1] === "number" ? issue.path[1] : -1;
         const sidesIssue = issue.path[0] === "sides";
-        const row = sidesIssue ? (sides[sideIndex] ? sideRow.get(sides[sideIndex].designation.toLowerCase())! : group[group.length - 1].row) : head.row;
-        errors.push({ row, column: sidesIssue ? "side" : (columnOfDiscField.get(String(issue.path[0])) ?? ""), message: issue.message });
+        const row = sidesIssue
+          ? sides[sideIndex]
+            ? sideRow.get(sides[sideIndex].designation.toLowerCase())!
+            : group[group.length - 1].row
+          : head.row;
+        errors.push({
+          row,
+          column: sidesIssue ? "side" : (columnOfDiscField.get(String(issue.path[0])) ?? ""),
+          message: issue.message,
+        });
       }
     }
-    discs.push({ row: head.row, rows: group.map((r) => r.row), disc: whole.success ? whole.data : { ...head.fields, sides }, accessionIdentifier: head.accessionIdentifier });
+    discs.push({
+      row: head.row,
+      rows: group.map((r) => r.row),
+      disc: whole.success ? whole.data : { ...head.fields, sides },
+      accessionIdentifier: head.accessionIdentifier,
+    });
   }
 
-  errors.sort((a, b) => a.row - b.row || catalogueColumns.indexOf(a.column as CatalogueColumn) - catalogueColumns.indexOf(b.column as CatalogueColumn));
+  errors.sort(
+    (a, b) =>
+      a.row - b.row ||
+      catalogueColumns.indexOf(a.column as CatalogueColumn) -
+        catalogueColumns.indexOf(b.column as CatalogueColumn),
+  );
   return { discs, errors, duplicates, rowCount: sheet.length };
 }
 
@@ -447,7 +585,14 @@ export interface ExportDisc {
   conditionFlags: string[];
   conditionNotes: string;
   handlingNotes: string;
-  sides: { designation: string; matrixNumber: string; take: string; title: string; performers: string; notes: string }[];
+  sides: {
+    designation: string;
+    matrixNumber: string;
+    take: string;
+    title: string;
+    performers: string;
+    notes: string;
+  }[];
 }
 
 const num = (v: number | null) => (v === null || v === undefined ? "" : String(v));
@@ -492,7 +637,10 @@ function discRows(d: ExportDisc): string[][] {
  * Writes discs as catalogue CSV: a header, then the rows of each disc. With a byte-order
  * mark and CRLF line ends, which spreadsheets open as UTF-8 without asking.
  */
-export function toCatalogueCsv(discs: Iterable<ExportDisc>, options: { header?: boolean; bom?: boolean } = {}): string {
+export function toCatalogueCsv(
+  discs: Iterable<ExportDisc>,
+  options: { header?: boolean; bom?: boolean } = {},
+): string {
   const rows: string[][] = [];
   if (options.header !== false) rows.push([...catalogueColumns]);
   for (const d of discs) rows.push(...discRows(d));
@@ -521,8 +669,22 @@ export function catalogueTemplateCsv(): string {
       conditionNotes: "",
       handlingNotes: "",
       sides: [
-        { designation: "A", matrixNumber: "M-1234", take: "2", title: "First title", performers: "An orchestra", notes: "" },
-        { designation: "B", matrixNumber: "M-1235", take: "1", title: "Second title", performers: "An orchestra", notes: "" },
+        {
+          designation: "A",
+          matrixNumber: "M-1234",
+          take: "2",
+          title: "First title",
+          performers: "An orchestra",
+          notes: "",
+        },
+        {
+          designation: "B",
+          matrixNumber: "M-1235",
+          take: "1",
+          title: "Second title",
+          performers: "An orchestra",
+          notes: "",
+        },
       ],
     },
     {

@@ -31,8 +31,14 @@ export const maxUploadBytes = 40 * 1024 * 1024;
 export const previewDiscLimit = 200;
 
 const importOptionsSchema = z.object({
-  fileName: z.preprocess(blankToUndefined, z.string().trim().max(255, "The file name is too long.").default("catalogue.csv")),
-  defaultAccession: z.preprocess(blankToUndefined, z.uuid({ error: "The accession for rows without one is not a valid id." }).optional()),
+  fileName: z.preprocess(
+    blankToUndefined,
+    z.string().trim().max(255, "The file name is too long.").default("catalogue.csv"),
+  ),
+  defaultAccession: z.preprocess(
+    blankToUndefined,
+    z.uuid({ error: "The accession for rows without one is not a valid id." }).optional(),
+  ),
 });
 
 const commitOptionsSchema = importOptionsSchema.extend({
@@ -64,10 +70,15 @@ export async function readUpload(req: NextRequest): Promise<Upload> {
   const query = Object.fromEntries(req.nextUrl.searchParams);
   if (type.startsWith("multipart/form-data")) {
     const form = await req.formData().catch(() => {
-      throw new AppError("invalid", 422, "The upload could not be read as form data.", { file: ["Unreadable form data."] });
+      throw new AppError("invalid", 422, "The upload could not be read as form data.", {
+        file: ["Unreadable form data."],
+      });
     });
     const file = form.get("file");
-    if (!file || typeof file === "string") throw new AppError("invalid", 422, "Attach the CSV file in the field “file”.", { file: ["No file attached."] });
+    if (!file || typeof file === "string")
+      throw new AppError("invalid", 422, "Attach the CSV file in the field “file”.", {
+        file: ["No file attached."],
+      });
     if (file.size > maxUploadBytes) throw tooLarge();
     const fields: Record<string, string> = { ...query, fileName: file.name };
     for (const [k, v] of form.entries()) if (typeof v === "string") fields[k] = v;
@@ -78,11 +89,21 @@ export async function readUpload(req: NextRequest): Promise<Upload> {
     if (bytes.byteLength > maxUploadBytes) throw tooLarge();
     return { bytes, fields: query };
   }
-  throw new AppError("invalid", 415, "Send the CSV as multipart form-data (field “file”) or as a text/csv body.", { file: ["No CSV in the request."] });
+  throw new AppError(
+    "invalid",
+    415,
+    "Send the CSV as multipart form-data (field “file”) or as a text/csv body.",
+    { file: ["No CSV in the request."] },
+  );
 }
 
 function tooLarge(): AppError {
-  return new AppError("invalid", 413, `The file is larger than ${maxUploadBytes / 1024 / 1024} MB. Split it into several files.`, { file: ["Too large."] });
+  return new AppError(
+    "invalid",
+    413,
+    `The file is larger than ${maxUploadBytes / 1024 / 1024} MB. Split it into several files.`,
+    { file: ["Too large."] },
+  );
 }
 
 export interface ExistingDuplicate {
@@ -112,7 +133,11 @@ interface Checked {
 }
 
 /** Parses and checks a file against the catalogue as it stands: nothing is written. */
-async function check(upload: Upload, defaultAccession: string | undefined, fileName: string): Promise<Checked> {
+async function check(
+  upload: Upload,
+  defaultAccession: string | undefined,
+  fileName: string,
+): Promise<Checked> {
   const sha256 = createHash("sha256").update(upload.bytes).digest("hex");
   let text: string;
   try {
@@ -124,36 +149,64 @@ async function check(upload: Upload, defaultAccession: string | undefined, fileN
   const read = readCatalogueCsv(text);
 
   // Accessions: the ones the file names, by identifier, and the default one.
-  const identifiers = [...new Set(read.rows.map((r) => r.values.accession.trim().toLowerCase()).filter(Boolean))];
+  const identifiers = [
+    ...new Set(read.rows.map((r) => r.values.accession.trim().toLowerCase()).filter(Boolean)),
+  ];
   const known = new Map<string, { id: string; identifier: string }>();
   if (identifiers.length) {
-    const found = await db.selectFrom("accessions").select(["id", "identifier"]).where(sql<boolean>`lower(identifier) = ANY(${identifiers}::text[])`).execute();
+    const found = await db
+      .selectFrom("accessions")
+      .select(["id", "identifier"])
+      .where(sql<boolean>`lower(identifier) = ANY(${identifiers}::text[])`)
+      .execute();
     for (const a of found) known.set(a.identifier.toLowerCase(), a);
   }
   let defaultIdentifier = "";
   if (defaultAccession) {
-    const a = await db.selectFrom("accessions").select(["id", "identifier"]).where("id", "=", defaultAccession).executeTakeFirst();
-    if (!a) throw new AppError("invalid", 422, "The accession chosen for rows without one does not exist.", { defaultAccession: ["Unknown accession."] });
+    const a = await db
+      .selectFrom("accessions")
+      .select(["id", "identifier"])
+      .where("id", "=", defaultAccession)
+      .executeTakeFirst();
+    if (!a)
+      throw new AppError("invalid", 422, "The accession chosen for rows without one does not exist.", {
+        defaultAccession: ["Unknown accession."],
+      });
     defaultIdentifier = a.identifier;
   }
-  const sheet = buildDiscs(read.rows, { resolveAccession: (i) => known.get(i.toLowerCase())?.id, defaultAccessionId: defaultAccession });
+  const sheet = buildDiscs(read.rows, {
+    resolveAccession: (i) => known.get(i.toLowerCase())?.id,
+    defaultAccessionId: defaultAccession,
+  });
   const errors = [...read.errors, ...sheet.errors];
 
   // Shelf marks already in the catalogue (the unique index is on lower(shelf_mark)).
-  const duplicates: ExistingDuplicate[] = sheet.duplicates.map((d) => ({ row: d.row, shelfMark: d.shelfMark, firstRow: d.firstRow }));
+  const duplicates: ExistingDuplicate[] = sheet.duplicates.map((d) => ({
+    row: d.row,
+    shelfMark: d.shelfMark,
+    firstRow: d.firstRow,
+  }));
   const taken = new Map<string, string>();
   const marks = [...new Set(sheet.discs.map((d) => d.disc.shelfMark.toLowerCase()))];
   if (marks.length) {
     for (let i = 0; i < marks.length; i += 5000) {
       const chunk = marks.slice(i, i + 5000);
-      const rows = await db.selectFrom("discs").select(["id", "shelf_mark"]).where(sql<boolean>`lower(shelf_mark) = ANY(${chunk}::text[])`).execute();
+      const rows = await db
+        .selectFrom("discs")
+        .select(["id", "shelf_mark"])
+        .where(sql<boolean>`lower(shelf_mark) = ANY(${chunk}::text[])`)
+        .execute();
       for (const r of rows) taken.set(r.shelf_mark.toLowerCase(), r.id);
     }
     for (const d of sheet.discs) {
       const id = taken.get(d.disc.shelfMark.toLowerCase());
       if (!id) continue;
       duplicates.push({ row: d.row, shelfMark: d.disc.shelfMark, existingDiscId: id });
-      errors.push({ row: d.row, column: "shelf_mark", message: `Shelf mark ${d.disc.shelfMark} is already in the catalogue.` });
+      errors.push({
+        row: d.row,
+        column: "shelf_mark",
+        message: `Shelf mark ${d.disc.shelfMark} is already in the catalogue.`,
+      });
     }
   }
   // Discs whose shelf mark is taken are not to add (they are errors above).
@@ -164,7 +217,8 @@ async function check(upload: Upload, defaultAccession: string | undefined, fileN
   errors.sort((a, b) => a.row - b.row);
   duplicates.sort((a, b) => a.row - b.row);
 
-  const identifierOf = (d: (typeof sheet.discs)[number]) => d.accessionIdentifier || (d.disc.accessionId === defaultAccession ? defaultIdentifier : "");
+  const identifierOf = (d: (typeof sheet.discs)[number]) =>
+    d.accessionIdentifier || (d.disc.accessionId === defaultAccession ? defaultIdentifier : "");
   return {
     sheet,
     report: {
@@ -186,7 +240,9 @@ export async function previewImport(upload: Upload): Promise<ImportReport> {
   return (await check(upload, options.defaultAccession, options.fileName)).report;
 }
 
-export type CommitResult = { ok: true; imported: number; sides: number; rows: number; sha256: string; eventId: string } | { ok: false; report: ImportReport };
+export type CommitResult =
+  | { ok: true; imported: number; sides: number; rows: number; sha256: string; eventId: string }
+  | { ok: false; report: ImportReport };
 
 /**
  * Checks the file again (the catalogue may have changed since the preview) and, when
@@ -197,26 +253,52 @@ export async function commitImport(actor: SessionUser, upload: Upload): Promise<
   const options = commitOptionsSchema.parse(upload.fields);
   const { report, sheet } = await check(upload, options.defaultAccession, options.fileName);
   if (report.sha256 !== options.sha256) {
-    throw new AppError("conflict", 409, "This is not the file that was previewed (its SHA-256 differs). Preview it again before importing.", { sha256: ["Does not match the file."] });
+    throw new AppError(
+      "conflict",
+      409,
+      "This is not the file that was previewed (its SHA-256 differs). Preview it again before importing.",
+      { sha256: ["Does not match the file."] },
+    );
   }
   if (report.errorCount > 0) return { ok: false, report };
   try {
     const eventId = await db.transaction().execute(async (trx) => {
-      await insertDiscs(trx, actor, sheet.discs.map((d) => ({ disc: d.disc, origin: { importSha256: report.sha256, row: d.row } })));
+      await insertDiscs(
+        trx,
+        actor,
+        sheet.discs.map((d) => ({ disc: d.disc, origin: { importSha256: report.sha256, row: d.row } })),
+      );
       const event = await appendEvent(trx, {
         actorId: actor.id,
         kind: "import.committed",
         subjectType: "import",
         subjectId: report.sha256,
-        payload: { sha256: report.sha256, fileName: report.fileName, rows: report.rows, discs: report.discs, sides: report.sides },
+        payload: {
+          sha256: report.sha256,
+          fileName: report.fileName,
+          rows: report.rows,
+          discs: report.discs,
+          sides: report.sides,
+        },
       });
       return event.id;
     });
-    return { ok: true, imported: report.discs, sides: report.sides, rows: report.rows, sha256: report.sha256, eventId };
+    return {
+      ok: true,
+      imported: report.discs,
+      sides: report.sides,
+      rows: report.rows,
+      sha256: report.sha256,
+      eventId,
+    };
   } catch (e) {
     // Someone added one of these shelf marks between the check and the insert.
     if ((e as { code?: string }).code === "23505") {
-      throw new AppError("conflict", 409, "A shelf mark in the file was added to the catalogue while it was being imported. Nothing was written; preview the file again.");
+      throw new AppError(
+        "conflict",
+        409,
+        "A shelf mark in the file was added to the catalogue while it was being imported. Nothing was written; preview the file again.",
+      );
     }
     throw e;
   }

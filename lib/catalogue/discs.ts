@@ -32,7 +32,14 @@ function discColumns(d: DiscInput) {
 }
 
 function sideColumns(s: DiscInput["sides"][number]) {
-  return { designation: s.designation, matrix_number: s.matrixNumber, take: s.take, title: s.title, performers: s.performers, notes: s.notes };
+  return {
+    designation: s.designation,
+    matrix_number: s.matrixNumber,
+    take: s.take,
+    title: s.title,
+    performers: s.performers,
+    notes: s.notes,
+  };
 }
 
 /** The fields that go into events: the disc as the archivist sees it, without bookkeeping. */
@@ -41,17 +48,28 @@ function eventView(d: DiscRecord) {
   return { ...fields, sides: sides.map(({ assignedEngineerName, version: v, ...s }) => s) };
 }
 
-async function assertShelfMarkFree(trx: Transaction<Database>, shelfMark: string, exceptId?: string): Promise<void> {
-  let q = trx.selectFrom("discs").select("id").where(sql`lower(shelf_mark)`, "=", shelfMark.toLowerCase());
+async function assertShelfMarkFree(
+  trx: Transaction<Database>,
+  shelfMark: string,
+  exceptId?: string,
+): Promise<void> {
+  let q = trx
+    .selectFrom("discs")
+    .select("id")
+    .where(sql`lower(shelf_mark)`, "=", shelfMark.toLowerCase());
   if (exceptId) q = q.where("id", "!=", exceptId);
   if (await q.executeTakeFirst()) {
-    throw new AppError("conflict", 409, `Shelf mark ${shelfMark} is already used by another disc.`, { shelfMark: ["Already used by another disc."] });
+    throw new AppError("conflict", 409, `Shelf mark ${shelfMark} is already used by another disc.`, {
+      shelfMark: ["Already used by another disc."],
+    });
   }
 }
 
 async function assertAccession(trx: Transaction<Database>, id: string): Promise<void> {
   if (!(await trx.selectFrom("accessions").select("id").where("id", "=", id).executeTakeFirst())) {
-    throw new AppError("invalid", 422, "That accession does not exist.", { accessionId: ["Unknown accession."] });
+    throw new AppError("invalid", 422, "That accession does not exist.", {
+      accessionId: ["Unknown accession."],
+    });
   }
 }
 
@@ -59,20 +77,38 @@ async function assertAccession(trx: Transaction<Database>, id: string): Promise<
  * Inserts a validated disc and its sides with its "disc.created" event, inside the
  * caller's transaction (a single create, or every row of an import).
  */
-export async function insertDisc(trx: Transaction<Database>, actor: SessionUser, d: DiscInput, origin: Record<string, unknown> = {}): Promise<string> {
+export async function insertDisc(
+  trx: Transaction<Database>,
+  actor: SessionUser,
+  d: DiscInput,
+  origin: Record<string, unknown> = {},
+): Promise<string> {
   await assertAccession(trx, d.accessionId);
   await assertShelfMarkFree(trx, d.shelfMark);
   const disc = await trx.insertInto("discs").values(discColumns(d)).returning("id").executeTakeFirstOrThrow();
   const seen = new Set<string>();
   for (const s of d.sides) {
     const key = s.designation.toLowerCase();
-    if (seen.has(key)) throw new AppError("invalid", 422, `Side ${s.designation} is listed twice.`, { sides: [`Side ${s.designation} is listed twice.`] });
+    if (seen.has(key))
+      throw new AppError("invalid", 422, `Side ${s.designation} is listed twice.`, {
+        sides: [`Side ${s.designation} is listed twice.`],
+      });
     seen.add(key);
-    await trx.insertInto("sides").values({ disc_id: disc.id, ...sideColumns(s) }).execute();
+    await trx
+      .insertInto("sides")
+      .values({ disc_id: disc.id, ...sideColumns(s) })
+      .execute();
   }
   await refreshSearch(trx, [disc.id]);
   const created = (await readDisc(trx, disc.id))!;
-  await appendEvent(trx, { actorId: actor.id, kind: "disc.created", subjectType: "disc", subjectId: disc.id, discId: disc.id, payload: { after: eventView(created), ...origin } });
+  await appendEvent(trx, {
+    actorId: actor.id,
+    kind: "disc.created",
+    subjectType: "disc",
+    subjectId: disc.id,
+    discId: disc.id,
+    payload: { after: eventView(created), ...origin },
+  });
   return disc.id;
 }
 
@@ -81,22 +117,47 @@ export async function insertDisc(trx: Transaction<Database>, actor: SessionUser,
  * statements: the same rows and "disc.created" events as insertDisc, one disc at a time
  * would take minutes for 20 000 rows.
  */
-export async function insertDiscs(trx: Transaction<Database>, actor: SessionUser, items: { disc: DiscInput; origin: Record<string, unknown> }[]): Promise<string[]> {
+export async function insertDiscs(
+  trx: Transaction<Database>,
+  actor: SessionUser,
+  items: { disc: DiscInput; origin: Record<string, unknown> }[],
+): Promise<string[]> {
   if (!items.length) return [];
   const accessionIds = [...new Set(items.map((i) => i.disc.accessionId))];
   const known = await trx.selectFrom("accessions").select("id").where("id", "in", accessionIds).execute();
-  if (known.length !== accessionIds.length) throw new AppError("invalid", 422, "An accession named in the file does not exist.", { accessionId: ["Unknown accession."] });
+  if (known.length !== accessionIds.length)
+    throw new AppError("invalid", 422, "An accession named in the file does not exist.", {
+      accessionId: ["Unknown accession."],
+    });
   const marks = items.map((i) => i.disc.shelfMark.toLowerCase());
-  const taken = await trx.selectFrom("discs").select("shelf_mark").where(sql`lower(shelf_mark)`, "in", marks).limit(1).executeTakeFirst();
-  if (taken) throw new AppError("conflict", 409, `Shelf mark ${taken.shelf_mark} is already used by another disc.`, { shelfMark: ["Already used by another disc."] });
+  const taken = await trx
+    .selectFrom("discs")
+    .select("shelf_mark")
+    .where(sql`lower(shelf_mark)`, "in", marks)
+    .limit(1)
+    .executeTakeFirst();
+  if (taken)
+    throw new AppError("conflict", 409, `Shelf mark ${taken.shelf_mark} is already used by another disc.`, {
+      shelfMark: ["Already used by another disc."],
+    });
   const ids: string[] = [];
   for (let i = 0; i < items.length; i += 500) {
     const chunk = items.slice(i, i + 500);
-    const rows = await trx.insertInto("discs").values(chunk.map((c) => discColumns(c.disc))).returning("id").execute();
+    const rows = await trx
+      .insertInto("discs")
+      .values(chunk.map((c) => discColumns(c.disc)))
+      .returning("id")
+      .execute();
     ids.push(...rows.map((r) => r.id));
   }
-  const sideRows = items.flatMap((item, n) => item.disc.sides.map((s) => ({ disc_id: ids[n], ...sideColumns(s) })));
-  for (let i = 0; i < sideRows.length; i += 1000) await trx.insertInto("sides").values(sideRows.slice(i, i + 1000)).execute();
+  const sideRows = items.flatMap((item, n) =>
+    item.disc.sides.map((s) => ({ disc_id: ids[n], ...sideColumns(s) })),
+  );
+  for (let i = 0; i < sideRows.length; i += 1000)
+    await trx
+      .insertInto("sides")
+      .values(sideRows.slice(i, i + 1000))
+      .execute();
   for (let i = 0; i < ids.length; i += 1000) await refreshSearch(trx, ids.slice(i, i + 1000));
   await appendEvents(
     trx,
@@ -130,7 +191,12 @@ function changedFields(before: Record<string, unknown>, after: Record<string, un
 export async function updateDisc(actor: SessionUser, id: string, input: unknown): Promise<DiscRecord> {
   const d = updateDiscSchema.parse(input);
   return db.transaction().execute(async (trx) => {
-    const locked = await trx.selectFrom("discs").select(["id", "version"]).where("id", "=", id).forUpdate().executeTakeFirst();
+    const locked = await trx
+      .selectFrom("discs")
+      .select(["id", "version"])
+      .where("id", "=", id)
+      .forUpdate()
+      .executeTakeFirst();
     if (!locked) throw new AppError("not_found", 404, "No such disc.");
     const before = (await readDisc(trx, id))!;
     if (locked.version !== d.version) {
@@ -142,19 +208,34 @@ export async function updateDisc(actor: SessionUser, id: string, input: unknown)
         .orderBy("e.seq", "desc")
         .limit(1)
         .executeTakeFirst();
-      const who = last?.name ? `${last.name} saved it at ${last.at.toISOString().slice(11, 16)} UTC` : "someone else saved it";
-      throw new AppError("conflict", 409, `This disc changed while you were editing it (${who}). Your edit was not saved: review their change, then apply yours again.`, undefined, { current: before });
+      const who = last?.name
+        ? `${last.name} saved it at ${last.at.toISOString().slice(11, 16)} UTC`
+        : "someone else saved it";
+      throw new AppError(
+        "conflict",
+        409,
+        `This disc changed while you were editing it (${who}). Your edit was not saved: review their change, then apply yours again.`,
+        undefined,
+        { current: before },
+      );
     }
     await assertAccession(trx, d.accessionId);
     await assertShelfMarkFree(trx, d.shelfMark, id);
-    await trx.updateTable("discs").set({ ...discColumns(d), version: d.version + 1, updated_at: sql`now()` }).where("id", "=", id).execute();
+    await trx
+      .updateTable("discs")
+      .set({ ...discColumns(d), version: d.version + 1, updated_at: sql`now()` })
+      .where("id", "=", id)
+      .execute();
 
     const existing = new Map(before.sides.map((s) => [s.id, s]));
     const keep = new Set<string>();
     for (const s of d.sides) {
       if (s.id) {
         const old = existing.get(s.id);
-        if (!old) throw new AppError("invalid", 422, `Side ${s.designation} does not belong to this disc.`, { sides: ["Unknown side."] });
+        if (!old)
+          throw new AppError("invalid", 422, `Side ${s.designation} does not belong to this disc.`, {
+            sides: ["Unknown side."],
+          });
         keep.add(s.id);
         await trx
           .updateTable("sides")
@@ -162,13 +243,21 @@ export async function updateDisc(actor: SessionUser, id: string, input: unknown)
           .where("id", "=", s.id)
           .execute();
       } else {
-        await trx.insertInto("sides").values({ disc_id: id, ...sideColumns(s) }).execute();
+        await trx
+          .insertInto("sides")
+          .values({ disc_id: id, ...sideColumns(s) })
+          .execute();
       }
     }
     for (const old of before.sides) {
       if (keep.has(old.id)) continue;
       if (old.status !== "catalogued") {
-        throw new AppError("conflict", 409, `Side ${old.designation} is already ${old.status.replace("_", " ")} and cannot be removed.`, { sides: ["A side in the workflow cannot be removed."] });
+        throw new AppError(
+          "conflict",
+          409,
+          `Side ${old.designation} is already ${old.status.replace("_", " ")} and cannot be removed.`,
+          { sides: ["A side in the workflow cannot be removed."] },
+        );
       }
       await trx.deleteFrom("sides").where("id", "=", old.id).execute();
     }

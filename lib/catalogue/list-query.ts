@@ -15,7 +15,10 @@ export interface DiscListRow {
   accessionIdentifier: string;
   conditionGrade: string;
   updatedAt: Date;
-  sides: Pick<SideRecord, "id" | "designation" | "matrixNumber" | "title" | "status" | "assignedEngineerName">[];
+  sides: Pick<
+    SideRecord,
+    "id" | "designation" | "matrixNumber" | "title" | "status" | "assignedEngineerName"
+  >[];
 }
 
 const sortColumns = {
@@ -43,11 +46,25 @@ export function filteredDiscs(db: Db, q: DiscFilter) {
   if (q.speed) query = query.where("d.nominal_speed_rpm", "=", q.speed);
   if (q.status) {
     const status = q.status;
-    query = query.where(({ exists, selectFrom }) => exists(selectFrom("sides as s").select("s.id").whereRef("s.disc_id", "=", "d.id").where("s.status", "=", status)));
+    query = query.where(({ exists, selectFrom }) =>
+      exists(
+        selectFrom("sides as s")
+          .select("s.id")
+          .whereRef("s.disc_id", "=", "d.id")
+          .where("s.status", "=", status),
+      ),
+    );
   }
   if (q.engineer) {
     const engineer = q.engineer;
-    query = query.where(({ exists, selectFrom }) => exists(selectFrom("sides as s").select("s.id").whereRef("s.disc_id", "=", "d.id").where("s.assigned_engineer_id", "=", engineer)));
+    query = query.where(({ exists, selectFrom }) =>
+      exists(
+        selectFrom("sides as s")
+          .select("s.id")
+          .whereRef("s.disc_id", "=", "d.id")
+          .where("s.assigned_engineer_id", "=", engineer),
+      ),
+    );
   }
   if (q.q) {
     const text = q.q;
@@ -71,12 +88,19 @@ function ordering(q: DiscFilter) {
 /** Every disc a list query selects, in the list's order and without paging (the CSV export). */
 export async function listDiscIds(db: Db, q: DiscFilter): Promise<string[]> {
   const { column, direction } = ordering(q);
-  const rows = await filteredDiscs(db, q).select("d.id").orderBy(column, direction).orderBy("d.shelf_mark", direction).execute();
+  const rows = await filteredDiscs(db, q)
+    .select("d.id")
+    .orderBy(column, direction)
+    .orderBy("d.shelf_mark", direction)
+    .execute();
   return rows.map((r) => r.id);
 }
 
 /** The catalogue: filtered, searched, sorted and paged on the server. */
-export async function listDiscsWith(db: Db, input: unknown): Promise<{ rows: DiscListRow[]; total: number; page: number; pageSize: number }> {
+export async function listDiscsWith(
+  db: Db,
+  input: unknown,
+): Promise<{ rows: DiscListRow[]; total: number; page: number; pageSize: number }> {
   const q = discListQuerySchema.parse(input);
   const { column, direction } = ordering(q);
   const [rows, count] = await Promise.all([
@@ -98,14 +122,28 @@ export async function listDiscsWith(db: Db, input: unknown): Promise<{ rows: Dis
       .limit(q.pageSize)
       .offset((q.page - 1) * q.pageSize)
       .execute(),
-    filteredDiscs(db, q).select(sql<number>`count(*)::int`.as("n")).executeTakeFirstOrThrow(),
+    filteredDiscs(db, q)
+      .select(sql<number>`count(*)::int`.as("n"))
+      .executeTakeFirstOrThrow(),
   ]);
-  const sides = await readSides(db, rows.map((r) => r.id));
+  const sides = await readSides(
+    db,
+    rows.map((r) => r.id),
+  );
   return {
     rows: rows.map((r) => ({
       ...r,
       nominalSpeedRpm: Number(r.nominalSpeedRpm),
-      sides: (sides.get(r.id) ?? []).map(({ id, designation, matrixNumber, title, status, assignedEngineerName }) => ({ id, designation, matrixNumber, title, status, assignedEngineerName })),
+      sides: (sides.get(r.id) ?? []).map(
+        ({ id, designation, matrixNumber, title, status, assignedEngineerName }) => ({
+          id,
+          designation,
+          matrixNumber,
+          title,
+          status,
+          assignedEngineerName,
+        }),
+      ),
     })),
     total: count.n,
     page: q.page,

@@ -91,7 +91,16 @@ export async function readDiscs(db: Db, ids: string[]): Promise<DiscRecord[]> {
   const byId = new Map(rows.map((d) => [d.id, d]));
   return ids.flatMap((id) => {
     const d = byId.get(id);
-    return d ? [{ ...d, diameterIn: d.diameterIn === null ? null : Number(d.diameterIn), nominalSpeedRpm: Number(d.nominalSpeedRpm), sides: sides.get(id) ?? [] }] : [];
+    return d
+      ? [
+          {
+            ...d,
+            diameterIn: d.diameterIn === null ? null : Number(d.diameterIn),
+            nominalSpeedRpm: Number(d.nominalSpeedRpm),
+            sides: sides.get(id) ?? [],
+          },
+        ]
+      : [];
   });
 }
 

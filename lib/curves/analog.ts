@@ -46,7 +46,12 @@ export interface ComplexArrays {
 }
 
 /** |H0(j2πf)|² and phase (rad) of the un-normalised (K = 1) curve. */
-function factorResponse(zeroTaus: number[], poleTaus: number[], hpTau: number | null, hz: number): { mag2: number; phaseRad: number } {
+function factorResponse(
+  zeroTaus: number[],
+  poleTaus: number[],
+  hpTau: number | null,
+  hz: number,
+): { mag2: number; phaseRad: number } {
   const w = TWO_PI * hz;
   let mag2 = 1;
   let phase = 0;
@@ -140,7 +145,12 @@ export function analogResponse(model: AnalogModel, frequenciesHz: ArrayLike<numb
 }
 
 /** Fill re/im with the normalised complex response (fast path for the filter designers). */
-export function analogComplexInto(model: AnalogModel, frequenciesHz: ArrayLike<number>, re: Float64Array, im: Float64Array): void {
+export function analogComplexInto(
+  model: AnalogModel,
+  frequenciesHz: ArrayLike<number>,
+  re: Float64Array,
+  im: Float64Array,
+): void {
   for (let i = 0; i < frequenciesHz.length; i++) {
     const r = factorResponse(model.zeroTausS, model.poleTausS, model.dcZeroTauS, frequenciesHz[i]);
     const mag = model.gainK * Math.sqrt(r.mag2);

@@ -35,7 +35,8 @@ export function asymptotes(model: AnalogModel): Asymptotes {
   const { curve } = model;
   const list: { parameter: CornerName; tauS: number; sign: number }[] = [];
   if (curve.turnover) list.push({ parameter: "turnover", tauS: curve.turnover.filterTauUs * 1e-6, sign: +1 });
-  if (curve.ultrasonic) list.push({ parameter: "ultrasonic", tauS: curve.ultrasonic.filterTauUs * 1e-6, sign: +1 });
+  if (curve.ultrasonic)
+    list.push({ parameter: "ultrasonic", tauS: curve.ultrasonic.filterTauUs * 1e-6, sign: +1 });
   if (curve.shelf) list.push({ parameter: "shelf", tauS: curve.shelf.filterTauUs * 1e-6, sign: -1 });
   if (curve.rolloff) list.push({ parameter: "rolloff", tauS: curve.rolloff.filterTauUs * 1e-6, sign: -1 });
   if (curve.highpass) list.push({ parameter: "highpass", tauS: curve.highpass.filterTauUs * 1e-6, sign: -1 });
@@ -58,7 +59,12 @@ export function asymptotes(model: AnalogModel): Asymptotes {
     const hz = usToHz(c.tauS * 1e6);
     segments.push({ fromHz: from, toHz: hz, slopeDbPerDecade: slope });
     slope += 20 * c.sign;
-    corners.push({ parameter: c.parameter, hz, slopeChangeDbPerDecade: 20 * c.sign, asymptoteGainDb: asymptoteDb(hz) });
+    corners.push({
+      parameter: c.parameter,
+      hz,
+      slopeChangeDbPerDecade: 20 * c.sign,
+      asymptoteGainDb: asymptoteDb(hz),
+    });
     from = hz;
   }
   segments.push({ fromHz: from, toHz: null, slopeDbPerDecade: slope });

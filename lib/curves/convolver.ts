@@ -17,9 +17,13 @@ import { fftFor, nextPowerOfTwo, realSpectrum } from "./fft";
  * about 1.3·log2(F) operations per output sample against 2·log2 for F = 2·taps) and the
  * new samples each FFT handles. Every convolver here, and the native engine, uses these.
  */
-export function convolverSizes(tapCount: number, fftSize = Math.max(256, nextPowerOfTwo(4 * tapCount))): { fftSize: number; blockSize: number } {
+export function convolverSizes(
+  tapCount: number,
+  fftSize = Math.max(256, nextPowerOfTwo(4 * tapCount)),
+): { fftSize: number; blockSize: number } {
   if (tapCount < 1) throw new RangeError("A convolver needs taps: this filter has none.");
-  if (fftSize < tapCount || (fftSize & (fftSize - 1)) !== 0) throw new RangeError("fftSize must be a power of two at least as long as the filter.");
+  if (fftSize < tapCount || (fftSize & (fftSize - 1)) !== 0)
+    throw new RangeError("fftSize must be a power of two at least as long as the filter.");
   return { fftSize, blockSize: fftSize - tapCount + 1 };
 }
 

@@ -39,14 +39,30 @@ export interface FilterDeviations {
   iir: DeviationTrace & { sections: number; order: number };
 }
 
-function trace(hz: number[], gainDb: number[], phaseDeg: number[], reportedDb: number, reportedDeg: number): DeviationTrace {
+function trace(
+  hz: number[],
+  gainDb: number[],
+  phaseDeg: number[],
+  reportedDb: number,
+  reportedDeg: number,
+): DeviationTrace {
   let wi = 0;
   let pi = 0;
   for (let i = 1; i < hz.length; i++) {
     if (Math.abs(gainDb[i]) > Math.abs(gainDb[wi])) wi = i;
     if (Math.abs(phaseDeg[i]) > Math.abs(phaseDeg[pi])) pi = i;
   }
-  return { hz, gainDb, phaseDeg, worstDb: gainDb[wi], worstDbHz: hz[wi], worstDeg: phaseDeg[pi], worstDegHz: hz[pi], reportedDb, reportedDeg };
+  return {
+    hz,
+    gainDb,
+    phaseDeg,
+    worstDb: gainDb[wi],
+    worstDbHz: hz[wi],
+    worstDeg: phaseDeg[pi],
+    worstDegHz: hz[pi],
+    reportedDb,
+    reportedDeg,
+  };
 }
 
 /** Both realisations at one sample rate, measured on `points` log-spaced frequencies. Throws CurveError for a curve that cannot be built. */

@@ -17,7 +17,14 @@ import type { CornerName, CurvePoint, CurveSpec, ResolvedCurve } from "./types";
 import { hzToUs, usToDb10k, usToHz } from "./units";
 
 export type FitParameter = CornerName | "levelOffset";
-export const FIT_PARAMETERS: readonly FitParameter[] = ["turnover", "shelf", "rolloff", "highpass", "ultrasonic", "levelOffset"];
+export const FIT_PARAMETERS: readonly FitParameter[] = [
+  "turnover",
+  "shelf",
+  "rolloff",
+  "highpass",
+  "ultrasonic",
+  "levelOffset",
+];
 
 export interface FitRequest {
   points: CurvePoint[];
@@ -65,7 +72,13 @@ export interface FitResult {
 }
 
 /** Start values when a fitted corner is not given: the RIAA corners and the IEC high-pass (IEC 60098), a common ultrasonic zero. */
-const DEFAULT_START_US: Record<CornerName, number> = { turnover: 318, shelf: 3180, rolloff: 75, highpass: 7950, ultrasonic: 3.18 };
+const DEFAULT_START_US: Record<CornerName, number> = {
+  turnover: 318,
+  shelf: 3180,
+  rolloff: 75,
+  highpass: 7950,
+  ultrasonic: 3.18,
+};
 
 /**
  * Where each parameter acts, as a rule the user can act on. Bands follow the
@@ -96,7 +109,9 @@ function cornerTauUs(spec: CurveSpec, name: CornerName): number | null {
 function symmetricEigen(a: number[][]): { min: number; max: number; minVector: number[] } {
   const n = a.length;
   const m = a.map((r) => r.slice());
-  const v: number[][] = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
+  const v: number[][] = Array.from({ length: n }, (_, i) =>
+    Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)),
+  );
   for (let sweep = 0; sweep < 60; sweep++) {
     let off = 0;
     for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) off += m[i][j] * m[i][j];
@@ -150,8 +165,10 @@ export function fitCurve(request: FitRequest): FitResult {
   }
   if (!Array.isArray(points)) throw new CurveError("points", "Points must be a list of { hz, db }.");
   points.forEach((pt, i) => {
-    if (!(Number.isFinite(pt.hz) && pt.hz > 0)) throw new CurveError("points", `Point ${i + 1}: frequency must be a positive number.`);
-    if (!Number.isFinite(pt.db)) throw new CurveError("points", `Point ${i + 1}: level must be a finite number of dB.`);
+    if (!(Number.isFinite(pt.hz) && pt.hz > 0))
+      throw new CurveError("points", `Point ${i + 1}: frequency must be a positive number.`);
+    if (!Number.isFinite(pt.db))
+      throw new CurveError("points", `Point ${i + 1}: level must be a finite number of dB.`);
   });
   if (points.length < fitList.length + 1) {
     throw new CurveError(
@@ -163,7 +180,10 @@ export function fitCurve(request: FitRequest): FitResult {
   for (const name of cornerNames) {
     const band = BANDS[name];
     if (!points.some((pt) => band.test(pt.hz))) {
-      throw new CurveError(name, `No point lies in the band where the ${name} acts (${band.describe}); it cannot be fitted from these points.`);
+      throw new CurveError(
+        name,
+        `No point lies in the band where the ${name} acts (${band.describe}); it cannot be fitted from these points.`,
+      );
     }
   }
 
@@ -196,10 +216,14 @@ export function fitCurve(request: FitRequest): FitResult {
   const modelFor = (params: number[]) => {
     const { spec, levelDb } = specFrom(params);
     const tau = (n: CornerName) => (spec[n] ? (spec[n] as { value: number }).value / speedRatio : null);
-    const zeroTausS = [tau("turnover"), tau("ultrasonic")].filter((t): t is number => t !== null).map((t) => t * 1e-6);
+    const zeroTausS = [tau("turnover"), tau("ultrasonic")]
+      .filter((t): t is number => t !== null)
+      .map((t) => t * 1e-6);
     const hp = tau("highpass");
     const integrator = spec.turnover != null && spec.shelf == null;
-    const poleTausS = [tau("shelf"), tau("rolloff"), hp].filter((t): t is number => t !== null).map((t) => t * 1e-6);
+    const poleTausS = [tau("shelf"), tau("rolloff"), hp]
+      .filter((t): t is number => t !== null)
+      .map((t) => t * 1e-6);
     const w = (hz: number) => 2 * Math.PI * hz;
     const raw = (hz: number) => {
       let db = 0;
@@ -236,7 +260,8 @@ export function fitCurve(request: FitRequest): FitResult {
     const f = modelFor(r.parameterValues);
     let sse = 0;
     for (let i = 0; i < xs.length; i++) sse += (ys[i] - f(xs[i])) ** 2;
-    if (Number.isFinite(sse) && (!best || sse < best.sse)) best = { params: r.parameterValues, sse, iterations: r.iterations };
+    if (Number.isFinite(sse) && (!best || sse < best.sse))
+      best = { params: r.parameterValues, sse, iterations: r.iterations };
   }
   if (!best) throw new CurveError("fit", "The fit did not converge from any start.");
 
@@ -260,11 +285,16 @@ export function fitCurve(request: FitRequest): FitResult {
     const maxAbs = Math.max(...c.map(Math.abs));
     // Changing ln τ by 1 (τ × 2.7) moves no point by 0.05 dB: the points say nothing about it.
     if (maxAbs < 0.05) {
-      throw new CurveError(names[j], `The points do not constrain the ${names[j]}: changing it barely moves the curve at any given frequency.`);
+      throw new CurveError(
+        names[j],
+        `The points do not constrain the ${names[j]}: changing it barely moves the curve at any given frequency.`,
+      );
     }
   });
   const norms = cols.map((c) => Math.sqrt(c.reduce((s, v) => s + v * v, 0)));
-  const gram = cols.map((ci, i) => cols.map((cj, j) => ci.reduce((s, v, k) => s + v * cj[k], 0) / (norms[i] * norms[j])));
+  const gram = cols.map((ci, i) =>
+    cols.map((cj, j) => ci.reduce((s, v, k) => s + v * cj[k], 0) / (norms[i] * norms[j])),
+  );
   const eig = symmetricEigen(gram);
   const conditionNumber = eig.min > 0 ? Math.sqrt(eig.max / eig.min) : Infinity;
   if (!(conditionNumber < CONDITION_LIMIT)) {

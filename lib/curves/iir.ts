@@ -287,7 +287,8 @@ export function designIirFromModel(model: AnalogModel, sampleRateHz: number): Ii
   // octaves where the digital response must bend away from matched-z.
   const logPart = logGrid(fitLowHz, fitHighHz, 100);
   const linPart = new Float64Array(50);
-  for (let i = 0; i < linPart.length; i++) linPart[i] = fitHighHz * (0.25 + (0.75 * i) / (linPart.length - 1));
+  for (let i = 0; i < linPart.length; i++)
+    linPart[i] = fitHighHz * (0.25 + (0.75 * i) / (linPart.length - 1));
   const grid = mergeGrids(logPart, linPart);
   const n = grid.length;
 

@@ -21,7 +21,13 @@ export function formatNumber(value: number, significant = 4): string {
 }
 
 /** A corner's short name in running text ("no high-pass"). */
-export const CORNER_WORDS: Record<CornerName, string> = { turnover: "turnover", shelf: "shelf", rolloff: "rolloff", highpass: "high-pass", ultrasonic: "ultrasonic" };
+export const CORNER_WORDS: Record<CornerName, string> = {
+  turnover: "turnover",
+  shelf: "shelf",
+  rolloff: "rolloff",
+  highpass: "high-pass",
+  ultrasonic: "ultrasonic",
+};
 
 /** The one way a rolloff in dB is shown: 10 → "10 dB attenuation at 10 kHz" (the sign of what was typed is not kept). */
 export function formatRolloffDb(attenuationDb: number): string {
@@ -41,17 +47,28 @@ export function normalizeRolloffDb(value: number): number {
 export function parseRolloffDb(text: string): number {
   let t = text.trim().replace(/\s+/g, " ");
   t = t.replace(/\s*dB(\s*(attenuation|cut))?(\s*at\s*10\s*kHz)?\s*$/i, "");
-  t = t.replace(/^[\u2212\u2013]/, "-").replace(",", ".").trim();
+  t = t
+    .replace(/^[\u2212\u2013]/, "-")
+    .replace(",", ".")
+    .trim();
   if (!/^[+-]?(\d+(\.\d*)?|\.\d+)$/.test(t)) return Number.NaN;
   return normalizeRolloffDb(Number(t));
 }
 
 /** A corner value as entered, with its other unit beside it: "500 Hz (318.3 µs)", "75 µs (2122 Hz)", "10 dB attenuation at 10 kHz". */
-export function formatCorner(c: CornerInput | null | undefined, { withOtherUnit = true }: { withOtherUnit?: boolean } = {}): string {
+export function formatCorner(
+  c: CornerInput | null | undefined,
+  { withOtherUnit = true }: { withOtherUnit?: boolean } = {},
+): string {
   if (!c) return "none";
   if (c.unit === "db10k") return formatRolloffDb(c.value);
-  if (c.unit === "hz") return withOtherUnit && c.value > 0 ? `${formatNumber(c.value)} Hz (${formatNumber(hzToUs(c.value))} µs)` : `${formatNumber(c.value)} Hz`;
-  return withOtherUnit && c.value > 0 ? `${formatNumber(c.value)} µs (${formatNumber(usToHz(c.value))} Hz)` : `${formatNumber(c.value)} µs`;
+  if (c.unit === "hz")
+    return withOtherUnit && c.value > 0
+      ? `${formatNumber(c.value)} Hz (${formatNumber(hzToUs(c.value))} µs)`
+      : `${formatNumber(c.value)} Hz`;
+  return withOtherUnit && c.value > 0
+    ? `${formatNumber(c.value)} µs (${formatNumber(usToHz(c.value))} Hz)`
+    : `${formatNumber(c.value)} µs`;
 }
 
 /** Each given corner in a few words: "turnover 500 Hz", "no shelf", "rolloff 10 dB attenuation at 10 kHz", "level 0 dB at 1000 Hz". */
@@ -63,7 +80,10 @@ export function cornerChanges(values: Partial<CurveSpec> | null | undefined): st
     const v = values[n];
     out.push(v ? `${CORNER_WORDS[n]} ${formatCorner(v, { withOtherUnit: false })}` : `no ${CORNER_WORDS[n]}`);
   }
-  if (values.reference) out.push(`level ${formatNumber(values.reference.db).replace("-", "\u2212")} dB at ${formatNumber(values.reference.hz)} Hz`);
+  if (values.reference)
+    out.push(
+      `level ${formatNumber(values.reference.db).replace("-", "\u2212")} dB at ${formatNumber(values.reference.hz)} Hz`,
+    );
   return out;
 }
 

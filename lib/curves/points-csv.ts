@@ -31,7 +31,12 @@ export function parsePointsCsv(text: string): CurvePoint[] {
     if (!sawData && !NUMBER.test(fields[0])) {
       // A header such as "hz,db" or "frequency,level"; only allowed before the first point.
       sawData = true;
-      if (fields.length !== 2) throw new PointsParseError(lineNo, "line", `expected a header of two columns (hz,db), found ${fields.length}.`);
+      if (fields.length !== 2)
+        throw new PointsParseError(
+          lineNo,
+          "line",
+          `expected a header of two columns (hz,db), found ${fields.length}.`,
+        );
       return;
     }
     sawData = true;
@@ -43,8 +48,10 @@ export function parsePointsCsv(text: string): CurvePoint[] {
     if (!NUMBER.test(dbText)) throw new PointsParseError(lineNo, "db", `"${dbText}" is not a number.`);
     const hz = Number(hzText);
     const db = Number(dbText);
-    if (!(hz > 0) || !Number.isFinite(hz)) throw new PointsParseError(lineNo, "hz", `frequency must be greater than 0, got ${hzText}.`);
-    if (!Number.isFinite(db)) throw new PointsParseError(lineNo, "db", `level must be finite, got ${dbText}.`);
+    if (!(hz > 0) || !Number.isFinite(hz))
+      throw new PointsParseError(lineNo, "hz", `frequency must be greater than 0, got ${hzText}.`);
+    if (!Number.isFinite(db))
+      throw new PointsParseError(lineNo, "db", `level must be finite, got ${dbText}.`);
     points.push({ hz, db });
   });
   if (points.length === 0) throw new PointsParseError(lines.length, "line", "no points found.");

@@ -65,7 +65,13 @@ export interface RenderFilterOptions {
   maxLength?: number;
 }
 
-function buildTaps(model: AnalogModel, fs: number, n: number, delay: number, passHighHz: number): Float64Array {
+function buildTaps(
+  model: AnalogModel,
+  fs: number,
+  n: number,
+  delay: number,
+  passHighHz: number,
+): Float64Array {
   const half = n / 2;
   const freqs = new Float64Array(half + 1);
   for (let k = 0; k <= half; k++) freqs[k] = (k * fs) / n;
@@ -187,19 +193,25 @@ export function firDeviation(
   return { hz, gainDb, phaseDeg };
 }
 
-export function designRenderFilterFromModel(model: AnalogModel, sampleRateHz: number, options: RenderFilterOptions = {}): RenderFilter {
+export function designRenderFilterFromModel(
+  model: AnalogModel,
+  sampleRateHz: number,
+  options: RenderFilterOptions = {},
+): RenderFilter {
   validateSampleRate(sampleRateHz);
   const fs = sampleRateHz;
   const passHighHz = Math.max(20_000, 0.45 * fs);
   const transitionHz = fs / 2 - passHighHz;
   const delay = Math.ceil((PRE_RING_CYCLES * fs) / transitionHz);
   const slowestTauS = Math.max(0, ...model.poleTausS);
-  let n = options.initialLength ?? nextPowerOfTwo(Math.max(1024, delay + TAIL_TIME_CONSTANTS * slowestTauS * fs));
+  let n =
+    options.initialLength ?? nextPowerOfTwo(Math.max(1024, delay + TAIL_TIME_CONSTANTS * slowestTauS * fs));
   const maxLength = options.maxLength ?? MAX_TAPS;
   for (;;) {
     const taps = buildTaps(model, fs, n, delay, passHighHz);
     const narrow = measureFir(model, taps, fs, delay, 20, 20_000);
-    const meets = narrow.maxErrorDb <= 0.8 * RENDER_TARGET_DB && narrow.maxPhaseErrorDeg <= 0.8 * RENDER_TARGET_DEG;
+    const meets =
+      narrow.maxErrorDb <= 0.8 * RENDER_TARGET_DB && narrow.maxPhaseErrorDeg <= 0.8 * RENDER_TARGET_DEG;
     if (meets || 2 * n > maxLength) {
       if (!meets && options.maxLength === undefined) {
         throw new CurveError(
@@ -215,7 +227,11 @@ export function designRenderFilterFromModel(model: AnalogModel, sampleRateHz: nu
         delaySamples: delay,
         maxErrorDb: narrow.maxErrorDb,
         maxPhaseErrorDeg: narrow.maxPhaseErrorDeg,
-        wideBand: { upToHz: passHighHz, maxErrorDb: wide.maxErrorDb, maxPhaseErrorDeg: wide.maxPhaseErrorDeg },
+        wideBand: {
+          upToHz: passHighHz,
+          maxErrorDb: wide.maxErrorDb,
+          maxPhaseErrorDeg: wide.maxPhaseErrorDeg,
+        },
         measuredOn: { spacingHz: narrow.spacingHz, points: narrow.points },
       };
     }
@@ -224,6 +240,10 @@ export function designRenderFilterFromModel(model: AnalogModel, sampleRateHz: nu
 }
 
 /** Validate a spec and design its render filter at a sample rate. */
-export function designRenderFilter(spec: CurveSpec, sampleRateHz: number, options?: RenderFilterOptions): RenderFilter {
+export function designRenderFilter(
+  spec: CurveSpec,
+  sampleRateHz: number,
+  options?: RenderFilterOptions,
+): RenderFilter {
   return designRenderFilterFromModel(buildAnalogModel(resolveCurve(spec)), sampleRateHz, options);
 }

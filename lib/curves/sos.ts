@@ -16,7 +16,11 @@ export interface SosResponse {
 }
 
 /** Complex response of the cascade at z = e^{jω}, ω = 2π·f/fs. */
-export function sosComplexAt(sos: readonly SosRow[], hz: number, sampleRateHz: number): { re: number; im: number } {
+export function sosComplexAt(
+  sos: readonly SosRow[],
+  hz: number,
+  sampleRateHz: number,
+): { re: number; im: number } {
   const w = (2 * Math.PI * hz) / sampleRateHz;
   const c1 = Math.cos(w);
   const s1 = Math.sin(w);
@@ -41,7 +45,11 @@ export function sosComplexAt(sos: readonly SosRow[], hz: number, sampleRateHz: n
 }
 
 /** Gain (dB) and phase (degrees) of the cascade at the given frequencies. */
-export function sosResponse(sos: readonly SosRow[], frequenciesHz: ArrayLike<number>, sampleRateHz: number): SosResponse {
+export function sosResponse(
+  sos: readonly SosRow[],
+  frequenciesHz: ArrayLike<number>,
+  sampleRateHz: number,
+): SosResponse {
   const out: SosResponse = { hz: [], gainDb: [], phaseDeg: [], re: [], im: [] };
   let prev = 0;
   for (let i = 0; i < frequenciesHz.length; i++) {
@@ -64,7 +72,11 @@ export function sosFilter(sos: readonly SosRow[], input: ArrayLike<number>): Flo
   for (const [b0, b1, b2, a0, a1, a2] of sos) {
     let z1 = 0;
     let z2 = 0;
-    const nb0 = b0 / a0, nb1 = b1 / a0, nb2 = b2 / a0, na1 = a1 / a0, na2 = a2 / a0;
+    const nb0 = b0 / a0,
+      nb1 = b1 / a0,
+      nb2 = b2 / a0,
+      na1 = a1 / a0,
+      na2 = a2 / a0;
     for (let n = 0; n < out.length; n++) {
       const x = out[n];
       const y = nb0 * x + z1;

@@ -3,7 +3,14 @@
  * time constant the filter uses, and clear refusals naming the parameter.
  */
 import { CORNER_NAMES, CurveError } from "./types";
-import type { CornerInput, CornerName, CurveSpec, ReferenceLevel, ResolvedCorner, ResolvedCurve } from "./types";
+import type {
+  CornerInput,
+  CornerName,
+  CurveSpec,
+  ReferenceLevel,
+  ResolvedCorner,
+  ResolvedCurve,
+} from "./types";
 import { normalizeRolloffDb } from "./names";
 import { db10kToUs, hzToUs, usToDb10k, usToHz } from "./units";
 
@@ -25,7 +32,8 @@ function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number)
   }
   const { unit } = input;
   // A rolloff in dB at 10 kHz only ever cuts: "−10" and "10" are the same 10 dB of attenuation (names.ts).
-  const value = unit === "db10k" && isFiniteNumber(input.value) ? normalizeRolloffDb(input.value) : input.value;
+  const value =
+    unit === "db10k" && isFiniteNumber(input.value) ? normalizeRolloffDb(input.value) : input.value;
   if (unit !== "hz" && unit !== "us" && unit !== "db10k") {
     throw new CurveError(name, `${name}: unit must be "hz", "us" or "db10k", got ${JSON.stringify(unit)}.`);
   }
@@ -38,10 +46,16 @@ function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number)
   if (unit === "db10k") {
     if (value === 0) return null;
     if (value > 60) {
-      throw new CurveError(name, `${name}: ${value} dB at 10 kHz is beyond any playback curve (limit 60 dB).`);
+      throw new CurveError(
+        name,
+        `${name}: ${value} dB at 10 kHz is beyond any playback curve (limit 60 dB).`,
+      );
     }
   } else if (value <= 0) {
-    throw new CurveError(name, `${name}: ${unit === "hz" ? "frequency" : "time constant"} must be greater than 0, got ${value}.`);
+    throw new CurveError(
+      name,
+      `${name}: ${unit === "hz" ? "frequency" : "time constant"} must be greater than 0, got ${value}.`,
+    );
   }
   const tauUs = unit === "hz" ? hzToUs(value) : unit === "us" ? value : db10kToUs(value);
   if (!(tauUs > 0) || !Number.isFinite(tauUs)) {
@@ -69,7 +83,12 @@ function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number)
  * sides, then the speed ratio transfer ÷ cut (played at another speed than it was cut, every
  * frequency moves by that ratio). The bench plots and plays it; the server records it.
  */
-export function mergeCurve(presetSpec: CurveSpec | null, overrides: Partial<CurveSpec>, cutSpeedRpm: number, transferSpeedRpm: number): CurveSpec {
+export function mergeCurve(
+  presetSpec: CurveSpec | null,
+  overrides: Partial<CurveSpec>,
+  cutSpeedRpm: number,
+  transferSpeedRpm: number,
+): CurveSpec {
   const merged: CurveSpec = { ...(presetSpec ?? {}) };
   for (const [k, v] of Object.entries(overrides) as [keyof CurveSpec, unknown][]) {
     if (v !== undefined) (merged as Record<string, unknown>)[k] = v;
@@ -79,14 +98,21 @@ export function mergeCurve(presetSpec: CurveSpec | null, overrides: Partial<Curv
 }
 
 export function resolveCurve(spec: CurveSpec): ResolvedCurve {
-  if (typeof spec !== "object" || spec === null) throw new CurveError("spec", "Curve spec must be an object.");
+  if (typeof spec !== "object" || spec === null)
+    throw new CurveError("spec", "Curve spec must be an object.");
 
   const speedRatio = spec.speedRatio ?? 1;
   if (!isFiniteNumber(speedRatio) || speedRatio <= 0) {
-    throw new CurveError("speedRatio", `speedRatio (transfer speed / cut speed) must be a number greater than 0, got ${String(speedRatio)}.`);
+    throw new CurveError(
+      "speedRatio",
+      `speedRatio (transfer speed / cut speed) must be a number greater than 0, got ${String(speedRatio)}.`,
+    );
   }
   if (speedRatio < 0.1 || speedRatio > 10) {
-    throw new CurveError("speedRatio", `speedRatio ${speedRatio} is outside 0.1–10; check the transfer and cut speeds.`);
+    throw new CurveError(
+      "speedRatio",
+      `speedRatio ${speedRatio} is outside 0.1–10; check the transfer and cut speeds.`,
+    );
   }
 
   const reference = spec.reference ?? DEFAULT_REFERENCE;
@@ -94,10 +120,16 @@ export function resolveCurve(spec: CurveSpec): ResolvedCurve {
     throw new CurveError("reference", "reference must be { hz, db }.");
   }
   if (!isFiniteNumber(reference.hz) || reference.hz < MIN_REFERENCE_HZ || reference.hz > MAX_REFERENCE_HZ) {
-    throw new CurveError("reference.hz", `Reference frequency must be between ${MIN_REFERENCE_HZ} Hz and ${MAX_REFERENCE_HZ} Hz, got ${String(reference.hz)}.`);
+    throw new CurveError(
+      "reference.hz",
+      `Reference frequency must be between ${MIN_REFERENCE_HZ} Hz and ${MAX_REFERENCE_HZ} Hz, got ${String(reference.hz)}.`,
+    );
   }
   if (!isFiniteNumber(reference.db) || Math.abs(reference.db) > 60) {
-    throw new CurveError("reference.db", `Reference gain must be a finite number of dB within ±60, got ${String(reference.db)}.`);
+    throw new CurveError(
+      "reference.db",
+      `Reference gain must be a finite number of dB within ±60, got ${String(reference.db)}.`,
+    );
   }
 
   const corners = {} as Record<CornerName, ResolvedCorner | null>;
@@ -108,7 +140,10 @@ export function resolveCurve(spec: CurveSpec): ResolvedCurve {
   const { turnover, shelf, highpass } = corners;
 
   if (shelf && !turnover) {
-    throw new CurveError("shelf", "A shelf ends the bass boost that a turnover starts: give a turnover too, or remove the shelf for a flat-bass curve.");
+    throw new CurveError(
+      "shelf",
+      "A shelf ends the bass boost that a turnover starts: give a turnover too, or remove the shelf for a flat-bass curve.",
+    );
   }
   if (shelf && turnover && !(shelf.tauUs > turnover.tauUs)) {
     throw new CurveError(
@@ -138,9 +173,15 @@ export function validateSampleRate(sampleRateHz: number): void {
     throw new CurveError("sampleRateHz", `Sample rate must be a number, got ${String(sampleRateHz)}.`);
   }
   if (sampleRateHz < MIN_SAMPLE_RATE_HZ) {
-    throw new CurveError("sampleRateHz", `Sample rate ${sampleRateHz} Hz cannot carry 20 kHz with a transition band; use at least ${MIN_SAMPLE_RATE_HZ} Hz.`);
+    throw new CurveError(
+      "sampleRateHz",
+      `Sample rate ${sampleRateHz} Hz cannot carry 20 kHz with a transition band; use at least ${MIN_SAMPLE_RATE_HZ} Hz.`,
+    );
   }
   if (sampleRateHz > MAX_SAMPLE_RATE_HZ) {
-    throw new CurveError("sampleRateHz", `Sample rate ${sampleRateHz} Hz is above the supported ${MAX_SAMPLE_RATE_HZ} Hz.`);
+    throw new CurveError(
+      "sampleRateHz",
+      `Sample rate ${sampleRateHz} Hz is above the supported ${MAX_SAMPLE_RATE_HZ} Hz.`,
+    );
   }
 }

@@ -21,7 +21,11 @@ export async function discPackage(discId: string): Promise<{ fileName: string; s
   const record = await discRecord(discId);
   const unapproved = record.disc.sides.filter((s) => s.status !== "approved");
   if (!record.disc.sides.length || unapproved.length) {
-    throw new AppError("conflict", 409, `Only an approved disc is packaged: ${unapproved.length ? `side ${unapproved.map((s) => s.designation).join(", ")} ${unapproved.length > 1 ? "are" : "is"} not approved yet` : "it has no sides"}.`);
+    throw new AppError(
+      "conflict",
+      409,
+      `Only an approved disc is packaged: ${unapproved.length ? `side ${unapproved.map((s) => s.designation).join(", ")} ${unapproved.length > 1 ? "are" : "is"} not approved yet` : "it has no sides"}.`,
+    );
   }
   const base = fileNameBase(record.disc.shelfMark);
   const json = `${JSON.stringify(record, null, 2)}\n`;
@@ -37,7 +41,8 @@ export async function discPackage(discId: string): Promise<{ fileName: string; s
   for (const side of record.disc.sides) {
     const approved = record.approved[side.id];
     const copy = approved ? copies.get(approved.render.id) : undefined;
-    if (!copy?.objectKey || !copy.sha256 || copy.sha256 !== approved?.render.sha256) throw new AppError("conflict", 409, `Side ${side.designation} has no approved access copy.`);
+    if (!copy?.objectKey || !copy.sha256 || copy.sha256 !== approved?.render.sha256)
+      throw new AppError("conflict", 409, `Side ${side.designation} has no approved access copy.`);
     const name = `access/${base}-${side.designation.replace(/[^A-Za-z0-9]+/g, "_")}.wav`;
     const through = new PassThrough();
     zip.addReadStream(through, `${base}/${name}`, { compress: false, size: Number(copy.bytes) });

@@ -86,8 +86,15 @@ export function premisXml(record: PremisRecord): string {
     "xsi:schemaLocation": `${PREMIS_NS} http://www.loc.gov/standards/premis/v3/premis.xsd`,
     version: "3.0",
   });
-  const p = (parent: ReturnType<typeof root.ele>, name: string, text?: string, attrs?: Record<string, string>) => {
-    const safeAttrs = attrs ? Object.fromEntries(Object.entries(attrs).map(([k, v]) => [k, xmlText(v)])) : undefined;
+  const p = (
+    parent: ReturnType<typeof root.ele>,
+    name: string,
+    text?: string,
+    attrs?: Record<string, string>,
+  ) => {
+    const safeAttrs = attrs
+      ? Object.fromEntries(Object.entries(attrs).map(([k, v]) => [k, xmlText(v)]))
+      : undefined;
     const el = parent.ele(PREMIS_NS, `premis:${name}`, safeAttrs);
     if (text !== undefined) el.txt(xmlText(text));
     return el;
@@ -149,7 +156,12 @@ export function premisXml(record: PremisRecord): string {
     p(id, "eventIdentifierType", "Rillbook provenance event");
     p(id, "eventIdentifierValue", e.id);
     const uri = eventTypeUri(e.type);
-    p(ev, "eventType", e.type, uri ? { authority: "eventType", authorityURI: EVENT_TYPE_AUTHORITY, valueURI: uri } : undefined);
+    p(
+      ev,
+      "eventType",
+      e.type,
+      uri ? { authority: "eventType", authorityURI: EVENT_TYPE_AUTHORITY, valueURI: uri } : undefined,
+    );
     p(ev, "eventDateTime", e.at);
     p(p(ev, "eventDetailInformation"), "eventDetail", e.detail);
     const out = p(ev, "eventOutcomeInformation");

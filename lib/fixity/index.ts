@@ -22,16 +22,33 @@ export interface StoredObject {
 }
 
 /** Every stored object of the lab (or of one disc), with the checksum recorded when it was stored. */
-export async function storedObjects(db: Kysely<Database>, only: { discId?: string; one?: { kind: StoredObjectKind; id: string } } = {}): Promise<StoredObject[]> {
+export async function storedObjects(
+  db: Kysely<Database>,
+  only: { discId?: string; one?: { kind: StoredObjectKind; id: string } } = {},
+): Promise<StoredObject[]> {
   const { discId, one } = only;
   let transfers = db
     .selectFrom("transfers as t")
     .innerJoin("sides as s", "s.id", "t.side_id")
-    .select(["t.id", "t.object_key as key", "t.sha256", "t.side_id as sideId", "s.disc_id as discId", "t.created_at as storedAt"]);
+    .select([
+      "t.id",
+      "t.object_key as key",
+      "t.sha256",
+      "t.side_id as sideId",
+      "s.disc_id as discId",
+      "t.created_at as storedAt",
+    ]);
   let renders = db
     .selectFrom("renders as r")
     .innerJoin("sides as s", "s.id", "r.side_id")
-    .select(["r.id", "r.object_key as key", "r.sha256", "r.side_id as sideId", "s.disc_id as discId", "r.finished_at as storedAt"])
+    .select([
+      "r.id",
+      "r.object_key as key",
+      "r.sha256",
+      "r.side_id as sideId",
+      "s.disc_id as discId",
+      "r.finished_at as storedAt",
+    ])
     .where("r.status", "=", "done");
   if (discId) {
     transfers = transfers.where("s.disc_id", "=", discId);
@@ -41,10 +58,21 @@ export async function storedObjects(db: Kysely<Database>, only: { discId?: strin
     transfers = transfers.where("t.id", "=", one.id);
     renders = renders.where("r.id", "=", one.id);
   }
-  const [t, r] = await Promise.all([!one || one.kind === "transfer" ? transfers.execute() : [], !one || one.kind === "render" ? renders.execute() : []]);
+  const [t, r] = await Promise.all([
+    !one || one.kind === "transfer" ? transfers.execute() : [],
+    !one || one.kind === "render" ? renders.execute() : [],
+  ]);
   return [
     ...t.map((x) => ({ kind: "transfer" as const, ...x })),
-    ...r.map((x) => ({ kind: "render" as const, id: x.id, key: x.key!, sha256: x.sha256!, sideId: x.sideId, discId: x.discId, storedAt: x.storedAt ?? new Date(0) })),
+    ...r.map((x) => ({
+      kind: "render" as const,
+      id: x.id,
+      key: x.key!,
+      sha256: x.sha256!,
+      sideId: x.sideId,
+      discId: x.discId,
+      storedAt: x.storedAt ?? new Date(0),
+    })),
   ];
 }
 
@@ -66,13 +94,21 @@ export async function dueObjects(db: Kysely<Database>, cycleDays: number): Promi
 }
 
 export async function fixityCycleDays(db: Kysely<Database>): Promise<number> {
-  const row = await db.selectFrom("lab_settings").select("value").where("key", "=", "fixity_cycle_days").executeTakeFirst();
+  const row = await db
+    .selectFrom("lab_settings")
+    .select("value")
+    .where("key", "=", "fixity_cycle_days")
+    .executeTakeFirst();
   const n = Number(row?.value ?? 30);
   return Number.isFinite(n) && n > 0 ? n : 30;
 }
 
 /** One stored object by kind and id (a check reads only its own row, not the lab's list). */
-async function findObject(db: Kysely<Database>, kind: StoredObjectKind, id: string): Promise<StoredObject | null> {
+async function findObject(
+  db: Kysely<Database>,
+  kind: StoredObjectKind,
+  id: string,
+): Promise<StoredObject | null> {
   const [found] = await storedObjects(db, { one: { kind, id } });
   return found ?? null;
 }
@@ -82,7 +118,11 @@ async function findObject(db: Kysely<Database>, kind: StoredObjectKind, id: stri
  * recorded when it was stored, and records the result and its event together. A
  * failure also mails every active curator through the outbox.
  */
-export async function checkObject(db: Kysely<Database>, kind: StoredObjectKind, id: string): Promise<FixityOutcome> {
+export async function checkObject(
+  db: Kysely<Database>,
+  kind: StoredObjectKind,
+  id: string,
+): Promise<FixityOutcome> {
   const obj = await findObject(db, kind, id);
   if (!obj) return "missing";
   let outcome: FixityOutcome;
@@ -96,26 +136,58 @@ export async function checkObject(db: Kysely<Database>, kind: StoredObjectKind, 
     outcome = h.sha256 === obj.sha256 ? "pass" : "mismatch";
     if (outcome === "mismatch") detail = `stored ${obj.sha256}, read back ${h.sha256}`;
   } catch (err) {
-    const missing = err instanceof NoSuchKey || err instanceof NotFound || (err as { name?: string }).name === "NoSuchKey" || (err as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404;
+    const missing =
+      err instanceof NoSuchKey ||
+      err instanceof NotFound ||
+      (err as { name?: string }).name === "NoSuchKey" ||
+      (err as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404;
     outcome = missing ? "missing" : "error";
     detail = missing ? "the object is not in the bucket" : err instanceof Error ? err.message : String(err);
   }
   await db.transaction().execute(async (trx) => {
     await trx
       .insertInto("fixity_checks")
-      .values({ object_kind: kind, object_id: id, object_key: obj.key, side_id: obj.sideId, expected_sha256: obj.sha256, actual_sha256: actual, bytes, outcome, detail })
+      .values({
+        object_kind: kind,
+        object_id: id,
+        object_key: obj.key,
+        side_id: obj.sideId,
+        expected_sha256: obj.sha256,
+        actual_sha256: actual,
+        bytes,
+        outcome,
+        detail,
+      })
       .execute();
-    const side = await trx.selectFrom("sides as s").innerJoin("discs as d", "d.id", "s.disc_id").select(["s.designation", "d.shelf_mark"]).where("s.id", "=", obj.sideId).executeTakeFirstOrThrow();
+    const side = await trx
+      .selectFrom("sides as s")
+      .innerJoin("discs as d", "d.id", "s.disc_id")
+      .select(["s.designation", "d.shelf_mark"])
+      .where("s.id", "=", obj.sideId)
+      .executeTakeFirstOrThrow();
     await appendEvent(trx, {
       actorId: null,
       kind: "side.fixity_checked",
       subjectType: "side",
       subjectId: obj.sideId,
       discId: obj.discId,
-      payload: { side: side.designation, object: { kind, id, key: obj.key }, expectedSha256: obj.sha256, actualSha256: actual, bytes, outcome, ...(detail ? { detail } : {}) },
+      payload: {
+        side: side.designation,
+        object: { kind, id, key: obj.key },
+        expectedSha256: obj.sha256,
+        actualSha256: actual,
+        bytes,
+        outcome,
+        ...(detail ? { detail } : {}),
+      },
     });
     if (outcome !== "pass") {
-      const curators = await trx.selectFrom("users").select("email").where("role", "=", "curator").where("active", "=", true).execute();
+      const curators = await trx
+        .selectFrom("users")
+        .select("email")
+        .where("role", "=", "curator")
+        .where("active", "=", true)
+        .execute();
       const what = kind === "transfer" ? "flat transfer" : "access copy";
       for (const c of curators) {
         await enqueueMail(trx, {

@@ -15,7 +15,8 @@ export async function requestDiscFixity(input: unknown): Promise<{ queued: numbe
   if (!disc) throw new AppError("not_found", 404, "No such disc.");
   const askedAt = Date.now();
   const objects = await storedObjects(db, { discId });
-  for (const o of objects) await sendJob(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
+  for (const o of objects)
+    await sendJob(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
   return { queued: objects.length, askedAt };
 }
 
@@ -25,10 +26,28 @@ export async function openFixityAlerts() {
     .selectFrom("fixity_checks as f")
     .innerJoin("sides as s", "s.id", "f.side_id")
     .innerJoin("discs as d", "d.id", "s.disc_id")
-    .select(["f.id", "f.object_kind as objectKind", "f.object_id as objectId", "f.object_key as objectKey", "f.outcome", "f.detail", "f.checked_at as checkedAt", "s.designation", "d.id as discId", "d.shelf_mark as shelfMark"])
+    .select([
+      "f.id",
+      "f.object_kind as objectKind",
+      "f.object_id as objectId",
+      "f.object_key as objectKey",
+      "f.outcome",
+      "f.detail",
+      "f.checked_at as checkedAt",
+      "s.designation",
+      "d.id as discId",
+      "d.shelf_mark as shelfMark",
+    ])
     .where("f.outcome", "<>", "pass")
     .where(({ not, exists, selectFrom }) =>
-      not(exists(selectFrom("fixity_checks as later").select("later.id").whereRef("later.object_id", "=", "f.object_id").whereRef("later.checked_at", ">", "f.checked_at"))),
+      not(
+        exists(
+          selectFrom("fixity_checks as later")
+            .select("later.id")
+            .whereRef("later.object_id", "=", "f.object_id")
+            .whereRef("later.checked_at", ">", "f.checked_at"),
+        ),
+      ),
     )
     .orderBy("f.checked_at", "desc")
     .execute();

@@ -1,14 +1,22 @@
 import { toAppError } from "./errors";
 
 /** What a server action hands back to its form: a message and the field errors to show beside fields. */
-export type ActionState = { ok: boolean; message?: string; fields?: Record<string, string[]>; values?: Record<string, string> } | null;
+export type ActionState = {
+  ok: boolean;
+  message?: string;
+  fields?: Record<string, string[]>;
+  values?: Record<string, string>;
+} | null;
 
 /**
  * Runs a server action's work and turns errors into a state for the form. `keep` holds
  * the non-secret values to put back into the fields after a refusal (React resets a
  * form after its action runs).
  */
-export async function runAction(fn: () => Promise<string | void>, keep?: Record<string, string>): Promise<ActionState> {
+export async function runAction(
+  fn: () => Promise<string | void>,
+  keep?: Record<string, string>,
+): Promise<ActionState> {
   try {
     const message = await fn();
     return { ok: true, message: message ?? undefined };

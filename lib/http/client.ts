@@ -2,14 +2,28 @@ import { AppError, type ErrorCode } from "./errors";
 
 /** Fetches JSON from the app's API; a failed answer comes back as the same AppError the server threw. */
 export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> {
-  const res = await fetch(url, { ...init, headers: { accept: "application/json", ...(init?.body ? { "content-type": "application/json" } : {}), ...init?.headers } });
+  const res = await fetch(url, {
+    ...init,
+    headers: {
+      accept: "application/json",
+      ...(init?.body ? { "content-type": "application/json" } : {}),
+      ...init?.headers,
+    },
+  });
   const body = await res.json().catch(() => null);
   if (!res.ok) {
-    const e = body?.error as { code?: ErrorCode; message?: string; fields?: Record<string, string[]>; details?: unknown } | undefined;
+    const e = body?.error as
+      | { code?: ErrorCode; message?: string; fields?: Record<string, string[]>; details?: unknown }
+      | undefined;
     const message = e?.message ?? `The server answered ${res.status}.`;
     // A read (a list's filters from the address, say) has no form to show field errors beside: name them in the message.
     const read = (init?.method ?? "GET").toUpperCase() === "GET";
-    const said = read && e?.fields ? `${message} ${Object.entries(e.fields).map(([field, msgs]) => `${field}: ${msgs.join(" ")}`).join(" ")}` : message;
+    const said =
+      read && e?.fields
+        ? `${message} ${Object.entries(e.fields)
+            .map(([field, msgs]) => `${field}: ${msgs.join(" ")}`)
+            .join(" ")}`
+        : message;
     throw new AppError(e?.code ?? "internal", res.status, said, e?.fields, e?.details);
   }
   return body as T;

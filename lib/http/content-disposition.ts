@@ -32,7 +32,12 @@ function limitLength(name: string, max: number): string {
   if (chars.length <= max) return name;
   const dot = name.lastIndexOf(".");
   const ext = dot > 0 && name.length - dot <= 10 ? name.slice(dot) : "";
-  return (Array.from(name.slice(0, name.length - ext.length)).slice(0, max - Array.from(ext).length).join("").trimEnd() + ext).trim();
+  return (
+    Array.from(name.slice(0, name.length - ext.length))
+      .slice(0, max - Array.from(ext).length)
+      .join("")
+      .trimEnd() + ext
+  ).trim();
 }
 
 /**

@@ -1,7 +1,11 @@
 // The Content-Security-Policy of Rillbook's pages and API answers (set by proxy.ts).
 
 /** The bucket's origins as the browser meets them in presigned URLs (path-style, or the bucket as a subdomain). */
-export function bucketOrigins(opts: { s3Endpoint: string; bucket: string; forcePathStyle: boolean }): string[] {
+export function bucketOrigins(opts: {
+  s3Endpoint: string;
+  bucket: string;
+  forcePathStyle: boolean;
+}): string[] {
   const endpoint = new URL(opts.s3Endpoint);
   if (opts.forcePathStyle) return [endpoint.origin];
   return [endpoint.origin, `${endpoint.protocol}//${opts.bucket}.${endpoint.host}`];
@@ -18,7 +22,12 @@ export function bucketOrigins(opts: { s3Endpoint: string; bucket: string; forceP
  * the approve, return, role and deactivate buttons. React's development build evaluates
  * strings, so 'unsafe-eval' is there under `next dev` only.
  */
-export function pagePolicy(opts: { nonce: string; development: boolean; bucketOrigins: string[]; https: boolean }): string {
+export function pagePolicy(opts: {
+  nonce: string;
+  development: boolean;
+  bucketOrigins: string[];
+  https: boolean;
+}): string {
   const bucket = opts.bucketOrigins.join(" ");
   const directives = [
     "default-src 'self'",

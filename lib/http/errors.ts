@@ -30,7 +30,14 @@ export class AppError extends Error {
   }
 
   toJSON() {
-    return { error: { code: this.code, message: this.message, ...(this.fields ? { fields: this.fields } : {}), ...(this.details !== undefined ? { details: this.details } : {}) } };
+    return {
+      error: {
+        code: this.code,
+        message: this.message,
+        ...(this.fields ? { fields: this.fields } : {}),
+        ...(this.details !== undefined ? { details: this.details } : {}),
+      },
+    };
   }
 }
 
@@ -59,14 +66,24 @@ export function isDatabaseUnavailable(err: unknown): boolean {
   if (typeof err !== "object" || err === null) return false;
   const e = err as { code?: unknown; message?: unknown; errors?: unknown };
   const code = typeof e.code === "string" ? e.code : "";
-  if (["ECONNREFUSED", "ECONNRESET", "EPIPE", "ETIMEDOUT", "57P01", "57P02", "57P03"].includes(code) || code.startsWith("08")) return true;
+  if (
+    ["ECONNREFUSED", "ECONNRESET", "EPIPE", "ETIMEDOUT", "57P01", "57P02", "57P03"].includes(code) ||
+    code.startsWith("08")
+  )
+    return true;
   const message = typeof e.message === "string" ? e.message : "";
-  if (/Connection terminated|terminating connection due to administrator command|the database system is (starting up|shutting down)|Client has encountered a connection error/i.test(message)) return true;
+  if (
+    /Connection terminated|terminating connection due to administrator command|the database system is (starting up|shutting down)|Client has encountered a connection error/i.test(
+      message,
+    )
+  )
+    return true;
   // Node reports a refused connection to every address of a host as an AggregateError.
   return Array.isArray(e.errors) && e.errors.some(isDatabaseUnavailable);
 }
 
-export const databaseUnavailableMessage = "The lab's database is unavailable just now, so nothing was read or changed. Try again in a minute; if it lasts, tell the lab's admin.";
+export const databaseUnavailableMessage =
+  "The lab's database is unavailable just now, so nothing was read or changed. Try again in a minute; if it lasts, tell the lab's admin.";
 
 export function toAppError(err: unknown): AppError {
   if (err instanceof AppError) return err;
@@ -77,7 +94,13 @@ export function toAppError(err: unknown): AppError {
   }
   // A backstop: inputs are checked where they come in (lib/validation/text.ts); text that
   // slipped past is still the sender's mistake, not the server's.
-  if (isNulRefusedByDatabase(err)) return new AppError("invalid", 422, "Some text holds a NUL character (U+0000), which the record cannot keep: remove it.", { _: ["Text holds a NUL character."] });
+  if (isNulRefusedByDatabase(err))
+    return new AppError(
+      "invalid",
+      422,
+      "Some text holds a NUL character (U+0000), which the record cannot keep: remove it.",
+      { _: ["Text holds a NUL character."] },
+    );
   console.error("[rillbook] unexpected error:", err);
   return new AppError("internal", 500, "Something went wrong on the server. The error has been logged.");
 }

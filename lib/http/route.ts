@@ -21,7 +21,8 @@ const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 async function paramsOf(context: Context | undefined): Promise<Params> {
   const params = context?.params ? await context.params : {};
   for (const value of Object.values(params)) {
-    if (typeof value === "string" && !uuid.test(value)) throw new AppError("not_found", 404, "No such record.");
+    if (typeof value === "string" && !uuid.test(value))
+      throw new AppError("not_found", 404, "No such record.");
   }
   return params;
 }
@@ -68,7 +69,11 @@ async function checkInput(req: NextRequest, options: RouteOptions): Promise<void
     return;
   }
   const wanted = accepts.join(" or ");
-  throw new AppError("unsupported_media_type", 415, `This request's body must be ${wanted}${type ? `, not ${type}` : " with a Content-Type header saying so"}.`);
+  throw new AppError(
+    "unsupported_media_type",
+    415,
+    `This request's body must be ${wanted}${type ? `, not ${type}` : " with a Content-Type header saying so"}.`,
+  );
 }
 
 /** API answers carry personal data: no browser or proxy may keep a copy (unless the route said otherwise). */
@@ -95,7 +100,11 @@ function failure(err: unknown): Response {
  * anything else runs, then the body's type and text; errors become JSON answers (422 with
  * field errors, 401, 403, 404, 415 …, and 500 without a stack), all marked no-store.
  */
-export function route(key: RouteKey, fn: (req: NextRequest, ctx: { params: Params; user: SessionUser }) => Promise<unknown>, options: RouteOptions = {}) {
+export function route(
+  key: RouteKey,
+  fn: (req: NextRequest, ctx: { params: Params; user: SessionUser }) => Promise<unknown>,
+  options: RouteOptions = {},
+) {
   const action = routeAccess[key];
   if (action === "public") throw new Error(`${key} is public: use publicRoute`);
   return async (req: NextRequest, context: Context): Promise<Response> => {
@@ -111,7 +120,11 @@ export function route(key: RouteKey, fn: (req: NextRequest, ctx: { params: Param
 }
 
 /** A route anyone may call (health, sign-in plumbing): still listed in route-access.ts. */
-export function publicRoute(key: RouteKey, fn: (req: NextRequest, ctx: { params: Params }) => Promise<unknown>, options: RouteOptions = {}) {
+export function publicRoute(
+  key: RouteKey,
+  fn: (req: NextRequest, ctx: { params: Params }) => Promise<unknown>,
+  options: RouteOptions = {},
+) {
   if (routeAccess[key] !== "public") throw new Error(`${key} is not public in route-access.ts`);
   return async (req: NextRequest, context: Context): Promise<Response> => {
     try {

@@ -36,13 +36,15 @@ export function checkSameOrigin(headers: Headers, appOrigin: string): OriginVerd
   const site = headers.get("sec-fetch-site");
   if (site !== null) return site === "same-origin" ? { ok: true } : { ok: false, reason: "cross-site" };
   const referer = headers.get("referer");
-  if (referer !== null) return originOf(referer) === appOrigin ? { ok: true } : { ok: false, reason: "cross-site" };
+  if (referer !== null)
+    return originOf(referer) === appOrigin ? { ok: true } : { ok: false, reason: "cross-site" };
   return { ok: false, reason: "unknown" };
 }
 
 export const originMessages = {
   "cross-site": "This request came from another site, so it was refused. Use Rillbook's own pages.",
-  unknown: "This request did not say where it came from (no Origin, Sec-Fetch-Site or Referer header), so it was refused. Scripts must send the header Origin with the app's address.",
+  unknown:
+    "This request did not say where it came from (no Origin, Sec-Fetch-Site or Referer header), so it was refused. Scripts must send the header Origin with the app's address.",
 } as const;
 
 /** The media type of a content-type header without its parameters, lower-cased ("application/json"). */

@@ -9,7 +9,13 @@ import { PutObjectCommand } from "@aws-sdk/client-s3";
 import { type Kysely, sql } from "kysely";
 import type { Database } from "../../db/types";
 import { readWavHeader, renderAccessCopy } from "../audio";
-import { buildAnalogModel, designIirFromModel, designRenderFilterFromModel, type ResolvedCurve, resolveCurve } from "../curves";
+import {
+  buildAnalogModel,
+  designIirFromModel,
+  designRenderFilterFromModel,
+  type ResolvedCurve,
+  resolveCurve,
+} from "../curves";
 import { env } from "../env";
 import { appendEvent } from "../provenance";
 import { renderFinished } from "../sides/lifecycle";
@@ -72,28 +78,70 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
 
   // Take the lease: only a queued render, or a running one whose lease went stale (its
   // worker died before the sweep came by). A render another worker holds is left alone.
-  const { RENDER_HEARTBEAT_SECONDS: heartbeatSeconds, RENDER_LEASE_STALE_SECONDS: staleSeconds } = leaseTimes();
+  const { RENDER_HEARTBEAT_SECONDS: heartbeatSeconds, RENDER_LEASE_STALE_SECONDS: staleSeconds } =
+    leaseTimes();
   const owner = workerIdentity;
   const taken = await db
     .updateTable("renders")
-    .set({ status: "running", started_at: new Date(), heartbeat_at: new Date(), lease_owner: owner, progress: 0, error: null })
+    .set({
+      status: "running",
+      started_at: new Date(),
+      heartbeat_at: new Date(),
+      lease_owner: owner,
+      progress: 0,
+      error: null,
+    })
     .where("id", "=", renderId)
-    .where((eb) => eb.or([eb("status", "=", "queued"), eb.and([eb("status", "=", "running"), eb(sql<Date>`coalesce(heartbeat_at, started_at, created_at)`, "<", sql<Date>`now() - make_interval(secs => ${staleSeconds})`)])]))
+    .where((eb) =>
+      eb.or([
+        eb("status", "=", "queued"),
+        eb.and([
+          eb("status", "=", "running"),
+          eb(
+            sql<Date>`coalesce(heartbeat_at, started_at, created_at)`,
+            "<",
+            sql<Date>`now() - make_interval(secs => ${staleSeconds})`,
+          ),
+        ]),
+      ]),
+    )
     .executeTakeFirst();
   if (Number(taken.numUpdatedRows) === 0) return "skipped";
-  const held = () => db.selectFrom("renders").select("id").where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).executeTakeFirst();
+  const held = () =>
+    db
+      .selectFrom("renders")
+      .select("id")
+      .where("id", "=", renderId)
+      .where("status", "=", "running")
+      .where("lease_owner", "=", owner)
+      .executeTakeFirst();
   // The lease is renewed while the render runs; a lost lease (cancelled, or handed back
   // after this worker stalled) is noticed here and before anything is stored.
   const tmp = await fs.mkdtemp(path.join(os.tmpdir(), renderTmpPrefix()));
   const outputPath = path.join(tmp, "access.wav");
   let leaseLost = false;
   const heartbeat = setInterval(() => {
-    db.updateTable("renders").set({ heartbeat_at: new Date() }).where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).executeTakeFirst()
-      .then((r) => { if (Number(r.numUpdatedRows) === 0) leaseLost = true; })
-      .catch((err) => console.error(`[render ${renderId}] could not renew the lease: ${err instanceof Error ? err.message : String(err)}`));
+    db.updateTable("renders")
+      .set({ heartbeat_at: new Date() })
+      .where("id", "=", renderId)
+      .where("status", "=", "running")
+      .where("lease_owner", "=", owner)
+      .executeTakeFirst()
+      .then((r) => {
+        if (Number(r.numUpdatedRows) === 0) leaseLost = true;
+      })
+      .catch((err) =>
+        console.error(
+          `[render ${renderId}] could not renew the lease: ${err instanceof Error ? err.message : String(err)}`,
+        ),
+      );
   }, heartbeatSeconds * 1000);
   try {
-    const spec = parseStored(storedCurveSpecSchema, job.spec, { table: "curve_choices", id: job.choiceId, column: "spec" });
+    const spec = parseStored(storedCurveSpecSchema, job.spec, {
+      table: "curve_choices",
+      id: job.choiceId,
+      column: "spec",
+    });
     // One resolved curve and model for the render filter, the coding history and the recorded sections.
     const curve = resolveCurve(spec);
     const model = buildAnalogModel(curve);
@@ -129,7 +177,13 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
         const t = Date.now();
         if (t - lastWrite < 500 && fraction < 1) return;
         lastWrite = t;
-        db.updateTable("renders").set({ progress: fraction }).where("id", "=", renderId).where("status", "=", "running").where("lease_owner", "=", owner).execute().catch(() => undefined);
+        db.updateTable("renders")
+          .set({ progress: fraction })
+          .where("id", "=", renderId)
+          .where("status", "=", "running")
+          .where("lease_owner", "=", owner)
+          .execute()
+          .catch(() => undefined);
       },
     });
     // The key is the server's own, the same on every attempt. The access copy goes up in
@@ -137,12 +191,22 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     // body arrived, so a worker killed during the upload leaves no partial object.
     const key = `access/${job.sideId}/${renderId}.wav`;
     if (leaseLost || !(await held())) return "skipped";
-    await s3().send(new PutObjectCommand({ Bucket: env().S3_BUCKET, Key: key, Body: createReadStream(outputPath), ContentLength: result.outputBytes, ContentType: "audio/wav" }));
+    await s3().send(
+      new PutObjectCommand({
+        Bucket: env().S3_BUCKET,
+        Key: key,
+        Body: createReadStream(outputPath),
+        ContentLength: result.outputBytes,
+        ContentType: "audio/wav",
+      }),
+    );
     const iir = designIirFromModel(model, job.sampleRateHz);
     const filterRecord: StoredRenderFilter = {
       kind: filter.kind,
       taps: filter.taps.length,
-      tapsSha256: createHash("sha256").update(Buffer.from(Float64Array.from(filter.taps).buffer)).digest("hex"),
+      tapsSha256: createHash("sha256")
+        .update(Buffer.from(Float64Array.from(filter.taps).buffer))
+        .digest("hex"),
       delaySamples: filter.delaySamples,
       maxErrorDb: filter.maxErrorDb,
       maxPhaseErrorDeg: filter.maxPhaseErrorDeg,
@@ -158,7 +222,18 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       // Recorded once: only by the worker still holding the running render's lease.
       const finished = await trx
         .updateTable("renders")
-        .set({ status: "done", progress: 1, object_key: key, sha256: result.sha256, bytes: result.outputBytes, trim_db: result.trimDb, peak_dbfs: result.peakDbfs, filter: JSON.stringify(filterRecord), finished_at: new Date(), lease_owner: null })
+        .set({
+          status: "done",
+          progress: 1,
+          object_key: key,
+          sha256: result.sha256,
+          bytes: result.outputBytes,
+          trim_db: result.trimDb,
+          peak_dbfs: result.peakDbfs,
+          filter: JSON.stringify(filterRecord),
+          finished_at: new Date(),
+          lease_owner: null,
+        })
         .where("id", "=", renderId)
         .where("status", "=", "running")
         .where("lease_owner", "=", owner)
@@ -175,7 +250,15 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
           renderId,
           transfer: { id: job.transferId, sha256: job.transferSha256 },
           curveChoiceId: job.choiceId,
-          accessCopy: { objectKey: key, sha256: result.sha256, bytes: result.outputBytes, container: result.container, bitDepth: job.bitDepth, sampleRateHz: outputRateHz, channelMode: job.channelMode },
+          accessCopy: {
+            objectKey: key,
+            sha256: result.sha256,
+            bytes: result.outputBytes,
+            container: result.container,
+            bitDepth: job.bitDepth,
+            sampleRateHz: outputRateHz,
+            channelMode: job.channelMode,
+          },
           description,
           trimDb: result.trimDb,
           peakDbfs: result.peakDbfs,
@@ -184,7 +267,11 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
         },
       });
       // Current only if it was made from the side's current transfer and curve; otherwise superseded (lib/sides).
-      await renderFinished(trx, { id: job.requestedBy, role: null }, { id: renderId, sideId: job.sideId, transferId: job.transferId, curveChoiceId: job.choiceId });
+      await renderFinished(
+        trx,
+        { id: job.requestedBy, role: null },
+        { id: renderId, sideId: job.sideId, transferId: job.transferId, curveChoiceId: job.choiceId },
+      );
       return true;
     });
     return recorded ? "done" : "skipped";
@@ -192,7 +279,12 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
     const message = err instanceof Error ? err.message : String(err);
     await db
       .updateTable("renders")
-      .set({ status: ctx.finalAttempt ? "failed" : "queued", lease_owner: null, error: ctx.finalAttempt ? message : `${message} (will retry)`, ...(ctx.finalAttempt ? { finished_at: new Date() } : {}) })
+      .set({
+        status: ctx.finalAttempt ? "failed" : "queued",
+        lease_owner: null,
+        error: ctx.finalAttempt ? message : `${message} (will retry)`,
+        ...(ctx.finalAttempt ? { finished_at: new Date() } : {}),
+      })
       .where("id", "=", renderId)
       .where("status", "=", "running")
       .where("lease_owner", "=", owner)

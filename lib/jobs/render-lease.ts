@@ -36,7 +36,11 @@ export function leaseTimes(source: Record<string, string | undefined> = process.
 export const workerIdentity = `${os.hostname()}:${process.pid}:${randomBytes(4).toString("hex")}`;
 
 /** True when a running render's lease (or, before any heartbeat, its start) is older than the stale limit. */
-export function leaseIsStale(r: { status: string; heartbeatAt: Date | string | null; startedAt: Date | string | null }, now = Date.now(), staleSeconds = leaseTimes().RENDER_LEASE_STALE_SECONDS): boolean {
+export function leaseIsStale(
+  r: { status: string; heartbeatAt: Date | string | null; startedAt: Date | string | null },
+  now = Date.now(),
+  staleSeconds = leaseTimes().RENDER_LEASE_STALE_SECONDS,
+): boolean {
   if (r.status !== "running") return false;
   const last = r.heartbeatAt ?? r.startedAt;
   if (!last) return false;
@@ -52,9 +56,17 @@ export function leaseIsStale(r: { status: string; heartbeatAt: Date | string | n
 export async function releaseStaleRenders(db: Kysely<Database>, staleSeconds: number): Promise<string[]> {
   const rows = await db
     .updateTable("renders")
-    .set({ status: "queued", lease_owner: null, heartbeat_at: null, progress: 0, error: "The worker running this render stopped; it was handed back to the queue." })
+    .set({
+      status: "queued",
+      lease_owner: null,
+      heartbeat_at: null,
+      progress: 0,
+      error: "The worker running this render stopped; it was handed back to the queue.",
+    })
     .where("status", "=", "running")
-    .where(sql<boolean>`coalesce(heartbeat_at, started_at, created_at) < now() - make_interval(secs => ${staleSeconds})`)
+    .where(
+      sql<boolean>`coalesce(heartbeat_at, started_at, created_at) < now() - make_interval(secs => ${staleSeconds})`,
+    )
     .returning("id")
     .execute();
   return rows.map((r) => r.id);
@@ -93,7 +105,11 @@ export async function removeStaleRenderTmp(olderThanMs = 3600_000, now = Date.no
       if (!ownerGone) {
         // The newest of the folder and what it holds: a long render keeps writing its file.
         let newest = (await fs.stat(full)).mtimeMs;
-        for (const f of await fs.readdir(full)) newest = Math.max(newest, (await fs.stat(path.join(full, f)).catch(() => ({ mtimeMs: 0 }))).mtimeMs);
+        for (const f of await fs.readdir(full))
+          newest = Math.max(
+            newest,
+            (await fs.stat(path.join(full, f)).catch(() => ({ mtimeMs: 0 }))).mtimeMs,
+          );
         if (now - newest < olderThanMs) continue;
       }
       await fs.rm(full, { recursive: true, force: true });

@@ -19,7 +19,12 @@ function boss(): Promise<PgBoss> {
 }
 
 /** Queues a job inside the caller's transaction: the job exists exactly when the change that asked for it does. */
-export async function sendInTransaction(trx: Transaction<Database>, queue: string, data: object, options: PgBoss.SendOptions = {}): Promise<string> {
+export async function sendInTransaction(
+  trx: Transaction<Database>,
+  queue: string,
+  data: object,
+  options: PgBoss.SendOptions = {},
+): Promise<string> {
   const b = await boss();
   const id = await b.send(queue, data, {
     ...options,
@@ -35,6 +40,10 @@ export async function sendInTransaction(trx: Transaction<Database>, queue: strin
 }
 
 /** Queues a job outside any transaction (e.g. a fixity check somebody asked for now). */
-export async function sendJob(queue: string, data: object, options: PgBoss.SendOptions = {}): Promise<string | null> {
+export async function sendJob(
+  queue: string,
+  data: object,
+  options: PgBoss.SendOptions = {},
+): Promise<string | null> {
   return (await boss()).send(queue, data, options);
 }

@@ -13,7 +13,10 @@ export interface OutgoingMail {
  * Queues a message in the outbox inside the caller's transaction, so the mail exists
  * exactly when the change that caused it does. The worker sends it (deliverDueMail).
  */
-export async function enqueueMail(trx: Transaction<Database> | Kysely<Database>, mail: OutgoingMail): Promise<string> {
+export async function enqueueMail(
+  trx: Transaction<Database> | Kysely<Database>,
+  mail: OutgoingMail,
+): Promise<string> {
   const row = await trx
     .insertInto("outbox")
     .values({ to_address: mail.to, subject: mail.subject, body_text: mail.text })
@@ -49,15 +52,15 @@ export async function deliverDueMail(
   let failed = 0;
   for (let i = 0; i < limit; i++) {
     const outcome = await db.transaction().execute(async (trx) => {
-      let q = trx.selectFrom("outbox").select(["id", "to_address", "subject", "body_text", "attempts"]).where("status", "=", "queued");
-      q = opts.sendNow ? q.where("id", "in", opts.sendNow) : q.where("next_attempt_at", "<=", sql<Date>`now()`);
+      let q = trx
+        .selectFrom("outbox")
+        .select(["id", "to_address", "subject", "body_text", "attempts"])
+        .where("status", "=", "queued");
+      q = opts.sendNow
+        ? q.where("id", "in", opts.sendNow)
+        : q.where("next_attempt_at", "<=", sql<Date>`now()`);
       if (tried.length) q = q.where("id", "not in", tried);
-      const msg = await q
-        .orderBy("created_at")
-        .limit(1)
-        .forUpdate()
-        .skipLocked()
-        .executeTakeFirst();
+      const msg = await q.orderBy("created_at").limit(1).forUpdate().skipLocked().executeTakeFirst();
       if (!msg) return "none" as const;
       tried.push(msg.id);
       try {

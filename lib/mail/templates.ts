@@ -1,6 +1,13 @@
 import type { OutgoingMail } from "./outbox";
 
-export function invitationMail(opts: { to: string; labName: string; roleLabel: string; inviterName: string; link: string; expiresAt: Date }): OutgoingMail {
+export function invitationMail(opts: {
+  to: string;
+  labName: string;
+  roleLabel: string;
+  inviterName: string;
+  link: string;
+  expiresAt: Date;
+}): OutgoingMail {
   return {
     to: opts.to,
     subject: `You are invited to ${opts.labName} on Rillbook`,
@@ -16,7 +23,12 @@ export function invitationMail(opts: { to: string; labName: string; roleLabel: s
   };
 }
 
-export function passwordResetMail(opts: { to: string; labName: string; link: string; expiresAt: Date }): OutgoingMail {
+export function passwordResetMail(opts: {
+  to: string;
+  labName: string;
+  link: string;
+  expiresAt: Date;
+}): OutgoingMail {
   return {
     to: opts.to,
     subject: `Choose a new Rillbook password for ${opts.labName}`,

@@ -24,23 +24,44 @@ async function activeAdminCount(trx: Transaction<Database>): Promise<number> {
  */
 async function lockPerson(trx: Transaction<Database>, userId: string) {
   await sql`LOCK TABLE users IN SHARE ROW EXCLUSIVE MODE`.execute(trx);
-  const user = await trx.selectFrom("users").select(["id", "email", "role", "active"]).where("id", "=", userId).executeTakeFirst();
+  const user = await trx
+    .selectFrom("users")
+    .select(["id", "email", "role", "active"])
+    .where("id", "=", userId)
+    .executeTakeFirst();
   if (!user) throw new AppError("not_found", 404, "No such person.");
   return user;
 }
 
-export async function changeRole(actor: SessionUser, input: { userId: unknown; role: unknown }): Promise<void> {
+export async function changeRole(
+  actor: SessionUser,
+  input: { userId: unknown; role: unknown },
+): Promise<void> {
   const { userId, role } = changeRoleSchema.parse(input);
   await db.transaction().execute(async (trx) => {
     const user = await lockPerson(trx, userId);
     if (user.role === role) return;
     if (user.role === "admin" && user.active && (await activeAdminCount(trx)) <= 1) {
-      throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
+      throw new AppError(
+        "conflict",
+        409,
+        "This is the lab's only active admin: make someone else admin first.",
+      );
     }
-    await trx.updateTable("users").set({ role, updated_at: sql`now()` }).where("id", "=", userId).execute();
+    await trx
+      .updateTable("users")
+      .set({ role, updated_at: sql`now()` })
+      .where("id", "=", userId)
+      .execute();
     // The person signs in again under the new role: no session keeps the old one's pages open.
     await endSessions(trx, userId);
-    await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: userId, subjectEmail: user.email, kind: "role_changed", detail: { from: user.role, to: role } });
+    await recordPeopleChange(trx, {
+      actorId: actor.id,
+      subjectUserId: userId,
+      subjectEmail: user.email,
+      kind: "role_changed",
+      detail: { from: user.role, to: role },
+    });
   });
 }
 
@@ -48,18 +69,35 @@ export async function changeRole(actor: SessionUser, input: { userId: unknown; r
  * Deactivation takes effect at the person's next request: every check reads `active` afresh,
  * and the person's sessions end, so a reactivation does not bring an old cookie back to life.
  */
-export async function setActive(actor: SessionUser, input: { userId: unknown; active: unknown }): Promise<void> {
+export async function setActive(
+  actor: SessionUser,
+  input: { userId: unknown; active: unknown },
+): Promise<void> {
   const { userId, active } = setActiveSchema.parse(input);
   await db.transaction().execute(async (trx) => {
     const user = await lockPerson(trx, userId);
     if (user.active === active) return;
-    if (!active && userId === actor.id) throw new AppError("conflict", 409, "You cannot deactivate your own account.");
+    if (!active && userId === actor.id)
+      throw new AppError("conflict", 409, "You cannot deactivate your own account.");
     if (!active && user.role === "admin" && (await activeAdminCount(trx)) <= 1) {
-      throw new AppError("conflict", 409, "This is the lab's only active admin: make someone else admin first.");
+      throw new AppError(
+        "conflict",
+        409,
+        "This is the lab's only active admin: make someone else admin first.",
+      );
     }
-    await trx.updateTable("users").set({ active, updated_at: sql`now()` }).where("id", "=", userId).execute();
+    await trx
+      .updateTable("users")
+      .set({ active, updated_at: sql`now()` })
+      .where("id", "=", userId)
+      .execute();
     await endSessions(trx, userId);
-    await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: userId, subjectEmail: user.email, kind: active ? "reactivated" : "deactivated" });
+    await recordPeopleChange(trx, {
+      actorId: actor.id,
+      subjectUserId: userId,
+      subjectEmail: user.email,
+      kind: active ? "reactivated" : "deactivated",
+    });
   });
 }
 
@@ -116,6 +154,13 @@ export async function listPeopleChanges(limit = 100) {
     .execute();
   return rows.map((r) => {
     const { email, ...detail } = r.payload as { email: string } & Record<string, unknown>;
-    return { id: r.id, kind: r.kind.replace(/^person\./, ""), subjectEmail: email, detail, at: r.at, actorName: r.actorName };
+    return {
+      id: r.id,
+      kind: r.kind.replace(/^person\./, ""),
+      subjectEmail: email,
+      detail,
+      at: r.at,
+      actorName: r.actorName,
+    };
   });
 }

@@ -16,13 +16,19 @@ import type { SessionUser } from "../auth/session-user";
 export const invitationLifetimeHours = 72;
 
 /** Admin invites a person: invitation row, outbox mail and people change in one transaction. */
-export async function invitePerson(actor: SessionUser, input: { email: unknown; role: unknown }): Promise<{ invitationId: string }> {
+export async function invitePerson(
+  actor: SessionUser,
+  input: { email: unknown; role: unknown },
+): Promise<{ invitationId: string }> {
   const { email, role } = inviteSchema.parse(input);
   const { token, hash } = newToken();
   const expiresAt = new Date(Date.now() + invitationLifetimeHours * 3600_000);
   return db.transaction().execute(async (trx) => {
     const existing = await trx.selectFrom("users").select("id").where("email", "=", email).executeTakeFirst();
-    if (existing) throw new AppError("conflict", 409, `${email} already has an account.`, { email: ["Already has an account."] });
+    if (existing)
+      throw new AppError("conflict", 409, `${email} already has an account.`, {
+        email: ["Already has an account."],
+      });
     // A fresh invitation replaces any open one for the same address.
     await trx
       .updateTable("invitations")
@@ -37,8 +43,24 @@ export async function invitePerson(actor: SessionUser, input: { email: unknown; 
       .returning("id")
       .executeTakeFirstOrThrow();
     const link = `${env().APP_URL}/invite/${token}`;
-    await enqueueMail(trx, invitationMail({ to: email, labName: env().LAB_NAME, roleLabel: roleLabels[role], inviterName: actor.name, link, expiresAt }));
-    await recordPeopleChange(trx, { actorId: actor.id, subjectUserId: null, subjectEmail: email, kind: "invited", detail: { role, expiresAt } });
+    await enqueueMail(
+      trx,
+      invitationMail({
+        to: email,
+        labName: env().LAB_NAME,
+        roleLabel: roleLabels[role],
+        inviterName: actor.name,
+        link,
+        expiresAt,
+      }),
+    );
+    await recordPeopleChange(trx, {
+      actorId: actor.id,
+      subjectUserId: null,
+      subjectEmail: email,
+      kind: "invited",
+      detail: { role, expiresAt },
+    });
     return { invitationId: inv.id };
   });
 }
@@ -48,7 +70,11 @@ export type InvitationState =
   | { state: "expired" | "used" | "revoked" | "unknown" };
 
 /** Why an invitation can no longer be used (in the order the person is told), or null while it is open. */
-function closedBecause(inv: { accepted_at: Date | null; revoked_at: Date | null; expires_at: Date }): "used" | "revoked" | "expired" | null {
+function closedBecause(inv: {
+  accepted_at: Date | null;
+  revoked_at: Date | null;
+  expires_at: Date;
+}): "used" | "revoked" | "expired" | null {
   if (inv.accepted_at) return "used";
   if (inv.revoked_at) return "revoked";
   if (inv.expires_at.getTime() <= Date.now()) return "expired";
@@ -69,14 +95,20 @@ export async function lookUpInvitation(token: string): Promise<InvitationState> 
 }
 
 export const invitationProblems = {
-  unknown: "This invitation link is not valid. Check that you copied the whole link, or ask the lab's admin for a new one.",
+  unknown:
+    "This invitation link is not valid. Check that you copied the whole link, or ask the lab's admin for a new one.",
   used: "This invitation has already been used. Sign in with the password you chose, or reset it.",
   revoked: "This invitation was replaced by a newer one. Use the link in the most recent invitation e-mail.",
   expired: `This invitation has expired (links last ${invitationLifetimeHours} hours). Ask the lab's admin to invite you again.`,
 } as const;
 
 /** The invitee sets name and password; the account is created and the link spent, atomically. */
-export async function acceptInvitation(input: { token: unknown; name: unknown; password: unknown; confirm: unknown }): Promise<{ userId: string; email: string }> {
+export async function acceptInvitation(input: {
+  token: unknown;
+  name: unknown;
+  password: unknown;
+  confirm: unknown;
+}): Promise<{ userId: string; email: string }> {
   const { token, name, password } = acceptInvitationSchema.parse(input);
   const passwordHash = await hashPassword(password);
   return db.transaction().execute(async (trx) => {
@@ -88,16 +120,31 @@ export async function acceptInvitation(input: { token: unknown; name: unknown; p
       .executeTakeFirst();
     if (!inv) throw new AppError("not_found", 404, invitationProblems.unknown);
     const closed = closedBecause(inv);
-    if (closed) throw new AppError(closed === "expired" ? "expired" : "used", 410, invitationProblems[closed]);
-    const taken = await trx.selectFrom("users").select("id").where("email", "=", inv.email).executeTakeFirst();
+    if (closed)
+      throw new AppError(closed === "expired" ? "expired" : "used", 410, invitationProblems[closed]);
+    const taken = await trx
+      .selectFrom("users")
+      .select("id")
+      .where("email", "=", inv.email)
+      .executeTakeFirst();
     if (taken) throw new AppError("conflict", 409, `${inv.email} already has an account. Sign in instead.`);
     const user = await trx
       .insertInto("users")
       .values({ email: inv.email, name, role: inv.role, password_hash: passwordHash })
       .returning("id")
       .executeTakeFirstOrThrow();
-    await trx.updateTable("invitations").set({ accepted_at: sql`now()`, accepted_user_id: user.id }).where("id", "=", inv.id).execute();
-    await recordPeopleChange(trx, { actorId: user.id, subjectUserId: user.id, subjectEmail: inv.email, kind: "invitation_accepted", detail: { role: inv.role, invitedBy: inv.invited_by } });
+    await trx
+      .updateTable("invitations")
+      .set({ accepted_at: sql`now()`, accepted_user_id: user.id })
+      .where("id", "=", inv.id)
+      .execute();
+    await recordPeopleChange(trx, {
+      actorId: user.id,
+      subjectUserId: user.id,
+      subjectEmail: inv.email,
+      kind: "invitation_accepted",
+      detail: { role: inv.role, invitedBy: inv.invited_by },
+    });
     return { userId: user.id, email: inv.email };
   });
 }

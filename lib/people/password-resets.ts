@@ -27,15 +27,40 @@ export const resetProblems = {
 export async function requestPasswordReset(input: { email: unknown }): Promise<void> {
   const { email } = resetRequestSchema.parse(input);
   await db.transaction().execute(async (trx) => {
-    const user = await trx.selectFrom("users").select(["id", "active"]).where("email", "=", email).executeTakeFirst();
+    const user = await trx
+      .selectFrom("users")
+      .select(["id", "active"])
+      .where("email", "=", email)
+      .executeTakeFirst();
     if (!user || !user.active) return;
     const { token, hash } = newToken();
     const expiresAt = new Date(Date.now() + resetLifetimeHours * 3600_000);
     // Only the newest link works.
-    await trx.updateTable("password_resets").set({ used_at: sql`now()` }).where("user_id", "=", user.id).where("used_at", "is", null).execute();
-    await trx.insertInto("password_resets").values({ user_id: user.id, token_hash: hash, expires_at: expiresAt }).execute();
-    await enqueueMail(trx, passwordResetMail({ to: email, labName: env().LAB_NAME, link: `${env().APP_URL}/reset/${token}`, expiresAt }));
-    await recordPeopleChange(trx, { actorId: null, subjectUserId: user.id, subjectEmail: email, kind: "password_reset_requested" });
+    await trx
+      .updateTable("password_resets")
+      .set({ used_at: sql`now()` })
+      .where("user_id", "=", user.id)
+      .where("used_at", "is", null)
+      .execute();
+    await trx
+      .insertInto("password_resets")
+      .values({ user_id: user.id, token_hash: hash, expires_at: expiresAt })
+      .execute();
+    await enqueueMail(
+      trx,
+      passwordResetMail({
+        to: email,
+        labName: env().LAB_NAME,
+        link: `${env().APP_URL}/reset/${token}`,
+        expiresAt,
+      }),
+    );
+    await recordPeopleChange(trx, {
+      actorId: null,
+      subjectUserId: user.id,
+      subjectEmail: email,
+      kind: "password_reset_requested",
+    });
   });
 }
 
@@ -47,31 +72,60 @@ function closedBecause(row: { used_at: Date | null; expires_at: Date }): "used" 
 }
 
 export async function lookUpReset(token: string): Promise<"open" | keyof typeof resetProblems> {
-  const row = await db.selectFrom("password_resets").select(["expires_at", "used_at"]).where("token_hash", "=", hashToken(token)).executeTakeFirst();
+  const row = await db
+    .selectFrom("password_resets")
+    .select(["expires_at", "used_at"])
+    .where("token_hash", "=", hashToken(token))
+    .executeTakeFirst();
   if (!row) return "unknown";
   return closedBecause(row) ?? "open";
 }
 
-export async function resetPassword(input: { token: unknown; password: unknown; confirm: unknown }): Promise<{ email: string }> {
+export async function resetPassword(input: {
+  token: unknown;
+  password: unknown;
+  confirm: unknown;
+}): Promise<{ email: string }> {
   const { token, password } = resetPasswordSchema.parse(input);
   const passwordHash = await hashPassword(password);
   return db.transaction().execute(async (trx) => {
     const row = await trx
       .selectFrom("password_resets")
       .innerJoin("users", "users.id", "password_resets.user_id")
-      .select(["password_resets.id", "password_resets.expires_at", "password_resets.used_at", "users.id as userId", "users.email", "users.active"])
+      .select([
+        "password_resets.id",
+        "password_resets.expires_at",
+        "password_resets.used_at",
+        "users.id as userId",
+        "users.email",
+        "users.active",
+      ])
       .where("password_resets.token_hash", "=", hashToken(token))
       .forUpdate()
       .executeTakeFirst();
     if (!row) throw new AppError("not_found", 404, resetProblems.unknown);
     const closed = closedBecause(row);
     if (closed) throw new AppError(closed, 410, resetProblems[closed]);
-    if (!row.active) throw new AppError("forbidden", 403, "This account has been deactivated. Ask the lab's admin.");
-    await trx.updateTable("password_resets").set({ used_at: sql`now()` }).where("id", "=", row.id).execute();
-    await trx.updateTable("users").set({ password_hash: passwordHash, updated_at: sql`now()` }).where("id", "=", row.userId).execute();
+    if (!row.active)
+      throw new AppError("forbidden", 403, "This account has been deactivated. Ask the lab's admin.");
+    await trx
+      .updateTable("password_resets")
+      .set({ used_at: sql`now()` })
+      .where("id", "=", row.id)
+      .execute();
+    await trx
+      .updateTable("users")
+      .set({ password_hash: passwordHash, updated_at: sql`now()` })
+      .where("id", "=", row.userId)
+      .execute();
     // Whoever knew the old password may hold a session: every session of the account ends.
     await endSessions(trx, row.userId);
-    await recordPeopleChange(trx, { actorId: row.userId, subjectUserId: row.userId, subjectEmail: row.email, kind: "password_reset" });
+    await recordPeopleChange(trx, {
+      actorId: row.userId,
+      subjectUserId: row.userId,
+      subjectEmail: row.email,
+      kind: "password_reset",
+    });
     return { email: row.email };
   });
 }

@@ -27,12 +27,27 @@ export interface PresetSummary extends PresetVersion {
 function presetQuery() {
   return db
     .selectFrom("curve_presets as p")
-    .innerJoin("curve_preset_versions as v", (j) => j.onRef("v.preset_id", "=", "p.id").onRef("v.version", "=", "p.current_version"))
+    .innerJoin("curve_preset_versions as v", (j) =>
+      j.onRef("v.preset_id", "=", "p.id").onRef("v.version", "=", "p.current_version"),
+    )
     .leftJoin("users as u", "u.id", "v.created_by")
-    .select(["p.id", "p.current_version as currentVersion", "v.preset_id as presetId", "v.version", "v.name", "v.spec", "v.notes", "v.change_note as changeNote", "v.created_at as createdAt", "u.name as createdBy"]);
+    .select([
+      "p.id",
+      "p.current_version as currentVersion",
+      "v.preset_id as presetId",
+      "v.version",
+      "v.name",
+      "v.spec",
+      "v.notes",
+      "v.change_note as changeNote",
+      "v.created_at as createdAt",
+      "u.name as createdBy",
+    ]);
 }
 
-function toSummary(row: Awaited<ReturnType<ReturnType<typeof presetQuery>["execute"]>>[number]): PresetSummary {
+function toSummary(
+  row: Awaited<ReturnType<ReturnType<typeof presetQuery>["execute"]>>[number],
+): PresetSummary {
   return { ...row, spec: row.spec };
 }
 
@@ -52,7 +67,16 @@ export async function listPresetVersions(id: string): Promise<PresetVersion[]> {
   const rows = await db
     .selectFrom("curve_preset_versions as v")
     .leftJoin("users as u", "u.id", "v.created_by")
-    .select(["v.preset_id as presetId", "v.version", "v.name", "v.spec", "v.notes", "v.change_note as changeNote", "v.created_at as createdAt", "u.name as createdBy"])
+    .select([
+      "v.preset_id as presetId",
+      "v.version",
+      "v.name",
+      "v.spec",
+      "v.notes",
+      "v.change_note as changeNote",
+      "v.created_at as createdAt",
+      "u.name as createdBy",
+    ])
     .where("v.preset_id", "=", id)
     .orderBy("v.version", "desc")
     .execute();
@@ -60,9 +84,15 @@ export async function listPresetVersions(id: string): Promise<PresetVersion[]> {
 }
 
 async function assertNameFree(name: string, exceptId?: string): Promise<void> {
-  let q = db.selectFrom("curve_presets").select("id").where(sql`lower(name)`, "=", name.toLowerCase());
+  let q = db
+    .selectFrom("curve_presets")
+    .select("id")
+    .where(sql`lower(name)`, "=", name.toLowerCase());
   if (exceptId) q = q.where("id", "!=", exceptId);
-  if (await q.executeTakeFirst()) throw new AppError("conflict", 409, `A preset named "${name}" already exists.`, { name: ["Already in use."] });
+  if (await q.executeTakeFirst())
+    throw new AppError("conflict", 409, `A preset named "${name}" already exists.`, {
+      name: ["Already in use."],
+    });
 }
 
 /** A new preset and its version 1, in one transaction. */
@@ -71,12 +101,30 @@ export async function createPreset(actor: SessionUser, input: unknown): Promise<
   checkSpec(spec);
   await assertNameFree(name);
   const id = await db.transaction().execute(async (trx) => {
-    const preset = await trx.insertInto("curve_presets").values({ name, current_version: 1 }).returning("id").executeTakeFirstOrThrow();
+    const preset = await trx
+      .insertInto("curve_presets")
+      .values({ name, current_version: 1 })
+      .returning("id")
+      .executeTakeFirstOrThrow();
     await trx
       .insertInto("curve_preset_versions")
-      .values({ preset_id: preset.id, version: 1, name, spec: JSON.stringify(spec), notes, change_note: changeNote, created_by: actor.id })
+      .values({
+        preset_id: preset.id,
+        version: 1,
+        name,
+        spec: JSON.stringify(spec),
+        notes,
+        change_note: changeNote,
+        created_by: actor.id,
+      })
       .execute();
-    await appendEvent(trx, { actorId: actor.id, kind: "preset.created", subjectType: "preset", subjectId: preset.id, payload: { name, version: 1, after: spec, notes, changeNote } });
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "preset.created",
+      subjectType: "preset",
+      subjectId: preset.id,
+      payload: { name, version: 1, after: spec, notes, changeNote },
+    });
     return preset.id;
   });
   return getPreset(id);
@@ -94,19 +142,42 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
   checkSpec(spec);
   if (name.toLowerCase() !== current.name.toLowerCase()) await assertNameFree(name, id);
   await db.transaction().execute(async (trx) => {
-    const locked = await trx.selectFrom("curve_presets").select("current_version").where("id", "=", id).forUpdate().executeTakeFirstOrThrow();
+    const locked = await trx
+      .selectFrom("curve_presets")
+      .select("current_version")
+      .where("id", "=", id)
+      .forUpdate()
+      .executeTakeFirstOrThrow();
     const version = locked.current_version + 1;
     await trx
       .insertInto("curve_preset_versions")
-      .values({ preset_id: id, version, name, spec: JSON.stringify(spec), notes: patch.notes ?? current.notes, change_note: patch.changeNote, created_by: actor.id })
+      .values({
+        preset_id: id,
+        version,
+        name,
+        spec: JSON.stringify(spec),
+        notes: patch.notes ?? current.notes,
+        change_note: patch.changeNote,
+        created_by: actor.id,
+      })
       .execute();
-    await trx.updateTable("curve_presets").set({ name, current_version: version, updated_at: sql`now()` }).where("id", "=", id).execute();
+    await trx
+      .updateTable("curve_presets")
+      .set({ name, current_version: version, updated_at: sql`now()` })
+      .where("id", "=", id)
+      .execute();
     await appendEvent(trx, {
       actorId: actor.id,
       kind: "preset.versioned",
       subjectType: "preset",
       subjectId: id,
-      payload: { name, version, before: { name: current.name, version: current.version, spec: current.spec }, after: spec, changeNote: patch.changeNote },
+      payload: {
+        name,
+        version,
+        before: { name: current.name, version: current.version, spec: current.spec },
+        after: spec,
+        changeNote: patch.changeNote,
+      },
     });
   });
   return getPreset(id);

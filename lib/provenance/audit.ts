@@ -8,7 +8,9 @@ import { verifyChain } from ".";
 /** Walks the whole chain against every checkpoint in the bucket, records the run, and answers the report. */
 export async function runChainCheck(actor: SessionUser) {
   const report = await verifyChain(db);
-  const brokenReason = report.brokenAt?.reason ?? (report.checkpoints.problems.length ? report.checkpoints.problems.join(" ") : null);
+  const brokenReason =
+    report.brokenAt?.reason ??
+    (report.checkpoints.problems.length ? report.checkpoints.problems.join(" ") : null);
   await db
     .insertInto("chain_checks")
     .values({
@@ -60,7 +62,21 @@ export async function listEvents(input: unknown) {
     .selectFrom("provenance_events as e")
     .leftJoin("users as u", "u.id", "e.actor_id")
     .leftJoin("discs as d", "d.id", "e.disc_id")
-    .select(["e.seq", "e.id", "e.at", "e.kind", "e.subject_type as subjectType", "e.subject_id as subjectId", "e.disc_id as discId", "d.shelf_mark as shelfMark", "e.payload", "e.hash", "e.prev_hash as prevHash", "u.name as actorName", "e.actor_id as actorId"])
+    .select([
+      "e.seq",
+      "e.id",
+      "e.at",
+      "e.kind",
+      "e.subject_type as subjectType",
+      "e.subject_id as subjectId",
+      "e.disc_id as discId",
+      "d.shelf_mark as shelfMark",
+      "e.payload",
+      "e.hash",
+      "e.prev_hash as prevHash",
+      "u.name as actorName",
+      "e.actor_id as actorId",
+    ])
     .orderBy("e.seq", "desc")
     .limit(q.limit);
   if (q.disc) query = query.where("e.disc_id", "=", q.disc);

@@ -30,5 +30,7 @@ export interface ChainedContent {
 }
 
 export function eventHash(prevHash: string, content: ChainedContent): string {
-  return createHash("sha256").update(`${prevHash}\n${canonicalJson(content)}`, "utf8").digest("hex");
+  return createHash("sha256")
+    .update(`${prevHash}\n${canonicalJson(content)}`, "utf8")
+    .digest("hex");
 }

@@ -1,5 +1,10 @@
 import { randomUUID } from "node:crypto";
-import { GetObjectCommand, HeadObjectCommand, ListObjectsV2Command, PutObjectCommand } from "@aws-sdk/client-s3";
+import {
+  GetObjectCommand,
+  HeadObjectCommand,
+  ListObjectsV2Command,
+  PutObjectCommand,
+} from "@aws-sdk/client-s3";
 import { z } from "zod";
 import { AppError } from "../http/errors";
 import { env } from "../env";
@@ -51,7 +56,12 @@ async function objectExists(key: string): Promise<boolean> {
   }
 }
 
-const refused = (key: string) => new AppError("conflict", 409, `A checkpoint is already stored at ${key}; checkpoints are never overwritten.`);
+const refused = (key: string) =>
+  new AppError(
+    "conflict",
+    409,
+    `A checkpoint is already stored at ${key}; checkpoints are never overwritten.`,
+  );
 
 /**
  * Writes one checkpoint object, refusing to replace anything at that key. The put is
@@ -59,11 +69,20 @@ const refused = (key: string) => new AppError("conflict", 409, `A checkpoint is 
  * that header, so the key is also looked up first and an existing object refused.
  */
 export async function putCheckpointObject(key: string, cp: Checkpoint): Promise<void> {
-  if (!key.startsWith(checkpointPrefix) || key.includes("..")) throw new Error(`not a checkpoint key: ${key}`);
+  if (!key.startsWith(checkpointPrefix) || key.includes(".."))
+    throw new Error(`not a checkpoint key: ${key}`);
   const body = `${JSON.stringify(checkpointSchema.parse(cp), null, 2)}\n`;
   if (await objectExists(key)) throw refused(key);
   try {
-    await s3().send(new PutObjectCommand({ Bucket: env().S3_BUCKET, Key: key, Body: body, ContentType: "application/json", IfNoneMatch: "*" }));
+    await s3().send(
+      new PutObjectCommand({
+        Bucket: env().S3_BUCKET,
+        Key: key,
+        Body: body,
+        ContentType: "application/json",
+        IfNoneMatch: "*",
+      }),
+    );
   } catch (err) {
     if (statusOf(err) === 412 || statusOf(err) === 409) throw refused(key);
     throw err;
@@ -81,7 +100,13 @@ export async function readCheckpointObjects(): Promise<CheckpointRead> {
   const keys: string[] = [];
   let token: string | undefined;
   do {
-    const page = await s3().send(new ListObjectsV2Command({ Bucket: env().S3_BUCKET, Prefix: checkpointPrefix, ContinuationToken: token }));
+    const page = await s3().send(
+      new ListObjectsV2Command({
+        Bucket: env().S3_BUCKET,
+        Prefix: checkpointPrefix,
+        ContinuationToken: token,
+      }),
+    );
     for (const o of page.Contents ?? []) if (o.Key) keys.push(o.Key);
     token = page.IsTruncated ? page.NextContinuationToken : undefined;
   } while (token);
@@ -97,12 +122,20 @@ export async function readCheckpointObjects(): Promise<CheckpointRead> {
           if (parsed.success) checkpoints.push({ ...parsed.data, key });
           else unreadable.push({ key, reason: "it is not a checkpoint this version can read" });
         } catch (err) {
-          unreadable.push({ key, reason: err instanceof SyntaxError ? "it is not valid JSON" : `it could not be read (${(err as Error)?.name ?? "error"})` });
+          unreadable.push({
+            key,
+            reason:
+              err instanceof SyntaxError
+                ? "it is not valid JSON"
+                : `it could not be read (${(err as Error)?.name ?? "error"})`,
+          });
         }
       }),
     );
   }
-  checkpoints.sort((a, b) => a.headSeq - b.headSeq || a.takenAt.localeCompare(b.takenAt) || a.key.localeCompare(b.key));
+  checkpoints.sort(
+    (a, b) => a.headSeq - b.headSeq || a.takenAt.localeCompare(b.takenAt) || a.key.localeCompare(b.key),
+  );
   unreadable.sort((a, b) => a.key.localeCompare(b.key));
   return { checkpoints, unreadable };
 }

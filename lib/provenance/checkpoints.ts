@@ -14,7 +14,15 @@ export type CheckpointOutcome =
   | { status: "refused"; report: ChainReport };
 
 async function activeCurators(db: Kysely<Database>): Promise<string[]> {
-  return (await db.selectFrom("users").select("email").where("role", "=", "curator").where("active", "=", true).orderBy("email").execute()).map((u) => u.email);
+  return (
+    await db
+      .selectFrom("users")
+      .select("email")
+      .where("role", "=", "curator")
+      .where("active", "=", true)
+      .orderBy("email")
+      .execute()
+  ).map((u) => u.email);
 }
 
 function checkpointMailText(key: string, cp: Checkpoint): string {
@@ -42,8 +50,16 @@ function checkpointMailText(key: string, cp: Checkpoint): string {
  * for a damaged log); the curators are mailed the failure instead. Scheduled runs skip
  * a head that is already anchored; a requested run always writes.
  */
-export async function takeCheckpoint(db: Kysely<Database>, opts: { reason: "scheduled" | "requested"; requestedBy?: string | null }): Promise<CheckpointOutcome> {
-  const head = await db.selectFrom("provenance_events").select(["seq", "hash"]).orderBy("seq", "desc").limit(1).executeTakeFirst();
+export async function takeCheckpoint(
+  db: Kysely<Database>,
+  opts: { reason: "scheduled" | "requested"; requestedBy?: string | null },
+): Promise<CheckpointOutcome> {
+  const head = await db
+    .selectFrom("provenance_events")
+    .select(["seq", "hash"])
+    .orderBy("seq", "desc")
+    .limit(1)
+    .executeTakeFirst();
   if (!head) return { status: "empty" };
   const report = await verifyChain(db, { throughSeq: Number(head.seq) });
   const curators = await activeCurators(db);
@@ -59,7 +75,12 @@ export async function takeCheckpoint(db: Kysely<Database>, opts: { reason: "sche
         await enqueueMail(trx, {
           to,
           subject: `Provenance log did not verify: no checkpoint written`,
-          text: [what, "", "No new checkpoint was written. Follow the institution's procedure for a damaged record.", `Audit page: ${env().APP_URL}/audit`].join("\n"),
+          text: [
+            what,
+            "",
+            "No new checkpoint was written. Follow the institution's procedure for a damaged record.",
+            `Audit page: ${env().APP_URL}/audit`,
+          ].join("\n"),
         });
       }
     });
@@ -67,7 +88,8 @@ export async function takeCheckpoint(db: Kysely<Database>, opts: { reason: "sche
   }
 
   const newest = report.checkpoints.newest;
-  if (opts.reason === "scheduled" && newest && newest.headSeq === report.head.seq) return { status: "unchanged", key: newest.key };
+  if (opts.reason === "scheduled" && newest && newest.headSeq === report.head.seq)
+    return { status: "unchanged", key: newest.key };
 
   const checkpoint: Checkpoint = {
     kind: "rillbook.chain-checkpoint",
@@ -95,7 +117,11 @@ export async function takeCheckpoint(db: Kysely<Database>, opts: { reason: "sche
       })
       .execute();
     for (const to of curators) {
-      await enqueueMail(trx, { to, subject: `Provenance checkpoint: ${checkpoint.events} entries, head ${checkpoint.headHash.slice(0, 12)}…`, text: checkpointMailText(key, checkpoint) });
+      await enqueueMail(trx, {
+        to,
+        subject: `Provenance checkpoint: ${checkpoint.events} entries, head ${checkpoint.headHash.slice(0, 12)}…`,
+        text: checkpointMailText(key, checkpoint),
+      });
     }
   });
   return { status: "written", key, checkpoint, mailedTo: curators.length };
@@ -106,7 +132,15 @@ export async function lastCheckpoint(db: Kysely<Database>) {
   return db
     .selectFrom("chain_checkpoints as c")
     .leftJoin("users as u", "u.id", "c.requested_by")
-    .select(["c.object_key as key", "c.head_seq as headSeq", "c.head_hash as headHash", "c.events", "c.taken_at as takenAt", "c.reason", "u.name as requestedBy"])
+    .select([
+      "c.object_key as key",
+      "c.head_seq as headSeq",
+      "c.head_hash as headHash",
+      "c.events",
+      "c.taken_at as takenAt",
+      "c.reason",
+      "u.name as requestedBy",
+    ])
     .orderBy("c.head_seq", "desc")
     .orderBy("c.taken_at", "desc")
     .limit(1)

@@ -26,16 +26,27 @@ const appendLockKey = 0x52_49_4c_4c; // "RILL"
  * and its event commit together or not at all. Appends are serialised by a
  * transaction-level advisory lock, so the chain has no forks.
  */
-export async function appendEvent(trx: Transaction<Database>, event: NewEvent): Promise<{ id: string; hash: string }> {
+export async function appendEvent(
+  trx: Transaction<Database>,
+  event: NewEvent,
+): Promise<{ id: string; hash: string }> {
   const [appended] = await appendEvents(trx, [event]);
   return appended;
 }
 
 /** Appends several events in order, chained to each other, with one lock and batched inserts (imports). */
-export async function appendEvents(trx: Transaction<Database>, events: NewEvent[]): Promise<{ id: string; hash: string }[]> {
+export async function appendEvents(
+  trx: Transaction<Database>,
+  events: NewEvent[],
+): Promise<{ id: string; hash: string }[]> {
   if (!events.length) return [];
   await sql`SELECT pg_advisory_xact_lock(${appendLockKey})`.execute(trx);
-  const last = await trx.selectFrom("provenance_events").select("hash").orderBy("seq", "desc").limit(1).executeTakeFirst();
+  const last = await trx
+    .selectFrom("provenance_events")
+    .select("hash")
+    .orderBy("seq", "desc")
+    .limit(1)
+    .executeTakeFirst();
   let prevHash = last?.hash ?? genesisHash;
   const rows = events.map((event) => {
     const content: ChainedContent = {
@@ -66,7 +77,11 @@ export async function appendEvents(trx: Transaction<Database>, events: NewEvent[
     return row;
   });
   // seq follows insertion order within one INSERT, so the chain order is kept.
-  for (let i = 0; i < rows.length; i += 500) await trx.insertInto("provenance_events").values(rows.slice(i, i + 500)).execute();
+  for (let i = 0; i < rows.length; i += 500)
+    await trx
+      .insertInto("provenance_events")
+      .values(rows.slice(i, i + 500))
+      .execute();
   return rows.map((r) => ({ id: r.id, hash: r.hash }));
 }
 
@@ -108,24 +123,48 @@ export interface VerifyOptions {
   checkpoints?: CheckpointRead;
 }
 
-const refOf = (c: StoredCheckpoint): CheckpointRef => ({ key: c.key, headSeq: c.headSeq, events: c.events, takenAt: c.takenAt });
+const refOf = (c: StoredCheckpoint): CheckpointRef => ({
+  key: c.key,
+  headSeq: c.headSeq,
+  events: c.events,
+  takenAt: c.takenAt,
+});
 
 /** The bucket's checkpoints, and what the database's notes of them say that the bucket does not. */
-async function loadCheckpoints(db: Kysely<Database>, given?: CheckpointRead): Promise<{ read: CheckpointRead; problems: string[] }> {
+async function loadCheckpoints(
+  db: Kysely<Database>,
+  given?: CheckpointRead,
+): Promise<{ read: CheckpointRead; problems: string[] }> {
   const problems: string[] = [];
   let read: CheckpointRead;
   try {
     read = given ?? (await readCheckpointObjects());
   } catch (err) {
-    return { read: { checkpoints: [], unreadable: [] }, problems: [`The checkpoints could not be read from the bucket (${err instanceof Error ? err.message : String(err)}).`] };
+    return {
+      read: { checkpoints: [], unreadable: [] },
+      problems: [
+        `The checkpoints could not be read from the bucket (${err instanceof Error ? err.message : String(err)}).`,
+      ],
+    };
   }
   for (const u of read.unreadable) problems.push(`Checkpoint object ${u.key} is unreadable: ${u.reason}.`);
   const byKey = new Map(read.checkpoints.map((c) => [c.key, c]));
-  const rows = await db.selectFrom("chain_checkpoints").select(["object_key", "head_seq", "head_hash", "events"]).orderBy("head_seq").execute();
+  const rows = await db
+    .selectFrom("chain_checkpoints")
+    .select(["object_key", "head_seq", "head_hash", "events"])
+    .orderBy("head_seq")
+    .execute();
   for (const r of rows) {
     const c = byKey.get(r.object_key);
-    if (!c) problems.push(`Checkpoint ${r.object_key} (entry ${Number(r.head_seq)}) is recorded in the database but missing from the bucket.`);
-    else if (c.headSeq !== Number(r.head_seq) || c.headHash !== r.head_hash || c.events !== Number(r.events)) {
+    if (!c)
+      problems.push(
+        `Checkpoint ${r.object_key} (entry ${Number(r.head_seq)}) is recorded in the database but missing from the bucket.`,
+      );
+    else if (
+      c.headSeq !== Number(r.head_seq) ||
+      c.headHash !== r.head_hash ||
+      c.events !== Number(r.events)
+    ) {
       problems.push(`The database's record of checkpoint ${r.object_key} differs from the bucket's object.`);
     }
   }
@@ -167,7 +206,19 @@ export async function verifyChain(db: Kysely<Database>, opts: VerifyOptions = {}
   for (;;) {
     let q = db
       .selectFrom("provenance_events")
-      .select(["seq", "id", "at", "actor_id", "kind", "subject_type", "subject_id", "disc_id", "payload", "prev_hash", "hash"])
+      .select([
+        "seq",
+        "id",
+        "at",
+        "actor_id",
+        "kind",
+        "subject_type",
+        "subject_id",
+        "disc_id",
+        "payload",
+        "prev_hash",
+        "hash",
+      ])
       .where("seq", ">", afterSeq)
       .orderBy("seq")
       .limit(batchSize);
@@ -176,7 +227,9 @@ export async function verifyChain(db: Kysely<Database>, opts: VerifyOptions = {}
     for (const r of rows) {
       const seq = Number(r.seq);
       if (r.prev_hash !== prev) {
-        return finish({ brokenAt: { seq, id: r.id, reason: "its link does not name the previous event's hash" } });
+        return finish({
+          brokenAt: { seq, id: r.id, reason: "its link does not name the previous event's hash" },
+        });
       }
       const content: ChainedContent = {
         id: r.id,
@@ -194,7 +247,12 @@ export async function verifyChain(db: Kysely<Database>, opts: VerifyOptions = {}
       // A checkpoint whose head lies before this entry and was never met: its head is gone.
       if (ci < cps.length && cps[ci].headSeq < seq) {
         const c = cps[ci];
-        return contradiction(c, c.headSeq, null, `entry ${c.headSeq}, the head of the checkpoint, is missing from the log: entries have been removed`);
+        return contradiction(
+          c,
+          c.headSeq,
+          null,
+          `entry ${c.headSeq}, the head of the checkpoint, is missing from the log: entries have been removed`,
+        );
       }
       prev = r.hash;
       events++;
@@ -202,8 +260,20 @@ export async function verifyChain(db: Kysely<Database>, opts: VerifyOptions = {}
       head = { seq, hash: r.hash };
       for (; ci < cps.length && cps[ci].headSeq === seq; ci++) {
         const c = cps[ci];
-        if (c.headHash !== r.hash) return contradiction(c, seq, r.id, `entry ${seq}'s hash is not the one the checkpoint recorded: the log up to it has been rewritten`);
-        if (c.events !== events) return contradiction(c, seq, r.id, `the log holds ${events} entries up to entry ${seq}; the checkpoint counted ${c.events}: entries have been removed or added`);
+        if (c.headHash !== r.hash)
+          return contradiction(
+            c,
+            seq,
+            r.id,
+            `entry ${seq}'s hash is not the one the checkpoint recorded: the log up to it has been rewritten`,
+          );
+        if (c.events !== events)
+          return contradiction(
+            c,
+            seq,
+            r.id,
+            `the log holds ${events} entries up to entry ${seq}; the checkpoint counted ${c.events}: entries have been removed or added`,
+          );
         checked++;
       }
     }
@@ -211,7 +281,12 @@ export async function verifyChain(db: Kysely<Database>, opts: VerifyOptions = {}
   }
   if (ci < cps.length && (opts.throughSeq === undefined || cps[ci].headSeq <= opts.throughSeq)) {
     const c = cps[ci];
-    return contradiction(c, c.headSeq, null, `the log ends at entry ${head?.seq ?? 0} with ${events} entries, but the checkpoint recorded entry ${c.headSeq} with ${c.events}: entries have been removed`);
+    return contradiction(
+      c,
+      c.headSeq,
+      null,
+      `the log ends at entry ${head?.seq ?? 0} with ${events} entries, but the checkpoint recorded entry ${c.headSeq} with ${c.events}: entries have been removed`,
+    );
   }
   return finish();
 }

@@ -38,19 +38,120 @@ export interface Step {
  * makes a rendered side need its render again.
  */
 export const transitions: readonly Step[] = [
-  { from: "catalogued", to: "assigned", via: "assignment", action: "catalogue:assign", event: "side.assigned", means: "assigned to an engineer" },
-  { from: "returned", to: "assigned", via: "assignment", action: "catalogue:assign", event: "side.assigned", means: "assigned again after a return" },
-  { from: "assigned", to: "transferred", via: "upload", action: "bench:use", event: "side.status_changed", means: "its flat transfer was accepted", assignedOnly: true },
-  { from: "returned", to: "transferred", via: "upload", action: "bench:use", event: "side.status_changed", means: "a new flat transfer was accepted after the return", assignedOnly: true },
-  { from: "transferred", to: "curve_chosen", via: "curve choice", action: "bench:use", event: "side.status_changed", means: "its playback curve was chosen", assignedOnly: true },
-  { from: "returned", to: "curve_chosen", via: "curve choice", action: "bench:use", event: "side.status_changed", means: "a new curve was chosen after the return", assignedOnly: true },
-  { from: "rendered", to: "curve_chosen", via: "curve choice", action: "bench:use", event: "side.status_changed", means: "the curve changed: the access copy must be rendered again", assignedOnly: true },
-  { from: "rendered", to: "curve_chosen", via: "upload", action: "bench:use", event: "side.status_changed", means: "a new flat transfer was accepted: the access copy must be rendered again", assignedOnly: true },
-  { from: "curve_chosen", to: "rendered", via: "render", action: "bench:use", event: "side.status_changed", means: "its access copy was rendered from the current transfer and curve", assignedOnly: true },
-  { from: "returned", to: "rendered", via: "render", action: "bench:use", event: "side.status_changed", means: "its access copy was rendered again after the return", assignedOnly: true },
-  { from: "rendered", to: "in_review", via: "submit", action: "bench:use", event: "side.status_changed", means: "sent for review", assignedOnly: true },
-  { from: "in_review", to: "approved", via: "review", action: "review:decide", event: "side.approved", means: "approved by a curator" },
-  { from: "in_review", to: "returned", via: "review", action: "review:decide", event: "side.returned", means: "returned by a curator", reasonRequired: true },
+  {
+    from: "catalogued",
+    to: "assigned",
+    via: "assignment",
+    action: "catalogue:assign",
+    event: "side.assigned",
+    means: "assigned to an engineer",
+  },
+  {
+    from: "returned",
+    to: "assigned",
+    via: "assignment",
+    action: "catalogue:assign",
+    event: "side.assigned",
+    means: "assigned again after a return",
+  },
+  {
+    from: "assigned",
+    to: "transferred",
+    via: "upload",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "its flat transfer was accepted",
+    assignedOnly: true,
+  },
+  {
+    from: "returned",
+    to: "transferred",
+    via: "upload",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "a new flat transfer was accepted after the return",
+    assignedOnly: true,
+  },
+  {
+    from: "transferred",
+    to: "curve_chosen",
+    via: "curve choice",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "its playback curve was chosen",
+    assignedOnly: true,
+  },
+  {
+    from: "returned",
+    to: "curve_chosen",
+    via: "curve choice",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "a new curve was chosen after the return",
+    assignedOnly: true,
+  },
+  {
+    from: "rendered",
+    to: "curve_chosen",
+    via: "curve choice",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "the curve changed: the access copy must be rendered again",
+    assignedOnly: true,
+  },
+  {
+    from: "rendered",
+    to: "curve_chosen",
+    via: "upload",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "a new flat transfer was accepted: the access copy must be rendered again",
+    assignedOnly: true,
+  },
+  {
+    from: "curve_chosen",
+    to: "rendered",
+    via: "render",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "its access copy was rendered from the current transfer and curve",
+    assignedOnly: true,
+  },
+  {
+    from: "returned",
+    to: "rendered",
+    via: "render",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "its access copy was rendered again after the return",
+    assignedOnly: true,
+  },
+  {
+    from: "rendered",
+    to: "in_review",
+    via: "submit",
+    action: "bench:use",
+    event: "side.status_changed",
+    means: "sent for review",
+    assignedOnly: true,
+  },
+  {
+    from: "in_review",
+    to: "approved",
+    via: "review",
+    action: "review:decide",
+    event: "side.approved",
+    means: "approved by a curator",
+  },
+  {
+    from: "in_review",
+    to: "returned",
+    via: "review",
+    action: "review:decide",
+    event: "side.returned",
+    means: "returned by a curator",
+    reasonRequired: true,
+  },
 ];
 
 export { curveChoosableStatuses, renderableStatuses, uploadableStatuses };
@@ -80,12 +181,25 @@ export interface LockedSide {
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** Reads and locks the sides (in a stable order, so two transactions never deadlock). */
-export async function lockSides(trx: Transaction<Database>, sideIds: readonly string[]): Promise<LockedSide[]> {
+export async function lockSides(
+  trx: Transaction<Database>,
+  sideIds: readonly string[],
+): Promise<LockedSide[]> {
   const ids = [...new Set(sideIds)].filter((id) => uuidPattern.test(id));
   if (!ids.length) return [];
   return trx
     .selectFrom("sides")
-    .select(["id", "disc_id", "designation", "status", "version", "assigned_engineer_id", "current_transfer_id", "current_curve_choice_id", "current_render_id"])
+    .select([
+      "id",
+      "disc_id",
+      "designation",
+      "status",
+      "version",
+      "assigned_engineer_id",
+      "current_transfer_id",
+      "current_curve_choice_id",
+      "current_render_id",
+    ])
     .where("id", "in", ids)
     .orderBy("id")
     .forUpdate()
@@ -125,9 +239,19 @@ async function writeSide(
   let step: Step | undefined;
   if (change.to && change.to !== side.status) {
     step = findStep(side.status, change.to, change.via!);
-    if (!step) throw new AppError("conflict", 409, `A side that is ${side.status.replace("_", " ")} cannot become ${change.to.replace("_", " ")} by ${change.via}.`);
+    if (!step)
+      throw new AppError(
+        "conflict",
+        409,
+        `A side that is ${side.status.replace("_", " ")} cannot become ${change.to.replace("_", " ")} by ${change.via}.`,
+      );
     const allowed = actor.role === null ? step.via === "render" : can(actor.role, step.action);
-    if (!allowed) throw new AppError("forbidden", 403, `Your role may not move a side from ${side.status.replace("_", " ")} to ${change.to.replace("_", " ")}.`);
+    if (!allowed)
+      throw new AppError(
+        "forbidden",
+        403,
+        `Your role may not move a side from ${side.status.replace("_", " ")} to ${change.to.replace("_", " ")}.`,
+      );
   }
   const set = { ...(change.set ?? {}), ...(step ? { status: step.to } : {}) };
   if (!Object.keys(set).length) return;
@@ -146,7 +270,14 @@ async function writeSide(
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, before: { status: before }, after: { status: step.to }, via: step.via, note: step.means, ...(change.payload ?? {}) },
+      payload: {
+        side: side.designation,
+        before: { status: before },
+        after: { status: step.to },
+        via: step.via,
+        note: step.means,
+        ...(change.payload ?? {}),
+      },
     });
   }
 }
@@ -156,7 +287,14 @@ async function flush(trx: Transaction<Database>, events: NewEvent[]): Promise<vo
 }
 
 /** Marks a render superseded (it stays, with its file and hash) and records why. */
-async function supersede(trx: Transaction<Database>, side: LockedSide, renderId: string, reason: string, actorId: string, events: NewEvent[]): Promise<void> {
+async function supersede(
+  trx: Transaction<Database>,
+  side: LockedSide,
+  renderId: string,
+  reason: string,
+  actorId: string,
+  events: NewEvent[],
+): Promise<void> {
   const updated = await trx
     .updateTable("renders")
     .set({ superseded_at: sql`now()`, superseded_reason: reason })
@@ -165,22 +303,45 @@ async function supersede(trx: Transaction<Database>, side: LockedSide, renderId:
     .returning("id")
     .executeTakeFirst();
   if (updated) {
-    events.push({ actorId, kind: "side.render_superseded", subjectType: "side", subjectId: side.id, discId: side.disc_id, payload: { side: side.designation, renderId, reason } });
+    events.push({
+      actorId,
+      kind: "side.render_superseded",
+      subjectType: "side",
+      subjectId: side.id,
+      discId: side.disc_id,
+      payload: { side: side.designation, renderId, reason },
+    });
   }
 }
 
 /** Assigns a side to an engineer (a catalogued or returned side becomes assigned; an assigned one changes hands). */
-export async function assignSide(trx: Transaction<Database>, actor: StepActor, side: LockedSide, engineer: { id: string; name: string }, events: NewEvent[]): Promise<void> {
+export async function assignSide(
+  trx: Transaction<Database>,
+  actor: StepActor,
+  side: LockedSide,
+  engineer: { id: string; name: string },
+  events: NewEvent[],
+): Promise<void> {
   if (side.status === "assigned") {
     const before = side.assigned_engineer_id;
-    await writeSide(trx, side, actor, { set: { assigned_engineer_id: engineer.id, return_reason: null } }, events);
+    await writeSide(
+      trx,
+      side,
+      actor,
+      { set: { assigned_engineer_id: engineer.id, return_reason: null } },
+      events,
+    );
     events.push({
       actorId: actor.id,
       kind: "side.assigned",
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, before: { status: "assigned", engineerId: before }, after: { status: "assigned", engineerId: engineer.id, engineerName: engineer.name } },
+      payload: {
+        side: side.designation,
+        before: { status: "assigned", engineerId: before },
+        after: { status: "assigned", engineerId: engineer.id, engineerName: engineer.name },
+      },
     });
     return;
   }
@@ -193,7 +354,10 @@ export async function assignSide(trx: Transaction<Database>, actor: StepActor, s
       to: "assigned",
       via: "assignment",
       set: { assigned_engineer_id: engineer.id, return_reason: null },
-      payload: { before: { status: side.status, engineerId: before }, after: { status: "assigned", engineerId: engineer.id, engineerName: engineer.name } },
+      payload: {
+        before: { status: side.status, engineerId: before },
+        after: { status: "assigned", engineerId: engineer.id, engineerName: engineer.name },
+      },
     },
     events,
   );
@@ -204,18 +368,50 @@ export async function assignSide(trx: Transaction<Database>, actor: StepActor, s
  * copy (made from the old transfer) is superseded, and the side needs a render. A curve
  * recorded earlier stands for the new transfer.
  */
-export async function transferAccepted(trx: Transaction<Database>, actor: StepActor, side: LockedSide, transferId: string): Promise<void> {
-  if (!uploadableStatuses.has(side.status)) throw new AppError("conflict", 409, `The side is ${side.status.replace("_", " ")}: no new transfer now.`);
+export async function transferAccepted(
+  trx: Transaction<Database>,
+  actor: StepActor,
+  side: LockedSide,
+  transferId: string,
+): Promise<void> {
+  if (!uploadableStatuses.has(side.status))
+    throw new AppError("conflict", 409, `The side is ${side.status.replace("_", " ")}: no new transfer now.`);
   const events: NewEvent[] = [];
-  if (side.current_render_id) await supersede(trx, side, side.current_render_id, "a new flat transfer was accepted", actor.id, events);
+  if (side.current_render_id)
+    await supersede(trx, side, side.current_render_id, "a new flat transfer was accepted", actor.id, events);
   const set: SideColumns = { current_transfer_id: transferId, current_render_id: null, return_reason: null };
   if (side.status === "assigned" || side.status === "returned") {
-    await writeSide(trx, side, actor, { to: "transferred", via: "upload", set, payload: { transferId } }, events);
+    await writeSide(
+      trx,
+      side,
+      actor,
+      { to: "transferred", via: "upload", set, payload: { transferId } },
+      events,
+    );
     if (side.current_curve_choice_id) {
-      await writeSide(trx, side, actor, { to: "curve_chosen", via: "curve choice", payload: { curveChoiceId: side.current_curve_choice_id, note: "the curve recorded before this transfer stands" } }, events);
+      await writeSide(
+        trx,
+        side,
+        actor,
+        {
+          to: "curve_chosen",
+          via: "curve choice",
+          payload: {
+            curveChoiceId: side.current_curve_choice_id,
+            note: "the curve recorded before this transfer stands",
+          },
+        },
+        events,
+      );
     }
   } else if (side.status === "rendered") {
-    await writeSide(trx, side, actor, { to: "curve_chosen", via: "upload", set, payload: { transferId } }, events);
+    await writeSide(
+      trx,
+      side,
+      actor,
+      { to: "curve_chosen", via: "upload", set, payload: { transferId } },
+      events,
+    );
   } else {
     await writeSide(trx, side, actor, { set }, events);
   }
@@ -226,12 +422,34 @@ export async function transferAccepted(trx: Transaction<Database>, actor: StepAc
  * A curve was chosen: it becomes the side's current one, the current access copy (made
  * through the old curve) is superseded. Before any transfer the side stays assigned.
  */
-export async function curveChosen(trx: Transaction<Database>, actor: StepActor, side: LockedSide, choiceId: string, events: NewEvent[]): Promise<void> {
-  if (!curveChoosableStatuses.has(side.status)) throw new AppError("conflict", 409, `The side is ${side.status.replace("_", " ")}: its curve can no longer change.`);
-  if (side.current_render_id) await supersede(trx, side, side.current_render_id, "a new curve was chosen", actor.id, events);
-  const set: SideColumns = { current_curve_choice_id: choiceId, current_render_id: null, return_reason: null };
+export async function curveChosen(
+  trx: Transaction<Database>,
+  actor: StepActor,
+  side: LockedSide,
+  choiceId: string,
+  events: NewEvent[],
+): Promise<void> {
+  if (!curveChoosableStatuses.has(side.status))
+    throw new AppError(
+      "conflict",
+      409,
+      `The side is ${side.status.replace("_", " ")}: its curve can no longer change.`,
+    );
+  if (side.current_render_id)
+    await supersede(trx, side, side.current_render_id, "a new curve was chosen", actor.id, events);
+  const set: SideColumns = {
+    current_curve_choice_id: choiceId,
+    current_render_id: null,
+    return_reason: null,
+  };
   const moves = side.current_transfer_id && side.status !== "curve_chosen" && side.status !== "assigned";
-  await writeSide(trx, side, actor, moves ? { to: "curve_chosen", via: "curve choice", set, payload: { curveChoiceId: choiceId } } : { set }, events);
+  await writeSide(
+    trx,
+    side,
+    actor,
+    moves ? { to: "curve_chosen", via: "curve choice", set, payload: { curveChoiceId: choiceId } } : { set },
+    events,
+  );
 }
 
 /**
@@ -248,32 +466,82 @@ export async function renderFinished(
   const side = await lockSide(trx, render.sideId);
   const events: NewEvent[] = [];
   let reason: string | undefined;
-  if (render.transferId !== side.current_transfer_id) reason = "a newer flat transfer was accepted while it was being made";
-  else if (render.curveChoiceId !== side.current_curve_choice_id) reason = "a new curve was chosen while it was being made";
-  else if (!renderableStatuses.has(side.status)) reason = `the side had moved on (${side.status.replace("_", " ")}) when it finished`;
+  if (render.transferId !== side.current_transfer_id)
+    reason = "a newer flat transfer was accepted while it was being made";
+  else if (render.curveChoiceId !== side.current_curve_choice_id)
+    reason = "a new curve was chosen while it was being made";
+  else if (!renderableStatuses.has(side.status))
+    reason = `the side had moved on (${side.status.replace("_", " ")}) when it finished`;
   if (reason) {
     await supersede(trx, side, render.id, reason, actor.id, events);
     await flush(trx, events);
     return { current: false, reason };
   }
   if (side.current_render_id && side.current_render_id !== render.id) {
-    await supersede(trx, side, side.current_render_id, "replaced by a newer render of the same transfer and curve", actor.id, events);
+    await supersede(
+      trx,
+      side,
+      side.current_render_id,
+      "replaced by a newer render of the same transfer and curve",
+      actor.id,
+      events,
+    );
   }
   const set: SideColumns = { current_render_id: render.id, return_reason: null };
-  await writeSide(trx, side, actor, side.status === "rendered" ? { set } : { to: "rendered", via: "render", set, payload: { renderId: render.id } }, events);
+  await writeSide(
+    trx,
+    side,
+    actor,
+    side.status === "rendered"
+      ? { set }
+      : { to: "rendered", via: "render", set, payload: { renderId: render.id } },
+    events,
+  );
   await flush(trx, events);
   return { current: true };
 }
 
 /** The engineer sends the side for review: it needs a current access copy and no render still running. */
-export async function submitForReview(trx: Transaction<Database>, actor: StepActor, side: LockedSide): Promise<void> {
+export async function submitForReview(
+  trx: Transaction<Database>,
+  actor: StepActor,
+  side: LockedSide,
+): Promise<void> {
   if (side.status !== "rendered" || !side.current_render_id) {
-    throw new AppError("conflict", 409, "A side goes to review with an access copy rendered from its current transfer and curve; render it first.");
+    throw new AppError(
+      "conflict",
+      409,
+      "A side goes to review with an access copy rendered from its current transfer and curve; render it first.",
+    );
   }
-  const busy = await trx.selectFrom("renders").select("id").where("side_id", "=", side.id).where("status", "in", ["queued", "running"]).executeTakeFirst();
-  if (busy) throw new AppError("conflict", 409, "A render of this side is still queued or running: wait for it to finish before sending the side for review.");
+  const busy = await trx
+    .selectFrom("renders")
+    .select("id")
+    .where("side_id", "=", side.id)
+    .where("status", "in", ["queued", "running"])
+    .executeTakeFirst();
+  if (busy)
+    throw new AppError(
+      "conflict",
+      409,
+      "A render of this side is still queued or running: wait for it to finish before sending the side for review.",
+    );
   const events: NewEvent[] = [];
-  await writeSide(trx, side, actor, { to: "in_review", via: "submit", payload: { renderId: side.current_render_id, transferId: side.current_transfer_id, curveChoiceId: side.current_curve_choice_id } }, events);
+  await writeSide(
+    trx,
+    side,
+    actor,
+    {
+      to: "in_review",
+      via: "submit",
+      payload: {
+        renderId: side.current_render_id,
+        transferId: side.current_transfer_id,
+        curveChoiceId: side.current_curve_choice_id,
+      },
+    },
+    events,
+  );
   await flush(trx, events);
 }
 
@@ -287,6 +555,17 @@ export async function reviewDecided(
   payload: Record<string, unknown>,
 ): Promise<void> {
   const events: NewEvent[] = [];
-  await writeSide(trx, side, actor, { to: decision, via: "review", set: { return_reason: decision === "returned" ? reason : null }, payload: { ...(reason ? { reason } : {}), ...payload } }, events);
+  await writeSide(
+    trx,
+    side,
+    actor,
+    {
+      to: decision,
+      via: "review",
+      set: { return_reason: decision === "returned" ? reason : null },
+      payload: { ...(reason ? { reason } : {}), ...payload },
+    },
+    events,
+  );
   await flush(trx, events);
 }

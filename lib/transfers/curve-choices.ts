@@ -20,7 +20,10 @@ function sha256Hex(text: string): string {
  * now, with one event per side; a side that was waiting for its curve moves to
  * "curve chosen". Only the engineer the sides are assigned to may choose. All or nothing.
  */
-export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{ choices: { sideId: string; choiceId: string }[] }> {
+export async function chooseCurve(
+  actor: SessionUser,
+  input: unknown,
+): Promise<{ choices: { sideId: string; choiceId: string }[] }> {
   const c = curveChoiceSchema.parse(input);
   return db.transaction().execute(async (trx) => {
     let preset: { name: string; spec: CurveSpec } | null = null;
@@ -31,11 +34,19 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
         .where("preset_id", "=", c.presetId)
         .where("version", "=", c.presetVersion)
         .executeTakeFirst();
-      if (!v) throw new AppError("invalid", 422, "That preset version does not exist.", { presetVersion: ["Unknown preset version."] });
+      if (!v)
+        throw new AppError("invalid", 422, "That preset version does not exist.", {
+          presetVersion: ["Unknown preset version."],
+        });
       preset = { name: v.name, spec: v.spec };
     }
     // The same merge the bench plots and plays (preset, then overrides, then transfer ÷ cut speed).
-    const spec = mergeCurve(preset?.spec ?? null, c.overrides as Partial<CurveSpec>, c.cutSpeedRpm, c.transferSpeedRpm);
+    const spec = mergeCurve(
+      preset?.spec ?? null,
+      c.overrides as Partial<CurveSpec>,
+      c.cutSpeedRpm,
+      c.transferSpeedRpm,
+    );
     try {
       resolveCurve(spec);
     } catch (err) {
@@ -43,13 +54,22 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
     }
     // Every side locked through the lifecycle, in a stable order.
     const sides = await lockSides(trx, c.sideIds);
-    if (sides.length !== new Set(c.sideIds).size) throw new AppError("not_found", 404, "One of those sides does not exist.");
+    if (sides.length !== new Set(c.sideIds).size)
+      throw new AppError("not_found", 404, "One of those sides does not exist.");
     const shelfMarks = new Map(
-      (await trx.selectFrom("discs").select(["id", "shelf_mark"]).where("id", "in", [...new Set(sides.map((s) => s.disc_id))]).execute()).map((d) => [d.id, d.shelf_mark]),
+      (
+        await trx
+          .selectFrom("discs")
+          .select(["id", "shelf_mark"])
+          .where("id", "in", [...new Set(sides.map((s) => s.disc_id))])
+          .execute()
+      ).map((d) => [d.id, d.shelf_mark]),
     );
     // Each side's current choice (the one this replaces): one query, not one per side.
     const previousIds = sides.map((s) => s.current_curve_choice_id).filter((id): id is string => !!id);
-    const previousRows = previousIds.length ? await trx.selectFrom("curve_choices").select(["id", "spec"]).where("id", "in", previousIds).execute() : [];
+    const previousRows = previousIds.length
+      ? await trx.selectFrom("curve_choices").select(["id", "spec"]).where("id", "in", previousIds).execute()
+      : [];
     const previousById = new Map(previousRows.map((p) => [p.id, p]));
     const specSha256 = sha256Hex(canonicalJson(spec));
     const choices: { sideId: string; choiceId: string }[] = [];
@@ -58,9 +78,14 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
     sides.sort((a, b) => order.get(a.id)! - order.get(b.id)!);
     for (const s of sides) {
       const where = `${shelfMarks.get(s.disc_id)} side ${s.designation}`;
-      if (s.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, `${where} is not assigned to you.`);
+      if (s.assigned_engineer_id !== actor.id)
+        throw new AppError("forbidden", 403, `${where} is not assigned to you.`);
       if (!curveChoosableStatuses.has(s.status)) {
-        throw new AppError("conflict", 409, `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`);
+        throw new AppError(
+          "conflict",
+          409,
+          `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`,
+        );
       }
       const previous = s.current_curve_choice_id ? previousById.get(s.current_curve_choice_id) : undefined;
       const row = await trx
@@ -92,7 +117,9 @@ export async function chooseCurve(actor: SessionUser, input: unknown): Promise<{
         payload: {
           side: s.designation,
           choiceId: row.id,
-          preset: preset ? { id: c.presetId, version: c.presetVersion, name: preset.name, values: preset.spec } : null,
+          preset: preset
+            ? { id: c.presetId, version: c.presetVersion, name: preset.name, values: preset.spec }
+            : null,
           overrides: c.overrides,
           cutSpeedRpm: c.cutSpeedRpm,
           transferSpeedRpm: c.transferSpeedRpm,
@@ -137,5 +164,9 @@ export async function listCurveChoices(sideId: string) {
     .where("c.side_id", "=", sideId)
     .orderBy("c.chosen_at", "desc")
     .execute();
-  return rows.map((r) => ({ ...r, cutSpeedRpm: Number(r.cutSpeedRpm), transferSpeedRpm: Number(r.transferSpeedRpm) }));
+  return rows.map((r) => ({
+    ...r,
+    cutSpeedRpm: Number(r.cutSpeedRpm),
+    transferSpeedRpm: Number(r.transferSpeedRpm),
+  }));
 }

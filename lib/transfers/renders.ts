@@ -16,7 +16,12 @@ import { lockSide } from "../sides/lifecycle";
 import { s3 } from "../storage/s3";
 import { getSettings } from "../settings";
 import { parseStored, renderFilterRecordSchema } from "../validation/records";
-import { accessCopyBitDepthSchema, accessCopyRateSchema, channelModes, renderableStatuses } from "../validation/transfers";
+import {
+  accessCopyBitDepthSchema,
+  accessCopyRateSchema,
+  channelModes,
+  renderableStatuses,
+} from "../validation/transfers";
 
 export const renderRequestSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),
@@ -35,15 +40,34 @@ export async function requestRender(actor: SessionUser, input: unknown) {
   const r = renderRequestSchema.parse(input);
   return db.transaction().execute(async (trx) => {
     const side = await lockSide(trx, r.sideId);
-    if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
+    if (side.assigned_engineer_id !== actor.id)
+      throw new AppError("forbidden", 403, "This side is not assigned to you.");
     if (!renderableStatuses.has(side.status) || !side.current_transfer_id || !side.current_curve_choice_id) {
-      throw new AppError("conflict", 409, side.status === "in_review" || side.status === "approved" ? `The side is ${side.status.replace("_", " ")}: nothing to render now.` : "A render needs the side's flat transfer and a chosen curve first.");
+      throw new AppError(
+        "conflict",
+        409,
+        side.status === "in_review" || side.status === "approved"
+          ? `The side is ${side.status.replace("_", " ")}: nothing to render now.`
+          : "A render needs the side's flat transfer and a chosen curve first.",
+      );
     }
     // Always the side's current transfer and curve: what a render is made from is the lifecycle's record, not "the latest".
-    const transfer = await trx.selectFrom("transfers").select(["id", "channels", "sha256", "sample_rate_hz"]).where("id", "=", side.current_transfer_id).executeTakeFirstOrThrow();
+    const transfer = await trx
+      .selectFrom("transfers")
+      .select(["id", "channels", "sha256", "sample_rate_hz"])
+      .where("id", "=", side.current_transfer_id)
+      .executeTakeFirstOrThrow();
     const choice = { id: side.current_curve_choice_id };
-    if (r.channelMode !== "both" && transfer.channels !== 2) throw new AppError("invalid", 422, "That channel choice needs a stereo transfer; this one is mono.", { channelMode: ["Needs a stereo transfer."] });
-    const busy = await trx.selectFrom("renders").select("id").where("side_id", "=", side.id).where("status", "in", ["queued", "running"]).executeTakeFirst();
+    if (r.channelMode !== "both" && transfer.channels !== 2)
+      throw new AppError("invalid", 422, "That channel choice needs a stereo transfer; this one is mono.", {
+        channelMode: ["Needs a stereo transfer."],
+      });
+    const busy = await trx
+      .selectFrom("renders")
+      .select("id")
+      .where("side_id", "=", side.id)
+      .where("status", "in", ["queued", "running"])
+      .executeTakeFirst();
     if (busy) throw new AppError("conflict", 409, "A render of this side is already queued or running.");
     const lab = await getSettings();
     const bitDepth = r.bitDepth ?? lab.accessCopyBitDepth;
@@ -51,7 +75,15 @@ export async function requestRender(actor: SessionUser, input: unknown) {
     const sampleRateHz = rateChoice === "transfer" ? transfer.sample_rate_hz : rateChoice;
     const row = await trx
       .insertInto("renders")
-      .values({ side_id: side.id, transfer_id: transfer.id, curve_choice_id: choice.id, channel_mode: r.channelMode, bit_depth: bitDepth, sample_rate_hz: sampleRateHz, requested_by: actor.id })
+      .values({
+        side_id: side.id,
+        transfer_id: transfer.id,
+        curve_choice_id: choice.id,
+        channel_mode: r.channelMode,
+        bit_depth: bitDepth,
+        sample_rate_hz: sampleRateHz,
+        requested_by: actor.id,
+      })
       .returning("id")
       .executeTakeFirstOrThrow();
     await sendInTransaction(trx, RENDER_QUEUE, { renderId: row.id });
@@ -61,7 +93,15 @@ export async function requestRender(actor: SessionUser, input: unknown) {
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, renderId: row.id, transferId: transfer.id, curveChoiceId: choice.id, channelMode: r.channelMode, bitDepth, sampleRateHz },
+      payload: {
+        side: side.designation,
+        renderId: row.id,
+        transferId: transfer.id,
+        curveChoiceId: choice.id,
+        channelMode: r.channelMode,
+        bitDepth,
+        sampleRateHz,
+      },
     });
     return { renderId: row.id };
   });
@@ -105,7 +145,14 @@ export async function listRenders(sideId: string) {
         ...r,
         // Running, but its worker has not renewed the lease in time: it has stopped (lib/jobs/render-lease.ts).
         stalled: leaseIsStale({ status: r.status, heartbeatAt: r.heartbeatAt, startedAt }, now),
-        filter: r.filter === null ? null : parseStored(renderFilterRecordSchema, r.filter, { table: "renders", id: r.id, column: "filter" }),
+        filter:
+          r.filter === null
+            ? null
+            : parseStored(renderFilterRecordSchema, r.filter, {
+                table: "renders",
+                id: r.id,
+                column: "filter",
+              }),
       }));
     });
 }
@@ -121,13 +168,25 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
     const found = await trx.selectFrom("renders").select(["side_id"]).where("id", "=", id).executeTakeFirst();
     if (!found) throw new AppError("not_found", 404, "No such render.");
     const side = await lockSide(trx, found.side_id);
-    if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
-    const r = await trx.selectFrom("renders").select(["status", "progress", "heartbeat_at", "started_at"]).where("id", "=", id).forUpdate().executeTakeFirstOrThrow();
-    if (r.status !== "queued" && r.status !== "running") throw new AppError("conflict", 409, `The render is ${r.status}: there is nothing to cancel.`);
+    if (side.assigned_engineer_id !== actor.id)
+      throw new AppError("forbidden", 403, "This side is not assigned to you.");
+    const r = await trx
+      .selectFrom("renders")
+      .select(["status", "progress", "heartbeat_at", "started_at"])
+      .where("id", "=", id)
+      .forUpdate()
+      .executeTakeFirstOrThrow();
+    if (r.status !== "queued" && r.status !== "running")
+      throw new AppError("conflict", 409, `The render is ${r.status}: there is nothing to cancel.`);
     const stalled = leaseIsStale({ status: r.status, heartbeatAt: r.heartbeat_at, startedAt: r.started_at });
     await trx
       .updateTable("renders")
-      .set({ status: "cancelled", lease_owner: null, error: stalled ? "Cancelled by the engineer: its worker had stopped." : "Cancelled by the engineer.", finished_at: new Date() })
+      .set({
+        status: "cancelled",
+        lease_owner: null,
+        error: stalled ? "Cancelled by the engineer: its worker had stopped." : "Cancelled by the engineer.",
+        finished_at: new Date(),
+      })
       .where("id", "=", id)
       .execute();
     await appendEvent(trx, {
@@ -173,13 +232,25 @@ export async function listTransfers(sideId: string) {
 
 /** The download is named from stored text (a shelf mark, an engineer's file name): made safe for a header whatever it holds. */
 async function presignedGet(key: string, fileName: string): Promise<string> {
-  return getSignedUrl(s3(), new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: key, ResponseContentDisposition: attachmentDisposition(fileName, "transfer.wav") }), { expiresIn: 3600 });
+  return getSignedUrl(
+    s3(),
+    new GetObjectCommand({
+      Bucket: env().S3_BUCKET,
+      Key: key,
+      ResponseContentDisposition: attachmentDisposition(fileName, "transfer.wav"),
+    }),
+    { expiresIn: 3600 },
+  );
 }
 
 /** A short-lived URL to a transfer (flat) or an access copy, for download or for playback by byte ranges. */
 export async function downloadUrl(kind: "transfer" | "render", id: string): Promise<string> {
   if (kind === "transfer") {
-    const t = await db.selectFrom("transfers").select(["object_key", "file_name"]).where("id", "=", id).executeTakeFirst();
+    const t = await db
+      .selectFrom("transfers")
+      .select(["object_key", "file_name"])
+      .where("id", "=", id)
+      .executeTakeFirst();
     if (!t) throw new AppError("not_found", 404, "No such transfer.");
     return presignedGet(t.object_key, t.file_name);
   }
@@ -190,6 +261,7 @@ export async function downloadUrl(kind: "transfer" | "render", id: string): Prom
     .select(["r.object_key", "r.status", "d.shelf_mark", "s.designation"])
     .where("r.id", "=", id)
     .executeTakeFirst();
-  if (!r || r.status !== "done" || !r.object_key) throw new AppError("not_found", 404, "That access copy is not ready.");
+  if (!r || r.status !== "done" || !r.object_key)
+    throw new AppError("not_found", 404, "That access copy is not ready.");
   return presignedGet(r.object_key, `${r.shelf_mark}-${r.designation}-access.wav`);
 }

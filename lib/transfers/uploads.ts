@@ -20,7 +20,13 @@ import { appendEvent } from "../provenance";
 import { lockSide, transferAccepted } from "../sides/lifecycle";
 import { deleteObject, hashObject, objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
-import { completeUploadSchema, signPartsSchema, startUploadSchema, uploadableStatuses, uploadRefSchema } from "../validation/transfers";
+import {
+  completeUploadSchema,
+  signPartsSchema,
+  startUploadSchema,
+  uploadableStatuses,
+  uploadRefSchema,
+} from "../validation/transfers";
 
 type Upload = Selectable<UploadsTable>;
 
@@ -49,9 +55,14 @@ function objectKeyFor(sideId: string, uploadId: string): string {
 }
 
 async function sideForUpload(actor: SessionUser, sideId: string) {
-  const side = await db.selectFrom("sides").select(["id", "disc_id", "designation", "status", "assigned_engineer_id"]).where("id", "=", sideId).executeTakeFirst();
+  const side = await db
+    .selectFrom("sides")
+    .select(["id", "disc_id", "designation", "status", "assigned_engineer_id"])
+    .where("id", "=", sideId)
+    .executeTakeFirst();
   if (!side) throw new AppError("not_found", 404, "No such side.");
-  if (side.assigned_engineer_id !== actor.id) throw new AppError("forbidden", 403, "This side is not assigned to you.");
+  if (side.assigned_engineer_id !== actor.id)
+    throw new AppError("forbidden", 403, "This side is not assigned to you.");
   if (!uploadableStatuses.has(side.status)) {
     throw new AppError("conflict", 409, `The side is ${side.status.replace("_", " ")}: no new transfer now.`);
   }
@@ -62,7 +73,8 @@ async function sideForUpload(actor: SessionUser, sideId: string) {
 async function ownUpload(actor: SessionUser, uploadId: string) {
   const upload = await db.selectFrom("uploads").selectAll().where("id", "=", uploadId).executeTakeFirst();
   // Someone else's upload is not told apart from one that does not exist.
-  if (!upload || upload.started_by !== actor.id) throw new AppError("not_found", 404, "No such upload of yours. Start the upload again.");
+  if (!upload || upload.started_by !== actor.id)
+    throw new AppError("not_found", 404, "No such upload of yours. Start the upload again.");
   const side = await sideForUpload(actor, upload.side_id);
   return { upload, side };
 }
@@ -75,15 +87,45 @@ function closedError(u: Upload): AppError {
   const details = (uploadState: string) => ({ uploadState });
   switch (u.state) {
     case "completed":
-      return new AppError("conflict", 409, "This upload is already complete and its transfer recorded: there is nothing more to send for it.", undefined, details("completed"));
+      return new AppError(
+        "conflict",
+        409,
+        "This upload is already complete and its transfer recorded: there is nothing more to send for it.",
+        undefined,
+        details("completed"),
+      );
     case "completing":
-      return new AppError("conflict", 409, "This upload is being completed by another request right now: wait for that answer.", undefined, details("completing"));
+      return new AppError(
+        "conflict",
+        409,
+        "This upload is being completed by another request right now: wait for that answer.",
+        undefined,
+        details("completing"),
+      );
     case "aborted":
-      return new AppError("conflict", 409, `This upload was cancelled${why}. Start the upload again.`, undefined, details("aborted"));
+      return new AppError(
+        "conflict",
+        409,
+        `This upload was cancelled${why}. Start the upload again.`,
+        undefined,
+        details("aborted"),
+      );
     case "refused":
-      return new AppError("conflict", 409, `This upload was not accepted${why}. Start the upload again.`, undefined, details("refused"));
+      return new AppError(
+        "conflict",
+        409,
+        `This upload was not accepted${why}. Start the upload again.`,
+        undefined,
+        details("refused"),
+      );
     case "open":
-      return new AppError("expired", 410, `This upload expired (uploads can be resumed for ${uploadLifetimeHours} hours). Start the upload again.`, undefined, details("expired"));
+      return new AppError(
+        "expired",
+        410,
+        `This upload expired (uploads can be resumed for ${uploadLifetimeHours} hours). Start the upload again.`,
+        undefined,
+        details("expired"),
+      );
   }
 }
 
@@ -111,9 +153,17 @@ async function objectExists(key: string): Promise<boolean> {
 /** Drops whatever this upload stored: its unassembled parts and its assembled object. Only ever its own key. */
 async function dropStored(u: Upload): Promise<void> {
   await s3()
-    .send(new AbortMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id }))
+    .send(
+      new AbortMultipartUploadCommand({
+        Bucket: env().S3_BUCKET,
+        Key: u.object_key,
+        UploadId: u.storage_upload_id,
+      }),
+    )
     .catch(() => undefined); // already assembled or already gone; a bucket lifecycle rule sweeps what remains.
-  await deleteObject(u.object_key).catch((err) => console.error(`[rillbook] could not delete ${u.object_key}:`, err));
+  await deleteObject(u.object_key).catch((err) =>
+    console.error(`[rillbook] could not delete ${u.object_key}:`, err),
+  );
 }
 
 /** An open upload past its time: marked aborted and its parts dropped, once. */
@@ -143,11 +193,23 @@ async function signParts(u: Upload, partNumbers: number[]) {
     const message = `This upload was started for ${u.declared_bytes} bytes: ${u.part_count === 1 ? "one part" : `${u.part_count} parts`} of up to ${u.part_size} bytes. There is no part ${beyond[0]}.`;
     throw new AppError("invalid", 422, message, { partNumbers: [message] });
   }
-  const expiresIn = Math.max(1, Math.min(urlLifetimeSeconds, Math.floor((new Date(u.expires_at).getTime() - Date.now()) / 1000)));
+  const expiresIn = Math.max(
+    1,
+    Math.min(urlLifetimeSeconds, Math.floor((new Date(u.expires_at).getTime() - Date.now()) / 1000)),
+  );
   return Promise.all(
     [...new Set(partNumbers)].map(async (partNumber) => ({
       partNumber,
-      url: await getSignedUrl(s3(), new UploadPartCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id, PartNumber: partNumber }), { expiresIn }),
+      url: await getSignedUrl(
+        s3(),
+        new UploadPartCommand({
+          Bucket: env().S3_BUCKET,
+          Key: u.object_key,
+          UploadId: u.storage_upload_id,
+          PartNumber: partNumber,
+        }),
+        { expiresIn },
+      ),
     })),
   );
 }
@@ -166,13 +228,25 @@ export async function startUpload(actor: SessionUser, input: unknown) {
   const partCount = Math.ceil(bytes / partSize);
   let storageUploadId: string;
   try {
-    const created = await s3().send(new CreateMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, ContentType: "audio/wav" }));
+    const created = await s3().send(
+      new CreateMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, ContentType: "audio/wav" }),
+    );
     if (!created.UploadId) throw new Error("the storage gave no upload id");
     storageUploadId = created.UploadId;
   } catch (err) {
     throw storageUnavailable("start the upload", err);
   }
-  const values = { id, side_id: sideId, started_by: actor.id, object_key: key, storage_upload_id: storageUploadId, file_name: fileName, declared_bytes: bytes, part_size: partSize, part_count: partCount };
+  const values = {
+    id,
+    side_id: sideId,
+    started_by: actor.id,
+    object_key: key,
+    storage_upload_id: storageUploadId,
+    file_name: fileName,
+    declared_bytes: bytes,
+    part_size: partSize,
+    part_count: partCount,
+  };
   let upload: Upload;
   try {
     upload = await db
@@ -181,11 +255,19 @@ export async function startUpload(actor: SessionUser, input: unknown) {
       .returningAll()
       .executeTakeFirstOrThrow();
   } catch (err) {
-    await s3().send(new AbortMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, UploadId: storageUploadId })).catch(() => undefined);
+    await s3()
+      .send(new AbortMultipartUploadCommand({ Bucket: env().S3_BUCKET, Key: key, UploadId: storageUploadId }))
+      .catch(() => undefined);
     throw err;
   }
   const first = Array.from({ length: Math.min(partCount, 100) }, (_, i) => i + 1);
-  return { uploadId: id, partSize, partCount, expiresAt: upload.expires_at, urls: await signParts(upload, first) };
+  return {
+    uploadId: id,
+    partSize,
+    partCount,
+    expiresAt: upload.expires_at,
+    urls: await signParts(upload, first),
+  };
 }
 
 /** Fresh URLs for given parts (more parts, or a retry after a failure), never beyond the declared size. */
@@ -214,15 +296,24 @@ async function storedParts(u: Upload): Promise<StoredPart[]> {
   const parts: StoredPart[] = [];
   let marker: string | undefined;
   do {
-    const res = await s3().send(new ListPartsCommand({ Bucket: env().S3_BUCKET, Key: u.object_key, UploadId: u.storage_upload_id, PartNumberMarker: marker }));
-    for (const p of res.Parts ?? []) parts.push({ partNumber: p.PartNumber!, etag: p.ETag!, size: Number(p.Size ?? 0) });
+    const res = await s3().send(
+      new ListPartsCommand({
+        Bucket: env().S3_BUCKET,
+        Key: u.object_key,
+        UploadId: u.storage_upload_id,
+        PartNumberMarker: marker,
+      }),
+    );
+    for (const p of res.Parts ?? [])
+      parts.push({ partNumber: p.PartNumber!, etag: p.ETag!, size: Number(p.Size ?? 0) });
     marker = res.IsTruncated ? res.NextPartNumberMarker : undefined;
   } while (marker);
   return parts;
 }
 
 /** The size part `n` must have: the part size, the rest of the declared bytes for the last. */
-const expectedPartSize = (u: Upload, n: number) => (n < u.part_count ? u.part_size : u.declared_bytes - (u.part_count - 1) * u.part_size);
+const expectedPartSize = (u: Upload, n: number) =>
+  n < u.part_count ? u.part_size : u.declared_bytes - (u.part_count - 1) * u.part_size;
 const bareEtag = (etag: string) => etag.replace(/"/g, "");
 
 /**
@@ -237,16 +328,32 @@ async function checkStoredParts(u: Upload, parts: { partNumber: number; etag: st
   } catch (err) {
     const { status } = storageAnswer(err);
     if (status === 405 || status === 501) return;
-    if (status === 404) throw refusal("The storage no longer holds this upload's parts. Upload the file again.", undefined, 409);
+    if (status === 404)
+      throw refusal(
+        "The storage no longer holds this upload's parts. Upload the file again.",
+        undefined,
+        409,
+      );
     throw storageUnavailable("list the uploaded parts", err);
   }
   const byNumber = new Map(stored.map((p) => [p.partNumber, p]));
   for (const { partNumber, etag } of parts) {
     const p = byNumber.get(partNumber);
-    if (!p) throw refusal(`Part ${partNumber} never reached the storage. Upload the file again.`, { parts: [`Part ${partNumber} is missing.`] });
-    if (bareEtag(p.etag) !== bareEtag(etag)) throw refusal(`Part ${partNumber} in the storage is not the one your browser sent. Upload the file again.`, { parts: [`Part ${partNumber} differs.`] });
+    if (!p)
+      throw refusal(`Part ${partNumber} never reached the storage. Upload the file again.`, {
+        parts: [`Part ${partNumber} is missing.`],
+      });
+    if (bareEtag(p.etag) !== bareEtag(etag))
+      throw refusal(
+        `Part ${partNumber} in the storage is not the one your browser sent. Upload the file again.`,
+        { parts: [`Part ${partNumber} differs.`] },
+      );
     const want = expectedPartSize(u, partNumber);
-    if (p.size !== want) throw refusal(`Part ${partNumber} has ${p.size} bytes, but an upload started for ${u.declared_bytes} bytes needs ${want} there. Upload the file again.`, { parts: [`Part ${partNumber} has the wrong size.`] });
+    if (p.size !== want)
+      throw refusal(
+        `Part ${partNumber} has ${p.size} bytes, but an upload started for ${u.declared_bytes} bytes needs ${want} there. Upload the file again.`,
+        { parts: [`Part ${partNumber} has the wrong size.`] },
+      );
   }
 }
 
@@ -262,7 +369,11 @@ export async function abortUpload(actor: SessionUser, input: unknown) {
     .where("state", "=", "open")
     .executeTakeFirst();
   if (Number(done.numUpdatedRows) === 0) {
-    const now = await db.selectFrom("uploads").selectAll().where("id", "=", upload.id).executeTakeFirstOrThrow();
+    const now = await db
+      .selectFrom("uploads")
+      .selectAll()
+      .where("id", "=", upload.id)
+      .executeTakeFirstOrThrow();
     if (now.state === "aborted") return { aborted: true };
     throw closedError(now);
   }
@@ -277,7 +388,8 @@ class Refusal extends Error {
   }
 }
 
-const refusal = (message: string, fields?: Record<string, string[]>, status = 422) => new Refusal(new AppError("invalid", status, message, fields, { uploadState: "refused" }));
+const refusal = (message: string, fields?: Record<string, string[]>, status = 422) =>
+  new Refusal(new AppError("invalid", status, message, fields, { uploadState: "refused" }));
 
 /**
  * Takes the upload for one completion. A conditional update, so of two completions sent
@@ -290,7 +402,15 @@ async function claimForCompletion(u: Upload): Promise<string> {
     .set({ state: "completing", claim, claimed_at: sql`now()`, updated_at: sql`now()` })
     .where("id", "=", u.id)
     .where("expires_at", ">", sql<Date>`now()`)
-    .where((eb) => eb.or([eb("state", "=", "open"), eb.and([eb("state", "=", "completing"), eb("claimed_at", "<", sql<Date>`now() - make_interval(mins => ${claimLeaseMinutes})`)])]))
+    .where((eb) =>
+      eb.or([
+        eb("state", "=", "open"),
+        eb.and([
+          eb("state", "=", "completing"),
+          eb("claimed_at", "<", sql<Date>`now() - make_interval(mins => ${claimLeaseMinutes})`),
+        ]),
+      ]),
+    )
     .executeTakeFirst();
   if (Number(taken.numUpdatedRows) === 1) return claim;
   const now = await db.selectFrom("uploads").selectAll().where("id", "=", u.id).executeTakeFirstOrThrow();
@@ -300,14 +420,26 @@ async function claimForCompletion(u: Upload): Promise<string> {
 
 /** Gives the upload back as open (a passing failure: the storage did not answer), if this completion still holds it. */
 async function release(u: Upload, claim: string): Promise<void> {
-  await db.updateTable("uploads").set({ state: "open", claim: null, claimed_at: null, updated_at: sql`now()` }).where("id", "=", u.id).where("claim", "=", claim).execute();
+  await db
+    .updateTable("uploads")
+    .set({ state: "open", claim: null, claimed_at: null, updated_at: sql`now()` })
+    .where("id", "=", u.id)
+    .where("claim", "=", claim)
+    .execute();
 }
 
 /** Refuses the upload and deletes what it stored, if this completion still holds it: never anything but its own object. */
 async function refuse(u: Upload, claim: string, reason: string): Promise<void> {
   const done = await db
     .updateTable("uploads")
-    .set({ state: "refused", reason: reason.slice(0, 1000), claim: null, claimed_at: null, finished_at: sql`now()`, updated_at: sql`now()` })
+    .set({
+      state: "refused",
+      reason: reason.slice(0, 1000),
+      claim: null,
+      claimed_at: null,
+      finished_at: sql`now()`,
+      updated_at: sql`now()`,
+    })
     .where("id", "=", u.id)
     .where("claim", "=", claim)
     .executeTakeFirst();
@@ -329,8 +461,16 @@ async function assemble(u: Upload, parts: { partNumber: number; etag: string }[]
     // A completion that died after the storage assembled the file left it in place; this key is this upload's alone.
     if (await objectExists(u.object_key)) return;
     const { status, code } = storageAnswer(err);
-    if (status === 404) throw refusal("The storage no longer holds this upload's parts. Upload the file again.", undefined, 409);
-    if (status !== undefined && status >= 400 && status < 500) throw refusal(`The storage refused to put the parts together (${code ?? status}). Upload the file again.`);
+    if (status === 404)
+      throw refusal(
+        "The storage no longer holds this upload's parts. Upload the file again.",
+        undefined,
+        409,
+      );
+    if (status !== undefined && status >= 400 && status < 500)
+      throw refusal(
+        `The storage refused to put the parts together (${code ?? status}). Upload the file again.`,
+      );
     throw storageUnavailable("put the uploaded parts together", err);
   }
 }
@@ -349,23 +489,39 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
   const claim = await claimForCompletion(upload);
   try {
     const declared = upload.declared_bytes;
-    if (c.bytes !== declared) throw refusal(`The file has ${c.bytes} bytes, but this upload was started for ${declared}. Upload the file again.`, { bytes: ["Not the size the upload was started for."] });
+    if (c.bytes !== declared)
+      throw refusal(
+        `The file has ${c.bytes} bytes, but this upload was started for ${declared}. Upload the file again.`,
+        { bytes: ["Not the size the upload was started for."] },
+      );
     const parts = [...c.parts].sort((a, b) => a.partNumber - b.partNumber);
     if (parts.length !== upload.part_count || parts.some((p, i) => p.partNumber !== i + 1)) {
       const expected = upload.part_count === 1 ? "part 1" : `parts 1 to ${upload.part_count}`;
-      throw refusal(`An upload of ${declared} bytes is made of ${expected}, each once. Upload the file again.`, { parts: [`Send ${expected}.`] });
+      throw refusal(
+        `An upload of ${declared} bytes is made of ${expected}, each once. Upload the file again.`,
+        { parts: [`Send ${expected}.`] },
+      );
     }
     await checkStoredParts(upload, parts);
     await assemble(upload, parts);
     const stored = await objectSource(upload.object_key).catch((err) => {
       throw storageUnavailable("read the uploaded file", err);
     });
-    if (stored.size !== declared) throw refusal(`The stored file has ${stored.size} bytes, not the ${declared} this upload was started for. Upload the file again.`);
+    if (stored.size !== declared)
+      throw refusal(
+        `The stored file has ${stored.size} bytes, not the ${declared} this upload was started for. Upload the file again.`,
+      );
     const { sha256, bytes } = await hashObject(upload.object_key).catch((err) => {
       throw storageUnavailable("read the uploaded file", err);
     });
-    if (bytes !== declared) throw refusal(`The stored file has ${bytes} bytes, not the ${declared} this upload was started for. Upload the file again.`);
-    if (sha256 !== c.sha256) throw refusal(`The stored file's SHA-256 (${sha256.slice(0, 12)}…) does not match the one your browser computed (${c.sha256.slice(0, 12)}…). Upload it again.`);
+    if (bytes !== declared)
+      throw refusal(
+        `The stored file has ${bytes} bytes, not the ${declared} this upload was started for. Upload the file again.`,
+      );
+    if (sha256 !== c.sha256)
+      throw refusal(
+        `The stored file's SHA-256 (${sha256.slice(0, 12)}…) does not match the one your browser computed (${c.sha256.slice(0, 12)}…). Upload it again.`,
+      );
     let header;
     try {
       header = await readWavHeader(stored);
@@ -374,8 +530,18 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
       throw storageUnavailable("read the uploaded file's header", err);
     }
     return await db.transaction().execute(async (trx) => {
-      const held = await trx.selectFrom("uploads").select(["state", "claim"]).where("id", "=", upload.id).forUpdate().executeTakeFirstOrThrow();
-      if (held.state !== "completing" || held.claim !== claim) throw new AppError("conflict", 409, "This upload was taken over by another completion: wait for that answer.");
+      const held = await trx
+        .selectFrom("uploads")
+        .select(["state", "claim"])
+        .where("id", "=", upload.id)
+        .forUpdate()
+        .executeTakeFirstOrThrow();
+      if (held.state !== "completing" || held.claim !== claim)
+        throw new AppError(
+          "conflict",
+          409,
+          "This upload was taken over by another completion: wait for that answer.",
+        );
       const locked = await lockSide(trx, side.id);
       const row = await trx
         .insertInto("transfers")
@@ -417,11 +583,35 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
         subjectType: "side",
         subjectId: side.id,
         discId: side.disc_id,
-        payload: { side: side.designation, transferId: row.id, uploadId: upload.id, objectKey: upload.object_key, fileName: upload.file_name, bytes, sha256, technical, bext: header.bext ?? null, stylusSize: c.stylusSize, stylusShape: c.stylusShape, measuredSpeedRpm: c.measuredSpeedRpm ?? null, chain: c.chain },
+        payload: {
+          side: side.designation,
+          transferId: row.id,
+          uploadId: upload.id,
+          objectKey: upload.object_key,
+          fileName: upload.file_name,
+          bytes,
+          sha256,
+          technical,
+          bext: header.bext ?? null,
+          stylusSize: c.stylusSize,
+          stylusShape: c.stylusShape,
+          measuredSpeedRpm: c.measuredSpeedRpm ?? null,
+          chain: c.chain,
+        },
       });
       // The new transfer is the side's current one; what was rendered from the old one is superseded.
       await transferAccepted(trx, actor, locked, row.id);
-      await trx.updateTable("uploads").set({ state: "completed", claim: null, claimed_at: null, finished_at: sql`now()`, updated_at: sql`now()` }).where("id", "=", upload.id).execute();
+      await trx
+        .updateTable("uploads")
+        .set({
+          state: "completed",
+          claim: null,
+          claimed_at: null,
+          finished_at: sql`now()`,
+          updated_at: sql`now()`,
+        })
+        .where("id", "=", upload.id)
+        .execute();
       return { transferId: row.id, sha256, bytes, technical };
     });
   } catch (err) {

@@ -16,7 +16,10 @@ export const passwordSchema = z
   .min(12, "Use at least 12 characters for the password.")
   .max(200, "Use at most 200 characters for the password.");
 
-export const nameSchema = cleanString().trim().min(1, "Enter your name.").max(120, "Use at most 120 characters for the name.");
+export const nameSchema = cleanString()
+  .trim()
+  .min(1, "Enter your name.")
+  .max(120, "Use at most 120 characters for the name.");
 
 export const roleSchema = z.enum(roles, { error: `Unknown role: choose one of ${roles.join(", ")}.` });
 
@@ -39,6 +42,11 @@ export const acceptInvitationSchema = z
 
 export const resetRequestSchema = z.object({ email: emailSchema });
 
-export const resetPasswordSchema = z.object({ token: z.string().min(20, "This link is incomplete.") }).and(newPassword);
+export const resetPasswordSchema = z
+  .object({ token: z.string().min(20, "This link is incomplete.") })
+  .and(newPassword);
 
-export const signInSchema = z.object({ email: emailSchema, password: z.string().min(1, "Enter your password.") });
+export const signInSchema = z.object({
+  email: emailSchema,
+  password: z.string().min(1, "Enter your password."),
+});

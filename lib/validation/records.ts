@@ -27,9 +27,15 @@ export const renderFilterRecordSchema = z.object({
 export type StoredRenderFilter = z.infer<typeof renderFilterRecordSchema>;
 
 /** Parses one stored JSON value; a mismatch names the table, the row and the field. */
-export function parseStored<T>(schema: z.ZodType<T>, value: unknown, where: { table: string; id: string; column: string }): T {
+export function parseStored<T>(
+  schema: z.ZodType<T>,
+  value: unknown,
+  where: { table: string; id: string; column: string },
+): T {
   const r = schema.safeParse(value);
   if (r.success) return r.data;
   const issue = r.error.issues[0];
-  throw new Error(`${where.table} ${where.id}: ${where.column}${issue?.path.length ? `.${issue.path.join(".")}` : ""} does not hold what it should (${issue?.message ?? "invalid"}).`);
+  throw new Error(
+    `${where.table} ${where.id}: ${where.column}${issue?.path.length ? `.${issue.path.join(".")}` : ""} does not hold what it should (${issue?.message ?? "invalid"}).`,
+  );
 }

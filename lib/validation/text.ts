@@ -8,7 +8,8 @@ import { AppError } from "../http/errors";
 // Both are refused where they come in, with a field error, instead of answering 500 or
 // storing something other than what was sent.
 
-export const badTextMessage = "This text holds a NUL character (U+0000) or a broken Unicode character: remove it.";
+export const badTextMessage =
+  "This text holds a NUL character (U+0000) or a broken Unicode character: remove it.";
 
 const loneSurrogate = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
 

@@ -6,13 +6,35 @@ import { curveSpecSchema } from "./curves";
 // uses them to lock its forms). The order: assigned → flat transfer accepted → curve chosen
 // → rendered → in review → approved or returned.
 /** Where a flat transfer may be uploaded: from assignment until the side is sent for review; it never waits for the curve. */
-export const uploadableStatuses: ReadonlySet<SideStatusName> = new Set(["assigned", "returned", "transferred", "curve_chosen", "rendered"]);
+export const uploadableStatuses: ReadonlySet<SideStatusName> = new Set([
+  "assigned",
+  "returned",
+  "transferred",
+  "curve_chosen",
+  "rendered",
+]);
 /** Where a curve may be recorded or changed: from assignment (even before the transfer) until review. */
-export const curveChoosableStatuses: ReadonlySet<SideStatusName> = new Set(["assigned", "returned", "transferred", "curve_chosen", "rendered"]);
+export const curveChoosableStatuses: ReadonlySet<SideStatusName> = new Set([
+  "assigned",
+  "returned",
+  "transferred",
+  "curve_chosen",
+  "rendered",
+]);
 /** Where an access copy may be rendered: once a transfer and a curve stand, until review. */
-export const renderableStatuses: ReadonlySet<SideStatusName> = new Set(["curve_chosen", "rendered", "returned"]);
+export const renderableStatuses: ReadonlySet<SideStatusName> = new Set([
+  "curve_chosen",
+  "rendered",
+  "returned",
+]);
 
-export const evidenceKinds = ["published_guidance", "test_disc", "listening", "disc_documentation", "other"] as const;
+export const evidenceKinds = [
+  "published_guidance",
+  "test_disc",
+  "listening",
+  "disc_documentation",
+  "other",
+] as const;
 export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {
   published_guidance: "Published guidance for the label and era",
   test_disc: "Test-disc measurement fitted in the workbench",
@@ -21,7 +43,11 @@ export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {
   other: "Other",
 };
 
-const speed = (what: string) => z.coerce.number({ error: `${what} must be a number (rpm).` }).positive(`${what} must be above 0 rpm.`).max(200, `${what} over 200 rpm? Check the value.`);
+const speed = (what: string) =>
+  z.coerce
+    .number({ error: `${what} must be a number (rpm).` })
+    .positive(`${what} must be above 0 rpm.`)
+    .max(200, `${what} over 200 rpm? Check the value.`);
 
 /** A curve choice for one or more sides: a preset version, overrides for these sides, the two speeds, and why. */
 export const curveChoiceSchema = z
@@ -36,8 +62,14 @@ export const curveChoiceSchema = z
     evidenceKind: z.enum(evidenceKinds, { error: "Say what the choice rests on." }),
     evidence: z.string().trim().max(4000).default(""),
   })
-  .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), { path: ["presetVersion"], message: "Name the preset's version with the preset." })
-  .refine((v) => v.presetId !== undefined || Object.keys(v.overrides).length > 0, { path: ["presetId"], message: "Choose a preset or give the curve's values." });
+  .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), {
+    path: ["presetVersion"],
+    message: "Name the preset's version with the preset.",
+  })
+  .refine((v) => v.presetId !== undefined || Object.keys(v.overrides).length > 0, {
+    path: ["presetId"],
+    message: "Choose a preset or give the curve's values.",
+  });
 
 /** Rates an access copy may be written at besides the transfer's own ("transfer"). */
 export const accessCopyRates = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000] as const;
@@ -45,11 +77,18 @@ export const accessCopyRates = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000
 /** An access copy's rate, for a render request and for the lab's default alike. */
 export const accessCopyRateSchema = z.union([
   z.literal("transfer"),
-  z.coerce.number().refine((v) => (accessCopyRates as readonly number[]).includes(v), `Choose one of ${accessCopyRates.join(", ")} Hz, or the transfer's rate.`),
+  z.coerce
+    .number()
+    .refine(
+      (v) => (accessCopyRates as readonly number[]).includes(v),
+      `Choose one of ${accessCopyRates.join(", ")} Hz, or the transfer's rate.`,
+    ),
 ]);
 
 /** An access copy's word length, for a render request and for the lab's default alike. */
-export const accessCopyBitDepthSchema = z.coerce.number().refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.");
+export const accessCopyBitDepthSchema = z.coerce
+  .number()
+  .refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.");
 
 export const channelModes = ["both", "sum", "difference", "left", "right"] as const;
 export const channelModeLabels: Record<(typeof channelModes)[number], string> = {
@@ -74,7 +113,11 @@ const fileName = z
 export const startUploadSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),
   fileName,
-  bytes: z.coerce.number().int().positive("The file is empty (0 bytes).").max(maxTransferBytes, "Files over 64 GiB are not accepted."),
+  bytes: z.coerce
+    .number()
+    .int()
+    .positive("The file is empty (0 bytes).")
+    .max(maxTransferBytes, "Files over 64 GiB are not accepted."),
 });
 
 /** An upload as the client names it: by the id the server gave it when it started, and nothing else. */
@@ -83,15 +126,30 @@ const uploadId = z.uuid({ error: "Unknown upload: use the id Rillbook gave when 
 export const uploadRefSchema = z.object({ uploadId });
 
 export const signPartsSchema = uploadRefSchema.extend({
-  partNumbers: z.array(z.number({ error: "Part numbers are whole numbers." }).int("Part numbers are whole numbers.").min(1, "Parts are numbered from 1.").max(10_000, "S3 allows 10 000 parts at most.")).min(1, "Name at least one part.").max(1000, "At most 1000 parts at a time."),
+  partNumbers: z
+    .array(
+      z
+        .number({ error: "Part numbers are whole numbers." })
+        .int("Part numbers are whole numbers.")
+        .min(1, "Parts are numbered from 1.")
+        .max(10_000, "S3 allows 10 000 parts at most."),
+    )
+    .min(1, "Name at least one part.")
+    .max(1000, "At most 1000 parts at a time."),
 });
 
 export const completeUploadSchema = uploadRefSchema.extend({
-  parts: z.array(z.object({ partNumber: z.number().int().min(1).max(10_000), etag: z.string().min(1).max(200) })).min(1).max(10_000),
+  parts: z
+    .array(z.object({ partNumber: z.number().int().min(1).max(10_000), etag: z.string().min(1).max(200) }))
+    .min(1)
+    .max(10_000),
   sha256: z.string().regex(/^[0-9a-f]{64}$/, "The SHA-256 must be 64 lower-case hex digits."),
   bytes: z.coerce.number().int().positive(),
   stylusSize: z.string().trim().max(80).default(""),
   stylusShape: z.string().trim().max(80).default(""),
-  measuredSpeedRpm: z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number().positive("Measured speed must be above 0 rpm.").max(200).optional()),
+  measuredSpeedRpm: z.preprocess(
+    (v) => (v === "" || v === null ? undefined : v),
+    z.coerce.number().positive("Measured speed must be above 0 rpm.").max(200).optional(),
+  ),
   chain: z.string().trim().max(4000).default(""),
 });

@@ -21,7 +21,9 @@ const base = new URL(env().DATABASE_OWNER_URL ?? env().DATABASE_URL);
 const benchName = "rillbook_bench";
 
 async function recreateDatabase(): Promise<string> {
-  const admin = new pg.Client({ connectionString: Object.assign(new URL(base), { pathname: "/postgres" }).toString() });
+  const admin = new pg.Client({
+    connectionString: Object.assign(new URL(base), { pathname: "/postgres" }).toString(),
+  });
   await admin.connect();
   await admin.query(`DROP DATABASE IF EXISTS ${benchName}`);
   await admin.query(`CREATE DATABASE ${benchName}`);
@@ -34,10 +36,53 @@ async function main(): Promise<void> {
   await migrateToLatest({ ownerUrl: url });
   const db = createDb(url, 4);
   const t0 = performance.now();
-  await sql`INSERT INTO accessions (identifier, source, received_on) SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(db);
-  const labels = ["Brindlecord", "Quellstone", "Varrowby", "Ashgrove Phonic", "Oxley & Vane", "Tarnwell", "Pellory", "Cindermoor Transcriptions", "Fenlow Recording Service", "Larkspur Microgroove"];
-  const words = ["Lantern", "Harbour", "Meadow", "Winter", "River", "Evening", "Copper", "Blue", "Orchard", "Moonlit", "Willow", "Northern", "Candle", "Garden"];
-  const names = ["Carrow", "Dunmore", "Ellery", "Farrant", "Gilby", "Hesketh", "Jessop", "Kettle", "Lanyon", "Marl", "Norcott", "Pennock", "Quarrie", "Selby"];
+  await sql`INSERT INTO accessions (identifier, source, received_on) SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(
+    db,
+  );
+  const labels = [
+    "Brindlecord",
+    "Quellstone",
+    "Varrowby",
+    "Ashgrove Phonic",
+    "Oxley & Vane",
+    "Tarnwell",
+    "Pellory",
+    "Cindermoor Transcriptions",
+    "Fenlow Recording Service",
+    "Larkspur Microgroove",
+  ];
+  const words = [
+    "Lantern",
+    "Harbour",
+    "Meadow",
+    "Winter",
+    "River",
+    "Evening",
+    "Copper",
+    "Blue",
+    "Orchard",
+    "Moonlit",
+    "Willow",
+    "Northern",
+    "Candle",
+    "Garden",
+  ];
+  const names = [
+    "Carrow",
+    "Dunmore",
+    "Ellery",
+    "Farrant",
+    "Gilby",
+    "Hesketh",
+    "Jessop",
+    "Kettle",
+    "Lanyon",
+    "Marl",
+    "Norcott",
+    "Pennock",
+    "Quarrie",
+    "Selby",
+  ];
   await sql`
     INSERT INTO discs (accession_id, shelf_mark, label_name, catalogue_number, format, nominal_speed_rpm, groove, cut, recorded_from_year, recorded_to_year, condition_grade)
     SELECT (SELECT id FROM accessions ORDER BY identifier OFFSET (g % 50) LIMIT 1),
@@ -71,11 +116,23 @@ async function main(): Promise<void> {
     FROM (SELECT disc_id, string_agg(title || ' ' || performers || ' ' || matrix_number, ' ') words, string_agg(matrix_number, ' ') codes FROM sides GROUP BY disc_id) s
     WHERE d.id = s.disc_id`.execute(db);
   await sql`VACUUM ANALYZE`.execute(db);
-  const counts = await sql<{ discs: number; sides: number }>`SELECT (SELECT count(*)::int FROM discs) discs, (SELECT count(*)::int FROM sides) sides`.execute(db);
-  console.log(`built ${counts.rows[0].discs} discs, ${counts.rows[0].sides} sides in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+  const counts = await sql<{
+    discs: number;
+    sides: number;
+  }>`SELECT (SELECT count(*)::int FROM discs) discs, (SELECT count(*)::int FROM sides) sides`.execute(db);
+  console.log(
+    `built ${counts.rows[0].discs} discs, ${counts.rows[0].sides} sides in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
+  );
 
-  const someAccession = (await db.selectFrom("accessions").select("id").limit(1).offset(7).executeTakeFirstOrThrow()).id;
-  const sample = await db.selectFrom("sides").select("matrix_number").limit(1).offset(12345 % counts.rows[0].sides).executeTakeFirstOrThrow();
+  const someAccession = (
+    await db.selectFrom("accessions").select("id").limit(1).offset(7).executeTakeFirstOrThrow()
+  ).id;
+  const sample = await db
+    .selectFrom("sides")
+    .select("matrix_number")
+    .limit(1)
+    .offset(12345 % counts.rows[0].sides)
+    .executeTakeFirstOrThrow();
   const queries: Record<string, Record<string, unknown>> = {
     "first page, by shelf mark": {},
     "page 40, newest first": { sort: "-updatedAt", page: 40 },
@@ -101,16 +158,34 @@ async function main(): Promise<void> {
     const at = (p: number) => times[Math.min(times.length - 1, Math.floor(p * times.length))];
     results.push({ name, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: times[times.length - 1] });
   }
-  console.log(`\n${runs} runs each (time = the whole list call: rows, count and sides, as the API does it)\n`);
-  console.log(`${"query".padEnd(34)} ${"p50 ms".padStart(8)} ${"p95 ms".padStart(8)} ${"p99 ms".padStart(8)}`);
-  for (const r of results) console.log(`${r.name.padEnd(34)} ${r.p50.toFixed(2).padStart(8)} ${r.p95.toFixed(2).padStart(8)} ${r.p99.toFixed(2).padStart(8)}`);
+  console.log(
+    `\n${runs} runs each (time = the whole list call: rows, count and sides, as the API does it)\n`,
+  );
+  console.log(
+    `${"query".padEnd(34)} ${"p50 ms".padStart(8)} ${"p95 ms".padStart(8)} ${"p99 ms".padStart(8)}`,
+  );
+  for (const r of results)
+    console.log(
+      `${r.name.padEnd(34)} ${r.p50.toFixed(2).padStart(8)} ${r.p95.toFixed(2).padStart(8)} ${r.p99.toFixed(2).padStart(8)}`,
+    );
   const slowest = results.reduce((a, b) => (b.p95 > a.p95 ? b : a));
-  console.log(`\nslowest by p95: ${slowest.name} (${slowest.p95.toFixed(2)} ms); goal p95 < 50 ms: ${results.every((r) => r.p95 < 50) ? "met" : "NOT met"}`);
+  console.log(
+    `\nslowest by p95: ${slowest.name} (${slowest.p95.toFixed(2)} ms); goal p95 < 50 ms: ${results.every((r) => r.p95 < 50) ? "met" : "NOT met"}`,
+  );
 
   // The plan of the slowest query's row fetch, as PostgreSQL runs it.
   const q = discListQuerySchema.parse(queries[slowest.name]);
-  const rowsQuery = filteredDiscs(db, q).select(["d.id", "d.shelf_mark"]).orderBy("d.shelf_mark").limit(q.pageSize).offset((q.page - 1) * q.pageSize).compile();
-  const plan = await sql.raw<{ "QUERY PLAN": string }>(`EXPLAIN (ANALYZE, BUFFERS) ${rowsQuery.sql.replace(/\$(\d+)/g, (_, n) => literal(rowsQuery.parameters[Number(n) - 1]))}`).execute(db);
+  const rowsQuery = filteredDiscs(db, q)
+    .select(["d.id", "d.shelf_mark"])
+    .orderBy("d.shelf_mark")
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize)
+    .compile();
+  const plan = await sql
+    .raw<{ "QUERY PLAN": string }>(
+      `EXPLAIN (ANALYZE, BUFFERS) ${rowsQuery.sql.replace(/\$(\d+)/g, (_, n) => literal(rowsQuery.parameters[Number(n) - 1]))}`,
+    )
+    .execute(db);
   console.log(`\nplan of "${slowest.name}":`);
   for (const row of plan.rows) console.log(`  ${row["QUERY PLAN"]}`);
   await db.destroy();

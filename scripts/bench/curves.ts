@@ -25,13 +25,22 @@ function timeIt(label: string, unit: string, fn: () => number, minMs = 1500): vo
     elapsed = performance.now() - t0;
   }
   const perSecond = (count / elapsed) * 1000;
-  console.log(`${label.padEnd(58)} ${perSecond.toFixed(perSecond < 100 ? 1 : 0).padStart(12)} ${unit}/s  (${((elapsed / count) * 1000).toFixed(1)} µs each)`);
+  console.log(
+    `${label.padEnd(58)} ${perSecond.toFixed(perSecond < 100 ? 1 : 0).padStart(12)} ${unit}/s  (${((elapsed / count) * 1000).toFixed(1)} µs each)`,
+  );
 }
 
 const specs: [string, CurveSpec][] = [
   ["RIAA", RIAA_SPEC],
   ["IEC with 7950 µs high-pass", IEC_HIGHPASS_SPEC],
-  ["turnover 800 Hz, 16 dB, no shelf + high-pass", { turnover: { unit: "hz", value: 800 }, rolloff: { unit: "db10k", value: 16 }, highpass: { unit: "us", value: 7950 } }],
+  [
+    "turnover 800 Hz, 16 dB, no shelf + high-pass",
+    {
+      turnover: { unit: "hz", value: 800 },
+      rolloff: { unit: "db10k", value: 16 },
+      highpass: { unit: "us", value: 7950 },
+    },
+  ],
 ];
 
 console.log(`curve maths benchmark (node ${process.version})`);
@@ -59,10 +68,15 @@ timeIt("IIR (SOS) response, 1000 frequencies per call", "evaluations", () => {
 for (const [name, spec] of specs.slice(0, 3)) {
   for (const rate of [44_100, 96_000, 384_000]) {
     let taps = 0;
-    timeIt(`render filter design, ${name} @ ${rate}`, "designs", () => {
-      taps = designRenderFilter(spec, rate).taps.length;
-      return 1;
-    }, 1000);
+    timeIt(
+      `render filter design, ${name} @ ${rate}`,
+      "designs",
+      () => {
+        taps = designRenderFilter(spec, rate).taps.length;
+        return 1;
+      },
+      1000,
+    );
     void taps;
   }
 }

@@ -26,7 +26,6 @@ import { designIir, designRenderFilter, RIAA_SPEC } from "../../lib/curves";
 const RATE_HZ = 96_000;
 const run = promisify(execFile);
 
-
 async function child(input: string, output: string, ceilingDbfs: number): Promise<void> {
   const t0 = performance.now();
   const source = await openFileSource(input);
@@ -58,7 +57,12 @@ async function child(input: string, output: string, ceilingDbfs: number): Promis
 }
 
 async function generate(path: string, frames: number): Promise<void> {
-  const w = await BwfWriter.create(path, { sampleRateHz: RATE_HZ, channels: 2, encoding: { format: "pcm", bitsPerSample: 24 }, bext: { description: "Rillbook render benchmark" } });
+  const w = await BwfWriter.create(path, {
+    sampleRateHz: RATE_HZ,
+    channels: 2,
+    encoding: { format: "pcm", bitsPerSample: 24 },
+    bext: { description: "Rillbook render benchmark" },
+  });
   const chunk = 1 << 16;
   let seed = 12345;
   const noise = () => {
@@ -72,7 +76,8 @@ async function generate(path: string, frames: number): Promise<void> {
     for (let i = 0; i < n; i++) {
       const t = (start + i) / RATE_HZ;
       l[i] = 0.05 * noise() + 0.03 * Math.sin(2 * Math.PI * 60 * t) + 0.02 * Math.sin(2 * Math.PI * 3150 * t);
-      r[i] = 0.05 * noise() + 0.03 * Math.sin(2 * Math.PI * 440 * t) + 0.01 * Math.sin(2 * Math.PI * 12_000 * t);
+      r[i] =
+        0.05 * noise() + 0.03 * Math.sin(2 * Math.PI * 440 * t) + 0.01 * Math.sin(2 * Math.PI * 12_000 * t);
     }
     await w.write([l, r], n);
   }
@@ -89,10 +94,25 @@ async function pinnedCommand(): Promise<string[]> {
   }
 }
 
-function runChild(pin: string[], input: string, output: string, ceilingDbfs = 0): Promise<{ wallMs: number; report: Record<string, number | string | null> }> {
+function runChild(
+  pin: string[],
+  input: string,
+  output: string,
+  ceilingDbfs = 0,
+): Promise<{ wallMs: number; report: Record<string, number | string | null> }> {
   const self = fileURLToPath(import.meta.url);
   const t0 = performance.now();
-  const argv = [...pin, process.execPath, "--import", "tsx", self, "--child", input, output, String(ceilingDbfs)];
+  const argv = [
+    ...pin,
+    process.execPath,
+    "--import",
+    "tsx",
+    self,
+    "--child",
+    input,
+    output,
+    String(ceilingDbfs),
+  ];
   return new Promise((resolve, reject) => {
     const p = spawn(argv[0], argv.slice(1), { stdio: ["ignore", "pipe", "inherit"] });
     let out = "";
@@ -115,17 +135,25 @@ async function main(): Promise<void> {
     const output = join(dir, "access.wav");
     const soxOut = join(dir, "sox.wav");
     const tapsFile = join(dir, "taps.txt");
-    console.log(`render benchmark (node ${process.version}, sox ${(await run("sox", ["--version"])).stdout.trim().replace(/^sox:\s*/, "")})`);
+    console.log(
+      `render benchmark (node ${process.version}, sox ${(await run("sox", ["--version"])).stdout.trim().replace(/^sox:\s*/, "")})`,
+    );
     console.log(`input: ${minutes} min, ${RATE_HZ} Hz, 24-bit stereo = ${frames} frames`);
     let t = performance.now();
     await generate(input, frames);
-    console.log(`generated ${((await stat(input)).size / 1e9).toFixed(3)} GB in ${((performance.now() - t) / 1000).toFixed(1)} s`);
+    console.log(
+      `generated ${((await stat(input)).size / 1e9).toFixed(3)} GB in ${((performance.now() - t) / 1000).toFixed(1)} s`,
+    );
 
     const filter = designRenderFilter(RIAA_SPEC, RATE_HZ);
     await writeFile(tapsFile, `${Array.from(filter.taps, (v) => v.toPrecision(17)).join("\n")}\n`);
 
     const pin = await pinnedCommand();
-    console.log(pin.length ? "both renders pinned to CPU 0 (taskset -c 0)" : "taskset not found: renders not pinned to one CPU");
+    console.log(
+      pin.length
+        ? "both renders pinned to CPU 0 (taskset -c 0)"
+        : "taskset not found: renders not pinned to one CPU",
+    );
     const { wallMs, report } = await runChild(pin, input, output);
     const samples = frames * 2;
     const renderS = (report.renderMs as number) / 1000;
@@ -141,20 +169,42 @@ async function main(): Promise<void> {
 
     // The same curve as IIR sections through sox's biquad, one effect per section.
     const sections = designIir(RIAA_SPEC, RATE_HZ).sos;
-    const biquadArgv = [...pin, "sox", "--single-threaded", input, "-b", "24", soxOut, ...sections.flatMap((row) => ["biquad", ...row.map((v) => v.toPrecision(17))])];
+    const biquadArgv = [
+      ...pin,
+      "sox",
+      "--single-threaded",
+      input,
+      "-b",
+      "24",
+      soxOut,
+      ...sections.flatMap((row) => ["biquad", ...row.map((v) => v.toPrecision(17))]),
+    ];
     t = performance.now();
     await run(biquadArgv[0], biquadArgv.slice(1), { maxBuffer: 1 << 20 });
     const biquadS = (performance.now() - t) / 1000;
     await rm(soxOut, { force: true });
 
     const audioS = frames / RATE_HZ;
-    const mb = (kb: number | string | null) => (typeof kb !== "number" ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`);
-    console.log(`RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`);
-    console.log(`Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`);
-    console.log(`sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`);
-    console.log(`sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`);
-    console.log(`ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)} against sox fir (the same filter); ${(ours / (samples / biquadS)).toFixed(2)} against sox biquad (the IIR sections: the curve's magnitude, not its phase)`);
-    console.log(`Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`);
+    const mb = (kb: number | string | null) =>
+      typeof kb !== "number" ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`;
+    console.log(
+      `RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`,
+    );
+    console.log(
+      `Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`,
+    );
+    console.log(
+      `sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`,
+    );
+    console.log(
+      `sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`,
+    );
+    console.log(
+      `ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)} against sox fir (the same filter); ${(ours / (samples / biquadS)).toFixed(2)} against sox biquad (the IIR sections: the curve's magnitude, not its phase)`,
+    );
+    console.log(
+      `Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`,
+    );
 
     // The same file with a ceiling 6 dB under its filtered peak: the render needs a trim, so it
     // filters twice (measure, then write). sox has no such step; its time above is the yardstick.

@@ -69,7 +69,9 @@ export type BackupDescription = z.infer<typeof descriptionSchema>;
 /** The directory of PostgreSQL's client programs: the newest Debian server package's, or PATH. */
 export function pgProgram(name: "pg_dump" | "pg_restore"): string {
   const base = "/usr/lib/postgresql";
-  const versions = existsSync(base) ? readdirSync(base).filter((v) => existsSync(path.join(base, v, "bin", name))) : [];
+  const versions = existsSync(base)
+    ? readdirSync(base).filter((v) => existsSync(path.join(base, v, "bin", name)))
+    : [];
   versions.sort((a, b) => Number(b) - Number(a));
   return versions[0] ? path.join(base, versions[0], "bin", name) : name;
 }
@@ -93,7 +95,8 @@ export function databaseNameOf(url: string): string {
 export function objectPath(dir: string, key: string): string {
   const base = path.resolve(dir, objectsDir);
   const p = path.resolve(base, key);
-  if (key.startsWith("/") || key.split("/").includes("..") || !p.startsWith(`${base}${path.sep}`)) throw new Error(`refusing an object key that leaves the backup folder: ${key}`);
+  if (key.startsWith("/") || key.split("/").includes("..") || !p.startsWith(`${base}${path.sep}`))
+    throw new Error(`refusing an object key that leaves the backup folder: ${key}`);
   return p;
 }
 

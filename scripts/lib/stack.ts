@@ -10,7 +10,16 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import pg from "pg";
 import { reassignOwnershipSql } from "../../db/roles";
-import { appRole, dbName, demoPgPort, localRoleUrls, ownerRole, type RoleSecrets, readRoleSecrets, rolesFile } from "./local-roles";
+import {
+  appRole,
+  dbName,
+  demoPgPort,
+  localRoleUrls,
+  ownerRole,
+  type RoleSecrets,
+  readRoleSecrets,
+  rolesFile,
+} from "./local-roles";
 
 export const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..", "..");
 
@@ -29,8 +38,24 @@ export interface Profile {
 }
 
 export const profiles: Record<ProfileName, Omit<Profile, "dir">> = {
-  demo: { name: "demo", pgPort: demoPgPort, s3Port: 54321, smtpPort: 54325, appPort: 3000, distDir: ".next", honourExternal: true },
-  test: { name: "test", pgPort: 55420, s3Port: 55421, smtpPort: 55425, appPort: 3100, distDir: ".next-test", honourExternal: false },
+  demo: {
+    name: "demo",
+    pgPort: demoPgPort,
+    s3Port: 54321,
+    smtpPort: 54325,
+    appPort: 3000,
+    distDir: ".next",
+    honourExternal: true,
+  },
+  test: {
+    name: "test",
+    pgPort: 55420,
+    s3Port: 55421,
+    smtpPort: 55425,
+    appPort: 3100,
+    distDir: ".next-test",
+    honourExternal: false,
+  },
 };
 
 /**
@@ -41,7 +66,8 @@ function testPortOffset(): number {
   const raw = process.env.RILLBOOK_TEST_PORT_OFFSET;
   if (!raw) return 0;
   const n = Number(raw);
-  if (!Number.isInteger(n) || n < 0 || n > 900) throw new Error(`RILLBOOK_TEST_PORT_OFFSET must be a whole number from 0 to 900, not "${raw}"`);
+  if (!Number.isInteger(n) || n < 0 || n > 900)
+    throw new Error(`RILLBOOK_TEST_PORT_OFFSET must be a whole number from 0 to 900, not "${raw}"`);
   return n;
 }
 
@@ -66,10 +92,19 @@ export function log(message: string): void {
 
 // ---------------------------------------------------------------- processes
 
-function run(cmd: string, args: string[], opts: { env?: NodeJS.ProcessEnv; quiet?: boolean; asPostgres?: boolean } = {}): Promise<{ code: number; output: string }> {
-  const [file, argv] = opts.asPostgres && isRoot ? ["runuser", ["-u", "postgres", "--", cmd, ...args]] : [cmd, args];
+function run(
+  cmd: string,
+  args: string[],
+  opts: { env?: NodeJS.ProcessEnv; quiet?: boolean; asPostgres?: boolean } = {},
+): Promise<{ code: number; output: string }> {
+  const [file, argv] =
+    opts.asPostgres && isRoot ? ["runuser", ["-u", "postgres", "--", cmd, ...args]] : [cmd, args];
   return new Promise((resolve, reject) => {
-    const child = spawn(file, argv, { cwd: root, env: opts.env ?? process.env, stdio: opts.quiet ? ["ignore", "pipe", "pipe"] : "inherit" });
+    const child = spawn(file, argv, {
+      cwd: root,
+      env: opts.env ?? process.env,
+      stdio: opts.quiet ? ["ignore", "pipe", "pipe"] : "inherit",
+    });
     let output = "";
     child.stdout?.on("data", (d) => (output += d));
     child.stderr?.on("data", (d) => (output += d));
@@ -122,18 +157,30 @@ export function portOpen(port: number): Promise<boolean> {
   });
 }
 
-async function waitFor(what: string, check: () => Promise<boolean>, timeoutMs: number, logFile?: string): Promise<void> {
+async function waitFor(
+  what: string,
+  check: () => Promise<boolean>,
+  timeoutMs: number,
+  logFile?: string,
+): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return;
     await new Promise((r) => setTimeout(r, 200));
   }
-  const tail = logFile ? `\n--- last lines of ${logFile} ---\n${(await fs.readFile(logFile, "utf8").catch(() => "")).split("\n").slice(-30).join("\n")}` : "";
+  const tail = logFile
+    ? `\n--- last lines of ${logFile} ---\n${(await fs.readFile(logFile, "utf8").catch(() => "")).split("\n").slice(-30).join("\n")}`
+    : "";
   throw new Error(`${what} did not come up within ${timeoutMs / 1000} s${tail}`);
 }
 
 /** Starts a long-running node process in its own process group, output to storage/<profile>/logs. */
-async function startDetached(p: Profile, name: string, args: string[], env: NodeJS.ProcessEnv): Promise<number> {
+async function startDetached(
+  p: Profile,
+  name: string,
+  args: string[],
+  env: NodeJS.ProcessEnv,
+): Promise<number> {
   await fs.mkdir(path.join(p.dir, "run"), { recursive: true });
   await fs.mkdir(path.join(p.dir, "logs"), { recursive: true });
   const logFile = path.join(p.dir, "logs", `${name}.log`);
@@ -174,9 +221,14 @@ async function stopPid(p: Profile, name: string): Promise<boolean> {
 
 function postgresBinDir(): string {
   const base = "/usr/lib/postgresql";
-  const versions = existsSync(base) ? readdirSync(base).filter((v) => existsSync(path.join(base, v, "bin", "initdb"))) : [];
+  const versions = existsSync(base)
+    ? readdirSync(base).filter((v) => existsSync(path.join(base, v, "bin", "initdb")))
+    : [];
   versions.sort((a, b) => Number(b) - Number(a));
-  if (!versions[0]) throw new Error("PostgreSQL server binaries not found in /usr/lib/postgresql: install Debian's postgresql package");
+  if (!versions[0])
+    throw new Error(
+      "PostgreSQL server binaries not found in /usr/lib/postgresql: install Debian's postgresql package",
+    );
   return path.join(base, versions[0], "bin");
 }
 
@@ -204,7 +256,10 @@ const superusers = ["postgres", "rillbook"];
 async function roleSecretsFor(p: Profile): Promise<RoleSecrets> {
   const existing = readRoleSecrets(p.dir);
   if (existing) return existing;
-  const secrets = { owner: randomBytes(24).toString("base64url"), app: randomBytes(24).toString("base64url") };
+  const secrets = {
+    owner: randomBytes(24).toString("base64url"),
+    app: randomBytes(24).toString("base64url"),
+  };
   await fs.mkdir(p.dir, { recursive: true });
   await fs.writeFile(rolesFile(p.dir), JSON.stringify(secrets), { mode: 0o600 });
   return secrets;
@@ -248,7 +303,10 @@ async function ensureRoles(p: Profile, secrets: RoleSecrets): Promise<void> {
         log(`created the database role ${role}`);
       }
     }
-    const { rows } = await client.query<{ owner: string }>("SELECT pg_get_userbyid(datdba) AS owner FROM pg_database WHERE datname = $1", [dbName]);
+    const { rows } = await client.query<{ owner: string }>(
+      "SELECT pg_get_userbyid(datdba) AS owner FROM pg_database WHERE datname = $1",
+      [dbName],
+    );
     if (!rows.length) await client.query(`CREATE DATABASE ${dbName} OWNER ${ownerRole}`);
     else if (rows[0].owner !== ownerRole) {
       log(`upgrading the database to two roles: ${ownerRole} now owns it, the app connects as ${appRole}`);
@@ -280,15 +338,46 @@ export async function startPostgres(p: Profile): Promise<void> {
   if (!existsSync(path.join(data, "PG_VERSION"))) {
     log(`initialising a PostgreSQL cluster in ${path.relative(root, data)}`);
     // The superuser has no password: it is reached only through the socket in the data folder.
-    await mustRun(path.join(bin, "initdb"), ["-D", data, "-U", "postgres", "--auth-local=trust", "--auth-host=scram-sha-256", "-E", "UTF8", "--locale=C.UTF-8"], { asPostgres: true, quiet: true });
+    await mustRun(
+      path.join(bin, "initdb"),
+      [
+        "-D",
+        data,
+        "-U",
+        "postgres",
+        "--auth-local=trust",
+        "--auth-host=scram-sha-256",
+        "-E",
+        "UTF8",
+        "--locale=C.UTF-8",
+      ],
+      { asPostgres: true, quiet: true },
+    );
   }
 
-  const status = await run(path.join(bin, "pg_ctl"), ["-D", data, "status"], { asPostgres: true, quiet: true });
+  const status = await run(path.join(bin, "pg_ctl"), ["-D", data, "status"], {
+    asPostgres: true,
+    quiet: true,
+  });
   if (status.code === 0) {
     log(`PostgreSQL already running on 127.0.0.1:${p.pgPort}`);
   } else {
-    if (await portOpen(p.pgPort)) throw new Error(`port ${p.pgPort} is held by another program; stop it or free the port`);
-    await mustRun(path.join(bin, "pg_ctl"), ["-D", data, "-l", path.join(data, "server.log"), "-w", "-o", `-c listen_addresses=127.0.0.1 -p ${p.pgPort} -k ${data}`, "start"], { asPostgres: true, quiet: true });
+    if (await portOpen(p.pgPort))
+      throw new Error(`port ${p.pgPort} is held by another program; stop it or free the port`);
+    await mustRun(
+      path.join(bin, "pg_ctl"),
+      [
+        "-D",
+        data,
+        "-l",
+        path.join(data, "server.log"),
+        "-w",
+        "-o",
+        `-c listen_addresses=127.0.0.1 -p ${p.pgPort} -k ${data}`,
+        "start",
+      ],
+      { asPostgres: true, quiet: true },
+    );
     log(`PostgreSQL started on 127.0.0.1:${p.pgPort}`);
   }
 
@@ -299,16 +388,28 @@ export async function stopPostgres(p: Profile): Promise<void> {
   const data = path.join(p.dir, "pg");
   if (!existsSync(path.join(data, "PG_VERSION"))) return;
   const bin = postgresBinDir();
-  const status = await run(path.join(bin, "pg_ctl"), ["-D", data, "status"], { asPostgres: true, quiet: true });
+  const status = await run(path.join(bin, "pg_ctl"), ["-D", data, "status"], {
+    asPostgres: true,
+    quiet: true,
+  });
   if (status.code === 0) {
-    await mustRun(path.join(bin, "pg_ctl"), ["-D", data, "-m", "fast", "-w", "stop"], { asPostgres: true, quiet: true });
+    await mustRun(path.join(bin, "pg_ctl"), ["-D", data, "-m", "fast", "-w", "stop"], {
+      asPostgres: true,
+      quiet: true,
+    });
     log("PostgreSQL stopped");
   }
 }
 
 // ---------------------------------------------------------------- node services
 
-async function startNodeService(p: Profile, name: string, port: number, script: string, env: NodeJS.ProcessEnv): Promise<void> {
+async function startNodeService(
+  p: Profile,
+  name: string,
+  port: number,
+  script: string,
+  env: NodeJS.ProcessEnv,
+): Promise<void> {
   if (await readPid(p, name)) {
     if (await portOpen(port)) {
       log(`${name} already running on 127.0.0.1:${port}`);
@@ -316,9 +417,17 @@ async function startNodeService(p: Profile, name: string, port: number, script: 
     }
     await stopPid(p, name);
   }
-  if (await portOpen(port)) throw new Error(`port ${port} is held by another program; stop it or free the port before starting ${name}`);
+  if (await portOpen(port))
+    throw new Error(
+      `port ${port} is held by another program; stop it or free the port before starting ${name}`,
+    );
   await startDetached(p, name, ["--import", "tsx", script], env);
-  await waitFor(`${name} on port ${port}`, () => portOpen(port), 20_000, path.join(p.dir, "logs", `${name}.log`));
+  await waitFor(
+    `${name} on port ${port}`,
+    () => portOpen(port),
+    20_000,
+    path.join(p.dir, "logs", `${name}.log`),
+  );
   log(`${name} started on 127.0.0.1:${port}`);
 }
 
@@ -347,7 +456,11 @@ export interface StackEnv extends NodeJS.ProcessEnv {
  * taken up again within seconds; the demo and production keep lib/jobs/render-lease.ts's defaults
  * (renew every 10 s, stale after 90 s, swept every 30 s).
  */
-const testLease = { RENDER_HEARTBEAT_SECONDS: "2", RENDER_LEASE_STALE_SECONDS: "15", RENDER_SWEEP_SECONDS: "5" };
+const testLease = {
+  RENDER_HEARTBEAT_SECONDS: "2",
+  RENDER_LEASE_STALE_SECONDS: "15",
+  RENDER_SWEEP_SECONDS: "5",
+};
 
 /** The environment the app, worker, scripts and tests of a profile run with. */
 export async function stackEnv(p: Profile): Promise<StackEnv> {
@@ -430,14 +543,23 @@ export function workerChildPidFile(p: Profile): string {
  */
 export async function startWorker(p: Profile, env: NodeJS.ProcessEnv): Promise<void> {
   await stopPid(p, "worker");
-  await startDetached(p, "worker", ["--import", "tsx", "scripts/supervise-worker.ts"], { ...env, WORKER_CHILD_PID_FILE: workerChildPidFile(p) });
+  await startDetached(p, "worker", ["--import", "tsx", "scripts/supervise-worker.ts"], {
+    ...env,
+    WORKER_CHILD_PID_FILE: workerChildPidFile(p),
+  });
   log("worker started (supervised)");
 }
 
 export async function startApp(p: Profile, env: StackEnv): Promise<void> {
   await stopPid(p, "app");
-  if (await portOpen(p.appPort)) throw new Error(`port ${p.appPort} is held by another program; free it before starting Rillbook`);
-  await startDetached(p, "app", ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(p.appPort)], env);
+  if (await portOpen(p.appPort))
+    throw new Error(`port ${p.appPort} is held by another program; free it before starting Rillbook`);
+  await startDetached(
+    p,
+    "app",
+    ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(p.appPort)],
+    env,
+  );
   const health = `http://127.0.0.1:${p.appPort}/api/health`;
   await waitFor(
     `the app on port ${p.appPort}`,

@@ -21,11 +21,17 @@ const server = new SMTPServer({
         const parsed = await simpleParser(raw);
         const stamp = new Date().toISOString().replace(/[:.]/g, "-");
         const base = path.join(dir, `${stamp}-${Math.random().toString(36).slice(2, 8)}`);
-        const to = Array.isArray(parsed.to) ? parsed.to.map((a) => a.text).join(", ") : (parsed.to?.text ?? "");
+        const to = Array.isArray(parsed.to)
+          ? parsed.to.map((a) => a.text).join(", ")
+          : (parsed.to?.text ?? "");
         await fs.writeFile(`${base}.eml`, raw);
         await fs.writeFile(
           `${base}.json`,
-          JSON.stringify({ to, subject: parsed.subject ?? "", text: parsed.text ?? "", receivedAt: new Date() }, null, 2),
+          JSON.stringify(
+            { to, subject: parsed.subject ?? "", text: parsed.text ?? "", receivedAt: new Date() },
+            null,
+            2,
+          ),
         );
         callback();
       } catch (err) {
@@ -37,7 +43,9 @@ const server = new SMTPServer({
 
 server.on("error", (err) => console.error("mail sink error:", err));
 fs.mkdir(dir, { recursive: true }).then(() =>
-  server.listen(port, "127.0.0.1", () => console.log(`mail sink listening on 127.0.0.1:${port}, keeping mail in ${dir}`)),
+  server.listen(port, "127.0.0.1", () =>
+    console.log(`mail sink listening on 127.0.0.1:${port}, keeping mail in ${dir}`),
+  ),
 );
 
 for (const signal of ["SIGTERM", "SIGINT"] as const) {

@@ -28,8 +28,14 @@ beforeAll(async () => {
   browser = await launchBrowser();
   const cookie = await signInCookie(archivist.email, archivist.password);
   const engineers = await api("/api/engineers", { cookie });
-  const wen = (engineers.body.engineers as { id: string; name: string }[]).find((e) => e.name === engineer.name)!;
-  const acc = await api("/api/accessions", { cookie, method: "POST", body: { identifier: `E2E-BENCH-${run}`, source: "Bench end-to-end test", receivedOn: "2026-11-30" } });
+  const wen = (engineers.body.engineers as { id: string; name: string }[]).find(
+    (e) => e.name === engineer.name,
+  )!;
+  const acc = await api("/api/accessions", {
+    cookie,
+    method: "POST",
+    body: { identifier: `E2E-BENCH-${run}`, source: "Bench end-to-end test", receivedOn: "2026-11-30" },
+  });
   expect(acc.status).toBe(201);
   const disc = await api("/api/discs", {
     cookie,
@@ -53,7 +59,11 @@ beforeAll(async () => {
   sideA = disc.body.disc.sides.find((s: { designation: string }) => s.designation === "A").id;
   discId = disc.body.disc.id;
   engineerCookie = await signInCookie(engineer.email, engineer.password);
-  const assigned = await api("/api/assignments", { cookie, method: "POST", body: { engineerId: wen.id, discIds: [disc.body.disc.id] } });
+  const assigned = await api("/api/assignments", {
+    cookie,
+    method: "POST",
+    body: { engineerId: wen.id, discIds: [disc.body.disc.id] },
+  });
   expect(assigned.status).toBeLessThan(300);
 });
 
@@ -72,16 +82,25 @@ describe("transfer bench", () => {
     await page.goto(`${appUrl}/bench`);
     const queue = page.getByTestId("queue-table");
     await queue.getByText(`MX${run}A`).waitFor();
-    await queue.getByRole("row").filter({ hasText: `MX${run}A` }).getByTestId("queue-bench-link").click();
+    await queue
+      .getByRole("row")
+      .filter({ hasText: `MX${run}A` })
+      .getByTestId("queue-bench-link")
+      .click();
     await page.waitForURL(`${appUrl}/bench/${sideA}`);
     await page.getByTestId("bench-title").getByText(`E2E-B-${run}`).waitFor();
-    await page.getByTestId("handling-cautions").getByText(/Shellac is brittle/).waitFor();
+    await page
+      .getByTestId("handling-cautions")
+      .getByText(/Shellac is brittle/)
+      .waitFor();
 
     // 1 · The flat transfer first: nothing recorded about the curve yet.
     await page.getByTestId("curve-choice-form").waitFor();
     await page.getByTestId("choice-history-empty").waitFor();
     const wav = makeWav({ seconds: 10 });
-    await page.getByTestId("upload-input").setInputFiles({ name: `E2E-B-${run} A flat.wav`, mimeType: "audio/wav", buffer: Buffer.from(wav) });
+    await page
+      .getByTestId("upload-input")
+      .setInputFiles({ name: `E2E-B-${run} A flat.wav`, mimeType: "audio/wav", buffer: Buffer.from(wav) });
     await page.getByTestId("upload-stylus-size").fill("3.0 mil");
     await page.getByTestId("upload-stylus-shape").fill("truncated elliptical");
     await page.getByTestId("upload-measured-speed").fill("78.05");
@@ -94,14 +113,21 @@ describe("transfer bench", () => {
     await row.getByTestId("transfer-current").waitFor();
     await expect(row.getByTestId("transfer-sha256").innerText()).resolves.toMatch(/[0-9a-f]{64}/);
     await expect(row.innerText()).resolves.toMatch(/44,100 Hz · stereo/);
-    await expect.poll(async () => (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side.status).toBe("transferred");
+    await expect
+      .poll(async () => (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side.status)
+      .toBe("transferred");
     await screenshot(page, "bench-upload");
 
     // 2 · Listen: two candidate presets on the flat transfer; listening records nothing.
-    const eventsBefore = (await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events.length;
-    await page.getByTestId("candidate-add-select").selectOption({ label: "BS 1928:1955 coarse groove (3180/450/50 µs)" });
+    const eventsBefore = (await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events
+      .length;
+    await page
+      .getByTestId("candidate-add-select")
+      .selectOption({ label: "BS 1928:1955 coarse groove (3180/450/50 µs)" });
     await page.getByTestId("candidate-add").click();
-    await page.getByTestId("candidate-add-select").selectOption({ label: "RIAA / IEC 60098 (3180/318/75 µs)" });
+    await page
+      .getByTestId("candidate-add-select")
+      .selectOption({ label: "RIAA / IEC 60098 (3180/318/75 µs)" });
     await page.getByTestId("candidate-add").click();
     await page.getByTestId("audition-overview").waitFor({ timeout: 30_000 });
     await page.getByTestId("spectrum-plot").waitFor({ timeout: 30_000 });
@@ -116,27 +142,46 @@ describe("transfer bench", () => {
     await expect.poll(() => state.innerText()).toMatch(/Playing · BS 1928/);
     await page.getByTestId("audition-candidate-2").check({ force: true });
     await expect.poll(() => state.innerText()).toMatch(/Playing · RIAA/);
-    await page.getByTestId("spectrum-plot").locator('[data-testid^="spectrum-line-preset:"]').first().waitFor();
+    await page
+      .getByTestId("spectrum-plot")
+      .locator('[data-testid^="spectrum-line-preset:"]')
+      .first()
+      .waitFor();
     await screenshot(page, "bench-audition");
     await page.getByTestId("audition-pause").click();
-    expect((await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events.length).toBe(eventsBefore);
+    expect((await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events.length).toBe(
+      eventsBefore,
+    );
 
     // 3 · Record the curve heard, from the listening panel: the form is filled in with what was compared.
     await page.getByTestId("audition-record").click();
     const form = page.getByTestId("curve-choice-form");
-    const riaaId = await form.getByTestId("choice-preset").locator("option", { hasText: "RIAA / IEC 60098" }).first().getAttribute("value");
+    const riaaId = await form
+      .getByTestId("choice-preset")
+      .locator("option", { hasText: "RIAA / IEC 60098" })
+      .first()
+      .getAttribute("value");
     await expect.poll(() => form.getByTestId("choice-preset").inputValue()).toBe(riaaId);
     await expect(form.getByTestId("choice-evidence-kind").inputValue()).resolves.toBe("listening");
     const evidence = await form.getByTestId("choice-evidence").inputValue();
-    expect(evidence).toMatch(/Compared by ear on the flat transfer E2E-B-.*flat\.wav \(SHA-256 [0-9a-f]{16}…\)/);
+    expect(evidence).toMatch(
+      /Compared by ear on the flat transfer E2E-B-.*flat\.wav \(SHA-256 [0-9a-f]{16}…\)/,
+    );
     expect(evidence).toMatch(/BS 1928/);
     expect(evidence).toMatch(/Chosen: RIAA/);
-    await form.getByTestId("choice-evidence").fill(`${evidence} Surface noise lower with RIAA; the strings keep their edge.`);
-    await form.getByTestId("choice-rationale").fill("By ear on the flat transfer: RIAA sits best against the BS 1928 curve for this pressing.");
+    await form
+      .getByTestId("choice-evidence")
+      .fill(`${evidence} Surface noise lower with RIAA; the strings keep their edge.`);
+    await form
+      .getByTestId("choice-rationale")
+      .fill("By ear on the flat transfer: RIAA sits best against the BS 1928 curve for this pressing.");
     await form.getByTestId("record-choice").click();
     await page.getByTestId("choice-history").getByText(/^RIAA/).first().waitFor();
-    await expect.poll(async () => (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side.status).toBe("curve_chosen");
-    const recorded = (await api(`/api/sides/${sideA}/curve-choices`, { cookie: engineerCookie })).body.choices[0];
+    await expect
+      .poll(async () => (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side.status)
+      .toBe("curve_chosen");
+    const recorded = (await api(`/api/sides/${sideA}/curve-choices`, { cookie: engineerCookie })).body
+      .choices[0];
     expect(recorded.evidenceKind).toBe("listening");
     expect(recorded.evidence).toMatch(/Surface noise lower with RIAA/);
     await screenshot(page, "bench-choose");
@@ -146,7 +191,9 @@ describe("transfer bench", () => {
     await page.getByTestId("render-start").click();
     const render = page.getByTestId("render-row").first();
     await render.waitFor();
-    await expect.poll(() => render.getAttribute("data-status"), { timeout: 120_000, interval: 500 }).toBe("done");
+    await expect
+      .poll(() => render.getAttribute("data-status"), { timeout: 120_000, interval: 500 })
+      .toBe("done");
     const link = render.getByTestId("render-download");
     await link.waitFor();
     await page.getByTestId("send-for-review").waitFor({ timeout: 15_000 });
@@ -186,10 +233,23 @@ describe("transfer bench", () => {
     await cpage.goto(`${appUrl}/review/${sideA}`);
     await cpage.getByTestId("curve-name").getByText(/^RIAA/).waitFor();
     await cpage.getByTestId("fixity-check").click();
-    await expect.poll(() => cpage.getByTestId("review-transfer-fixity").getAttribute("data-state"), { timeout: 60_000, interval: 500 }).toBe("passed");
-    await expect.poll(() => cpage.getByTestId("review-render-fixity").getAttribute("data-state"), { timeout: 60_000, interval: 500 }).toBe("passed");
+    await expect
+      .poll(() => cpage.getByTestId("review-transfer-fixity").getAttribute("data-state"), {
+        timeout: 60_000,
+        interval: 500,
+      })
+      .toBe("passed");
+    await expect
+      .poll(() => cpage.getByTestId("review-render-fixity").getAttribute("data-state"), {
+        timeout: 60_000,
+        interval: 500,
+      })
+      .toBe("passed");
     await cpage.getByTestId("review-approve").click();
-    await cpage.getByTestId("review-decided").getByText(/^Approved$/).waitFor();
+    await cpage
+      .getByTestId("review-decided")
+      .getByText(/^Approved$/)
+      .waitFor();
     await screenshot(cpage, "bench-approved");
     const side = (await api(`/api/sides/${sideA}`, { cookie: engineerCookie })).body.side;
     expect(side.status).toBe("approved");

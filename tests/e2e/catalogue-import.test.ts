@@ -21,7 +21,12 @@ const archivist = demoAccounts.find((a) => a.role === "archivist")!;
 
 function csvOf(rows: Partial<Record<(typeof catalogueColumns)[number], string>>[]): string {
   const cell = (v: string) => (/[",\r\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v);
-  return [catalogueColumns.join(","), ...rows.map((r) => catalogueColumns.map((c) => cell(r[c] ?? "")).join(","))].join("\n") + "\n";
+  return (
+    [
+      catalogueColumns.join(","),
+      ...rows.map((r) => catalogueColumns.map((c) => cell(r[c] ?? "")).join(",")),
+    ].join("\n") + "\n"
+  );
 }
 
 describe("importing a spreadsheet on the import page", () => {
@@ -29,13 +34,32 @@ describe("importing a spreadsheet on the import page", () => {
     const stamp = `${Date.now().toString(36)}${Math.random().toString(36).slice(2, 5)}`.toUpperCase();
     const cookie = await signInCookie(archivist.email, archivist.password);
     const identifier = `E2E-${stamp}`;
-    const acc = await api("/api/accessions", { cookie, method: "POST", body: { identifier, source: "Transcription discs from a closed studio", receivedOn: "2026-11-30" } });
+    const acc = await api("/api/accessions", {
+      cookie,
+      method: "POST",
+      body: { identifier, source: "Transcription discs from a closed studio", receivedOn: "2026-11-30" },
+    });
     expect(acc.status).toBe(201);
 
     const shelf = (n: number) => `E${stamp}-${n}`;
-    const disc = { accession: identifier, format: "transcription", base: "aluminium", diameter_in: "16", speed_rpm: "33.33", groove: "coarse", cut: "vertical" };
+    const disc = {
+      accession: identifier,
+      format: "transcription",
+      base: "aluminium",
+      diameter_in: "16",
+      speed_rpm: "33.33",
+      groove: "coarse",
+      cut: "vertical",
+    };
     const rows = [
-      { ...disc, shelf_mark: shelf(1), side: "A", matrix_number: `MX-${stamp}`, take: "1", title: "Evening programme, part 1" },
+      {
+        ...disc,
+        shelf_mark: shelf(1),
+        side: "A",
+        matrix_number: `MX-${stamp}`,
+        take: "1",
+        title: "Evening programme, part 1",
+      },
       { ...disc, shelf_mark: shelf(1), side: "B", take: "1", title: "Evening programme, part 2" },
       { ...disc, shelf_mark: shelf(2), speed_rpm: "thirty-three" },
     ];
@@ -49,7 +73,9 @@ describe("importing a spreadsheet on the import page", () => {
     await page.getByRole("heading", { name: "Import discs from a spreadsheet" }).waitFor();
 
     // First file: row 4 has a speed that is not a number.
-    await page.getByTestId("import-file").setInputFiles({ name: "transcriptions.csv", mimeType: "text/csv", buffer: Buffer.from(csvOf(rows)) });
+    await page
+      .getByTestId("import-file")
+      .setInputFiles({ name: "transcriptions.csv", mimeType: "text/csv", buffer: Buffer.from(csvOf(rows)) });
     const errors = page.getByTestId("import-errors");
     await errors.waitFor();
     const first = page.getByTestId("import-error").first();
@@ -61,7 +87,9 @@ describe("importing a spreadsheet on the import page", () => {
 
     // Fixed file: the same rows with the speed corrected.
     rows[2] = { ...rows[2], speed_rpm: "33 1/3" };
-    await page.getByTestId("import-file").setInputFiles({ name: "transcriptions.csv", mimeType: "text/csv", buffer: Buffer.from(csvOf(rows)) });
+    await page
+      .getByTestId("import-file")
+      .setInputFiles({ name: "transcriptions.csv", mimeType: "text/csv", buffer: Buffer.from(csvOf(rows)) });
     const confirm = page.getByTestId("import-confirm");
     // The first file's discs were listed too: wait for its problems to go.
     await page.getByTestId("import-errors").waitFor({ state: "detached" });
@@ -78,11 +106,18 @@ describe("importing a spreadsheet on the import page", () => {
 
     // The discs are in the catalogue: asked from the signed-in page, as the catalogue asks.
     const found = await page.evaluate(async (q) => {
-      const res = await fetch(`/api/discs?q=${encodeURIComponent(q)}`, { headers: { accept: "application/json" } });
-      return (await res.json()) as { rows: { shelfMark: string; sides: { designation: string; matrixNumber: string }[] }[] };
+      const res = await fetch(`/api/discs?q=${encodeURIComponent(q)}`, {
+        headers: { accept: "application/json" },
+      });
+      return (await res.json()) as {
+        rows: { shelfMark: string; sides: { designation: string; matrixNumber: string }[] }[];
+      };
     }, shelf(1));
     expect(found.rows.map((r) => r.shelfMark)).toContain(shelf(1));
-    expect(found.rows.find((r) => r.shelfMark === shelf(1))!.sides.map((s) => s.matrixNumber)).toEqual([`MX-${stamp}`, ""]);
+    expect(found.rows.find((r) => r.shelfMark === shelf(1))!.sides.map((s) => s.matrixNumber)).toEqual([
+      `MX-${stamp}`,
+      "",
+    ]);
 
     await page.getByTestId("import-catalogue-link").click();
     await page.waitForURL(`${appUrl}/catalogue`);

@@ -23,7 +23,10 @@ afterAll(async () => {
   await browser?.close();
 });
 
-async function signedIn(account: { email: string; password: string }): Promise<{ context: BrowserContext; page: Page }> {
+async function signedIn(account: {
+  email: string;
+  password: string;
+}): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
   const page = await context.newPage();
   await (await new SignInPage(page).open()).signIn(account.email, account.password);
@@ -54,7 +57,9 @@ describe("catalogue", () => {
     await page.getByTestId("new-disc").click();
     await page.waitForURL(/\/catalogue\/new/);
     const form = page.getByTestId("disc-form");
-    await form.locator("#disc-accessionId").selectOption({ label: `${accession} — Deposit by the end-to-end test` });
+    await form
+      .locator("#disc-accessionId")
+      .selectOption({ label: `${accession} — Deposit by the end-to-end test` });
     await page.getByTestId("save-disc").click();
     await expect(page.getByTestId("error-disc-shelfMark").innerText()).resolves.toMatch(/shelf mark/i);
 
@@ -81,21 +86,31 @@ describe("catalogue", () => {
     await page.getByTestId("catalogue-search").fill(matrixB);
     await page.waitForURL(new RegExp(`q=${matrixB}`));
     const table = page.getByTestId("catalogue-table");
-    await expect.poll(() => page.getByTestId("catalogue-count").innerText(), { timeout: 15_000 }).toMatch(/^1 disc matches/);
+    await expect
+      .poll(() => page.getByTestId("catalogue-count").innerText(), { timeout: 15_000 })
+      .toMatch(/^1 disc matches/);
     await expect(table.locator("tbody tr").count()).resolves.toBe(1);
     await table.getByRole("link", { name: shelfMark }).waitFor();
     await table.getByLabel(`Select ${shelfMark}`).check();
     await page.getByTestId("bulk-assign-engineer").selectOption({ label: engineer.name });
     await page.getByTestId("bulk-assign-submit").click();
-    await expect(page.getByTestId("bulk-assign-result").innerText()).resolves.toMatch(new RegExp(`2 sides assigned to ${engineer.name}`));
+    await expect(page.getByTestId("bulk-assign-result").innerText()).resolves.toMatch(
+      new RegExp(`2 sides assigned to ${engineer.name}`),
+    );
     await table.getByText("Assigned").first().waitFor();
     await screenshot(page, "catalogue");
 
     // The disc page tells the story and shows the handling cautions.
     await page.goto(discUrl);
-    await page.getByTestId("handling-cautions").getByText(/Shellac is brittle/).waitFor();
+    await page
+      .getByTestId("handling-cautions")
+      .getByText(/Shellac is brittle/)
+      .waitFor();
     await page.getByTestId("provenance-timeline").getByText(`assigned side A to ${engineer.name}`).waitFor();
-    await page.getByTestId("provenance-timeline").getByText(/catalogued the disc with 2 sides/).waitFor();
+    await page
+      .getByTestId("provenance-timeline")
+      .getByText(/catalogued the disc with 2 sides/)
+      .waitFor();
     await expect(page.getByTestId("side-A").innerText()).resolves.toMatch(/Assigned/);
     await screenshot(page, "disc-page");
     await context.close();
@@ -116,10 +131,21 @@ describe("catalogue", () => {
     const first = await signedIn(archivist);
     const second = await signedIn(archivist);
 
-    const { accessions } = (await (await first.page.request.get(`${appUrl}/api/accessions`)).json()) as { accessions: { id: string }[] };
+    const { accessions } = (await (await first.page.request.get(`${appUrl}/api/accessions`)).json()) as {
+      accessions: { id: string }[];
+    };
     const created = await first.page.request.post(`${appUrl}/api/discs`, {
       headers: sameOrigin,
-      data: { accessionId: accessions[0].id, shelfMark: `E2E-EDIT-${run}`, labelName: "Varrowby", format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: [{ designation: "A" }] },
+      data: {
+        accessionId: accessions[0].id,
+        shelfMark: `E2E-EDIT-${run}`,
+        labelName: "Varrowby",
+        format: "shellac_78",
+        nominalSpeedRpm: 78,
+        groove: "coarse",
+        cut: "lateral",
+        sides: [{ designation: "A" }],
+      },
     });
     expect(created.status()).toBe(201);
     const { disc } = (await created.json()) as { disc: { id: string } };
@@ -147,10 +173,15 @@ describe("catalogue", () => {
 
     // Reloading their version keeps this person's edit, and the save then goes through.
     await second.page.getByTestId("conflict-reapply").click();
-    await expect(second.page.getByLabel("Label", { exact: true }).inputValue()).resolves.toBe("Varrowby Red Label");
+    await expect(second.page.getByLabel("Label", { exact: true }).inputValue()).resolves.toBe(
+      "Varrowby Red Label",
+    );
     await second.page.getByTestId("save-disc").click();
     await second.page.waitForURL(`${appUrl}/catalogue/${disc.id}`);
-    await second.page.getByTestId("provenance-timeline").getByText("Varrowby Gold Seal → Varrowby Red Label").waitFor();
+    await second.page
+      .getByTestId("provenance-timeline")
+      .getByText("Varrowby Gold Seal → Varrowby Red Label")
+      .waitFor();
 
     await first.context.close();
     await second.context.close();

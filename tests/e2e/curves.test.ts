@@ -68,23 +68,33 @@ describe("curve library and workbench", () => {
     const deviation = page.getByTestId("deviation-plot");
     await deviation.waitFor({ timeout: 30_000 });
     await expect.poll(() => deviation.getAttribute("data-pending"), { timeout: 30_000 }).toBe("false");
-    await expect(page.getByTestId("deviation-fir-name").innerText()).resolves.toMatch(/^Access-copy filter \(FIR, [\d,]+ taps\)$/);
-    await expect(page.getByTestId("deviation-iir-name").innerText()).resolves.toMatch(/^Listening preview \(IIR, \d second-order sections\)$/);
+    await expect(page.getByTestId("deviation-fir-name").innerText()).resolves.toMatch(
+      /^Access-copy filter \(FIR, [\d,]+ taps\)$/,
+    );
+    await expect(page.getByTestId("deviation-iir-name").innerText()).resolves.toMatch(
+      /^Listening preview \(IIR, \d second-order sections\)$/,
+    );
     await expect(page.getByTestId("deviation-fir-worst-db").innerText()).resolves.toMatch(/dB at/);
     await expect(page.getByTestId("deviation-iir-worst-deg").innerText()).resolves.toMatch(/° at/);
     // Worked out off the page's thread; how long it took is kept on the panel for this check.
     await expect(deviation.getAttribute("data-computed-in")).resolves.toBe("worker");
     const taps96 = await page.getByTestId("deviation-fir-name").innerText();
     await page.getByTestId("sample-rate").selectOption("192000");
-    await expect.poll(() => page.getByTestId("deviation-fir-name").innerText(), { timeout: 30_000 }).not.toBe(taps96);
+    await expect
+      .poll(() => page.getByTestId("deviation-fir-name").innerText(), { timeout: 30_000 })
+      .not.toBe(taps96);
     await expect.poll(() => deviation.getAttribute("data-pending"), { timeout: 30_000 }).toBe("false");
-    console.log(`filter deviations at 192 kHz worked out in ${await deviation.getAttribute("data-compute-ms")} ms (${await deviation.getAttribute("data-computed-in")})`);
+    console.log(
+      `filter deviations at 192 kHz worked out in ${await deviation.getAttribute("data-compute-ms")} ms (${await deviation.getAttribute("data-computed-in")})`,
+    );
     await page.getByTestId("sample-rate").selectOption("44100");
     await expect.poll(() => deviation.getAttribute("data-pending"), { timeout: 30_000 }).toBe("false");
     await deviation.scrollIntoViewIfNeeded();
     await screenshot(page, "curves-workbench-filters");
     await deviation.screenshot({ path: path.join(screenshotDir, "curves-workbench-filter-panel.png") });
-    await page.getByTestId("corner-rolloff").screenshot({ path: path.join(screenshotDir, "curves-workbench-rolloff.png") });
+    await page
+      .getByTestId("corner-rolloff")
+      .screenshot({ path: path.join(screenshotDir, "curves-workbench-rolloff.png") });
 
     const name = `E2E turnover 500 Hz ${Date.now().toString(36)}`;
     await page.getByTestId("save-name").fill(name);

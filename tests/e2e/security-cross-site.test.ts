@@ -37,7 +37,11 @@ beforeAll(async () => {
   browser = await launchBrowser();
   evil = createServer((req, res) => {
     res.writeHead(200, { "content-type": "text/html; charset=utf-8" });
-    res.end(req.url === "/attack.html" ? attackPage() : `<!doctype html><html><body><iframe src="${appUrl}/sign-in" width="800" height="600"></iframe></body></html>`);
+    res.end(
+      req.url === "/attack.html"
+        ? attackPage()
+        : `<!doctype html><html><body><iframe src="${appUrl}/sign-in" width="800" height="600"></iframe></body></html>`,
+    );
   });
   await new Promise<void>((resolve) => evil.listen(0, "127.0.0.1", resolve));
   evilUrl = `http://127.0.0.1:${(evil.address() as AddressInfo).port}`;
@@ -62,7 +66,9 @@ describe("a page on another site", () => {
     const { context, page } = await signedIn(archivist.email, archivist.password);
     // The browser does hold a live session for the app.
     expect((await context.cookies(appUrl)).some((c) => c.name === "next-auth.session-token")).toBe(true);
-    const answer = page.waitForResponse((r) => r.url() === `${appUrl}/api/accessions` && r.request().method() === "POST");
+    const answer = page.waitForResponse(
+      (r) => r.url() === `${appUrl}/api/accessions` && r.request().method() === "POST",
+    );
     await page.goto(`${evilUrl}/attack.html`);
     const res = await answer;
     // The browser said where the post came from, and sent the session cookie (same site).
@@ -71,7 +77,11 @@ describe("a page on another site", () => {
     expect(res.status()).toBe(403);
     expect((await res.json()).error.code).toBe("cross_site");
     await screenshot(page, "cross-site-refused");
-    const row = await testDb.selectFrom("accessions").select(sql<number>`count(*)::int`.as("n")).where("identifier", "=", identifier).executeTakeFirstOrThrow();
+    const row = await testDb
+      .selectFrom("accessions")
+      .select(sql<number>`count(*)::int`.as("n"))
+      .where("identifier", "=", identifier)
+      .executeTakeFirstOrThrow();
     expect(row.n).toBe(0);
     await context.close();
   });
@@ -109,8 +119,14 @@ describe("the lab's pages under the Content-Security-Policy", () => {
       const { context, page } = await signedIn(account.email, account.password);
       const errors: string[] = [];
       page.on("pageerror", (e) => errors.push(e.message));
-      const extra = account.role === "admin" ? ["/catalogue/new", "/catalogue/import", "/catalogue/accessions", "/curves/workbench"] : [];
-      for (const href of [...navItems.filter((i) => can(account.role, i.action)).map((i) => i.href), ...extra]) {
+      const extra =
+        account.role === "admin"
+          ? ["/catalogue/new", "/catalogue/import", "/catalogue/accessions", "/curves/workbench"]
+          : [];
+      for (const href of [
+        ...navItems.filter((i) => can(account.role, i.action)).map((i) => i.href),
+        ...extra,
+      ]) {
         const res = await page.goto(`${appUrl}${href}`);
         expect(res?.status(), href).toBeLessThan(400);
         expect(res?.headers()["content-security-policy"], href).toMatch(/'nonce-/);
@@ -127,13 +143,26 @@ describe("the lab's pages under the Content-Security-Policy", () => {
   it("cannot be framed by another site", async () => {
     const context = await browser.newContext();
     const page = await context.newPage();
-    const blocked = new Promise<string>((resolve) => page.on("console", (m) => /frame-ancestors|X-Frame-Options|refused to connect/i.test(m.text()) && resolve(m.text())));
+    const blocked = new Promise<string>((resolve) =>
+      page.on(
+        "console",
+        (m) => /frame-ancestors|X-Frame-Options|refused to connect/i.test(m.text()) && resolve(m.text()),
+      ),
+    );
     await page.goto(`${evilUrl}/frame.html`);
-    await expect(Promise.race([blocked, new Promise((r) => setTimeout(() => r("no report"), 10_000))])).resolves.toMatch(/frame-ancestors|X-Frame-Options/i);
+    await expect(
+      Promise.race([blocked, new Promise((r) => setTimeout(() => r("no report"), 10_000))]),
+    ).resolves.toMatch(/frame-ancestors|X-Frame-Options/i);
     const frame = page.frames().find((f) => f !== page.mainFrame());
-    expect(await frame?.locator("[data-testid=sign-in-form]").count().catch(() => 0)).not.toBe(1);
+    expect(
+      await frame
+        ?.locator("[data-testid=sign-in-form]")
+        .count()
+        .catch(() => 0),
+    ).not.toBe(1);
     await context.close();
     // That refusal is the policy at work, not a page breaking it.
-    for (let i = cspViolations.length - 1; i >= 0; i--) if (/frame-ancestors/.test(cspViolations[i])) cspViolations.splice(i, 1);
+    for (let i = cspViolations.length - 1; i >= 0; i--)
+      if (/frame-ancestors/.test(cspViolations[i])) cspViolations.splice(i, 1);
   });
 });

@@ -30,9 +30,17 @@ function withDatabase(url: string, name: string): string {
   return u.toString();
 }
 
-function runScript(script: string, args: string[], env: Record<string, string> = {}): Promise<{ code: number; output: string }> {
+function runScript(
+  script: string,
+  args: string[],
+  env: Record<string, string> = {},
+): Promise<{ code: number; output: string }> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ["--import", "tsx", path.join("scripts", script), ...args], { cwd: root, env: { ...process.env, ...env }, stdio: ["ignore", "pipe", "pipe"] });
+    const child = spawn(process.execPath, ["--import", "tsx", path.join("scripts", script), ...args], {
+      cwd: root,
+      env: { ...process.env, ...env },
+      stdio: ["ignore", "pipe", "pipe"],
+    });
     let output = "";
     child.stdout.on("data", (d) => (output += d));
     child.stderr.on("data", (d) => (output += d));
@@ -49,14 +57,20 @@ async function storedHash(bucketName: string, key: string): Promise<string> {
 }
 
 /** A fresh, empty database owned by the owner role, and a fresh bucket: the "empty stack". */
-async function emptyStack(name: string): Promise<{ env: Record<string, string>; db: Kysely<Database>; bucketName: string }> {
+async function emptyStack(
+  name: string,
+): Promise<{ env: Record<string, string>; db: Kysely<Database>; bucketName: string }> {
   await sql.raw(`DROP DATABASE IF EXISTS ${name}`).execute(ownerDb);
   await sql.raw(`CREATE DATABASE ${name}`).execute(ownerDb);
   const bucketName = `${name.replace(/_/g, "-")}-${tag}`;
   await bucket.send(new CreateBucketCommand({ Bucket: bucketName }));
   const ownerUrl = withDatabase(process.env.DATABASE_OWNER_URL!, name);
   return {
-    env: { DATABASE_OWNER_URL: ownerUrl, DATABASE_URL: withDatabase(process.env.DATABASE_URL!, name), S3_BUCKET: bucketName },
+    env: {
+      DATABASE_OWNER_URL: ownerUrl,
+      DATABASE_URL: withDatabase(process.env.DATABASE_URL!, name),
+      S3_BUCKET: bucketName,
+    },
     db: createDb(ownerUrl, 2),
     bucketName,
   };
@@ -75,7 +89,11 @@ beforeAll(async () => {
 
 afterAll(async () => {
   for (const db of opened) await db.destroy();
-  for (const name of ["rillbook_restore", "rillbook_restore_bad"]) await sql.raw(`DROP DATABASE IF EXISTS ${name}`).execute(ownerDb).catch(() => undefined);
+  for (const name of ["rillbook_restore", "rillbook_restore_bad"])
+    await sql
+      .raw(`DROP DATABASE IF EXISTS ${name}`)
+      .execute(ownerDb)
+      .catch(() => undefined);
   await fs.rm(dir, { recursive: true, force: true });
 });
 
@@ -90,7 +108,11 @@ describe("backup and restore", () => {
     let written = 0;
     const writer = (async () => {
       while (writing) {
-        const r = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `ACC-BR-${tag}-${written}`, source: "Backup drill", receivedOn: "2026-12-02" } });
+        const r = await api("/api/accessions", {
+          cookie: c.archivist,
+          method: "POST",
+          body: { identifier: `ACC-BR-${tag}-${written}`, source: "Backup drill", receivedOn: "2026-12-02" },
+        });
         expect(r.status).toBe(201);
         written++;
       }
@@ -103,13 +125,24 @@ describe("backup and restore", () => {
     expect(written).toBeGreaterThan(0);
     const description = JSON.parse(await fs.readFile(path.join(dir, "backup.json"), "utf8"));
     const manifest = JSON.parse(await fs.readFile(path.join(dir, "manifest.json"), "utf8"));
-    const transfer = await testDb.selectFrom("transfers").select(["id", "object_key", "sha256"]).where("side_id", "=", sideId).executeTakeFirstOrThrow();
-    const render = await testDb.selectFrom("renders").select(["id", "object_key", "sha256"]).where("side_id", "=", sideId).where("status", "=", "done").executeTakeFirstOrThrow();
+    const transfer = await testDb
+      .selectFrom("transfers")
+      .select(["id", "object_key", "sha256"])
+      .where("side_id", "=", sideId)
+      .executeTakeFirstOrThrow();
+    const render = await testDb
+      .selectFrom("renders")
+      .select(["id", "object_key", "sha256"])
+      .where("side_id", "=", sideId)
+      .where("status", "=", "done")
+      .executeTakeFirstOrThrow();
     const keys = manifest.objects.map((o: { key: string }) => o.key);
     expect(keys).toContain(transfer.object_key);
     expect(keys).toContain(render.object_key!);
     expect(keys).toContain(cp.status === "written" ? cp.key : "");
-    expect(manifest.objects.find((o: { key: string }) => o.key === transfer.object_key).sha256).toBe(transfer.sha256);
+    expect(manifest.objects.find((o: { key: string }) => o.key === transfer.object_key).sha256).toBe(
+      transfer.sha256,
+    );
     expect(description.counts.objects).toBe(manifest.objects.length);
     expect(description.chainHead.seq).toBeGreaterThan(0);
 
@@ -121,11 +154,29 @@ describe("backup and restore", () => {
 
     // Dump and chain come from one moment: every accession recorded during the backup that the
     // restored database holds has its event in the restored log, and none has one without its row.
-    const during = await target.db.selectFrom("accessions").select("id").where("identifier", "like", `ACC-BR-${tag}-%`).execute();
+    const during = await target.db
+      .selectFrom("accessions")
+      .select("id")
+      .where("identifier", "like", `ACC-BR-${tag}-%`)
+      .execute();
     expect(during.length).toBeLessThanOrEqual(written);
-    const received = await target.db.selectFrom("provenance_events").select("subject_id").where("kind", "=", "accession.received").where("subject_id", "in", during.length ? during.map((a) => a.id) : ["00000000-0000-0000-0000-000000000000"]).execute();
+    const received = await target.db
+      .selectFrom("provenance_events")
+      .select("subject_id")
+      .where("kind", "=", "accession.received")
+      .where(
+        "subject_id",
+        "in",
+        during.length ? during.map((a) => a.id) : ["00000000-0000-0000-0000-000000000000"],
+      )
+      .execute();
     expect(received.length).toBe(during.length);
-    const eventsDuring = await target.db.selectFrom("provenance_events").select(sql<number>`count(*)::int`.as("n")).where("kind", "=", "accession.received").where(sql<boolean>`payload->'after'->>'identifier' LIKE ${`ACC-BR-${tag}-%`}`).executeTakeFirstOrThrow();
+    const eventsDuring = await target.db
+      .selectFrom("provenance_events")
+      .select(sql<number>`count(*)::int`.as("n"))
+      .where("kind", "=", "accession.received")
+      .where(sql<boolean>`payload->'after'->>'identifier' LIKE ${`ACC-BR-${tag}-%`}`)
+      .executeTakeFirstOrThrow();
     expect(eventsDuring.n).toBe(during.length);
 
     // The same catalogue, as of the backup (nothing else changes it while this file runs).
@@ -133,13 +184,26 @@ describe("backup and restore", () => {
     const discsRestored = await target.db.selectFrom("discs").selectAll().orderBy("id").execute();
     expect(discsRestored).toEqual(discsLive);
     expect(discsRestored.some((d) => d.id === discId)).toBe(true);
-    expect(await target.db.selectFrom("sides").selectAll().orderBy("id").execute()).toEqual(await testDb.selectFrom("sides").selectAll().orderBy("id").execute());
-    expect(await target.db.selectFrom("transfers").selectAll().orderBy("id").execute()).toEqual(await testDb.selectFrom("transfers").selectAll().orderBy("id").execute());
+    expect(await target.db.selectFrom("sides").selectAll().orderBy("id").execute()).toEqual(
+      await testDb.selectFrom("sides").selectAll().orderBy("id").execute(),
+    );
+    expect(await target.db.selectFrom("transfers").selectAll().orderBy("id").execute()).toEqual(
+      await testDb.selectFrom("transfers").selectAll().orderBy("id").execute(),
+    );
 
     // The same provenance chain up to the backup's head.
-    const head = await target.db.selectFrom("provenance_events").select(["seq", "hash"]).orderBy("seq", "desc").limit(1).executeTakeFirstOrThrow();
+    const head = await target.db
+      .selectFrom("provenance_events")
+      .select(["seq", "hash"])
+      .orderBy("seq", "desc")
+      .limit(1)
+      .executeTakeFirstOrThrow();
     expect({ seq: Number(head.seq), hash: head.hash }).toEqual(description.chainHead);
-    const liveAtHead = await testDb.selectFrom("provenance_events").select("hash").where("seq", "=", head.seq).executeTakeFirstOrThrow();
+    const liveAtHead = await testDb
+      .selectFrom("provenance_events")
+      .select("hash")
+      .where("seq", "=", head.seq)
+      .executeTakeFirstOrThrow();
     expect(liveAtHead.hash).toBe(head.hash);
 
     // The app's role can work in the restored database, and no more than before.
@@ -173,8 +237,12 @@ describe("backup and restore", () => {
     const restore = await runScript("restore.ts", [dir], target.env);
     expect(restore.code).toBe(1);
     expect(restore.output).toContain("restore NOT verified");
-    expect(restore.output).toMatch(new RegExp(`render object ${damaged.key.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")} differs`));
+    expect(restore.output).toMatch(
+      new RegExp(`render object ${damaged.key.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")} differs`),
+    );
     // Every other object verified.
-    expect(restore.output).toContain(`objects: ${manifest.objects.length - 1} of ${manifest.objects.length} present`);
+    expect(restore.output).toContain(
+      `objects: ${manifest.objects.length - 1} of ${manifest.objects.length} present`,
+    );
   }, 120_000);
 });

@@ -9,7 +9,16 @@ import { promisify } from "node:util";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { api, appUrl, waitForMail } from "../support/app";
 import { testDb } from "../support/db";
-import { approvedDisc, assignedDisc, chooseCurve, fixityNow, flatTransfer, type LabCookies, labCookies, uploadTransfer } from "../support/pipeline";
+import {
+  approvedDisc,
+  assignedDisc,
+  chooseCurve,
+  fixityNow,
+  flatTransfer,
+  type LabCookies,
+  labCookies,
+  uploadTransfer,
+} from "../support/pipeline";
 
 const run = promisify(execFile);
 const tag = Date.now().toString(36);
@@ -47,7 +56,9 @@ describe("fixity", () => {
     expect(second[0].outcome).toBe("mismatch");
     const alerts = await api("/api/fixity", { cookie: c.curator });
     expect(alerts.body.alerts.map((a: { objectKey: string }) => a.objectKey)).toContain(key);
-    const mail = await waitForMail((m) => m.subject.startsWith("Fixity mismatch") && m.subject.includes(`FX-${tag}`));
+    const mail = await waitForMail(
+      (m) => m.subject.startsWith("Fixity mismatch") && m.subject.includes(`FX-${tag}`),
+    );
     expect(mail.text).toMatch(/restore/);
   }, 120_000);
 });
@@ -60,8 +71,11 @@ describe("exports for the repository", () => {
   }, 180_000);
 
   it("writes PREMIS 3.0 XML that the Library of Congress schema accepts", async (ctx) => {
-    if (!existsSync(premisSchema)) ctx.skip(`the PREMIS schema is not at ${premisSchema}, so the XML cannot be validated here`);
-    const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=premis`, { headers: { cookie: c.curator } });
+    if (!existsSync(premisSchema))
+      ctx.skip(`the PREMIS schema is not at ${premisSchema}, so the XML cannot be validated here`);
+    const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=premis`, {
+      headers: { cookie: c.curator },
+    });
     expect(res.status).toBe(200);
     const xml = await res.text();
     const file = path.join(tmp, "disc-premis.xml");
@@ -73,15 +87,25 @@ describe("exports for the repository", () => {
     expect(xml).toMatch(/<premis:eventType[^>]*>fixity check</);
     expect(xml).toMatch(/<premis:messageDigestAlgorithm[^>]*>SHA-256</);
 
-    const acc = (await testDb.selectFrom("discs").select("accession_id").where("id", "=", discId).executeTakeFirstOrThrow()).accession_id;
-    const whole = await fetch(`${appUrl}/api/accessions/${acc}/export?format=premis`, { headers: { cookie: c.curator } });
+    const acc = (
+      await testDb
+        .selectFrom("discs")
+        .select("accession_id")
+        .where("id", "=", discId)
+        .executeTakeFirstOrThrow()
+    ).accession_id;
+    const whole = await fetch(`${appUrl}/api/accessions/${acc}/export?format=premis`, {
+      headers: { cookie: c.curator },
+    });
     await fs.writeFile(path.join(tmp, "acc.xml"), await whole.text());
     const accRun = await run("xmllint", ["--noout", "--schema", premisSchema, path.join(tmp, "acc.xml")]);
     expect(accRun.stderr).toMatch(/validates/);
   });
 
   it("packages the approved disc so that its manifest verifies with sha256sum", async () => {
-    const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=zip`, { headers: { cookie: c.curator } });
+    const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=zip`, {
+      headers: { cookie: c.curator },
+    });
     expect(res.status).toBe(200);
     const zip = path.join(tmp, "package.zip");
     await fs.writeFile(zip, Buffer.from(await res.arrayBuffer()));
@@ -93,7 +117,12 @@ describe("exports for the repository", () => {
     expect(manifest).toMatch(/access\/.*\.wav/);
     // coreutils sha256sum, outside the project, checks every line.
     const { stdout } = await run("sha256sum", ["-c", "manifest-sha256.txt"], { cwd: dir });
-    expect(stdout.trim().split("\n").every((l) => l.endsWith(": OK"))).toBe(true);
+    expect(
+      stdout
+        .trim()
+        .split("\n")
+        .every((l) => l.endsWith(": OK")),
+    ).toBe(true);
     const record = JSON.parse(await fs.readFile(path.join(dir, "record.json"), "utf8"));
     expect(record.disc.shelfMark).toBe(`EX-${tag}`);
     expect(record.events.length).toBeGreaterThan(5);

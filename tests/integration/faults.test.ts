@@ -13,7 +13,14 @@ import { s3 } from "@/lib/storage/s3";
 import { pidFile, profile, startPostgres, stopPostgres, workerChildPidFile } from "@/scripts/lib/stack";
 import { api, appUrl, uniqueEmail, waitForMail } from "../support/app";
 import { testDb } from "../support/db";
-import { assignedDisc, chooseCurve, type LabCookies, labCookies, until, uploadTransfer } from "../support/pipeline";
+import {
+  assignedDisc,
+  chooseCurve,
+  type LabCookies,
+  labCookies,
+  until,
+  uploadTransfer,
+} from "../support/pipeline";
 
 const test = profile("test");
 
@@ -91,7 +98,11 @@ describe("the worker killed by its PID in the middle of a render", () => {
     expect(up.done.status).toBe(201);
 
     const supervisorPid = await readPidFile(pidFile(test, "worker"));
-    const queued = await api("/api/renders", { cookie: c.engineer, method: "POST", body: { sideId, channelMode: "both", bitDepth: 24, sampleRateHz: 192_000 } });
+    const queued = await api("/api/renders", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { sideId, channelMode: "both", bitDepth: 24, sampleRateHz: 192_000 },
+    });
     expect(queued.status).toBe(202);
     const renderId: string = queued.body.renderId;
 
@@ -99,8 +110,15 @@ describe("the worker killed by its PID in the middle of a render", () => {
     const before = await until(
       "the render under way",
       async () => {
-        const r = await testDb.selectFrom("renders").select(["status", "progress", "lease_owner"]).where("id", "=", renderId).executeTakeFirstOrThrow();
-        if (r.status === "done") throw new Error("the render finished before the drill could kill its worker: make the transfer longer");
+        const r = await testDb
+          .selectFrom("renders")
+          .select(["status", "progress", "lease_owner"])
+          .where("id", "=", renderId)
+          .executeTakeFirstOrThrow();
+        if (r.status === "done")
+          throw new Error(
+            "the render finished before the drill could kill its worker: make the transfer longer",
+          );
         return r.status === "running" && r.progress > 0.01 ? r : undefined;
       },
       120_000,
@@ -112,10 +130,14 @@ describe("the worker killed by its PID in the middle of a render", () => {
     const killedAt = Date.now();
 
     // The supervisor, still the same process, starts a new worker.
-    const newPid = await until("a new worker", async () => {
-      const pid = await readPidFile(workerChildPidFile(test)).catch(() => 0);
-      return pid && pid !== killedPid && alive(pid) ? pid : undefined;
-    }, 30_000);
+    const newPid = await until(
+      "a new worker",
+      async () => {
+        const pid = await readPidFile(workerChildPidFile(test)).catch(() => 0);
+        return pid && pid !== killedPid && alive(pid) ? pid : undefined;
+      },
+      30_000,
+    );
     expect(alive(supervisorPid)).toBe(true);
     expect(newPid).not.toBe(killedPid);
 
@@ -127,8 +149,15 @@ describe("the worker killed by its PID in the middle of a render", () => {
         const list = await api(`/api/sides/${sideId}/renders`, { cookie: c.engineer });
         const r = list.body.renders.find((x: { id: string }) => x.id === renderId);
         if (r?.stalled) sawStalled = true;
-        const row = await testDb.selectFrom("renders").select(["status", "lease_owner"]).where("id", "=", renderId).executeTakeFirstOrThrow();
-        return row.status === "done" || (row.status === "running" && row.lease_owner && !row.lease_owner.includes(`:${killedPid}:`)) ? row : undefined;
+        const row = await testDb
+          .selectFrom("renders")
+          .select(["status", "lease_owner"])
+          .where("id", "=", renderId)
+          .executeTakeFirstOrThrow();
+        return row.status === "done" ||
+          (row.status === "running" && row.lease_owner && !row.lease_owner.includes(`:${killedPid}:`))
+          ? row
+          : undefined;
       },
       120_000,
     );
@@ -140,19 +169,35 @@ describe("the worker killed by its PID in the middle of a render", () => {
     const done = await until(
       "the render finished",
       async () => {
-        const row = await testDb.selectFrom("renders").selectAll().where("id", "=", renderId).executeTakeFirstOrThrow();
-        if (row.status === "failed" || row.status === "cancelled") throw new Error(`render ${row.status}: ${row.error}`);
+        const row = await testDb
+          .selectFrom("renders")
+          .selectAll()
+          .where("id", "=", renderId)
+          .executeTakeFirstOrThrow();
+        if (row.status === "failed" || row.status === "cancelled")
+          throw new Error(`render ${row.status}: ${row.error}`);
         return row.status === "done" ? row : undefined;
       },
       240_000,
     );
 
     // Exactly one render of the side, recorded once, one object under the side's access prefix.
-    const rows = await testDb.selectFrom("renders").select(["id", "status"]).where("side_id", "=", sideId).execute();
+    const rows = await testDb
+      .selectFrom("renders")
+      .select(["id", "status"])
+      .where("side_id", "=", sideId)
+      .execute();
     expect(rows).toEqual([{ id: renderId, status: "done" }]);
-    const events = await testDb.selectFrom("provenance_events").select("payload").where("kind", "=", "side.rendered").where("subject_id", "=", sideId).execute();
+    const events = await testDb
+      .selectFrom("provenance_events")
+      .select("payload")
+      .where("kind", "=", "side.rendered")
+      .where("subject_id", "=", sideId)
+      .execute();
     expect(events).toHaveLength(1);
-    const listed = await s3().send(new ListObjectsV2Command({ Bucket: env().S3_BUCKET, Prefix: `access/${sideId}/` }));
+    const listed = await s3().send(
+      new ListObjectsV2Command({ Bucket: env().S3_BUCKET, Prefix: `access/${sideId}/` }),
+    );
     expect((listed.Contents ?? []).map((o) => o.Key)).toEqual([`access/${sideId}/${renderId}.wav`]);
     expect(Number(listed.Contents![0].Size)).toBe(Number(done.bytes));
     const object = await s3().send(new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: done.object_key! }));
@@ -161,7 +206,11 @@ describe("the worker killed by its PID in the middle of a render", () => {
     expect(hash.digest("hex")).toBe(done.sha256);
 
     // The side is rendered, standing on this render.
-    const side = await testDb.selectFrom("sides").select(["status", "current_render_id"]).where("id", "=", sideId).executeTakeFirstOrThrow();
+    const side = await testDb
+      .selectFrom("sides")
+      .select(["status", "current_render_id"])
+      .where("id", "=", sideId)
+      .executeTakeFirstOrThrow();
     expect(side).toEqual({ status: "rendered", current_render_id: renderId });
 
     // The dead worker's temporary folder was removed by the one that replaced it.
@@ -175,13 +224,35 @@ describe("the worker killed by its PID in the middle of a render", () => {
     await chooseCurve(c, sideIds);
     const bytes = monoTransfer(2);
     expect((await uploadTransfer(c, sideId, bytes, "short.wav")).done.status).toBe(201);
-    const side = await testDb.selectFrom("sides").select(["current_transfer_id", "current_curve_choice_id"]).where("id", "=", sideId).executeTakeFirstOrThrow();
-    const engineer = await testDb.selectFrom("users").select("id").where("role", "=", "engineer").orderBy("created_at").executeTakeFirstOrThrow();
+    const side = await testDb
+      .selectFrom("sides")
+      .select(["current_transfer_id", "current_curve_choice_id"])
+      .where("id", "=", sideId)
+      .executeTakeFirstOrThrow();
+    const engineer = await testDb
+      .selectFrom("users")
+      .select("id")
+      .where("role", "=", "engineer")
+      .orderBy("created_at")
+      .executeTakeFirstOrThrow();
     // A render whose worker vanished a while ago (as a killed worker leaves it); no job sent, so only the sweep could take it up.
     const stale = new Date(Date.now() - 600_000);
     const { id } = await testDb
       .insertInto("renders")
-      .values({ side_id: sideId, transfer_id: side.current_transfer_id!, curve_choice_id: side.current_curve_choice_id!, channel_mode: "both", bit_depth: 24, sample_rate_hz: 44_100, requested_by: engineer.id, status: "running", progress: 0.3, started_at: stale, heartbeat_at: stale, lease_owner: "gone:1:dead" })
+      .values({
+        side_id: sideId,
+        transfer_id: side.current_transfer_id!,
+        curve_choice_id: side.current_curve_choice_id!,
+        channel_mode: "both",
+        bit_depth: 24,
+        sample_rate_hz: 44_100,
+        requested_by: engineer.id,
+        status: "running",
+        progress: 0.3,
+        started_at: stale,
+        heartbeat_at: stale,
+        lease_owner: "gone:1:dead",
+      })
       .returning("id")
       .executeTakeFirstOrThrow();
     const list = await api(`/api/sides/${sideId}/renders`, { cookie: c.engineer });
@@ -191,8 +262,16 @@ describe("the worker killed by its PID in the middle of a render", () => {
 
     const byCurator = await api(`/api/renders/${id}/cancel`, { cookie: c.curator, method: "POST", body: {} });
     expect(byCurator.status).toBe(403);
-    const cancelled = await api(`/api/renders/${id}/cancel`, { cookie: c.engineer, method: "POST", body: {} });
-    const row = await testDb.selectFrom("renders").select(["status", "error"]).where("id", "=", id).executeTakeFirstOrThrow();
+    const cancelled = await api(`/api/renders/${id}/cancel`, {
+      cookie: c.engineer,
+      method: "POST",
+      body: {},
+    });
+    const row = await testDb
+      .selectFrom("renders")
+      .select(["status", "error"])
+      .where("id", "=", id)
+      .executeTakeFirstOrThrow();
     if (cancelled.status === 409) {
       // Taken up again and finished by the sweep's worker before the engineer's cancel: recorded once, nothing to cancel.
       expect(row.status).toBe("done");
@@ -200,12 +279,23 @@ describe("the worker killed by its PID in the middle of a render", () => {
     }
     expect(cancelled.status).toBe(200);
     expect(row.status).toBe("cancelled");
-    const ev = await testDb.selectFrom("provenance_events").select(["kind", "payload"]).where("kind", "=", "side.render_cancelled").where("subject_id", "=", sideId).execute();
+    const ev = await testDb
+      .selectFrom("provenance_events")
+      .select(["kind", "payload"])
+      .where("kind", "=", "side.render_cancelled")
+      .where("subject_id", "=", sideId)
+      .execute();
     expect(ev).toHaveLength(1);
     // A second cancel finds nothing to cancel.
-    expect((await api(`/api/renders/${id}/cancel`, { cookie: c.engineer, method: "POST", body: {} })).status).toBe(409);
+    expect(
+      (await api(`/api/renders/${id}/cancel`, { cookie: c.engineer, method: "POST", body: {} })).status,
+    ).toBe(409);
     // The side may be rendered again at once.
-    const again = await api("/api/renders", { cookie: c.engineer, method: "POST", body: { sideId, channelMode: "both", bitDepth: 24 } });
+    const again = await api("/api/renders", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { sideId, channelMode: "both", bitDepth: 24 },
+    });
     expect(again.status).toBe(202);
   }, 120_000);
 });
@@ -218,13 +308,20 @@ describe("PostgreSQL stopped and started again while the lab runs", () => {
 
     await stopPostgres(test);
     try {
-      const down = await until("the health check to see the database down", async () => {
-        const h = await health();
-        return h.status === 503 ? h : undefined;
-      }, 30_000);
+      const down = await until(
+        "the health check to see the database down",
+        async () => {
+          const h = await health();
+          return h.status === 503 ? h : undefined;
+        },
+        30_000,
+      );
       expect(down.database).not.toBe("ok");
       // A page says so plainly; an API request fails cleanly with 503.
-      const page = await fetch(`${appUrl}/catalogue`, { headers: { cookie: c.engineer }, redirect: "manual" });
+      const page = await fetch(`${appUrl}/catalogue`, {
+        headers: { cookie: c.engineer },
+        redirect: "manual",
+      });
       const html = await page.text();
       expect(html).toContain("database is unavailable");
       const listing = await api("/api/discs", { cookie: c.engineer });
@@ -237,16 +334,30 @@ describe("PostgreSQL stopped and started again while the lab runs", () => {
       await startPostgres(test);
     }
 
-    await until("the health check to see the database back", async () => ((await health()).status === 200 ? true : undefined), 60_000);
+    await until(
+      "the health check to see the database back",
+      async () => ((await health()).status === 200 ? true : undefined),
+      60_000,
+    );
     // Queued after the restart: the same worker, never restarted, sends it.
     const to = uniqueEmail("after-restart");
-    await until("the database to take the message", async () => {
-      try {
-        return await testDb.transaction().execute((trx) => enqueueMail(trx, { to, subject: "Sent after the database came back", text: "The worker reconnected by itself." }));
-      } catch {
-        return undefined;
-      }
-    }, 30_000);
+    await until(
+      "the database to take the message",
+      async () => {
+        try {
+          return await testDb.transaction().execute((trx) =>
+            enqueueMail(trx, {
+              to,
+              subject: "Sent after the database came back",
+              text: "The worker reconnected by itself.",
+            }),
+          );
+        } catch {
+          return undefined;
+        }
+      },
+      30_000,
+    );
     const mail = await waitForMail((m) => m.to.includes(to), 60_000);
     expect(mail.subject).toBe("Sent after the database came back");
     expect(alive(workerPid)).toBe(true);

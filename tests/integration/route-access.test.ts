@@ -27,7 +27,10 @@ async function discoveredRoutes(): Promise<string[]> {
     const source = await fs.readFile(file, "utf8");
     const urlPath = "/" + path.relative(appDir, path.dirname(file)).split(path.sep).join("/");
     const methods = new Set<string>();
-    for (const m of source.matchAll(/export\s+(?:const|async function|function)\s+(GET|POST|PUT|PATCH|DELETE)\b/g)) methods.add(m[1]);
+    for (const m of source.matchAll(
+      /export\s+(?:const|async function|function)\s+(GET|POST|PUT|PATCH|DELETE)\b/g,
+    ))
+      methods.add(m[1]);
     for (const m of source.matchAll(/\bas\s+(GET|POST|PUT|PATCH|DELETE)\b/g)) methods.add(m[1]);
     for (const method of methods) keys.push(`${method} ${urlPath}`);
   }

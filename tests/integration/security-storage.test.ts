@@ -46,15 +46,32 @@ async function objectExists(key: string): Promise<boolean> {
 
 async function storedSha256(key: string): Promise<string> {
   const res = await bucket.send(new GetObjectCommand({ Bucket: "rillbook", Key: key }));
-  return createHash("sha256").update(await res.Body!.transformToByteArray()).digest("hex");
+  return createHash("sha256")
+    .update(await res.Body!.transformToByteArray())
+    .digest("hex");
 }
 
-const uploadState = async (id: string) => (await testDb.selectFrom("uploads").select(["state", "reason"]).where("id", "=", id).executeTakeFirstOrThrow()).state;
+const uploadState = async (id: string) =>
+  (
+    await testDb
+      .selectFrom("uploads")
+      .select(["state", "reason"])
+      .where("id", "=", id)
+      .executeTakeFirstOrThrow()
+  ).state;
 
 beforeAll(async () => {
   c = await labCookies();
   const email = `engineer2-${tag}@test.example`;
-  await testDb.insertInto("users").values({ email, name: "Second Engineer", role: "engineer", password_hash: await hashPassword("second engineer pass") }).execute();
+  await testDb
+    .insertInto("users")
+    .values({
+      email,
+      name: "Second Engineer",
+      role: "engineer",
+      password_hash: await hashPassword("second engineer pass"),
+    })
+    .execute();
   colleague = { ...c, engineer: await signInCookie(email, "second engineer pass") };
 
   own = (await assignedDisc(c, `SS-OWN-${tag}`, ["A", "B", "C", "D", "E", "F", "G", "H"])).sideIds;
@@ -77,7 +94,11 @@ afterAll(async () => {
 async function expectVictimIntact() {
   expect(await objectExists(victim.key)).toBe(true);
   expect(await storedSha256(victim.key)).toBe(victim.sha256);
-  const claims = await testDb.selectFrom("transfers").select(["side_id"]).where("object_key", "=", victim.key).execute();
+  const claims = await testDb
+    .selectFrom("transfers")
+    .select(["side_id"])
+    .where("object_key", "=", victim.key)
+    .execute();
   expect(claims).toEqual([{ side_id: victim.sideId }]);
 }
 
@@ -88,21 +109,48 @@ describe("a preservation master cannot be claimed or lost", () => {
     // The attacker's own file, the same length as the victim's master, with the victim's size and SHA-256.
     const mine = flatTransfer(1, 22);
     expect(mine.length).toBe(victim.bytes.length);
-    const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, "../../theirs-A.wav", mine.length);
+    const { uploadId, partSize, urls, key } = await startUpload(
+      c.engineer,
+      sideId,
+      "../../theirs-A.wav",
+      mine.length,
+    );
     expect(key).toBe(`transfers/${sideId}/${uploadId}/flat.wav`);
     const parts = await sendParts(mine, partSize, urls);
-    const done = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { key: traversal, uploadId, parts, sha256: victim.sha256, bytes: victim.bytes.length, ...transferDetails } });
+    const done = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        key: traversal,
+        uploadId,
+        parts,
+        sha256: victim.sha256,
+        bytes: victim.bytes.length,
+        ...transferDetails,
+      },
+    });
     expect(done.status).toBe(422);
     expect(done.body.error.message).toMatch(/SHA-256/);
     await expectVictimIntact();
-    expect(await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideId).execute()).toHaveLength(0);
+    expect(
+      await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideId).execute(),
+    ).toHaveLength(0);
     expect(await objectExists(key)).toBe(false);
 
     // With the attacker's own checksum the file is accepted, as the attacker's own object, never the victim's.
     const again = await uploadTransfer(c, sideId, mine, "../../theirs-A.wav");
     expect(again.done.status).toBe(201);
-    const t = await testDb.selectFrom("transfers").select(["object_key", "side_id", "file_name", "upload_id"]).where("id", "=", again.done.body.transferId).executeTakeFirstOrThrow();
-    expect(t).toEqual({ object_key: again.key, side_id: sideId, file_name: "../../theirs-A.wav", upload_id: again.uploadId });
+    const t = await testDb
+      .selectFrom("transfers")
+      .select(["object_key", "side_id", "file_name", "upload_id"])
+      .where("id", "=", again.done.body.transferId)
+      .executeTakeFirstOrThrow();
+    expect(t).toEqual({
+      object_key: again.key,
+      side_id: sideId,
+      file_name: "../../theirs-A.wav",
+      upload_id: again.uploadId,
+    });
     expect(t.object_key.startsWith(`transfers/${sideId}/`)).toBe(true);
     await expectVictimIntact();
   });
@@ -110,9 +158,25 @@ describe("a preservation master cannot be claimed or lost", () => {
   it("a wrong SHA-256 refusal deletes only its own object: the other side's master, with the same SHA-256, is still there", async () => {
     const sideId = own[1];
     // The very same bytes as the victim's master, so the same SHA-256, sent with a wrong checksum.
-    const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, "theirs-A.wav", victim.bytes.length);
+    const { uploadId, partSize, urls, key } = await startUpload(
+      c.engineer,
+      sideId,
+      "theirs-A.wav",
+      victim.bytes.length,
+    );
     const parts = await sendParts(victim.bytes, partSize, urls);
-    const done = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { key: victim.key, uploadId, parts, sha256: "0".repeat(64), bytes: victim.bytes.length, ...transferDetails } });
+    const done = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        key: victim.key,
+        uploadId,
+        parts,
+        sha256: "0".repeat(64),
+        bytes: victim.bytes.length,
+        ...transferDetails,
+      },
+    });
     expect(done.status).toBe(422);
     expect(done.body.error.message).toMatch(/SHA-256/);
     expect(await objectExists(key)).toBe(false);
@@ -122,18 +186,68 @@ describe("a preservation master cannot be claimed or lost", () => {
 
   it("a colleague's upload id cannot be used: listing, signing, completing and cancelling it answer 404, and the colleague's own upload still completes", async () => {
     const bytes = flatTransfer(1, 23);
-    const theirs = await startUpload(colleague.engineer, (await testDb.selectFrom("sides").select("id").where("disc_id", "=", (await testDb.selectFrom("sides").select("disc_id").where("id", "=", victim.sideId).executeTakeFirstOrThrow()).disc_id).where("designation", "=", "B").executeTakeFirstOrThrow()).id, "theirs-B.wav", bytes.length);
+    const theirs = await startUpload(
+      colleague.engineer,
+      (
+        await testDb
+          .selectFrom("sides")
+          .select("id")
+          .where(
+            "disc_id",
+            "=",
+            (
+              await testDb
+                .selectFrom("sides")
+                .select("disc_id")
+                .where("id", "=", victim.sideId)
+                .executeTakeFirstOrThrow()
+            ).disc_id,
+          )
+          .where("designation", "=", "B")
+          .executeTakeFirstOrThrow()
+      ).id,
+      "theirs-B.wav",
+      bytes.length,
+    );
     const parts = await sendParts(bytes, theirs.partSize, theirs.urls);
 
     const listed = await api(`/api/uploads?uploadId=${theirs.uploadId}`, { cookie: c.engineer });
-    const signed = await api("/api/uploads/parts", { cookie: c.engineer, method: "POST", body: { uploadId: theirs.uploadId, partNumbers: [1] } });
-    const completed = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId: theirs.uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails } });
-    const aborted = await api("/api/uploads/abort", { cookie: c.engineer, method: "POST", body: { uploadId: theirs.uploadId } });
+    const signed = await api("/api/uploads/parts", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId: theirs.uploadId, partNumbers: [1] },
+    });
+    const completed = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        uploadId: theirs.uploadId,
+        parts,
+        sha256: sha256Of(bytes),
+        bytes: bytes.length,
+        ...transferDetails,
+      },
+    });
+    const aborted = await api("/api/uploads/abort", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId: theirs.uploadId },
+    });
     expect([listed.status, signed.status, completed.status, aborted.status]).toEqual([404, 404, 404, 404]);
     expect(signed.body.urls).toBeUndefined();
     expect(await uploadState(theirs.uploadId)).toBe("open");
 
-    const theirsDone = await api("/api/uploads/complete", { cookie: colleague.engineer, method: "POST", body: { uploadId: theirs.uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails } });
+    const theirsDone = await api("/api/uploads/complete", {
+      cookie: colleague.engineer,
+      method: "POST",
+      body: {
+        uploadId: theirs.uploadId,
+        parts,
+        sha256: sha256Of(bytes),
+        bytes: bytes.length,
+        ...transferDetails,
+      },
+    });
     expect(theirsDone.status).toBe(201);
     expect(await storedSha256(theirs.key)).toBe(sha256Of(bytes));
   });
@@ -147,31 +261,72 @@ describe("a preservation master cannot be claimed or lost", () => {
     // The whole file into the one part the 1000 bytes need.
     const put = await fetch(urls[0].url, { method: "PUT", body: Buffer.from(bytes) });
     expect(put.status).toBe(200);
-    const done = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId, parts: [{ partNumber: 1, etag: put.headers.get("etag") }], sha256: sha256Of(bytes), bytes: 1000, ...transferDetails } });
+    const done = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        uploadId,
+        parts: [{ partNumber: 1, etag: put.headers.get("etag") }],
+        sha256: sha256Of(bytes),
+        bytes: 1000,
+        ...transferDetails,
+      },
+    });
     expect(done.status).toBe(422);
     expect(done.body.error.message).toContain(`${bytes.length} bytes, not the 1000`);
     expect(await objectExists(key)).toBe(false);
     expect(await uploadState(uploadId)).toBe("refused");
-    expect(await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideId).execute()).toHaveLength(0);
+    expect(
+      await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideId).execute(),
+    ).toHaveLength(0);
   });
 
   it("the declared size is enforced: no part beyond what it needs is signed, and a completion naming more parts or another size is refused", async () => {
     const sideId = own[3];
     const bytes = flatTransfer(1, 25);
-    const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, "parts.wav", bytes.length);
-    const more = await api("/api/uploads/parts", { cookie: c.engineer, method: "POST", body: { uploadId, partNumbers: [1, 2] } });
+    const { uploadId, partSize, urls, key } = await startUpload(
+      c.engineer,
+      sideId,
+      "parts.wav",
+      bytes.length,
+    );
+    const more = await api("/api/uploads/parts", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId, partNumbers: [1, 2] },
+    });
     expect(more.status).toBe(422);
     expect(more.body.error.fields.partNumbers[0]).toMatch(/no part 2/);
 
     const parts = await sendParts(bytes, partSize, urls);
-    const bigger = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId, parts: [...parts, { partNumber: 2, etag: parts[0].etag }], sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails } });
+    const bigger = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        uploadId,
+        parts: [...parts, { partNumber: 2, etag: parts[0].etag }],
+        sha256: sha256Of(bytes),
+        bytes: bytes.length,
+        ...transferDetails,
+      },
+    });
     expect(bigger.status).toBe(422);
     expect(bigger.body.error.fields.parts).toBeDefined();
     expect(await uploadState(uploadId)).toBe("refused");
 
     const other = await startUpload(c.engineer, sideId, "parts.wav", bytes.length);
     const otherParts = await sendParts(bytes, other.partSize, other.urls);
-    const resized = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId: other.uploadId, parts: otherParts, sha256: sha256Of(bytes), bytes: bytes.length + 1, ...transferDetails } });
+    const resized = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        uploadId: other.uploadId,
+        parts: otherParts,
+        sha256: sha256Of(bytes),
+        bytes: bytes.length + 1,
+        ...transferDetails,
+      },
+    });
     expect(resized.status).toBe(422);
     expect(resized.body.error.fields.bytes).toBeDefined();
     expect(await objectExists(key)).toBe(false);
@@ -181,7 +336,12 @@ describe("a preservation master cannot be claimed or lost", () => {
   it("a second completion answers 409 with a clear message and leaves the accepted transfer as it was", async () => {
     const sideId = own[4];
     const bytes = flatTransfer(1, 26);
-    const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, "twice.wav", bytes.length);
+    const { uploadId, partSize, urls, key } = await startUpload(
+      c.engineer,
+      sideId,
+      "twice.wav",
+      bytes.length,
+    );
     const parts = await sendParts(bytes, partSize, urls);
     const body = { uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails };
     const first = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body });
@@ -189,9 +349,15 @@ describe("a preservation master cannot be claimed or lost", () => {
     const second = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body });
     expect(second.status).toBe(409);
     expect(second.body.error.message).toMatch(/already complete/);
-    expect(await testDb.selectFrom("transfers").select("id").where("upload_id", "=", uploadId).execute()).toEqual([{ id: first.body.transferId }]);
+    expect(
+      await testDb.selectFrom("transfers").select("id").where("upload_id", "=", uploadId).execute(),
+    ).toEqual([{ id: first.body.transferId }]);
     expect(await storedSha256(key)).toBe(sha256Of(bytes));
-    const cancel = await api("/api/uploads/abort", { cookie: c.engineer, method: "POST", body: { uploadId } });
+    const cancel = await api("/api/uploads/abort", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId },
+    });
     expect(cancel.status).toBe(409);
     expect(await objectExists(key)).toBe(true);
   });
@@ -202,38 +368,111 @@ describe("a preservation master cannot be claimed or lost", () => {
     const { uploadId, partSize, urls } = await startUpload(c.engineer, sideId, "race.wav", bytes.length);
     const parts = await sendParts(bytes, partSize, urls);
     const body = { uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails };
-    const answers = await Promise.all([1, 2, 3].map(() => api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body })));
+    const answers = await Promise.all(
+      [1, 2, 3].map(() => api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body })),
+    );
     expect(answers.map((a) => a.status).sort()).toEqual([201, 409, 409]);
-    expect(await testDb.selectFrom("transfers").select("id").where("upload_id", "=", uploadId).execute()).toHaveLength(1);
+    expect(
+      await testDb.selectFrom("transfers").select("id").where("upload_id", "=", uploadId).execute(),
+    ).toHaveLength(1);
     expect(await uploadState(uploadId)).toBe("completed");
   });
 
   it("the database refuses a second transfer from one upload, a transfer whose object is not its upload's, and an unknown upload state", async () => {
-    const t = await testDb.selectFrom("transfers").selectAll().where("side_id", "=", victim.sideId).executeTakeFirstOrThrow();
+    const t = await testDb
+      .selectFrom("transfers")
+      .selectAll()
+      .where("side_id", "=", victim.sideId)
+      .executeTakeFirstOrThrow();
     const { id: _id, created_at: _c, ...copy } = t;
-    const again = { ...copy, bext: t.bext === null ? null : JSON.stringify(t.bext), measured_speed_rpm: t.measured_speed_rpm === null ? null : Number(t.measured_speed_rpm) };
-    await expect(testDb.insertInto("transfers").values({ ...again, object_key: `${t.object_key}.copy` }).execute()).rejects.toThrow(/transfers_upload_once/);
+    const again = {
+      ...copy,
+      bext: t.bext === null ? null : JSON.stringify(t.bext),
+      measured_speed_rpm: t.measured_speed_rpm === null ? null : Number(t.measured_speed_rpm),
+    };
+    await expect(
+      testDb
+        .insertInto("transfers")
+        .values({ ...again, object_key: `${t.object_key}.copy` })
+        .execute(),
+    ).rejects.toThrow(/transfers_upload_once/);
     // A refused upload of the engineer's own, named for the victim's object.
-    const refused = await testDb.selectFrom("uploads").select(["id", "side_id"]).where("state", "=", "refused").executeTakeFirstOrThrow();
-    await expect(testDb.insertInto("transfers").values({ ...again, upload_id: refused.id, side_id: refused.side_id, object_key: `${t.object_key}.claimed` }).execute()).rejects.toThrow(/transfers_upload_fk/);
-    await expect(sql`UPDATE uploads SET state = 'done' WHERE id = ${t.upload_id}`.execute(testDb)).rejects.toThrow(/uploads_state/);
-    await expect(sql`UPDATE uploads SET object_key = ${victim.key}, state = 'open', finished_at = NULL WHERE id = ${refused.id}`.execute(testDb)).rejects.toThrow(/uploads_key|uploads_object_key/);
+    const refused = await testDb
+      .selectFrom("uploads")
+      .select(["id", "side_id"])
+      .where("state", "=", "refused")
+      .executeTakeFirstOrThrow();
+    await expect(
+      testDb
+        .insertInto("transfers")
+        .values({
+          ...again,
+          upload_id: refused.id,
+          side_id: refused.side_id,
+          object_key: `${t.object_key}.claimed`,
+        })
+        .execute(),
+    ).rejects.toThrow(/transfers_upload_fk/);
+    await expect(
+      sql`UPDATE uploads SET state = 'done' WHERE id = ${t.upload_id}`.execute(testDb),
+    ).rejects.toThrow(/uploads_state/);
+    await expect(
+      sql`UPDATE uploads SET object_key = ${victim.key}, state = 'open', finished_at = NULL WHERE id = ${refused.id}`.execute(
+        testDb,
+      ),
+    ).rejects.toThrow(/uploads_key|uploads_object_key/);
   });
 
   it("odd ids (dashes, not a uuid) answer 422 with a field error, not 500; an unknown upload answers 404", async () => {
     const dashes = "------------------------------------";
-    const signed = await api("/api/uploads/parts", { cookie: c.engineer, method: "POST", body: { key: dashes, uploadId: dashes, partNumbers: [1] } });
+    const signed = await api("/api/uploads/parts", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { key: dashes, uploadId: dashes, partNumbers: [1] },
+    });
     const listed = await api(`/api/uploads?uploadId=${dashes}&key=${dashes}`, { cookie: c.engineer });
-    const completed = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { key: dashes, uploadId: dashes, parts: [{ partNumber: 1, etag: "x" }], sha256: "0".repeat(64), bytes: 1 } });
-    const aborted = await api("/api/uploads/abort", { cookie: c.engineer, method: "POST", body: { uploadId: dashes } });
-    const started = await api("/api/uploads", { cookie: c.engineer, method: "POST", body: { sideId: dashes, fileName: "a.wav", bytes: 10 } });
-    for (const [r, field] of [[signed, "uploadId"], [listed, "uploadId"], [completed, "uploadId"], [aborted, "uploadId"], [started, "sideId"]] as const) {
+    const completed = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        key: dashes,
+        uploadId: dashes,
+        parts: [{ partNumber: 1, etag: "x" }],
+        sha256: "0".repeat(64),
+        bytes: 1,
+      },
+    });
+    const aborted = await api("/api/uploads/abort", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId: dashes },
+    });
+    const started = await api("/api/uploads", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { sideId: dashes, fileName: "a.wav", bytes: 10 },
+    });
+    for (const [r, field] of [
+      [signed, "uploadId"],
+      [listed, "uploadId"],
+      [completed, "uploadId"],
+      [aborted, "uploadId"],
+      [started, "sideId"],
+    ] as const) {
       expect(r.status).toBe(422);
       expect(r.body.error.fields[field]).toBeDefined();
     }
-    const unknown = await api("/api/uploads/parts", { cookie: c.engineer, method: "POST", body: { uploadId: "00000000-0000-4000-8000-000000000000", partNumbers: [1] } });
+    const unknown = await api("/api/uploads/parts", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId: "00000000-0000-4000-8000-000000000000", partNumbers: [1] },
+    });
     expect(unknown.status).toBe(404);
-    const controlName = await api("/api/uploads", { cookie: c.engineer, method: "POST", body: { sideId: own[6], fileName: "a\r\nb.wav", bytes: 10 } });
+    const controlName = await api("/api/uploads", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { sideId: own[6], fileName: "a\r\nb.wav", bytes: 10 },
+    });
     expect(controlName.status).toBe(422);
     expect(controlName.body.error.fields.fileName).toBeDefined();
   });
@@ -242,11 +481,23 @@ describe("a preservation master cannot be claimed or lost", () => {
     const bytes = flatTransfer(1, 28);
     const { uploadId, partSize, urls, key } = await startUpload(c.engineer, own[6], "late.wav", bytes.length);
     const parts = await sendParts(bytes, partSize, urls);
-    await testDb.updateTable("uploads").set({ created_at: sql`now() - interval '2 days'`, expires_at: sql`now() - interval '1 day'` }).where("id", "=", uploadId).execute();
-    const signed = await api("/api/uploads/parts", { cookie: c.engineer, method: "POST", body: { uploadId, partNumbers: [1] } });
+    await testDb
+      .updateTable("uploads")
+      .set({ created_at: sql`now() - interval '2 days'`, expires_at: sql`now() - interval '1 day'` })
+      .where("id", "=", uploadId)
+      .execute();
+    const signed = await api("/api/uploads/parts", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId, partNumbers: [1] },
+    });
     expect(signed.status).toBe(410);
     expect(signed.body.error.message).toMatch(/expired/);
-    const done = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails } });
+    const done = await api("/api/uploads/complete", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails },
+    });
     expect(done.status).toBe(409);
     expect(done.body.error.message).toMatch(/cancelled \(expired\)/);
     expect(await uploadState(uploadId)).toBe("aborted");
@@ -260,11 +511,22 @@ describe("a preservation master cannot be claimed or lost", () => {
     const parts = await sendParts(bytes, partSize, urls);
     const body = { uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails };
     // The storage loses track of the upload for a while (s3rver answers 500 where S3 answers 404, NoSuchUpload).
-    const { storage_upload_id: real } = await testDb.selectFrom("uploads").select("storage_upload_id").where("id", "=", uploadId).executeTakeFirstOrThrow();
-    await testDb.updateTable("uploads").set({ storage_upload_id: "0".repeat(32) }).where("id", "=", uploadId).execute();
+    const { storage_upload_id: real } = await testDb
+      .selectFrom("uploads")
+      .select("storage_upload_id")
+      .where("id", "=", uploadId)
+      .executeTakeFirstOrThrow();
+    await testDb
+      .updateTable("uploads")
+      .set({ storage_upload_id: "0".repeat(32) })
+      .where("id", "=", uploadId)
+      .execute();
     const lost = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body });
     expect(lost.status).toBe(503);
-    expect(lost.body.error).toMatchObject({ code: "unavailable", message: expect.stringMatching(/^The storage could not put the uploaded parts together just now/) });
+    expect(lost.body.error).toMatchObject({
+      code: "unavailable",
+      message: expect.stringMatching(/^The storage could not put the uploaded parts together just now/),
+    });
     expect(await uploadState(uploadId)).toBe("open");
 
     await testDb.updateTable("uploads").set({ storage_upload_id: real }).where("id", "=", uploadId).execute();
@@ -280,12 +542,21 @@ describe("download names", () => {
     const up = await uploadTransfer(c, sideId, flatTransfer(1, 30), "plain.wav");
     expect(up.done.status).toBe(201);
     const render = await renderAndWait(c, sideId);
-    const discId = (await testDb.selectFrom("sides").select("disc_id").where("id", "=", sideId).executeTakeFirstOrThrow()).disc_id;
+    const discId = (
+      await testDb.selectFrom("sides").select("disc_id").where("id", "=", sideId).executeTakeFirstOrThrow()
+    ).disc_id;
     const hostile = `SS-${tag}\r\nSet-Cookie: stolen=1; "quoted" \\ Pathé`;
     await testDb.updateTable("discs").set({ shelf_mark: hostile }).where("id", "=", discId).execute();
-    await testDb.updateTable("transfers").set({ file_name: `flat\r\n"${tag}".wav` }).where("id", "=", up.done.body.transferId).execute();
+    await testDb
+      .updateTable("transfers")
+      .set({ file_name: `flat\r\n"${tag}".wav` })
+      .where("id", "=", up.done.body.transferId)
+      .execute();
 
-    for (const path of [`/api/renders/${render.id}/download`, `/api/transfers/${up.done.body.transferId}/download`]) {
+    for (const path of [
+      `/api/renders/${render.id}/download`,
+      `/api/transfers/${up.done.body.transferId}/download`,
+    ]) {
       const link = await fetch(`${appUrl}${path}`, { headers: { cookie: c.curator }, redirect: "manual" });
       expect(link.status).toBe(302);
       const location = link.headers.get("location")!;
@@ -300,7 +571,9 @@ describe("download names", () => {
       const full = decodeURIComponent(m![2]);
       expect(full).not.toMatch(/[\r\n]/);
       if (path.includes("renders")) {
-        expect(m![1]).toMatch(new RegExp(`^SS-${tag} Set-Cookie_ stolen=1_ _quoted_ _ Pathe-A-access\\.wav$`));
+        expect(m![1]).toMatch(
+          new RegExp(`^SS-${tag} Set-Cookie_ stolen=1_ _quoted_ _ Pathe-A-access\\.wav$`),
+        );
         expect(full).toBe(`SS-${tag} Set-Cookie: stolen=1; "quoted" _ Pathé-A-access.wav`);
       } else {
         expect(full).toBe(`flat "${tag}".wav`);

@@ -19,7 +19,14 @@ import { invitePerson } from "@/lib/people/invitations";
 import { requestPasswordReset, resetPassword } from "@/lib/people/password-resets";
 import { api, appUrl, linkIn, sameOrigin, signInCookie, uniqueEmail } from "../support/app";
 import { testDb } from "../support/db";
-import { chooseCurve, flatTransfer, type LabCookies, labCookies, renderAndWait, uploadTransfer } from "../support/pipeline";
+import {
+  chooseCurve,
+  flatTransfer,
+  type LabCookies,
+  labCookies,
+  renderAndWait,
+  uploadTransfer,
+} from "../support/pipeline";
 
 const run = promisify(execFile);
 const tag = Date.now().toString(36);
@@ -38,16 +45,29 @@ afterAll(async () => {
   await testDb.destroy();
 });
 
-const accessionBody = (identifier: string) => JSON.stringify({ identifier, source: "Security tests", receivedOn: "2026-12-01" });
+const accessionBody = (identifier: string) =>
+  JSON.stringify({ identifier, source: "Security tests", receivedOn: "2026-12-01" });
 
 async function accessionCount(identifier: string): Promise<number> {
-  const row = await testDb.selectFrom("accessions").select(sql<number>`count(*)::int`.as("n")).where("identifier", "=", identifier).executeTakeFirstOrThrow();
+  const row = await testDb
+    .selectFrom("accessions")
+    .select(sql<number>`count(*)::int`.as("n"))
+    .where("identifier", "=", identifier)
+    .executeTakeFirstOrThrow();
   return row.n;
 }
 
 /** A raw request, headers exactly as given (no Origin added). */
-async function raw(pathname: string, init: { method?: string; headers?: Record<string, string>; body?: string } = {}) {
-  const res = await fetch(`${appUrl}${pathname}`, { method: init.method ?? "GET", headers: init.headers, body: init.body, redirect: "manual" });
+async function raw(
+  pathname: string,
+  init: { method?: string; headers?: Record<string, string>; body?: string } = {},
+) {
+  const res = await fetch(`${appUrl}${pathname}`, {
+    method: init.method ?? "GET",
+    headers: init.headers,
+    body: init.body,
+    redirect: "manual",
+  });
   const text = await res.text();
   let body: any = text;
   try {
@@ -61,49 +81,96 @@ async function raw(pathname: string, init: { method?: string; headers?: Record<s
 async function makeUser(role: "archivist" | "engineer" | "curator") {
   const email = uniqueEmail(`sec-${role}`);
   const password = "a good long passphrase";
-  const row = await testDb.insertInto("users").values({ email, name: `Security ${role}`, role, password_hash: await hashPassword(password) }).returning("id").executeTakeFirstOrThrow();
+  const row = await testDb
+    .insertInto("users")
+    .values({ email, name: `Security ${role}`, role, password_hash: await hashPassword(password) })
+    .returning("id")
+    .executeTakeFirstOrThrow();
   return { id: row.id, email, password };
 }
 
 async function adminActor() {
-  return testDb.selectFrom("users").select(["id", "email", "name", "role"]).where("role", "=", "admin").where("active", "=", true).orderBy("created_at").executeTakeFirstOrThrow();
+  return testDb
+    .selectFrom("users")
+    .select(["id", "email", "name", "role"])
+    .where("role", "=", "admin")
+    .where("active", "=", true)
+    .orderBy("created_at")
+    .executeTakeFirstOrThrow();
 }
 
 describe("cross-site requests", () => {
   it("refuses a signed-in person's JSON post whose Origin is another site, and creates nothing", async () => {
     const identifier = `XS-${tag}-origin`;
-    const res = await raw("/api/accessions", { method: "POST", headers: { origin: evilOrigin, cookie: c.archivist, "content-type": "application/json" }, body: accessionBody(identifier) });
+    const res = await raw("/api/accessions", {
+      method: "POST",
+      headers: { origin: evilOrigin, cookie: c.archivist, "content-type": "application/json" },
+      body: accessionBody(identifier),
+    });
     expect(res.status).toBe(403);
     expect(res.body.error.code).toBe("cross_site");
     expect(res.body.error.message).toMatch(/another site/);
     expect(await accessionCount(identifier)).toBe(0);
     // The same request from the app's own origin goes through: the refusal was the Origin's.
-    const ok = await raw("/api/accessions", { method: "POST", headers: { ...sameOrigin, cookie: c.archivist, "content-type": "application/json" }, body: accessionBody(identifier) });
+    const ok = await raw("/api/accessions", {
+      method: "POST",
+      headers: { ...sameOrigin, cookie: c.archivist, "content-type": "application/json" },
+      body: accessionBody(identifier),
+    });
     expect(ok.status).toBe(201);
   });
 
   it("refuses a post with no Origin, Sec-Fetch-Site or Referer, and takes one whose Referer is the app", async () => {
     const identifier = `XS-${tag}-none`;
-    const none = await raw("/api/accessions", { method: "POST", headers: { cookie: c.archivist, "content-type": "application/json" }, body: accessionBody(identifier) });
+    const none = await raw("/api/accessions", {
+      method: "POST",
+      headers: { cookie: c.archivist, "content-type": "application/json" },
+      body: accessionBody(identifier),
+    });
     expect(none.status).toBe(403);
     expect(none.body.error.message).toMatch(/did not say where it came from/);
-    const crossFetch = await raw("/api/accessions", { method: "POST", headers: { "sec-fetch-site": "cross-site", cookie: c.archivist, "content-type": "application/json" }, body: accessionBody(identifier) });
+    const crossFetch = await raw("/api/accessions", {
+      method: "POST",
+      headers: { "sec-fetch-site": "cross-site", cookie: c.archivist, "content-type": "application/json" },
+      body: accessionBody(identifier),
+    });
     expect(crossFetch.status).toBe(403);
     expect(await accessionCount(identifier)).toBe(0);
-    const byReferer = await raw("/api/accessions", { method: "POST", headers: { referer: `${appUrl}/catalogue/accessions`, cookie: c.archivist, "content-type": "application/json" }, body: accessionBody(identifier) });
+    const byReferer = await raw("/api/accessions", {
+      method: "POST",
+      headers: {
+        referer: `${appUrl}/catalogue/accessions`,
+        cookie: c.archivist,
+        "content-type": "application/json",
+      },
+      body: accessionBody(identifier),
+    });
     expect(byReferer.status).toBe(201);
   });
 
   it("refuses JSON sent as text/plain (what a cross-site form can send) with 415, even from the app's origin", async () => {
     const identifier = `XS-${tag}-plain`;
-    const res = await raw("/api/accessions", { method: "POST", headers: { ...sameOrigin, cookie: c.archivist, "content-type": "text/plain" }, body: accessionBody(identifier) });
+    const res = await raw("/api/accessions", {
+      method: "POST",
+      headers: { ...sameOrigin, cookie: c.archivist, "content-type": "text/plain" },
+      body: accessionBody(identifier),
+    });
     expect(res.status).toBe(415);
     expect(res.body.error.message).toMatch(/application\/json, not text\/plain/);
     expect(await accessionCount(identifier)).toBe(0);
   });
 
   it("refuses a form post to a page (a server action) from another site", async () => {
-    const res = await raw("/people", { method: "POST", headers: { origin: evilOrigin, cookie: adminCookie, "next-action": "0".repeat(42), "content-type": "text/plain;charset=UTF-8" }, body: "[]" });
+    const res = await raw("/people", {
+      method: "POST",
+      headers: {
+        origin: evilOrigin,
+        cookie: adminCookie,
+        "next-action": "0".repeat(42),
+        "content-type": "text/plain;charset=UTF-8",
+      },
+      body: "[]",
+    });
     expect(res.status).toBe(403);
     expect(res.body.error.code).toBe("cross_site");
   });
@@ -131,7 +198,9 @@ describe("security headers", () => {
     const nonce = csp.match(/'nonce-([^']+)'/)?.[1];
     expect(nonce).toBeTruthy();
     expect(csp).not.toContain("'unsafe-eval'");
-    expect(csp).toContain(`connect-src 'self' ${new URL(process.env.S3_ENDPOINT ?? "http://127.0.0.1:55421").origin}`);
+    expect(csp).toContain(
+      `connect-src 'self' ${new URL(process.env.S3_ENDPOINT ?? "http://127.0.0.1:55421").origin}`,
+    );
     const html = await first.text();
     const scripts = [...html.matchAll(/<script\b[^>]*>/g)].map((m) => m[0]);
     expect(scripts.length).toBeGreaterThan(0);
@@ -185,7 +254,15 @@ describe("sessions end on the server", () => {
     expect((await api("/api/me", { cookie: copy })).status).toBe(200);
     await signOut(cookie);
     expect((await api("/api/me", { cookie: copy })).status).toBe(401);
-    expect((await api("/api/accessions", { cookie: copy, method: "POST", body: { identifier: `SO-${tag}`, source: "x", receivedOn: "2026-12-01" } })).status).toBe(401);
+    expect(
+      (
+        await api("/api/accessions", {
+          cookie: copy,
+          method: "POST",
+          body: { identifier: `SO-${tag}`, source: "x", receivedOn: "2026-12-01" },
+        })
+      ).status,
+    ).toBe(401);
     // Signing in again works, with a new cookie.
     expect((await api("/api/me", { cookie: await signInCookie(u.email, u.password) })).status).toBe(200);
   });
@@ -195,11 +272,18 @@ describe("sessions end on the server", () => {
     const cookie = await signInCookie(u.email, u.password);
     expect((await api("/api/me", { cookie })).status).toBe(200);
     await requestPasswordReset({ email: u.email });
-    const msg = await testDb.selectFrom("outbox").select("body_text").where("to_address", "=", u.email).orderBy("created_at", "desc").executeTakeFirstOrThrow();
+    const msg = await testDb
+      .selectFrom("outbox")
+      .select("body_text")
+      .where("to_address", "=", u.email)
+      .orderBy("created_at", "desc")
+      .executeTakeFirstOrThrow();
     const token = linkIn(msg.body_text, "/reset/").split("/reset/")[1];
     await resetPassword({ token, password: "a brand new passphrase", confirm: "a brand new passphrase" });
     expect((await api("/api/me", { cookie })).status).toBe(401);
-    expect((await api("/api/me", { cookie: await signInCookie(u.email, "a brand new passphrase") })).status).toBe(200);
+    expect(
+      (await api("/api/me", { cookie: await signInCookie(u.email, "a brand new passphrase") })).status,
+    ).toBe(200);
   });
 
   it("a copied cookie is dead after deactivation, and stays dead after reactivation", async () => {
@@ -219,7 +303,9 @@ describe("sessions end on the server", () => {
     expect((await api("/api/me", { cookie })).body.user.role).toBe("archivist");
     await changeRole(await adminActor(), { userId: u.id, role: "curator" });
     expect((await api("/api/me", { cookie })).status).toBe(401);
-    expect((await api("/api/me", { cookie: await signInCookie(u.email, u.password) })).body.user.role).toBe("curator");
+    expect((await api("/api/me", { cookie: await signInCookie(u.email, u.password) })).body.user.role).toBe(
+      "curator",
+    );
   });
 });
 
@@ -232,8 +318,16 @@ describe("mail as the app shows it", () => {
     await invitePerson(await adminActor(), { email: invitee, role: "engineer" });
     const listed = await api("/api/outbox", { cookie: adminCookie });
     expect(listed.status).toBe(200);
-    for (const [to, prefix] of [[u.email, "/reset/"], [invitee, "/invite/"]] as const) {
-      const stored = await testDb.selectFrom("outbox").select(["id", "body_text"]).where("to_address", "=", to).orderBy("created_at", "desc").executeTakeFirstOrThrow();
+    for (const [to, prefix] of [
+      [u.email, "/reset/"],
+      [invitee, "/invite/"],
+    ] as const) {
+      const stored = await testDb
+        .selectFrom("outbox")
+        .select(["id", "body_text"])
+        .where("to_address", "=", to)
+        .orderBy("created_at", "desc")
+        .executeTakeFirstOrThrow();
       const token = linkIn(stored.body_text, prefix).split(prefix)[1];
       expect(token.length).toBeGreaterThan(20);
       const shown = listed.body.messages.find((m: { id: string }) => m.id === stored.id);
@@ -253,31 +347,67 @@ describe("odd text", () => {
 
   it("answers a NUL in a text field with 422 naming the field, and stores nothing", async () => {
     const identifier = `NUL-${tag}\u0000x`;
-    const res = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier, source: "Security tests", receivedOn: "2026-12-01" } });
+    const res = await api("/api/accessions", {
+      cookie: c.archivist,
+      method: "POST",
+      body: { identifier, source: "Security tests", receivedOn: "2026-12-01" },
+    });
     expect(res.status).toBe(422);
     expect(res.body.error.fields.identifier).toBeDefined();
-    const acc = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `NUL-${tag}`, source: "Security tests", receivedOn: "2026-12-01" } });
+    const acc = await api("/api/accessions", {
+      cookie: c.archivist,
+      method: "POST",
+      body: { identifier: `NUL-${tag}`, source: "Security tests", receivedOn: "2026-12-01" },
+    });
     expect(acc.status).toBe(201);
     const disc = await api("/api/discs", {
       cookie: c.archivist,
       method: "POST",
-      body: { accessionId: acc.body.accession.id, shelfMark: `NUL-${tag}`, labelName: "Varrowby", format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: [{ designation: "A", title: "Copper\u0000Meadow" }] },
+      body: {
+        accessionId: acc.body.accession.id,
+        shelfMark: `NUL-${tag}`,
+        labelName: "Varrowby",
+        format: "shellac_78",
+        nominalSpeedRpm: 78,
+        groove: "coarse",
+        cut: "lateral",
+        sides: [{ designation: "A", title: "Copper\u0000Meadow" }],
+      },
     });
     expect(disc.status).toBe(422);
     expect(disc.body.error.fields["sides.0.title"]).toBeDefined();
   });
 
   it("exports PREMIS that is well-formed XML when a stored title holds U+000B", async () => {
-    const acc = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `VT-${tag}`, source: "Security tests", receivedOn: "2026-12-01" } });
+    const acc = await api("/api/accessions", {
+      cookie: c.archivist,
+      method: "POST",
+      body: { identifier: `VT-${tag}`, source: "Security tests", receivedOn: "2026-12-01" },
+    });
     const disc = await api("/api/discs", {
       cookie: c.archivist,
       method: "POST",
-      body: { accessionId: acc.body.accession.id, shelfMark: `VT-${tag}`, labelName: "Varrowby\u000bRecords", format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: [{ designation: "A", title: "Copper\u000bMeadow Serenade" }] },
+      body: {
+        accessionId: acc.body.accession.id,
+        shelfMark: `VT-${tag}`,
+        labelName: "Varrowby\u000bRecords",
+        format: "shellac_78",
+        nominalSpeedRpm: 78,
+        groove: "coarse",
+        cut: "lateral",
+        sides: [{ designation: "A", title: "Copper\u000bMeadow Serenade" }],
+      },
     });
     expect(disc.status).toBe(201);
-    const stored = await testDb.selectFrom("sides").select("title").where("disc_id", "=", disc.body.disc.id).executeTakeFirstOrThrow();
+    const stored = await testDb
+      .selectFrom("sides")
+      .select("title")
+      .where("disc_id", "=", disc.body.disc.id)
+      .executeTakeFirstOrThrow();
     expect(stored.title).toContain("\u000b");
-    const res = await fetch(`${appUrl}/api/discs/${disc.body.disc.id}/export?format=premis`, { headers: { cookie: c.curator } });
+    const res = await fetch(`${appUrl}/api/discs/${disc.body.disc.id}/export?format=premis`, {
+      headers: { cookie: c.curator },
+    });
     expect(res.status).toBe(200);
     const xml = await res.text();
     const dir = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-premis-"));
@@ -289,22 +419,53 @@ describe("odd text", () => {
   });
 
   it("renders a disc labelled Pathé, with the label transliterated in the bext Description and in full in the iXML chunk", async () => {
-    const engineerId = (await testDb.selectFrom("users").select("id").where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email).executeTakeFirstOrThrow()).id;
-    const acc = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `PA-${tag}`, source: "Security tests", receivedOn: "2026-12-01" } });
+    const engineerId = (
+      await testDb
+        .selectFrom("users")
+        .select("id")
+        .where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email)
+        .executeTakeFirstOrThrow()
+    ).id;
+    const acc = await api("/api/accessions", {
+      cookie: c.archivist,
+      method: "POST",
+      body: { identifier: `PA-${tag}`, source: "Security tests", receivedOn: "2026-12-01" },
+    });
     const disc = await api("/api/discs", {
       cookie: c.archivist,
       method: "POST",
-      body: { accessionId: acc.body.accession.id, shelfMark: `PA-${tag}`, labelName: "Pathé Frères", catalogueNumber: "Ø 1207", format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: [{ designation: "A", title: "Chanson de l’Œuvre" }] },
+      body: {
+        accessionId: acc.body.accession.id,
+        shelfMark: `PA-${tag}`,
+        labelName: "Pathé Frères",
+        catalogueNumber: "Ø 1207",
+        format: "shellac_78",
+        nominalSpeedRpm: 78,
+        groove: "coarse",
+        cut: "lateral",
+        sides: [{ designation: "A", title: "Chanson de l’Œuvre" }],
+      },
     });
     expect(disc.status).toBe(201);
     const sideId = disc.body.disc.sides[0].id as string;
-    expect((await api("/api/assignments", { cookie: c.archivist, method: "POST", body: { engineerId, discIds: [disc.body.disc.id] } })).status).toBe(200);
+    expect(
+      (
+        await api("/api/assignments", {
+          cookie: c.archivist,
+          method: "POST",
+          body: { engineerId, discIds: [disc.body.disc.id] },
+        })
+      ).status,
+    ).toBe(200);
     await chooseCurve(c, [sideId]);
     const up = await uploadTransfer(c, sideId, flatTransfer(2, 5), "pathe.wav");
     expect(up.done.status).toBe(201);
     const render = await renderAndWait(c, sideId);
     expect(render.status).toBe("done");
-    const link = await fetch(`${appUrl}/api/renders/${render.id}/download`, { headers: { cookie: c.curator }, redirect: "manual" });
+    const link = await fetch(`${appUrl}/api/renders/${render.id}/download`, {
+      headers: { cookie: c.curator },
+      redirect: "manual",
+    });
     expect(link.status).toBe(302);
     const file = new Uint8Array(await (await fetch(link.headers.get("location")!)).arrayBuffer());
     const header = await readWavHeader(bufferSource(file));
@@ -312,7 +473,12 @@ describe("odd text", () => {
     // The full text where Unicode is allowed: the file's iXML chunk (UTF-8) and the render's record.
     const full = `PA-${tag} side A: Pathé Frères Ø 1207. Equalized access copy.`;
     expect(Buffer.from(file).toString("utf8")).toContain(`<NOTE>${full}</NOTE>`);
-    const rendered = await testDb.selectFrom("provenance_events").select("payload").where("subject_id", "=", sideId).where("kind", "=", "side.rendered").executeTakeFirstOrThrow();
+    const rendered = await testDb
+      .selectFrom("provenance_events")
+      .select("payload")
+      .where("subject_id", "=", sideId)
+      .where("kind", "=", "side.rendered")
+      .executeTakeFirstOrThrow();
     expect((rendered.payload as { description: string }).description).toBe(full);
   }, 180_000);
 });

@@ -39,7 +39,13 @@ const CASES: { encoding: SampleEncoding; channels: 1 | 2; rate: number; frames: 
   { encoding: { format: "pcm", bitsPerSample: 24 }, channels: 2, rate: 96_000, frames: 48_001, rf64: false },
   { encoding: { format: "pcm", bitsPerSample: 24 }, channels: 1, rate: 192_000, frames: 19_201, rf64: true },
   { encoding: { format: "pcm", bitsPerSample: 32 }, channels: 1, rate: 88_200, frames: 8820, rf64: false },
-  { encoding: { format: "float", bitsPerSample: 32 }, channels: 2, rate: 384_000, frames: 38_400, rf64: true },
+  {
+    encoding: { format: "float", bitsPerSample: 32 },
+    channels: 2,
+    rate: 384_000,
+    frames: 38_400,
+    rf64: true,
+  },
 ];
 
 describe("Rillbook BWF files in other readers", () => {
@@ -48,8 +54,15 @@ describe("Rillbook BWF files in other readers", () => {
     it(label, async () => {
       const path = join(dir, `${label.replace(/\W+/g, "-")}.wav`);
       const values = testSignal(c.frames, c.channels, c.frames, 0.7);
-      const w = await BwfWriter.create(path, { sampleRateHz: c.rate, channels: c.channels, encoding: c.encoding, bext: CORPUS_BEXT, rf64ThresholdBytes: c.rf64 ? 4096 : undefined });
-      for (let s = 0; s < c.frames; s += 10_000) await w.write(values.map((v) => v.subarray(s, Math.min(c.frames, s + 10_000))));
+      const w = await BwfWriter.create(path, {
+        sampleRateHz: c.rate,
+        channels: c.channels,
+        encoding: c.encoding,
+        bext: CORPUS_BEXT,
+        rf64ThresholdBytes: c.rf64 ? 4096 : undefined,
+      });
+      for (let s = 0; s < c.frames; s += 10_000)
+        await w.write(values.map((v) => v.subarray(s, Math.min(c.frames, s + 10_000))));
       const result = await w.close();
       expect(result.container).toBe(c.rf64 ? "RF64" : "RIFF");
 
@@ -57,14 +70,22 @@ describe("Rillbook BWF files in other readers", () => {
       const info = await soxInfo(path);
       expect(Number(info["Channels"])).toBe(c.channels);
       expect(Number(info["Sample Rate"])).toBe(c.rate);
-      expect(info["Sample Encoding"]).toBe(c.encoding.format === "pcm" ? `${c.encoding.bitsPerSample}-bit Signed Integer PCM` : "32-bit Floating Point PCM");
+      expect(info["Sample Encoding"]).toBe(
+        c.encoding.format === "pcm"
+          ? `${c.encoding.bitsPerSample}-bit Signed Integer PCM`
+          : "32-bit Floating Point PCM",
+      );
       expect(info["Duration"]).toMatch(new RegExp(` = ${c.frames} samples`));
 
       // Source: wavefile (npm). It reads the RIFF layout only, so RF64 files are checked by sox and python.
       if (!c.rf64) {
         const wav = new WaveFile(await readFile(path));
         const fmt = wav.fmt as { numChannels: number; sampleRate: number; bitsPerSample: number };
-        expect([fmt.numChannels, fmt.sampleRate, fmt.bitsPerSample]).toEqual([c.channels, c.rate, c.encoding.bitsPerSample]);
+        expect([fmt.numChannels, fmt.sampleRate, fmt.bitsPerSample]).toEqual([
+          c.channels,
+          c.rate,
+          c.encoding.bitsPerSample,
+        ]);
         const samples = wav.getSamples(false) as unknown as Float64Array[] | Float64Array;
         const first = Array.isArray(samples) ? samples[0] : samples;
         expect(first.length).toBe(c.frames);
@@ -74,14 +95,26 @@ describe("Rillbook BWF files in other readers", () => {
       const source = await openFileSource(path);
       const h = await readWavHeader(source);
       await source.close();
-      expect([h.container, h.channels, h.sampleRateHz, h.bitsPerSample, h.frames]).toEqual([result.container, c.channels, c.rate, c.encoding.bitsPerSample, c.frames]);
+      expect([h.container, h.channels, h.sampleRateHz, h.bitsPerSample, h.frames]).toEqual([
+        result.container,
+        c.channels,
+        c.rate,
+        c.encoding.bitsPerSample,
+        c.frames,
+      ]);
       expect(h.bext?.codingHistory).toBe(CORPUS_BEXT.codingHistory);
     });
   }
 
   it("bext fields at the EBU Tech 3285 v2 byte offsets (python struct)", async () => {
     const path = join(dir, "bext-check.wav");
-    const w = await BwfWriter.create(path, { sampleRateHz: 96_000, channels: 2, encoding: { format: "pcm", bitsPerSample: 24 }, bext: CORPUS_BEXT, rf64ThresholdBytes: 100 });
+    const w = await BwfWriter.create(path, {
+      sampleRateHz: 96_000,
+      channels: 2,
+      encoding: { format: "pcm", bitsPerSample: 24 },
+      bext: CORPUS_BEXT,
+      rf64ThresholdBytes: 100,
+    });
     await w.write(testSignal(1000, 2));
     await w.close();
     // Source: python's struct module walking the chunks itself (RIFF/RF64, ds64 and bext layouts from the EBU documents).
@@ -121,7 +154,13 @@ print(json.dumps({
       timeReference: b.timeReference,
       version: 2,
       umid: b.umid,
-      loudness: [b.loudnessValue, b.loudnessRange, b.maxTruePeakLevel, b.maxMomentaryLoudness, b.maxShortTermLoudness],
+      loudness: [
+        b.loudnessValue,
+        b.loudnessRange,
+        b.maxTruePeakLevel,
+        b.maxMomentaryLoudness,
+        b.maxShortTermLoudness,
+      ],
       reservedZero: true,
       codingHistory: b.codingHistory,
     });

@@ -70,13 +70,18 @@ describe("RIAA render of a multitone against the analog curve (numpy FFT)", () =
       const x = phases.map((ph) => {
         const ch = new Float64Array(frames);
         bins.forEach((k, i) => {
-          for (let t = 0; t < frames; t++) ch[t] += 0.045 * Math.cos((2 * Math.PI * ((k * t) % n)) / n + ph[i]);
+          for (let t = 0; t < frames; t++)
+            ch[t] += 0.045 * Math.cos((2 * Math.PI * ((k * t) % n)) / n + ph[i]);
         });
         return ch;
       });
       const input = join(dir, `in-${fs}.wav`);
       const output = join(dir, `out-${fs}.wav`);
-      const w = await BwfWriter.create(input, { sampleRateHz: fs, channels: 2, encoding: { format: "float", bitsPerSample: 32 } });
+      const w = await BwfWriter.create(input, {
+        sampleRateHz: fs,
+        channels: 2,
+        encoding: { format: "float", bitsPerSample: 32 },
+      });
       await w.write(x);
       await w.close();
 
@@ -89,8 +94,15 @@ describe("RIAA render of a multitone against the analog curve (numpy FFT)", () =
       expect(result.clippedSamples).toBe(0);
 
       const python = await findPython();
-      const { stdout } = await run(python, ["-c", MEASURE, JSON.stringify({ input, output, start, n, bins })], { maxBuffer: 1 << 24 });
-      const measured = JSON.parse(stdout) as { frames: number[]; channels: { db: number[]; deg: number[] }[] };
+      const { stdout } = await run(
+        python,
+        ["-c", MEASURE, JSON.stringify({ input, output, start, n, bins })],
+        { maxBuffer: 1 << 24 },
+      );
+      const measured = JSON.parse(stdout) as {
+        frames: number[];
+        channels: { db: number[]; deg: number[] }[];
+      };
       expect(measured.frames).toEqual([frames, frames]);
 
       // Source: the analog RIAA curve (lib/curves analogResponse; checked against scipy.signal.freqs elsewhere).
@@ -108,7 +120,9 @@ describe("RIAA render of a multitone against the analog curve (numpy FFT)", () =
           worstDeg = Math.max(worstDeg, Math.abs(errDeg));
         });
       }
-      console.log(`multitone RIAA @ ${fs} Hz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° over 20 tones × 2 channels; trim ${result.trimDb.toFixed(3)} dB`);
+      console.log(
+        `multitone RIAA @ ${fs} Hz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° over 20 tones × 2 channels; trim ${result.trimDb.toFixed(3)} dB`,
+      );
     });
   }
 });

@@ -63,24 +63,39 @@ describe("an access copy resampled from 96 kHz to 48 kHz", () => {
     const phases = bins.map(() => 2 * Math.PI * rand());
     const x = new Float64Array(frames);
     bins.forEach((k, i) => {
-      for (let t = 0; t < frames; t++) x[t] += 0.045 * Math.cos((2 * Math.PI * ((k * t) % nIn)) / nIn + phases[i]);
+      for (let t = 0; t < frames; t++)
+        x[t] += 0.045 * Math.cos((2 * Math.PI * ((k * t) % nIn)) / nIn + phases[i]);
     });
     const input = join(dir, "in.wav");
     const output = join(dir, "out.wav");
-    const w = await BwfWriter.create(input, { sampleRateHz: fsIn, channels: 1, encoding: { format: "float", bitsPerSample: 32 } });
+    const w = await BwfWriter.create(input, {
+      sampleRateHz: fsIn,
+      channels: 1,
+      encoding: { format: "float", bitsPerSample: 32 },
+    });
     await w.write([x]);
     await w.close();
 
     const source = await openFileSource(input);
     const header = await readWavHeader(source);
-    const result = await renderAccessCopy({ source, header, filter, outputPath: output, outputSampleRateHz: fsOut });
+    const result = await renderAccessCopy({
+      source,
+      header,
+      filter,
+      outputPath: output,
+      outputSampleRateHz: fsOut,
+    });
     await source.close();
     expect(result.frames).toBe(frames / 2);
     expect(result.clippedSamples).toBe(0);
     expect(result.codingHistory).toMatch(/F=48000/);
 
     const python = await findPython();
-    const { stdout } = await run(python, ["-c", MEASURE, JSON.stringify({ input, output, startIn, nIn, startOut, nOut, bins })], { maxBuffer: 1 << 24 });
+    const { stdout } = await run(
+      python,
+      ["-c", MEASURE, JSON.stringify({ input, output, startIn, nIn, startOut, nOut, bins })],
+      { maxBuffer: 1 << 24 },
+    );
     const m = JSON.parse(stdout) as { rates: number[]; frames: number[]; db: number[]; deg: number[] };
     expect(m.rates).toEqual([fsIn, fsOut]);
     // Source: the analog RIAA curve (lib/curves analogResponse; checked against scipy.signal.freqs elsewhere).
@@ -96,6 +111,8 @@ describe("an access copy resampled from 96 kHz to 48 kHz", () => {
       worstDb = Math.max(worstDb, Math.abs(errDb));
       worstDeg = Math.max(worstDeg, Math.abs(errDeg));
     });
-    console.log(`resampled 96→48 kHz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° over 20 tones`);
+    console.log(
+      `resampled 96→48 kHz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° over 20 tones`,
+    );
   });
 });

@@ -38,27 +38,56 @@ describe("renderAccessCopy vs sox fir", () => {
       const rand = testRandom(fs + 1);
       // Low level so sox's internal 32-bit integer samples cannot clip after +19 dB of bass gain.
       const x = [0, 1].map((c) =>
-        Float64Array.from({ length: frames }, (_, t) => 0.02 * rand() + 0.01 * Math.sin((2 * Math.PI * (50 + 950 * c) * t) / fs) + 0.005 * Math.sin((2 * Math.PI * 15_000 * t) / fs)),
+        Float64Array.from(
+          { length: frames },
+          (_, t) =>
+            0.02 * rand() +
+            0.01 * Math.sin((2 * Math.PI * (50 + 950 * c) * t) / fs) +
+            0.005 * Math.sin((2 * Math.PI * 15_000 * t) / fs),
+        ),
       );
       const input = join(dir, `in-${fs}.wav`);
       const ours = join(dir, `ours-${fs}.wav`);
       const theirs = join(dir, `sox-${fs}.wav`);
       const tapsFile = join(dir, `taps-${fs}.txt`);
-      const w = await BwfWriter.create(input, { sampleRateHz: fs, channels: 2, encoding: { format: "float", bitsPerSample: 32 } });
+      const w = await BwfWriter.create(input, {
+        sampleRateHz: fs,
+        channels: 2,
+        encoding: { format: "float", bitsPerSample: 32 },
+      });
       await w.write(x);
       await w.close();
 
       const source = await openFileSource(input);
       const header = await readWavHeader(source);
-      const result = await renderAccessCopy({ source, header, filter, outputPath: ours, output: { format: "float", bitsPerSample: 32 } });
+      const result = await renderAccessCopy({
+        source,
+        header,
+        filter,
+        outputPath: ours,
+        output: { format: "float", bitsPerSample: 32 },
+      });
       await source.close();
       expect(result.trimDb).toBe(0);
 
       const lead = filter.taps.length - 1 - 2 * filter.delaySamples;
       expect(lead).toBeGreaterThanOrEqual(0);
-      const lines = [...new Array<string>(lead).fill("0"), ...Array.from(filter.taps, (t) => t.toPrecision(17))];
+      const lines = [
+        ...new Array<string>(lead).fill("0"),
+        ...Array.from(filter.taps, (t) => t.toPrecision(17)),
+      ];
       await writeFile(tapsFile, `${lines.join("\n")}\n`);
-      await run("sox", ["--single-threaded", input, "-b", "32", "-e", "floating-point", theirs, "fir", tapsFile]);
+      await run("sox", [
+        "--single-threaded",
+        input,
+        "-b",
+        "32",
+        "-e",
+        "floating-point",
+        theirs,
+        "fir",
+        tapsFile,
+      ]);
 
       // Source: sox's output, decoded by wavefile; ours decoded by wavefile too.
       const a = new WaveFile(await readFile(ours)).getSamples(false) as unknown as Float64Array[];
@@ -75,7 +104,9 @@ describe("renderAccessCopy vs sox fir", () => {
       }
       expect(peak).toBeGreaterThan(0.05);
       expect(worst).toBeLessThanOrEqual(1e-5);
-      console.log(`sox fir vs Rillbook @ ${fs} Hz: max |difference| ${worst.toExponential(2)} (peak ${peak.toFixed(3)}), ${frames} frames × 2, ${filter.taps.length} taps, delay ${filter.delaySamples}`);
+      console.log(
+        `sox fir vs Rillbook @ ${fs} Hz: max |difference| ${worst.toExponential(2)} (peak ${peak.toFixed(3)}), ${frames} frames × 2, ${filter.taps.length} taps, delay ${filter.delaySamples}`,
+      );
     });
   }
 });

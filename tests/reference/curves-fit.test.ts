@@ -2,7 +2,10 @@ import { describe, expect, it } from "vitest";
 import { fitCurve } from "@/lib/curves";
 import { runPython } from "../support/python";
 
-const TABLE_HZ = [20, 30, 40, 50, 60, 80, 100, 150, 200, 300, 400, 500, 700, 1000, 1500, 2000, 3000, 4000, 5000, 7000, 10000, 12000, 15000, 20000];
+const TABLE_HZ = [
+  20, 30, 40, 50, 60, 80, 100, 150, 200, 300, 400, 500, 700, 1000, 1500, 2000, 3000, 4000, 5000, 7000, 10000,
+  12000, 15000, 20000,
+];
 
 async function riaaTable(): Promise<{ hz: number; db: number }[]> {
   // Source: RIAA playback levels from the IEC 60098 time constants via
@@ -18,7 +21,11 @@ describe("fitting the model to a RIAA table", () => {
       points,
       kind: "playback",
       fit: ["turnover", "shelf", "rolloff"],
-      initial: { turnover: { unit: "hz", value: 350 }, shelf: { unit: "hz", value: 30 }, rolloff: { unit: "db10k", value: 8 } },
+      initial: {
+        turnover: { unit: "hz", value: 350 },
+        shelf: { unit: "hz", value: 30 },
+        rolloff: { unit: "db10k", value: 8 },
+      },
     });
     const tau = Object.fromEntries(result.corners.map((c) => [c.parameter, c.tauUs]));
     // Source: IEC 60098 time constants 3180, 318, 75 µs.
@@ -31,7 +38,11 @@ describe("fitting the model to a RIAA table", () => {
 
   it("recovers the same from the recording table (negated) with a level offset", async () => {
     const points = (await riaaTable()).map((p) => ({ hz: p.hz, db: -p.db + 3 }));
-    const result = fitCurve({ points, kind: "recording", fit: ["turnover", "shelf", "rolloff", "levelOffset"] });
+    const result = fitCurve({
+      points,
+      kind: "recording",
+      fit: ["turnover", "shelf", "rolloff", "levelOffset"],
+    });
     const tau = Object.fromEntries(result.corners.map((c) => [c.parameter, c.tauUs]));
     expect(Math.abs(tau.turnover / 318 - 1)).toBeLessThan(0.005);
     expect(Math.abs(tau.rolloff / 75 - 1)).toBeLessThan(0.005);

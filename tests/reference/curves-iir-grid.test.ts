@@ -21,10 +21,15 @@ describe("IIR sections over the curve grid × common rates", () => {
       // Source: scipy.signal.sosfreqz of our sections against scipy.signal.freqs_zpk
       // of the analog model built from the time constants (py/iir_grid.py), on
       // 20 000 log-spaced points, ~17× denser than the grid lib/curves measures on.
-      const ref = await runPython<{ narrow: { maxErrorDb: number; maxPhaseErrorDeg: number }; wide: { maxErrorDb: number; maxPhaseErrorDeg: number } }[]>(
-        "iir_grid.py",
-        { points: 20000, curves: curves.map((c, i) => ({ ...c.taus, fs, sos: designs[i].sos })) },
-      );
+      const ref = await runPython<
+        {
+          narrow: { maxErrorDb: number; maxPhaseErrorDeg: number };
+          wide: { maxErrorDb: number; maxPhaseErrorDeg: number };
+        }[]
+      >("iir_grid.py", {
+        points: 20000,
+        curves: curves.map((c, i) => ({ ...c.taus, fs, sos: designs[i].sos })),
+      });
       let worstDb = 0;
       let worstDeg = 0;
       curves.forEach((c, i) => {
@@ -36,13 +41,24 @@ describe("IIR sections over the curve grid × common rates", () => {
         // across the band; lib/curves samples it on 800 log + 400 linear points,
         // scipy on 20 000, so the sparser grid can only miss the top of an
         // extremum by a sliver: 2e-4 dB (4 % of the target) and 0.05° cover it.
-        expect(Math.abs(d.maxErrorDb - m.narrow.maxErrorDb), `${c.label} @ ${fs} reported dB`).toBeLessThanOrEqual(2e-4);
-        expect(Math.abs(d.maxPhaseErrorDeg - m.narrow.maxPhaseErrorDeg), `${c.label} @ ${fs} reported deg`).toBeLessThanOrEqual(0.05);
-        expect(Math.abs(d.wideBand.maxErrorDb - m.wide.maxErrorDb), `${c.label} @ ${fs} reported wide dB`).toBeLessThanOrEqual(2e-4);
+        expect(
+          Math.abs(d.maxErrorDb - m.narrow.maxErrorDb),
+          `${c.label} @ ${fs} reported dB`,
+        ).toBeLessThanOrEqual(2e-4);
+        expect(
+          Math.abs(d.maxPhaseErrorDeg - m.narrow.maxPhaseErrorDeg),
+          `${c.label} @ ${fs} reported deg`,
+        ).toBeLessThanOrEqual(0.05);
+        expect(
+          Math.abs(d.wideBand.maxErrorDb - m.wide.maxErrorDb),
+          `${c.label} @ ${fs} reported wide dB`,
+        ).toBeLessThanOrEqual(2e-4);
         worstDb = Math.max(worstDb, m.narrow.maxErrorDb);
         worstDeg = Math.max(worstDeg, m.narrow.maxPhaseErrorDeg);
       });
-      console.log(`IIR ${fs} Hz: worst ${worstDb.toFixed(5)} dB, ${worstDeg.toFixed(2)}° over 20 Hz–20 kHz (${curves.length} curves)`);
+      console.log(
+        `IIR ${fs} Hz: worst ${worstDb.toFixed(5)} dB, ${worstDeg.toFixed(2)}° over 20 Hz–20 kHz (${curves.length} curves)`,
+      );
     });
   }
 });

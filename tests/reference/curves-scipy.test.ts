@@ -15,7 +15,12 @@ function prng(seed: number): () => number {
   };
 }
 
-function randomCurve(rand: () => number): { spec: CurveSpec; taus: Record<string, number>; refHz: number; refDb: number } {
+function randomCurve(rand: () => number): {
+  spec: CurveSpec;
+  taus: Record<string, number>;
+  refHz: number;
+  refDb: number;
+} {
   const taus: Record<string, number> = {};
   taus.turnover = 100 + rand() * 700;
   const bass = rand();
@@ -46,9 +51,25 @@ describe("lib/curves against scipy.signal", () => {
       return { ...c, fs, design, model };
     });
     const ref = await runPython<
-      { db: number[]; deg: number[]; dbPoly: number[]; zeros: number[]; poles: number[]; k: number; sosDb: number[]; sosDeg: number[] }[]
+      {
+        db: number[];
+        deg: number[];
+        dbPoly: number[];
+        zeros: number[];
+        poles: number[];
+        k: number;
+        sosDb: number[];
+        sosDeg: number[];
+      }[]
     >("analog_check.py", {
-      curves: cases.map((c) => ({ ...c.taus, refHz: c.refHz, refDb: c.refDb, hz, sos: c.design.sos, fs: c.fs })),
+      curves: cases.map((c) => ({
+        ...c.taus,
+        refHz: c.refHz,
+        refDb: c.refDb,
+        hz,
+        sos: c.design.sos,
+        fs: c.fs,
+      })),
     });
     cases.forEach((c, i) => {
       const ours = analogResponse(c.model, hz);
@@ -56,16 +77,18 @@ describe("lib/curves against scipy.signal", () => {
       for (let j = 0; j < hz.length; j++) {
         expect(Math.abs(ours.gainDb[j] - ref[i].db[j])).toBeLessThan(1e-6);
         expect(Math.abs(ours.gainDb[j] - ref[i].dbPoly[j])).toBeLessThan(1e-6);
-        const dPhase = ((ours.phaseDeg[j] - ref[i].deg[j]) % 360 + 540) % 360 - 180;
+        const dPhase = ((((ours.phaseDeg[j] - ref[i].deg[j]) % 360) + 540) % 360) - 180;
         expect(Math.abs(dPhase)).toBeLessThan(1e-6);
         expect(Math.abs(dig.gainDb[j] - ref[i].sosDb[j])).toBeLessThan(1e-6);
-        const dDig = ((dig.phaseDeg[j] - ref[i].sosDeg[j]) % 360 + 540) % 360 - 180;
+        const dDig = ((((dig.phaseDeg[j] - ref[i].sosDeg[j]) % 360) + 540) % 360) - 180;
         expect(Math.abs(dDig)).toBeLessThan(1e-6);
       }
       // Same zeros, poles and zpk gain as scipy's own construction.
       const zs = [...c.model.zerosRadS].sort((a, b) => a - b);
       const ps = [...c.model.polesRadS].sort((a, b) => a - b);
-      zs.forEach((z, j) => expect(Math.abs(z - ref[i].zeros[j])).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(z))));
+      zs.forEach((z, j) =>
+        expect(Math.abs(z - ref[i].zeros[j])).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(z))),
+      );
       ps.forEach((p, j) => expect(Math.abs(p - ref[i].poles[j])).toBeLessThanOrEqual(1e-9 * Math.abs(p)));
       expect(Math.abs(c.model.k / ref[i].k - 1)).toBeLessThan(1e-9);
     });

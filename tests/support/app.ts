@@ -36,11 +36,19 @@ function cookiesOf(res: Response): string {
     .join("; ");
 }
 
-export async function api(pathname: string, opts: { cookie?: string; method?: string; body?: unknown } = {}): Promise<{ status: number; body: any }> {
+export async function api(
+  pathname: string,
+  opts: { cookie?: string; method?: string; body?: unknown } = {},
+): Promise<{ status: number; body: any }> {
   const res = await fetch(`${appUrl}${pathname}`, {
     method: opts.method ?? "GET",
     redirect: "manual",
-    headers: { accept: "application/json", ...sameOrigin, ...(opts.cookie ? { cookie: opts.cookie } : {}), ...(opts.body !== undefined ? { "content-type": "application/json" } : {}) },
+    headers: {
+      accept: "application/json",
+      ...sameOrigin,
+      ...(opts.cookie ? { cookie: opts.cookie } : {}),
+      ...(opts.body !== undefined ? { "content-type": "application/json" } : {}),
+    },
     body: opts.body !== undefined ? JSON.stringify(opts.body) : undefined,
   });
   const text = await res.text();
@@ -68,7 +76,10 @@ export async function waitForMail(match: (m: SunkMail) => boolean, timeoutMs = 2
   while (Date.now() < deadline) {
     const files = (await fs.readdir(dir).catch(() => [] as string[])).filter((f) => f.endsWith(".json"));
     for (const f of files) {
-      const m = { ...(JSON.parse(await fs.readFile(path.join(dir, f), "utf8")) as Omit<SunkMail, "file">), file: f };
+      const m = {
+        ...(JSON.parse(await fs.readFile(path.join(dir, f), "utf8")) as Omit<SunkMail, "file">),
+        file: f,
+      };
       if (match(m)) return m;
     }
     await new Promise((r) => setTimeout(r, 250));

@@ -27,7 +27,11 @@ export async function launchBrowser(): Promise<Browser> {
     // Some refusals (WebAssembly compilation, say) throw in the page without a console
     // line: the violation event reports every one.
     await context.addInitScript(() => {
-      document.addEventListener("securitypolicyviolation", (e) => console.error(`Content Security Policy violation: ${e.effectiveDirective} blocked ${e.blockedURI || "inline"}`));
+      document.addEventListener("securitypolicyviolation", (e) =>
+        console.error(
+          `Content Security Policy violation: ${e.effectiveDirective} blocked ${e.blockedURI || "inline"}`,
+        ),
+      );
     });
     context.on("page", watchCsp);
     return context;

@@ -10,7 +10,12 @@ export interface MakeWavOptions {
   seed?: number;
 }
 
-export function makeWav({ seconds = 10, sampleRateHz = 44_100, channels = 2, seed = 7 }: MakeWavOptions = {}): Uint8Array {
+export function makeWav({
+  seconds = 10,
+  sampleRateHz = 44_100,
+  channels = 2,
+  seed = 7,
+}: MakeWavOptions = {}): Uint8Array {
   const frames = Math.round(seconds * sampleRateHz);
   const bytesPerSample = 3;
   const dataBytes = frames * channels * bytesPerSample;

@@ -19,7 +19,11 @@ export async function labCookies(): Promise<LabCookies> {
   return out;
 }
 
-export async function until<T>(what: string, probe: () => Promise<T | undefined>, timeoutMs = 60_000): Promise<T> {
+export async function until<T>(
+  what: string,
+  probe: () => Promise<T | undefined>,
+  timeoutMs = 60_000,
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     const v = await probe();
@@ -30,24 +34,66 @@ export async function until<T>(what: string, probe: () => Promise<T | undefined>
 }
 
 /** A catalogued disc with the given sides, assigned to the demo engineer (or to the engineer named). */
-export async function assignedDisc(c: LabCookies, shelfMark: string, sides: string[], engineerEmail = demoAccounts.find((a) => a.role === "engineer")!.email): Promise<{ discId: string; sideIds: string[] }> {
-  const engineerId = (await testDb.selectFrom("users").select("id").where("email", "=", engineerEmail).executeTakeFirstOrThrow()).id;
-  const acc = await api("/api/accessions", { cookie: c.archivist, method: "POST", body: { identifier: `ACC-${shelfMark}`, source: "Integration tests", receivedOn: "2026-11-30" } });
+export async function assignedDisc(
+  c: LabCookies,
+  shelfMark: string,
+  sides: string[],
+  engineerEmail = demoAccounts.find((a) => a.role === "engineer")!.email,
+): Promise<{ discId: string; sideIds: string[] }> {
+  const engineerId = (
+    await testDb.selectFrom("users").select("id").where("email", "=", engineerEmail).executeTakeFirstOrThrow()
+  ).id;
+  const acc = await api("/api/accessions", {
+    cookie: c.archivist,
+    method: "POST",
+    body: { identifier: `ACC-${shelfMark}`, source: "Integration tests", receivedOn: "2026-11-30" },
+  });
   expect(acc.status).toBe(201);
   const disc = await api("/api/discs", {
     cookie: c.archivist,
     method: "POST",
-    body: { accessionId: acc.body.accession.id, shelfMark, labelName: "Varrowby", catalogueNumber: "VB 2211", format: "shellac_78", nominalSpeedRpm: 78, groove: "coarse", cut: "lateral", sides: sides.map((designation) => ({ designation, title: "Copper Meadow Serenade" })) },
+    body: {
+      accessionId: acc.body.accession.id,
+      shelfMark,
+      labelName: "Varrowby",
+      catalogueNumber: "VB 2211",
+      format: "shellac_78",
+      nominalSpeedRpm: 78,
+      groove: "coarse",
+      cut: "lateral",
+      sides: sides.map((designation) => ({ designation, title: "Copper Meadow Serenade" })),
+    },
   });
   expect(disc.status).toBe(201);
-  expect((await api("/api/assignments", { cookie: c.archivist, method: "POST", body: { engineerId, discIds: [disc.body.disc.id] } })).status).toBe(200);
+  expect(
+    (
+      await api("/api/assignments", {
+        cookie: c.archivist,
+        method: "POST",
+        body: { engineerId, discIds: [disc.body.disc.id] },
+      })
+    ).status,
+  ).toBe(200);
   return { discId: disc.body.disc.id, sideIds: disc.body.disc.sides.map((s: { id: string }) => s.id) };
 }
 
-export const riaaOverrides = { turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 75 } };
+export const riaaOverrides = {
+  turnover: { unit: "us", value: 318 },
+  shelf: { unit: "us", value: 3180 },
+  rolloff: { unit: "us", value: 75 },
+};
 
-export async function chooseCurve(c: LabCookies, sideIds: string[], overrides: object = riaaOverrides, rationale = "Standard curve as the test's stand-in.") {
-  const r = await api("/api/curve-choices", { cookie: c.engineer, method: "POST", body: { sideIds, overrides, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale, evidenceKind: "other" } });
+export async function chooseCurve(
+  c: LabCookies,
+  sideIds: string[],
+  overrides: object = riaaOverrides,
+  rationale = "Standard curve as the test's stand-in.",
+) {
+  const r = await api("/api/curve-choices", {
+    cookie: c.engineer,
+    method: "POST",
+    body: { sideIds, overrides, cutSpeedRpm: 78, transferSpeedRpm: 78, rationale, evidenceKind: "other" },
+  });
   expect(r.status).toBe(201);
 }
 
@@ -57,7 +103,10 @@ export function flatTransfer(seconds = 3, seed = 7): Uint8Array {
   const [l, r] = testSignal(frames, 2, seed, 0.5);
   const wav = new WaveFile();
   const full = 2 ** 23 - 1;
-  wav.fromScratch(2, 44_100, "24", [Array.from(l, (v) => Math.round(v * full)), Array.from(r, (v) => Math.round(v * full))]);
+  wav.fromScratch(2, 44_100, "24", [
+    Array.from(l, (v) => Math.round(v * full)),
+    Array.from(r, (v) => Math.round(v * full)),
+  ]);
   return wav.toBuffer();
 }
 
@@ -65,45 +114,87 @@ export function flatTransfer(seconds = 3, seed = 7): Uint8Array {
 export async function startUpload(cookie: string, sideId: string, fileName: string, bytes: number) {
   const start = await api("/api/uploads", { cookie, method: "POST", body: { sideId, fileName, bytes } });
   expect(start.status).toBe(201);
-  const { uploadId, partSize, urls } = start.body as { uploadId: string; partSize: number; urls: { partNumber: number; url: string }[] };
+  const { uploadId, partSize, urls } = start.body as {
+    uploadId: string;
+    partSize: number;
+    urls: { partNumber: number; url: string }[];
+  };
   // The key is the server's own; the tests read it from the database to look at the bucket.
-  const { object_key: key } = await testDb.selectFrom("uploads").select("object_key").where("id", "=", uploadId).executeTakeFirstOrThrow();
+  const { object_key: key } = await testDb
+    .selectFrom("uploads")
+    .select("object_key")
+    .where("id", "=", uploadId)
+    .executeTakeFirstOrThrow();
   return { uploadId, partSize, urls, key };
 }
 
 /** PUTs each slice of `bytes` to its presigned part URL, as the browser does; answers the parts with their ETags. */
-export async function sendParts(bytes: Uint8Array, partSize: number, urls: { partNumber: number; url: string }[]) {
+export async function sendParts(
+  bytes: Uint8Array,
+  partSize: number,
+  urls: { partNumber: number; url: string }[],
+) {
   const parts: { partNumber: number; etag: string }[] = [];
   for (const { partNumber, url } of urls) {
-    const put = await fetch(url, { method: "PUT", body: Buffer.from(bytes.subarray((partNumber - 1) * partSize, partNumber * partSize)) });
+    const put = await fetch(url, {
+      method: "PUT",
+      body: Buffer.from(bytes.subarray((partNumber - 1) * partSize, partNumber * partSize)),
+    });
     expect(put.status).toBe(200);
     parts.push({ partNumber, etag: put.headers.get("etag")! });
   }
   return parts;
 }
 
-export const transferDetails = { stylusSize: "3.0 mil", stylusShape: "truncated elliptical", measuredSpeedRpm: 78.26, chain: "Turntable, flat preamp, converter at 44.1 kHz/24" };
+export const transferDetails = {
+  stylusSize: "3.0 mil",
+  stylusShape: "truncated elliptical",
+  measuredSpeedRpm: 78.26,
+  chain: "Turntable, flat preamp, converter at 44.1 kHz/24",
+};
 
 export const sha256Of = (bytes: Uint8Array) => createHash("sha256").update(bytes).digest("hex");
 
 /** Uploads through presigned multipart URLs as the browser does, then asks the server to accept it. */
-export async function uploadTransfer(c: LabCookies, sideId: string, bytes: Uint8Array, name: string, opts: { sha256?: string } = {}) {
+export async function uploadTransfer(
+  c: LabCookies,
+  sideId: string,
+  bytes: Uint8Array,
+  name: string,
+  opts: { sha256?: string } = {},
+) {
   const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, name, bytes.length);
   const parts = await sendParts(bytes, partSize, urls);
   const sha256 = opts.sha256 ?? sha256Of(bytes);
-  const done = await api("/api/uploads/complete", { cookie: c.engineer, method: "POST", body: { uploadId, parts, sha256, bytes: bytes.length, ...transferDetails } });
+  const done = await api("/api/uploads/complete", {
+    cookie: c.engineer,
+    method: "POST",
+    body: { uploadId, parts, sha256, bytes: bytes.length, ...transferDetails },
+  });
   return { key, uploadId, done };
 }
 
-export async function renderAndWait(c: LabCookies, sideId: string, channelMode = "sum"): Promise<{ id: string; sha256: string; error: string | null; status: string }> {
-  const queued = await api("/api/renders", { cookie: c.engineer, method: "POST", body: { sideId, channelMode, bitDepth: 24 } });
+export async function renderAndWait(
+  c: LabCookies,
+  sideId: string,
+  channelMode = "sum",
+): Promise<{ id: string; sha256: string; error: string | null; status: string }> {
+  const queued = await api("/api/renders", {
+    cookie: c.engineer,
+    method: "POST",
+    body: { sideId, channelMode, bitDepth: 24 },
+  });
   expect(queued.status).toBe(202);
-  return until("the render", async () => {
-    const list = await api(`/api/sides/${sideId}/renders`, { cookie: c.curator });
-    const r = list.body.renders.find((x: { id: string }) => x.id === queued.body.renderId);
-    if (r?.status === "failed") throw new Error(`render failed: ${r.error}`);
-    return r?.status === "done" ? r : undefined;
-  }, 90_000);
+  return until(
+    "the render",
+    async () => {
+      const list = await api(`/api/sides/${sideId}/renders`, { cookie: c.curator });
+      const r = list.body.renders.find((x: { id: string }) => x.id === queued.body.renderId);
+      if (r?.status === "failed") throw new Error(`render failed: ${r.error}`);
+      return r?.status === "done" ? r : undefined;
+    },
+    90_000,
+  );
 }
 
 /** Asks for a fixity check of the disc now and waits until every object it queued has a result since. */
@@ -116,22 +207,41 @@ export async function fixityNow(c: LabCookies, discId: string, sideIds: string[]
     for (const sideId of sideIds) {
       const checks = await api(`/api/sides/${sideId}/fixity`, { cookie: c.curator });
       // Only results recorded after the request (the app, the database and the tests share one clock).
-      recent.push(...checks.body.checks.filter((x: { checkedAt: string }) => new Date(x.checkedAt).getTime() >= asked.body.askedAt));
+      recent.push(
+        ...checks.body.checks.filter(
+          (x: { checkedAt: string }) => new Date(x.checkedAt).getTime() >= asked.body.askedAt,
+        ),
+      );
     }
     return recent.length >= asked.body.queued ? recent : undefined;
   });
 }
 
 /** A one-side disc taken all the way to approval by two different people. */
-export async function approvedDisc(c: LabCookies, shelfMark: string): Promise<{ discId: string; sideId: string }> {
+export async function approvedDisc(
+  c: LabCookies,
+  shelfMark: string,
+): Promise<{ discId: string; sideId: string }> {
   const { discId, sideIds } = await assignedDisc(c, shelfMark, ["A"]);
   await chooseCurve(c, sideIds);
   const up = await uploadTransfer(c, sideIds[0], flatTransfer(2, 11), `${shelfMark}.wav`);
   expect(up.done.status).toBe(201);
   await renderAndWait(c, sideIds[0]);
-  expect((await api(`/api/sides/${sideIds[0]}/transition`, { cookie: c.engineer, method: "POST", body: { to: "in_review" } })).status).toBe(200);
+  expect(
+    (
+      await api(`/api/sides/${sideIds[0]}/transition`, {
+        cookie: c.engineer,
+        method: "POST",
+        body: { to: "in_review" },
+      })
+    ).status,
+  ).toBe(200);
   await fixityNow(c, discId, sideIds);
-  const ok = await api(`/api/sides/${sideIds[0]}/review`, { cookie: c.curator, method: "POST", body: { decision: "approved" } });
+  const ok = await api(`/api/sides/${sideIds[0]}/review`, {
+    cookie: c.curator,
+    method: "POST",
+    body: { decision: "approved" },
+  });
   expect(ok.status).toBe(200);
   return { discId, sideId: sideIds[0] };
 }

@@ -44,7 +44,11 @@ export function findPython(): Promise<string> {
  * Run tests/reference/py/<script> with argv [input.json, output.json, tmpdir];
  * `binaries` are written as <tmpdir>/<name>.f64 (float64 little-endian).
  */
-export async function runPython<T>(script: string, input: unknown, binaries: Record<string, Float64Array> = {}): Promise<T> {
+export async function runPython<T>(
+  script: string,
+  input: unknown,
+  binaries: Record<string, Float64Array> = {},
+): Promise<T> {
   const python = await findPython();
   const dir = await mkdtemp(join(tmpdir(), "rillbook-ref-"));
   try {
@@ -52,10 +56,16 @@ export async function runPython<T>(script: string, input: unknown, binaries: Rec
     const outPath = join(dir, "output.json");
     await writeFile(inPath, JSON.stringify(input));
     for (const [name, data] of Object.entries(binaries)) {
-      await writeFile(join(dir, `${name}.f64`), new Uint8Array(data.buffer, data.byteOffset, data.byteLength));
+      await writeFile(
+        join(dir, `${name}.f64`),
+        new Uint8Array(data.buffer, data.byteOffset, data.byteLength),
+      );
     }
     try {
-      await run(python, [join(PY_DIR, script), inPath, outPath, dir], { timeout: 600_000, maxBuffer: 64 * 1024 * 1024 });
+      await run(python, [join(PY_DIR, script), inPath, outPath, dir], {
+        timeout: 600_000,
+        maxBuffer: 64 * 1024 * 1024,
+      });
     } catch (error) {
       const e = error as { stderr?: string; message: string };
       throw new Error(`${script} failed: ${e.stderr || e.message}`);

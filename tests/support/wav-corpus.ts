@@ -32,7 +32,10 @@ export function testRandom(seed: number): () => number {
 export function testSignal(frames: number, channels: number, seed = 1, peak = 0.9): Float64Array[] {
   const rand = testRandom(seed);
   return Array.from({ length: channels }, (_, c) =>
-    Float64Array.from({ length: frames }, (_, i) => peak * (0.6 * Math.sin((2 * Math.PI * (i * (c + 1))) / 97) + 0.4 * 2 * rand())),
+    Float64Array.from(
+      { length: frames },
+      (_, i) => peak * (0.6 * Math.sin((2 * Math.PI * (i * (c + 1))) / 97) + 0.4 * 2 * rand()),
+    ),
   );
 }
 
@@ -84,7 +87,8 @@ export const CORPUS_BEXT: BextInput = {
   maxTruePeakLevel: -1.03,
   maxMomentaryLoudness: -18.2,
   maxShortTermLoudness: -20.01,
-  codingHistory: "A=ANALOGUE,M=mono,T=corpus turntable; 3.5 mil stylus\r\nA=PCM,F=96000,W=24,M=stereo,T=corpus converter\r\n",
+  codingHistory:
+    "A=ANALOGUE,M=mono,T=corpus turntable; 3.5 mil stylus\r\nA=PCM,F=96000,W=24,M=stereo,T=corpus converter\r\n",
 };
 
 interface FmtSpec {
@@ -143,7 +147,9 @@ export function handMadeWav(spec: FmtSpec, frames = 16, before: Uint8Array[] = [
 
 function storedInts(values: Float64Array[], bits: number): number[][] {
   const scale = 2 ** (bits - 1);
-  return values.map((ch) => Array.from(ch, (v) => Math.max(-scale, Math.min(scale - 1, Math.round(v * scale)))));
+  return values.map((ch) =>
+    Array.from(ch, (v) => Math.max(-scale, Math.min(scale - 1, Math.round(v * scale)))),
+  );
 }
 
 export async function buildWavCorpus(): Promise<WavCorpus> {
@@ -166,7 +172,9 @@ export async function buildWavCorpus(): Promise<WavCorpus> {
     const frames = 1000 + channels * 7 + bits;
     const values = testSignal(frames, channels, bits + channels);
     const isFloat = code === "32f" || code === "64";
-    const stored = isFloat ? values.map((ch) => Array.from(code === "32f" ? Float32Array.from(ch) : ch)) : storedInts(values, bits);
+    const stored = isFloat
+      ? values.map((ch) => Array.from(code === "32f" ? Float32Array.from(ch) : ch))
+      : storedInts(values, bits);
     const wav = new WaveFile();
     wav.fromScratch(channels, rate, code, channels === 1 ? stored[0] : stored);
     const name = `wavefile-${code}-${channels}ch-${rate}.wav`;
@@ -175,7 +183,15 @@ export async function buildWavCorpus(): Promise<WavCorpus> {
     good.push({
       name,
       path,
-      expect: { container: "RIFF", format: isFloat ? "float" : "pcm", bitsPerSample: bits, channels, sampleRateHz: rate, frames, extensible: false },
+      expect: {
+        container: "RIFF",
+        format: isFloat ? "float" : "pcm",
+        bitsPerSample: bits,
+        channels,
+        sampleRateHz: rate,
+        frames,
+        extensible: false,
+      },
       stored,
     });
   }
@@ -212,7 +228,15 @@ export async function buildWavCorpus(): Promise<WavCorpus> {
     good.push({
       name,
       path,
-      expect: { container: "RIFF", format: "pcm", bitsPerSample: 24, channels: 2, sampleRateHz: 96_000, frames, extensible: false },
+      expect: {
+        container: "RIFF",
+        format: "pcm",
+        bitsPerSample: 24,
+        channels: 2,
+        sampleRateHz: 96_000,
+        frames,
+        extensible: false,
+      },
       stored,
       bext: { ...b, umid: "" },
     });
@@ -227,11 +251,36 @@ export async function buildWavCorpus(): Promise<WavCorpus> {
     const name = `sox-${bits}-${format}${extensible ? "-extensible" : ""}.wav`;
     const path = join(dir, name);
     // 0.01 s at 96 kHz = 960 frames (sox synth length, exact at this rate).
-    await run("sox", ["-n", "-r", "96000", "-b", String(bits), "-e", enc, "-c", "2", path, "synth", "0.01", "sine", "1000", "gain", "-6"]);
+    await run("sox", [
+      "-n",
+      "-r",
+      "96000",
+      "-b",
+      String(bits),
+      "-e",
+      enc,
+      "-c",
+      "2",
+      path,
+      "synth",
+      "0.01",
+      "sine",
+      "1000",
+      "gain",
+      "-6",
+    ]);
     good.push({
       name,
       path,
-      expect: { container: "RIFF", format, bitsPerSample: bits, channels: 2, sampleRateHz: 96_000, frames: 960, extensible },
+      expect: {
+        container: "RIFF",
+        format,
+        bitsPerSample: bits,
+        channels: 2,
+        sampleRateHz: 96_000,
+        frames: 960,
+        extensible,
+      },
     });
   }
 
@@ -253,7 +302,15 @@ export async function buildWavCorpus(): Promise<WavCorpus> {
     good.push({
       name: "rillbook-rf64-24-1ch-96000.wav",
       path,
-      expect: { container: "RF64", format: "pcm", bitsPerSample: 24, channels: 1, sampleRateHz: 96_000, frames, extensible: false },
+      expect: {
+        container: "RF64",
+        format: "pcm",
+        bitsPerSample: 24,
+        channels: 1,
+        sampleRateHz: 96_000,
+        frames,
+        extensible: false,
+      },
       stored: storedInts(values, 24),
       bext: CORPUS_BEXT,
     });
@@ -266,30 +323,94 @@ export async function buildWavCorpus(): Promise<WavCorpus> {
     bad.push({ name, path, message, offset });
   };
   const valid = handMadeWav({ channels: 2, bits: 16 });
-  await addBad("truncated-header.wav", valid.subarray(0, 30), /^Truncated header: the fmt chunk at byte offset 12 declares 16 bytes but the file ends after 10/, 12);
+  await addBad(
+    "truncated-header.wav",
+    valid.subarray(0, 30),
+    /^Truncated header: the fmt chunk at byte offset 12 declares 16 bytes but the file ends after 10/,
+    12,
+  );
   await addBad("truncated-riff.wav", valid.subarray(0, 9), /^Truncated header: the file is 9 bytes/, 9);
   {
     // A LIST chunk claiming 2 GB in a 100-byte file.
     const list = chunk("LIST", new TextEncoder().encode("INFOISFT"), 0x7fff0000);
-    await addBad("lying-chunk-size.wav", handMadeWav({}, 16, [list]), /^Chunk "LIST" at byte offset 36 declares 2147418112 bytes, which runs \d+ bytes past the end of the file/, 36);
+    await addBad(
+      "lying-chunk-size.wav",
+      handMadeWav({}, 16, [list]),
+      /^Chunk "LIST" at byte offset 36 declares 2147418112 bytes, which runs \d+ bytes past the end of the file/,
+      36,
+    );
   }
   {
     const b = handMadeWav({}, 16);
     new DataView(b.buffer).setUint32(40, 1_000_000, true); // data size field (data chunk at 36)
-    await addBad("data-longer-than-file.wav", b, /^The data chunk at byte offset 36 declares 1000000 bytes of audio but only 64 bytes follow it/, 36);
+    await addBad(
+      "data-longer-than-file.wav",
+      b,
+      /^The data chunk at byte offset 36 declares 1000000 bytes of audio but only 64 bytes follow it/,
+      36,
+    );
   }
-  await addBad("pcm-8bit.wav", handMadeWav({ bits: 8, channels: 1 }), /^Unsupported encoding: 8-bit PCM \(fmt chunk at byte offset 12\)/, 34);
-  await addBad("mulaw.wav", handMadeWav({ tag: 7, bits: 8, channels: 1 }), /^Unsupported encoding: μ-law \(format tag 0x0007, fmt chunk at byte offset 12\)/, 20);
-  await addBad("ms-adpcm.wav", handMadeWav({ tag: 2, bits: 4, channels: 1, blockAlign: 1 }), /^Unsupported encoding: Microsoft ADPCM \(format tag 0x0002/, 20);
-  await addBad("zero-channels.wav", handMadeWav({ channels: 0, blockAlign: 2 }), /^0 channels: the fmt chunk at byte offset 12 declares no audio channels/, 22);
-  await addBad("seven-channels.wav", handMadeWav({ channels: 7 }), /^7 channels: Rillbook accepts mono or stereo transfers \(fmt chunk at byte offset 12\)/, 22);
-  await addBad("text-renamed.wav", new TextEncoder().encode("Accession 1957/12, side A: see the ledger.\n"), /^Not a RIFF\/RF64 WAVE file: it starts with "Acce"/, 0);
+  await addBad(
+    "pcm-8bit.wav",
+    handMadeWav({ bits: 8, channels: 1 }),
+    /^Unsupported encoding: 8-bit PCM \(fmt chunk at byte offset 12\)/,
+    34,
+  );
+  await addBad(
+    "mulaw.wav",
+    handMadeWav({ tag: 7, bits: 8, channels: 1 }),
+    /^Unsupported encoding: μ-law \(format tag 0x0007, fmt chunk at byte offset 12\)/,
+    20,
+  );
+  await addBad(
+    "ms-adpcm.wav",
+    handMadeWav({ tag: 2, bits: 4, channels: 1, blockAlign: 1 }),
+    /^Unsupported encoding: Microsoft ADPCM \(format tag 0x0002/,
+    20,
+  );
+  await addBad(
+    "zero-channels.wav",
+    handMadeWav({ channels: 0, blockAlign: 2 }),
+    /^0 channels: the fmt chunk at byte offset 12 declares no audio channels/,
+    22,
+  );
+  await addBad(
+    "seven-channels.wav",
+    handMadeWav({ channels: 7 }),
+    /^7 channels: Rillbook accepts mono or stereo transfers \(fmt chunk at byte offset 12\)/,
+    22,
+  );
+  await addBad(
+    "text-renamed.wav",
+    new TextEncoder().encode("Accession 1957/12, side A: see the ledger.\n"),
+    /^Not a RIFF\/RF64 WAVE file: it starts with "Acce"/,
+    0,
+  );
   await addBad("empty.wav", new Uint8Array(0), /^The file is empty \(0 bytes\)/, 0);
-  await addBad("block-align.wav", handMadeWav({ channels: 2, bits: 24, blockAlign: 4 }), /^Block align mismatch: nBlockAlign is 4 but 2 channels × 24 bits needs 6 bytes per frame/, 32);
-  await addBad("rate-22050.wav", handMadeWav({ rate: 22_050 }), /^Sample rate 22050 Hz \(fmt chunk at byte offset 12\) is outside the 44 100–384 000 Hz/, 24);
+  await addBad(
+    "block-align.wav",
+    handMadeWav({ channels: 2, bits: 24, blockAlign: 4 }),
+    /^Block align mismatch: nBlockAlign is 4 but 2 channels × 24 bits needs 6 bytes per frame/,
+    32,
+  );
+  await addBad(
+    "rate-22050.wav",
+    handMadeWav({ rate: 22_050 }),
+    /^Sample rate 22050 Hz \(fmt chunk at byte offset 12\) is outside the 44 100–384 000 Hz/,
+    24,
+  );
   await addBad("no-data.wav", riff([chunk("fmt ", fmtBody({}))]), /^No data chunk: the file holds no audio/);
-  await addBad("no-fmt.wav", riff([chunk("LIST", new TextEncoder().encode("INFO"))]), /^No fmt chunk: the file does not say how its samples are encoded/);
-  await addBad("float-16.wav", handMadeWav({ tag: 3, bits: 16 }), /^Unsupported encoding: 16-bit IEEE float/, 34);
+  await addBad(
+    "no-fmt.wav",
+    riff([chunk("LIST", new TextEncoder().encode("INFO"))]),
+    /^No fmt chunk: the file does not say how its samples are encoded/,
+  );
+  await addBad(
+    "float-16.wav",
+    handMadeWav({ tag: 3, bits: 16 }),
+    /^Unsupported encoding: 16-bit IEEE float/,
+    34,
+  );
   {
     const b = handMadeWav({}, 16);
     b.set([0x41, 0x56, 0x49, 0x20], 8); // "AVI "

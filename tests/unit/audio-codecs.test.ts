@@ -24,7 +24,9 @@ describe("sample codecs against wavefile", () => {
     values[1][0] = 1; // clips to the most positive code
     const isFloat = enc.format === "float";
     const scale = 2 ** (enc.bitsPerSample - 1);
-    const input = values.map((ch) => Array.from(ch, (v) => (isFloat ? v : Math.max(-scale, Math.min(scale - 1, Math.round(v * scale))))));
+    const input = values.map((ch) =>
+      Array.from(ch, (v) => (isFloat ? v : Math.max(-scale, Math.min(scale - 1, Math.round(v * scale))))),
+    );
     const wav = new WaveFile();
     wav.fromScratch(2, 48_000, code, input);
     const decoded = decodeFrames(dataOf(wav), enc, 2);
@@ -47,7 +49,7 @@ describe("sample codecs against wavefile", () => {
 
   it.each(ENCODINGS)("round-trips %s-bit bytes exactly (decode then encode without dither)", (_code, enc) => {
     const rand = testRandom(5);
-    const bytes = new Uint8Array(((enc.bitsPerSample / 8) * 2) * 500);
+    const bytes = new Uint8Array((enc.bitsPerSample / 8) * 2 * 500);
     for (let i = 0; i < bytes.length; i++) bytes[i] = Math.floor((rand() + 0.5) * 256);
     if (enc.format === "float") {
       // Random bytes can be NaN, which has many encodings; use real floats instead.

@@ -28,20 +28,45 @@ describe("readWavHeader on the good corpus", () => {
     for (const file of corpus.good) {
       const h = await headerOf(file.path);
       // Source: the generator's own parameters (wavefile.fromScratch / sox -r -b -c / BwfWriter options).
-      expect({ container: h.container, format: h.format, bitsPerSample: h.bitsPerSample, channels: h.channels, sampleRateHz: h.sampleRateHz, frames: h.frames, extensible: h.extensible }, file.name).toEqual(file.expect);
+      expect(
+        {
+          container: h.container,
+          format: h.format,
+          bitsPerSample: h.bitsPerSample,
+          channels: h.channels,
+          sampleRateHz: h.sampleRateHz,
+          frames: h.frames,
+          extensible: h.extensible,
+        },
+        file.name,
+      ).toEqual(file.expect);
       expect(h.durationSeconds).toBeCloseTo(file.expect.frames / file.expect.sampleRateHz, 12);
       const bytes = (await readFile(file.path)).subarray(h.dataOffset, h.dataOffset + h.dataBytes);
-      const decoded = decodeFrames(new Uint8Array(bytes), { format: h.format, bitsPerSample: h.bitsPerSample }, h.channels);
+      const decoded = decodeFrames(
+        new Uint8Array(bytes),
+        { format: h.format, bitsPerSample: h.bitsPerSample },
+        h.channels,
+      );
       if (file.stored) {
         // Source: the values handed to the writer (integer codes for PCM, floats for float).
         const scale = h.format === "pcm" ? 2 ** (h.bitsPerSample - 1) : 1;
-        decoded.forEach((ch, c) => expect(Array.from(ch, (v) => v * scale), `${file.name} ch${c}`).toEqual(file.stored![c]));
+        decoded.forEach((ch, c) =>
+          expect(
+            Array.from(ch, (v) => v * scale),
+            `${file.name} ch${c}`,
+          ).toEqual(file.stored![c]),
+        );
       } else {
         // Source: wavefile's own decoding of the sox file (raw codes for PCM, floats for float).
         const wav = new WaveFile(await readFile(file.path));
         const ref = wav.getSamples(false) as unknown as Float64Array[];
         const scale = h.format === "pcm" ? 2 ** (h.bitsPerSample - 1) : 1;
-        decoded.forEach((ch, c) => expect(Array.from(ch, (v) => v * scale), `${file.name} ch${c}`).toEqual(Array.from(ref[c])));
+        decoded.forEach((ch, c) =>
+          expect(
+            Array.from(ch, (v) => v * scale),
+            `${file.name} ch${c}`,
+          ).toEqual(Array.from(ref[c])),
+        );
       }
     }
   });
@@ -142,6 +167,8 @@ describe("RF64 over 4 GiB", () => {
     const b = new Uint8Array(await readFile(corpus.good.find((f) => f.expect.container === "RF64")!.path));
     // Overwrite ds64 with a JUNK id: the file still says RF64 but has no 64-bit sizes.
     b.set(new TextEncoder().encode("JUNK"), 12);
-    await expect(readWavHeader(bufferSource(b))).rejects.toThrow(/RF64 file without its ds64 chunk: found "JUNK" at byte offset 12/);
+    await expect(readWavHeader(bufferSource(b))).rejects.toThrow(
+      /RF64 file without its ds64 chunk: found "JUNK" at byte offset 12/,
+    );
   });
 });

@@ -4,7 +4,15 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { WaveFile } from "wavefile";
-import { BwfWriter, decodeFrames, openFileSource, parseCodingHistory, readWavHeader, renderAccessCopy, RenderError } from "@/lib/audio";
+import {
+  BwfWriter,
+  decodeFrames,
+  openFileSource,
+  parseCodingHistory,
+  readWavHeader,
+  renderAccessCopy,
+  RenderError,
+} from "@/lib/audio";
 import type { ChannelMode, RenderOptions } from "@/lib/audio";
 import { testRandom, testSignal } from "../support/wav-corpus";
 
@@ -32,13 +40,21 @@ function alignedFir(x: Float64Array, h: Float64Array, delay: number): Float64Arr
 
 async function writeInput(name: string, values: Float64Array[], rate = 48_000): Promise<string> {
   const path = join(dir, name);
-  const w = await BwfWriter.create(path, { sampleRateHz: rate, channels: values.length as 1 | 2, encoding: { format: "float", bitsPerSample: 32 } });
+  const w = await BwfWriter.create(path, {
+    sampleRateHz: rate,
+    channels: values.length as 1 | 2,
+    encoding: { format: "float", bitsPerSample: 32 },
+  });
   await w.write(values.map((v) => Float64Array.from(Float32Array.from(v))));
   await w.close();
   return path;
 }
 
-async function render(input: string, output: string, extra: Partial<RenderOptions> & Pick<RenderOptions, "filter">) {
+async function render(
+  input: string,
+  output: string,
+  extra: Partial<RenderOptions> & Pick<RenderOptions, "filter">,
+) {
   const source = await openFileSource(input);
   try {
     const header = await readWavHeader(source);
@@ -60,7 +76,10 @@ async function readOutput(path: string): Promise<Float64Array[]> {
 }
 
 const rand = testRandom(77);
-const taps = Float64Array.from({ length: 301 }, (_, k) => (k === 40 ? 1 : 0) + 0.05 * rand() * Math.exp(-k / 60));
+const taps = Float64Array.from(
+  { length: 301 },
+  (_, k) => (k === 40 ? 1 : 0) + 0.05 * rand() * Math.exp(-k / 60),
+);
 const filter = { taps, delaySamples: 40 };
 
 describe("renderAccessCopy", () => {
@@ -79,7 +98,11 @@ describe("renderAccessCopy", () => {
   ];
   it("lines up sample for sample with the input and keeps its length (both channels, float out)", async () => {
     const out = join(dir, "both.wav");
-    const r = await render(input, out, { filter, output: { format: "float", bitsPerSample: 32 }, chunkFrames: 777 });
+    const r = await render(input, out, {
+      filter,
+      output: { format: "float", bitsPerSample: 32 },
+      chunkFrames: 777,
+    });
     expect(r.frames).toBe(frames);
     expect(r.trimDb).toBe(0);
     const y = await readOutput(out);
@@ -95,7 +118,11 @@ describe("renderAccessCopy", () => {
 
   it.each(modes)("channel mode %s", async (mode, f) => {
     const out = join(dir, `${mode}.wav`);
-    const r = await render(input, out, { filter, channelMode: mode, output: { format: "float", bitsPerSample: 32 } });
+    const r = await render(input, out, {
+      filter,
+      channelMode: mode,
+      output: { format: "float", bitsPerSample: 32 },
+    });
     expect(r.channels).toBe(1);
     const y = await readOutput(out);
     expect(y.length).toBe(1);
@@ -108,7 +135,9 @@ describe("renderAccessCopy", () => {
   });
 
   it("trims a loud render to the largest gain that keeps it under the ceiling, so nothing clips", async () => {
-    const loud = [Float64Array.from(x[0], (v) => v * 3.3), Float64Array.from(x[1], (v) => v * 3.3)].map((v) => Float64Array.from(Float32Array.from(v)));
+    const loud = [Float64Array.from(x[0], (v) => v * 3.3), Float64Array.from(x[1], (v) => v * 3.3)].map((v) =>
+      Float64Array.from(Float32Array.from(v)),
+    );
     const loudInput = await writeInput("loud.wav", loud);
     for (const ceilingDbfs of [0, -1]) {
       const out = join(dir, `loud${ceilingDbfs}.wav`);
@@ -140,14 +169,21 @@ describe("renderAccessCopy", () => {
   it("needing a trim, writes the same bytes whether pass 2 reads the kept signal back or filters it all again", async () => {
     // Quiet for the first 3000 frames, loud after: the peak passes the ceiling part-way through, so
     // pass 2 filters the first part again and reads the rest back from pass 1's working file.
-    const late = x.map((v) => Float64Array.from(Float32Array.from(v, (s, i) => (i < 3000 ? 0.2 * s : 10 * s))));
+    const late = x.map((v) =>
+      Float64Array.from(Float32Array.from(v, (s, i) => (i < 3000 ? 0.2 * s : 10 * s))),
+    );
     const lateInput = await writeInput("late-loud.wav", late);
     const runs: { name: string; r: Awaited<ReturnType<typeof render>>; bytes: Buffer }[] = [];
     for (const keepFiltered of ["auto", "never"] as const) {
       for (const chunkFrames of [700, 4096]) {
         const name = `late-${keepFiltered}-${chunkFrames}.wav`;
         const seen: number[] = [];
-        const r = await render(lateInput, join(dir, name), { filter, keepFiltered, chunkFrames, onProgress: (f) => seen.push(f) });
+        const r = await render(lateInput, join(dir, name), {
+          filter,
+          keepFiltered,
+          chunkFrames,
+          onProgress: (f) => seen.push(f),
+        });
         runs.push({ name, r, bytes: await readFile(join(dir, name)) });
         // Progress over two passes still only goes forward, and ends at 1.
         for (let i = 1; i < seen.length; i++) expect(seen[i]).toBeGreaterThan(seen[i - 1]);
@@ -202,14 +238,26 @@ describe("renderAccessCopy", () => {
     const out = join(dir, "history.wav");
     const r = await render(input, out, {
       filter,
-      equalization: { curve: "turnover 318 µs, shelf 3180 µs, rolloff 75 µs", speedRatio: 1.0125, software: "Rillbook 0.1.0" },
+      equalization: {
+        curve: "turnover 318 µs, shelf 3180 µs, rolloff 75 µs",
+        speedRatio: 1.0125,
+        software: "Rillbook 0.1.0",
+      },
       bext: { description: "Access copy", originator: "Rillbook" },
     });
     const lines = parseCodingHistory(r.codingHistory);
     expect(lines).toHaveLength(2);
-    expect(lines[0]).toEqual({ algorithm: "PCM", samplingHz: 48_000, wordLength: 32, mode: "stereo", text: "flat transfer; IEEE float" });
+    expect(lines[0]).toEqual({
+      algorithm: "PCM",
+      samplingHz: 48_000,
+      wordLength: 32,
+      mode: "stereo",
+      text: "flat transfer; IEEE float",
+    });
     expect(lines[1]).toMatchObject({ algorithm: "PCM", samplingHz: 48_000, wordLength: 24, mode: "stereo" });
-    expect(lines[1].text).toContain("Rillbook 0.1.0; equalization turnover 318 us; shelf 3180 us; rolloff 75 us; speed ratio 1.0125; trim 0.00 dB");
+    expect(lines[1].text).toContain(
+      "Rillbook 0.1.0; equalization turnover 318 us; shelf 3180 us; rolloff 75 us; speed ratio 1.0125; trim 0.00 dB",
+    );
     const source = await openFileSource(out);
     const h = await readWavHeader(source);
     await source.close();
@@ -231,8 +279,12 @@ describe("renderAccessCopy", () => {
 
   it("refuses a lateral sum of a mono transfer", async () => {
     const path = await writeInput("mono.wav", [x[0]]);
-    await expect(render(path, join(dir, "never.wav"), { filter, channelMode: "sum" })).rejects.toThrow(RenderError);
-    await expect(render(path, join(dir, "never.wav"), { filter, channelMode: "sum" })).rejects.toThrow(/needs a stereo transfer; this one is mono/);
+    await expect(render(path, join(dir, "never.wav"), { filter, channelMode: "sum" })).rejects.toThrow(
+      RenderError,
+    );
+    await expect(render(path, join(dir, "never.wav"), { filter, channelMode: "sum" })).rejects.toThrow(
+      /needs a stereo transfer; this one is mono/,
+    );
   });
 });
 

@@ -13,7 +13,9 @@ describe("backup helpers", () => {
   });
 
   it("puts an object under DIR/objects by its key and refuses a key that would leave that folder", () => {
-    expect(objectPath("/backups/b1", "transfers/side/abc.wav")).toBe(path.resolve("/backups/b1/objects/transfers/side/abc.wav"));
+    expect(objectPath("/backups/b1", "transfers/side/abc.wav")).toBe(
+      path.resolve("/backups/b1/objects/transfers/side/abc.wav"),
+    );
     expect(() => objectPath("/backups/b1", "../../etc/passwd")).toThrow(/leaves the backup folder/);
     expect(() => objectPath("/backups/b1", "transfers/../../x")).toThrow(/leaves the backup folder/);
     expect(() => objectPath("/backups/b1", "/etc/passwd")).toThrow(/leaves the backup folder/);

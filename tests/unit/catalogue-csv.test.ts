@@ -35,9 +35,19 @@ function row(values: Partial<Record<(typeof catalogueColumns)[number], string>>)
     .join(",");
 }
 
-const shellac = { shelf_mark: "MH-78-001", accession: "ACC-2026-01", format: "shellac_78", speed_rpm: "78", groove: "coarse", cut: "lateral" } as const;
+const shellac = {
+  shelf_mark: "MH-78-001",
+  accession: "ACC-2026-01",
+  format: "shellac_78",
+  speed_rpm: "78",
+  groove: "coarse",
+  cut: "lateral",
+} as const;
 
-function check(text: string, defaultAccessionId?: string): BuiltSheet & { readErrors: ReturnType<typeof readCatalogueCsv>["errors"] } {
+function check(
+  text: string,
+  defaultAccessionId?: string,
+): BuiltSheet & { readErrors: ReturnType<typeof readCatalogueCsv>["errors"] } {
   const read = readCatalogueCsv(text);
   return { ...buildDiscs(read.rows, { resolveAccession, defaultAccessionId }), readErrors: read.errors };
 }
@@ -64,7 +74,12 @@ describe("reading the file", () => {
     const text = "Cut,GROOVE,speed_rpm,format,shelf_mark\nlateral,coarse,78,shellac_78,X-1\n";
     const { discs, errors } = check(text, accessions.get("acc-2026-01"));
     expect(errors).toEqual([]);
-    expect(discs[0].disc).toMatchObject({ shelfMark: "X-1", labelName: "", conditionGrade: "unassessed", sides: [] });
+    expect(discs[0].disc).toMatchObject({
+      shelfMark: "X-1",
+      labelName: "",
+      conditionGrade: "unassessed",
+      sides: [],
+    });
   });
 
   it("names unknown, repeated and missing header columns", () => {
@@ -80,7 +95,9 @@ describe("reading the file", () => {
   });
 
   it("says which row a broken quote is on", () => {
-    const read = readCatalogueCsv(`${header}\n${row(shellac)}\n${row({ ...shellac, shelf_mark: "B" }).replace("B", '"B')}\n`);
+    const read = readCatalogueCsv(
+      `${header}\n${row(shellac)}\n${row({ ...shellac, shelf_mark: "B" }).replace("B", '"B')}\n`,
+    );
     expect(read.errors).toHaveLength(1);
     expect(read.errors[0].row).toBe(3);
     expect(read.errors[0].message).toMatch(/quote/);
@@ -88,7 +105,9 @@ describe("reading the file", () => {
 
   it("refuses a row with more fields than the header", () => {
     const read = readCatalogueCsv(`${header}\n${row(shellac)},extra\n`);
-    expect(read.errors).toEqual([expect.objectContaining({ row: 2, message: expect.stringMatching(/fields but the header names/) })]);
+    expect(read.errors).toEqual([
+      expect.objectContaining({ row: 2, message: expect.stringMatching(/fields but the header names/) }),
+    ]);
   });
 
   it("counts blank rows so row numbers match the spreadsheet, without making discs of them", () => {
@@ -122,7 +141,13 @@ describe("checking rows", () => {
       header,
       row({ ...shellac, side: "A" }),
       row({ ...shellac, shelf_mark: "MH-78-002", speed_rpm: "fast", diameter_in: "ten" }),
-      row({ ...shellac, shelf_mark: "MH-78-003", condition_flags: "warp;mildew", year_from: "1931", year_to: "1929" }),
+      row({
+        ...shellac,
+        shelf_mark: "MH-78-003",
+        condition_flags: "warp;mildew",
+        year_from: "1931",
+        year_to: "1929",
+      }),
       row({ ...shellac, shelf_mark: "MH-78-004", base: "glass" }),
       row({ ...shellac, shelf_mark: "MH-78-005", matrix_number: "W-1" }),
     ].join("\n");
@@ -140,16 +165,29 @@ describe("checking rows", () => {
     expect(errors[4].message).toMatch(/side designation/);
     // The year range is checked once the row's values read.
     const years = check([header, row({ ...shellac, year_from: "1931", year_to: "1929" })].join("\n")).errors;
-    expect(years).toEqual([expect.objectContaining({ row: 2, column: "year_to", message: expect.stringMatching(/runs backwards/) })]);
+    expect(years).toEqual([
+      expect.objectContaining({
+        row: 2,
+        column: "year_to",
+        message: expect.stringMatching(/runs backwards/),
+      }),
+    ]);
   });
 
   it("resolves accessions by identifier, case-insensitively, falling back to the default only for empty cells", () => {
     const fallback = accessions.get("acc-2026-02")!;
-    const text = [header, row({ ...shellac, accession: "acc-2026-01" }), row({ ...shellac, shelf_mark: "B", accession: "" }), row({ ...shellac, shelf_mark: "C", accession: "ACC-1999-99" })].join("\n");
+    const text = [
+      header,
+      row({ ...shellac, accession: "acc-2026-01" }),
+      row({ ...shellac, shelf_mark: "B", accession: "" }),
+      row({ ...shellac, shelf_mark: "C", accession: "ACC-1999-99" }),
+    ].join("\n");
     const { discs, errors } = check(text, fallback);
     expect(discs[0].disc.accessionId).toBe(accessions.get("acc-2026-01"));
     expect(discs[1].disc.accessionId).toBe(fallback);
-    expect(errors).toEqual([expect.objectContaining({ row: 4, column: "accession", message: expect.stringMatching(/ACC-1999-99/) })]);
+    expect(errors).toEqual([
+      expect.objectContaining({ row: 4, column: "accession", message: expect.stringMatching(/ACC-1999-99/) }),
+    ]);
     // Without a default, the empty cell is the error.
     const without = check(text);
     expect(without.errors.map((e) => [e.row, e.column])).toEqual([
@@ -159,16 +197,39 @@ describe("checking rows", () => {
   });
 
   it("takes the spellings people type: format labels, 33 1/3, upper case codes, spaced flags", () => {
-    const text = [header, row({ ...shellac, format: "Microgroove LP", speed_rpm: "33 1/3", groove: "MICRO", cut: "Lateral", condition: "Good", condition_flags: " Warp ; wear;warp " })].join("\n");
+    const text = [
+      header,
+      row({
+        ...shellac,
+        format: "Microgroove LP",
+        speed_rpm: "33 1/3",
+        groove: "MICRO",
+        cut: "Lateral",
+        condition: "Good",
+        condition_flags: " Warp ; wear;warp ",
+      }),
+    ].join("\n");
     const { discs, errors } = check(text);
     expect(errors).toEqual([]);
-    expect(discs[0].disc).toMatchObject({ format: "microgroove_lp", nominalSpeedRpm: 33.33, groove: "micro", cut: "lateral", conditionGrade: "good", conditionFlags: ["warp", "wear"] });
+    expect(discs[0].disc).toMatchObject({
+      format: "microgroove_lp",
+      nominalSpeedRpm: 33.33,
+      groove: "micro",
+      cut: "lateral",
+      conditionGrade: "good",
+      conditionFlags: ["warp", "wear"],
+    });
   });
 });
 
 describe("grouping rows into discs", () => {
   it("makes one disc of consecutive rows with the same shelf mark, one side per row", () => {
-    const text = [header, row({ ...shellac, side: "A", matrix_number: "W-140" }), row({ ...shellac, side: "B", matrix_number: "W-141" }), row({ ...shellac, shelf_mark: "MH-78-002" })].join("\n");
+    const text = [
+      header,
+      row({ ...shellac, side: "A", matrix_number: "W-140" }),
+      row({ ...shellac, side: "B", matrix_number: "W-141" }),
+      row({ ...shellac, shelf_mark: "MH-78-002" }),
+    ].join("\n");
     const { discs, errors } = check(text);
     expect(errors).toEqual([]);
     expect(discs.map((d) => [d.row, d.rows, d.disc.sides.map((s) => s.matrixNumber)])).toEqual([
@@ -178,7 +239,11 @@ describe("grouping rows into discs", () => {
   });
 
   it("says which disc column differs between rows of one disc", () => {
-    const text = [header, row({ ...shellac, side: "A", label: "Rillton" }), row({ ...shellac, side: "B", label: "Rilton" })].join("\n");
+    const text = [
+      header,
+      row({ ...shellac, side: "A", label: "Rillton" }),
+      row({ ...shellac, side: "B", label: "Rilton" }),
+    ].join("\n");
     const { errors } = check(text);
     expect(errors).toEqual([expect.objectContaining({ row: 3, column: "label" })]);
     expect(errors[0].message).toMatch(/row 2/);
@@ -186,12 +251,21 @@ describe("grouping rows into discs", () => {
   });
 
   it("treats 78 and 78.0 as the same speed on two rows of a disc", () => {
-    const text = [header, row({ ...shellac, side: "A", speed_rpm: "78" }), row({ ...shellac, side: "B", speed_rpm: "78.0" })].join("\n");
+    const text = [
+      header,
+      row({ ...shellac, side: "A", speed_rpm: "78" }),
+      row({ ...shellac, side: "B", speed_rpm: "78.0" }),
+    ].join("\n");
     expect(check(text).errors).toEqual([]);
   });
 
   it("reports a side listed twice and a side-less row among sides", () => {
-    const text = [header, row({ ...shellac, side: "A" }), row({ ...shellac, side: "a" }), row({ ...shellac })].join("\n");
+    const text = [
+      header,
+      row({ ...shellac, side: "A" }),
+      row({ ...shellac, side: "a" }),
+      row({ ...shellac }),
+    ].join("\n");
     const { errors } = check(text);
     expect(errors.map((e) => [e.row, e.column])).toEqual([
       [3, "side"],
@@ -201,17 +275,26 @@ describe("grouping rows into discs", () => {
   });
 
   it("reports a shelf mark that comes back after another disc as a duplicate within the file", () => {
-    const text = [header, row({ ...shellac, side: "A" }), row({ ...shellac, shelf_mark: "MH-78-002" }), row({ ...shellac, shelf_mark: "mh-78-001", side: "B" })].join("\n");
+    const text = [
+      header,
+      row({ ...shellac, side: "A" }),
+      row({ ...shellac, shelf_mark: "MH-78-002" }),
+      row({ ...shellac, shelf_mark: "mh-78-001", side: "B" }),
+    ].join("\n");
     const { errors, duplicates, discs } = check(text);
     expect(duplicates).toEqual([{ row: 4, shelfMark: "mh-78-001", firstRow: 2 }]);
     expect(discs.map((d) => d.row)).toEqual([2, 3]);
-    expect(errors).toEqual([expect.objectContaining({ row: 4, column: "shelf_mark", message: expect.stringMatching(/row 2/) })]);
+    expect(errors).toEqual([
+      expect.objectContaining({ row: 4, column: "shelf_mark", message: expect.stringMatching(/row 2/) }),
+    ]);
   });
 
   it("refuses a ninth side on the row that adds it", () => {
     const sides = "ABCDEFGHI".split("").map((s) => row({ ...shellac, side: s }));
     const { errors } = check([header, ...sides].join("\n"));
-    expect(errors).toEqual([expect.objectContaining({ row: 10, column: "side", message: expect.stringMatching(/At most 8 sides/) })]);
+    expect(errors).toEqual([
+      expect.objectContaining({ row: 10, column: "side", message: expect.stringMatching(/At most 8 sides/) }),
+    ]);
   });
 });
 
@@ -229,7 +312,7 @@ describe("fields that look like formulas", () => {
 
 const sample: ExportDisc[] = [
   {
-    shelfMark: "=HYPERLINK(\"x\")",
+    shelfMark: '=HYPERLINK("x")',
     accessionIdentifier: "ACC-2026-01",
     labelName: "@Rillton",
     catalogueNumber: "+R 100",
@@ -247,8 +330,22 @@ const sample: ExportDisc[] = [
     conditionNotes: "Hairline crack, 2 cm, at 3 o'clock.\nPlays through.",
     handlingNotes: "-Broken shellac cuts: wear gloves.",
     sides: [
-      { designation: "A", matrixNumber: "-W 140,2", take: "'=2", title: "Serenade, \"slow\"", performers: "Marrow Hill Quartet", notes: "" },
-      { designation: "B", matrixNumber: "W 141", take: "1", title: "", performers: "", notes: "Label reads \"B\"" },
+      {
+        designation: "A",
+        matrixNumber: "-W 140,2",
+        take: "'=2",
+        title: 'Serenade, "slow"',
+        performers: "Marrow Hill Quartet",
+        notes: "",
+      },
+      {
+        designation: "B",
+        matrixNumber: "W 141",
+        take: "1",
+        title: "",
+        performers: "",
+        notes: 'Label reads "B"',
+      },
     ],
   },
   {
@@ -315,7 +412,14 @@ describe("writing and reading back", () => {
       conditionFlags: disc.conditionFlags,
       conditionNotes: disc.conditionNotes,
       handlingNotes: disc.handlingNotes,
-      sides: disc.sides.map(({ designation, matrixNumber, take, title, performers, notes }) => ({ designation, matrixNumber, take, title, performers, notes })),
+      sides: disc.sides.map(({ designation, matrixNumber, take, title, performers, notes }) => ({
+        designation,
+        matrixNumber,
+        take,
+        title,
+        performers,
+        notes,
+      })),
     }));
     expect(back).toEqual(sample);
   });
@@ -325,7 +429,11 @@ describe("writing and reading back", () => {
     const read = readCatalogueCsv(template);
     expect(read.errors).toEqual([]);
     expect(Object.keys(read.rows[0].values)).toEqual(catalogueColumns);
-    expect(buildDiscs(read.rows, { resolveAccession, defaultAccessionId: accessions.get("acc-2026-01") }).errors).toEqual([]);
-    expect(buildDiscs(read.rows, { resolveAccession }).errors.every((e) => e.column === "accession")).toBe(true);
+    expect(
+      buildDiscs(read.rows, { resolveAccession, defaultAccessionId: accessions.get("acc-2026-01") }).errors,
+    ).toEqual([]);
+    expect(buildDiscs(read.rows, { resolveAccession }).errors.every((e) => e.column === "accession")).toBe(
+      true,
+    );
   });
 });

@@ -10,7 +10,10 @@ function parse(value: string) {
 
 describe("download names from stored text", () => {
   it("keeps an ordinary name as it is", () => {
-    expect(parse(attachmentDisposition("VB-2211-A-access.wav"))).toEqual({ ascii: "VB-2211-A-access.wav", unicode: "VB-2211-A-access.wav" });
+    expect(parse(attachmentDisposition("VB-2211-A-access.wav"))).toEqual({
+      ascii: "VB-2211-A-access.wav",
+      unicode: "VB-2211-A-access.wav",
+    });
   });
 
   it("cannot split the header or close the quoted name: CR LF, quotes, backslashes and semicolons", () => {
@@ -24,7 +27,10 @@ describe("download names from stored text", () => {
   });
 
   it("gives accented and non-Latin names in full through filename*, with a faithful ASCII fallback", () => {
-    expect(parse(attachmentDisposition("Pathé 1234 — Côté A.wav"))).toEqual({ ascii: "Pathe 1234 _ Cote A.wav", unicode: "Pathé 1234 — Côté A.wav" });
+    expect(parse(attachmentDisposition("Pathé 1234 — Côté A.wav"))).toEqual({
+      ascii: "Pathe 1234 _ Cote A.wav",
+      unicode: "Pathé 1234 — Côté A.wav",
+    });
     const greek = parse(attachmentDisposition("Ωδή-Α.wav", "transfer.wav"));
     expect(greek.unicode).toBe("Ωδή-Α.wav");
     expect(greek.ascii).toMatch(/^[ -~]+$/);
@@ -32,7 +38,10 @@ describe("download names from stored text", () => {
 
   it("drops paths and leading dots, and falls back when nothing printable is left", () => {
     expect(parse(attachmentDisposition("../../etc/passwd")).unicode).not.toMatch(/\//);
-    expect(parse(attachmentDisposition("\r\n\t", "transfer.wav"))).toEqual({ ascii: "transfer.wav", unicode: "transfer.wav" });
+    expect(parse(attachmentDisposition("\r\n\t", "transfer.wav"))).toEqual({
+      ascii: "transfer.wav",
+      unicode: "transfer.wav",
+    });
     expect(parse(attachmentDisposition("\uD800lone.wav")).unicode).toBe("\uFFFDlone.wav");
   });
 

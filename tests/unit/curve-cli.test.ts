@@ -20,7 +20,18 @@ async function cli(args: string[]): Promise<{ code: number; stdout: string; stde
 // Each case starts the command through tsx (a second or more apiece, longer on a busy machine).
 describe("curve CLI", { timeout: 60_000 }, () => {
   it("design --json prints the sections, poles, zeros, gain and errors", async () => {
-    const r = await cli(["design", "--turnover-hz", "500", "--shelf-hz", "50", "--rolloff-db", "13.7", "--rate", "44100", "--json"]);
+    const r = await cli([
+      "design",
+      "--turnover-hz",
+      "500",
+      "--shelf-hz",
+      "50",
+      "--rolloff-db",
+      "13.7",
+      "--rate",
+      "44100",
+      "--json",
+    ]);
     expect(r.code).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out.sos).toHaveLength(2);
@@ -39,7 +50,22 @@ describe("curve CLI", { timeout: 60_000 }, () => {
   });
 
   it("reads --rolloff-db as attenuation whichever sign it has, and prints it one way", async () => {
-    const runs = await Promise.all([["10"], ["-10"], ["\u221210"], ["+10"]].map(([db]) => cli(["design", "--turnover-hz", "500", "--shelf-hz", "50", "--rolloff-db", db, "--rate", "48000", "--json"])));
+    const runs = await Promise.all(
+      [["10"], ["-10"], ["\u221210"], ["+10"]].map(([db]) =>
+        cli([
+          "design",
+          "--turnover-hz",
+          "500",
+          "--shelf-hz",
+          "50",
+          "--rolloff-db",
+          db,
+          "--rate",
+          "48000",
+          "--json",
+        ]),
+      ),
+    );
     const poles = runs.map((r) => {
       expect(r.code).toBe(0);
       return JSON.parse(r.stdout).poles;
@@ -52,7 +78,19 @@ describe("curve CLI", { timeout: 60_000 }, () => {
   }, 60_000);
 
   it("design --render-filter adds the FIR with its delay", async () => {
-    const r = await cli(["design", "--turnover-us", "318", "--shelf-us", "3180", "--rolloff-us", "75", "--rate", "48000", "--render-filter", "--json"]);
+    const r = await cli([
+      "design",
+      "--turnover-us",
+      "318",
+      "--shelf-us",
+      "3180",
+      "--rolloff-us",
+      "75",
+      "--rate",
+      "48000",
+      "--render-filter",
+      "--json",
+    ]);
     expect(r.code).toBe(0);
     const rf = JSON.parse(r.stdout).renderFilter;
     expect(rf.kind).toBe("fir");

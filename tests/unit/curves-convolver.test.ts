@@ -2,33 +2,35 @@ import { describe, expect, it } from "vitest";
 import { convolveDirect, PairConvolver, StreamingConvolver } from "@/lib/curves";
 import { testRandom } from "../support/wav-corpus";
 
-
 describe("streaming convolver", () => {
-  it.each([[1], [7], [300], [1000]])("chunked output equals one-shot direct convolution (%i taps)", (tapCount) => {
-    const rand = testRandom(tapCount);
-    const taps = Float64Array.from({ length: tapCount }, rand);
-    const signal = Float64Array.from({ length: 5000 }, rand);
-    const direct = convolveDirect(signal, taps);
-    const conv = new StreamingConvolver(taps);
-    const out: number[] = [];
-    let pos = 0;
-    const sizes = [1, 2, 3, 17, 64, conv.blockSize, conv.blockSize + 5, 999, 4];
-    for (let i = 0; pos < signal.length; i++) {
-      const n = Math.min(sizes[i % sizes.length], signal.length - pos);
-      const chunk = conv.process(signal.subarray(pos, pos + n));
-      expect(chunk.length).toBe(n);
-      out.push(...chunk);
-      pos += n;
-    }
-    out.push(...conv.flush());
-    expect(out.length).toBe(direct.length);
-    let scale = 0;
-    for (const v of direct) scale = Math.max(scale, Math.abs(v));
-    for (let i = 0; i < direct.length; i++) {
-      // Float64 FFT round-off grows like log2(N)·ε relative to the signal scale.
-      expect(Math.abs(out[i] - direct[i])).toBeLessThan(1e-12 * scale * Math.max(1, tapCount));
-    }
-  });
+  it.each([[1], [7], [300], [1000]])(
+    "chunked output equals one-shot direct convolution (%i taps)",
+    (tapCount) => {
+      const rand = testRandom(tapCount);
+      const taps = Float64Array.from({ length: tapCount }, rand);
+      const signal = Float64Array.from({ length: 5000 }, rand);
+      const direct = convolveDirect(signal, taps);
+      const conv = new StreamingConvolver(taps);
+      const out: number[] = [];
+      let pos = 0;
+      const sizes = [1, 2, 3, 17, 64, conv.blockSize, conv.blockSize + 5, 999, 4];
+      for (let i = 0; pos < signal.length; i++) {
+        const n = Math.min(sizes[i % sizes.length], signal.length - pos);
+        const chunk = conv.process(signal.subarray(pos, pos + n));
+        expect(chunk.length).toBe(n);
+        out.push(...chunk);
+        pos += n;
+      }
+      out.push(...conv.flush());
+      expect(out.length).toBe(direct.length);
+      let scale = 0;
+      for (const v of direct) scale = Math.max(scale, Math.abs(v));
+      for (let i = 0; i < direct.length; i++) {
+        // Float64 FFT round-off grows like log2(N)·ε relative to the signal scale.
+        expect(Math.abs(out[i] - direct[i])).toBeLessThan(1e-12 * scale * Math.max(1, tapCount));
+      }
+    },
+  );
 
   it("starts over after reset", () => {
     const conv = new StreamingConvolver([0.5, 0.25]);
@@ -57,7 +59,8 @@ describe("PairConvolver", () => {
     const refA = convolveDirect(a, taps);
     const refB = convolveDirect(b, taps);
     let worst = 0;
-    for (let i = 0; i < 5000; i++) worst = Math.max(worst, Math.abs(outA[i] - refA[i]), Math.abs(outB[i] - refB[i]));
+    for (let i = 0; i < 5000; i++)
+      worst = Math.max(worst, Math.abs(outA[i] - refA[i]), Math.abs(outB[i] - refB[i]));
     expect(worst).toBeLessThan(1e-10);
   });
 });

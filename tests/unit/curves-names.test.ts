@@ -1,5 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { curveChoiceName, db10kToUs, formatCorner, formatRolloffDb, parseRolloffDb, resolveCurve } from "@/lib/curves";
+import {
+  curveChoiceName,
+  db10kToUs,
+  formatCorner,
+  formatRolloffDb,
+  parseRolloffDb,
+  resolveCurve,
+} from "@/lib/curves";
 import { curveSpecSchema } from "@/lib/validation/curves";
 
 describe("treble rolloff typed either way", () => {
@@ -17,9 +24,12 @@ describe("treble rolloff typed either way", () => {
     expect(parseRolloffDb(text)).toBe(db);
   });
 
-  it.each([[""], ["ten"], ["10 Hz"], ["--10"], ["1e"], ["10 dB at 5 kHz"]])("gives NaN for %j, which the curve refuses beside the field", (text) => {
-    expect(parseRolloffDb(text)).toBeNaN();
-  });
+  it.each([[""], ["ten"], ["10 Hz"], ["--10"], ["1e"], ["10 dB at 5 kHz"]])(
+    "gives NaN for %j, which the curve refuses beside the field",
+    (text) => {
+      expect(parseRolloffDb(text)).toBeNaN();
+    },
+  );
 
   it("is shown one way, as a positive attenuation, whichever sign was stored", () => {
     expect(formatRolloffDb(10)).toBe("10 dB attenuation at 10 kHz");
@@ -32,8 +42,14 @@ describe("treble rolloff typed either way", () => {
     const plus = resolveCurve({ rolloff: { unit: "db10k", value: 10 } });
     expect(minus.rolloff!.tauUs).toBe(plus.rolloff!.tauUs);
     expect(minus.rolloff!.db10k).toBeCloseTo(10, 9);
-    expect(curveSpecSchema.parse({ rolloff: { unit: "db10k", value: -10 } }).rolloff).toEqual({ unit: "db10k", value: 10 });
-    expect(curveSpecSchema.parse({ turnover: { unit: "hz", value: 500 } }).turnover).toEqual({ unit: "hz", value: 500 });
+    expect(curveSpecSchema.parse({ rolloff: { unit: "db10k", value: -10 } }).rolloff).toEqual({
+      unit: "db10k",
+      value: 10,
+    });
+    expect(curveSpecSchema.parse({ turnover: { unit: "hz", value: 500 } }).turnover).toEqual({
+      unit: "hz",
+      value: 500,
+    });
   });
 
   it("10 dB at 10 kHz is a 47.7 µs time constant", () => {
@@ -48,12 +64,26 @@ describe("treble rolloff typed either way", () => {
 describe("a recorded curve choice by name", () => {
   it("names the preset version and what was changed for the side", () => {
     expect(
-      curveChoiceName({ presetName: "Turnover 500 Hz · no rolloff · shelf 50 Hz", presetVersion: 1, overrides: { rolloff: { unit: "db10k", value: 10 } }, cutSpeedRpm: 78, transferSpeedRpm: 78 }),
+      curveChoiceName({
+        presetName: "Turnover 500 Hz · no rolloff · shelf 50 Hz",
+        presetVersion: 1,
+        overrides: { rolloff: { unit: "db10k", value: 10 } },
+        cutSpeedRpm: 78,
+        transferSpeedRpm: 78,
+      }),
     ).toBe("Turnover 500 Hz · no rolloff · shelf 50 Hz v1 + rolloff 10 dB attenuation at 10 kHz");
   });
 
   it("names a preset used as it is without a '+'", () => {
-    expect(curveChoiceName({ presetName: "RIAA", presetVersion: 3, overrides: {}, cutSpeedRpm: 33.33, transferSpeedRpm: 33.33 })).toBe("RIAA v3");
+    expect(
+      curveChoiceName({
+        presetName: "RIAA",
+        presetVersion: 3,
+        overrides: {},
+        cutSpeedRpm: 33.33,
+        transferSpeedRpm: 33.33,
+      }),
+    ).toBe("RIAA v3");
   });
 
   it("names corners taken out, a new level reference, and values in the unit they were given", () => {
@@ -61,20 +91,47 @@ describe("a recorded curve choice by name", () => {
       curveChoiceName({
         presetName: "RIAA",
         presetVersion: 2,
-        overrides: { turnover: { unit: "us", value: 450 }, shelf: null, highpass: { unit: "hz", value: 20 }, reference: { hz: 1000, db: -2 } },
+        overrides: {
+          turnover: { unit: "us", value: 450 },
+          shelf: null,
+          highpass: { unit: "hz", value: 20 },
+          reference: { hz: 1000, db: -2 },
+        },
       }),
     ).toBe("RIAA v2 + turnover 450 µs, no shelf, high-pass 20 Hz, level \u22122 dB at 1000 Hz");
   });
 
   it("names the speed ratio only when the transfer speed differs from the cut speed", () => {
-    expect(curveChoiceName({ presetName: "RIAA", presetVersion: 1, overrides: {}, cutSpeedRpm: 78, transferSpeedRpm: 80 })).toBe("RIAA v1 · cut 78 rpm, transferred 80 rpm (×1.026)");
-    expect(curveChoiceName({ presetName: "RIAA", presetVersion: 1, overrides: {}, cutSpeedRpm: 78, transferSpeedRpm: 78 })).not.toMatch(/rpm/);
+    expect(
+      curveChoiceName({
+        presetName: "RIAA",
+        presetVersion: 1,
+        overrides: {},
+        cutSpeedRpm: 78,
+        transferSpeedRpm: 80,
+      }),
+    ).toBe("RIAA v1 · cut 78 rpm, transferred 80 rpm (×1.026)");
+    expect(
+      curveChoiceName({
+        presetName: "RIAA",
+        presetVersion: 1,
+        overrides: {},
+        cutSpeedRpm: 78,
+        transferSpeedRpm: 78,
+      }),
+    ).not.toMatch(/rpm/);
   });
 
   it("names a choice without a preset by its own values", () => {
-    expect(curveChoiceName({ overrides: { turnover: { unit: "hz", value: 500 }, shelf: { unit: "hz", value: 50 }, rolloff: { unit: "db10k", value: -16 } } })).toBe(
-      "Own values: turnover 500 Hz, shelf 50 Hz, rolloff 16 dB attenuation at 10 kHz",
-    );
+    expect(
+      curveChoiceName({
+        overrides: {
+          turnover: { unit: "hz", value: 500 },
+          shelf: { unit: "hz", value: 50 },
+          rolloff: { unit: "db10k", value: -16 },
+        },
+      }),
+    ).toBe("Own values: turnover 500 Hz, shelf 50 Hz, rolloff 16 dB attenuation at 10 kHz");
     expect(curveChoiceName({ overrides: {} })).toBe("Own values");
   });
 });

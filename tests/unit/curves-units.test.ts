@@ -17,7 +17,11 @@ describe("corner unit conversions", () => {
   });
 
   it("keeps the entered value beside the time constant the filter uses", () => {
-    const c = resolveCurve({ turnover: { unit: "hz", value: 500 }, shelf: { unit: "hz", value: 50 }, rolloff: { unit: "db10k", value: 13.7 } });
+    const c = resolveCurve({
+      turnover: { unit: "hz", value: 500 },
+      shelf: { unit: "hz", value: 50 },
+      rolloff: { unit: "db10k", value: 13.7 },
+    });
     expect(c.turnover?.entered).toEqual({ unit: "hz", value: 500 });
     expect(c.turnover?.tauUs).toBeCloseTo(318.31, 2);
     expect(c.turnover?.filterTauUs).toBe(c.turnover?.tauUs);
@@ -27,15 +31,28 @@ describe("corner unit conversions", () => {
   });
 
   it("a rolloff of 0 dB at 10 kHz means none", () => {
-    const c = resolveCurve({ turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "db10k", value: 0 } });
+    const c = resolveCurve({
+      turnover: { unit: "us", value: 318 },
+      shelf: { unit: "us", value: 3180 },
+      rolloff: { unit: "db10k", value: 0 },
+    });
     expect(c.rolloff).toBeNull();
   });
 
   it("scales every corner frequency by the speed ratio", () => {
     // A disc cut at 78 rpm transferred at 80 rpm: all frequencies × 80/78 (DESIGN.md, "Speed matters").
     const ratio = 80 / 78;
-    const base = resolveCurve({ turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 75 } });
-    const fast = resolveCurve({ turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 75 }, speedRatio: ratio });
+    const base = resolveCurve({
+      turnover: { unit: "us", value: 318 },
+      shelf: { unit: "us", value: 3180 },
+      rolloff: { unit: "us", value: 75 },
+    });
+    const fast = resolveCurve({
+      turnover: { unit: "us", value: 318 },
+      shelf: { unit: "us", value: 3180 },
+      rolloff: { unit: "us", value: 75 },
+      speedRatio: ratio,
+    });
     for (const name of ["turnover", "shelf", "rolloff"] as const) {
       expect(fast[name]!.filterHz / base[name]!.filterHz).toBeCloseTo(ratio, 12);
       expect(fast[name]!.tauUs).toBe(base[name]!.tauUs);

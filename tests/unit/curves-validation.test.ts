@@ -3,7 +3,11 @@ import { CurveError, designIir, resolveCurve, validateSampleRate } from "@/lib/c
 import type { CurveSpec } from "@/lib/curves";
 import { thrownBy } from "../support/errors";
 
-const riaa: CurveSpec = { turnover: { unit: "us", value: 318 }, shelf: { unit: "us", value: 3180 }, rolloff: { unit: "us", value: 75 } };
+const riaa: CurveSpec = {
+  turnover: { unit: "us", value: 318 },
+  shelf: { unit: "us", value: 3180 },
+  rolloff: { unit: "us", value: 75 },
+};
 
 const errorOf = (fn: () => unknown) => thrownBy(CurveError, fn);
 
@@ -26,14 +30,18 @@ describe("curve validation names the parameter", () => {
   });
 
   it("refuses a turnover with neither shelf nor high-pass, asking for one", () => {
-    const e = errorOf(() => resolveCurve({ turnover: { unit: "hz", value: 500 }, rolloff: { unit: "db10k", value: 10 } }));
+    const e = errorOf(() =>
+      resolveCurve({ turnover: { unit: "hz", value: 500 }, rolloff: { unit: "db10k", value: 10 } }),
+    );
     expect(e.parameter).toBe("shelf");
     expect(e.message).toMatch(/unbounded bass gain/);
     expect(e.message).toMatch(/high-pass/);
   });
 
   it("accepts a turnover with a high-pass and no shelf, and a flat-bass curve", () => {
-    expect(resolveCurve({ turnover: { unit: "hz", value: 500 }, highpass: { unit: "us", value: 7950 } }).flatBass).toBe(false);
+    expect(
+      resolveCurve({ turnover: { unit: "hz", value: 500 }, highpass: { unit: "us", value: 7950 } }).flatBass,
+    ).toBe(false);
     expect(resolveCurve({ rolloff: { unit: "db10k", value: 10 } }).flatBass).toBe(true);
   });
 

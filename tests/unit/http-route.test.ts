@@ -24,7 +24,12 @@ function post(headers: Record<string, string>, body?: string): NextRequest {
 describe("route()", () => {
   beforeEach(() => {
     session.requirePermission.mockReset();
-    session.requirePermission.mockResolvedValue({ id: "u1", email: "a@lab.example", name: "A", role: "archivist" });
+    session.requirePermission.mockResolvedValue({
+      id: "u1",
+      email: "a@lab.example",
+      name: "A",
+      role: "archivist",
+    });
   });
 
   it("passes a well-formed id to the handler", async () => {
@@ -34,7 +39,11 @@ describe("route()", () => {
   });
 
   it("answers 404 for an id that cannot name a row, without running the handler", async () => {
-    for (const id of ["nope", "------------------------------------", "00000000-0000-4000-8000-00000000000g"]) {
+    for (const id of [
+      "nope",
+      "------------------------------------",
+      "00000000-0000-4000-8000-00000000000g",
+    ]) {
       const res = await handler(req, withId(id));
       expect(res.status, id).toBe(404);
       expect((await res.json()).error.code).toBe("not_found");
@@ -48,18 +57,26 @@ describe("route()", () => {
   });
 
   it("marks answers and refusals no-store", async () => {
-    expect((await handler(req, withId("00000000-0000-4000-8000-000000000000"))).headers.get("cache-control")).toBe("no-store");
+    expect(
+      (await handler(req, withId("00000000-0000-4000-8000-000000000000"))).headers.get("cache-control"),
+    ).toBe("no-store");
     expect((await handler(req, withId("nope"))).headers.get("cache-control")).toBe("no-store");
   });
 
   it("takes a JSON post from the app's own origin", async () => {
-    const res = await create(post({ origin: appOrigin, "content-type": "application/json" }, '{"a":1}'), noParams);
+    const res = await create(
+      post({ origin: appOrigin, "content-type": "application/json" }, '{"a":1}'),
+      noParams,
+    );
     expect(res.status).toBe(200);
     expect(await res.json()).toEqual({ got: { a: 1 } });
   });
 
   it("refuses a post from another origin before reading the session", async () => {
-    const res = await create(post({ origin: "http://127.0.0.1:9", "content-type": "application/json" }, "{}"), noParams);
+    const res = await create(
+      post({ origin: "http://127.0.0.1:9", "content-type": "application/json" }, "{}"),
+      noParams,
+    );
     expect(res.status).toBe(403);
     expect((await res.json()).error.code).toBe("cross_site");
     expect(session.requirePermission).not.toHaveBeenCalled();
@@ -72,13 +89,19 @@ describe("route()", () => {
   });
 
   it("refuses JSON sent as text/plain (a cross-site form's disguise) with 415", async () => {
-    const res = await create(post({ origin: appOrigin, "content-type": "text/plain" }, '{"identifier":"X"}'), noParams);
+    const res = await create(
+      post({ origin: appOrigin, "content-type": "text/plain" }, '{"identifier":"X"}'),
+      noParams,
+    );
     expect(res.status).toBe(415);
     expect((await res.json()).error.code).toBe("unsupported_media_type");
   });
 
   it("answers 422 naming the field for a NUL in a JSON body or the query", async () => {
-    const res = await create(post({ origin: appOrigin, "content-type": "application/json" }, '{"rows":[{"title":"a\\u0000b"}]}'), noParams);
+    const res = await create(
+      post({ origin: appOrigin, "content-type": "application/json" }, '{"rows":[{"title":"a\\u0000b"}]}'),
+      noParams,
+    );
     expect(res.status).toBe(422);
     expect((await res.json()).error.fields).toHaveProperty(["rows.0.title"]);
     const list = route("GET /api/discs", async () => ({}));

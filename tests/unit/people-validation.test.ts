@@ -11,7 +11,9 @@ function fieldsOf(schema: { safeParse: (v: unknown) => any }, value: unknown): R
 
 describe("bad input on the people forms", () => {
   it("names a malformed e-mail", () => {
-    expect(fieldsOf(inviteSchema, { email: "ines@", role: "admin" }).email?.[0]).toMatch(/not a valid e-mail/);
+    expect(fieldsOf(inviteSchema, { email: "ines@", role: "admin" }).email?.[0]).toMatch(
+      /not a valid e-mail/,
+    );
     expect(fieldsOf(inviteSchema, { email: "", role: "admin" }).email?.[0]).toMatch(/Enter an e-mail/);
   });
 
@@ -20,15 +22,34 @@ describe("bad input on the people forms", () => {
   });
 
   it("normalises the address it accepts", () => {
-    expect(inviteSchema.parse({ email: "  Ada@Lab.Example ", role: "curator" }).email).toBe("ada@lab.example");
+    expect(inviteSchema.parse({ email: "  Ada@Lab.Example ", role: "curator" }).email).toBe(
+      "ada@lab.example",
+    );
   });
 
   it("refuses a short password and differing confirmation, each at its field", () => {
-    const f = fieldsOf(acceptInvitationSchema, { token: "x".repeat(43), name: "Ada", password: "short", confirm: "short" });
+    const f = fieldsOf(acceptInvitationSchema, {
+      token: "x".repeat(43),
+      name: "Ada",
+      password: "short",
+      confirm: "short",
+    });
     expect(f.password?.[0]).toMatch(/at least 12 characters/);
-    const g = fieldsOf(acceptInvitationSchema, { token: "x".repeat(43), name: "Ada", password: "long enough pass", confirm: "long enough pasS" });
+    const g = fieldsOf(acceptInvitationSchema, {
+      token: "x".repeat(43),
+      name: "Ada",
+      password: "long enough pass",
+      confirm: "long enough pasS",
+    });
     expect(g.confirm?.[0]).toMatch(/differ/);
-    expect(fieldsOf(acceptInvitationSchema, { token: "x".repeat(43), name: " ", password: "long enough pass", confirm: "long enough pass" }).name?.[0]).toMatch(/Enter your name/);
+    expect(
+      fieldsOf(acceptInvitationSchema, {
+        token: "x".repeat(43),
+        name: " ",
+        password: "long enough pass",
+        confirm: "long enough pass",
+      }).name?.[0],
+    ).toMatch(/Enter your name/);
   });
 });
 

@@ -32,7 +32,11 @@ describe("the permission table", () => {
   it("names only known actions, and every action belongs to some role", () => {
     const known = Object.keys(actions);
     for (const role of roles) for (const a of permissionTable[role]) expect(known).toContain(a);
-    for (const a of known) expect(roles.some((r) => can(r, a as keyof typeof actions)), a).toBe(true);
+    for (const a of known)
+      expect(
+        roles.some((r) => can(r, a as keyof typeof actions)),
+        a,
+      ).toBe(true);
   });
 
   it("lists a known action (or public) for every API route", () => {

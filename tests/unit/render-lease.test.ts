@@ -11,15 +11,33 @@ import { isDatabaseUnavailable, toAppError } from "@/lib/http/errors";
 describe("the render lease", () => {
   const now = Date.parse("2026-12-03T10:00:00Z");
   it("is stale only for a running render not renewed within the limit", () => {
-    expect(leaseIsStale({ status: "running", heartbeatAt: new Date(now - 91_000), startedAt: null }, now, 90)).toBe(true);
-    expect(leaseIsStale({ status: "running", heartbeatAt: new Date(now - 89_000), startedAt: null }, now, 90)).toBe(false);
-    expect(leaseIsStale({ status: "queued", heartbeatAt: new Date(now - 600_000), startedAt: null }, now, 90)).toBe(false);
-    expect(leaseIsStale({ status: "done", heartbeatAt: new Date(now - 600_000), startedAt: null }, now, 90)).toBe(false);
+    expect(
+      leaseIsStale({ status: "running", heartbeatAt: new Date(now - 91_000), startedAt: null }, now, 90),
+    ).toBe(true);
+    expect(
+      leaseIsStale({ status: "running", heartbeatAt: new Date(now - 89_000), startedAt: null }, now, 90),
+    ).toBe(false);
+    expect(
+      leaseIsStale({ status: "queued", heartbeatAt: new Date(now - 600_000), startedAt: null }, now, 90),
+    ).toBe(false);
+    expect(
+      leaseIsStale({ status: "done", heartbeatAt: new Date(now - 600_000), startedAt: null }, now, 90),
+    ).toBe(false);
     // Before its first heartbeat (a render started by an earlier version), its start counts.
-    expect(leaseIsStale({ status: "running", heartbeatAt: null, startedAt: new Date(now - 120_000).toISOString() }, now, 90)).toBe(true);
+    expect(
+      leaseIsStale(
+        { status: "running", heartbeatAt: null, startedAt: new Date(now - 120_000).toISOString() },
+        now,
+        90,
+      ),
+    ).toBe(true);
   });
   it("defaults to renewing every 10 s, stale after 90 s, swept every 30 s, and refuses nonsense", () => {
-    expect(leaseTimes({})).toEqual({ RENDER_HEARTBEAT_SECONDS: 10, RENDER_LEASE_STALE_SECONDS: 90, RENDER_SWEEP_SECONDS: 30 });
+    expect(leaseTimes({})).toEqual({
+      RENDER_HEARTBEAT_SECONDS: 10,
+      RENDER_LEASE_STALE_SECONDS: 90,
+      RENDER_SWEEP_SECONDS: 30,
+    });
     expect(leaseTimes({ RENDER_LEASE_STALE_SECONDS: "15" }).RENDER_LEASE_STALE_SECONDS).toBe(15);
     expect(() => leaseTimes({ RENDER_SWEEP_SECONDS: "0" })).toThrow();
   });
@@ -27,11 +45,27 @@ describe("the render lease", () => {
 
 describe("a database outage", () => {
   it("is told apart from a failed statement and answered as 503", () => {
-    expect(isDatabaseUnavailable(Object.assign(new Error("connect ECONNREFUSED 127.0.0.1:5432"), { code: "ECONNREFUSED" }))).toBe(true);
-    expect(isDatabaseUnavailable(Object.assign(new Error("terminating connection due to administrator command"), { code: "57P01" }))).toBe(true);
+    expect(
+      isDatabaseUnavailable(
+        Object.assign(new Error("connect ECONNREFUSED 127.0.0.1:5432"), { code: "ECONNREFUSED" }),
+      ),
+    ).toBe(true);
+    expect(
+      isDatabaseUnavailable(
+        Object.assign(new Error("terminating connection due to administrator command"), { code: "57P01" }),
+      ),
+    ).toBe(true);
     expect(isDatabaseUnavailable(new Error("Connection terminated unexpectedly"))).toBe(true);
-    expect(isDatabaseUnavailable(Object.assign(new AggregateError([Object.assign(new Error("x"), { code: "ECONNREFUSED" })]), {}))).toBe(true);
-    expect(isDatabaseUnavailable(Object.assign(new Error('duplicate key value violates unique constraint "x"'), { code: "23505" }))).toBe(false);
+    expect(
+      isDatabaseUnavailable(
+        Object.assign(new AggregateError([Object.assign(new Error("x"), { code: "ECONNREFUSED" })]), {}),
+      ),
+    ).toBe(true);
+    expect(
+      isDatabaseUnavailable(
+        Object.assign(new Error('duplicate key value violates unique constraint "x"'), { code: "23505" }),
+      ),
+    ).toBe(false);
     const e = toAppError(Object.assign(new Error("refused"), { code: "ECONNREFUSED" }));
     expect(e.status).toBe(503);
     expect(e.message).toMatch(/database is unavailable/);

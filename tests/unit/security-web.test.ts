@@ -35,7 +35,10 @@ describe("where a state-changing request comes from", () => {
       { referer: "http://evil.example/127.0.0.1:3100" },
       { referer: "not a url" },
     ]) {
-      expect(checkSameOrigin(h(headers), app), JSON.stringify(headers)).toEqual({ ok: false, reason: "cross-site" });
+      expect(checkSameOrigin(h(headers), app), JSON.stringify(headers)).toEqual({
+        ok: false,
+        reason: "cross-site",
+      });
     }
   });
 
@@ -47,7 +50,9 @@ describe("where a state-changing request comes from", () => {
 describe("sign-in's next", () => {
   it("keeps same-origin paths with their query and fragment", () => {
     expect(safeNextPath("/catalogue?q=Path%C3%A9&page=2#top")).toBe("/catalogue?q=Path%C3%A9&page=2#top");
-    expect(safeNextPath("/review/00000000-0000-4000-8000-000000000000")).toBe("/review/00000000-0000-4000-8000-000000000000");
+    expect(safeNextPath("/review/00000000-0000-4000-8000-000000000000")).toBe(
+      "/review/00000000-0000-4000-8000-000000000000",
+    );
     expect(safeNextPath("/a/../people")).toBe("/people");
   });
 
@@ -89,12 +94,21 @@ describe("sign-in's next", () => {
 describe("single-use links as the app shows mail", () => {
   it("hides the token of a reset or invitation link and leaves the rest of the text", () => {
     const token = "Ab3_-xYz0123456789abcdefghijklmnopqrstuvwxyzA";
-    const mail = passwordResetMail({ to: "a@lab.example", labName: "Lab", link: `${app}/reset/${token}`, expiresAt: new Date(0) });
+    const mail = passwordResetMail({
+      to: "a@lab.example",
+      labName: "Lab",
+      link: `${app}/reset/${token}`,
+      expiresAt: new Date(0),
+    });
     const shown = redactSingleUseLinks(mail.text);
     expect(shown).not.toContain(token);
     expect(shown).toContain(`${app}/reset/${hiddenToken}`);
-    expect(redactSingleUseLinks(`Open ${app}/invite/${token} now`)).toBe(`Open ${app}/invite/${hiddenToken} now`);
-    expect(redactSingleUseLinks("Side A of /reset/short is in review.")).toBe("Side A of /reset/short is in review.");
+    expect(redactSingleUseLinks(`Open ${app}/invite/${token} now`)).toBe(
+      `Open ${app}/invite/${hiddenToken} now`,
+    );
+    expect(redactSingleUseLinks("Side A of /reset/short is in review.")).toBe(
+      "Side A of /reset/short is in review.",
+    );
   });
 });
 
@@ -109,7 +123,17 @@ describe("PREMIS for any stored text", () => {
     const xml = premisXml({
       entities: [{ identifier: `VB\u000b1`, type: "Rillbook shelf mark", name: odd }],
       files: [],
-      events: [{ id: "e1", type: "creation", at: "2026-12-03T10:00:00Z", detail: odd, outcome: "success", agent: null, objects: [{ type: "t", value: odd }] }],
+      events: [
+        {
+          id: "e1",
+          type: "creation",
+          at: "2026-12-03T10:00:00Z",
+          detail: odd,
+          outcome: "success",
+          agent: null,
+          objects: [{ type: "t", value: odd }],
+        },
+      ],
       agents: [{ id: "a1", name: odd, type: "person" }],
     });
     const dir = await mkdtemp(path.join(os.tmpdir(), "rillbook-premis-"));
@@ -123,12 +147,18 @@ describe("PREMIS for any stored text", () => {
 
 describe("bad text in inputs", () => {
   it("names every place that holds a NUL or a lone surrogate", () => {
-    expect(findBadText({ q: "\u0000", sides: [{ title: "ok" }, { title: "a\ud800" }], fine: "Pathé 😀" })).toEqual(["q", "sides.1.title"]);
+    expect(
+      findBadText({ q: "\u0000", sides: [{ title: "ok" }, { title: "a\ud800" }], fine: "Pathé 😀" }),
+    ).toEqual(["q", "sides.1.title"]);
   });
 });
 
 describe("the Content-Security-Policy", () => {
-  const bucket = bucketOrigins({ s3Endpoint: "http://127.0.0.1:54321", bucket: "rillbook", forcePathStyle: true });
+  const bucket = bucketOrigins({
+    s3Endpoint: "http://127.0.0.1:54321",
+    bucket: "rillbook",
+    forcePathStyle: true,
+  });
   it("lets scripts run only with the nonce, lets the bucket in for uploads and playback, and forbids framing", () => {
     const p = pagePolicy({ nonce: "abc", development: false, bucketOrigins: bucket, https: false });
     expect(p).toContain("script-src 'self' 'nonce-abc' 'strict-dynamic' 'wasm-unsafe-eval';");
@@ -140,7 +170,11 @@ describe("the Content-Security-Policy", () => {
   });
 
   it("allows eval only in development, and upgrades requests under https", () => {
-    expect(pagePolicy({ nonce: "abc", development: true, bucketOrigins: bucket, https: true })).toMatch(/'unsafe-eval'.*upgrade-insecure-requests/);
-    expect(bucketOrigins({ s3Endpoint: "https://s3.example.org", bucket: "lab", forcePathStyle: false })).toEqual(["https://s3.example.org", "https://lab.s3.example.org"]);
+    expect(pagePolicy({ nonce: "abc", development: true, bucketOrigins: bucket, https: true })).toMatch(
+      /'unsafe-eval'.*upgrade-insecure-requests/,
+    );
+    expect(
+      bucketOrigins({ s3Endpoint: "https://s3.example.org", bucket: "lab", forcePathStyle: false }),
+    ).toEqual(["https://s3.example.org", "https://lab.s3.example.org"]);
   });
 });

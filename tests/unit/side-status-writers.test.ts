@@ -33,7 +33,9 @@ export function sideWrites(text: string): string[] {
     const rest = text.slice(m.index!);
     const end = rest.search(/\.execute(TakeFirst(OrThrow)?)?\(/);
     const statement = rest.slice(0, end === -1 ? 600 : end);
-    const setPart = (statement.match(/\.(set|values)\(([\s\S]*)$/)?.[2] ?? "").split(/\.(where|returning|onConflict)\(/)[0];
+    const setPart = (statement.match(/\.(set|values)\(([\s\S]*)$/)?.[2] ?? "").split(
+      /\.(where|returning|onConflict)\(/,
+    )[0];
     if (guarded.test(setPart)) found.push(statement.replace(/\s+/g, " ").slice(0, 160));
   }
   // SQL: UPDATE sides … SET … status, and INSERT INTO sides (… status …).
@@ -48,12 +50,28 @@ export function sideWrites(text: string): string[] {
 
 describe("who writes a side's status", () => {
   it("the detector finds writes in every form it looks for, and passes over others", () => {
-    expect(sideWrites(`await trx.updateTable("sides").set({ status: "approved" }).where("id", "=", id).execute();`)).toHaveLength(1);
-    expect(sideWrites(`await db.updateTable("sides as s").set({ current_render_id: null }).execute()`)).toHaveLength(1);
-    expect(sideWrites(`await trx.insertInto("sides").values({ disc_id, designation, status: "rendered" }).execute()`)).toHaveLength(1);
-    expect(sideWrites("await sql`UPDATE sides SET status = 'approved' WHERE id = ${id}`.execute(db)")).toHaveLength(1);
+    expect(
+      sideWrites(
+        `await trx.updateTable("sides").set({ status: "approved" }).where("id", "=", id).execute();`,
+      ),
+    ).toHaveLength(1);
+    expect(
+      sideWrites(`await db.updateTable("sides as s").set({ current_render_id: null }).execute()`),
+    ).toHaveLength(1);
+    expect(
+      sideWrites(
+        `await trx.insertInto("sides").values({ disc_id, designation, status: "rendered" }).execute()`,
+      ),
+    ).toHaveLength(1);
+    expect(
+      sideWrites("await sql`UPDATE sides SET status = 'approved' WHERE id = ${id}`.execute(db)"),
+    ).toHaveLength(1);
     expect(sideWrites("INSERT INTO sides (disc_id, status) VALUES ($1, $2)")).toHaveLength(1);
-    expect(sideWrites(`await trx.updateTable("sides").set({ title: "Blue Hour", version: 3 }).where("status", "=", "assigned").execute()`)).toHaveLength(0);
+    expect(
+      sideWrites(
+        `await trx.updateTable("sides").set({ title: "Blue Hour", version: 3 }).where("status", "=", "assigned").execute()`,
+      ),
+    ).toHaveLength(0);
     expect(sideWrites(`await trx.updateTable("renders").set({ status: "done" }).execute()`)).toHaveLength(0);
   });
 
@@ -63,7 +81,8 @@ describe("who writes a side's status", () => {
     const offenders: string[] = [];
     for (const file of files) {
       if (file.startsWith(owner + path.sep) || exempt.has(file)) continue;
-      for (const w of sideWrites(await fs.readFile(path.join(root, file), "utf8"))) offenders.push(`${file}: ${w}`);
+      for (const w of sideWrites(await fs.readFile(path.join(root, file), "utf8")))
+        offenders.push(`${file}: ${w}`);
     }
     expect(offenders).toEqual([]);
     // …and lib/sides does write them (so the rule is about something real).

@@ -10,10 +10,14 @@ export default function ResetRequestPage() {
     <div className="space-y-8">
       <div className="space-y-2">
         <h1 className="text-3xl font-semibold">Forgotten password</h1>
-        <p className="text-ink-soft">Enter the address you sign in with. We will send a link to choose a new password.</p>
+        <p className="text-ink-soft">
+          Enter the address you sign in with. We will send a link to choose a new password.
+        </p>
       </div>
       <ResetRequestForm action={requestResetAction} />
-      <Link href="/sign-in" className="text-sm underline underline-offset-4">Back to sign-in</Link>
+      <Link href="/sign-in" className="text-sm underline underline-offset-4">
+        Back to sign-in
+      </Link>
     </div>
   );
 }

@@ -9,7 +9,10 @@ export default async function BenchPage() {
   await requirePageAccess("bench:use");
   return (
     <>
-      <PageHeader title="Transfer bench" lead="Open a side to choose its curve, upload the flat transfer, listen through the candidates and render the access copy." />
+      <PageHeader
+        title="Transfer bench"
+        lead="Open a side to choose its curve, upload the flat transfer, listen through the candidates and render the access copy."
+      />
       <QueueTable />
     </>
   );

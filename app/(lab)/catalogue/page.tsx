@@ -32,7 +32,10 @@ export default async function CataloguePage() {
         }
       />
       <Suspense>
-        <CatalogueTable canAssign={can(user.role, "catalogue:assign")} self={user.role === "engineer" ? { id: user.id, name: user.name } : null} />
+        <CatalogueTable
+          canAssign={can(user.role, "catalogue:assign")}
+          self={user.role === "engineer" ? { id: user.id, name: user.name } : null}
+        />
       </Suspense>
     </>
   );

@@ -13,14 +13,35 @@ export type SavePresetResult =
  * Saves the workbench's curve: as a new preset (no presetId) or as a new version of an
  * existing one. A change note is required either way.
  */
-export async function savePresetAction(input: { presetId?: string; name: string; spec: CurveSpec; notes: string; changeNote: string }): Promise<SavePresetResult> {
+export async function savePresetAction(input: {
+  presetId?: string;
+  name: string;
+  spec: CurveSpec;
+  notes: string;
+  changeNote: string;
+}): Promise<SavePresetResult> {
   try {
     const actor = await requirePermission("curves:edit");
     const saved = input.presetId
-      ? await updatePreset(actor, input.presetId, { name: input.name, spec: input.spec, notes: input.notes, changeNote: input.changeNote })
-      : await createPreset(actor, { name: input.name, spec: input.spec, notes: input.notes, changeNote: input.changeNote });
+      ? await updatePreset(actor, input.presetId, {
+          name: input.name,
+          spec: input.spec,
+          notes: input.notes,
+          changeNote: input.changeNote,
+        })
+      : await createPreset(actor, {
+          name: input.name,
+          spec: input.spec,
+          notes: input.notes,
+          changeNote: input.changeNote,
+        });
     revalidatePath("/curves");
-    return { ok: true, presetId: saved.id, version: saved.currentVersion, message: `Saved "${saved.name}" as version ${saved.currentVersion}.` };
+    return {
+      ok: true,
+      presetId: saved.id,
+      version: saved.currentVersion,
+      message: `Saved "${saved.name}" as version ${saved.currentVersion}.`,
+    };
   } catch (err) {
     const e = toAppError(err);
     return { ok: false, message: e.message, fields: e.fields };

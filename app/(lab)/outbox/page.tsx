@@ -9,7 +9,10 @@ export default async function OutboxPage() {
   await requirePageAccess("outbox:read");
   return (
     <>
-      <PageHeader title="Outbox" lead="Every message the lab sends is kept here first, then sent by the worker; a mail server that is down delays mail but loses none." />
+      <PageHeader
+        title="Outbox"
+        lead="Every message the lab sends is kept here first, then sent by the worker; a mail server that is down delays mail but loses none."
+      />
       <OutboxTable />
     </>
   );

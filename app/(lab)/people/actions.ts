@@ -7,11 +7,14 @@ import { invitePerson } from "@/lib/people/invitations";
 
 export async function inviteAction(_prev: ActionState, form: FormData): Promise<ActionState> {
   const v = formValues(form);
-  const state = await runAction(async () => {
-    const actor = await requirePermission("people:manage");
-    await invitePerson(actor, { email: v.email, role: v.role });
-    return `Invitation sent to ${v.email.trim().toLowerCase()}. The link works once, for 72 hours.`;
-  }, { email: v.email ?? "", role: v.role ?? "" });
+  const state = await runAction(
+    async () => {
+      const actor = await requirePermission("people:manage");
+      await invitePerson(actor, { email: v.email, role: v.role });
+      return `Invitation sent to ${v.email.trim().toLowerCase()}. The link works once, for 72 hours.`;
+    },
+    { email: v.email ?? "", role: v.role ?? "" },
+  );
   revalidatePath("/people");
   return state;
 }

@@ -11,7 +11,10 @@ export default async function PeoplePage() {
   const user = await requirePageAccess("people:read");
   return (
     <>
-      <PageHeader title="People" lead="Who works in the lab, in which role. Changes take effect at the person's next request and are recorded." />
+      <PageHeader
+        title="People"
+        lead="Who works in the lab, in which role. Changes take effect at the person's next request and are recorded."
+      />
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_22rem]">
         <div className="space-y-6">
           <PeopleTable currentUserId={user.id} />

@@ -9,7 +9,10 @@ export default async function QueuePage() {
   await requirePageAccess("bench:use");
   return (
     <>
-      <PageHeader title="My queue" lead="The sides assigned to you that still need work. Returned sides come first, with the reviewer's reason." />
+      <PageHeader
+        title="My queue"
+        lead="The sides assigned to you that still need work. Returned sides come first, with the reviewer's reason."
+      />
       <QueueTable />
     </>
   );

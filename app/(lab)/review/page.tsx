@@ -10,7 +10,10 @@ export default async function ReviewPage() {
   await requirePageAccess("review:decide");
   return (
     <>
-      <PageHeader title="Review" lead="Sides whose engineer has sent them for review. Open one to check the curve, the files and their fixity, listen, then approve it or send it back with a reason." />
+      <PageHeader
+        title="Review"
+        lead="Sides whose engineer has sent them for review. Open one to check the curve, the files and their fixity, listen, then approve it or send it back with a reason."
+      />
       <Suspense fallback={<p className="text-sm text-ink-faint">Loading…</p>}>
         <ReviewQueue />
       </Suspense>

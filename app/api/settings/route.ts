@@ -5,4 +5,6 @@ export const dynamic = "force-dynamic";
 
 export const GET = route("GET /api/settings", async () => getSettings());
 
-export const PATCH = route("PATCH /api/settings", async (req, { user }) => updateSettings(user, await req.json().catch(() => ({}))));
+export const PATCH = route("PATCH /api/settings", async (req, { user }) =>
+  updateSettings(user, await req.json().catch(() => ({}))),
+);

@@ -17,8 +17,12 @@ export default async function InvitationPage({ params }: { params: Promise<{ tok
     return (
       <div className="space-y-6">
         <h1 className="text-3xl font-semibold">Invitation</h1>
-        <Notice tone="error" title="This link cannot be used">{invitationProblems[inv.state]}</Notice>
-        <Link href="/sign-in" className="text-sm underline underline-offset-4">Go to sign-in</Link>
+        <Notice tone="error" title="This link cannot be used">
+          {invitationProblems[inv.state]}
+        </Notice>
+        <Link href="/sign-in" className="text-sm underline underline-offset-4">
+          Go to sign-in
+        </Link>
       </div>
     );
   }
@@ -28,11 +32,16 @@ export default async function InvitationPage({ params }: { params: Promise<{ tok
         <p className="text-sm font-medium uppercase tracking-wider text-shellac">{env().LAB_NAME}</p>
         <h1 className="text-3xl font-semibold">Join the lab</h1>
         <p className="text-ink-soft">
-          You are invited as <strong>{roleLabels[inv.role].toLowerCase()}</strong> with the address <strong>{inv.email}</strong>. Choose the name your
-          colleagues will see and a password.
+          You are invited as <strong>{roleLabels[inv.role].toLowerCase()}</strong> with the address{" "}
+          <strong>{inv.email}</strong>. Choose the name your colleagues will see and a password.
         </p>
       </div>
-      <NewPasswordForm action={acceptInvitationAction} token={token} askName submitLabel="Create my account" />
+      <NewPasswordForm
+        action={acceptInvitationAction}
+        token={token}
+        askName
+        submitLabel="Create my account"
+      />
     </div>
   );
 }

@@ -18,8 +18,12 @@ export default async function ResetPage({ params }: { params: Promise<{ token: s
         <NewPasswordForm action={resetPasswordAction} token={token} submitLabel="Save the new password" />
       ) : (
         <>
-          <Notice tone="error" title="This link cannot be used">{resetProblems[state]}</Notice>
-          <Link href="/reset" className="text-sm underline underline-offset-4">Ask for a new link</Link>
+          <Notice tone="error" title="This link cannot be used">
+            {resetProblems[state]}
+          </Notice>
+          <Link href="/reset" className="text-sm underline underline-offset-4">
+            Ask for a new link
+          </Link>
         </>
       )}
     </div>

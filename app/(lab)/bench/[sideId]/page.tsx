@@ -6,7 +6,13 @@ export const metadata: Metadata = { title: "Transfer bench" };
 
 const UUID = /^[0-9a-f-]{36}$/i;
 
-export default async function BenchSidePage({ params, searchParams }: { params: Promise<{ sideId: string }>; searchParams: Promise<{ sides?: string }> }) {
+export default async function BenchSidePage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ sideId: string }>;
+  searchParams: Promise<{ sides?: string }>;
+}) {
   const user = await requirePageAccess("bench:use");
   const { sideId } = await params;
   // ?sides=id,id: sides picked in the catalogue that one curve choice may cover together.

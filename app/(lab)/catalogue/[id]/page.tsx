@@ -30,7 +30,12 @@ export default async function DiscPage({ params }: { params: Promise<{ id: strin
           ) : null
         }
       />
-      <DiscDetail initial={disc} steps={transitions} user={{ id: user.id, role: user.role }} canAssign={can(user.role, "catalogue:assign")} />
+      <DiscDetail
+        initial={disc}
+        steps={transitions}
+        user={{ id: user.id, role: user.role }}
+        canAssign={can(user.role, "catalogue:assign")}
+      />
     </>
   );
 }

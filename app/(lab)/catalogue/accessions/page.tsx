@@ -10,7 +10,11 @@ export default async function AccessionsPage() {
   const user = await requirePageAccess("catalogue:read");
   return (
     <>
-      <PageHeader back={{ href: "/catalogue", label: "Catalogue" }} title="Accessions" lead="Each batch of discs the lab received: where it came from and when. Open one to see its discs in the catalogue." />
+      <PageHeader
+        back={{ href: "/catalogue", label: "Catalogue" }}
+        title="Accessions"
+        lead="Each batch of discs the lab received: where it came from and when. Open one to see its discs in the catalogue."
+      />
       <AccessionsView canEdit={can(user.role, "catalogue:edit")} />
     </>
   );

@@ -20,7 +20,11 @@ export default async function ImportPage() {
       />
       <ImportPanel
         accessions={accessions.map((a) => ({ id: a.id, identifier: a.identifier, source: a.source }))}
-        columns={catalogueColumnSpecs.map((c) => ({ name: c.name, hint: c.hint, required: "required" in c && c.required === true }))}
+        columns={catalogueColumnSpecs.map((c) => ({
+          name: c.name,
+          hint: c.hint,
+          required: "required" in c && c.required === true,
+        }))}
         templateCsv={catalogueTemplateCsv()}
         maxRows={maxImportRows}
       />

@@ -9,7 +9,15 @@ export const dynamic = "force-dynamic";
 export const POST = route("POST /api/curves/fit", async (req) => {
   const body = fitRequestSchema.parse(await req.json().catch(() => ({})));
   try {
-    return { fit: fitCurve({ points: body.points, kind: body.kind, fit: body.fit, initial: body.initial, levelOffsetDb: body.levelOffsetDb }) };
+    return {
+      fit: fitCurve({
+        points: body.points,
+        kind: body.kind,
+        fit: body.fit,
+        initial: body.initial,
+        levelOffsetDb: body.levelOffsetDb,
+      }),
+    };
   } catch (err) {
     throw asCurveAppError(err, "fit");
   }

@@ -7,7 +7,9 @@ export const dynamic = "force-dynamic";
 
 /** A curve and a sample rate → poles, zeros, K, the response table, asymptotes, peak gain and the digital filters. */
 export const POST = route("POST /api/curves/response", async (req) => {
-  const { spec, sampleRateHz, frequenciesHz, renderFilter } = responseRequestSchema.parse(await req.json().catch(() => ({})));
+  const { spec, sampleRateHz, frequenciesHz, renderFilter } = responseRequestSchema.parse(
+    await req.json().catch(() => ({})),
+  );
   try {
     const description = describeCurve(spec, sampleRateHz);
     const freqs = frequenciesHz ?? [20, 50, 100, 200, 500, 1000, 2000, 5000, 10_000, 20_000];

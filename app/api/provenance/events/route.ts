@@ -3,4 +3,6 @@ import { listEvents } from "@/lib/provenance/audit";
 
 export const dynamic = "force-dynamic";
 
-export const GET = route("GET /api/provenance/events", async (req) => ({ events: await listEvents(Object.fromEntries(req.nextUrl.searchParams)) }));
+export const GET = route("GET /api/provenance/events", async (req) => ({
+  events: await listEvents(Object.fromEntries(req.nextUrl.searchParams)),
+}));

@@ -11,5 +11,7 @@ export const dynamic = "force-dynamic";
  * last run and the newest checkpoint instead.
  */
 export const GET = route("GET /api/provenance/verify", async (req, { user }) =>
-  req.nextUrl.searchParams.get("last") ? { last: (await lastChainCheck()) ?? null, lastCheckpoint: (await lastCheckpoint(db)) ?? null } : runChainCheck(user),
+  req.nextUrl.searchParams.get("last")
+    ? { last: (await lastChainCheck()) ?? null, lastCheckpoint: (await lastCheckpoint(db)) ?? null }
+    : runChainCheck(user),
 );

@@ -3,4 +3,6 @@ import { route } from "@/lib/http/route";
 
 export const dynamic = "force-dynamic";
 
-export const GET = route("GET /api/sides/[id]", async (_req, { params }) => getSideWithDisc(String(params.id)));
+export const GET = route("GET /api/sides/[id]", async (_req, { params }) =>
+  getSideWithDisc(String(params.id)),
+);

@@ -14,7 +14,11 @@ export default async function EditDiscPage({ params }: { params: Promise<{ id: s
   const disc = await loadDisc((await params).id);
   return (
     <>
-      <PageHeader back={{ href: `/catalogue/${disc.id}`, label: disc.shelfMark }} title={`Edit ${disc.shelfMark}`} lead="If someone else saves this disc while you work, you will see their change beside yours before anything is overwritten." />
+      <PageHeader
+        back={{ href: `/catalogue/${disc.id}`, label: disc.shelfMark }}
+        title={`Edit ${disc.shelfMark}`}
+        lead="If someone else saves this disc while you work, you will see their change beside yours before anything is overwritten."
+      />
       <DiscForm initial={disc} />
     </>
   );

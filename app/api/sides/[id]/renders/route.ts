@@ -3,4 +3,6 @@ import { listRenders } from "@/lib/transfers/renders";
 
 export const dynamic = "force-dynamic";
 
-export const GET = route("GET /api/sides/[id]/renders", async (_req, { params }) => ({ renders: await listRenders(String(params.id)) }));
+export const GET = route("GET /api/sides/[id]/renders", async (_req, { params }) => ({
+  renders: await listRenders(String(params.id)),
+}));

@@ -3,4 +3,6 @@ import { listPresetVersions } from "@/lib/presets";
 
 export const dynamic = "force-dynamic";
 
-export const GET = route("GET /api/curves/presets/[id]/versions", async (_req, { params }) => ({ versions: await listPresetVersions(String(params.id)) }));
+export const GET = route("GET /api/curves/presets/[id]/versions", async (_req, { params }) => ({
+  versions: await listPresetVersions(String(params.id)),
+}));

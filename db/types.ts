@@ -284,6 +284,8 @@ export interface RendersTable {
   heartbeat_at: Generated<Date | null>;
   /** The worker holding the running render's lease. */
   lease_owner: Generated<string | null>;
+  /** The worker that made and recorded the access copy (host:pid:random). */
+  worker_identity: Generated<string | null>;
 }
 
 export interface ReviewsTable {
@@ -317,6 +319,8 @@ export interface FixityChecksTable {
   checked_at: DefaultTimestamp;
   acknowledged_by: string | null;
   acknowledged_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  /** The worker that read the object back (host:pid:random); null for checks made elsewhere. */
+  worker_identity: Generated<string | null>;
 }
 
 export interface ChainChecksTable {

@@ -12,6 +12,7 @@ import {
   CHAIN_CHECKPOINT_QUEUE,
   createBoss,
   createMissingQueues,
+  FIXITY_BATCH,
   FIXITY_QUEUE,
   FIXITY_SWEEP_CRON,
   FIXITY_SWEEP_QUEUE,
@@ -100,12 +101,26 @@ async function main(): Promise<void> {
       await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
     if (due.length) console.log(`[worker] fixity sweep queued ${due.length} objects`);
   });
+  // Checks are taken a batch at a time (pg-boss fetches once a second per worker), each
+  // recorded on its own: one that fails is handed back for its retry alone, the others complete.
   await boss.work<{ kind: StoredObjectKind; id: string }>(
     FIXITY_QUEUE,
-    { batchSize: 1, pollingIntervalSeconds: 1 },
-    async ([job]) => {
-      const outcome = await checkObject(db, job.data.kind, job.data.id);
-      console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
+    { batchSize: FIXITY_BATCH, pollingIntervalSeconds: 1 },
+    async (jobs) => {
+      for (const job of jobs) {
+        try {
+          const outcome = await checkObject(db, job.data.kind, job.data.id, { worker: workerIdentity });
+          console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
+        } catch (err) {
+          console.error(
+            `[worker] fixity ${job.data.kind} ${job.data.id} failed:`,
+            err instanceof Error ? err.message : err,
+          );
+          await boss.fail(FIXITY_QUEUE, job.id, {
+            message: err instanceof Error ? err.message : String(err),
+          });
+        }
+      }
     },
   );
   // The provenance chain is anchored daily, and whenever a curator or an admin asks: a
@@ -133,6 +148,7 @@ async function main(): Promise<void> {
       console.log(`[worker] chain checkpoint: ${outcome.status}${detail}`);
     },
   );
+  console.log("[worker] ready: working the render, fixity and checkpoint queues");
   await Promise.all([mailLoop(), leaseSweepLoop()]);
 }
 

@@ -242,12 +242,26 @@ export function RenderPanel({
                 ) : null}
               </div>
               {r.status === "queued" || r.status === "running" ? (
-                <div className="mt-2">
-                  <ProgressBar
-                    value={r.progress}
-                    label={r.status === "queued" ? "Waiting for the worker" : "Rendering"}
-                    testId="render-progress"
-                  />
+                <div className="mt-2 flex items-center gap-3">
+                  <div className="min-w-0 flex-1">
+                    <ProgressBar
+                      value={r.progress}
+                      label={r.status === "queued" ? "Waiting for the worker" : "Rendering"}
+                      testId="render-progress"
+                    />
+                  </div>
+                  {canRender && !r.stalled ? (
+                    <Button
+                      type="button"
+                      size="sm"
+                      variant="secondary"
+                      onClick={() => void cancel(r.id)}
+                      disabled={busy}
+                      data-testid="render-cancel-running"
+                    >
+                      Cancel
+                    </Button>
+                  ) : null}
                 </div>
               ) : null}
               {r.status === "done" ? (

@@ -116,12 +116,14 @@ async function findObject(
 /**
  * Re-reads one object (streaming, bounded memory), compares its SHA-256 with the one
  * recorded when it was stored, and records the result and its event together. A
- * failure also mails every active curator through the outbox.
+ * failure also mails every active curator through the outbox. `worker` names the worker
+ * process that read it, recorded with the result.
  */
 export async function checkObject(
   db: Kysely<Database>,
   kind: StoredObjectKind,
   id: string,
+  opts: { worker?: string } = {},
 ): Promise<FixityOutcome> {
   const obj = await findObject(db, kind, id);
   if (!obj) return "missing";
@@ -157,6 +159,7 @@ export async function checkObject(
         bytes,
         outcome,
         detail,
+        worker_identity: opts.worker ?? null,
       })
       .execute();
     const side = await trx

@@ -6,6 +6,8 @@ export const RENDER_QUEUE = "render";
 /** One job per stored object to re-read; the sweep queues them on the admin's cycle. */
 export const FIXITY_QUEUE = "fixity-check";
 export const FIXITY_SWEEP_QUEUE = "fixity-sweep";
+/** Fixity checks a worker takes at each fetch: a check of a small object is quick, and pg-boss fetches once a second. */
+export const FIXITY_BATCH = 10;
 /** The sweep runs every hour and queues what has come due. */
 export const FIXITY_SWEEP_CRON = "7 * * * *";
 

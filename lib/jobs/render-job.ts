@@ -5,7 +5,7 @@ import { createHash } from "node:crypto";
 import { createReadStream, promises as fs } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { PutObjectCommand } from "@aws-sdk/client-s3";
+import { DeleteObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
 import { type Kysely, sql } from "kysely";
 import type { Database } from "../../db/types";
 import { readWavHeader, renderAccessCopy } from "../audio";
@@ -23,7 +23,7 @@ import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../
 import { objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { softwareName } from "../version";
-import { leaseTimes, renderTmpPrefix, workerIdentity } from "./render-lease";
+import { accessCopyKey, leaseTimes, renderTmpPrefix, workerIdentity } from "./render-lease";
 
 /** The curve as the coding history records it: each corner's time constant as the filter uses it. */
 function curveText(c: ResolvedCurve): string {
@@ -42,7 +42,23 @@ export interface RenderJobContext {
   finalAttempt: boolean;
 }
 
-export async function runRenderJob(renderId: string, ctx: RenderJobContext): Promise<"done" | "skipped"> {
+/** The render lost its lease while it ran: cancelled by the engineer, or handed back after this worker stalled. */
+class LeaseLost extends Error {
+  constructor() {
+    super("The render's lease was lost (cancelled, or handed back to the queue): stopped.");
+    this.name = "LeaseLost";
+  }
+}
+
+/**
+ * Runs one render. "done": recorded; "skipped": nothing to do (finished, cancelled or held
+ * by another worker already); "stopped": it lost its lease while running (the engineer
+ * cancelled it, or it was handed back) and stopped, leaving no file and recording nothing.
+ */
+export async function runRenderJob(
+  renderId: string,
+  ctx: RenderJobContext,
+): Promise<"done" | "skipped" | "stopped"> {
   const { db } = ctx;
   const job = await db
     .selectFrom("renders as r")
@@ -115,11 +131,18 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       .where("status", "=", "running")
       .where("lease_owner", "=", owner)
       .executeTakeFirst();
-  // The lease is renewed while the render runs; a lost lease (cancelled, or handed back
-  // after this worker stalled) is noticed here and before anything is stored.
+  // The lease is renewed while the render runs. A lost lease (the engineer cancelled the
+  // render, or it was handed back after this worker stalled) is noticed at the renewal or
+  // at the next progress write, whichever comes first: the render stops between blocks,
+  // an upload under way is aborted, and nothing more is recorded.
   const tmp = await fs.mkdtemp(path.join(os.tmpdir(), renderTmpPrefix()));
   const outputPath = path.join(tmp, "access.wav");
-  let leaseLost = false;
+  const lease = new AbortController();
+  const loseLease = () => {
+    if (!lease.signal.aborted) lease.abort(new LeaseLost());
+  };
+  const key = accessCopyKey(job.sideId, renderId);
+  let stored = false;
   const heartbeat = setInterval(() => {
     db.updateTable("renders")
       .set({ heartbeat_at: new Date() })
@@ -128,7 +151,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       .where("lease_owner", "=", owner)
       .executeTakeFirst()
       .then((r) => {
-        if (Number(r.numUpdatedRows) === 0) leaseLost = true;
+        if (Number(r.numUpdatedRows) === 0) loseLease();
       })
       .catch((err) =>
         console.error(
@@ -173,7 +196,9 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       },
       unicodeText: { project: env().LAB_NAME, note: description },
       equalization: { curve: curveText(curve), speedRatio: curve.speedRatio, software: softwareName() },
+      // Called between blocks: an error thrown here ends the render and removes its file.
       onProgress: (fraction) => {
+        if (lease.signal.aborted) throw lease.signal.reason;
         const t = Date.now();
         if (t - lastWrite < 500 && fraction < 1) return;
         lastWrite = t;
@@ -182,15 +207,18 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
           .where("id", "=", renderId)
           .where("status", "=", "running")
           .where("lease_owner", "=", owner)
-          .execute()
+          .executeTakeFirst()
+          .then((r) => {
+            if (Number(r.numUpdatedRows) === 0) loseLease();
+          })
           .catch(() => undefined);
       },
     });
     // The key is the server's own, the same on every attempt. The access copy goes up in
     // one PutObject of the finished file: the bucket stores an object only when the whole
     // body arrived, so a worker killed during the upload leaves no partial object.
-    const key = `access/${job.sideId}/${renderId}.wav`;
-    if (leaseLost || !(await held())) return "skipped";
+    if (lease.signal.aborted || !(await held())) throw new LeaseLost();
+    stored = true;
     await s3().send(
       new PutObjectCommand({
         Bucket: env().S3_BUCKET,
@@ -199,6 +227,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
         ContentLength: result.outputBytes,
         ContentType: "audio/wav",
       }),
+      { abortSignal: lease.signal },
     );
     const iir = designIirFromModel(model, job.sampleRateHz);
     const filterRecord: StoredRenderFilter = {
@@ -233,6 +262,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
           filter: JSON.stringify(filterRecord),
           finished_at: new Date(),
           lease_owner: null,
+          worker_identity: owner,
         })
         .where("id", "=", renderId)
         .where("status", "=", "running")
@@ -274,8 +304,16 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       );
       return true;
     });
-    return recorded ? "done" : "skipped";
+    if (!recorded) throw new LeaseLost();
+    return "done";
   } catch (err) {
+    if (err instanceof LeaseLost || lease.signal.aborted) {
+      // Cancelled or handed back while running: stop quietly (the queue's job is complete;
+      // a handed-back render has a job of its own again). The object, if it went up, is
+      // removed unless another worker now holds the render and will store the same key.
+      if (stored) await removeUnrecorded(db, renderId, key);
+      return "stopped";
+    }
     const message = err instanceof Error ? err.message : String(err);
     await db
       .updateTable("renders")
@@ -290,9 +328,27 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       .where("lease_owner", "=", owner)
       .execute()
       .catch(() => undefined);
+    if (stored && ctx.finalAttempt) await removeUnrecorded(db, renderId, key);
     throw err;
   } finally {
     clearInterval(heartbeat);
     await fs.rm(tmp, { recursive: true, force: true });
+  }
+}
+
+/**
+ * Removes an access copy this worker stored but did not record, when the render will never
+ * be recorded (cancelled or failed). A render queued again or running elsewhere keeps the
+ * key: its worker stores the same bytes there; a done one is someone's record.
+ */
+async function removeUnrecorded(db: Kysely<Database>, renderId: string, key: string): Promise<void> {
+  try {
+    const row = await db.selectFrom("renders").select("status").where("id", "=", renderId).executeTakeFirst();
+    if (row && row.status !== "cancelled" && row.status !== "failed") return;
+    await s3().send(new DeleteObjectCommand({ Bucket: env().S3_BUCKET, Key: key }));
+  } catch (err) {
+    console.error(
+      `[render ${renderId}] could not remove its unrecorded object ${key}: ${err instanceof Error ? err.message : String(err)}`,
+    );
   }
 }

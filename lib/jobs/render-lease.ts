@@ -72,6 +72,11 @@ export async function releaseStaleRenders(db: Kysely<Database>, staleSeconds: nu
   return rows.map((r) => r.id);
 }
 
+/** Where a render's access copy is stored: the server's own key, the same on every attempt. */
+export function accessCopyKey(sideId: string, renderId: string): string {
+  return `access/${sideId}/${renderId}.wav`;
+}
+
 /** The prefix of a render's temporary folder: names the worker's PID, so a later worker knows whose it was. */
 export function renderTmpPrefix(pid = process.pid): string {
   return `rillbook-render-${pid}-`;

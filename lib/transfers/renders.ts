@@ -9,10 +9,11 @@ import { env } from "../env";
 import { attachmentDisposition } from "../http/content-disposition";
 import { AppError } from "../http/errors";
 import { RENDER_QUEUE } from "../jobs/boss";
-import { leaseIsStale } from "../jobs/render-lease";
+import { accessCopyKey, leaseIsStale } from "../jobs/render-lease";
 import { sendInTransaction } from "../jobs/web-boss";
 import { appendEvent } from "../provenance";
 import { lockSide } from "../sides/lifecycle";
+import { deleteObject } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { getSettings } from "../settings";
 import { parseStored, renderFilterRecordSchema } from "../validation/records";
@@ -158,13 +159,14 @@ export async function listRenders(sideId: string) {
 }
 
 /**
- * Cancels a queued or running render (a stalled one, usually): only the engineer the side
- * is assigned to. The render is marked cancelled and its worker, if one still runs it,
- * loses its lease and records nothing; the side may be rendered again at once.
+ * Cancels a queued or running render (a stalled one, or one still under way): only the
+ * engineer the side is assigned to. The render is marked cancelled; a worker still running
+ * it loses its lease, notices within seconds (lib/jobs/render-job.ts), stops, removes its
+ * files and records nothing. The side stands where it stood and may be rendered again at once.
  */
 export async function cancelRender(actor: SessionUser, renderId: string) {
   const id = z.uuid({ error: "Unknown render." }).parse(renderId);
-  return db.transaction().execute(async (trx) => {
+  const cancelled = await db.transaction().execute(async (trx) => {
     const found = await trx.selectFrom("renders").select(["side_id"]).where("id", "=", id).executeTakeFirst();
     if (!found) throw new AppError("not_found", 404, "No such render.");
     const side = await lockSide(trx, found.side_id);
@@ -197,8 +199,14 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
       discId: side.disc_id,
       payload: { side: side.designation, renderId: id, was: r.status, progress: r.progress, stalled },
     });
-    return { renderId: id, status: "cancelled" as const };
+    return { renderId: id, sideId: side.id, status: "cancelled" as const };
   });
+  // No one can record it now: an access copy a worker stored before it stopped (or before
+  // it died) goes. The worker removes its own too, when it stores after this point.
+  await deleteObject(accessCopyKey(cancelled.sideId, id)).catch((err) =>
+    console.error(`[renders] could not remove the cancelled render's object: ${String(err)}`),
+  );
+  return { renderId: id, status: cancelled.status };
 }
 
 export async function listTransfers(sideId: string) {

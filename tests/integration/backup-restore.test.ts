@@ -15,10 +15,13 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb } from "@/db/client";
 import type { Database } from "@/db/types";
 import { takeCheckpoint } from "@/lib/provenance/checkpoints";
-import { api } from "../support/app";
+import { demoAccounts } from "@/db/seed-data";
+import { profile } from "@/scripts/lib/stack";
+import { api, appUrl, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
 import { approvedDisc, type LabCookies, labCookies } from "../support/pipeline";
 import { testBucketClient } from "../support/bucket";
+import { freePort, startExtraApp } from "../support/processes";
 
 const root = process.cwd();
 const tag = Date.now().toString(36);
@@ -81,6 +84,8 @@ let dir: string;
 let sideId: string;
 let discId: string;
 const opened: Kysely<Database>[] = [];
+/** The first test's restored stack, served by an app of its own in the next. */
+let restored: { env: Record<string, string>; bucketName: string; headSeq: number } | null = null;
 
 beforeAll(async () => {
   c = await labCookies();
@@ -151,6 +156,7 @@ describe("backup and restore", () => {
     const restore = await runScript("restore.ts", [dir], target.env);
     expect(restore.output).toContain("restore verified: no differences");
     expect(restore.code).toBe(0);
+    restored = { env: target.env, bucketName: target.bucketName, headSeq: description.chainHead.seq };
 
     // Dump and chain come from one moment: every accession recorded during the backup that the
     // restored database holds has its event in the restored log, and none has one without its row.
@@ -221,6 +227,89 @@ describe("backup and restore", () => {
     expect(again.code).toBe(2);
     expect(again.output).toMatch(/already holds \d+ tables.*CREATE DATABASE/s);
   }, 300_000);
+
+  it("the restored lab, served by an app of its own, shows the same catalogue, the same timeline and files with the same hashes", async () => {
+    expect(restored).not.toBeNull();
+    const { env: targetEnv, bucketName, headSeq } = restored!;
+    const test = profile("test");
+    // `next start` on the test build, on a free port of this checkout's range, with the restored database and bucket.
+    const app = await startExtraApp("app-restored", await freePort(test.appPort + 5, 5), targetEnv);
+    try {
+      const curator = demoAccounts.find((a) => a.role === "curator")!;
+      const live = c.curator;
+      const there = await signInCookie(curator.email, curator.password, app.url);
+      const both = async (pathname: string) => {
+        const [a, b] = await Promise.all([
+          api(pathname, { cookie: live }),
+          api(pathname, { cookie: there, base: app.url }),
+        ]);
+        expect(a.status).toBe(200);
+        expect(b.status).toBe(200);
+        return [a.body, b.body];
+      };
+
+      // The catalogue: the list (first page, default order), a search, and the disc's record.
+      for (const pathname of [
+        "/api/discs",
+        `/api/discs?q=${encodeURIComponent(`BR-${tag}`)}`,
+        `/api/discs/${discId}`,
+      ]) {
+        const [a, b] = await both(pathname);
+        expect(b).toEqual(a);
+      }
+
+      // The disc's timeline, as of the backup (the live lab may have recorded more since).
+      const [liveTimeline, restoredTimeline] = await both(`/api/discs/${discId}/events`);
+      expect(restoredTimeline.events.length).toBeGreaterThan(5);
+      expect(restoredTimeline.events).toEqual(
+        liveTimeline.events.filter((e: { seq: number }) => Number(e.seq) <= headSeq),
+      );
+
+      // The files: the flat transfer and the access copy, downloaded through each app, from each one's bucket.
+      const transfer = await testDb
+        .selectFrom("transfers")
+        .select(["id", "sha256"])
+        .where("side_id", "=", sideId)
+        .executeTakeFirstOrThrow();
+      const render = await testDb
+        .selectFrom("renders")
+        .select(["id", "sha256"])
+        .where("side_id", "=", sideId)
+        .where("status", "=", "done")
+        .executeTakeFirstOrThrow();
+      const download = async (base: string, cookie: string, pathname: string) => {
+        const res = await fetch(`${base}${pathname}`, { headers: { cookie }, redirect: "manual" });
+        expect(res.status).toBe(302);
+        const location = res.headers.get("location")!;
+        const file = await fetch(location);
+        expect(file.status).toBe(200);
+        return {
+          bucket: new URL(location).pathname.split("/")[1],
+          sha256: createHash("sha256")
+            .update(Buffer.from(await file.arrayBuffer()))
+            .digest("hex"),
+        };
+      };
+      for (const [pathname, sha256] of [
+        [`/api/transfers/${transfer.id}/download`, transfer.sha256],
+        [`/api/renders/${render.id}/download`, render.sha256!],
+      ]) {
+        const fromLive = await download(appUrl, live, pathname);
+        const fromRestored = await download(app.url, there, pathname);
+        expect(fromRestored.bucket).toBe(bucketName);
+        expect(fromLive.bucket).not.toBe(bucketName);
+        expect(fromRestored.sha256).toBe(sha256);
+        expect(fromLive.sha256).toBe(sha256);
+      }
+
+      // The restored app verifies its own chain too.
+      const verified = await api("/api/provenance/verify", { cookie: there, base: app.url });
+      expect(verified.status).toBe(200);
+      expect(verified.body.ok).toBe(true);
+    } finally {
+      await app.stop();
+    }
+  }, 180_000);
 
   it("a restore whose bucket holds a damaged object exits non-zero and names that object", async () => {
     const manifest = JSON.parse(await fs.readFile(path.join(dir, "manifest.json"), "utf8"));

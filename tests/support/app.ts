@@ -11,12 +11,15 @@ export const appUrl = process.env.APP_URL ?? "http://127.0.0.1:3100";
  */
 export const sameOrigin = { origin: new URL(appUrl).origin } as const;
 
-/** Signs in through next-auth's credentials endpoint and returns the cookie header of the session. */
-export async function signInCookie(email: string, password: string): Promise<string> {
-  const csrfRes = await fetch(`${appUrl}/api/auth/csrf`);
+/**
+ * Signs in through next-auth's credentials endpoint and returns the cookie header of the
+ * session. `base`: another app than the test profile's (a drill's second app).
+ */
+export async function signInCookie(email: string, password: string, base = appUrl): Promise<string> {
+  const csrfRes = await fetch(`${base}/api/auth/csrf`);
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
   const jar = cookiesOf(csrfRes);
-  const res = await fetch(`${appUrl}/api/auth/callback/credentials`, {
+  const res = await fetch(`${base}/api/auth/callback/credentials`, {
     method: "POST",
     redirect: "manual",
     headers: { "content-type": "application/x-www-form-urlencoded", cookie: jar },
@@ -38,14 +41,15 @@ function cookiesOf(res: Response): string {
 
 export async function api(
   pathname: string,
-  opts: { cookie?: string; method?: string; body?: unknown } = {},
+  opts: { cookie?: string; method?: string; body?: unknown; base?: string } = {},
 ): Promise<{ status: number; body: any }> {
-  const res = await fetch(`${appUrl}${pathname}`, {
+  const base = opts.base ?? appUrl;
+  const res = await fetch(`${base}${pathname}`, {
     method: opts.method ?? "GET",
     redirect: "manual",
     headers: {
       accept: "application/json",
-      ...sameOrigin,
+      origin: new URL(base).origin,
       ...(opts.cookie ? { cookie: opts.cookie } : {}),
       ...(opts.body !== undefined ? { "content-type": "application/json" } : {}),
     },

@@ -39,6 +39,9 @@ export const renderRequestSchema = z.object({
  */
 export async function requestRender(actor: SessionUser, input: unknown) {
   const r = renderRequestSchema.parse(input);
+  // Read before the transaction: a read through the pool inside it would hold one connection
+  // while waiting for another, and enough requests at once would wait on each other for ever.
+  const lab = await getSettings();
   return db.transaction().execute(async (trx) => {
     const side = await lockSide(trx, r.sideId);
     if (side.assigned_engineer_id !== actor.id)
@@ -70,7 +73,6 @@ export async function requestRender(actor: SessionUser, input: unknown) {
       .where("status", "in", ["queued", "running"])
       .executeTakeFirst();
     if (busy) throw new AppError("conflict", 409, "A render of this side is already queued or running.");
-    const lab = await getSettings();
     const bitDepth = r.bitDepth ?? lab.accessCopyBitDepth;
     const rateChoice = r.sampleRateHz ?? lab.accessCopyRateHz;
     const sampleRateHz = rateChoice === "transfer" ? transfer.sample_rate_hz : rateChoice;

@@ -33,7 +33,7 @@ let second: (StartedProcess & { identity: string }) | null = null;
 
 beforeAll(async () => {
   c = await labCookies();
-});
+}, 60_000);
 
 afterAll(async () => {
   await second?.stop();
@@ -54,6 +54,7 @@ async function inBatches<T, R>(
 
 describe("two workers against one database", () => {
   it("do 20 renders and 200 fixity checks queued at once each exactly once, and both workers do some", async () => {
+    const began = Date.now();
     // The lab's work: 20 sides, each with a curve and a short flat transfer accepted through the API.
     const discs = await inBatches(
       Array.from({ length: DISCS }, (_, i) => i),
@@ -116,12 +117,14 @@ describe("two workers against one database", () => {
     ).map((t) => t.id);
     expect(transferIds).toHaveLength(FIXITY_OBJECTS);
 
+    const arranged = Date.now();
     // The second worker, beside the profile's own.
     const firstPid = Number((await fs.readFile(workerChildPidFile(profile("test")), "utf8")).trim());
     second = await startExtraWorker(`worker-second-${tag}`);
     expect(second.pid).not.toBe(firstPid);
     expect(second.identity).toContain(`:${second.pid}:`);
 
+    const secondReady = Date.now();
     // At once: the engineer asks for 20 renders, the curator for a fixity check of every disc.
     const [renders, checks] = await Promise.all([
       Promise.all(
@@ -169,6 +172,7 @@ describe("two workers against one database", () => {
       },
       100_000,
     );
+    const workDone = Date.now();
     // A late duplicate would show in the next seconds: nothing more arrives.
     await new Promise((r) => setTimeout(r, 3000));
 
@@ -244,8 +248,10 @@ describe("two workers against one database", () => {
         results.filter((r) => bySecond(r.worker_identity)).length,
       ],
     };
+    const secs = (ms: number) => `${(ms / 1000).toFixed(1)} s`;
     console.log(
-      `[two workers] renders ${split.renders.join(" + ")}, fixity checks ${split.checks.join(" + ")}`,
+      `[two workers] renders ${split.renders.join(" + ")}, fixity checks ${split.checks.join(" + ")}; ` +
+        `arranging ${secs(arranged - began)}, second worker up ${secs(secondReady - arranged)}, the work ${secs(workDone - secondReady)}`,
     );
     expect(Math.min(...split.renders)).toBeGreaterThan(0);
     expect(Math.min(...split.checks)).toBeGreaterThan(0);

@@ -26,7 +26,7 @@ let c: LabCookies;
 
 beforeAll(async () => {
   c = await labCookies();
-});
+}, 60_000);
 
 afterAll(async () => {
   await testDb.destroy();
@@ -41,11 +41,13 @@ async function tmpDirsOf(pid: number): Promise<string[]> {
 
 describe("cancelling a running render", () => {
   it("stops the worker's render within seconds, leaves no file or object, records nothing more, and leaves the side as it stood", async () => {
+    // Five minutes of mono, resampled to 192 kHz: a render that runs long enough to be cancelled
+    // in the middle. Made first: seconds of work between two requests could outlast the app's keep-alive.
+    const long = makeWav({ seconds: 300, channels: 1, seed: 5 });
     const { sideIds } = await assignedDisc(c, `CANCEL-RUNNING-${Date.now().toString(36)}`, ["A"]);
     const sideId = sideIds[0];
     await chooseCurve(c, sideIds);
-    // Five minutes of mono, resampled to 192 kHz: a render that runs long enough to be cancelled in the middle.
-    const up = await uploadTransfer(c, sideId, makeWav({ seconds: 300, channels: 1, seed: 5 }), "long.wav");
+    const up = await uploadTransfer(c, sideId, long, "long.wav");
     expect(up.done.status).toBe(201);
     const sideBefore = await testDb
       .selectFrom("sides")

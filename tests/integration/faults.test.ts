@@ -90,11 +90,13 @@ beforeAll(async () => {
 
 describe("the worker killed by its PID in the middle of a render", () => {
   it("is started again by its supervisor, the dead worker's render is taken up again and recorded once, with one object and no temporary folder left", async () => {
+    // Seven minutes at 44.1 kHz, resampled to 192 kHz for the access copy: long enough to be killed in the middle.
+    // Made first: seconds of work between two requests could outlast the app's keep-alive.
+    const long = monoTransfer(420);
     const { sideIds } = await assignedDisc(c, `FAULT-KILL-${Date.now().toString(36)}`, ["A"]);
     const sideId = sideIds[0];
     await chooseCurve(c, sideIds);
-    // Seven minutes at 44.1 kHz, resampled to 192 kHz for the access copy: long enough to be killed in the middle.
-    const up = await uploadTransfer(c, sideId, monoTransfer(420), "fault-drill.wav");
+    const up = await uploadTransfer(c, sideId, long, "fault-drill.wav");
     expect(up.done.status).toBe(201);
 
     const supervisorPid = await readPidFile(pidFile(test, "worker"));

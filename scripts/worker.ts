@@ -87,8 +87,16 @@ async function main(): Promise<void> {
       console.log(
         `[worker] render ${job.data.renderId} (attempt ${job.retryCount + 1} of ${job.retryLimit + 1})`,
       );
-      const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
-      console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
+      try {
+        const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
+        console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
+      } catch (err) {
+        console.error(
+          `[worker] render ${job.data.renderId} failed${finalAttempt ? "" : " (will retry)"}:`,
+          err instanceof Error ? err.message : err,
+        );
+        throw err;
+      }
     },
   );
   // Fixity: an hourly sweep queues every object whose last check is older than the

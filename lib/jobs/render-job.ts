@@ -18,7 +18,7 @@ import {
 } from "../curves";
 import { env } from "../env";
 import { appendEvent } from "../provenance";
-import { renderFinished } from "../sides/lifecycle";
+import { lockSide, renderFinished } from "../sides/lifecycle";
 import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../validation/records";
 import { objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
@@ -248,6 +248,10 @@ export async function runRenderJob(
       engine: result.engine,
     };
     const recorded = await db.transaction().execute(async (trx) => {
+      // Locks in the lab's one order, the side, then the render, then the log (as a request or
+      // a cancel of a render, and a fixity result, take them): taken in another order, two
+      // workers recording at once could each wait on the other.
+      await lockSide(trx, job.sideId);
       // Recorded once: only by the worker still holding the running render's lease.
       const finished = await trx
         .updateTable("renders")

@@ -4,6 +4,7 @@
 // access copy per render, one result per check, no event twice) and that both workers
 // did some. The second worker is stopped by its PID at the end.
 import { promises as fs } from "node:fs";
+import path from "node:path";
 import { ListObjectsV2Command, PutObjectCommand } from "@aws-sdk/client-s3";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -125,6 +126,8 @@ describe("two workers against one database", () => {
     expect(second.identity).toContain(`:${second.pid}:`);
 
     const secondReady = Date.now();
+    const firstLog = path.join(profile("test").dir, "logs", "worker.log");
+    const firstLogFrom = (await fs.readFile(firstLog, "utf8")).length;
     // At once: the engineer asks for 20 renders, the curator for a fixity check of every disc.
     const [renders, checks] = await Promise.all([
       Promise.all(
@@ -255,6 +258,10 @@ describe("two workers against one database", () => {
     );
     expect(Math.min(...split.renders)).toBeGreaterThan(0);
     expect(Math.min(...split.checks)).toBeGreaterThan(0);
+
+    // No job failed and waited for its retry (two workers recording at once once deadlocked here).
+    const during = [(await fs.readFile(firstLog, "utf8")).slice(firstLogFrom), await second.log()].join("\n");
+    expect(during.split("\n").filter((l) => /failed/.test(l) && !/, 0 failed/.test(l))).toEqual([]);
 
     // The second worker logged its share, and stops cleanly by its PID.
     const log = await second.log();

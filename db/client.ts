@@ -19,5 +19,12 @@ export function createDb(databaseUrl: string, max = 10): Kysely<Database> {
   pool.on("error", (err) =>
     console.error(`[db] an idle connection was lost (the pool reconnects on the next query): ${err.message}`),
   );
+  // The same for a client that is checked out but between queries (inside a transaction) when
+  // the server goes away: its query then fails, and the pool drops it when it comes back.
+  pool.on("connect", (client) =>
+    client.on("error", (err) =>
+      console.error(`[db] a connection in use was lost (its work fails and is retried): ${err.message}`),
+    ),
+  );
   return new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 }

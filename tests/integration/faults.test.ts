@@ -86,7 +86,7 @@ let c: LabCookies;
 
 beforeAll(async () => {
   c = await labCookies();
-});
+}, 60_000);
 
 describe("the worker killed by its PID in the middle of a render", () => {
   it("is started again by its supervisor, the dead worker's render is taken up again and recorded once, with one object and no temporary folder left", async () => {

@@ -26,6 +26,7 @@ import {
   workerIdentity,
 } from "../lib/jobs/render-lease";
 import { deliverDueMail } from "../lib/mail/outbox";
+import { StoreUnreachableError } from "../lib/storage/errors";
 import { takeCheckpoint } from "../lib/provenance/checkpoints";
 import { createMailTransport } from "../lib/mail/transport";
 
@@ -86,7 +87,13 @@ async function main(): Promise<void> {
       console.log(
         `[worker] render ${job.data.renderId} (attempt ${job.retryCount + 1} of ${job.retryLimit + 1})`,
       );
-      const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
+      const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt }).catch((err: unknown) => {
+        if (err instanceof StoreUnreachableError)
+          console.error(
+            `[worker] render ${job.data.renderId}: ${err.message}${finalAttempt ? "" : " The queue tries it again."}`,
+          );
+        throw err;
+      });
       console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
     },
   );
@@ -104,7 +111,12 @@ async function main(): Promise<void> {
     FIXITY_QUEUE,
     { batchSize: 1, pollingIntervalSeconds: 1 },
     async ([job]) => {
-      const outcome = await checkObject(db, job.data.kind, job.data.id);
+      const outcome = await checkObject(db, job.data.kind, job.data.id).catch((err: unknown) => {
+        // Not a fixity result: nothing recorded, no one alarmed; the queue tries the check again.
+        if (err instanceof StoreUnreachableError)
+          console.error(`[worker] fixity ${job.data.kind} ${job.data.id}: not checked: ${err.message}`);
+        throw err;
+      });
       console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
     },
   );

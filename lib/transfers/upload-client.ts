@@ -254,9 +254,10 @@ export async function runUpload(args: {
         tries++;
         const since = outage?.since ?? Date.now();
         if (Date.now() - since >= giveUpAfterMs) {
-          const minutes = Math.max(1, Math.round((Date.now() - since) / 60_000));
+          const seconds = Math.round((Date.now() - since) / 1000);
+          const spent = seconds < 90 ? `${seconds} s` : `${Math.round(seconds / 60)} minutes`;
           throw new Error(
-            `${words.replace(/; retrying…$/, "")} after ${minutes} minute${minutes === 1 ? "" : "s"} of trying. The parts already stored are kept: try again later to carry on from there.`,
+            `${words.replace(/; retrying…$/, "")}: tried for ${spent}. The parts already stored are kept: try again later to carry on from there.`,
           );
         }
         const wait = Math.min(maxPauseMs, firstPauseMs * 2 ** Math.min(tries - 1, 20));

@@ -27,8 +27,9 @@ export async function killS3rver(): Promise<number> {
   const pid = await readPidFile(pidFile(testProfile, "s3rver"));
   expect(alive(pid)).toBe(true);
   process.kill(pid, "SIGKILL");
+  // Its port closes as it dies (the PID may linger a moment as a zombie until its parent reaps it).
   const deadline = Date.now() + 10_000;
-  while ((alive(pid) || (await portOpen(testProfile.s3Port))) && Date.now() < deadline)
+  while ((await portOpen(testProfile.s3Port)) && Date.now() < deadline)
     await new Promise((r) => setTimeout(r, 50));
   expect(await portOpen(testProfile.s3Port)).toBe(false);
   return pid;

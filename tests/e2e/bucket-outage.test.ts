@@ -5,6 +5,8 @@
 // file's own SHA-256. (Resuming from parts already stored is drilled against the same
 // upload code in tests/integration/faults-bucket.test.ts.)
 import { createHash } from "node:crypto";
+import { promises as fs } from "node:fs";
+import path from "node:path";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
@@ -13,7 +15,7 @@ import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 import { testDb } from "../support/db";
 import { makeWav } from "../support/make-wav";
 import { assignedDisc, labCookies } from "../support/pipeline";
-import { killS3rver, startS3rverAgain } from "../support/processes";
+import { killS3rver, startS3rverAgain, testProfile } from "../support/processes";
 
 let browser: Browser;
 let down = false;
@@ -44,9 +46,11 @@ describe("the file store unreachable while the engineer uploads", () => {
     await page.waitForURL(`${appUrl}/`);
     await page.goto(`${appUrl}/bench/${sideId}`);
     await page.getByTestId("upload-panel").waitFor();
-    await page
-      .getByTestId("upload-input")
-      .setInputFiles({ name: `${shelfMark} A flat.wav`, mimeType: "audio/wav", buffer: Buffer.from(wav) });
+    // From a file on disk: chromium reads it itself, rather than taking 10 MB through the protocol.
+    const file = path.join(testProfile.dir, `${shelfMark} A flat.wav`);
+    await fs.writeFile(file, wav);
+    await page.getByTestId("upload-input").setInputFiles(file, { timeout: 60_000 });
+    await fs.rm(file);
     await page.getByTestId("upload-stylus-size").fill("3.0 mil");
     await page.getByTestId("upload-stylus-shape").fill("truncated elliptical");
     await page.getByTestId("upload-chain").fill("Turntable → flat preamp → converter at 44.1 kHz/24");

@@ -50,7 +50,6 @@ describe("the file store unreachable while the engineer uploads", () => {
     const file = path.join(testProfile.dir, `${shelfMark} A flat.wav`);
     await fs.writeFile(file, wav);
     await page.getByTestId("upload-input").setInputFiles(file, { timeout: 60_000 });
-    await fs.rm(file);
     await page.getByTestId("upload-stylus-size").fill("3.0 mil");
     await page.getByTestId("upload-stylus-shape").fill("truncated elliptical");
     await page.getByTestId("upload-chain").fill("Turntable → flat preamp → converter at 44.1 kHz/24");
@@ -78,6 +77,8 @@ describe("the file store unreachable while the engineer uploads", () => {
     const done = page.getByTestId("upload-done");
     await done.waitFor({ timeout: 90_000 });
     await expect(done.innerText()).resolves.toContain(sha256);
+    // (The page reads the file as it sends it: it may go only now.)
+    await fs.rm(file);
     expect(await outage.count()).toBe(0);
 
     // One upload, accepted once, with the file's own checksum.

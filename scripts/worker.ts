@@ -27,6 +27,7 @@ import {
   workerIdentity,
 } from "../lib/jobs/render-lease";
 import { deliverDueMail } from "../lib/mail/outbox";
+import { StoreUnreachableError } from "../lib/storage/errors";
 import { takeCheckpoint } from "../lib/provenance/checkpoints";
 import { createMailTransport } from "../lib/mail/transport";
 
@@ -91,8 +92,9 @@ async function main(): Promise<void> {
         const outcome = await runRenderJob(job.data.renderId, { db, finalAttempt });
         console.log(`[worker] render ${job.data.renderId}: ${outcome}`);
       } catch (err) {
+        // An unreachable store says so in plain words (lib/storage/errors); the queue tries again.
         console.error(
-          `[worker] render ${job.data.renderId} failed${finalAttempt ? "" : " (will retry)"}:`,
+          `[worker] render ${job.data.renderId} failed${finalAttempt ? "" : " (the queue tries it again)"}:`,
           err instanceof Error ? err.message : err,
         );
         throw err;
@@ -120,13 +122,15 @@ async function main(): Promise<void> {
           const outcome = await checkObject(db, job.data.kind, job.data.id, { worker: workerIdentity });
           console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
         } catch (err) {
+          // An unreachable store is not a fixity result: nothing recorded, no one alarmed;
+          // the check is handed back for its retry alone.
+          const message = err instanceof Error ? err.message : String(err);
           console.error(
-            `[worker] fixity ${job.data.kind} ${job.data.id} failed:`,
-            err instanceof Error ? err.message : err,
+            err instanceof StoreUnreachableError
+              ? `[worker] fixity ${job.data.kind} ${job.data.id}: not checked: ${message}`
+              : `[worker] fixity ${job.data.kind} ${job.data.id} failed: ${message}`,
           );
-          await boss.fail(FIXITY_QUEUE, job.id, {
-            message: err instanceof Error ? err.message : String(err),
-          });
+          await boss.fail(FIXITY_QUEUE, job.id, { message });
         }
       }
     },

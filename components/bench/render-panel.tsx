@@ -275,6 +275,12 @@ export function RenderPanel({
               {(r.status === "failed" || r.status === "cancelled") && r.error ? (
                 <p className="mt-1.5 text-xs text-alarm">{r.error}</p>
               ) : null}
+              {r.status === "queued" && r.error ? (
+                // The last attempt failed for a passing reason (the file store away): it waits for the next one.
+                <p className="mt-1.5 text-xs text-ink-soft" data-testid="render-retry-notice">
+                  {r.error}
+                </p>
+              ) : null}
               {r.stalled ? (
                 <div
                   className="mt-2 flex flex-wrap items-center justify-between gap-2 rounded-md border border-alarm/30 bg-alarm-wash px-3 py-2"

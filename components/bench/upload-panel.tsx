@@ -179,6 +179,14 @@ export function UploadPanel({
         </div>
       ) : null}
 
+      {state.outage && working ? (
+        <Notice tone="caution" title={state.outage.message} testId="upload-outage">
+          Nothing is lost: the parts already stored are kept, and the upload carries on from there as soon as
+          it answers (tried {state.outage.tries} time{state.outage.tries === 1 ? "" : "s"} since{" "}
+          {new Date(state.outage.since).toLocaleTimeString()}; the next try at{" "}
+          {new Date(state.outage.nextTryAt).toLocaleTimeString()}).
+        </Notice>
+      ) : null}
       {state.phase === "failed" && state.error ? (
         <Notice tone="error" title="The transfer was not accepted" testId="upload-error">
           {state.error} {state.resumable ? "Try again to pick up where it stopped." : null}

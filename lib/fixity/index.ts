@@ -1,12 +1,12 @@
 // Fixity: re-reading stored objects (flat transfers and access copies), recomputing
 // their SHA-256 and recording each result as an event. Used by the worker's scheduled
 // sweep and by a curator's "check this disc now". No framework imports.
-import { NoSuchKey, NotFound } from "@aws-sdk/client-s3";
 import { type Kysely, sql } from "kysely";
 import type { Database, FixityOutcome } from "../../db/types";
 import { env } from "../env";
 import { enqueueMail } from "../mail/outbox";
 import { appendEvent } from "../provenance";
+import { StoreUnreachableError, storeFailure } from "../storage/errors";
 import { hashObject } from "../storage/objects";
 
 export type StoredObjectKind = "transfer" | "render";
@@ -116,8 +116,14 @@ async function findObject(
 /**
  * Re-reads one object (streaming, bounded memory), compares its SHA-256 with the one
  * recorded when it was stored, and records the result and its event together. A
+<<<<<<< HEAD
  * failure also mails every active curator through the outbox. `worker` names the worker
  * process that read it, recorded with the result.
+=======
+ * failure (mismatch, missing, or a refusal from the store) also mails every active
+ * curator through the outbox. A store that cannot be reached is no result at all: it
+ * throws StoreUnreachableError, records nothing, and the queue tries the check again.
+>>>>>>> faults2
  */
 export async function checkObject(
   db: Kysely<Database>,
@@ -138,13 +144,21 @@ export async function checkObject(
     outcome = h.sha256 === obj.sha256 ? "pass" : "mismatch";
     if (outcome === "mismatch") detail = `stored ${obj.sha256}, read back ${h.sha256}`;
   } catch (err) {
-    const missing =
-      err instanceof NoSuchKey ||
-      err instanceof NotFound ||
-      (err as { name?: string }).name === "NoSuchKey" ||
-      (err as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404;
-    outcome = missing ? "missing" : "error";
-    detail = missing ? "the object is not in the bucket" : err instanceof Error ? err.message : String(err);
+    const failure = storeFailure(err);
+    // The store could not be reached: nothing is known about the object, so nothing is
+    // recorded and no one is alarmed. The job fails with the plain reason and the queue
+    // tries it again; an object still unchecked stays due for the next sweep.
+    if (failure === "unreachable")
+      throw err instanceof StoreUnreachableError
+        ? err
+        : new StoreUnreachableError(`read ${obj.key} for its fixity check`, err);
+    outcome = failure === "missing" ? "missing" : "error";
+    detail =
+      failure === "missing"
+        ? "the object is not in the bucket"
+        : err instanceof Error
+          ? err.message
+          : String(err);
   }
   await db.transaction().execute(async (trx) => {
     await trx

@@ -10,6 +10,11 @@ export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> 
       ...init?.headers,
     },
   });
+  return answerJson<T>(res, init?.method);
+}
+
+/** The JSON body of an answer from the app's API, or the AppError it carries. */
+export async function answerJson<T>(res: Response, method = "GET"): Promise<T> {
   const body = await res.json().catch(() => null);
   if (!res.ok) {
     const e = body?.error as
@@ -17,7 +22,7 @@ export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> 
       | undefined;
     const message = e?.message ?? `The server answered ${res.status}.`;
     // A read (a list's filters from the address, say) has no form to show field errors beside: name them in the message.
-    const read = (init?.method ?? "GET").toUpperCase() === "GET";
+    const read = method.toUpperCase() === "GET";
     const said =
       read && e?.fields
         ? `${message} ${Object.entries(e.fields)

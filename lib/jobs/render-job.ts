@@ -20,6 +20,7 @@ import { env } from "../env";
 import { appendEvent } from "../provenance";
 import { lockSide, renderFinished } from "../sides/lifecycle";
 import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../validation/records";
+import { fromStore } from "../storage/errors";
 import { objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { softwareName } from "../version";
@@ -219,15 +220,17 @@ export async function runRenderJob(
     // body arrived, so a worker killed during the upload leaves no partial object.
     if (lease.signal.aborted || !(await held())) throw new LeaseLost();
     stored = true;
-    await s3().send(
-      new PutObjectCommand({
-        Bucket: env().S3_BUCKET,
-        Key: key,
-        Body: createReadStream(outputPath),
-        ContentLength: result.outputBytes,
-        ContentType: "audio/wav",
-      }),
-      { abortSignal: lease.signal },
+    await fromStore(`store the access copy ${key}`, () =>
+      s3().send(
+        new PutObjectCommand({
+          Bucket: env().S3_BUCKET,
+          Key: key,
+          Body: createReadStream(outputPath),
+          ContentLength: result.outputBytes,
+          ContentType: "audio/wav",
+        }),
+        { abortSignal: lease.signal },
+      ),
     );
     const iir = designIirFromModel(model, job.sampleRateHz);
     const filterRecord: StoredRenderFilter = {
@@ -318,13 +321,14 @@ export async function runRenderJob(
       if (stored) await removeUnrecorded(db, renderId, key);
       return "stopped";
     }
+    // An unreachable store (../storage/errors) says so in plain words; the queue tries the render again.
     const message = err instanceof Error ? err.message : String(err);
     await db
       .updateTable("renders")
       .set({
         status: ctx.finalAttempt ? "failed" : "queued",
         lease_owner: null,
-        error: ctx.finalAttempt ? message : `${message} (will retry)`,
+        error: ctx.finalAttempt ? message : `${message} It will be tried again shortly.`,
         ...(ctx.finalAttempt ? { finished_at: new Date() } : {}),
       })
       .where("id", "=", renderId)

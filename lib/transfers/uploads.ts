@@ -18,6 +18,7 @@ import { env } from "../env";
 import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { lockSide, transferAccepted } from "../sides/lifecycle";
+import { storeFailure } from "../storage/errors";
 import { deleteObject, hashObject, objectSource } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import {
@@ -129,9 +130,24 @@ function closedError(u: Upload): AppError {
   }
 }
 
+/**
+ * The store could not do what was asked just now: a 503 the browser's upload waits out
+ * and tries again (`details.store` tells it that it is the file store that is away, not
+ * the database). Logged in a line, without the socket error's stack.
+ */
 function storageUnavailable(what: string, err: unknown): AppError {
-  console.error(`[rillbook] storage could not ${what}:`, err);
-  return new AppError("unavailable", 503, `The storage could not ${what} just now. Try again in a moment.`);
+  const failure = storeFailure(err);
+  const cause = err instanceof Error ? err.message : String(err);
+  console.error(`[rillbook] the file store could not ${what} (${failure ?? "failed"}): ${cause}`);
+  return new AppError(
+    "unavailable",
+    503,
+    failure === "unreachable"
+      ? `The lab's file store cannot be reached just now, so it could not ${what}. Nothing stored is lost: try again in a moment.`
+      : `The lab's file store could not ${what} just now. Try again in a moment.`,
+    undefined,
+    { store: failure === "unreachable" ? "unreachable" : "failed" },
+  );
 }
 
 /** The HTTP status and error code of a refusal from the storage, when it gave one. */
@@ -278,14 +294,23 @@ export async function signUploadParts(actor: SessionUser, input: unknown) {
   return { urls: await signParts(upload, partNumbers) };
 }
 
-/** The parts already stored, to resume after a failure. */
-export async function listUploadedParts(actor: SessionUser, input: unknown) {
+/**
+ * The parts already stored, to resume after a failure; `parts: null` when the store
+ * cannot list them (the local stand-in): the browser then goes by the parts it remembers
+ * sending, and the completion checks the assembled file's size and SHA-256 all the same.
+ */
+export async function listUploadedParts(
+  actor: SessionUser,
+  input: unknown,
+): Promise<{ parts: StoredPart[] | null }> {
   const { uploadId } = uploadRefSchema.parse(input);
   const { upload } = await ownUpload(actor, uploadId);
   await requireOpen(upload);
   try {
     return { parts: await storedParts(upload) };
   } catch (err) {
+    const { status } = storageAnswer(err);
+    if (status === 405 || status === 501) return { parts: null };
     throw storageUnavailable("list the parts already stored", err);
   }
 }

@@ -123,7 +123,7 @@ export function pidFile(p: Profile, name: string): string {
   return path.join(p.dir, "run", `${name}.pid`);
 }
 
-function alive(pid: number): boolean {
+export function alive(pid: number): boolean {
   try {
     process.kill(pid, 0);
     return true;
@@ -492,6 +492,20 @@ export async function stackEnv(p: Profile): Promise<StackEnv> {
 
 // ---------------------------------------------------------------- the stack
 
+/**
+ * Starts the profile's s3rver on its port and data folder (nothing if it already runs);
+ * the bucket fault drills (tests/integration/faults-bucket.test.ts) start it again with
+ * this after killing it by its PID.
+ */
+export async function startS3rver(p: Profile, env: StackEnv): Promise<void> {
+  await startNodeService(p, "s3rver", p.s3Port, "scripts/services/s3.ts", {
+    ...env,
+    S3_PORT: String(p.s3Port),
+    S3_DIR: path.join(p.dir, "s3"),
+    APP_ORIGIN: new URL(env.APP_URL).origin,
+  });
+}
+
 export async function startServices(p: Profile): Promise<StackEnv> {
   await fs.mkdir(p.dir, { recursive: true });
   const env = await stackEnv(p);
@@ -503,13 +517,7 @@ export async function startServices(p: Profile): Promise<StackEnv> {
   else await startPostgres(p);
 
   if (externalS3) log("S3_ENDPOINT given: using that storage, not starting s3rver");
-  else
-    await startNodeService(p, "s3rver", p.s3Port, "scripts/services/s3.ts", {
-      ...env,
-      S3_PORT: String(p.s3Port),
-      S3_DIR: path.join(p.dir, "s3"),
-      APP_ORIGIN: new URL(env.APP_URL).origin,
-    });
+  else await startS3rver(p, env);
 
   if (externalSmtp) log("SMTP_URL given: sending through that server, not starting the sink");
   else

@@ -12,6 +12,7 @@ import { renderTmpPrefix } from "@/lib/jobs/render-lease";
 import { s3 } from "@/lib/storage/s3";
 import { pidFile, profile, startPostgres, stopPostgres, workerChildPidFile } from "@/scripts/lib/stack";
 import { api, appUrl, uniqueEmail, waitForMail } from "../support/app";
+import { alive, readPidFile } from "../support/processes";
 import { testDb } from "../support/db";
 import {
   assignedDisc,
@@ -27,21 +28,6 @@ const test = profile("test");
 afterAll(async () => {
   await testDb.destroy();
 });
-
-async function readPidFile(file: string): Promise<number> {
-  const pid = Number((await fs.readFile(file, "utf8")).trim());
-  expect(Number.isInteger(pid) && pid > 0).toBe(true);
-  return pid;
-}
-
-function alive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
-}
 
 /** A flat mono transfer, 16-bit at 44.1 kHz, written here byte by byte: a tone with some noise. */
 function monoTransfer(seconds: number): Uint8Array {

@@ -525,7 +525,11 @@ describe("a preservation master cannot be claimed or lost", () => {
     expect(lost.status).toBe(503);
     expect(lost.body.error).toMatchObject({
       code: "unavailable",
-      message: expect.stringMatching(/^The storage could not put the uploaded parts together just now/),
+      // A 5xx is a store that cannot serve now (lib/storage/errors.ts): the browser's upload waits it out.
+      message: expect.stringMatching(
+        /^The lab's file store cannot be reached just now, so it could not put the uploaded parts together/,
+      ),
+      details: { store: "unreachable" },
     });
     expect(await uploadState(uploadId)).toBe("open");
 

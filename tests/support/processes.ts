@@ -1,10 +1,23 @@
-// Extra processes a drill starts beside the test profile's own (a second worker, a second
-// app on a restored database): each in its own process group, its output in
-// storage/test/logs/<name>.log, and stopped by its PID at the end of the drill.
+// The fault drills' hands on processes. The test profile's own (scripts/lib/stack.ts keeps
+// their PIDs in storage/test/run/): read a PID, see whether it lives, kill s3rver and start it
+// again on the same port and data folder. And extra processes a drill starts beside them (a
+// second worker, a second app on a restored database): each in its own process group, its
+// output in storage/test/logs/<name>.log, and stopped by its PID at the end of the drill.
 import { type ChildProcess, spawn } from "node:child_process";
 import { promises as fs, openSync } from "node:fs";
 import path from "node:path";
-import { portOpen, profile, root } from "@/scripts/lib/stack";
+import { expect } from "vitest";
+import { alive, pidFile, portOpen, profile, root, stackEnv, startS3rver } from "@/scripts/lib/stack";
+
+export { alive };
+
+export const testProfile = profile("test");
+
+export async function readPidFile(file: string): Promise<number> {
+  const pid = Number((await fs.readFile(file, "utf8")).trim());
+  expect(Number.isInteger(pid) && pid > 0).toBe(true);
+  return pid;
+}
 
 export interface StartedProcess {
   name: string;
@@ -14,15 +27,6 @@ export interface StartedProcess {
   log(): Promise<string>;
   /** SIGTERM to its group, SIGKILL after `graceMs`; resolves once it has exited. */
   stop(graceMs?: number): Promise<void>;
-}
-
-export function processAlive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
 }
 
 /** The environment of the test profile for a child process (not vitest's NODE_ENV), with `extra` on top. */
@@ -37,7 +41,7 @@ async function startProcess(
   args: string[],
   env: Record<string, string>,
 ): Promise<StartedProcess> {
-  const dir = path.join(profile("test").dir, "logs");
+  const dir = path.join(testProfile.dir, "logs");
   await fs.mkdir(dir, { recursive: true });
   const logFile = path.join(dir, `${name}.log`);
   await fs.writeFile(logFile, "");
@@ -48,9 +52,7 @@ async function startProcess(
     detached: true,
     stdio: ["ignore", fd, fd],
   });
-  await fs
-    .writeFile(path.join(profile("test").dir, "run", `${name}.pid`), String(child.pid ?? ""))
-    .catch(() => undefined);
+  await fs.writeFile(pidFile(testProfile, name), String(child.pid ?? "")).catch(() => undefined);
   if (!child.pid) throw new Error(`could not start ${name}`);
   const pid = child.pid;
   const exited = new Promise<void>((resolve) => child.once("exit", () => resolve()));
@@ -71,13 +73,13 @@ async function startProcess(
     logFile,
     log: () => fs.readFile(logFile, "utf8").catch(() => ""),
     async stop(graceMs = 15_000) {
-      if (processAlive(pid)) {
+      if (alive(pid)) {
         signal("SIGTERM");
         const timer = setTimeout(() => signal("SIGKILL"), graceMs);
         await exited;
         clearTimeout(timer);
       }
-      await fs.rm(path.join(profile("test").dir, "run", `${name}.pid`), { force: true });
+      await fs.rm(pidFile(testProfile, name), { force: true });
     },
   };
 }
@@ -86,7 +88,7 @@ async function waitFor(what: string, check: () => Promise<boolean>, timeoutMs: n
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return;
-    if (!processAlive(p.pid)) break;
+    if (!alive(p.pid)) break;
     await new Promise((r) => setTimeout(r, 250));
   }
   const tail = (await p.log()).split("\n").slice(-30).join("\n");
@@ -140,4 +142,23 @@ export async function startExtraApp(
     p,
   );
   return { ...p, url };
+}
+
+/** Kills the test profile's s3rver by its PID (SIGKILL: no goodbye to its clients) and waits until its port is closed. */
+export async function killS3rver(): Promise<number> {
+  const pid = await readPidFile(pidFile(testProfile, "s3rver"));
+  expect(alive(pid)).toBe(true);
+  process.kill(pid, "SIGKILL");
+  // Its port closes as it dies (the PID may linger a moment as a zombie until its parent reaps it).
+  const deadline = Date.now() + 10_000;
+  while ((await portOpen(testProfile.s3Port)) && Date.now() < deadline)
+    await new Promise((r) => setTimeout(r, 50));
+  expect(await portOpen(testProfile.s3Port)).toBe(false);
+  return pid;
+}
+
+/** Starts s3rver again on the same port and data folder, as `npm start` does, and waits until it listens. */
+export async function startS3rverAgain(): Promise<number> {
+  await startS3rver(testProfile, await stackEnv(testProfile));
+  return readPidFile(pidFile(testProfile, "s3rver"));
 }

@@ -3,7 +3,7 @@
  *
  * - native: native/dsp, a small Node-API addon in C over FFTW 3 (Debian's
  *   libfftw3, double precision), built by the two commands (scripts/lib/ensure.sh);
- * - JavaScript: lib/audio/codecs.ts and lib/curves/convolver.ts (fft.js).
+ * - JavaScript: lib/audio/codecs.ts and lib/audio/convolver.ts (fft.js).
  *
  * Both decode the same samples, draw the same dither sequence and round the same
  * way, so they write the same bytes; their filters agree to float64 round-off
@@ -14,7 +14,7 @@
  */
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
-import { convolverSizes, PairConvolver, StreamingConvolver } from "../curves/convolver";
+import { convolverSizes, PairConvolver, StreamingConvolver } from "./convolver";
 import { decodeInterleaved, encodeInterleavedPcm } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 

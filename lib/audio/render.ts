@@ -45,7 +45,7 @@ import { fullScalePositive } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 import type { WavHeader } from "./header";
 import type { ByteSource } from "./source";
-import { convolverSizes } from "../curves/convolver";
+import { convolverSizes } from "./convolver";
 import { defaultDsp } from "./dsp";
 import type { DspEngine } from "./dsp";
 import { Resampler } from "./resample";

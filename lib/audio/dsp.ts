@@ -9,7 +9,8 @@
  * way, so they write the same bytes; their filters agree to float64 round-off
  * (tests/unit/audio-dsp.test.ts holds them to that). The native engine is the
  * default wherever it has been built; the JavaScript one is the fallback (a
- * machine without a compiler), several times slower. A render reports which
+ * machine without a compiler), about 3 times slower (lib/audio/README.md has the
+ * figures; scripts/bench/render.ts measures it). A render reports which
  * engine ran, and the render event records it.
  */
 import { dirname, join } from "node:path";

@@ -1,6 +1,6 @@
 /*
  * Rillbook's native render kernels: the loops of an access-copy render that
- * JavaScript runs several times slower than compiled code.
+ * JavaScript runs about 3 times slower than this (scripts/bench/render.ts).
  *
  *   decode(bytes, bits, isFloat, out)                 interleaved WAVE data → float64
  *   encode(samples, count, gain, bits, dither, out)   float64 → interleaved PCM, TPDF dither

@@ -277,55 +277,7 @@ function planRender(opts: RenderOptions): RenderPlan {
     ? Resampler.expectedFrames(header.frames, header.sampleRateHz, outRate)
     : header.frames;
 
-  // Integer output keeps 2 LSB below the top code so the dither (< 1 LSB) and
-  // rounding (≤ ½ LSB) cannot reach past it.
-  const ceiling = 10 ** (ceilingDbfs / 20);
-  const limit =
-    output.format === "pcm"
-      ? ceiling * (fullScalePositive(output) - 2 ** -(output.bitsPerSample - 1))
-      : ceiling * (1 - 2 ** -24);
-
-  const transferLine = formatCodingHistoryLine({
-    algorithm: "PCM",
-    samplingHz: header.sampleRateHz,
-    wordLength: header.bitsPerSample,
-    mode: modeWord(header.channels),
-    text: `flat transfer${header.format === "float" ? "; IEEE float" : ""}`,
-  });
-  // Keep the transfer's own history (the capture chain) when it has one; otherwise describe it.
-  const prior = header.bext?.codingHistory ?? "";
-  const priorLines =
-    prior === "" ? transferLine : prior.endsWith("\r\n") ? prior : `${prior.replace(/[\r\n]+$/, "")}\r\n`;
-  const codingHistoryFor = (trimDb: number): string => {
-    const eq = opts.equalization;
-    const eqText = [
-      eq ? eq.software : "Rillbook",
-      eq ? `equalization ${eq.curve}` : "equalization",
-      eq ? `speed ratio ${eq.speedRatio}` : null,
-      `trim ${trimDb.toFixed(2)} dB`,
-      CHANNEL_MODE_TEXT[mode],
-      "delay-compensated FIR render filter",
-      resampled ? `resampled from ${header.sampleRateHz} Hz (libsamplerate, best sinc)` : null,
-      output.format === "pcm" ? "TPDF dither" : "float",
-    ]
-      .filter((s) => s !== null)
-      .join("; ");
-    return (
-      priorLines +
-      formatCodingHistoryLine({
-        algorithm: "PCM",
-        samplingHz: outRate,
-        wordLength: output.bitsPerSample,
-        mode: modeWord(channelsOut),
-        text: eqText,
-      })
-    );
-  };
-
-  // Progress: one pass is planned; a second one (the trim) adds to the work left. Never goes back.
-  const report = opts.onProgress ?? (() => {});
-  let shown = 0;
-  let passesPlanned = 1;
+  const progress = progressScale(opts.onProgress ?? (() => {}));
   return {
     opts,
     dsp,
@@ -336,8 +288,76 @@ function planRender(opts: RenderOptions): RenderPlan {
     outRate,
     resampled,
     outFrames,
-    limit,
-    codingHistoryFor,
+    limit: peakLimit(output, ceilingDbfs),
+    codingHistoryFor: (trimDb) => renderCodingHistory(opts, { mode, output, outRate, channelsOut, trimDb }),
+    ...progress,
+  };
+}
+
+/**
+ * The largest filtered magnitude a copy may carry: the ceiling, and on integer output 2 LSB
+ * below the top code so the dither (< 1 LSB) and rounding (≤ ½ LSB) cannot reach past it.
+ */
+function peakLimit(output: SampleEncoding, ceilingDbfs: number): number {
+  const ceiling = 10 ** (ceilingDbfs / 20);
+  return output.format === "pcm"
+    ? ceiling * (fullScalePositive(output) - 2 ** -(output.bitsPerSample - 1))
+    : ceiling * (1 - 2 ** -24);
+}
+
+/** The access copy's coding history (EBU R98): the transfer's own lines, then the equalization. */
+function renderCodingHistory(
+  opts: RenderOptions,
+  copy: { mode: ChannelMode; output: SampleEncoding; outRate: number; channelsOut: 1 | 2; trimDb: number },
+): string {
+  const { header } = opts;
+  const resampled = copy.outRate !== header.sampleRateHz;
+  // Keep the transfer's own history (the capture chain) when it has one; otherwise describe it.
+  const prior = header.bext?.codingHistory ?? "";
+  const priorLines =
+    prior === ""
+      ? formatCodingHistoryLine({
+          algorithm: "PCM",
+          samplingHz: header.sampleRateHz,
+          wordLength: header.bitsPerSample,
+          mode: modeWord(header.channels),
+          text: `flat transfer${header.format === "float" ? "; IEEE float" : ""}`,
+        })
+      : prior.endsWith("\r\n")
+        ? prior
+        : `${prior.replace(/[\r\n]+$/, "")}\r\n`;
+  const eq = opts.equalization;
+  const eqText = [
+    eq ? eq.software : "Rillbook",
+    eq ? `equalization ${eq.curve}` : "equalization",
+    eq ? `speed ratio ${eq.speedRatio}` : null,
+    `trim ${copy.trimDb.toFixed(2)} dB`,
+    CHANNEL_MODE_TEXT[copy.mode],
+    "delay-compensated FIR render filter",
+    resampled ? `resampled from ${header.sampleRateHz} Hz (libsamplerate, best sinc)` : null,
+    copy.output.format === "pcm" ? "TPDF dither" : "float",
+  ]
+    .filter((s) => s !== null)
+    .join("; ");
+  return (
+    priorLines +
+    formatCodingHistoryLine({
+      algorithm: "PCM",
+      samplingHz: copy.outRate,
+      wordLength: copy.output.bitsPerSample,
+      mode: modeWord(copy.channelsOut),
+      text: eqText,
+    })
+  );
+}
+
+/** Progress over the passes: one is planned; a second one (the trim) adds to the work left. Never goes back. */
+function progressScale(
+  report: (fraction: number) => void,
+): Pick<RenderPlan, "progress" | "planSecondPass" | "progressDone"> {
+  let shown = 0;
+  let passesPlanned = 1;
+  return {
     progress(pass, fraction) {
       const overall = Math.min(1, (pass - 1 + fraction) / passesPlanned);
       if (overall > shown) report((shown = overall));

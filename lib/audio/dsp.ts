@@ -3,18 +3,19 @@
  *
  * - native: native/dsp, a small Node-API addon in C over FFTW 3 (Debian's
  *   libfftw3, double precision), built by the two commands (scripts/lib/ensure.sh);
- * - JavaScript: lib/audio/codecs.ts and lib/curves/convolver.ts (fft.js).
+ * - JavaScript: lib/audio/codecs.ts and lib/audio/convolver.ts (fft.js).
  *
  * Both decode the same samples, draw the same dither sequence and round the same
  * way, so they write the same bytes; their filters agree to float64 round-off
  * (tests/unit/audio-dsp.test.ts holds them to that). The native engine is the
  * default wherever it has been built; the JavaScript one is the fallback (a
- * machine without a compiler), several times slower. A render reports which
+ * machine without a compiler), about 3 times slower (lib/audio/README.md has the
+ * figures; scripts/bench/render.ts measures it). A render reports which
  * engine ran, and the render event records it.
  */
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
-import { convolverSizes, PairConvolver, StreamingConvolver } from "../curves/convolver";
+import { convolverSizes, PairConvolver, StreamingConvolver } from "./convolver";
 import { decodeInterleaved, encodeInterleavedPcm } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 

@@ -31,5 +31,6 @@ export { BwfWriter } from "./writer";
 export type { BwfWriterOptions, BwfWriteResult } from "./writer";
 export { renderAccessCopy, RenderError } from "./render";
 export type { EqualizationNote, RenderOptions, RenderResult } from "./render";
+export { convolveDirect, convolverSizes, PairConvolver, StreamingConvolver } from "./convolver";
 export { CHANNEL_MODE_TEXT, mixToMono } from "./channel-mode";
 export type { ChannelMode } from "./channel-mode";

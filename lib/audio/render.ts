@@ -28,6 +28,12 @@
  * dithered write give. The writer knows the length in advance, so the file's
  * SHA-256 is taken as it is written.
  *
+ * In the code: `planRender` (options, sizes, limit, coding history, progress) →
+ * `measurePass` (pass 1: read, filter, measure; write at 0 dB or keep the signal,
+ * `KeptSignal`) → `trimPass` (pass 2, only with a trim: scale, dither, encode) →
+ * `finishRender` (the result). `filterPass` and `runChain` are the filter both
+ * passes share.
+ *
  * The end of the signal is flushed with `delaySamples` zeros so the last
  * samples get their full response; output length = input length.
  * At another rate than the transfer's (the lab's choice), the filtered signal is
@@ -45,11 +51,12 @@ import { fullScalePositive } from "./codecs";
 import type { SampleEncoding } from "./codecs";
 import type { WavHeader } from "./header";
 import type { ByteSource } from "./source";
-import { convolverSizes } from "../curves/convolver";
+import { convolverSizes } from "./convolver";
 import { defaultDsp } from "./dsp";
 import type { DspEngine } from "./dsp";
 import { Resampler } from "./resample";
 import { BwfWriter } from "./writer";
+import type { BwfWriteResult } from "./writer";
 
 export interface EqualizationNote {
   /** The curve as the coding history should record it, e.g. "turnover 318 us; shelf 3180 us; rolloff 75 us; 0 dB at 1000 Hz". */
@@ -169,11 +176,19 @@ async function runChain(
   };
 
   // Read ahead: the next chunk is on its way (from the disk or the bucket) while this one is filtered.
+  // A source that reads into buffers gets two, taking turns: a chunk is decoded before its
+  // buffer's turn comes again, and the render allocates nothing per chunk.
+  const buffers = source.readInto
+    ? [new Uint8Array(chunkFrames * header.blockAlign), new Uint8Array(chunkFrames * header.blockAlign)]
+    : null;
   const readChunk = (start: number) => {
-    const pending = source.read(
-      header.dataOffset + start * header.blockAlign,
-      Math.min(chunkFrames, header.frames - start) * header.blockAlign,
-    );
+    const offset = header.dataOffset + start * header.blockAlign;
+    const length = Math.min(chunkFrames, header.frames - start) * header.blockAlign;
+    let pending: Promise<Uint8Array>;
+    if (buffers && source.readInto) {
+      const buffer = buffers[(start / chunkFrames) % 2].subarray(0, length);
+      pending = source.readInto(offset, buffer).then((got) => buffer.subarray(0, got));
+    } else pending = source.read(offset, length);
     pending.catch(() => {}); // awaited below; this only keeps an early failure from going unheard
     return pending;
   };
@@ -208,8 +223,33 @@ function modeWord(channels: number): string {
   return channels === 1 ? "mono" : "stereo";
 }
 
-/** Render the equalized access copy. See the file comment for the chain. */
-export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResult> {
+/** What every pass of one render shares: the options, resolved, and the measures derived from them. */
+interface RenderPlan {
+  opts: RenderOptions;
+  dsp: DspEngine;
+  mode: ChannelMode;
+  channelsOut: 1 | 2;
+  chunkFrames: number;
+  output: SampleEncoding;
+  /** Rate of the access copy; `resampled` when it is not the transfer's. */
+  outRate: number;
+  resampled: boolean;
+  /** Frames of the access copy. */
+  outFrames: number;
+  /** The largest filtered magnitude written at 0 dB: the ceiling, less room for dither and rounding on integer output. */
+  limit: number;
+  /** The coding history of a copy written with this trim (dB). */
+  codingHistoryFor: (trimDb: number) => string;
+  /** Progress of pass `pass` (1 or 2) as a fraction of it; never goes back. */
+  progress: (pass: number, fraction: number) => void;
+  /** A second pass is needed after all: the passes left grow by one. */
+  planSecondPass: () => void;
+  /** Say 1 if not yet said. */
+  progressDone: () => void;
+}
+
+/** Checks the options and works out the sizes, the peak limit, the coding history and the progress scale. */
+function planRender(opts: RenderOptions): RenderPlan {
   const { header, filter } = opts;
   const mode = opts.channelMode ?? "both";
   const output = opts.output ?? DEFAULT_OUTPUT;
@@ -237,227 +277,363 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
     ? Resampler.expectedFrames(header.frames, header.sampleRateHz, outRate)
     : header.frames;
 
-  // Integer output keeps 2 LSB below the top code so the dither (< 1 LSB) and
-  // rounding (≤ ½ LSB) cannot reach past it.
-  const ceiling = 10 ** (ceilingDbfs / 20);
-  const limit =
-    output.format === "pcm"
-      ? ceiling * (fullScalePositive(output) - 2 ** -(output.bitsPerSample - 1))
-      : ceiling * (1 - 2 ** -24);
+  const progress = progressScale(opts.onProgress ?? (() => {}));
+  return {
+    opts,
+    dsp,
+    mode,
+    channelsOut,
+    chunkFrames,
+    output,
+    outRate,
+    resampled,
+    outFrames,
+    limit: peakLimit(output, ceilingDbfs),
+    codingHistoryFor: (trimDb) => renderCodingHistory(opts, { mode, output, outRate, channelsOut, trimDb }),
+    ...progress,
+  };
+}
 
-  const transferLine = formatCodingHistoryLine({
-    algorithm: "PCM",
-    samplingHz: header.sampleRateHz,
-    wordLength: header.bitsPerSample,
-    mode: modeWord(header.channels),
-    text: `flat transfer${header.format === "float" ? "; IEEE float" : ""}`,
-  });
+/**
+ * The largest filtered magnitude a copy may carry: the ceiling, and on integer output 2 LSB
+ * below the top code so the dither (< 1 LSB) and rounding (≤ ½ LSB) cannot reach past it.
+ */
+function peakLimit(output: SampleEncoding, ceilingDbfs: number): number {
+  const ceiling = 10 ** (ceilingDbfs / 20);
+  return output.format === "pcm"
+    ? ceiling * (fullScalePositive(output) - 2 ** -(output.bitsPerSample - 1))
+    : ceiling * (1 - 2 ** -24);
+}
+
+/** The access copy's coding history (EBU R98): the transfer's own lines, then the equalization. */
+function renderCodingHistory(
+  opts: RenderOptions,
+  copy: { mode: ChannelMode; output: SampleEncoding; outRate: number; channelsOut: 1 | 2; trimDb: number },
+): string {
+  const { header } = opts;
+  const resampled = copy.outRate !== header.sampleRateHz;
   // Keep the transfer's own history (the capture chain) when it has one; otherwise describe it.
   const prior = header.bext?.codingHistory ?? "";
   const priorLines =
-    prior === "" ? transferLine : prior.endsWith("\r\n") ? prior : `${prior.replace(/[\r\n]+$/, "")}\r\n`;
-  const codingHistoryFor = (trimDb: number): string => {
-    const eq = opts.equalization;
-    const eqText = [
-      eq ? eq.software : "Rillbook",
-      eq ? `equalization ${eq.curve}` : "equalization",
-      eq ? `speed ratio ${eq.speedRatio}` : null,
-      `trim ${trimDb.toFixed(2)} dB`,
-      CHANNEL_MODE_TEXT[mode],
-      "delay-compensated FIR render filter",
-      resampled ? `resampled from ${header.sampleRateHz} Hz (libsamplerate, best sinc)` : null,
-      output.format === "pcm" ? "TPDF dither" : "float",
-    ]
-      .filter((s) => s !== null)
-      .join("; ");
-    return (
-      priorLines +
-      formatCodingHistoryLine({
-        algorithm: "PCM",
-        samplingHz: outRate,
-        wordLength: output.bitsPerSample,
-        mode: modeWord(channelsOut),
-        text: eqText,
-      })
-    );
-  };
+    prior === ""
+      ? formatCodingHistoryLine({
+          algorithm: "PCM",
+          samplingHz: header.sampleRateHz,
+          wordLength: header.bitsPerSample,
+          mode: modeWord(header.channels),
+          text: `flat transfer${header.format === "float" ? "; IEEE float" : ""}`,
+        })
+      : prior.endsWith("\r\n")
+        ? prior
+        : `${prior.replace(/[\r\n]+$/, "")}\r\n`;
+  const eq = opts.equalization;
+  const eqText = [
+    eq ? eq.software : "Rillbook",
+    eq ? `equalization ${eq.curve}` : "equalization",
+    eq ? `speed ratio ${eq.speedRatio}` : null,
+    `trim ${copy.trimDb.toFixed(2)} dB`,
+    CHANNEL_MODE_TEXT[copy.mode],
+    "delay-compensated FIR render filter",
+    resampled ? `resampled from ${header.sampleRateHz} Hz (libsamplerate, best sinc)` : null,
+    copy.output.format === "pcm" ? "TPDF dither" : "float",
+  ]
+    .filter((s) => s !== null)
+    .join("; ");
+  return (
+    priorLines +
+    formatCodingHistoryLine({
+      algorithm: "PCM",
+      samplingHz: copy.outRate,
+      wordLength: copy.output.bitsPerSample,
+      mode: modeWord(copy.channelsOut),
+      text: eqText,
+    })
+  );
+}
 
-  // Progress: one pass is planned; a second one (the trim) adds to the work left. Never goes back.
-  const report = opts.onProgress ?? (() => {});
+/** Progress over the passes: one is planned; a second one (the trim) adds to the work left. Never goes back. */
+function progressScale(
+  report: (fraction: number) => void,
+): Pick<RenderPlan, "progress" | "planSecondPass" | "progressDone"> {
   let shown = 0;
   let passesPlanned = 1;
-  const progress = (pass: number, fraction: number) => {
-    const overall = Math.min(1, (pass - 1 + fraction) / passesPlanned);
-    if (overall > shown) report((shown = overall));
+  return {
+    progress(pass, fraction) {
+      const overall = Math.min(1, (pass - 1 + fraction) / passesPlanned);
+      if (overall > shown) report((shown = overall));
+    },
+    planSecondPass() {
+      passesPlanned = 2;
+    },
+    progressDone() {
+      if (shown < 1) report((shown = 1));
+    },
   };
+}
 
-  const createWriter = (gain: number) =>
-    BwfWriter.create(opts.outputPath, {
-      sampleRateHz: outRate,
-      channels: channelsOut,
-      encoding: output,
-      bext: { ...opts.bext, codingHistory: codingHistoryFor(toDb(gain)) },
-      unicodeText: opts.unicodeText,
-      ditherSeed: opts.ditherSeed,
-      rf64ThresholdBytes: opts.rf64ThresholdBytes,
-      dsp,
-      expectedFrames: outFrames,
-      // A render's file is a working copy that is stored elsewhere (the bucket) afterwards.
-      sync: false,
-    });
+/** A writer for the access copy at linear `gain`, its coding history saying so. */
+function createWriter(plan: RenderPlan, gain: number): Promise<BwfWriter> {
+  const { opts } = plan;
+  return BwfWriter.create(opts.outputPath, {
+    sampleRateHz: plan.outRate,
+    channels: plan.channelsOut,
+    encoding: plan.output,
+    bext: { ...opts.bext, codingHistory: plan.codingHistoryFor(toDb(gain)) },
+    unicodeText: opts.unicodeText,
+    ditherSeed: opts.ditherSeed,
+    rf64ThresholdBytes: opts.rf64ThresholdBytes,
+    dsp: plan.dsp,
+    expectedFrames: plan.outFrames,
+    // A render's file is a working copy that is stored elsewhere (the bucket) afterwards.
+    sync: false,
+  });
+}
 
-  /** The chain over the transfer, resampled when asked; `sink` as runChain's. */
-  const filtered = async (
-    passNumber: number,
-    sink: (samples: Float64Array, frames: number) => Promise<boolean | void>,
-  ) => {
-    const resampler = resampled
-      ? await Resampler.create(channelsOut, header.sampleRateHz, outRate, header.frames)
-      : null;
-    let more = true;
-    await runChain(
-      opts,
-      dsp,
-      mode,
-      channelsOut,
-      chunkFrames,
-      async (samples, frames) => {
-        if (!resampler) return (more = (await sink(samples, frames)) !== false);
-        const out = resampler.process(samples.subarray(0, frames * channelsOut));
-        return (more = (await sink(out, out.length / channelsOut)) !== false);
-      },
-      (done) => progress(passNumber, done / Math.max(1, header.frames)),
-    );
-    if (resampler && more) {
-      const tail = resampler.finish();
-      await sink(tail, tail.length / channelsOut);
-    }
-  };
+/**
+ * The filter: the chain over the transfer, resampled when asked. `sink` gets the aligned
+ * output in order, as runChain's does, and may answer `false` to stop.
+ */
+async function filterPass(
+  plan: RenderPlan,
+  passNumber: number,
+  sink: (samples: Float64Array, frames: number) => Promise<boolean | void>,
+): Promise<void> {
+  const { opts, channelsOut } = plan;
+  const { header } = opts;
+  const resampler = plan.resampled
+    ? await Resampler.create(channelsOut, header.sampleRateHz, plan.outRate, header.frames)
+    : null;
+  let more = true;
+  await runChain(
+    opts,
+    plan.dsp,
+    plan.mode,
+    channelsOut,
+    plan.chunkFrames,
+    async (samples, frames) => {
+      if (!resampler) return (more = (await sink(samples, frames)) !== false);
+      const out = resampler.process(samples.subarray(0, frames * channelsOut));
+      return (more = (await sink(out, out.length / channelsOut)) !== false);
+    },
+    (done) => plan.progress(passNumber, done / Math.max(1, header.frames)),
+  );
+  if (resampler && more) {
+    const tail = resampler.finish();
+    await sink(tail, tail.length / channelsOut);
+  }
+}
 
-  const spillPath = `${opts.outputPath}.filtered`;
-  let spill: { handle: FileHandle; fromFrame: number; bytes: number } | null = null;
-  try {
-    // Pass 1: write at 0 dB while the peak allows; past that, measure (and keep the rest, if there is room).
-    let writer: BwfWriter | null = await createWriter(1);
-    let peak = 0;
-    let emitted = 0;
+/**
+ * The filtered signal as it is (float64, 8 bytes a sample, so pass 2 writes exactly what
+ * filtering again would give), from frame `fromFrame` of the output on, in a working file
+ * beside the access copy: the render's own temporary folder, removed with it.
+ */
+class KeptSignal {
+  private bytes = 0;
+  private constructor(
+    private readonly path: string,
+    private handle: FileHandle | null,
+    readonly fromFrame: number,
+    private readonly channels: number,
+  ) {}
+
+  /** A working file when the disk has room for the rest of the signal, else null (pass 2 filters again). */
+  static async open(plan: RenderPlan, fromFrame: number): Promise<KeptSignal | null> {
+    const path = `${plan.opts.outputPath}.filtered`;
+    const need = (plan.outFrames - fromFrame) * plan.channelsOut * 8;
+    if (plan.opts.keepFiltered === "never" || !(await hasRoom(path, need))) return null;
+    return new KeptSignal(path, await open(path, "w+"), fromFrame, plan.channelsOut);
+  }
+
+  /** Appends; false when the disk filled up after all (something else wrote to it): the file is dropped. */
+  async append(samples: Float64Array, frames: number): Promise<boolean> {
+    if (!this.handle) return false;
+    const length = frames * this.channels * 8;
     try {
-      await filtered(1, async (samples, frames) => {
-        if (frames === 0) return;
-        const p = dsp.peak(samples, frames * channelsOut);
-        if (p > peak) peak = p;
-        if (writer && peak > limit) {
-          // It needs a trim after all: stop writing, finish measuring, then pass 2.
-          await writer.abort();
-          writer = null;
-          passesPlanned = 2;
-          const need = (outFrames - emitted) * channelsOut * 8;
-          if (opts.keepFiltered !== "never" && (await hasRoom(spillPath, need)))
-            spill = { handle: await open(spillPath, "w+"), fromFrame: emitted, bytes: 0 };
-        }
-        if (writer) await writer.writeInterleaved(samples, frames, 1);
-        else if (spill) {
-          // The filtered samples as they are (float64), so pass 2 need not filter them again.
-          const kept = spill as { handle: FileHandle; bytes: number };
-          try {
-            await kept.handle.write(
-              new Uint8Array(samples.buffer, samples.byteOffset, frames * channelsOut * 8),
-              0,
-              frames * channelsOut * 8,
-              kept.bytes,
-            );
-            kept.bytes += frames * channelsOut * 8;
-          } catch {
-            // The disk filled up after all (something else wrote to it): drop the working file and filter again in pass 2.
-            await kept.handle.close().catch(() => {});
-            await unlink(spillPath).catch(() => {});
-            spill = null;
-          }
-        }
-        emitted += frames;
-      });
-    } catch (error) {
-      if (writer) await (writer as BwfWriter).abort();
-      throw error;
+      await this.handle.write(
+        new Uint8Array(samples.buffer, samples.byteOffset, length),
+        0,
+        length,
+        this.bytes,
+      );
+      this.bytes += length;
+      return true;
+    } catch {
+      await this.discard();
+      return false;
     }
-    let gain = 1;
-    let written = writer ? await (writer as BwfWriter).close() : null;
-    let secondPass: RenderResult["secondPass"] = null;
+  }
 
-    if (!written) {
-      // Pass 2: the trim. Filter again up to where pass 1 began to keep the samples; read the rest back.
-      gain = limit / peak;
-      const keptFrom = spill ? (spill as { fromFrame: number }).fromFrame : outFrames;
-      const second = await createWriter(gain);
-      try {
-        let done = 0;
-        let peak2 = 0;
-        const put = async (samples: Float64Array, frames: number) => {
-          const p = dsp.peak(samples, frames * channelsOut);
-          if (p > peak2) peak2 = p;
-          await second.writeInterleaved(samples, frames, gain);
-          done += frames;
-          progress(2, done / Math.max(1, outFrames));
-        };
-        if (keptFrom > 0) {
-          await filtered(2, async (samples, frames) => {
-            const take = Math.min(frames, keptFrom - done);
-            if (take > 0) await put(samples, take);
-            return done < keptFrom;
-          });
-        }
-        if (spill) {
-          const { handle } = spill as { handle: FileHandle };
-          const buffer = new Float64Array(chunkFrames * channelsOut);
-          const bytes = new Uint8Array(buffer.buffer);
-          for (let at = 0; done < outFrames;) {
-            const frames = Math.min(chunkFrames, outFrames - done);
-            const { bytesRead } = await handle.read(bytes, 0, frames * channelsOut * 8, at);
-            if (bytesRead !== frames * channelsOut * 8)
-              throw new RenderError(`The render's working file ended early, at byte ${at + bytesRead}.`);
-            at += bytesRead;
-            await put(buffer, frames);
-          }
-        }
-        if (done !== outFrames || peak2 > peak)
-          throw new RenderError(
-            `The second pass gave ${done} frames peaking at ${peak2}; the first ${outFrames} at ${peak}.`,
-          );
-        written = await second.close();
-        secondPass = { filteredFrames: keptFrom, readBackFrames: outFrames - keptFrom };
-      } catch (error) {
-        await second.abort();
-        throw error;
+  /** Reads the kept frames back in order, `chunkFrames` at a time, into one reused array. */
+  async readBack(
+    chunkFrames: number,
+    sink: (samples: Float64Array, frames: number) => Promise<void>,
+  ): Promise<number> {
+    if (!this.handle) throw new RenderError("The render's working file is gone.");
+    const buffer = new Float64Array(chunkFrames * this.channels);
+    const bytes = new Uint8Array(buffer.buffer);
+    const total = this.bytes / (this.channels * 8);
+    let at = 0;
+    for (let done = 0; done < total;) {
+      const frames = Math.min(chunkFrames, total - done);
+      const { bytesRead } = await this.handle.read(bytes, 0, frames * this.channels * 8, at);
+      if (bytesRead !== frames * this.channels * 8)
+        throw new RenderError(`The render's working file ended early, at byte ${at + bytesRead}.`);
+      at += bytesRead;
+      await sink(buffer, frames);
+      done += frames;
+    }
+    return total;
+  }
+
+  /** Closes and removes the working file. */
+  async discard(): Promise<void> {
+    const handle = this.handle;
+    this.handle = null;
+    if (handle) await handle.close().catch(() => {});
+    await unlink(this.path).catch(() => {});
+  }
+}
+
+interface Measured {
+  /** Peak magnitude of the filtered signal. */
+  peak: number;
+  /** The copy at 0 dB when the whole signal fitted under the limit, else null (a trim is needed). */
+  written: BwfWriteResult | null;
+  /** The filtered signal kept from where the peak passed the limit, when there was room. */
+  kept: KeptSignal | null;
+}
+
+/**
+ * Pass 1, read and measure: filters the transfer and measures its peak, writing the copy at
+ * 0 dB while the peak allows; once it passes the limit, stops writing and measures on,
+ * keeping the rest of the filtered signal (if there is room) for pass 2.
+ */
+async function measurePass(plan: RenderPlan): Promise<Measured> {
+  const { dsp, channelsOut, limit } = plan;
+  let writer: BwfWriter | null = await createWriter(plan, 1);
+  let kept: KeptSignal | null = null;
+  let peak = 0;
+  let emitted = 0;
+  try {
+    await filterPass(plan, 1, async (samples, frames) => {
+      if (frames === 0) return;
+      const p = dsp.peak(samples, frames * channelsOut);
+      if (p > peak) peak = p;
+      if (writer && peak > limit) {
+        // It needs a trim after all: stop writing, finish measuring, then pass 2.
+        await writer.abort();
+        writer = null;
+        plan.planSecondPass();
+        kept = await KeptSignal.open(plan, emitted);
       }
-    }
+      if (writer) await writer.writeInterleaved(samples, frames, 1);
+      else if (kept && !(await kept.append(samples, frames))) kept = null;
+      emitted += frames;
+    });
+    const written = writer ? await (writer as BwfWriter).close() : null;
+    return { peak, written, kept };
+  } catch (error) {
+    if (writer) await (writer as BwfWriter).abort();
+    if (kept) await (kept as KeptSignal).discard();
+    throw error;
+  }
+}
 
-    // The writer hashed the file as it wrote it; it cannot have, only if the length came out other than planned.
-    if (written.sha256 === null)
-      throw new RenderError(`The access copy has ${written.frames} frames where ${outFrames} were planned.`);
-    const sha256 = written.sha256;
-    if (shown < 1) report((shown = 1));
-    return {
-      frames: written.frames,
-      channels: channelsOut,
-      peakDbfs: toDb(peak),
-      outputPeakDbfs: toDb(peak * gain),
-      trimDb: toDb(gain),
-      clippedSamples: written.clippedSamples,
-      sha256,
-      outputBytes: written.bytes,
-      container: written.container,
-      codingHistory: codingHistoryFor(toDb(gain)),
-      engine: dsp.name,
-      secondPass,
+/**
+ * Pass 2, scale, dither and encode: writes the copy with the trim. The part before the kept
+ * signal is filtered again (the same arithmetic, so the same samples: its frame count and peak
+ * are checked); the kept signal is read back as it was measured.
+ */
+async function trimPass(
+  plan: RenderPlan,
+  measured: Measured,
+): Promise<{ written: BwfWriteResult; gain: number; secondPass: NonNullable<RenderResult["secondPass"]> }> {
+  const { dsp, channelsOut, outFrames } = plan;
+  const { peak, kept } = measured;
+  const gain = plan.limit / peak;
+  const keptFrom = kept ? kept.fromFrame : outFrames;
+  const writer = await createWriter(plan, gain);
+  try {
+    let done = 0;
+    let peakAgain = 0;
+    const put = async (samples: Float64Array, frames: number) => {
+      await writer.writeInterleaved(samples, frames, gain);
+      done += frames;
+      plan.progress(2, done / Math.max(1, outFrames));
     };
+    if (keptFrom > 0) {
+      await filterPass(plan, 2, async (samples, frames) => {
+        const take = Math.min(frames, keptFrom - done);
+        if (take > 0) {
+          const p = dsp.peak(samples, take * channelsOut);
+          if (p > peakAgain) peakAgain = p;
+          await put(samples, take);
+        }
+        return done < keptFrom;
+      });
+    }
+    if (kept) await kept.readBack(plan.chunkFrames, put);
+    if (done !== outFrames || peakAgain > peak)
+      throw new RenderError(
+        `The second pass gave ${done} frames peaking at ${peakAgain}; the first ${outFrames} at ${peak}.`,
+      );
+    return {
+      written: await writer.close(),
+      gain,
+      secondPass: { filteredFrames: keptFrom, readBackFrames: outFrames - keptFrom },
+    };
+  } catch (error) {
+    await writer.abort();
+    throw error;
+  }
+}
+
+/** The result: what was written, at what trim, by which engine. */
+function finishRender(
+  plan: RenderPlan,
+  peak: number,
+  gain: number,
+  written: BwfWriteResult,
+  secondPass: RenderResult["secondPass"],
+): RenderResult {
+  // The writer hashed the file as it wrote it; it cannot have, only if the length came out other than planned.
+  if (written.sha256 === null)
+    throw new RenderError(
+      `The access copy has ${written.frames} frames where ${plan.outFrames} were planned.`,
+    );
+  plan.progressDone();
+  return {
+    frames: written.frames,
+    channels: plan.channelsOut,
+    peakDbfs: toDb(peak),
+    outputPeakDbfs: toDb(peak * gain),
+    trimDb: toDb(gain),
+    clippedSamples: written.clippedSamples,
+    sha256: written.sha256,
+    outputBytes: written.bytes,
+    container: written.container,
+    codingHistory: plan.codingHistoryFor(toDb(gain)),
+    engine: plan.dsp.name,
+    secondPass,
+  };
+}
+
+/** Render the equalized access copy. See the file comment for the chain and its passes. */
+export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResult> {
+  const plan = planRender(opts);
+  let kept: KeptSignal | null = null;
+  try {
+    const measured = await measurePass(plan);
+    kept = measured.kept;
+    if (measured.written) return finishRender(plan, measured.peak, 1, measured.written, null);
+    const { written, gain, secondPass } = await trimPass(plan, measured);
+    return finishRender(plan, measured.peak, gain, written, secondPass);
   } catch (error) {
     await unlink(opts.outputPath).catch(() => {});
     throw error;
   } finally {
-    if (spill) {
-      await (spill as { handle: FileHandle }).handle.close().catch(() => {});
-      await unlink(spillPath).catch(() => {});
-    }
+    await kept?.discard();
   }
 }
 

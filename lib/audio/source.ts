@@ -13,6 +13,12 @@ export interface ByteSource {
    * runs past the end of the source.
    */
   read(offset: number, length: number): Promise<Uint8Array>;
+  /**
+   * Optional: bytes [offset, offset + target.length) into `target`, answering how many were
+   * read (fewer only at the end of the source). A render reads through two reused buffers
+   * this way rather than allocating one per chunk.
+   */
+  readInto?(offset: number, target: Uint8Array): Promise<number>;
 }
 
 export interface ClosableByteSource extends ByteSource {
@@ -33,19 +39,24 @@ export function bufferSource(bytes: Uint8Array): ByteSource {
 export async function openFileSource(path: string): Promise<ClosableByteSource> {
   const handle = await open(path, "r");
   const { size } = await handle.stat();
+  const readInto = async (offset: number, target: Uint8Array): Promise<number> => {
+    const want = Math.max(0, Math.min(target.length, size - offset));
+    let got = 0;
+    while (got < want) {
+      const { bytesRead } = await handle.read(target, got, want - got, offset + got);
+      if (bytesRead === 0) break;
+      got += bytesRead;
+    }
+    return got;
+  };
   return {
     size,
     async read(offset: number, length: number): Promise<Uint8Array> {
-      const want = Math.max(0, Math.min(length, size - offset));
-      const out = new Uint8Array(want);
-      let got = 0;
-      while (got < want) {
-        const { bytesRead } = await handle.read(out, got, want - got, offset + got);
-        if (bytesRead === 0) break;
-        got += bytesRead;
-      }
-      return got === want ? out : out.subarray(0, got);
+      const out = new Uint8Array(Math.max(0, Math.min(length, size - offset)));
+      const got = await readInto(offset, out);
+      return got === out.length ? out : out.subarray(0, got);
     },
+    readInto,
     close: () => handle.close(),
   };
 }

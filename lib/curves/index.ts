@@ -39,7 +39,6 @@ export {
   RENDER_TARGET_DEG,
 } from "./render-filter";
 export type { RenderFilter, RenderFilterOptions } from "./render-filter";
-export { PairConvolver, StreamingConvolver, convolveDirect, convolverSizes } from "./convolver";
 export { fitCurve, FIT_PARAMETERS } from "./fit";
 export type { FitParameter, FitRequest, FitResult, FitResidual, FittedCorner } from "./fit";
 export { parsePointsCsv, PointsParseError } from "./points-csv";

@@ -11,8 +11,8 @@ import {
   logGrid,
   RIAA_SPEC,
   sosResponse,
-  StreamingConvolver,
 } from "../../lib/curves";
+import { StreamingConvolver } from "../../lib/audio/convolver";
 import type { CurveSpec } from "../../lib/curves";
 
 function timeIt(label: string, unit: string, fn: () => number, minMs = 1500): void {

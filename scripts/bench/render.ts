@@ -12,7 +12,10 @@
  * no delay compensation), and sox's `biquad` with the curve's IIR sections, for
  * comparison; all pinned to one CPU. Then renders
  * the file again under a lower ceiling, so that it needs a trim (two passes),
- * and prints that too. All files are removed afterwards.
+ * and prints that too, and once more with the JavaScript engine, to measure what
+ * the native one gains. Beside the wall times it prints the CPU time each run
+ * took (user + system, from the process itself or bash's `times`): on a machine
+ * other work shares, that is the steadier figure. All files are removed afterwards.
  */
 import { spawn, execFile } from "node:child_process";
 import { mkdtemp, rm, stat, writeFile } from "node:fs/promises";
@@ -21,18 +24,28 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { promisify } from "node:util";
 import { BwfWriter, openFileSource, readWavHeader, renderAccessCopy } from "../../lib/audio";
+import { jsDsp } from "../../lib/audio/dsp";
 import { designIir, designRenderFilter, RIAA_SPEC } from "../../lib/curves";
 
 const RATE_HZ = 96_000;
 const run = promisify(execFile);
 
-async function child(input: string, output: string, ceilingDbfs: number): Promise<void> {
+async function child(input: string, output: string, ceilingDbfs: number, engine: string): Promise<void> {
   const t0 = performance.now();
   const source = await openFileSource(input);
   const header = await readWavHeader(source);
   const filter = designRenderFilter(RIAA_SPEC, header.sampleRateHz);
   const t1 = performance.now();
-  const result = await renderAccessCopy({ source, header, filter, outputPath: output, ceilingDbfs });
+  const cpu0 = process.cpuUsage();
+  const result = await renderAccessCopy({
+    source,
+    header,
+    filter,
+    outputPath: output,
+    ceilingDbfs,
+    dsp: engine === "js" ? jsDsp : undefined,
+  });
+  const cpu = process.cpuUsage(cpu0);
   const t2 = performance.now();
   await source.close();
   const { readFileSync } = await import("node:fs");
@@ -42,6 +55,7 @@ async function child(input: string, output: string, ceilingDbfs: number): Promis
     JSON.stringify({
       designMs: t1 - t0,
       renderMs: t2 - t1,
+      cpuMs: (cpu.user + cpu.system) / 1000,
       frames: result.frames,
       trimDb: result.trimDb,
       peakDbfs: result.peakDbfs,
@@ -99,6 +113,7 @@ function runChild(
   input: string,
   output: string,
   ceilingDbfs = 0,
+  engine = "default",
 ): Promise<{ wallMs: number; report: Record<string, number | string | null> }> {
   const self = fileURLToPath(import.meta.url);
   const t0 = performance.now();
@@ -112,6 +127,7 @@ function runChild(
     input,
     output,
     String(ceilingDbfs),
+    engine,
   ];
   return new Promise((resolve, reject) => {
     const p = spawn(argv[0], argv.slice(1), { stdio: ["ignore", "pipe", "inherit"] });
@@ -161,8 +177,7 @@ async function main(): Promise<void> {
     await rm(output, { force: true });
 
     t = performance.now();
-    const soxArgv = [...pin, "sox", "--single-threaded", input, "-b", "24", soxOut, "fir", tapsFile];
-    await run(soxArgv[0], soxArgv.slice(1), { maxBuffer: 1 << 20 });
+    const soxCpuS = await timedSox(pin, [input, "-b", "24", soxOut, "fir", tapsFile]);
     const soxS = (performance.now() - t) / 1000;
     const theirs = samples / soxS;
     await rm(soxOut, { force: true });
@@ -196,6 +211,10 @@ async function main(): Promise<void> {
     console.log(
       `sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`,
     );
+    const ourCpuS = (report.cpuMs as number) / 1000;
+    console.log(
+      `CPU time: Rillbook ${ourCpuS.toFixed(2)} s, sox fir ${soxCpuS.toFixed(2)} s (ratio ${(soxCpuS / ourCpuS).toFixed(2)})`,
+    );
     console.log(
       `sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`,
     );
@@ -212,8 +231,21 @@ async function main(): Promise<void> {
     const trimmed = await runChild(pin, input, output, ceilingDbfs);
     await rm(output, { force: true });
     const trimmedS = (trimmed.report.renderMs as number) / 1000;
+    const trimmedCpuS = (trimmed.report.cpuMs as number) / 1000;
     console.log(
-      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, peak RSS ${mb(trimmed.report.maxRssKb)}`,
+      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, CPU ${trimmedCpuS.toFixed(2)} s (ratio ${(soxCpuS / trimmedCpuS).toFixed(2)}), peak RSS ${mb(trimmed.report.maxRssKb)}`,
+    );
+
+    // The same one-pass render with the JavaScript engine (the fallback where the native one is not built).
+    const js = await runChild(pin, input, output, 0, "js");
+    await rm(output, { force: true });
+    const jsS = (js.report.renderMs as number) / 1000;
+    const jsCpuS = (js.report.cpuMs as number) / 1000;
+    console.log(
+      `JavaScript engine (${js.report.engine}), one pass: ${jsS.toFixed(1)} s, CPU ${jsCpuS.toFixed(2)} s, ${(audioS / jsS).toFixed(1)}× real time`,
+    );
+    console.log(
+      `native engine speed-up: ${(jsS / renderS).toFixed(1)}× (wall), ${(jsCpuS / ourCpuS).toFixed(1)}× (CPU time)`,
     );
     // The two figures on lines of their own, for scripts that read them.
     console.log(`ratio one pass: ${(ours / theirs).toFixed(2)}`);
@@ -223,11 +255,24 @@ async function main(): Promise<void> {
   }
 }
 
+/** Runs sox with `args`, pinned as the renders are; answers its CPU time (user + system, s) from bash's `times`. */
+async function timedSox(pin: string[], args: string[]): Promise<number> {
+  const argv = [...pin, "bash", "-c", 'sox --single-threaded "$@" && times', "bash", ...args];
+  const { stdout } = await run(argv[0], argv.slice(1), { maxBuffer: 1 << 20 });
+  // `times` prints the shell's own user and system time, then its children's: "0m1.990s 0m0.230s".
+  const children = stdout.trim().split("\n").at(-1) ?? "";
+  const seconds = [...children.matchAll(/(\d+)m([\d.]+)s/g)].map((m) => Number(m[1]) * 60 + Number(m[2]));
+  if (seconds.length !== 2) throw new Error(`Could not read sox's CPU time from "${children}".`);
+  return seconds[0] + seconds[1];
+}
+
 if (process.argv[2] === "--child") {
-  child(process.argv[3], process.argv[4], Number(process.argv[5] ?? 0)).catch((e) => {
-    console.error(e);
-    process.exit(1);
-  });
+  child(process.argv[3], process.argv[4], Number(process.argv[5] ?? 0), process.argv[6] ?? "default").catch(
+    (e) => {
+      console.error(e);
+      process.exit(1);
+    },
+  );
 } else {
   main().catch((e) => {
     console.error(e);

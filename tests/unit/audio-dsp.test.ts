@@ -2,10 +2,16 @@ import { mkdtemp, readFile, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { BwfWriter, openFileSource, readWavHeader, renderAccessCopy, TpdfDither } from "@/lib/audio";
+import {
+  BwfWriter,
+  convolveDirect,
+  openFileSource,
+  readWavHeader,
+  renderAccessCopy,
+  TpdfDither,
+} from "@/lib/audio";
 import { jsDsp, nativeDsp, nativeDspProblem } from "@/lib/audio/dsp";
 import type { DspEngine } from "@/lib/audio/dsp";
-import { convolveDirect } from "@/lib/curves";
 import { testRandom, testSignal } from "../support/wav-corpus";
 
 // The two commands build the native engine before any test runs; a missing build is a failure here, not a

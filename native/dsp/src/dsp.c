@@ -1,6 +1,6 @@
 /*
  * Rillbook's native render kernels: the loops of an access-copy render that
- * JavaScript runs several times slower than compiled code.
+ * JavaScript runs about 3 times slower than this (scripts/bench/render.ts).
  *
  *   decode(bytes, bits, isFloat, out)                 interleaved WAVE data → float64
  *   encode(samples, count, gain, bits, dither, out)   float64 → interleaved PCM, TPDF dither
@@ -9,7 +9,7 @@
  *     .process(input, frames, output)                 interleaved float64 in and out
  *
  * Each one does exactly what its JavaScript twin in lib/audio does (codecs.ts,
- * lib/curves/convolver.ts): the same scaling, the same dither sequence and the
+ * lib/audio/convolver.ts): the same scaling, the same dither sequence and the
  * same rounding, so the two engines write the same bytes; tests compare them.
  * The FFTs are FFTW 3 (double precision, Debian's libfftw3), planned with
  * FFTW_ESTIMATE so a render starts at once. FFTW's planner is not thread-safe:

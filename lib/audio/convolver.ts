@@ -10,7 +10,7 @@
  * points of the circular convolution are wrapped and thrown away), so chunks of
  * `blockSize` samples are the efficient size; any other size is correct too.
  */
-import { fftFor, nextPowerOfTwo, realSpectrum } from "./fft";
+import { fftFor, nextPowerOfTwo, realSpectrum } from "../curves/fft";
 
 /**
  * The overlap-save sizes for a filter of `tapCount` taps: the FFT (default about 4·taps,

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { convolveDirect, PairConvolver, StreamingConvolver } from "@/lib/curves";
+import { convolveDirect, PairConvolver, StreamingConvolver } from "@/lib/audio";
 import { testRandom } from "../support/wav-corpus";
 
 describe("streaming convolver", () => {

@@ -13,6 +13,7 @@ import { createHash } from "node:crypto";
 import { performance } from "node:perf_hooks";
 import { z } from "zod";
 import { demoAccounts } from "../../db/seed-data";
+import { cpuSecondsBetween, cpuSnapshot, processGroups } from "./cpu";
 import type { Role } from "../../lib/auth/roles";
 import { percentile, rampSteps, type Sample, saturationPoint, stepSummaries, summarize } from "./stats";
 
@@ -40,6 +41,12 @@ const optionsSchema = z
     drain: z.coerce.number().min(0).max(600).default(60),
     limit: z.coerce.number().positive().default(500),
     json: z.string().optional(),
+    /** Seconds of unrecorded traffic first, so the app has loaded its code before anything is measured. */
+    warmup: z.coerce.number().min(0).max(120).default(5),
+    /** Only these kinds (comma-separated, by the start of their names), to profile one at a time. */
+    only: z.string().optional(),
+    /** Where the lab's PID files are, to report the CPU its processes used (npm start's demo lab by default). */
+    profileDir: z.string().default("storage/demo"),
   })
   .strict();
 type Options = z.infer<typeof optionsSchema>;
@@ -442,6 +449,19 @@ async function main(): Promise<void> {
       `${world.benchSideIds.length} bench sides, ${world.loadSideIds.length} upload sides.`,
   );
 
+  if (o.warmup > 0) {
+    const until = performance.now() + o.warmup * 1000;
+    await Promise.all(
+      clients.map(async (c) => {
+        const mine = kinds.filter((k) => k.roles.includes(c.role));
+        while (performance.now() < until)
+          await pick(mine)
+            .run(c, world)
+            .catch(() => undefined);
+      }),
+    );
+  }
+
   const samples: Sample[] = [];
   const uploads: UploadRecord[] = [];
   const failures = new Map<string, number>();
@@ -523,7 +543,11 @@ async function main(): Promise<void> {
 
   const busySides = new Set<string>();
   const runClient = async (c: Client, index: number) => {
-    const mine = kinds.filter((k) => k.roles.includes(c.role));
+    const only = o.only?.split(",").map((x) => x.trim().toLowerCase());
+    const mine = kinds.filter(
+      (k) => k.roles.includes(c.role) && (!only || only.some((x) => k.name.toLowerCase().startsWith(x))),
+    );
+    if (mine.length === 0) return;
     const total = mine.reduce((a, k) => a + k.weight, 0);
     const engineerIndex = roles.slice(0, index).filter((r) => r === "engineer").length;
     const uploadSide = c.role === "engineer" ? world.loadSideIds[engineerIndex] : undefined;
@@ -568,9 +592,15 @@ async function main(): Promise<void> {
     }
   };
 
+  const groups = processGroups(o.profileDir);
+  const cpuBefore = cpuSnapshot(groups);
+  const clientCpuBefore = process.cpuUsage();
   const runStartedAt = Date.now();
   await Promise.all([...clients.map((c, i) => runClient(c, i)), watchRenders()]);
   const runEndedAt = Date.now();
+  const cpu = cpuSecondsBetween(cpuBefore, cpuSnapshot(groups));
+  const clientCpu = process.cpuUsage(clientCpuBefore);
+  cpu["load client"] = (clientCpu.user + clientCpu.system) / 1e6;
   const elapsed = (performance.now() - t0) / 1000;
 
   // Let the renders asked for finish (bounded by --drain), then read how they went.
@@ -636,6 +666,18 @@ async function main(): Promise<void> {
       `request to access copy p50 ${percentile(turnaround, 50).toFixed(1)} s, max ${turnaround.length ? Math.max(...turnaround).toFixed(1) : "-"} s.`,
   );
   for (const f of failed) console.log(`  failed: ${f.error ?? "(no error recorded)"}`);
+
+  console.log(
+    `\nCPU during the run (s, and ms per request): ` +
+      Object.entries(cpu)
+        .map(
+          ([g, sec]) => `${g} ${sec.toFixed(1)} (${((sec * 1000) / Math.max(1, samples.length)).toFixed(1)})`,
+        )
+        .join(", ") +
+      (groups.app === undefined
+        ? ` (no PID files under ${o.profileDir}: the lab's own processes not counted)`
+        : ""),
+  );
 
   let saturation = null;
   if (o.ramp) {

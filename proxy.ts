@@ -3,6 +3,7 @@ import { type NextRequest, NextResponse } from "next/server";
 import { apiPolicy, bucketOrigins, newNonce, pagePolicy } from "./lib/http/csp";
 import { checkSameOrigin, originMessages, stateChangingMethods } from "./lib/http/same-origin";
 import { env } from "./lib/env";
+import { secureCookies } from "./lib/auth/session-cookie";
 
 // Pages anyone may open: signing in, accepting an invitation, resetting a password.
 const publicPages = /^\/(sign-in|invite\/|reset)/;
@@ -42,7 +43,7 @@ export async function proxy(req: NextRequest) {
   }
 
   if (!publicPages.test(pathname)) {
-    const token = await getToken({ req, secret: e.NEXTAUTH_SECRET });
+    const token = await getToken({ req, secret: e.NEXTAUTH_SECRET, secureCookie: secureCookies() });
     if (!token) {
       const url = req.nextUrl.clone();
       url.pathname = "/sign-in";

@@ -4,11 +4,13 @@ import CredentialsProvider from "next-auth/providers/credentials";
 import { db } from "../../db";
 import { env } from "../env";
 import { isRole } from "./roles";
+import { secureCookies } from "./session-cookie";
 import { endSessions } from "./session-version";
 import { checkCredentials } from "./sign-in";
 
 export const authOptions: NextAuthOptions = {
   secret: env().NEXTAUTH_SECRET,
+  useSecureCookies: secureCookies(),
   session: { strategy: "jwt", maxAge: 12 * 3600 },
   pages: { signIn: "/sign-in", error: "/sign-in" },
   providers: [

@@ -6,10 +6,8 @@
  * as a preset or a new version of one. All curve maths runs in the browser
  * with lib/curves; the server checks again on save.
  */
-import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
-import { useEffect, useMemo, useRef, useState, useTransition } from "react";
-import { savePresetAction } from "@/app/(lab)/curves/actions";
+import { useEffect, useMemo, useRef, useState } from "react";
 import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
@@ -17,7 +15,7 @@ import { cx } from "@/components/ui/cx";
 import { controlClass, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
-import { usePresets, usePresetVersions } from "@/hooks/use-presets";
+import { usePreset, usePresets, usePresetVersions, useSavePreset } from "@/hooks/use-presets";
 import { useUrlState } from "@/hooks/use-url-state";
 import {
   analogGainDb,
@@ -28,13 +26,12 @@ import {
   describeCurve,
   RIAA_SPEC,
 } from "@/lib/curves";
-import { fetchJson } from "@/lib/http/client";
+import { AppError } from "@/lib/http/errors";
 import { CornerFields, type FieldError } from "./corner-fields";
 import { DeviationPlot } from "./deviation-plot";
 import { FitPanel, type FitPoints } from "./fit-panel";
 import { CORNER_WORDS, CURVE_COLORS, formatDb, formatHz, formatNumber } from "./plot-format";
 import { type PlotCurve, ResponsePlot } from "./response-plot";
-import type { PresetJson } from "./types";
 
 const SAMPLE_RATES = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000];
 const MAX_COMPARE = 3;
@@ -71,7 +68,6 @@ interface CompareSlot {
 }
 
 export function Workbench({ canEdit }: { canEdit: boolean }) {
-  const queryClient = useQueryClient();
   const [presetId, setPresetId] = useUrlState("preset");
   const [spec, setSpec] = useState<CurveSpec>(RIAA_SPEC);
   const [fieldsKey, setFieldsKey] = useState(0);
@@ -82,19 +78,9 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
   const [compare, setCompare] = useState<CompareSlot[]>([]);
   const [pick, setPick] = useState("");
   const [fitPoints, setFitPoints] = useState<FitPoints | null>(null);
-  const [saveResult, setSaveResult] = useState<{
-    ok: boolean;
-    message: string;
-    fields?: Record<string, string[]>;
-  } | null>(null);
-  const [saving, startSaving] = useTransition();
   const applied = useRef<string | null>(null);
 
-  const presetQuery = useQuery({
-    queryKey: ["curve-preset", presetId],
-    queryFn: () => fetchJson<{ preset: PresetJson }>(`/api/curves/presets/${encodeURIComponent(presetId)}`),
-    enabled: !!presetId,
-  });
+  const presetQuery = usePreset(presetId);
   const versionsQuery = usePresetVersions(presetId);
   const libraryQuery = usePresets();
   const loaded = presetId ? presetQuery.data?.preset : undefined;
@@ -144,29 +130,20 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
     );
   };
 
-  const save = (asNewVersion: boolean) => {
-    setSaveResult(null);
-    startSaving(async () => {
-      const r = await savePresetAction({
-        presetId: asNewVersion ? presetId : undefined,
-        name,
-        spec,
-        notes,
-        changeNote,
-      });
-      setSaveResult(r);
-      if (r.ok) {
-        applied.current = `${r.presetId}:${r.version}`;
-        setChangeNote("");
-        await queryClient.invalidateQueries({ queryKey: ["curve-presets"] });
-        await queryClient.invalidateQueries({ queryKey: ["curve-preset", r.presetId] });
-        await queryClient.invalidateQueries({ queryKey: ["curve-preset-versions", r.presetId] });
-        if (r.presetId !== presetId) setPresetId(r.presetId);
-      }
-    });
-  };
+  const saving = useSavePreset((saved) => {
+    applied.current = `${saved.id}:${saved.version}`;
+    setChangeNote("");
+    if (saved.id !== presetId) setPresetId(saved.id);
+  });
+  const save = (asNewVersion: boolean) =>
+    saving.mutate({ presetId: asNewVersion ? presetId : undefined, name, spec, notes, changeNote });
+  const saveResult = saving.isSuccess
+    ? { ok: true, message: `Saved "${saving.data.name}" as version ${saving.data.currentVersion}.` }
+    : saving.error
+      ? { ok: false, message: saving.error.message }
+      : null;
 
-  const fieldErrors = saveResult && !saveResult.ok ? (saveResult.fields ?? {}) : {};
+  const fieldErrors = (saving.error instanceof AppError && saving.error.fields) || {};
   const peak = shownDesc?.peakGainDb ?? 0;
 
   return (
@@ -432,7 +409,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                 {loaded ? (
                   <Button
                     type="button"
-                    disabled={saving || !!check.error}
+                    disabled={saving.isPending || !!check.error}
                     onClick={() => save(true)}
                     data-testid="save-new-version"
                   >
@@ -442,13 +419,15 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                 <Button
                   type="button"
                   variant={loaded ? "secondary" : "primary"}
-                  disabled={saving || !!check.error}
+                  disabled={saving.isPending || !!check.error}
                   onClick={() => save(false)}
                   data-testid="save-new-preset"
                 >
                   Save as new preset
                 </Button>
-                {saving ? <span className="self-center text-sm text-ink-faint">Saving…</span> : null}
+                {saving.isPending ? (
+                  <span className="self-center text-sm text-ink-faint">Saving…</span>
+                ) : null}
               </div>
               {check.error ? <p className="text-xs text-ink-faint">Fix the curve before saving.</p> : null}
               {saveResult ? (

@@ -15,7 +15,7 @@ import { cx } from "@/components/ui/cx";
 import { controlClass, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
-import { usePreset, usePresets, usePresetVersions, useSavePreset } from "@/hooks/use-presets";
+import { usePreset, usePresetVersions, useSavePreset } from "@/hooks/use-presets";
 import { useUrlState } from "@/hooks/use-url-state";
 import {
   analogGainDb,
@@ -30,6 +30,7 @@ import { AppError } from "@/lib/http/errors";
 import { CornerFields, type FieldError } from "./corner-fields";
 import { DeviationPlot } from "./deviation-plot";
 import { FitPanel, type FitPoints } from "./fit-panel";
+import { PresetPicker } from "./preset-picker";
 import { CORNER_WORDS, CURVE_COLORS, formatDb, formatHz, formatNumber } from "./plot-format";
 import { type PlotCurve, ResponsePlot } from "./response-plot";
 
@@ -76,13 +77,11 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
   const [changeNote, setChangeNote] = useState("");
   const [sampleRateHz, setSampleRateHz] = useState(96_000);
   const [compare, setCompare] = useState<CompareSlot[]>([]);
-  const [pick, setPick] = useState("");
   const [fitPoints, setFitPoints] = useState<FitPoints | null>(null);
   const applied = useRef<string | null>(null);
 
   const presetQuery = usePreset(presetId);
   const versionsQuery = usePresetVersions(presetId);
-  const libraryQuery = usePresets();
   const loaded = presetId ? presetQuery.data?.preset : undefined;
 
   // Put a preset into the editor once per version fetched (a save that created that version sets `applied` itself).
@@ -263,44 +262,12 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
                 ))}
               </ul>
               <div className="flex flex-wrap items-end gap-2 border-t border-paper-edge pt-3">
-                <div className="min-w-56 flex-1 space-y-1">
-                  <label htmlFor="compare-pick" className="block text-xs font-medium text-ink-soft">
-                    A preset from the library
-                  </label>
-                  <select
-                    id="compare-pick"
-                    value={pick}
-                    onChange={(e) => setPick(e.target.value)}
-                    className="h-9 w-full rounded-md border border-paper-edge bg-white px-2 text-sm"
-                    data-testid="compare-pick"
-                  >
-                    <option value="">
-                      {libraryQuery.isLoading
-                        ? "Loading…"
-                        : libraryQuery.data?.presets.length
-                          ? "Choose a preset…"
-                          : "No presets yet"}
-                    </option>
-                    {libraryQuery.data?.presets.map((p) => (
-                      <option key={p.id} value={p.id}>
-                        {p.name} (v{p.version})
-                      </option>
-                    ))}
-                  </select>
-                </div>
-                <Button
-                  type="button"
-                  variant="secondary"
-                  size="sm"
-                  disabled={!pick || compare.length >= MAX_COMPARE}
-                  onClick={() => {
-                    const p = libraryQuery.data?.presets.find((x) => x.id === pick);
-                    if (p) addCompare({ label: `${p.name} v${p.version}`, spec: p.spec });
-                    setPick("");
-                  }}
-                >
-                  Add to comparison
-                </Button>
+                <PresetPicker
+                  label="A preset from the library"
+                  addLabel="Add to comparison"
+                  full={compare.length >= MAX_COMPARE}
+                  onAdd={(p) => addCompare({ label: `${p.name} v${p.version}`, spec: p.spec })}
+                />
                 <Button
                   type="button"
                   variant="secondary"

@@ -10,7 +10,7 @@
 // "bench-choose", "bench-render" and "bench-approved" land in storage/test/screenshots.
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, appUrl, signInCookie } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 import { makeWav } from "../support/make-wav";

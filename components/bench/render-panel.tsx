@@ -19,7 +19,6 @@ import { fetchJson } from "@/lib/http/client";
 import type { SideStatusName } from "@/lib/validation/catalogue";
 import { accessCopyRates, renderableStatuses } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
-import type { RenderJson } from "./types";
 
 const statusTone = {
   queued: "neutral",

@@ -1,6 +1,6 @@
 import "./lib/demo-env";
 import { createDb } from "../db/client";
-import { seed } from "../db/seed";
+import { seed } from "./seed/demo-lab";
 import { env } from "../lib/env";
 
 const db = createDb(env().DATABASE_URL, 2);

@@ -8,4 +8,4 @@ ensure_postgres
 ensure_node_modules
 ensure_native_engine
 export NEXT_TELEMETRY_DISABLED=1
-exec node --import tsx scripts/stack.ts start
+exec node --import tsx scripts/commands.ts start

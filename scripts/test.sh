@@ -9,4 +9,4 @@ ensure_test_tools
 ensure_node_modules
 ensure_native_engine
 export NEXT_TELEMETRY_DISABLED=1
-exec node --import tsx scripts/stack.ts test "$@"
+exec node --import tsx scripts/commands.ts test "$@"

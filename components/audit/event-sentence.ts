@@ -18,7 +18,8 @@ import {
   formatCorner,
   formatNumber,
 } from "@/lib/curves";
-import { channelModeLabels, evidenceLabels } from "@/lib/validation/transfers";
+import { channelModeLabels } from "@/lib/audio/channel-mode";
+import { evidenceLabels } from "@/lib/validation/transfers";
 
 type P = Record<string, any>;
 

@@ -11,6 +11,7 @@ import { useEffect, useId, useRef, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
 import { Notice } from "@/components/ui/notice";
+import type { ChannelMode } from "@/lib/audio/channel-mode";
 import { matchAt1kHzDb } from "@/lib/audition/curve-merge";
 import { AuditionPlayer, SAFE_START_DB } from "@/lib/audition/player";
 import { openTransfer, readWindow } from "@/lib/audition/transfer-window";
@@ -18,7 +19,7 @@ import type { CurveSpec } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { formatDuration } from "./progress-bar";
 import { VolumeControl } from "./volume-control";
-import type { ChannelMode, TransferJson } from "./types";
+import type { TransferJson } from "./types";
 
 const WINDOW_SECONDS = 30;
 

@@ -11,6 +11,7 @@ import { formatDb } from "@/components/curves/plot-format";
 import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
 import { Notice } from "@/components/ui/notice";
+import { type ChannelMode, channelModeLabels, channelModes } from "@/lib/audio/channel-mode";
 import { matchAt1kHzDb } from "@/lib/audition/curve-merge";
 import { AuditionPlayer, SAFE_START_DB } from "@/lib/audition/player";
 import { type Spectrum, throughCurve, welchSpectrum } from "@/lib/audition/spectrum";
@@ -23,11 +24,10 @@ import {
 } from "@/lib/audition/transfer-window";
 import { describeCurve } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
-import { channelModeLabels } from "@/lib/validation/transfers";
 import { formatDuration } from "./progress-bar";
 import { VolumeControl } from "./volume-control";
 import { candidateColor, FLAT_COLOR, type SpectrumLine, SpectrumPlot } from "./spectrum-plot";
-import type { Candidate, ChannelMode, TransferJson } from "./types";
+import type { Candidate, TransferJson } from "./types";
 
 const WINDOW_SECONDS = 30;
 
@@ -391,10 +391,7 @@ export function AuditionPanel({
             className="h-9 w-full rounded-md border border-paper-edge bg-white px-2 text-sm"
             data-testid="audition-channel-mode"
           >
-            {(Number(transfer.channels) === 2
-              ? (Object.keys(channelModeLabels) as ChannelMode[])
-              : (["both"] as ChannelMode[])
-            ).map((m) => (
+            {(Number(transfer.channels) === 2 ? channelModes : (["both"] as const)).map((m) => (
               <option key={m} value={m}>
                 {channelModeLabels[m]}
               </option>

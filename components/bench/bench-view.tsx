@@ -6,28 +6,28 @@
  * access copy rendered from exactly that transfer and curve, heard against the flat
  * transfer through the curve, and sent for review.
  */
-import { useQuery } from "@tanstack/react-query";
 import { useCallback, useEffect, useId, useMemo, useState } from "react";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { CURVE_COLORS } from "@/components/curves/plot-format";
+import { PresetPicker } from "@/components/curves/preset-picker";
 import { ResponsePlot } from "@/components/curves/response-plot";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
+import { useChannelMode } from "@/hooks/use-channel-mode";
 import { usePresets } from "@/hooks/use-presets";
 import { useSide } from "@/hooks/use-side";
-import { defaultChannelMode } from "@/lib/audition/channel-mode";
-import { curveChoiceName, type CurveSpec, mergeCurve } from "@/lib/curves";
-import { fetchJson } from "@/lib/http/client";
+import { curveChoiceName, type CurveSpec } from "@/lib/curves";
 import { statusLabels } from "@/lib/validation/catalogue";
 import { curveChoosableStatuses, uploadableStatuses } from "@/lib/validation/transfers";
 import { AccessCopyCompare } from "./access-copy-compare";
 import { AuditionPanel } from "./audition-panel";
+import { choiceCandidate, presetCandidate } from "./candidates";
 import { ChoiceHistory } from "./choice-history";
 import { type ChoicePrefill, CurveChoiceForm } from "./curve-choice-form";
 import { RenderPanel } from "./render-panel";
 import { TransfersList } from "./transfers-list";
-import type { Candidate, ChannelMode, RenderJson } from "./types";
+import type { Candidate } from "./types";
 import { UploadPanel } from "./upload-panel";
 
 const MAX_CANDIDATES = 4;
@@ -42,26 +42,17 @@ export function BenchView({
   extraSideIds: string[];
 }) {
   const uid = useId();
-  const { side, choices, transfers } = useSide(sideId);
+  const { side, choices, transfers, now } = useSide(sideId);
   const presets = usePresets();
 
   const [editSpec, setEditSpec] = useState<CurveSpec | null>(null);
   const onEffectiveSpec = useCallback((s: CurveSpec | null) => setEditSpec(s), []);
   const [extraPresets, setExtraPresets] = useState<string[]>([]);
-  const [addPreset, setAddPreset] = useState("");
   const [hidden, setHidden] = useState<Set<string>>(new Set());
   const [pickedTransfer, setPickedTransfer] = useState<string | null>(null);
-  const [modeChoice, setModeChoice] = useState<ChannelMode | null>(null);
 
   const data = side.data;
-  // What the side stands on now, by the ids the server keeps (never "the latest" of each list).
-  const current = choices.data?.choices.find((c) => c.id === data?.side.currentCurveChoiceId) ?? null;
-  const renders = useQuery({
-    queryKey: ["renders", sideId],
-    queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`),
-  });
-  const currentRender =
-    renders.data?.renders.find((r) => r.id === data?.side.currentRenderId && r.status === "done") ?? null;
+  const { choice: current, render: currentRender } = now;
   // A curve picked in the listening panel, for the form (only while the recorded choice is the one it was picked against).
   const [prefill, setPrefill] = useState<(ChoicePrefill & { against: string | null }) | null>(null);
   useEffect(() => {
@@ -74,38 +65,22 @@ export function BenchView({
   // Candidates: the recorded choice, the form's edits, and presets added for comparison (at the same speeds).
   const candidates = useMemo<Candidate[]>(() => {
     const out: Candidate[] = [];
-    if (current)
-      out.push({ id: "current", label: `Recorded: ${curveChoiceName(current)}`, spec: current.spec });
+    if (current) out.push(choiceCandidate("current", "Recorded", current));
     if (editSpec && (!current || JSON.stringify(editSpec) !== JSON.stringify(current.spec)))
       out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
     for (const id of extraPresets) {
       const p = presets.data?.presets.find((x) => x.id === id);
-      if (p)
-        out.push({
-          id: `preset:${p.id}`,
-          label: curveChoiceName({
-            presetName: p.name,
-            presetVersion: p.version,
-            cutSpeedRpm: speeds.cut,
-            transferSpeedRpm: speeds.transfer,
-          }),
-          spec: mergeCurve(p.spec, {}, speeds.cut, speeds.transfer),
-        });
+      if (p) out.push(presetCandidate(p, speeds));
     }
     return out.filter((c) => !hidden.has(c.id)).slice(0, MAX_CANDIDATES);
   }, [current, editSpec, extraPresets, presets.data, speeds.cut, speeds.transfer, hidden]);
 
-  const newest =
-    transfers.data?.transfers.find((t) => t.id === data?.side.currentTransferId) ??
-    transfers.data?.transfers[0] ??
-    null;
+  const newest = now.transfer ?? transfers.data?.transfers[0] ?? null;
   const auditioned = transfers.data?.transfers.find((t) => t.id === pickedTransfer) ?? newest;
-  const suggestion = data ? defaultChannelMode(data.disc.cut, Number(auditioned?.channels ?? 2)) : null;
-  const channelMode: ChannelMode = modeChoice ?? suggestion?.mode ?? "both";
-  const channelWhy =
-    modeChoice && modeChoice !== suggestion?.mode
-      ? `Changed from the suggestion (${suggestion?.mode}). ${suggestion?.why ?? ""}`
-      : (suggestion?.why ?? "");
+  const { channelMode, setChannelMode, channelWhy } = useChannelMode({
+    cut: data?.disc.cut,
+    channels: auditioned ? Number(auditioned.channels) : undefined,
+  });
 
   if (side.isLoading) return <p className="text-ink-faint">Loading the side…</p>;
   if (side.error || !data)
@@ -226,39 +201,13 @@ export function BenchView({
                 ) : null}
               </ul>
               <div className="flex flex-wrap items-end gap-2">
-                <div className="space-y-1">
-                  <label htmlFor={`${uid}-add`} className="block text-xs font-medium text-ink-soft">
-                    Compare with a preset
-                  </label>
-                  <select
-                    id={`${uid}-add`}
-                    value={addPreset}
-                    onChange={(e) => setAddPreset(e.target.value)}
-                    className="h-9 w-72 rounded-md border border-paper-edge bg-white px-2 text-sm"
-                    data-testid="candidate-add-select"
-                  >
-                    <option value="">Choose a preset…</option>
-                    {presets.data?.presets
-                      .filter((p) => !extraPresets.includes(p.id))
-                      .map((p) => (
-                        <option key={p.id} value={p.id}>
-                          {p.name}
-                        </option>
-                      ))}
-                  </select>
-                </div>
-                <Button
-                  type="button"
-                  variant="secondary"
-                  disabled={!addPreset || candidates.length >= MAX_CANDIDATES}
-                  onClick={() => {
-                    setExtraPresets((l) => [...l, addPreset]);
-                    setAddPreset("");
-                  }}
-                  data-testid="candidate-add"
-                >
-                  Add
-                </Button>
+                <PresetPicker
+                  label="Compare with a preset"
+                  addLabel="Add"
+                  exclude={extraPresets}
+                  full={candidates.length >= MAX_CANDIDATES}
+                  onAdd={(p) => setExtraPresets((l) => [...l, p.id])}
+                />
                 {hidden.size ? (
                   <Button type="button" variant="quiet" onClick={() => setHidden(new Set())}>
                     Show the recorded and edited curves again
@@ -274,7 +223,7 @@ export function BenchView({
                   transfer={auditioned}
                   candidates={candidates}
                   channelMode={channelMode}
-                  onChannelMode={setModeChoice}
+                  onChannelMode={setChannelMode}
                   channelWhy={channelWhy}
                   onRecord={canChoose ? recordFromListening : undefined}
                 />
@@ -320,9 +269,7 @@ export function BenchView({
               )}
             </Panel>
           </div>
-          <Panel title="Curves recorded for this side">
-            <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
-          </Panel>
+          <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
         </div>
       </div>
 
@@ -334,7 +281,7 @@ export function BenchView({
             channels={newest ? Number(newest.channels) : null}
             transferRateHz={newest ? Number(newest.sampleRateHz) : null}
             channelMode={channelMode}
-            onChannelMode={setModeChoice}
+            onChannelMode={setChannelMode}
             channelWhy={channelWhy}
             canRender={mine}
             currentWork={{ transferId: s.currentTransferId, curveChoiceId: s.currentCurveChoiceId }}

@@ -2,16 +2,12 @@
 import { when } from "@/components/catalogue/format";
 import { formatNumber } from "@/components/curves/plot-format";
 import { Badge } from "@/components/ui/badge";
+import { Panel } from "@/components/ui/panel";
 import { curveChoiceName } from "@/lib/curves";
 import { evidenceLabels } from "@/lib/validation/transfers";
 import type { CurveChoiceJson } from "./types";
 
-/** "RIAA v3 + rolloff 10 dB attenuation at 10 kHz", "Own values: …": the recorded choice named as everywhere (lib/curves). */
-export function curveTitle(c: CurveChoiceJson): string {
-  return curveChoiceName(c);
-}
-
-/** Every curve recorded for the side, newest first: the first is the one a render uses. */
+/** The panel of every curve recorded for the side, newest first: the first is the one a render uses. */
 export function ChoiceHistory({
   choices,
   loading,
@@ -19,6 +15,14 @@ export function ChoiceHistory({
   choices: CurveChoiceJson[] | undefined;
   loading: boolean;
 }) {
+  return (
+    <Panel title="Curves recorded for this side">
+      <ChoiceList choices={choices} loading={loading} />
+    </Panel>
+  );
+}
+
+function ChoiceList({ choices, loading }: { choices: CurveChoiceJson[] | undefined; loading: boolean }) {
   if (loading) return <p className="text-sm text-ink-faint">Loading…</p>;
   if (!choices?.length)
     return (
@@ -41,7 +45,7 @@ export function ChoiceHistory({
             <div className="flex flex-wrap items-center gap-2">
               {i === 0 ? <Badge tone="groove">Current</Badge> : null}
               <span className="font-semibold" data-testid="choice-name">
-                {curveTitle(c)}
+                {curveChoiceName(c)}
               </span>
               {c.cutSpeedRpm !== c.transferSpeedRpm ? (
                 <span className="font-mono text-xs text-ink-soft">

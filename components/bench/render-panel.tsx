@@ -13,11 +13,12 @@ import { Button } from "@/components/ui/button";
 import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { useLabSettings } from "@/hooks/use-lab-settings";
+import { sideRendersQuery } from "@/hooks/use-side";
+import { type ChannelMode, channelModeLabels, channelModes } from "@/lib/audio/channel-mode";
 import { fetchJson } from "@/lib/http/client";
 import type { SideStatusName } from "@/lib/validation/catalogue";
-import { accessCopyRates, channelModeLabels, renderableStatuses } from "@/lib/validation/transfers";
+import { accessCopyRates, renderableStatuses } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
-import type { ChannelMode, RenderJson } from "./types";
 
 const statusTone = {
   queued: "neutral",
@@ -67,8 +68,7 @@ export function RenderPanel({
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const renders = useQuery({
-    queryKey: ["renders", sideId],
-    queryFn: () => fetchJson<{ renders: RenderJson[] }>(`/api/sides/${sideId}/renders`),
+    ...sideRendersQuery(sideId),
     // Poll every second while the worker has one in hand.
     refetchInterval: (q) =>
       q.state.data?.renders.some((r) => r.status === "queued" || r.status === "running") ? 1000 : false,
@@ -131,7 +131,7 @@ export function RenderPanel({
       : sideStatus === "transferred"
         ? "Record the curve (step 3) before rendering."
         : null;
-  const modes: ChannelMode[] = channels === 1 ? ["both"] : (Object.keys(channelModeLabels) as ChannelMode[]);
+  const modes: readonly ChannelMode[] = channels === 1 ? ["both"] : channelModes;
   return (
     <div className="space-y-4" data-testid="render-panel">
       {!ready && waiting ? <Notice tone="info">{waiting}</Notice> : null}

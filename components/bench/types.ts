@@ -2,12 +2,12 @@
 import type { DiscJson, SideJson } from "@/components/catalogue/types";
 import type { CurveSpec } from "@/lib/curves";
 import type { StoredRenderFilter } from "@/lib/validation/records";
-import type { channelModes, evidenceKinds } from "@/lib/validation/transfers";
+import type { ChannelMode } from "@/lib/audio/channel-mode";
+import type { evidenceKinds } from "@/lib/validation/transfers";
 
 export type { DiscJson, SideJson };
 export type { PresetJson, PresetVersionJson } from "@/components/curves/types";
 export type EvidenceKind = (typeof evidenceKinds)[number];
-export type ChannelMode = (typeof channelModes)[number];
 
 export interface SideWithDisc {
   side: SideJson;

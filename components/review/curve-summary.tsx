@@ -5,13 +5,12 @@
  * the filter applies (at the transfer's speed); why, and on what evidence.
  */
 import { useMemo } from "react";
-import { curveTitle } from "@/components/bench/choice-history";
-import type { CurveChoiceJson } from "@/components/bench/types";
+import type { Candidate, CurveChoiceJson } from "@/components/bench/types";
 import { when } from "@/components/catalogue/format";
 import { formatDb, formatHz, formatNumber } from "@/components/curves/plot-format";
-import { type PlotCurve, ResponsePlot } from "@/components/curves/response-plot";
+import { ResponsePlot } from "@/components/curves/response-plot";
 import { cornerText } from "@/components/audit/event-sentence";
-import { CORNER_NAMES, type CornerName, type CurveSpec, describeCurve } from "@/lib/curves";
+import { CORNER_NAMES, type CornerName, curveChoiceName, type CurveSpec, describeCurve } from "@/lib/curves";
 import { evidenceLabels } from "@/lib/validation/transfers";
 
 const CORNER_LABELS: Record<CornerName, string> = {
@@ -24,10 +23,11 @@ const CORNER_LABELS: Record<CornerName, string> = {
 
 export function CurveSummary({
   current,
-  previous,
+  compared,
 }: {
   current: CurveChoiceJson;
-  previous: CurveChoiceJson | null;
+  /** The curves plotted: the page's own list (reviewCandidates), the one it listens to. */
+  compared: Candidate[];
 }) {
   const described = useMemo(() => {
     try {
@@ -40,20 +40,12 @@ export function CurveSummary({
   const overrides: Partial<CurveSpec> = current.overrides ?? {};
   const rows = CORNER_NAMES.filter((n) => (preset && preset[n]) || n in overrides || current.spec[n]);
   const ratio = current.transferSpeedRpm / current.cutSpeedRpm;
-  // Memoised: the review page re-renders every second while it waits for fixity results.
-  const plotCurves = useMemo<PlotCurve[]>(
-    () => [
-      { label: `Chosen: ${curveTitle(current)}`, spec: current.spec },
-      ...(previous ? [{ label: `Before: ${curveTitle(previous)}`, spec: previous.spec }] : []),
-    ],
-    [current, previous],
-  );
 
   return (
     <div className="space-y-4" data-testid="curve-summary">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <p className="text-lg font-semibold" data-testid="curve-name">
-          {curveTitle(current)}
+          {curveChoiceName(current)}
         </p>
         <p className="font-mono text-sm text-ink-soft">
           {ratio === 1
@@ -158,7 +150,7 @@ export function CurveSummary({
           The recorded curve does not resolve: {described.error}
         </p>
       )}
-      <ResponsePlot curves={plotCurves} height={320} showPhase={false} />
+      <ResponsePlot curves={compared} height={320} showPhase={false} />
     </div>
   );
 }

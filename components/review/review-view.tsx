@@ -11,33 +11,28 @@ import Link from "next/link";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { AccessCopyCompare } from "@/components/bench/access-copy-compare";
 import { AuditionPanel } from "@/components/bench/audition-panel";
-import { ChoiceHistory, curveTitle } from "@/components/bench/choice-history";
-import type { Candidate, ChannelMode, RenderJson } from "@/components/bench/types";
+import { reviewCandidates } from "@/components/bench/candidates";
+import { ChoiceHistory } from "@/components/bench/choice-history";
 import { statusLabel, when } from "@/components/catalogue/format";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { Badge } from "@/components/ui/badge";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
+import { useChannelMode } from "@/hooks/use-channel-mode";
 import { useSide } from "@/hooks/use-side";
-import { defaultChannelMode } from "@/lib/audition/channel-mode";
+import { curveChoiceName } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { CurveSummary } from "./curve-summary";
 import { DecisionPanel } from "./decision-panel";
 import { FixityCheckButton, fixityOf, RenderCard, TransferCard } from "./stored-files";
 import type { FixityCheckJson, ReviewJson } from "./types";
 
-type RenderRow = RenderJson & { transferId?: string; curveChoiceId?: string };
-
 /** How long to poll for the worker's fixity results before saying so. */
 const FIXITY_WAIT_MS = 90_000;
 
 export function ReviewView({ sideId }: { sideId: string }) {
   const queryClient = useQueryClient();
-  const { side, choices, transfers } = useSide(sideId);
-  const renders = useQuery({
-    queryKey: ["renders", sideId],
-    queryFn: () => fetchJson<{ renders: RenderRow[] }>(`/api/sides/${sideId}/renders`),
-  });
+  const { side, choices, transfers, renders, now } = useSide(sideId);
   const reviews = useQuery({
     queryKey: ["side-reviews", sideId],
     queryFn: () => fetchJson<{ reviews: ReviewJson[] }>(`/api/sides/${sideId}/review`),
@@ -46,13 +41,9 @@ export function ReviewView({ sideId }: { sideId: string }) {
   // Fixity: after "Check fixity now", poll until both files have a result newer than the request.
   const [fixityAsk, setFixityAsk] = useState<{ askedAt: number; startedAt: number } | null>(null);
   const [fixityError, setFixityError] = useState<string | null>(null);
-  // What the side stands on: the ids the server keeps, so the page shows exactly what an approval binds.
-  const sideNow = side.data?.side;
-  const current = choices.data?.choices.find((c) => c.id === sideNow?.currentCurveChoiceId) ?? null;
+  // What the side stands on (useSide reads it by the ids the server keeps), so the page shows exactly what an approval binds.
+  const { choice: current, transfer, render } = now;
   const previous = choices.data?.choices.find((c) => c.id !== current?.id) ?? null;
-  const transfer = transfers.data?.transfers.find((t) => t.id === sideNow?.currentTransferId) ?? null;
-  const render =
-    renders.data?.renders.find((r) => r.id === sideNow?.currentRenderId && r.status === "done") ?? null;
   const watched = [transfer?.id, render?.id].filter(Boolean) as string[];
   const fixity = useQuery({
     queryKey: ["side-fixity", sideId],
@@ -94,17 +85,13 @@ export function ReviewView({ sideId }: { sideId: string }) {
   }, [decided]);
 
   // Listening: the flat transfer through the recorded curve (and the one before it, if the side came back).
-  const candidates = useMemo<Candidate[]>(() => {
-    const out: Candidate[] = [];
-    if (current) out.push({ id: "current", label: `Chosen: ${curveTitle(current)}`, spec: current.spec });
-    if (previous) out.push({ id: "previous", label: `Before: ${curveTitle(previous)}`, spec: previous.spec });
-    return out;
-  }, [current, previous]);
-  const [modeChoice, setModeChoice] = useState<ChannelMode | null>(null);
-  const suggestion =
-    side.data && transfer ? defaultChannelMode(side.data.disc.cut, Number(transfer.channels)) : null;
-  const channelMode: ChannelMode = modeChoice ?? render?.channelMode ?? suggestion?.mode ?? "both";
-  const channelWhy = render && !modeChoice ? "As the access copy was rendered." : (suggestion?.why ?? "");
+  // Memoised: the page re-renders every second while it waits for fixity results.
+  const candidates = useMemo(() => reviewCandidates(current, previous), [current, previous]);
+  const { channelMode, setChannelMode, channelWhy } = useChannelMode({
+    cut: side.data?.disc.cut,
+    channels: transfer ? Number(transfer.channels) : undefined,
+    rendered: render?.channelMode,
+  });
 
   if (side.isLoading) return <p className="text-ink-faint">Loading the side…</p>;
   if (side.error || !side.data)
@@ -168,7 +155,7 @@ export function ReviewView({ sideId }: { sideId: string }) {
             {choices.isLoading ? (
               <p className="text-sm text-ink-faint">Loading…</p>
             ) : current ? (
-              <CurveSummary current={current} previous={previous} />
+              <CurveSummary current={current} compared={candidates} />
             ) : (
               <Notice tone="error">No curve is recorded for this side.</Notice>
             )}
@@ -187,7 +174,7 @@ export function ReviewView({ sideId }: { sideId: string }) {
                       render={render}
                       transfer={transfer}
                       spec={current.spec}
-                      curveLabel={curveTitle(current)}
+                      curveLabel={curveChoiceName(current)}
                     />
                   </div>
                 ) : null}
@@ -227,16 +214,14 @@ export function ReviewView({ sideId }: { sideId: string }) {
                   transfer={transfer}
                   candidates={candidates}
                   channelMode={channelMode}
-                  onChannelMode={setModeChoice}
+                  onChannelMode={setChannelMode}
                   channelWhy={channelWhy}
                 />
               </section>
             </div>
           </Panel>
 
-          <Panel title="Curves recorded for this side">
-            <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
-          </Panel>
+          <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
         </div>
 
         <div className="min-w-0 space-y-6">

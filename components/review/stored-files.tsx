@@ -12,7 +12,7 @@ import { formatNumber } from "@/components/curves/plot-format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
-import { channelModeLabels } from "@/lib/validation/transfers";
+import { channelModeLabels } from "@/lib/audio/channel-mode";
 import type { FixityCheckJson, RenderFilterJson } from "./types";
 
 export type FixityState = { state: "passed" | "failed" | "stale" | "never"; check: FixityCheckJson | null };

@@ -4,9 +4,22 @@
  * wall; a lateral cut reads in phase on both (keep their mean), a vertical cut in
  * opposite phase (keep half their difference), or one wall may be kept alone.
  */
-export type ChannelMode = "both" | "sum" | "difference" | "left" | "right";
+export const channelModes = ["both", "sum", "difference", "left", "right"] as const;
+export type ChannelMode = (typeof channelModes)[number];
 
-/** Words for the coding history and the UI. */
+/** What the bench, the review and the provenance log call each mode. */
+export const channelModeLabels: Record<ChannelMode, string> = {
+  both: "Keep both channels",
+  sum: "Sum (lateral cut)",
+  difference: "Difference (vertical cut)",
+  left: "Left groove wall only",
+  right: "Right groove wall only",
+};
+
+/**
+ * The terser words a render writes into the access copy's coding history and its errors:
+ * they stay as they are, so the history of files rendered earlier reads the same.
+ */
 export const CHANNEL_MODE_TEXT: Record<ChannelMode, string> = {
   both: "both channels",
   sum: "lateral (L+R)/2",

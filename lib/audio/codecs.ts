@@ -15,6 +15,7 @@
  * variance Δ²/4 (Δ²/12 rounding + Δ²/6 dither), whatever the signal. The
  * generator is seeded so a render is reproducible byte for byte.
  */
+import { MULBERRY_STEP, mulberry32 } from "../seeded-random";
 
 export type SampleFormat = "pcm" | "float";
 
@@ -24,26 +25,10 @@ export interface SampleEncoding {
   bitsPerSample: number;
 }
 
-/** mulberry32's step: the generator adds this to its 32-bit state before each draw. */
-const MULBERRY_STEP = 0x6d2b79f5;
-
-/** mulberry32's output for a state, as a fraction in [0, 1). Small, fast, good enough for dither. */
-function mulberry32(state: number): number {
-  let t = Math.imul(state ^ (state >>> 15), state | 1);
-  t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-  return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-}
-
-/** mulberry32 as a generator: deterministic from its seed. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => mulberry32((a = (a + MULBERRY_STEP) >>> 0));
-}
-
 /** TPDF dither in LSB, on the open interval (−1, 1). */
 export class TpdfDither {
   /**
-   * mulberry32's state (the same sequence as seededRandom(seed)), in a typed array so
+   * mulberry32's state (the same sequence as seededRandom(seed), lib/seeded-random.ts), in a typed array so
    * the native encoder (lib/audio/dsp.ts) steps the very same generator.
    */
   readonly state: Uint32Array;

@@ -25,7 +25,7 @@ export {
   BEXT_VERSION,
 } from "./bext";
 export type { Bext, BextInput, BextLoudness, CodingHistoryLine } from "./bext";
-export { decodeFrames, encodeFrames, fullScalePositive, seededRandom, TpdfDither } from "./codecs";
+export { decodeFrames, encodeFrames, fullScalePositive, TpdfDither } from "./codecs";
 export type { SampleEncoding, SampleFormat, EncodeOptions, EncodeResult } from "./codecs";
 export { BwfWriter } from "./writer";
 export type { BwfWriterOptions, BwfWriteResult } from "./writer";

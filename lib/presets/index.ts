@@ -3,10 +3,10 @@ import { sql } from "kysely";
 import { db } from "../../db";
 import type { CurveSpec } from "../curves";
 import type { SessionUser } from "../auth/session-user";
+import { checkCurveSpec } from "../http/curve-errors";
 import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { createPresetSchema, updatePresetSchema } from "../validation/curves";
-import { checkSpec } from "./curve-check";
 
 export interface PresetVersion {
   presetId: string;
@@ -98,7 +98,7 @@ async function assertNameFree(name: string, exceptId?: string): Promise<void> {
 /** A new preset and its version 1, in one transaction. */
 export async function createPreset(actor: SessionUser, input: unknown): Promise<PresetSummary> {
   const { name, spec, notes, changeNote } = createPresetSchema.parse(input);
-  checkSpec(spec);
+  checkCurveSpec(spec);
   await assertNameFree(name);
   const id = await db.transaction().execute(async (trx) => {
     const preset = await trx
@@ -139,7 +139,7 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
   const current = await getPreset(id);
   const name = patch.name ?? current.name;
   const spec: CurveSpec = patch.spec ?? current.spec;
-  checkSpec(spec);
+  checkCurveSpec(spec);
   if (name.toLowerCase() !== current.name.toLowerCase()) await assertNameFree(name, id);
   await db.transaction().execute(async (trx) => {
     const locked = await trx

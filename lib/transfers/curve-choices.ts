@@ -1,10 +1,10 @@
 import "server-only";
 import { createHash } from "node:crypto";
 import { db } from "../../db";
-import { type CurveSpec, mergeCurve, resolveCurve } from "../curves";
+import { type CurveSpec, mergeCurve } from "../curves";
 import type { SessionUser } from "../auth/session-user";
+import { checkCurveSpec } from "../http/curve-errors";
 import { AppError } from "../http/errors";
-import { asCurveAppError } from "../presets/curve-check";
 import { appendEvents, type NewEvent } from "../provenance";
 import { canonicalJson } from "../provenance/chain";
 import { curveChoosableStatuses, curveChosen, lockSides } from "../sides/lifecycle";
@@ -47,11 +47,7 @@ export async function chooseCurve(
       c.cutSpeedRpm,
       c.transferSpeedRpm,
     );
-    try {
-      resolveCurve(spec);
-    } catch (err) {
-      throw asCurveAppError(err, "overrides");
-    }
+    checkCurveSpec(spec, "overrides");
     // Every side locked through the lifecycle, in a stable order.
     const sides = await lockSides(trx, c.sideIds);
     if (sides.length !== new Set(c.sideIds).size)

@@ -4,6 +4,7 @@ import { getSignedUrl } from "@aws-sdk/s3-request-presigner";
 import { sql } from "kysely";
 import { z } from "zod";
 import { db } from "../../db";
+import { channelModes } from "../audio/channel-mode";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
 import { attachmentDisposition } from "../http/content-disposition";
@@ -17,12 +18,7 @@ import { deleteObject } from "../storage/objects";
 import { s3 } from "../storage/s3";
 import { getSettings } from "../settings";
 import { parseStored, renderFilterRecordSchema } from "../validation/records";
-import {
-  accessCopyBitDepthSchema,
-  accessCopyRateSchema,
-  channelModes,
-  renderableStatuses,
-} from "../validation/transfers";
+import { accessCopyBitDepthSchema, accessCopyRateSchema, renderableStatuses } from "../validation/transfers";
 
 export const renderRequestSchema = z.object({
   sideId: z.uuid({ error: "Unknown side." }),

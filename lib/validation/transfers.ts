@@ -90,15 +90,6 @@ export const accessCopyBitDepthSchema = z.coerce
   .number()
   .refine((v) => v === 16 || v === 24, "Word length must be 16 or 24 bits.");
 
-export const channelModes = ["both", "sum", "difference", "left", "right"] as const;
-export const channelModeLabels: Record<(typeof channelModes)[number], string> = {
-  both: "Keep both channels",
-  sum: "Sum (lateral cut)",
-  difference: "Difference (vertical cut)",
-  left: "Left groove wall only",
-  right: "Right groove wall only",
-};
-
 /** Up to 10 000 parts of at most 5 GiB each (S3 limits); files up to 64 GiB here. */
 export const maxTransferBytes = 64 * 1024 ** 3;
 

@@ -12,7 +12,7 @@
 import { createHash } from "node:crypto";
 import { performance } from "node:perf_hooks";
 import { z } from "zod";
-import { demoAccounts } from "../../db/seed-data";
+import { demoAccounts } from "../seed/demo-accounts";
 import { cpuSecondsBetween, cpuSnapshot, processGroups } from "./cpu";
 import type { Role } from "../../lib/auth/roles";
 import { percentile, rampSteps, type Sample, saturationPoint, stepSummaries, summarize } from "./stats";

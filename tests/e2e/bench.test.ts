@@ -10,7 +10,7 @@
 // "bench-choose", "bench-render" and "bench-approved" land in storage/test/screenshots.
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, appUrl, signInCookie } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 import { makeWav } from "../support/make-wav";
@@ -122,13 +122,11 @@ describe("transfer bench", () => {
     const eventsBefore = (await api(`/api/discs/${discId}/events`, { cookie: engineerCookie })).body.events
       .length;
     await page
-      .getByTestId("candidate-add-select")
+      .getByTestId("preset-pick")
       .selectOption({ label: "BS 1928:1955 coarse groove (3180/450/50 µs)" });
-    await page.getByTestId("candidate-add").click();
-    await page
-      .getByTestId("candidate-add-select")
-      .selectOption({ label: "RIAA / IEC 60098 (3180/318/75 µs)" });
-    await page.getByTestId("candidate-add").click();
+    await page.getByTestId("preset-pick-add").click();
+    await page.getByTestId("preset-pick").selectOption({ label: "RIAA / IEC 60098 (3180/318/75 µs)" });
+    await page.getByTestId("preset-pick-add").click();
     await page.getByTestId("audition-overview").waitFor({ timeout: 30_000 });
     await page.getByTestId("spectrum-plot").waitFor({ timeout: 30_000 });
     await expect(page.getByTestId("audition-play").isDisabled()).resolves.toBe(true);

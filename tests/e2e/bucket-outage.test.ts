@@ -9,7 +9,7 @@ import { promises as fs } from "node:fs";
 import path from "node:path";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { appUrl } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 import { testDb } from "../support/db";

@@ -2,7 +2,7 @@
 // row, the page names it, the fixed file goes in, and the disc is in the catalogue.
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { catalogueColumns } from "@/lib/catalogue/csv-format";
 import { api, appUrl, signInCookie } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";

@@ -6,7 +6,7 @@
 // "disc-conflict" land in storage/test/screenshots.
 import type { Browser, BrowserContext, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { appUrl, sameOrigin } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 

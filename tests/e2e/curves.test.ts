@@ -5,7 +5,7 @@
 import path from "node:path";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { appUrl } from "../support/app";
 import { launchBrowser, screenshot, screenshotDir, SignInPage } from "../support/browser";
 

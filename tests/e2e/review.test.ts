@@ -9,7 +9,7 @@
 // "review", "audit" and "disc-timeline" land in storage/test/screenshots.
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { hashPassword } from "@/lib/auth/password";
 import { api, appUrl, signInCookie } from "../support/app";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";

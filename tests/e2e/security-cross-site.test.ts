@@ -8,7 +8,7 @@ import type { AddressInfo } from "node:net";
 import type { Browser } from "playwright-core";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { can } from "@/lib/auth/permissions";
 import { navItems } from "@/lib/navigation";
 import { appUrl } from "../support/app";

@@ -3,7 +3,7 @@
 // the page. Screenshots of the sign-in page and the shell land in storage/test/screenshots.
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { can } from "@/lib/auth/permissions";
 import { navItems } from "@/lib/navigation";
 import { appUrl, linkIn, uniqueEmail, waitForMail } from "../support/app";

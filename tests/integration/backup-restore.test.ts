@@ -15,7 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb } from "@/db/client";
 import type { Database } from "@/db/types";
 import { takeCheckpoint } from "@/lib/provenance/checkpoints";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { profile } from "@/scripts/lib/stack";
 import { api, appUrl, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";

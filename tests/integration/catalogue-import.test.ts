@@ -5,7 +5,7 @@ import { createHash } from "node:crypto";
 import { parse } from "csv-parse/sync";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { catalogueColumns, readCatalogueCsv } from "@/lib/catalogue/csv-format";
 import { api, appUrl, sameOrigin, signInCookie } from "../support/app";
 import { testDb } from "../support/db";

@@ -1,7 +1,7 @@
 // The catalogue and the provenance log against the real test database and the running app.
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { verifyChain } from "@/lib/provenance";
 import { api, signInCookie, waitForMail } from "../support/app";
 import { ownerDb, testDb } from "../support/db";

@@ -1,6 +1,6 @@
 // Choosing a side's playback curve: kept with the preset version's values of that moment.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { hashPassword } from "@/lib/auth/password";
 import { api, signInCookie, uniqueEmail } from "../support/app";
 import { testDb } from "../support/db";

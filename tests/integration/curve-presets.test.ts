@@ -1,7 +1,7 @@
 // The preset library against the real test database and the running app.
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
 

@@ -4,7 +4,7 @@
 import { promises as fs } from "node:fs";
 import path from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { can } from "@/lib/auth/permissions";
 import { type Role, roles } from "@/lib/auth/roles";
 import { routeAccess } from "@/lib/auth/route-access";

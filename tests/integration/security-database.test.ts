@@ -11,7 +11,7 @@ import pg from "pg";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb } from "@/db/client";
 import { grantAppRole, roleOf } from "@/db/roles";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import type { Database } from "@/db/types";
 import { env } from "@/lib/env";
 import { createBoss, ensureQueues, RENDER_QUEUE } from "@/lib/jobs/boss";

@@ -10,7 +10,7 @@ import { promisify } from "node:util";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { bufferSource, readWavHeader } from "@/lib/audio";
 import { hashPassword } from "@/lib/auth/password";
 import { hiddenToken } from "@/lib/mail/redact";

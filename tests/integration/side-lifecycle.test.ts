@@ -2,7 +2,7 @@
 // could leave a stale access copy, against the running app, worker, PostgreSQL and s3rver,
 // and the database's own refusal of a review that binds mismatched work.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { runRenderJob } from "@/lib/jobs/render-job";
 import { transitions } from "@/lib/sides/lifecycle";
 import { api } from "../support/app";

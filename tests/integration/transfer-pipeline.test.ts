@@ -4,7 +4,7 @@
 import { createHash } from "node:crypto";
 import { HeadObjectCommand } from "@aws-sdk/client-s3";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { bufferSource, readWavHeader } from "@/lib/audio";
 import { hashPassword } from "@/lib/auth/password";
 import { api, appUrl, signInCookie, waitForMail } from "../support/app";

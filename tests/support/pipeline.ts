@@ -3,7 +3,7 @@
 import { createHash } from "node:crypto";
 import { WaveFile } from "wavefile";
 import { expect } from "vitest";
-import { demoAccounts } from "@/db/seed-data";
+import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, signInCookie } from "./app";
 import { testDb } from "./db";
 import { testSignal } from "./wav-corpus";

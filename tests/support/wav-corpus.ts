@@ -17,7 +17,8 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { promisify } from "node:util";
 import { WaveFile } from "wavefile";
-import { BwfWriter, seededRandom } from "@/lib/audio";
+import { BwfWriter } from "@/lib/audio";
+import { seededRandom } from "@/lib/seeded-random";
 import type { BextInput } from "@/lib/audio";
 
 const run = promisify(execFile);

@@ -1,6 +1,6 @@
 import { fitCurve } from "@/lib/curves";
+import { curveErrorToAppError } from "@/lib/http/curve-errors";
 import { route } from "@/lib/http/route";
-import { asCurveAppError } from "@/lib/presets/curve-check";
 import { fitRequestSchema } from "@/lib/validation/curves";
 
 export const dynamic = "force-dynamic";
@@ -19,6 +19,6 @@ export const POST = route("POST /api/curves/fit", async (req) => {
       }),
     };
   } catch (err) {
-    throw asCurveAppError(err, "fit");
+    throw curveErrorToAppError(err, "fit");
   }
 });

@@ -1,6 +1,6 @@
 import { analogModel, analogResponse, describeCurve, designRenderFilter } from "@/lib/curves";
+import { curveErrorToAppError } from "@/lib/http/curve-errors";
 import { route } from "@/lib/http/route";
-import { asCurveAppError } from "@/lib/presets/curve-check";
 import { responseRequestSchema } from "@/lib/validation/curves";
 
 export const dynamic = "force-dynamic";
@@ -23,6 +23,6 @@ export const POST = route("POST /api/curves/response", async (req) => {
       renderFilter: render ? { ...render, taps: Array.from(render.taps) } : undefined,
     };
   } catch (err) {
-    throw asCurveAppError(err);
+    throw curveErrorToAppError(err);
   }
 });

@@ -1,4 +1,4 @@
-import { BS1928_COARSE_SPEC, type CurveSpec, IEC_HIGHPASS_SPEC, RIAA_SPEC } from "../lib/curves";
+import { BS1928_COARSE_SPEC, type CurveSpec, IEC_HIGHPASS_SPEC, RIAA_SPEC } from "../../lib/curves";
 
 export interface SeedPreset {
   name: string;

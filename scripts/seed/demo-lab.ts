@@ -1,9 +1,9 @@
 import { type Kysely, sql } from "kysely";
-import { hashPassword } from "../lib/auth/password";
-import { demoAccounts } from "./seed-data";
-import { seedCatalogue } from "./seed-catalogue";
-import { seedPresets } from "./seed-presets";
-import type { Database } from "./types";
+import type { Database } from "../../db/types";
+import { hashPassword } from "../../lib/auth/password";
+import { demoAccounts } from "./demo-accounts";
+import { seedCatalogue } from "./demo-catalogue";
+import { seedPresets } from "./demo-presets";
 
 /**
  * Seeds the invented demo lab. Idempotent: what is already there is left as it is. Runs

@@ -2,7 +2,7 @@
 import { spawn } from "node:child_process";
 import { promises as fs } from "node:fs";
 import path from "node:path";
-import { demoAccounts } from "../db/seed-data";
+import { demoAccounts } from "./seed/demo-accounts";
 import {
   build,
   log,

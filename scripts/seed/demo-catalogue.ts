@@ -1,9 +1,9 @@
 import { type Kysely, sql } from "kysely";
-import { seededRandom } from "../lib/audio/codecs";
-import { refreshSearch } from "../lib/catalogue/records";
-import { appendEvent, appendEvents, type NewEvent } from "../lib/provenance";
-import { assignSide, lockSides } from "../lib/sides/lifecycle";
-import type { Database, DiscFormat } from "./types";
+import type { Database, DiscFormat } from "../../db/types";
+import { refreshSearch } from "../../lib/catalogue/records";
+import { appendEvent, appendEvents, type NewEvent } from "../../lib/provenance";
+import { seededRandom } from "../../lib/seeded-random";
+import { assignSide, lockSides } from "../../lib/sides/lifecycle";
 
 /**
  * The demo lab's shelves: a few hundred invented discs across formats and eras, from

@@ -1,4 +1,4 @@
-import type { Role } from "../lib/auth/roles";
+import type { Role } from "../../lib/auth/roles";
 
 /**
  * The invented demo lab: Marrow Hill Sound Archive and its four people, one per role.

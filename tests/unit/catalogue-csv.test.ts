@@ -136,7 +136,7 @@ describe("reading the file", () => {
 });
 
 describe("checking rows", () => {
-  it("names the row and column of each bad value, in the shared schemas' words", () => {
+  it("names the row and column of every bad value of a row, in the shared schemas' words", () => {
     const text = [
       header,
       row({ ...shellac, side: "A" }),
@@ -155,15 +155,18 @@ describe("checking rows", () => {
     expect(errors.map((e) => [e.row, e.column])).toEqual([
       [3, "diameter_in"],
       [3, "speed_rpm"],
+      // A backwards year range is reported beside a bad value in another column of the row.
+      [4, "year_to"],
       [4, "condition_flags"],
       [5, "base"],
       [6, "side"],
     ]);
     expect(errors[0].message).toMatch(/Diameter must be a number/);
     expect(errors[1].message).toMatch(/Nominal speed must be a number/);
-    expect(errors[3].message).toMatch(/lacquer and transcription/);
-    expect(errors[4].message).toMatch(/side designation/);
-    // The year range is checked once the row's values read.
+    expect(errors[2].message).toMatch(/runs backwards/);
+    expect(errors[4].message).toMatch(/lacquer and transcription/);
+    expect(errors[5].message).toMatch(/side designation/);
+    // A row with nothing else wrong hears the same.
     const years = check([header, row({ ...shellac, year_from: "1931", year_to: "1929" })].join("\n")).errors;
     expect(years).toEqual([
       expect.objectContaining({

@@ -13,6 +13,7 @@ import { createSHA256 } from "hash-wasm";
 import { useCallback, useRef, useState } from "react";
 import { fetchJson } from "@/lib/http/client";
 import { AppError } from "@/lib/http/errors";
+import { emptyFileMessage } from "@/lib/validation/text";
 
 const CONCURRENCY = 3;
 const RETRIES = 3;
@@ -145,6 +146,11 @@ export function useMultipartUpload() {
       cancelled = true;
       for (const x of xhrs) x.abort();
     };
+    if (file.size === 0) {
+      // Nothing to send: say so here rather than as the server's refusal of a start.
+      setState({ ...idle, phase: "failed", fileName: file.name, error: emptyFileMessage });
+      return null;
+    }
     const sk = storageKey(sideId, file);
     setState({ ...idle, phase: "starting", fileName: file.name, totalBytes: file.size });
     try {

@@ -19,6 +19,7 @@ import {
   toStoredDisc,
   toStoredSide,
 } from "../validation/catalogue";
+import { emptyFileMessage } from "../validation/text";
 
 type DiscFields = z.infer<typeof discFieldsSchema>;
 type SideInput = z.infer<typeof sideInputSchema>;
@@ -183,9 +184,6 @@ export function decodeCsv(bytes: Uint8Array): string {
     );
   }
 }
-
-/** What a person sees for a file of no bytes at all, whichever page it was sent from. */
-export const emptyFileMessage = "The file is empty (0 bytes).";
 
 /** The offset of the first byte that cannot start or continue a UTF-8 sequence, or -1. */
 function firstNonUtf8(bytes: Uint8Array): number {

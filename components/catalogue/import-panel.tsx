@@ -158,11 +158,7 @@ export function ImportPanel({
     <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_22rem]">
       <div className="min-w-0 space-y-6">
         {done ? (
-          <Notice
-            tone="success"
-            title={`Imported ${plural(done.imported, "disc")} with ${plural(done.sides, "side")}`}
-            testId="import-done"
-          >
+          <Notice tone="success" title={doneTitle(done)} testId="import-done">
             <p>
               All {plural(done.rows, "row")} went in as one change, recorded in the provenance log with the
               file&apos;s SHA-256 <span className="font-mono text-xs">{done.sha256.slice(0, 16)}…</span>.
@@ -406,6 +402,13 @@ export function ImportPanel({
       </aside>
     </div>
   );
+}
+
+function doneTitle(done: ImportDone): string {
+  const added = `${plural(done.imported, "disc")} with ${plural(done.sides, "side")}`;
+  if (done.updated === 0) return `Imported ${added}`;
+  if (done.imported === 0) return `Updated ${plural(done.updated, "disc")}`;
+  return `Imported ${added} and updated ${plural(done.updated, "disc")}`;
 }
 
 function confirmLabel(report: ImportReport): string {

@@ -24,7 +24,7 @@ beforeAll(async () => {
   archivist = await signInCookie(account("archivist").email, account("archivist").password);
   curator = await signInCookie(account("curator").email, account("curator").password);
   admin = await signInCookie(account("admin").email, account("admin").password);
-});
+}, 60_000); // three sign-ins hash three passwords: slow on a busy machine
 
 afterAll(async () => {
   await testDb.destroy();

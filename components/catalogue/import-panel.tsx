@@ -302,7 +302,7 @@ export function ImportPanel({
               <Count label="Discs changed" value={report.updates} />
               <Count label="Unchanged" value={report.unchanged} />
               <Count
-                label="Changed since export"
+                label="Conflicts"
                 value={report.conflictCount}
                 tone={report.conflictCount ? "alarm" : "ok"}
               />

@@ -137,11 +137,11 @@ function Change({ label, before, after }: { label: string; before: ReactNode; af
       <th scope="row" className="w-44 py-1 pr-3 text-left font-medium text-ink-soft">
         {label}
       </th>
-      <td className="py-1 pr-2 text-ink-soft line-through decoration-ink-faint/60">{before}</td>
+      <td className="break-words py-1 pr-2 text-ink-soft line-through decoration-ink-faint/60">{before}</td>
       <td aria-hidden className="w-6 py-1 text-ink-faint">
         →
       </td>
-      <td className="py-1 font-medium text-ink">{after}</td>
+      <td className="break-words py-1 font-medium text-ink">{after}</td>
     </tr>
   );
 }
@@ -180,7 +180,7 @@ export function ImportUpdates({ report }: { report: ImportReport }) {
                 row {u.row} · version {u.version}
               </span>
             </p>
-            <table className="w-full text-sm" aria-label={`Changes to ${u.shelfMark}`}>
+            <table className="w-full table-fixed text-sm" aria-label={`Changes to ${u.shelfMark}`}>
               <tbody>
                 {u.changes.fields.map((c) => (
                   <Change key={c.field} label={discFieldLabels[c.field] ?? c.field} {...shown(c)} />

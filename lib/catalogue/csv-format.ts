@@ -180,7 +180,8 @@ export function decodeCsv(bytes: Uint8Array): string {
     const at = firstNonUtf8(bytes);
     const where = at < 0 ? "" : ` (line ${lineOfByte(bytes, at)} holds the first such byte)`;
     throw new CsvFormatError(
-      `The file is not UTF-8 text${where}: it was saved in another encoding, such as Latin-1 or Windows-1252. Save it from the spreadsheet as “CSV UTF-8” and try again.`,
+      `The file is not UTF-8 text${where}: it was saved in another encoding, such as Latin-1 or ` +
+        "Windows-1252. Save it from the spreadsheet as “CSV UTF-8” and try again.",
     );
   }
 }
@@ -292,7 +293,9 @@ export function readCatalogueCsv(text: string): ReadSheet {
         {
           row: 1,
           column: "",
-          message: `The header is one column that holds “${other[0]}”: the file seems separated by ${other[0]}. Save it as CSV separated by commas, semicolons or tabs.`,
+          message:
+            `The header is one column that holds “${other[0]}”: the file seems separated by ${other[0]}. ` +
+            "Save it as CSV separated by commas, semicolons or tabs.",
         },
       ],
     };
@@ -362,7 +365,9 @@ export function readCatalogueCsv(text: string): ReadSheet {
       errors.push({
         row,
         column: "",
-        message: `This row has ${cells.length} fields but the header names ${header.length} columns. Check for an unquoted ${delimiter === "\t" ? "tab" : delimiter === ";" ? "semicolon" : "comma"}.`,
+        message:
+          `This row has ${cells.length} fields but the header names ${header.length} columns. ` +
+          `Check for an unquoted ${delimiter === "\t" ? "tab" : delimiter === ";" ? "semicolon" : "comma"}.`,
       });
       continue;
     }
@@ -642,7 +647,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
         errors.push({
           row: r.row,
           column: "version",
-          message: `Differs from row ${head.row}, the disc's first row: ${shown(r.version)} here, ${shown(head.version)} there. Every row of a disc carries the version it was exported at.`,
+          message:
+            `Differs from row ${head.row}, the disc's first row: ${shown(r.version)} here, ` +
+            `${shown(head.version)} there. Every row of a disc carries the version it was exported at.`,
         });
     }
     const sides: SideInput[] = [];

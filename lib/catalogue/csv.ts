@@ -217,7 +217,9 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
         errors.push({
           row: d.row,
           column: "version",
-          message: `No disc in the catalogue has the shelf mark ${d.disc.shelfMark}, yet the row carries version ${d.version}. Was its shelf mark changed, or the disc deleted? To add it as a new disc, empty the version cell.`,
+          message:
+            `No disc in the catalogue has the shelf mark ${d.disc.shelfMark}, yet the row carries version ` +
+            `${d.version}. Was its shelf mark changed, or the disc deleted? To add it as a new disc, empty the version cell.`,
         });
       else plan.adds.push(d);
       continue;
@@ -227,7 +229,9 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
       errors.push({
         row: d.row,
         column: "shelf_mark",
-        message: `Shelf mark ${d.disc.shelfMark} is already in the catalogue. To update that disc, give the version it was exported at (export it to get the file with its version); to add another disc, give it its own shelf mark.`,
+        message:
+          `Shelf mark ${d.disc.shelfMark} is already in the catalogue. To update that disc, give the version ` +
+          "it was exported at (export it to get the file with its version); to add another disc, give it its own shelf mark.",
       });
       continue;
     }

@@ -631,6 +631,8 @@ describe("the spreadsheet round trip: export, edit, import", () => {
       ...base,
       shelf_mark: m(5),
       accession: acc.identifier,
+      // Filled in as the exported rows are (an empty condition is read as "unassessed").
+      condition: "unassessed",
       side: "A",
       title: "New find",
     };

@@ -8,7 +8,15 @@ import { cx } from "@/components/ui/cx";
 import { SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
-import { formatLabel } from "./format";
+import {
+  ImportAdds,
+  ImportConflicts,
+  type ImportDone,
+  ImportErrors,
+  type ImportReport,
+  ImportUpdates,
+  plural,
+} from "./import-report";
 
 interface AccessionChoice {
   id: string;
@@ -20,14 +28,8 @@ interface ColumnGuide {
   hint: string;
   required: boolean;
 }
-// The answers of the import routes, as lib/catalogue/csv.ts types them (types only: nothing server-side reaches the browser).
-type ImportReport = import("@/lib/catalogue/csv").ImportReport;
-type Imported = Extract<import("@/lib/catalogue/csv").CommitResult, { ok: true }>;
 
 type Phase = "idle" | "checking" | "importing";
-
-const plural = (n: number, one: string, many = `${one}s`) =>
-  `${n.toLocaleString("en-GB")} ${n === 1 ? one : many}`;
 
 function formatSize(bytes: number): string {
   if (bytes < 1024) return `${bytes} bytes`;
@@ -39,14 +41,19 @@ async function send(
   url: string,
   file: File,
   fields: Record<string, string>,
-): Promise<{ status: number; body: any }> {
+): Promise<{ status: number; body: ImportAnswer | null }> {
   const form = new FormData();
   form.set("file", file, file.name);
   for (const [k, v] of Object.entries(fields)) if (v) form.set(k, v);
   const res = await fetch(url, { method: "POST", body: form, headers: { accept: "application/json" } });
-  const body = await res.json().catch(() => null);
+  const body = (await res.json().catch(() => null)) as ImportAnswer | null;
   return { status: res.status, body };
 }
+
+/** A preview (200), an import (201), or a refusal: with the file's report when it has problems. */
+type ImportAnswer = Partial<ImportReport & ImportDone> & {
+  error?: { message?: string; details?: ImportReport };
+};
 
 export function ImportPanel({
   accessions,
@@ -64,14 +71,19 @@ export function ImportPanel({
   const [report, setReport] = useState<ImportReport | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [phase, setPhase] = useState<Phase>("idle");
-  const [done, setDone] = useState<Imported | null>(null);
+  const [done, setDone] = useState<ImportDone | null>(null);
+  const [clearEmpty, setClearEmpty] = useState(false);
+  const options = (accession: string, clear: boolean) => ({
+    defaultAccession: accession,
+    clearEmpty: clear ? "true" : "",
+  });
 
-  async function preview(next: File, accession: string) {
+  async function preview(next: File, accession: string, clear: boolean) {
     setPhase("checking");
     setProblem(null);
     setDone(null);
     try {
-      const { status, body } = await send("/api/imports/preview", next, { defaultAccession: accession });
+      const { status, body } = await send("/api/imports/preview", next, options(accession, clear));
       if (status === 200) setReport(body as ImportReport);
       else {
         setReport(null);
@@ -91,18 +103,18 @@ export function ImportPanel({
     setProblem(null);
     try {
       const { status, body } = await send("/api/imports", file, {
-        defaultAccession,
+        ...options(defaultAccession, clearEmpty),
         confirm: "true",
         sha256: report.sha256,
       });
       if (status === 201) {
-        setDone(body as Imported);
+        setDone(body as ImportDone);
         setReport(null);
         setFile(null);
-      } else if (status === 422 && Array.isArray(body?.errors)) {
+      } else if (status === 422 && body?.error?.details) {
         // The catalogue changed since the preview: show what is wrong now.
-        setReport(body as ImportReport);
-        setProblem(body.error?.message ?? "Nothing was imported.");
+        setReport(body.error.details);
+        setProblem(body.error.message ?? "Nothing was imported.");
       } else {
         setProblem(body?.error?.message ?? `The server answered ${status}.`);
       }
@@ -125,7 +137,7 @@ export function ImportPanel({
     const next = accepted[0];
     if (!next) return;
     setFile(next);
-    void preview(next, defaultAccession);
+    void preview(next, defaultAccession, clearEmpty);
   }
 
   const { getRootProps, getInputProps, isDragActive, open } = useDropzone({
@@ -137,19 +149,16 @@ export function ImportPanel({
     disabled: phase !== "idle",
   });
 
-  const blocked = !report || report.errorCount > 0 || report.discs === 0;
-  const existing = report?.duplicates.filter((d) => d.existingDiscId) ?? [];
+  const blocked =
+    !report || report.errorCount > 0 || report.conflictCount > 0 || report.discs + report.updates === 0;
+
   const templateHref = `data:text/csv;charset=utf-8,${encodeURIComponent(templateCsv)}`;
 
   return (
     <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_22rem]">
       <div className="min-w-0 space-y-6">
         {done ? (
-          <Notice
-            tone="success"
-            title={`Imported ${plural(done.imported, "disc")} with ${plural(done.sides, "side")}`}
-            testId="import-done"
-          >
+          <Notice tone="success" title={doneTitle(done)} testId="import-done">
             <p>
               All {plural(done.rows, "row")} went in as one change, recorded in the provenance log with the
               file&apos;s SHA-256 <span className="font-mono text-xs">{done.sha256.slice(0, 16)}…</span>.
@@ -184,7 +193,7 @@ export function ImportPanel({
                 disabled={phase !== "idle"}
                 onChange={(e) => {
                   setDefaultAccession(e.target.value);
-                  if (file) void preview(file, e.target.value);
+                  if (file) void preview(file, e.target.value, clearEmpty);
                 }}
               >
                 <option value="">None: every row names its accession</option>
@@ -285,169 +294,64 @@ export function ImportPanel({
           <>
             <section
               aria-label="What the file holds"
-              className="grid grid-cols-2 gap-3 sm:grid-cols-5"
+              className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6"
               data-testid="import-counts"
             >
               <Count label="Rows" value={report.rows} />
-              <Count label="Discs to add" value={report.discs} />
-              <Count label="Sides" value={report.sides} />
-              <Count label="Problems" value={report.errorCount} tone={report.errorCount ? "alarm" : "ok"} />
+              <Count label="New discs" value={report.discs} />
+              <Count label="Discs changed" value={report.updates} />
+              <Count label="Unchanged" value={report.unchanged} />
               <Count
-                label="Duplicates"
-                value={report.duplicates.length}
-                tone={report.duplicates.length ? "alarm" : "ok"}
+                label="Conflicts"
+                value={report.conflictCount}
+                tone={report.conflictCount ? "alarm" : "ok"}
               />
+              <Count label="Problems" value={report.errorCount} tone={report.errorCount ? "alarm" : "ok"} />
             </section>
+            <p className="-mt-3 text-xs text-ink-faint" data-testid="import-read-as">
+              Cells separated by {report.separatedBy}. Rows whose shelf mark is in the catalogue update that
+              disc; the others add new discs.
+            </p>
 
-            {report.errorCount > 0 ? (
-              <Panel title={`Fix these first · ${plural(report.errorCount, "problem")}`}>
-                <p className="mb-3 text-sm text-ink-soft">
-                  Row numbers are the spreadsheet&apos;s own: the header is row 1. Fix the rows, save the file
-                  as CSV and drop it here again.
-                  {report.errors.length < report.errorCount
-                    ? ` The first ${plural(report.errors.length, "problem")} are listed.`
-                    : ""}
-                </p>
-                <div className="max-h-[28rem] overflow-auto rounded-lg border border-paper-edge bg-white">
-                  <table
-                    className="w-full text-left text-sm"
-                    aria-label="Problems in the file"
-                    data-testid="import-errors"
-                  >
-                    <thead className="sticky top-0 bg-paper-deep text-xs uppercase tracking-wide text-ink-soft">
-                      <tr>
-                        <th scope="col" className="w-20 px-3 py-2.5 font-semibold">
-                          Row
-                        </th>
-                        <th scope="col" className="w-44 px-3 py-2.5 font-semibold">
-                          Column
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          What is wrong
-                        </th>
-                      </tr>
-                    </thead>
-                    <tbody>
-                      {report.errors.map((e, i) => (
-                        <tr
-                          key={`${e.row}-${e.column}-${i}`}
-                          className={cx(
-                            "border-t border-paper-edge/70 align-top",
-                            i % 2 === 1 && "bg-paper/40",
-                          )}
-                          data-testid="import-error"
-                        >
-                          <td className="px-3 py-2 font-mono tabular-nums text-ink">{e.row}</td>
-                          <td className="px-3 py-2 font-mono text-xs text-alarm">{e.column || "—"}</td>
-                          <td className="px-3 py-2 text-ink">{e.message}</td>
-                        </tr>
-                      ))}
-                    </tbody>
-                  </table>
-                </div>
-              </Panel>
-            ) : null}
-
-            {existing.length > 0 ? (
-              <Panel title={`Already in the catalogue · ${plural(existing.length, "shelf mark")}`}>
-                <ul className="flex flex-wrap gap-2" data-testid="import-duplicates">
-                  {existing.map((d) => (
-                    <li key={d.row}>
-                      <Link
-                        href={`/catalogue?q=${encodeURIComponent(d.shelfMark)}`}
-                        className="inline-flex items-center gap-2 rounded-md border border-paper-edge bg-white px-2.5 py-1 text-sm hover:border-ink-faint"
-                      >
-                        <span className="font-mono">{d.shelfMark}</span>
-                        <span className="text-xs text-ink-faint">row {d.row}</span>
-                      </Link>
-                    </li>
-                  ))}
-                </ul>
-              </Panel>
-            ) : null}
-
-            {report.toAdd.length > 0 ? (
-              <Panel
-                title={
-                  report.discs > report.toAdd.length
-                    ? `Discs to add · first ${report.toAdd.length} of ${report.discs.toLocaleString("en-GB")}`
-                    : `Discs to add · ${report.discs}`
-                }
+            {report.updates + report.unchanged + report.conflictCount > 0 || clearEmpty ? (
+              <label
+                className="flex items-start gap-3 rounded-lg border border-paper-edge bg-white/80 px-4 py-3 text-sm shadow-sm"
+                data-testid="import-clear-empty"
               >
-                <div className="max-h-[32rem] overflow-auto rounded-lg border border-paper-edge bg-white">
-                  <table
-                    className="w-full text-left text-sm"
-                    aria-label="Discs to add"
-                    data-testid="import-to-add"
-                  >
-                    <thead className="sticky top-0 bg-paper-deep text-xs uppercase tracking-wide text-ink-soft">
-                      <tr>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          Row
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          Shelf mark
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          Accession
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          Label · cat. no.
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          Format
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 text-right font-semibold">
-                          rpm
-                        </th>
-                        <th scope="col" className="px-3 py-2.5 font-semibold">
-                          Sides
-                        </th>
-                      </tr>
-                    </thead>
-                    <tbody>
-                      {report.toAdd.map((d, i) => (
-                        <tr
-                          key={d.row}
-                          className={cx("border-t border-paper-edge/70", i % 2 === 1 && "bg-paper/40")}
-                        >
-                          <td className="px-3 py-2 font-mono tabular-nums text-ink-faint">{d.row}</td>
-                          <td className="whitespace-nowrap px-3 py-2 font-mono font-medium">{d.shelfMark}</td>
-                          <td className="px-3 py-2 text-ink-soft">{d.accession || "—"}</td>
-                          <td className="px-3 py-2">
-                            {[d.labelName, d.catalogueNumber].filter(Boolean).join(" · ") || (
-                              <span className="text-ink-faint">—</span>
-                            )}
-                          </td>
-                          <td className="px-3 py-2">{formatLabel(d.format)}</td>
-                          <td className="px-3 py-2 text-right tabular-nums">{d.nominalSpeedRpm}</td>
-                          <td className="px-3 py-2">
-                            {d.sides.length ? (
-                              <span className="flex gap-1">
-                                {d.sides.map((s) => (
-                                  <Badge key={s}>{s}</Badge>
-                                ))}
-                              </span>
-                            ) : (
-                              <span className="text-xs text-ink-faint">no sides</span>
-                            )}
-                          </td>
-                        </tr>
-                      ))}
-                    </tbody>
-                  </table>
-                </div>
-              </Panel>
+                <input
+                  type="checkbox"
+                  className="mt-0.5 h-4 w-4 accent-shellac"
+                  checked={clearEmpty}
+                  disabled={phase !== "idle"}
+                  onChange={(e) => {
+                    setClearEmpty(e.target.checked);
+                    if (file) void preview(file, defaultAccession, e.target.checked);
+                  }}
+                />
+                <span>
+                  <span className="font-medium text-ink">Clear fields left empty</span>
+                  <span className="block text-ink-soft">
+                    When ticked, an empty cell in a row that updates a disc clears that field. When not, an
+                    empty cell leaves the field as it is. The accession and the required columns are never
+                    cleared.
+                  </span>
+                </span>
+              </label>
             ) : null}
+
+            <ImportErrors report={report} />
+            <ImportConflicts report={report} />
+            <ImportUpdates report={report} />
+            <ImportAdds report={report} />
 
             <div className="flex flex-wrap items-center justify-between gap-4 rounded-xl border border-paper-edge bg-white/80 px-5 py-4 shadow-sm">
               <p className="max-w-xl text-sm text-ink-soft">
-                {report.errorCount > 0
-                  ? "Importing is possible once every problem above is fixed."
-                  : `All ${plural(report.discs, "disc")} go in as one change: if anything fails, none are written.`}
+                {report.errorCount > 0 || report.conflictCount > 0
+                  ? "Importing is possible once every problem and conflict above is resolved."
+                  : `All of it goes in as one change: if anything fails, nothing is written. Each changed disc gets its own entry in its history.`}
               </p>
               <Button onClick={commit} disabled={blocked || phase !== "idle"} data-testid="import-confirm">
-                {phase === "importing" ? "Importing…" : `Import ${plural(report.discs, "disc")}`}
+                {phase === "importing" ? "Importing…" : confirmLabel(report)}
               </Button>
             </div>
           </>
@@ -498,6 +402,19 @@ export function ImportPanel({
       </aside>
     </div>
   );
+}
+
+function doneTitle(done: ImportDone): string {
+  const added = `${plural(done.imported, "disc")} with ${plural(done.sides, "side")}`;
+  if (done.updated === 0) return `Imported ${added}`;
+  if (done.imported === 0) return `Updated ${plural(done.updated, "disc")}`;
+  return `Imported ${added} and updated ${plural(done.updated, "disc")}`;
+}
+
+function confirmLabel(report: ImportReport): string {
+  if (report.updates === 0) return `Import ${plural(report.discs, "disc")}`;
+  if (report.discs === 0) return `Update ${plural(report.updates, "disc")}`;
+  return `Add ${plural(report.discs, "disc")}, update ${plural(report.updates, "disc")}`;
 }
 
 function Count({ label, value, tone }: { label: string; value: number; tone?: "ok" | "alarm" }) {

@@ -12,7 +12,14 @@ import {
   discFormats,
   formatLabels,
   sideInputSchema,
+  type StoredDisc,
+  type StoredSide,
+  storedDiscFields,
+  storedSideFields,
+  toStoredDisc,
+  toStoredSide,
 } from "../validation/catalogue";
+import { emptyFileMessage } from "../validation/text";
 
 type DiscFields = z.infer<typeof discFieldsSchema>;
 type SideInput = z.infer<typeof sideInputSchema>;
@@ -89,6 +96,10 @@ export const catalogueColumnSpecs = [
   { name: "title", side: "title", hint: "Title of the side." },
   { name: "performers", side: "performers", hint: "Performers as credited." },
   { name: "side_notes", side: "notes", hint: "Anything else about this side." },
+  {
+    name: "version",
+    hint: "The disc's version when it was exported: leave it as it is. Empty for a new disc.",
+  },
 ] as const satisfies readonly ColumnSpec[];
 
 export type CatalogueColumn = (typeof catalogueColumnSpecs)[number]["name"];
@@ -97,7 +108,10 @@ export const catalogueColumns: CatalogueColumn[] = catalogueColumnSpecs.map((c) 
 const specs: readonly ColumnSpec[] = catalogueColumnSpecs;
 const columnOfDiscField = new Map(specs.filter((c) => c.disc).map((c) => [c.disc as string, c.name]));
 const columnOfSideField = new Map(specs.filter((c) => c.side).map((c) => [c.side as string, c.name]));
-const sideColumns = specs.filter((c) => c.side).map((c) => c.name);
+const sideColumns = specs.filter((c) => c.side).map((c) => c.name) as CatalogueColumn[];
+const discColumnNames = specs.filter((c) => c.disc).map((c) => c.name) as CatalogueColumn[];
+/** Columns an update never clears: a disc cannot be without them. */
+const keptColumns = new Set<string>(["accession", ...specs.filter((c) => c.required).map((c) => c.name)]);
 
 export interface ImportError {
   /** The spreadsheet row: the header is row 1, the first disc row is row 2. */
@@ -123,7 +137,14 @@ export interface SheetRow {
 export interface ReadSheet {
   rows: SheetRow[];
   errors: ImportError[];
+  /** The columns the header names (a column it leaves out reads as empty cells). */
+  columns: CatalogueColumn[];
+  delimiter: Delimiter;
 }
+
+/** The separators a spreadsheet saves "CSV" with, by locale: all are read. */
+export const delimiters = { ",": "commas", ";": "semicolons", "\t": "tabs" } as const;
+export type Delimiter = keyof typeof delimiters;
 
 // ---------------------------------------------------------------------------------
 // Fields that look like spreadsheet formulas
@@ -152,13 +173,56 @@ const utf8 = new TextDecoder("utf-8", { fatal: true });
 
 /** Decodes an upload as UTF-8 text (a byte-order mark is dropped here or by the parser). */
 export function decodeCsv(bytes: Uint8Array): string {
+  if (bytes.byteLength === 0) throw new CsvFormatError(emptyFileMessage);
   try {
     return utf8.decode(bytes);
   } catch {
+    const at = firstNonUtf8(bytes);
+    const where = at < 0 ? "" : ` (line ${lineOfByte(bytes, at)} holds the first such byte)`;
     throw new CsvFormatError(
-      "The file is not UTF-8 text. Save it from the spreadsheet as “CSV UTF-8” and try again.",
+      `The file is not UTF-8 text${where}: it was saved in another encoding, such as Latin-1 or ` +
+        "Windows-1252. Save it from the spreadsheet as “CSV UTF-8” and try again.",
     );
   }
+}
+
+/** The offset of the first byte that cannot start or continue a UTF-8 sequence, or -1. */
+function firstNonUtf8(bytes: Uint8Array): number {
+  for (let i = 0; i < bytes.length;) {
+    const b = bytes[i];
+    const follow = b < 0x80 ? 0 : b >> 5 === 6 ? 1 : b >> 4 === 14 ? 2 : b >> 3 === 30 ? 3 : -1;
+    if (follow < 0) return i;
+    for (let k = 1; k <= follow; k++) if (i + k >= bytes.length || (bytes[i + k] & 0xc0) !== 0x80) return i;
+    i += follow + 1;
+  }
+  return -1;
+}
+
+function lineOfByte(bytes: Uint8Array, at: number): number {
+  let line = 1;
+  for (let i = 0; i < at; i++) if (bytes[i] === 0x0a) line++;
+  return line;
+}
+
+/**
+ * The separator the header is written with: the one of comma, semicolon and tab that
+ * splits it into the most known column names (a comma when none does better).
+ */
+export function detectDelimiter(text: string): Delimiter {
+  const firstLine = text.replace(/^\uFEFF/, "").split(/\r?\n/, 1)[0] ?? "";
+  const known = new Set<string>(catalogueColumns);
+  let best: Delimiter = ",";
+  let bestScore = 0;
+  for (const d of Object.keys(delimiters) as Delimiter[]) {
+    const score = firstLine
+      .split(d)
+      .filter((h) => known.has(h.trim().replace(/^"|"$/g, "").trim().toLowerCase())).length;
+    if (score > bestScore) {
+      best = d;
+      bestScore = score;
+    }
+  }
+  return best;
 }
 
 /** A file that cannot be read at all (not text, not CSV). */
@@ -200,19 +264,40 @@ const isBlank = (cells: string[]) => cells.every((c) => c.trim() === "");
  * but still counted, so row numbers match what a spreadsheet shows.
  */
 export function readCatalogueCsv(text: string): ReadSheet {
+  const delimiter = detectDelimiter(text);
+  const none = { rows: [], columns: [], delimiter };
   let records: string[][];
   try {
-    records = parse(text, { bom: true, relax_column_count: true, skip_empty_lines: false }) as string[][];
+    records = parse(text, {
+      bom: true,
+      delimiter,
+      relax_column_count: true,
+      skip_empty_lines: false,
+    }) as string[][];
   } catch (e) {
-    if (e instanceof CsvError) return { rows: [], errors: [csvParseProblem(e)] };
+    if (e instanceof CsvError) return { ...none, errors: [csvParseProblem(e)] };
     throw e;
   }
   // A file that ends in blank lines has no rows there.
   while (records.length && isBlank(records[records.length - 1])) records.pop();
   if (!records.length)
     return {
-      rows: [],
+      ...none,
       errors: [{ row: 1, column: "", message: "The file is empty: the first row must name the columns." }],
+    };
+  const other = records[0].length === 1 ? /[|:^]/.exec(records[0][0]) : null;
+  if (other)
+    return {
+      ...none,
+      errors: [
+        {
+          row: 1,
+          column: "",
+          message:
+            `The header is one column that holds “${other[0]}”: the file seems separated by ${other[0]}. ` +
+            "Save it as CSV separated by commas, semicolons or tabs.",
+        },
+      ],
     };
 
   const errors: ImportError[] = [];
@@ -249,13 +334,13 @@ export function readCatalogueCsv(text: string): ReadSheet {
     if (c.required && !at.has(c.name))
       errors.push({ row: 1, column: c.name, message: `The header has no ${c.name} column; it is required.` });
   }
-  if (errors.length) return { rows: [], errors };
+  if (errors.length) return { ...none, errors };
 
   const dataRows = records.length - 1;
   const filled = records.slice(1).filter((r) => !isBlank(r)).length;
   if (filled > maxImportRows) {
     return {
-      rows: [],
+      ...none,
       errors: [
         {
           row: maxImportRows + 2,
@@ -267,7 +352,7 @@ export function readCatalogueCsv(text: string): ReadSheet {
   }
   if (filled === 0)
     return {
-      rows: [],
+      ...none,
       errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }],
     };
 
@@ -280,7 +365,9 @@ export function readCatalogueCsv(text: string): ReadSheet {
       errors.push({
         row,
         column: "",
-        message: `This row has ${cells.length} fields but the header names ${header.length} columns. Check for an unquoted comma.`,
+        message:
+          `This row has ${cells.length} fields but the header names ${header.length} columns. ` +
+          `Check for an unquoted ${delimiter === "\t" ? "tab" : delimiter === ";" ? "semicolon" : "comma"}.`,
       });
       continue;
     }
@@ -292,7 +379,7 @@ export function readCatalogueCsv(text: string): ReadSheet {
     ) as Record<CatalogueColumn, string>;
     rows.push({ row, values });
   }
-  return { rows, errors };
+  return { rows, errors, columns: catalogueColumns.filter((c) => at.has(c)), delimiter };
 }
 
 // ---------------------------------------------------------------------------------
@@ -303,6 +390,15 @@ export interface BuildOptions {
   resolveAccession: (identifier: string) => string | undefined;
   /** Used for rows whose accession column is empty. */
   defaultAccessionId?: string;
+  /** The disc already catalogued under a shelf mark (given in lower case): its rows update it. */
+  existing?: (shelfMarkKey: string) => ExportDisc | undefined;
+  /**
+   * An update's empty cells clear their field (never the accession or a required column);
+   * by default they leave the field as it is.
+   */
+  clearEmpty?: boolean;
+  /** The columns the file has: a column it leaves out is never cleared. Default: all of them. */
+  columns?: readonly CatalogueColumn[];
 }
 
 export interface BuiltDisc {
@@ -311,6 +407,8 @@ export interface BuiltDisc {
   rows: number[];
   disc: DiscInput;
   accessionIdentifier: string;
+  /** The version column: the disc's version when the file was exported (null for a new disc). */
+  version: number | null;
 }
 
 export interface BuiltSheet {
@@ -389,9 +487,38 @@ function shown(v: unknown): string {
   return `“${Array.isArray(v) ? v.join("; ") : String(v)}”`;
 }
 
+/**
+ * A row that updates a catalogued disc, with its empty cells taken from the disc as it is
+ * stored (its own side's, matched by designation, for the side columns), unless the
+ * archivist asked that empty cells clear their field.
+ */
+function fillFromExisting(
+  values: Record<CatalogueColumn, string>,
+  known: ExportDisc,
+  clearEmpty: boolean,
+  present: ReadonlySet<string>,
+): Record<CatalogueColumn, string> {
+  const stored = cellsOf(known);
+  const out = { ...values };
+  const fill = (c: CatalogueColumn) =>
+    out[c].trim() === "" && (!clearEmpty || keptColumns.has(c) || !present.has(c));
+  for (const c of discColumnNames) if (fill(c)) out[c] = stored[0][c];
+  const designation = values.side.trim().toLowerCase();
+  const side = designation ? stored.find((r) => r.side.toLowerCase() === designation) : undefined;
+  if (side) for (const c of sideColumns) if (c !== "side" && fill(c)) out[c] = side[c];
+  return out;
+}
+
+function versionOf(cell: string): number | null | "bad" {
+  const v = cell.trim();
+  if (v === "") return null;
+  return /^[1-9][0-9]{0,9}$/.test(v) ? Number(v) : "bad";
+}
+
 interface CheckedRow {
   row: number;
   key: string;
+  version: number | null;
   accessionIdentifier: string;
   fields?: DiscFields;
   side?: SideInput | null;
@@ -410,8 +537,18 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
   const duplicates: FileDuplicate[] = [];
   const checked: CheckedRow[] = [];
 
-  for (const { row, values } of sheet) {
+  const present = new Set<string>(options.columns ?? catalogueColumns);
+  for (const { row, values: cells } of sheet) {
     const rowErrors: ImportError[] = [];
+    const known = options.existing?.(cells.shelf_mark.trim().toLowerCase());
+    const values = known ? fillFromExisting(cells, known, options.clearEmpty ?? false, present) : cells;
+    const version = versionOf(values.version);
+    if (version === "bad")
+      rowErrors.push({
+        row,
+        column: "version",
+        message: `The version must be the whole number the export wrote, not “${values.version.trim()}”. Leave it as exported; empty for a new disc.`,
+      });
     const identifier = values.accession.trim();
     let accessionId: string | undefined;
     if (identifier) {
@@ -450,6 +587,7 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
     checked.push({
       row,
       key: values.shelf_mark.trim().toLowerCase(),
+      version: version === "bad" ? null : version,
       accessionIdentifier: identifier,
       fields: disc.success ? disc.data : undefined,
       side,
@@ -504,6 +642,16 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
         }
       }
     }
+    for (const r of group) {
+      if (r !== head && r.version !== head.version && (r.version !== null || head.version !== null))
+        errors.push({
+          row: r.row,
+          column: "version",
+          message:
+            `Differs from row ${head.row}, the disc's first row: ${shown(r.version)} here, ` +
+            `${shown(head.version)} there. Every row of a disc carries the version it was exported at.`,
+        });
+    }
     const sides: SideInput[] = [];
     const sideRow = new Map<string, number>();
     for (const r of group) {
@@ -551,6 +699,7 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
       rows: group.map((r) => r.row),
       disc: whole.success ? whole.data : { ...head.fields, sides },
       accessionIdentifier: head.accessionIdentifier,
+      version: head.version,
     });
   }
 
@@ -566,71 +715,37 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
 // ---------------------------------------------------------------------------------
 // Writing
 
-/** A disc as the exporter writes it: stored values, with the accession by identifier. */
-export interface ExportDisc {
-  shelfMark: string;
+/**
+ * A disc as the spreadsheet holds it: the stored fields (the one shape of a disc), with
+ * the accession by identifier and the version it was exported at.
+ */
+export type ExportDisc = Omit<StoredDisc, "accessionId"> & {
   accessionIdentifier: string;
-  labelName: string;
-  catalogueNumber: string;
-  format: string;
-  base: string | null;
-  diameterIn: number | null;
-  nominalSpeedRpm: number;
-  groove: string;
-  cut: string;
-  recordingDate: string | null;
-  recordedFromYear: number | null;
-  recordedToYear: number | null;
-  conditionGrade: string;
-  conditionFlags: string[];
-  conditionNotes: string;
-  handlingNotes: string;
-  sides: {
-    designation: string;
-    matrixNumber: string;
-    take: string;
-    title: string;
-    performers: string;
-    notes: string;
-  }[];
+  /** Null (or left out) in a template or for a disc not yet in the catalogue. */
+  version?: number | null;
+  sides: StoredSide[];
+};
+
+const cell = (v: unknown): string =>
+  v === null || v === undefined ? "" : Array.isArray(v) ? v.join(";") : String(v);
+
+/** The cells of one disc's rows, by column: one row per side, or one with empty side columns. */
+function cellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
+  const disc: Record<string, string> = { version: cell(d.version) };
+  for (const c of specs) {
+    if (c.disc) disc[c.name] = c.disc === "accessionId" ? d.accessionIdentifier : cell(d[c.disc]);
+  }
+  const sides: (StoredSide | null)[] = d.sides.length ? d.sides : [null];
+  return sides.map((s) => {
+    const values = { ...disc };
+    for (const c of specs) if (c.side) values[c.name] = s ? cell(s[c.side]) : "";
+    return values as Record<CatalogueColumn, string>;
+  });
 }
 
-const num = (v: number | null) => (v === null || v === undefined ? "" : String(v));
-
-/** The rows of one disc: one per side, or one with empty side columns. */
+/** The rows of one disc as written to the file: formula-looking cells protected. */
 function discRows(d: ExportDisc): string[][] {
-  const disc: Record<string, string> = {
-    shelf_mark: d.shelfMark,
-    accession: d.accessionIdentifier,
-    label: d.labelName,
-    catalogue_number: d.catalogueNumber,
-    format: d.format,
-    base: d.base ?? "",
-    diameter_in: num(d.diameterIn),
-    speed_rpm: num(d.nominalSpeedRpm),
-    groove: d.groove,
-    cut: d.cut,
-    recording_date: d.recordingDate ?? "",
-    year_from: num(d.recordedFromYear),
-    year_to: num(d.recordedToYear),
-    condition: d.conditionGrade,
-    condition_flags: d.conditionFlags.join(";"),
-    condition_notes: d.conditionNotes,
-    handling_notes: d.handlingNotes,
-  };
-  const sides = d.sides.length ? d.sides : [null];
-  return sides.map((s) => {
-    const values: Record<string, string> = {
-      ...disc,
-      side: s?.designation ?? "",
-      matrix_number: s?.matrixNumber ?? "",
-      take: s?.take ?? "",
-      title: s?.title ?? "",
-      performers: s?.performers ?? "",
-      side_notes: s?.notes ?? "",
-    };
-    return catalogueColumns.map((c) => protectFormula(values[c]));
-  });
+  return cellsOf(d).map((values) => catalogueColumns.map((c) => protectFormula(values[c])));
 }
 
 /**
@@ -725,3 +840,63 @@ export function summariseDisc(d: BuiltDisc, accessionIdentifier = d.accessionIde
   };
 }
 export type DiscSummary = ReturnType<typeof summariseDisc>;
+
+// ---------------------------------------------------------------------------------
+// What an update changes
+
+export interface FieldChange {
+  /** The stored field (as in the disc's record and its "disc.edited" events). */
+  field: string;
+  column: CatalogueColumn;
+  before: unknown;
+  after: unknown;
+}
+
+export interface SideChange {
+  designation: string;
+  /** A side the disc did not have. */
+  added: boolean;
+  changes: FieldChange[];
+}
+
+export interface DiscChanges {
+  fields: FieldChange[];
+  sides: SideChange[];
+}
+
+/**
+ * What saving `after` over the stored disc would change, field by field; sides are
+ * matched by designation (any case). A side the file leaves out is not a change: an
+ * import never removes a side.
+ */
+export function discChanges(before: StoredDisc & { sides: StoredSide[] }, after: DiscInput): DiscChanges {
+  const next = toStoredDisc(after);
+  const fields = storedDiscFields
+    .filter((f) => !sameValue(before[f], next[f]))
+    .map((f) => ({
+      field: f,
+      column: columnOfDiscField.get(f) as CatalogueColumn,
+      before: before[f],
+      after: next[f],
+    }));
+  const old = new Map(before.sides.map((s) => [s.designation.toLowerCase(), s]));
+  const sides: SideChange[] = [];
+  for (const input of after.sides) {
+    const s = toStoredSide(input);
+    const o = old.get(s.designation.toLowerCase());
+    const changes = storedSideFields
+      .filter((f) => (o ? o[f] !== s[f] : s[f] !== ""))
+      .map((f) => ({
+        field: f,
+        column: columnOfSideField.get(f) as CatalogueColumn,
+        before: o ? o[f] : null,
+        after: s[f],
+      }));
+    if (!o || changes.length) sides.push({ designation: s.designation, added: !o, changes });
+  }
+  return { fields, sides };
+}
+
+export function hasChanges(c: DiscChanges): boolean {
+  return c.fields.length > 0 || c.sides.length > 0;
+}

@@ -5,7 +5,7 @@ import type { Database } from "../../db/types";
 import type { SessionUser } from "../auth/session-user";
 import { AppError } from "../http/errors";
 import { appendEvent, appendEvents } from "../provenance";
-import { createDiscSchema, type DiscInput, updateDiscSchema } from "../validation/catalogue";
+import { createDiscSchema, type DiscEdit, type DiscInput, updateDiscSchema } from "../validation/catalogue";
 import { listDiscsWith } from "./list-query";
 import { type DiscRecord, readDisc, refreshSearch } from "./records";
 
@@ -183,6 +183,21 @@ function changedFields(before: Record<string, unknown>, after: Record<string, un
   return Object.keys(after).filter((k) => JSON.stringify(before[k]) !== JSON.stringify(after[k]));
 }
 
+/** Who last saved the disc and when, for a conflict message ("someone else saved it" when unknown). */
+async function lastSaver(trx: Transaction<Database>, id: string): Promise<string> {
+  const last = await trx
+    .selectFrom("provenance_events as e")
+    .leftJoin("users as u", "u.id", "e.actor_id")
+    .select(["u.name", "e.at"])
+    .where("e.disc_id", "=", id)
+    .orderBy("e.seq", "desc")
+    .limit(1)
+    .executeTakeFirst();
+  return last?.name
+    ? `${last.name} saved it at ${last.at.toISOString().slice(11, 16)} UTC`
+    : "someone else saved it";
+}
+
 /**
  * Saves an edit made from `version`. If someone saved the disc since, nothing is written
  * and the answer is a 409 carrying the disc as it now stands, so the person can see the
@@ -200,86 +215,94 @@ export async function updateDisc(actor: SessionUser, id: string, input: unknown)
     if (!locked) throw new AppError("not_found", 404, "No such disc.");
     const before = (await readDisc(trx, id))!;
     if (locked.version !== d.version) {
-      const last = await trx
-        .selectFrom("provenance_events as e")
-        .leftJoin("users as u", "u.id", "e.actor_id")
-        .select(["u.name", "e.at"])
-        .where("e.disc_id", "=", id)
-        .orderBy("e.seq", "desc")
-        .limit(1)
-        .executeTakeFirst();
-      const who = last?.name
-        ? `${last.name} saved it at ${last.at.toISOString().slice(11, 16)} UTC`
-        : "someone else saved it";
       throw new AppError(
         "conflict",
         409,
-        `This disc changed while you were editing it (${who}). Your edit was not saved: review their change, then apply yours again.`,
+        `This disc changed while you were editing it (${await lastSaver(trx, id)}). Your edit was not saved: review their change, then apply yours again.`,
         undefined,
         { current: before },
       );
     }
-    await assertAccession(trx, d.accessionId);
-    await assertShelfMarkFree(trx, d.shelfMark, id);
-    await trx
-      .updateTable("discs")
-      .set({ ...discColumns(d), version: d.version + 1, updated_at: sql`now()` })
-      .where("id", "=", id)
-      .execute();
-
-    const existing = new Map(before.sides.map((s) => [s.id, s]));
-    const keep = new Set<string>();
-    for (const s of d.sides) {
-      if (s.id) {
-        const old = existing.get(s.id);
-        if (!old)
-          throw new AppError("invalid", 422, `Side ${s.designation} does not belong to this disc.`, {
-            sides: ["Unknown side."],
-          });
-        keep.add(s.id);
-        await trx
-          .updateTable("sides")
-          .set({ ...sideColumns(s), version: old.version + 1, updated_at: sql`now()` })
-          .where("id", "=", s.id)
-          .execute();
-      } else {
-        await trx
-          .insertInto("sides")
-          .values({ disc_id: id, ...sideColumns(s) })
-          .execute();
-      }
-    }
-    for (const old of before.sides) {
-      if (keep.has(old.id)) continue;
-      if (old.status !== "catalogued") {
-        throw new AppError(
-          "conflict",
-          409,
-          `Side ${old.designation} is already ${old.status.replace("_", " ")} and cannot be removed.`,
-          { sides: ["A side in the workflow cannot be removed."] },
-        );
-      }
-      await trx.deleteFrom("sides").where("id", "=", old.id).execute();
-    }
-    await refreshSearch(trx, [id]);
-    const after = (await readDisc(trx, id))!;
-    const b = eventView(before);
-    const a = eventView(after);
-    const changed = changedFields(b, a);
-    await appendEvent(trx, {
-      actorId: actor.id,
-      kind: "disc.edited",
-      subjectType: "disc",
-      subjectId: id,
-      discId: id,
-      payload: {
-        changed,
-        before: Object.fromEntries(changed.map((k) => [k, (b as Record<string, unknown>)[k]])),
-        after: Object.fromEntries(changed.map((k) => [k, (a as Record<string, unknown>)[k]])),
-      },
-    });
-    return after;
+    return writeDiscEdit(trx, actor, before, d);
   });
+}
+
+/**
+ * Writes a checked edit of a disc (locked by the caller, read as `before`, at the version
+ * the edit was made from) with its "disc.edited" event naming each changed field, before
+ * and after. The form's save and the spreadsheet import both save through here, so an
+ * edit reads the same in the provenance log whichever way it came. `origin` adds to the
+ * event's payload (the import's file and row).
+ */
+export async function writeDiscEdit(
+  trx: Transaction<Database>,
+  actor: SessionUser,
+  before: DiscRecord,
+  d: DiscEdit,
+  origin: Record<string, unknown> = {},
+): Promise<DiscRecord> {
+  const id = before.id;
+  await assertAccession(trx, d.accessionId);
+  await assertShelfMarkFree(trx, d.shelfMark, id);
+  await trx
+    .updateTable("discs")
+    .set({ ...discColumns(d), version: before.version + 1, updated_at: sql`now()` })
+    .where("id", "=", id)
+    .execute();
+
+  const existing = new Map(before.sides.map((s) => [s.id, s]));
+  const keep = new Set<string>();
+  for (const s of d.sides) {
+    if (s.id) {
+      const old = existing.get(s.id);
+      if (!old)
+        throw new AppError("invalid", 422, `Side ${s.designation} does not belong to this disc.`, {
+          sides: ["Unknown side."],
+        });
+      keep.add(s.id);
+      await trx
+        .updateTable("sides")
+        .set({ ...sideColumns(s), version: old.version + 1, updated_at: sql`now()` })
+        .where("id", "=", s.id)
+        .execute();
+    } else {
+      await trx
+        .insertInto("sides")
+        .values({ disc_id: id, ...sideColumns(s) })
+        .execute();
+    }
+  }
+  for (const old of before.sides) {
+    if (keep.has(old.id)) continue;
+    if (old.status !== "catalogued") {
+      throw new AppError(
+        "conflict",
+        409,
+        `Side ${old.designation} is already ${old.status.replace("_", " ")} and cannot be removed.`,
+        { sides: ["A side in the workflow cannot be removed."] },
+      );
+    }
+    await trx.deleteFrom("sides").where("id", "=", old.id).execute();
+  }
+  await refreshSearch(trx, [id]);
+  const after = (await readDisc(trx, id))!;
+  const b = eventView(before);
+  const a = eventView(after);
+  const changed = changedFields(b, a);
+  await appendEvent(trx, {
+    actorId: actor.id,
+    kind: "disc.edited",
+    subjectType: "disc",
+    subjectId: id,
+    discId: id,
+    payload: {
+      changed,
+      before: Object.fromEntries(changed.map((k) => [k, (b as Record<string, unknown>)[k]])),
+      after: Object.fromEntries(changed.map((k) => [k, (a as Record<string, unknown>)[k]])),
+      ...origin,
+    },
+  });
+  return after;
 }
 
 export async function getDisc(id: string): Promise<DiscRecord> {

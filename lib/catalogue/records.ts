@@ -1,16 +1,12 @@
 import { sql, type Kysely, type Transaction } from "kysely";
 import type { Database, SideStatus } from "../../db/types";
+import type { StoredDisc, StoredSide } from "../validation/catalogue";
 
 type Db = Kysely<Database> | Transaction<Database>;
 
-export interface SideRecord {
+/** A side as the catalogue reads it: its stored fields (the one shape) and where it stands in the workflow. */
+export type SideRecord = StoredSide & {
   id: string;
-  designation: string;
-  matrixNumber: string;
-  take: string;
-  title: string;
-  performers: string;
-  notes: string;
   status: SideStatus;
   assignedEngineerId: string | null;
   assignedEngineerName: string | null;
@@ -20,33 +16,17 @@ export interface SideRecord {
   currentCurveChoiceId: string | null;
   currentRenderId: string | null;
   version: number;
-}
+};
 
-export interface DiscRecord {
+/** A disc as the catalogue reads it: its stored fields (the one shape), with the record's own bookkeeping. */
+export type DiscRecord = StoredDisc & {
   id: string;
-  accessionId: string;
   accessionIdentifier: string;
-  shelfMark: string;
-  labelName: string;
-  catalogueNumber: string;
-  format: Database["discs"]["format"];
-  base: Database["discs"]["base"];
-  diameterIn: number | null;
-  nominalSpeedRpm: number;
-  groove: "coarse" | "micro";
-  cut: "lateral" | "vertical";
-  recordingDate: string | null;
-  recordedFromYear: number | null;
-  recordedToYear: number | null;
-  conditionGrade: string;
-  conditionFlags: string[];
-  conditionNotes: string;
-  handlingNotes: string;
   version: number;
   createdAt: Date;
   updatedAt: Date;
   sides: SideRecord[];
-}
+};
 
 /** Reads one disc with its sides, explicitly selected; null when there is none. */
 export async function readDisc(db: Db, id: string): Promise<DiscRecord | null> {
@@ -58,7 +38,28 @@ export async function readDisc(db: Db, id: string): Promise<DiscRecord | null> {
 /** Reads many discs with their sides in two queries, in the order of `ids` (missing ones left out). */
 export async function readDiscs(db: Db, ids: string[]): Promise<DiscRecord[]> {
   if (!ids.length) return [];
-  const rows = await db
+  const rows = await selectDiscs(db).where("d.id", "in", ids).execute();
+  const found = await withSides(db, rows);
+  const byId = new Map(found.map((d) => [d.id, d]));
+  return ids.flatMap((id) => byId.get(id) ?? []);
+}
+
+/**
+ * Reads the discs with these shelf marks (any case) and their sides: one query for the
+ * discs and one for the sides, whatever the number of marks (the unique index on
+ * lower(shelf_mark) answers the first).
+ */
+export async function readDiscsByShelfMarks(db: Db, shelfMarks: string[]): Promise<DiscRecord[]> {
+  const marks = [...new Set(shelfMarks.map((m) => m.toLowerCase()))];
+  if (!marks.length) return [];
+  const rows = await selectDiscs(db)
+    .where(sql<boolean>`lower(d.shelf_mark) = ANY(${marks}::text[])`)
+    .execute();
+  return withSides(db, rows);
+}
+
+function selectDiscs(db: Db) {
+  return db
     .selectFrom("discs as d")
     .innerJoin("accessions as a", "a.id", "d.accession_id")
     .select([
@@ -84,24 +85,22 @@ export async function readDiscs(db: Db, ids: string[]): Promise<DiscRecord[]> {
       "d.version",
       "d.created_at as createdAt",
       "d.updated_at as updatedAt",
-    ])
-    .where("d.id", "in", ids)
-    .execute();
-  const sides = await readSides(db, ids);
-  const byId = new Map(rows.map((d) => [d.id, d]));
-  return ids.flatMap((id) => {
-    const d = byId.get(id);
-    return d
-      ? [
-          {
-            ...d,
-            diameterIn: d.diameterIn === null ? null : Number(d.diameterIn),
-            nominalSpeedRpm: Number(d.nominalSpeedRpm),
-            sides: sides.get(id) ?? [],
-          },
-        ]
-      : [];
-  });
+    ]);
+}
+
+type DiscRow = Awaited<ReturnType<ReturnType<typeof selectDiscs>["execute"]>>[number];
+
+async function withSides(db: Db, rows: DiscRow[]): Promise<DiscRecord[]> {
+  const sides = await readSides(
+    db,
+    rows.map((d) => d.id),
+  );
+  return rows.map((d) => ({
+    ...d,
+    diameterIn: d.diameterIn === null ? null : Number(d.diameterIn),
+    nominalSpeedRpm: Number(d.nominalSpeedRpm),
+    sides: sides.get(d.id) ?? [],
+  }));
 }
 
 export async function readSides(db: Db, discIds: string[]): Promise<Map<string, SideRecord[]>> {
@@ -128,7 +127,7 @@ export async function readSides(db: Db, discIds: string[]): Promise<Map<string, 
       "s.current_render_id as currentRenderId",
       "s.version",
     ])
-    .where("s.disc_id", "in", discIds)
+    .where(sql<boolean>`s.disc_id = ANY(${discIds}::uuid[])`)
     .orderBy("s.disc_id")
     .orderBy(sql`lower(s.designation)`)
     .execute();

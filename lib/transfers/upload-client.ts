@@ -20,6 +20,7 @@
  */
 import { createSHA256 } from "hash-wasm";
 import { AppError } from "../http/errors";
+import { emptyFileMessage } from "../validation/text";
 
 const CONCURRENCY = 3;
 /** Tries of a part the store refused (a URL gone stale, say) before the upload fails. */
@@ -274,6 +275,11 @@ export async function runUpload(args: {
     }
   };
 
+  if (file.size === 0) {
+    // Nothing to send: say so here rather than as the server's refusal of a start.
+    onState(() => ({ ...idleUpload, phase: "failed", fileName: file.name, error: emptyFileMessage }));
+    return null;
+  }
   onState(() => ({ ...idleUpload, phase: "starting", fileName: file.name, totalBytes: file.size }));
   try {
     // Resume a remembered upload: the parts the bucket lists, or the ones remembered when it cannot list them.

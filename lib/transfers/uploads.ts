@@ -15,7 +15,7 @@ import type { UploadsTable } from "../../db/types";
 import { readWavHeader, WavError } from "../audio";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
-import { AppError } from "../http/errors";
+import { AppError, fromZod } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { lockSide, transferAccepted } from "../sides/lifecycle";
 import { storeFailure } from "../storage/errors";
@@ -236,7 +236,14 @@ async function signParts(u: Upload, partNumbers: number[]) {
  * (the only name it uses from now on), the part size and the first part URLs.
  */
 export async function startUpload(actor: SessionUser, input: unknown) {
-  const { sideId, fileName, bytes } = startUploadSchema.parse(input);
+  const parsed = startUploadSchema.safeParse(input);
+  // One thing wrong (an empty file, say) is said as the answer's message, where the bench shows it.
+  if (!parsed.success)
+    throw fromZod(
+      parsed.error,
+      parsed.error.issues.length === 1 ? parsed.error.issues[0].message : undefined,
+    );
+  const { sideId, fileName, bytes } = parsed.data;
   await sideForUpload(actor, sideId);
   const id = randomUUID();
   const key = objectKeyFor(sideId, id);

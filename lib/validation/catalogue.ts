@@ -18,6 +18,9 @@ export const formatLabels: Record<(typeof discFormats)[number], string> = {
   other: "Other",
 };
 export const discBases = ["aluminium", "glass", "card", "unknown"] as const;
+export const grooves = ["coarse", "micro"] as const;
+export const cuts = ["lateral", "vertical"] as const;
+
 export const conditionGrades = ["unassessed", "excellent", "good", "fair", "poor", "unplayable"] as const;
 export const conditionFlags = [
   "cracks",
@@ -67,6 +70,15 @@ const year = z.coerce
 /** Empty strings from forms and spreadsheets mean "not given". */
 export const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
+/**
+ * A refinement across fields runs when those fields parsed, whatever happened to the others,
+ * so a row with a bad format still hears that its year range runs backwards.
+ */
+function whenFieldsParsed(...fields: string[]) {
+  return (payload: { issues: readonly { path?: readonly PropertyKey[] }[] }) =>
+    !payload.issues.some((i) => fields.includes(String(i.path?.[0] ?? "")));
+}
+
 export const sideInputSchema = z.object({
   id: z.uuid().optional(),
   designation: text(20, "Side").min(1, "Give the side designation (A, B, 1, 2 …)."),
@@ -100,8 +112,8 @@ export const discFieldsSchema = z
       .number({ error: "Nominal speed must be a number (rpm)." })
       .positive("Speed must be above 0 rpm.")
       .max(200, "Speed over 200 rpm? Check the value."),
-    groove: z.enum(["coarse", "micro"], { error: "Groove must be coarse or micro." }),
-    cut: z.enum(["lateral", "vertical"], { error: "Cut must be lateral or vertical." }),
+    groove: z.enum(grooves, { error: "Groove must be coarse or micro." }),
+    cut: z.enum(cuts, { error: "Cut must be lateral or vertical." }),
     recordingDate: z.preprocess(
       blankToUndefined,
       z.iso.date({ error: "Recording date must be YYYY-MM-DD." }).optional(),
@@ -128,6 +140,8 @@ export const discFieldsSchema = z
     {
       path: ["recordedToYear"],
       message: "The year range runs backwards: the 'to' year is before the 'from' year.",
+      // Checked whenever both years are good, even beside a bad value in another field.
+      when: whenFieldsParsed("recordedFromYear", "recordedToYear"),
     },
   )
   .refine(
@@ -139,8 +153,72 @@ export const discFieldsSchema = z
     {
       path: ["base"],
       message: "A base is recorded for lacquer and transcription discs only.",
+      when: whenFieldsParsed("base", "format"),
     },
   );
+
+/**
+ * A side's catalogue fields as stored and read back. With `storedDiscSchema`, the one shape
+ * of a disc: the record (lib/catalogue/records.ts), the spreadsheet's rows
+ * (lib/catalogue/csv-format.ts) and the form's values (components/catalogue) derive from it.
+ */
+export const storedSideSchema = z.object({
+  designation: z.string(),
+  matrixNumber: z.string(),
+  take: z.string(),
+  title: z.string(),
+  performers: z.string(),
+  notes: z.string(),
+});
+export type StoredSide = z.infer<typeof storedSideSchema>;
+
+/** A disc's catalogue fields as stored and read back (what is not given is null). */
+export const storedDiscSchema = z.object({
+  accessionId: z.string(),
+  shelfMark: z.string(),
+  labelName: z.string(),
+  catalogueNumber: z.string(),
+  format: z.enum(discFormats),
+  base: z.enum(discBases).nullable(),
+  diameterIn: z.number().nullable(),
+  nominalSpeedRpm: z.number(),
+  groove: z.enum(grooves),
+  cut: z.enum(cuts),
+  recordingDate: z.string().nullable(),
+  recordedFromYear: z.number().int().nullable(),
+  recordedToYear: z.number().int().nullable(),
+  conditionGrade: z.enum(conditionGrades),
+  conditionFlags: z.array(z.string()),
+  conditionNotes: z.string(),
+  handlingNotes: z.string(),
+});
+export type StoredDisc = z.infer<typeof storedDiscSchema>;
+export type StoredDiscField = keyof StoredDisc;
+export const storedDiscFields = Object.keys(storedDiscSchema.shape) as StoredDiscField[];
+export const storedSideFields = Object.keys(storedSideSchema.shape) as (keyof StoredSide)[];
+
+/** A checked disc as it will be stored: what the input leaves out is null. */
+export function toStoredDisc(d: z.infer<typeof discFieldsSchema>): StoredDisc {
+  return {
+    ...d,
+    base: d.base ?? null,
+    diameterIn: d.diameterIn ?? null,
+    recordingDate: d.recordingDate ?? null,
+    recordedFromYear: d.recordedFromYear ?? null,
+    recordedToYear: d.recordedToYear ?? null,
+  };
+}
+
+export function toStoredSide(s: z.infer<typeof sideInputSchema>): StoredSide {
+  return {
+    designation: s.designation,
+    matrixNumber: s.matrixNumber,
+    take: s.take,
+    title: s.title,
+    performers: s.performers,
+    notes: s.notes,
+  };
+}
 
 const sidesSchema = z.array(sideInputSchema).max(8, "At most 8 sides.").default([]);
 
@@ -151,6 +229,7 @@ export type DiscInput = z.infer<typeof createDiscSchema>;
 export const updateDiscSchema = discFieldsSchema.and(
   z.object({ version: z.coerce.number().int().positive(), sides: sidesSchema }),
 );
+export type DiscEdit = z.infer<typeof updateDiscSchema>;
 
 export const accessionSchema = z.object({
   identifier: text(80, "Identifier").min(1, "Give the accession identifier."),

@@ -8,6 +8,9 @@ import { AppError } from "../http/errors";
 // Both are refused where they come in, with a field error, instead of answering 500 or
 // storing something other than what was sent.
 
+/** What a person sees for a file of no bytes at all, whichever page it was sent from. */
+export const emptyFileMessage = "The file is empty (0 bytes).";
+
 export const badTextMessage =
   "This text holds a NUL character (U+0000) or a broken Unicode character: remove it.";
 

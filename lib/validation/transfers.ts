@@ -1,6 +1,7 @@
 import { z } from "zod";
 import type { SideStatusName } from "./catalogue";
 import { curveSpecSchema } from "./curves";
+import { emptyFileMessage } from "./text";
 
 // Which work a side takes in which status (lib/sides/lifecycle.ts enforces them; the bench
 // uses them to lock its forms). The order: assigned → flat transfer accepted → curve chosen
@@ -107,7 +108,7 @@ export const startUploadSchema = z.object({
   bytes: z.coerce
     .number()
     .int()
-    .positive("The file is empty (0 bytes).")
+    .positive(emptyFileMessage)
     .max(maxTransferBytes, "Files over 64 GiB are not accepted."),
 });
 

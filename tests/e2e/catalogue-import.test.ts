@@ -119,6 +119,32 @@ describe("importing a spreadsheet on the import page", () => {
       "",
     ]);
 
+    // The round trip: export the accession, correct a label and a title in the spreadsheet, bring it back.
+    await page.goto(`${appUrl}/catalogue/import`);
+    await page.getByRole("heading", { name: "Import discs from a spreadsheet" }).waitFor();
+    const exported = await fetch(`${appUrl}/api/discs/export?accession=${acc.body.accession.id}`, {
+      headers: { cookie },
+    });
+    expect(exported.status).toBe(200);
+    const edited = (await exported.text())
+      .replace("Evening programme, part 2", "Evening programme, part 2 (ends early)")
+      .replaceAll(`${shelf(2)},${identifier},,`, `${shelf(2)},${identifier},Studio Rill,`);
+    await page
+      .getByTestId("import-file")
+      .setInputFiles({ name: "corrected.csv", mimeType: "text/csv", buffer: Buffer.from(edited) });
+    await page.getByTestId("import-updates").waitFor();
+    const updates = page.getByTestId("import-update");
+    await expect(updates.count()).resolves.toBe(2);
+    await expect(updates.nth(0).innerText()).resolves.toMatch(
+      /Side B · title\s+Evening programme, part 2\s+→\s+Evening programme, part 2 \(ends early\)/,
+    );
+    await expect(updates.nth(1).innerText()).resolves.toMatch(/Label\s+—\s+→\s+Studio Rill/);
+    await expect(page.getByTestId("import-clear-empty").isVisible()).resolves.toBe(true);
+    await expect(confirm.innerText()).resolves.toBe("Update 2 discs");
+    await screenshot(page, "catalogue-import-updates");
+    await confirm.click();
+    await expect(page.getByTestId("import-done").innerText()).resolves.toMatch(/Updated 2 discs/);
+
     await page.getByTestId("import-catalogue-link").click();
     await page.waitForURL(`${appUrl}/catalogue`);
     await context.close();

@@ -3,6 +3,7 @@
 // one transaction with one import event, and export → import gives back the same discs.
 import { createHash } from "node:crypto";
 import { parse } from "csv-parse/sync";
+import { stringify } from "csv-stringify/sync";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
@@ -12,6 +13,7 @@ import { testDb } from "../support/db";
 
 let archivist: string;
 let curator: string;
+let admin: string;
 const stamp = `${Date.now().toString(36)}${Math.random().toString(36).slice(2, 6)}`.toUpperCase();
 
 function account(role: string) {
@@ -21,7 +23,8 @@ function account(role: string) {
 beforeAll(async () => {
   archivist = await signInCookie(account("archivist").email, account("archivist").password);
   curator = await signInCookie(account("curator").email, account("curator").password);
-});
+  admin = await signInCookie(account("admin").email, account("admin").password);
+}, 60_000); // three sign-ins hash three passwords: slow on a busy machine
 
 afterAll(async () => {
   await testDb.destroy();
@@ -113,6 +116,18 @@ async function exportCsv(
   return { status: res.status, text: await res.text(), headers: res.headers };
 }
 
+/** The cells of an exported file, as a spreadsheet reads them. */
+const cellsOf = (text: string) => parse(text, { bom: true }) as string[][];
+/** Cells written back the way the export writes them (byte-order mark, CRLF). */
+const fileOf = (cells: string[][]) => stringify(cells, { bom: true, record_delimiter: "windows" });
+const versionAt = catalogueColumns.indexOf("version");
+const at = (c: Column) => catalogueColumns.indexOf(c);
+
+/** An exported file with its version cells emptied: its discs read as new ones. */
+function withoutVersions(text: string): string {
+  return fileOf(cellsOf(text).map((r, i) => (i === 0 ? r : r.map((c, j) => (j === versionAt ? "" : c)))));
+}
+
 const sha256 = (s: string) => createHash("sha256").update(s, "utf8").digest("hex");
 
 async function discCount(accessionId: string): Promise<number> {
@@ -177,7 +192,7 @@ describe("an import with a bad row", () => {
       fields: { confirm: "true", sha256: preview.body.sha256 },
     });
     expect(commit.status).toBe(422);
-    expect(commit.body.errors).toEqual(preview.body.errors);
+    expect(commit.body.error.details.errors).toEqual(preview.body.errors);
     expect(commit.body.error.message).toMatch(/Nothing was imported/);
     expect(await discCount(acc.id)).toBe(0);
     expect(await importEvents(preview.body.sha256)).toEqual([]);
@@ -350,7 +365,7 @@ describe("duplicate shelf marks", () => {
       fields: { confirm: "true", sha256: preview.body.sha256 },
     });
     expect(commit.status).toBe(422);
-    expect(commit.body.duplicates).toEqual(preview.body.duplicates);
+    expect(commit.body.error.details.duplicates).toEqual(preview.body.duplicates);
     expect(await discCount(acc.id)).toBe(1);
   });
 });
@@ -451,7 +466,8 @@ describe("export and import again", () => {
     const again = first.text
       .replaceAll(`=F${stamp}-`, `=G${stamp}-`)
       .replaceAll(acc.identifier, copy.identifier);
-    await importFile(again);
+    // Under new shelf marks these are new discs: their version cells go (a new disc has none).
+    await importFile(withoutVersions(again));
     const second = await exportCsv({ accession: copy.id });
     expect(second.text).toBe(again);
   });
@@ -535,7 +551,7 @@ describe("export and import again", () => {
     const renamed = view.text
       .replaceAll(`V${stamp}-`, `W${stamp}-`)
       .replaceAll(acc.identifier, copy.identifier);
-    await importFile(renamed);
+    await importFile(withoutVersions(renamed));
     const back = readCatalogueCsv(
       (await exportCsv({ accession: copy.id, format: "instantaneous_lacquer", sort: "-shelfMark" })).text,
     ).rows;
@@ -566,6 +582,329 @@ describe("export and import again", () => {
       year_to: "1939",
       condition: "unassessed",
     });
+  });
+});
+
+describe("the spreadsheet round trip: export, edit, import", () => {
+  async function catalogued(tag: string) {
+    const acc = await newAccession(tag);
+    const m = (n: number) => `${tag}${stamp}-${n}`;
+    await importFile(
+      csvOf([
+        { ...base, shelf_mark: m(1), label: "Rillton", side: "A", matrix_number: "R 1", title: "Reel" },
+        { ...base, shelf_mark: m(1), label: "Rillton", side: "B", matrix_number: "R 2", title: "Jig" },
+        { ...base, shelf_mark: m(2), side: "A", title: "Lament", performers: "A fiddler" },
+        { ...base, shelf_mark: m(3), condition: "good", handling_notes: "Hold by the edge." },
+        { ...base, shelf_mark: m(4), side: "A", title: "Air" },
+      ]),
+      { defaultAccession: acc.id },
+    );
+    const ids = Object.fromEntries(
+      (
+        await testDb
+          .selectFrom("discs")
+          .select(["id", "shelf_mark"])
+          .where("accession_id", "=", acc.id)
+          .execute()
+      ).map((d) => [d.shelf_mark, d.id]),
+    );
+    return { acc, m, ids };
+  }
+
+  it("previews exactly the three changed fields and the new disc, commits them, and exports the edited file", async () => {
+    const { acc, m, ids } = await catalogued("RT");
+    const exported = await exportCsv({ accession: acc.id });
+    expect(exported.status).toBe(200);
+    const cells = cellsOf(exported.text);
+    expect(cells[0]).toEqual(catalogueColumns);
+    expect(cells.slice(1).map((r) => r[versionAt])).toEqual(["1", "1", "1", "1", "1"]);
+
+    // In the spreadsheet: three fields of three discs, and one new disc at the end.
+    const rowOf = (mark: string, side: string) =>
+      cells.findIndex((r) => r[at("shelf_mark")] === mark && r[at("side")] === side);
+    const edited = cells.map((r) => [...r]);
+    edited[rowOf(m(1), "A")][at("label")] = "Rillton Records";
+    edited[rowOf(m(1), "B")][at("label")] = "Rillton Records";
+    edited[rowOf(m(2), "A")][at("title")] = "Lament for the mill";
+    edited[rowOf(m(3), "")][at("condition")] = "fair";
+    const newRow: Row = {
+      ...base,
+      shelf_mark: m(5),
+      accession: acc.identifier,
+      // Filled in as the exported rows are (an empty condition is read as "unassessed").
+      condition: "unassessed",
+      side: "A",
+      title: "New find",
+    };
+    edited.push(catalogueColumns.map((c) => newRow[c] ?? ""));
+    const file = fileOf(edited);
+
+    const preview = await upload("/api/imports/preview", file, { cookie: archivist });
+    expect(preview.status, JSON.stringify(preview.body)).toBe(200);
+    expect(preview.body).toMatchObject({
+      errors: [],
+      errorCount: 0,
+      conflicts: [],
+      conflictCount: 0,
+      discs: 1,
+      sides: 1,
+      updates: 3,
+      unchanged: 1,
+      separatedBy: "commas",
+      clearEmpty: false,
+    });
+    expect(preview.body.toAdd.map((d: { shelfMark: string }) => d.shelfMark)).toEqual([m(5)]);
+    const changes = Object.fromEntries(
+      preview.body.toUpdate.map((u: { shelfMark: string; changes: unknown }) => [u.shelfMark, u.changes]),
+    );
+    expect(changes).toEqual({
+      [m(1)]: {
+        fields: [{ field: "labelName", column: "label", before: "Rillton", after: "Rillton Records" }],
+        sides: [],
+      },
+      [m(2)]: {
+        fields: [],
+        sides: [
+          {
+            designation: "A",
+            added: false,
+            changes: [{ field: "title", column: "title", before: "Lament", after: "Lament for the mill" }],
+          },
+        ],
+      },
+      [m(3)]: {
+        fields: [{ field: "conditionGrade", column: "condition", before: "good", after: "fair" }],
+        sides: [],
+      },
+    });
+    // The preview wrote nothing.
+    const versions = await testDb
+      .selectFrom("discs")
+      .select(["shelf_mark", "version"])
+      .where("accession_id", "=", acc.id)
+      .orderBy("shelf_mark")
+      .execute();
+    expect(versions.map((v) => v.version)).toEqual([1, 1, 1, 1]);
+
+    const done = await upload("/api/imports", file, {
+      cookie: archivist,
+      fields: { confirm: "true", sha256: preview.body.sha256 },
+    });
+    expect(done.status, JSON.stringify(done.body)).toBe(201);
+    expect(done.body).toMatchObject({ imported: 1, sides: 1, updated: 3 });
+
+    // Each changed disc has its own "disc.edited", as the form's save writes it.
+    const events = await importEvents(done.body.sha256);
+    expect(events.map((e) => [e.kind, e.subject_id])).toEqual([
+      ["disc.created", expect.any(String)],
+      ["disc.edited", ids[m(1)]],
+      ["disc.edited", ids[m(2)]],
+      ["disc.edited", ids[m(3)]],
+      ["import.committed", done.body.sha256],
+    ]);
+    expect(events[1].payload).toMatchObject({
+      changed: ["labelName"],
+      before: { labelName: "Rillton" },
+      after: { labelName: "Rillton Records" },
+    });
+    expect(events[2].payload.changed).toEqual(["sides"]);
+    expect(events[2].payload.after.sides[0]).toMatchObject({
+      designation: "A",
+      title: "Lament for the mill",
+    });
+    expect(events[3].payload).toMatchObject({
+      changed: ["conditionGrade"],
+      before: { conditionGrade: "good" },
+      after: { conditionGrade: "fair" },
+    });
+    expect(events[4].payload).toMatchObject({ discs: 1, updated: 3 });
+
+    // Exported again: the edited file, with the new versions (the new disc is at version 1).
+    const again = await exportCsv({ accession: acc.id });
+    const expected = edited.map((r, i) => {
+      if (i === 0) return r;
+      const mark = r[at("shelf_mark")];
+      const v = mark === m(5) ? "1" : [m(1), m(2), m(3)].includes(mark) ? "2" : "1";
+      return r.map((c, j) => (j === versionAt ? v : c));
+    });
+    // (fetch's text() drops the byte-order mark the file starts with.)
+    expect(again.text).toBe(fileOf(expected).replace(/^\uFEFF/, ""));
+  });
+
+  it("reports a disc saved since the export as a conflict naming who changed what, and writes nothing", async () => {
+    const { acc, m, ids } = await catalogued("CF");
+    const exported = cellsOf((await exportCsv({ accession: acc.id })).text);
+
+    // Someone else edits the first disc in Rillbook after the export.
+    const current = await api(`/api/discs/${ids[m(1)]}`, { cookie: admin });
+    expect(current.status).toBe(200);
+    const { sides, ...fields } = current.body.disc as { sides: Record<string, unknown>[] };
+    const saved = await api(`/api/discs/${ids[m(1)]}`, {
+      cookie: admin,
+      method: "PATCH",
+      body: {
+        ...fields,
+        catalogueNumber: "RX 9",
+        sides: sides.map((x) => ({
+          id: x.id,
+          designation: x.designation,
+          matrixNumber: x.matrixNumber,
+          take: x.take,
+          title: x.title,
+          performers: x.performers,
+          notes: x.notes,
+        })),
+      },
+    });
+    expect(saved.status, JSON.stringify(saved.body)).toBe(200);
+
+    const edited = exported.map((r) => [...r]);
+    for (const r of edited) if (r[at("shelf_mark")] === m(1)) r[at("label")] = "Overwritten";
+    for (const r of edited) if (r[at("shelf_mark")] === m(2)) r[at("title")] = "Changed too";
+    const file = fileOf(edited);
+    const preview = await upload("/api/imports/preview", file, { cookie: archivist });
+    expect(preview.status).toBe(200);
+    expect(preview.body.conflictCount).toBe(1);
+    expect(preview.body.conflicts).toEqual([
+      {
+        row: 2,
+        discId: ids[m(1)],
+        shelfMark: m(1),
+        exportedVersion: 1,
+        currentVersion: 2,
+        edits: [{ by: account("admin").name, at: expect.any(String), changed: ["catalogueNumber"] }],
+      },
+    ]);
+    expect(preview.body.updates).toBe(1);
+
+    const commit = await upload("/api/imports", file, {
+      cookie: archivist,
+      fields: { confirm: "true", sha256: preview.body.sha256 },
+    });
+    expect(commit.status).toBe(422);
+    expect(commit.body.error.message).toMatch(/1 disc changed in Rillbook since the export/);
+    expect(commit.body.error.details.conflicts).toEqual(preview.body.conflicts);
+    const after = await testDb
+      .selectFrom("discs")
+      .select(["shelf_mark", "label_name", "catalogue_number", "version"])
+      .where("accession_id", "=", acc.id)
+      .orderBy("shelf_mark")
+      .execute();
+    expect(after.slice(0, 2)).toEqual([
+      { shelf_mark: m(1), label_name: "Rillton", catalogue_number: "RX 9", version: 2 },
+      { shelf_mark: m(2), label_name: "", catalogue_number: "", version: 1 },
+    ]);
+    expect(await importEvents(preview.body.sha256)).toEqual([]);
+  });
+
+  it("leaves a field whose cell is emptied as it is, unless asked to clear it", async () => {
+    const { acc, m } = await catalogued("CE");
+    const edited = cellsOf((await exportCsv({ accession: acc.id })).text);
+    for (const r of edited)
+      if (r[at("shelf_mark")] === m(3)) {
+        r[at("handling_notes")] = "";
+        r[at("condition")] = "";
+      }
+    // A row that names only its shelf mark, version and one changed cell.
+    const sparse = edited.find((r) => r[at("shelf_mark")] === m(4))!;
+    for (const c of catalogueColumns)
+      if (!["shelf_mark", "version", "side", "performers"].includes(c)) sparse[at(c)] = "";
+    sparse[at("performers")] = "A piper";
+    const file = fileOf(edited);
+
+    const kept = await upload("/api/imports/preview", file, { cookie: archivist });
+    expect(kept.body).toMatchObject({ errorCount: 0, updates: 1, unchanged: 3 });
+    expect(kept.body.toUpdate[0].changes.sides[0].changes).toEqual([
+      { field: "performers", column: "performers", before: "", after: "A piper" },
+    ]);
+
+    const cleared = await upload("/api/imports/preview", file, {
+      cookie: archivist,
+      fields: { clearEmpty: "true" },
+    });
+    expect(cleared.body.errorCount, JSON.stringify(cleared.body.errors)).toBe(0);
+    expect(cleared.body.clearEmpty).toBe(true);
+    const third = cleared.body.toUpdate.find((u: { shelfMark: string }) => u.shelfMark === m(3));
+    expect(third.changes.fields).toEqual([
+      { field: "conditionGrade", column: "condition", before: "good", after: "unassessed" },
+      { field: "handlingNotes", column: "handling_notes", before: "Hold by the edge.", after: "" },
+    ]);
+    // The accession and the required columns stay; the side's title is cleared.
+    const fourth = cleared.body.toUpdate.find((u: { shelfMark: string }) => u.shelfMark === m(4));
+    expect(fourth.changes.fields).toEqual([]);
+    expect(fourth.changes.sides[0].changes.map((c: { field: string }) => c.field)).toEqual([
+      "title",
+      "performers",
+    ]);
+
+    const done = await upload("/api/imports", file, {
+      cookie: archivist,
+      fields: { clearEmpty: "true", confirm: "true", sha256: cleared.body.sha256 },
+    });
+    expect(done.status, JSON.stringify(done.body)).toBe(201);
+    const third3 = await testDb
+      .selectFrom("discs")
+      .select(["handling_notes", "condition_grade", "format"])
+      .where("shelf_mark", "=", m(3))
+      .executeTakeFirstOrThrow();
+    expect(third3).toEqual({ handling_notes: "", condition_grade: "unassessed", format: "shellac_78" });
+  });
+
+  it("refuses a row that names a catalogued shelf mark without a version, and a version without a disc", async () => {
+    const { acc, m } = await catalogued("NV");
+    const csv = csvOf([
+      { ...base, shelf_mark: m(2), accession: acc.identifier, side: "A", title: "Other" },
+      { ...base, shelf_mark: `${m(2)}-renamed`, accession: acc.identifier, version: "1" },
+    ]);
+    const preview = await upload("/api/imports/preview", csv, { cookie: archivist });
+    expect(preview.body.errors).toEqual([
+      { row: 2, column: "shelf_mark", message: expect.stringMatching(/already in the catalogue.*version/) },
+      {
+        row: 3,
+        column: "version",
+        message: expect.stringMatching(/No disc in the catalogue has the shelf mark/),
+      },
+    ]);
+  });
+});
+
+describe("files a spreadsheet saves", () => {
+  it("reads semicolon- and tab-separated files", async () => {
+    const acc = await newAccession("SEP");
+    for (const [sep, name] of [
+      [";", "semicolons"],
+      ["\t", "tabs"],
+    ] as const) {
+      const text =
+        [
+          "shelf_mark;accession;format;speed_rpm;groove;cut;label".replaceAll(";", sep),
+          [`S${stamp}-${name}`, acc.identifier, "shellac_78", "78", "coarse", "lateral", "Rillton, Ltd"].join(
+            sep,
+          ),
+        ].join("\r\n") + "\r\n";
+      const preview = await upload("/api/imports/preview", text, { cookie: archivist });
+      expect(preview.status).toBe(200);
+      expect(preview.body).toMatchObject({ separatedBy: name, errors: [], discs: 1 });
+      expect(preview.body.toAdd[0]).toMatchObject({
+        shelfMark: `S${stamp}-${name}`,
+        labelName: "Rillton, Ltd",
+      });
+    }
+  });
+
+  it("says an empty file is empty, and names the line of a Latin-1 byte", async () => {
+    const empty = await upload("/api/imports/preview", "", { cookie: archivist });
+    expect(empty.status).toBe(422);
+    expect(empty.body.error.message).toBe("The file is empty (0 bytes).");
+    const latin1 = Buffer.from(`shelf_mark,format\r\nX-1,shellac_78\r\nCaf\xe9,shellac_78\r\n`, "latin1");
+    const res = await fetch(`${appUrl}/api/imports/preview`, {
+      method: "POST",
+      headers: { ...sameOrigin, cookie: archivist, "content-type": "text/csv" },
+      body: latin1,
+    });
+    expect(res.status).toBe(422);
+    const body = (await res.json()) as { error: { message: string } };
+    expect(body.error.message).toMatch(/not UTF-8 text \(line 3 holds the first such byte\).*CSV UTF-8/);
   });
 });
 

@@ -252,6 +252,17 @@ describe("a preservation master cannot be claimed or lost", () => {
     expect(await storedSha256(theirs.key)).toBe(sha256Of(bytes));
   });
 
+  it("an empty file is refused with “The file is empty (0 bytes).” as the answer's own message", async () => {
+    const res = await api("/api/uploads", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { sideId: own[2], fileName: "empty.wav", bytes: 0 },
+    });
+    expect(res.status).toBe(422);
+    expect(res.body.error.message).toBe("The file is empty (0 bytes).");
+    expect(res.body.error.fields.bytes).toEqual(["The file is empty (0 bytes)."]);
+  });
+
   it("the declared size is enforced: 1000 bytes declared and more sent is refused, and the object removed", async () => {
     const sideId = own[2];
     const bytes = flatTransfer(1, 24);

@@ -8,7 +8,10 @@ import {
   catalogueTemplateCsv,
   CsvFormatError,
   decodeCsv,
+  detectDelimiter,
+  discChanges,
   type ExportDisc,
+  hasChanges,
   maxImportRows,
   protectFormula,
   readCatalogueCsv,
@@ -136,7 +139,7 @@ describe("reading the file", () => {
 });
 
 describe("checking rows", () => {
-  it("names the row and column of each bad value, in the shared schemas' words", () => {
+  it("names the row and column of every bad value of a row, in the shared schemas' words", () => {
     const text = [
       header,
       row({ ...shellac, side: "A" }),
@@ -155,15 +158,18 @@ describe("checking rows", () => {
     expect(errors.map((e) => [e.row, e.column])).toEqual([
       [3, "diameter_in"],
       [3, "speed_rpm"],
+      // A backwards year range is reported beside a bad value in another column of the row.
+      [4, "year_to"],
       [4, "condition_flags"],
       [5, "base"],
       [6, "side"],
     ]);
     expect(errors[0].message).toMatch(/Diameter must be a number/);
     expect(errors[1].message).toMatch(/Nominal speed must be a number/);
-    expect(errors[3].message).toMatch(/lacquer and transcription/);
-    expect(errors[4].message).toMatch(/side designation/);
-    // The year range is checked once the row's values read.
+    expect(errors[2].message).toMatch(/runs backwards/);
+    expect(errors[4].message).toMatch(/lacquer and transcription/);
+    expect(errors[5].message).toMatch(/side designation/);
+    // A row with nothing else wrong hears the same.
     const years = check([header, row({ ...shellac, year_from: "1931", year_to: "1929" })].join("\n")).errors;
     expect(years).toEqual([
       expect.objectContaining({
@@ -435,5 +441,139 @@ describe("writing and reading back", () => {
     expect(buildDiscs(read.rows, { resolveAccession }).errors.every((e) => e.column === "accession")).toBe(
       true,
     );
+  });
+});
+
+describe("separators and encodings", () => {
+  it("finds the separator from the header: comma, semicolon or tab", () => {
+    expect(detectDelimiter("shelf_mark,format,speed_rpm\r\nX,y,78")).toBe(",");
+    expect(detectDelimiter("\uFEFFshelf_mark;format;speed_rpm\r\nX;y;78")).toBe(";");
+    expect(detectDelimiter('"shelf_mark"\t"format"\t"speed_rpm"\nX\ty\t78')).toBe("\t");
+  });
+
+  it("reads a semicolon file whose cells hold commas, and a tab file", () => {
+    const semi = [
+      "shelf_mark;accession;format;speed_rpm;groove;cut;label",
+      "X-1;ACC-2026-01;shellac_78;78;coarse;lateral;Rill, Ltd",
+    ].join("\r\n");
+    const a = check(semi);
+    expect(a.readErrors).toEqual([]);
+    expect(a.errors).toEqual([]);
+    expect(a.discs[0].disc.labelName).toBe("Rill, Ltd");
+    const tabs = semi.replaceAll(";", "\t");
+    const b = check(tabs);
+    expect(b.errors).toEqual([]);
+    expect(readCatalogueCsv(tabs).delimiter).toBe("\t");
+  });
+
+  it("names a separator it does not read", () => {
+    const read = readCatalogueCsv("shelf_mark|format|speed_rpm\nX|shellac_78|78\n");
+    expect(read.errors).toEqual([
+      { row: 1, column: "", message: expect.stringMatching(/seems separated by \|/) },
+    ]);
+  });
+
+  it("says an empty file is empty, and where the first byte that is not UTF-8 is", () => {
+    expect(thrownBy(CsvFormatError, () => decodeCsv(new Uint8Array())).message).toBe(
+      "The file is empty (0 bytes).",
+    );
+    const latin1 = new Uint8Array([...new TextEncoder().encode("shelf_mark\nX\nCaf"), 0xe9, 0x0a]);
+    expect(thrownBy(CsvFormatError, () => decodeCsv(latin1)).message).toMatch(
+      /not UTF-8 text \(line 3 holds the first such byte\)/,
+    );
+  });
+});
+
+describe("rows that update a catalogued disc", () => {
+  const stored: ExportDisc = {
+    shelfMark: "MH-78-001",
+    accessionIdentifier: "ACC-2026-01",
+    labelName: "Rillton",
+    catalogueNumber: "R 1",
+    format: "shellac_78",
+    base: null,
+    diameterIn: 10,
+    nominalSpeedRpm: 78,
+    groove: "coarse",
+    cut: "lateral",
+    recordingDate: null,
+    recordedFromYear: 1930,
+    recordedToYear: 1932,
+    conditionGrade: "good",
+    conditionFlags: ["wear"],
+    conditionNotes: "",
+    handlingNotes: "Hold by the edge.",
+    version: 3,
+    sides: [
+      { designation: "A", matrixNumber: "W 1", take: "2", title: "Reel", performers: "A band", notes: "" },
+      { designation: "B", matrixNumber: "W 2", take: "1", title: "Jig", performers: "A band", notes: "" },
+    ],
+  };
+  const existing = (key: string) => (key === "mh-78-001" ? stored : undefined);
+  const recordOf = (d: ExportDisc) => ({ ...d, accessionId: accessions.get("acc-2026-01")! });
+  const build = (text: string, clearEmpty = false) => {
+    const read = readCatalogueCsv(text);
+    return buildDiscs(read.rows, { resolveAccession, existing, clearEmpty, columns: read.columns });
+  };
+
+  it("takes the stored value for an empty cell, and its side's by designation", () => {
+    const text = [header, row({ shelf_mark: "mh-78-001", side: "B", title: "Jig in G", version: "3" })].join(
+      "\n",
+    );
+    const { discs, errors } = build(text);
+    expect(errors).toEqual([]);
+    expect(discs[0].version).toBe(3);
+    const changes = discChanges(recordOf(stored), discs[0].disc);
+    expect(changes).toEqual({
+      fields: [{ field: "shelfMark", column: "shelf_mark", before: "MH-78-001", after: "mh-78-001" }],
+      sides: [
+        {
+          designation: "B",
+          added: false,
+          changes: [{ field: "title", column: "title", before: "Jig", after: "Jig in G" }],
+        },
+      ],
+    });
+  });
+
+  it("clears an emptied field only when asked, never a required column or one the file leaves out", () => {
+    // Required columns are in the header but empty; catalogue_number, condition and others are left out.
+    const text =
+      "shelf_mark,version,label,handling_notes,format,speed_rpm,groove,cut,side,title\nMH-78-001,3,,,,,,,A,\n";
+    const kept = build(text);
+    expect(kept.errors).toEqual([]);
+    expect(hasChanges(discChanges(recordOf(stored), kept.discs[0].disc))).toBe(false);
+    const cleared = build(text, true);
+    expect(cleared.errors).toEqual([]);
+    const changes = discChanges(recordOf(stored), cleared.discs[0].disc);
+    expect(changes.fields.map((c) => [c.field, c.after])).toEqual([
+      ["labelName", ""],
+      ["handlingNotes", ""],
+    ]);
+    expect(changes.sides).toEqual([
+      { designation: "A", added: false, changes: [expect.objectContaining({ field: "title", after: "" })] },
+    ]);
+  });
+
+  it("lists a new side as added, and reports a bad or differing version", () => {
+    const text = [
+      header,
+      row({ shelf_mark: "MH-78-001", side: "C", title: "Encore", version: "3" }),
+      row({ shelf_mark: "MH-78-001", side: "A", version: "2" }),
+      row({ ...shellac, shelf_mark: "MH-78-002", version: "v1" }),
+    ].join("\n");
+    const { discs, errors } = build(text);
+    expect(errors.map((e) => [e.row, e.column])).toEqual([
+      [3, "version"],
+      [4, "version"],
+    ]);
+    expect(discChanges(recordOf(stored), discs[0].disc).sides[0]).toMatchObject({
+      designation: "C",
+      added: true,
+      changes: [
+        { field: "designation", after: "C" },
+        { field: "title", after: "Encore" },
+      ],
+    });
   });
 });

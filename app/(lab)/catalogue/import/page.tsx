@@ -15,7 +15,7 @@ export default async function ImportPage() {
     <>
       <PageHeader
         title="Import discs from a spreadsheet"
-        lead="Check a CSV against the catalogue, fix what it points out, then import every disc in one step: all of them go in together, or none do."
+        lead="Bring back an exported spreadsheet, or a new one: rows with a catalogued shelf mark update that disc, the others add discs. See every change before it is made; all of it goes in together, or nothing does."
         actions={<LinkButton href="/catalogue">Back to the catalogue</LinkButton>}
       />
       <ImportPanel

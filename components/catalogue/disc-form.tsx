@@ -23,7 +23,7 @@ import {
 } from "@/lib/validation/catalogue";
 import { AccessionForm } from "./accession-form";
 import { discFieldLabels, fieldText, sideChanges } from "./fields";
-import { baseLabels, conditionLabels, flagLabels, speedLabel } from "./format";
+import { baseLabels, conditionLabels, flagLabels, isoDateInputProps, speedLabel } from "./format";
 import { HandlingCautions } from "./handling-cautions";
 import { StatusBadge } from "./status-badge";
 import type { AccessionJson, DiscJson } from "./types";
@@ -510,7 +510,12 @@ export function DiscForm({
 
           <Panel title="Date">
             <div className="grid gap-4 md:grid-cols-3">
-              {input("recordingDate", "Recording date", { type: "date" }, "When known exactly.")}
+              {input(
+                "recordingDate",
+                "Recording date (YYYY-MM-DD)",
+                isoDateInputProps,
+                "When known exactly.",
+              )}
               {input("recordedFromYear", "Recorded from (year)", {
                 inputMode: "numeric",
                 placeholder: "e.g. 1931",

@@ -40,7 +40,16 @@ export interface AcceptedTransfer {
   };
 }
 
-export type UploadPhase = "idle" | "starting" | "uploading" | "checking" | "done" | "failed" | "cancelled";
+export type UploadPhase =
+  | "idle"
+  | "starting"
+  | "uploading"
+  | "checking"
+  /** Sent, but identical to another side's transfer: waiting for the engineer to confirm or cancel. */
+  | "confirm"
+  | "done"
+  | "failed"
+  | "cancelled";
 
 export interface UploadState {
   phase: UploadPhase;
@@ -54,6 +63,8 @@ export interface UploadState {
   fields: Record<string, string[]> | null;
   /** Whether "try again" picks up the same upload (false once the server has refused or closed it). */
   resumable: boolean;
+  /** In "confirm": the server's warning, naming the side that already has this file. */
+  duplicate: string | null;
   result: AcceptedTransfer | null;
 }
 
@@ -73,6 +84,7 @@ const idle: UploadState = {
   error: null,
   fields: null,
   resumable: false,
+  duplicate: null,
   result: null,
 };
 
@@ -136,6 +148,11 @@ function putPart(
 export function useMultipartUpload() {
   const [state, setState] = useState<UploadState>(idle);
   const cancelRef = useRef<(() => void) | null>(null);
+  /** In "confirm": completes the waiting upload with the engineer's confirmation (or abandons it). */
+  const pendingRef = useRef<{
+    complete: () => Promise<AcceptedTransfer | null>;
+    abandon: () => Promise<void>;
+  } | null>(null);
 
   const start = useCallback(async (sideId: string, file: File, details: UploadDetails) => {
     let cancelled = false;
@@ -275,15 +292,59 @@ export function useMultipartUpload() {
       const parts = [...etags.entries()]
         .sort((a, b) => a[0] - b[0])
         .map(([partNumber, etag]) => ({ partNumber, etag }));
-      try {
+      const complete = async (confirmDuplicate: boolean) => {
         const result = await fetchJson<AcceptedTransfer>("/api/uploads/complete", {
           method: "POST",
-          body: JSON.stringify({ uploadId: s.uploadId, parts, sha256, bytes: file.size, ...details }),
+          body: JSON.stringify({
+            uploadId: s.uploadId,
+            parts,
+            sha256,
+            bytes: file.size,
+            ...details,
+            confirmDuplicate,
+          }),
         });
         sessionStorage.removeItem(sk);
-        setState((st) => ({ ...st, phase: "done", result }));
+        setState((st) => ({ ...st, phase: "done", duplicate: null, result }));
         return result;
+      };
+      try {
+        return await complete(false);
       } catch (err) {
+        if (err instanceof AppError && err.code === "duplicate_file") {
+          // The upload stays open on the server: the engineer confirms, or cancels and it is aborted.
+          pendingRef.current = {
+            complete: async () => {
+              setState((st) => ({ ...st, phase: "checking", duplicate: null }));
+              try {
+                return await complete(true);
+              } catch (again) {
+                if (uploadClosed(again)) sessionStorage.removeItem(sk);
+                setState((st) => ({
+                  ...st,
+                  phase: "failed",
+                  error: again instanceof Error ? again.message : String(again),
+                  fields: again instanceof AppError && again.fields ? again.fields : null,
+                  resumable: !uploadClosed(again),
+                }));
+                return null;
+              } finally {
+                pendingRef.current = null;
+              }
+            },
+            abandon: async () => {
+              pendingRef.current = null;
+              await fetchJson("/api/uploads/abort", {
+                method: "POST",
+                body: JSON.stringify({ uploadId: s.uploadId }),
+              }).catch(() => undefined);
+              sessionStorage.removeItem(sk);
+              setState((st) => ({ ...st, phase: "cancelled", duplicate: null, error: null }));
+            },
+          };
+          setState((st) => ({ ...st, phase: "confirm", duplicate: err.message }));
+          return null;
+        }
         // Refused (and what was stored deleted), or already closed: a new try starts afresh.
         if (uploadClosed(err)) sessionStorage.removeItem(sk);
         throw err;
@@ -316,8 +377,16 @@ export function useMultipartUpload() {
     }
   }, []);
 
-  const cancel = useCallback(() => cancelRef.current?.(), []);
+  const cancel = useCallback(() => {
+    if (pendingRef.current) void pendingRef.current.abandon();
+    else cancelRef.current?.();
+  }, []);
   const reset = useCallback(() => setState(idle), []);
+  /** Accepts the upload waiting in "confirm" although another side has the same file. */
+  const confirmDuplicate = useCallback(
+    async () => (pendingRef.current ? pendingRef.current.complete() : null),
+    [],
+  );
 
-  return { state, start, cancel, reset };
+  return { state, start, cancel, reset, confirmDuplicate };
 }

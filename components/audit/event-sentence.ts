@@ -323,6 +323,11 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
     case "side.transfer_accepted": {
       const t = (p.technical ?? {}) as P;
       if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
+      if (Array.isArray(p.sameFileAs) && p.sameFileAs.length)
+        d.push({
+          label: "Same file as",
+          value: `${p.sameFileAs.map((t: P) => `${t.shelfMark} side ${t.side}`).join(", ")} (accepted after the engineer confirmed)`,
+        });
       if (p.bytes !== undefined) d.push({ label: "Size", value: bytesText(p.bytes) });
       if (t.sampleRateHz)
         d.push({

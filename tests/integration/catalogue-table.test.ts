@@ -6,6 +6,15 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/db/seed-data";
 import { api, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
+import {
+  assignedDisc,
+  flatTransfer,
+  labCookies,
+  sendParts,
+  sha256Of,
+  startUpload,
+  uploadTransfer,
+} from "../support/pipeline";
 
 const cookie = {} as Record<"archivist" | "engineer" | "curator", string>;
 const tag = Date.now().toString(36);
@@ -226,5 +235,58 @@ describe("accessions", () => {
       body: { ...body, identifier: `DUP-${tag}` },
     });
     expect(engineer.status).toBe(403);
+  });
+});
+
+describe("a flat transfer identical to another side's", () => {
+  it("is held until the engineer confirms, with a warning naming the other side, and then recorded as such", async () => {
+    const c = await labCookies();
+    const first = await assignedDisc(c, `DUPA-${tag}`, ["A"]);
+    const second = await assignedDisc(c, `DUPB-${tag}`, ["A"]);
+    const bytes = flatTransfer(1, 901);
+    const a = await uploadTransfer(c, first.sideIds[0], bytes, "first.wav", { confirmDuplicate: false });
+    expect(a.done.status).toBe(201);
+
+    // As the browser does it: start, send the parts, ask for completion without confirming.
+    const up = await startUpload(c.engineer, second.sideIds[0], "second.wav", bytes.length);
+    const parts = await sendParts(bytes, up.partSize, up.urls);
+    const complete = (confirmDuplicate: boolean) =>
+      api("/api/uploads/complete", {
+        cookie: c.engineer,
+        method: "POST",
+        body: {
+          uploadId: up.uploadId,
+          parts,
+          sha256: sha256Of(bytes),
+          bytes: bytes.length,
+          confirmDuplicate,
+        },
+      });
+    const held = await complete(false);
+    expect(held.status).toBe(409);
+    expect(held.body.error.code).toBe("duplicate_file");
+    expect(held.body.error.message).toContain(`DUPA-${tag} side A`);
+    expect(held.body.error.message).toContain("first.wav");
+    // Nothing accepted, and the upload still open for the engineer's answer.
+    const open = await testDb
+      .selectFrom("uploads")
+      .select("state")
+      .where("id", "=", up.uploadId)
+      .executeTakeFirstOrThrow();
+    expect(open.state).toBe("open");
+    expect(
+      await testDb.selectFrom("transfers").select("id").where("side_id", "=", second.sideIds[0]).execute(),
+    ).toHaveLength(0);
+
+    // The engineer confirms: the same upload completes (its parts were already put together).
+    const confirmed = await complete(true);
+    expect(confirmed.status).toBe(201);
+    const event = await testDb
+      .selectFrom("provenance_events")
+      .select("payload")
+      .where("kind", "=", "side.transfer_accepted")
+      .where("subject_id", "=", second.sideIds[0])
+      .executeTakeFirstOrThrow();
+    expect(event.payload).toMatchObject({ sameFileAs: [{ shelfMark: `DUPA-${tag}`, side: "A" }] });
   });
 });

@@ -234,6 +234,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
         : []),
       {
         id: "shelfMark",
+        accessorFn: (r) => r.shelfMark,
         header: "Shelf mark",
         cell: ({ row }) => (
           <Link
@@ -246,6 +247,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
       },
       {
         id: "labelName",
+        accessorFn: (r) => r.labelName,
         header: "Label · catalogue no.",
         cell: ({ row }) => (
           <div>
@@ -268,6 +270,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
       },
       {
         id: "title",
+        accessorFn: (r) => r.sides[0]?.title ?? "",
         header: "Title · performers",
         cell: ({ row }) => {
           const first = row.original.sides[0];
@@ -293,6 +296,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
       },
       {
         id: "year",
+        accessorFn: (r) => r.recordedFromYear ?? "",
         header: "Recorded",
         cell: ({ row }) => (
           <span className="whitespace-nowrap font-mono text-xs">
@@ -302,9 +306,15 @@ export function CatalogueTable({ canAssign, self }: Props) {
           </span>
         ),
       },
-      { id: "format", header: "Format", cell: ({ row }) => formatLabel(row.original.format) },
+      {
+        id: "format",
+        accessorFn: (r) => r.format,
+        header: "Format",
+        cell: ({ row }) => formatLabel(row.original.format),
+      },
       {
         id: "speed",
+        accessorFn: (r) => r.nominalSpeedRpm,
         header: "Speed",
         cell: ({ row }) => <span className="font-mono">{speedLabel(row.original.nominalSpeedRpm)}</span>,
       },

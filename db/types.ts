@@ -144,6 +144,8 @@ export interface DiscsTable {
   version: Generated<number>;
   search_tsv: Generated<string>;
   search_codes: Generated<string>;
+  /** The first side's title, the catalogue's title sort key (refreshSearch keeps it); null when blank. */
+  first_title: Generated<string | null>;
   created_at: DefaultTimestamp;
   updated_at: DefaultTimestamp;
 }

@@ -101,6 +101,8 @@ const browserIo: UploadIo = {
 export function useMultipartUpload() {
   const [state, setState] = useState<UploadState>(idleUpload);
   const abortRef = useRef<AbortController | null>(null);
+  /** In "confirm": answers the upload's question (true: accept the identical file). */
+  const decideRef = useRef<((accept: boolean) => void) | null>(null);
 
   const start = useCallback(
     async (sideId: string, file: File, details: UploadDetails): Promise<AcceptedTransfer | null> => {
@@ -118,16 +120,26 @@ export function useMultipartUpload() {
           io: browserIo,
           onState: setState,
           signal: controller.signal,
+          confirmDuplicate: () =>
+            new Promise<boolean>((resolve) => {
+              decideRef.current = resolve;
+            }),
         });
       } finally {
+        decideRef.current = null;
         if (abortRef.current === controller) abortRef.current = null;
       }
     },
     [],
   );
 
-  const cancel = useCallback(() => abortRef.current?.abort(), []);
+  const cancel = useCallback(() => {
+    abortRef.current?.abort();
+    decideRef.current?.(false);
+  }, []);
   const reset = useCallback(() => setState(idleUpload), []);
+  /** Accepts the upload waiting in "confirm" although another side has the same file. */
+  const confirmDuplicate = useCallback(() => decideRef.current?.(true), []);
 
-  return { state, start, cancel, reset };
+  return { state, start, cancel, reset, confirmDuplicate };
 }

@@ -9,7 +9,7 @@ import { useQuery } from "@tanstack/react-query";
 import Link from "next/link";
 import type { DiscJson } from "@/components/catalogue/types";
 import { Notice } from "@/components/ui/notice";
-import { Panel } from "@/components/ui/panel";
+import { Panel, SectionLinks } from "@/components/ui/panel";
 import { useUrlState } from "@/hooks/use-url-state";
 import { fetchJson } from "@/lib/http/client";
 import { ChainCheck } from "./chain-check";
@@ -44,15 +44,56 @@ export function AuditView({
       ? { id: discId, shelfMark: "…" }
       : null;
 
+  const sections = [
+    { id: "log", label: d ? `Provenance of ${d.shelfMark}` : "Provenance log" },
+    ...(d ? [{ id: "exports", label: "Exports" }] : []),
+    { id: "chain", label: "Chain check" },
+    { id: "fixity", label: "Fixity and access copies" },
+  ];
   return (
     <div className="space-y-6">
       <FixityAlerts />
+      <SectionLinks sections={sections} />
+
+      {/* The log is what people come for: first, with the disc's exports beside it when a disc is chosen. */}
+      <div className={d ? "grid gap-6 2xl:grid-cols-[minmax(0,1fr)_24rem]" : undefined}>
+        <Panel id="log" title={d ? `Provenance of ${d.shelfMark}` : "Provenance log"}>
+          <ProvenanceLog
+            disc={pick}
+            onPickDisc={(p) => setDiscParam(p?.id ?? "")}
+            canListPeople={canListPeople}
+          />
+        </Panel>
+        {d ? (
+          <Panel
+            id="exports"
+            className="self-start"
+            title={`Exports for ${d.shelfMark}`}
+            actions={
+              <Link
+                href={`/catalogue/${d.id}`}
+                className="text-sm text-shellac-deep underline underline-offset-2"
+              >
+                Open the disc
+              </Link>
+            }
+          >
+            <ExportLinks disc={d} />
+          </Panel>
+        ) : null}
+      </div>
+
+      {discId && disc.error ? (
+        <Notice tone="error" title="That disc could not be opened">
+          {disc.error.message}
+        </Notice>
+      ) : null}
 
       <div className="grid gap-6 xl:grid-cols-2">
-        <Panel title="Chain of the provenance log">
+        <Panel id="chain" className="self-start" title="Chain of the provenance log">
           <ChainCheck />
         </Panel>
-        <Panel title="Fixity">
+        <Panel id="fixity" className="self-start" title="Fixity">
           <div className="space-y-5">
             <FixityCycle canEdit={canEditSettings} />
             <div className="border-t border-paper-edge pt-4">
@@ -68,36 +109,6 @@ export function AuditView({
           </div>
         </Panel>
       </div>
-
-      {discId && disc.error ? (
-        <Notice tone="error" title="That disc could not be opened">
-          {disc.error.message}
-        </Notice>
-      ) : null}
-
-      {d ? (
-        <Panel
-          title={`Exports for ${d.shelfMark}`}
-          actions={
-            <Link
-              href={`/catalogue/${d.id}`}
-              className="text-sm text-shellac-deep underline underline-offset-2"
-            >
-              Open the disc
-            </Link>
-          }
-        >
-          <ExportLinks disc={d} />
-        </Panel>
-      ) : null}
-
-      <Panel title={d ? `Provenance of ${d.shelfMark}` : "Provenance log"}>
-        <ProvenanceLog
-          disc={pick}
-          onPickDisc={(p) => setDiscParam(p?.id ?? "")}
-          canListPeople={canListPeople}
-        />
-      </Panel>
     </div>
   );
 }

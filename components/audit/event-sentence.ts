@@ -214,6 +214,20 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
         details: [],
         tone: "plain",
       };
+    case "accession.edited": {
+      const changed: string[] = Array.isArray(p.changed) ? p.changed : [];
+      for (const f of changed)
+        d.push({
+          label: accessionFieldLabels[f] ?? f,
+          value: `${p.before?.[f] || "(blank)"} → ${p.after?.[f] || "(blank)"}`,
+        });
+      const name = p.identifier ?? p.after?.identifier ?? "";
+      return {
+        sentence: `${who} corrected accession ${name}: ${changed.map((f) => (accessionFieldLabels[f] ?? f).toLowerCase()).join(", ")}.`,
+        details: d,
+        tone: "plain",
+      };
+    }
     case "import.committed":
       if (p.fileName) d.push({ label: "File", value: String(p.fileName) });
       if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
@@ -310,6 +324,11 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
     case "side.transfer_accepted": {
       const t = (p.technical ?? {}) as P;
       if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
+      if (Array.isArray(p.sameFileAs) && p.sameFileAs.length)
+        d.push({
+          label: "Same file as",
+          value: `${p.sameFileAs.map((t: P) => `${t.shelfMark} side ${t.side}`).join(", ")} (accepted after the engineer confirmed)`,
+        });
       if (p.bytes !== undefined) d.push({ label: "Size", value: bytesText(p.bytes) });
       if (t.sampleRateHz)
         d.push({
@@ -539,8 +558,16 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
   }
 }
 
+const accessionFieldLabels: Record<string, string> = {
+  identifier: "Identifier",
+  source: "Source",
+  receivedOn: "Received on",
+  notes: "Notes",
+};
+
 const KIND_LABELS: Record<string, string> = {
   "accession.received": "Accession received",
+  "accession.edited": "Accession corrected",
   "import.committed": "Spreadsheet import",
   "disc.created": "Catalogued",
   "disc.edited": "Disc edited",
@@ -581,7 +608,7 @@ export const kindFilters: { value: string; label: string }[] = [
   { value: "side.status_changed", label: "— status changes" },
   { value: "side.assigned", label: "— assignments" },
   { value: "disc.", label: "Discs: catalogued and edited" },
-  { value: "accession.", label: "Accessions received" },
+  { value: "accession.", label: "Accessions received and corrected" },
   { value: "import.", label: "Spreadsheet imports" },
   { value: "person.", label: "People and access" },
   { value: "preset.", label: "Curve presets" },

@@ -251,6 +251,9 @@ export function BenchView({
                     data={data}
                     current={current}
                     extraSideIds={extraSideIds}
+                    measuredSpeedRpm={
+                      newest?.measuredSpeedRpm != null ? Number(newest.measuredSpeedRpm) : null
+                    }
                     onEffectiveSpec={onEffectiveSpec}
                     prefill={prefill && prefill.against === (current?.id ?? null) ? prefill : null}
                   />

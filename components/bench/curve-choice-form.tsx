@@ -101,10 +101,13 @@ export function CurveChoiceForm({
   extraSideIds,
   onEffectiveSpec,
   prefill,
+  measuredSpeedRpm = null,
 }: {
   data: SideWithDisc;
   current: CurveChoiceJson | null;
   prefill?: ChoicePrefill | null;
+  /** The turntable speed the engineer measured and typed when uploading the current flat transfer. */
+  measuredSpeedRpm?: number | null;
   /** Sides picked in the catalogue (?sides=…), offered as a third way to apply the choice. */
   extraSideIds: string[];
   onEffectiveSpec: (spec: CurveSpec | null) => void;
@@ -447,6 +450,36 @@ export function CurveChoiceForm({
             ×{Number.isFinite(ratio) ? ratio.toFixed(4) : "—"}
           </output>
         </div>
+        {measuredSpeedRpm && Number.isFinite(measuredSpeedRpm) ? (
+          <div
+            className="flex flex-wrap items-center gap-2 rounded-md bg-groove-wash/60 px-3 py-2 text-xs"
+            data-testid="measured-speed"
+          >
+            <span>
+              Measured at upload: <strong className="font-mono">{formatNumber(measuredSpeedRpm)} rpm</strong>
+            </span>
+            <Button
+              type="button"
+              size="sm"
+              variant="secondary"
+              disabled={Number(transferRpm) === measuredSpeedRpm}
+              onClick={() => setTransferRpm(String(measuredSpeedRpm))}
+              data-testid="use-measured-transfer"
+            >
+              Use as “transferred at”
+            </Button>
+            <Button
+              type="button"
+              size="sm"
+              variant="quiet"
+              disabled={Number(cutRpm) === measuredSpeedRpm}
+              onClick={() => setCutRpm(String(measuredSpeedRpm))}
+              data-testid="use-measured-cut"
+            >
+              Use as “cut at”
+            </Button>
+          </div>
+        ) : null}
         <p className="text-xs text-ink-faint">
           The disc is logged at {formatNumber(disc.nominalSpeedRpm)} rpm. Played at another speed than it was
           cut, every corner moves by transfer ÷ cut.

@@ -26,7 +26,7 @@ export function UploadPanel({
 }) {
   const uid = useId();
   const queryClient = useQueryClient();
-  const { state, start, cancel, reset } = useMultipartUpload();
+  const { state, start, cancel, reset, confirmDuplicate } = useMultipartUpload();
   const [file, setFile] = useState<File | null>(null);
   const [stylusSize, setStylusSize] = useState("");
   const [stylusShape, setStylusShape] = useState("");
@@ -57,14 +57,15 @@ export function UploadPanel({
     },
   });
 
+  const accepted = () => {
+    for (const key of [["transfers", sideId], ["side", sideId], ["queue"]])
+      void queryClient.invalidateQueries({ queryKey: key });
+  };
   const send = async () => {
     if (!file) return;
     const m = measured.trim() === "" ? undefined : Number(measured.replace(",", "."));
     const result = await start(sideId, file, { stylusSize, stylusShape, measuredSpeedRpm: m, chain });
-    if (result) {
-      for (const key of [["transfers", sideId], ["side", sideId], ["queue"]])
-        void queryClient.invalidateQueries({ queryKey: key });
-    }
+    if (result) accepted();
   };
 
   const f = (k: string) => state.fields?.[k];
@@ -192,6 +193,28 @@ export function UploadPanel({
           {state.error} {state.resumable ? "Try again to pick up where it stopped." : null}
         </Notice>
       ) : null}
+      {state.phase === "confirm" && state.duplicate ? (
+        <Notice
+          tone="caution"
+          title="The same file is already stored for another side"
+          testId="upload-duplicate"
+        >
+          <p>{state.duplicate}</p>
+          <div className="mt-3 flex flex-wrap gap-2">
+            <Button
+              type="button"
+              size="sm"
+              onClick={confirmDuplicate}
+              data-testid="upload-confirm-duplicate"
+            >
+              It is the right side: accept it
+            </Button>
+            <Button type="button" size="sm" variant="secondary" onClick={cancel}>
+              Cancel this upload
+            </Button>
+          </div>
+        </Notice>
+      ) : null}
       {state.phase === "cancelled" ? <Notice tone="info">Upload cancelled; nothing was kept.</Notice> : null}
       {state.phase === "done" && state.result ? (
         <Notice tone="success" title="Flat transfer accepted" testId="upload-done">
@@ -208,7 +231,7 @@ export function UploadPanel({
         <Button
           type="button"
           onClick={() => void send()}
-          disabled={!file || working || !canUpload}
+          disabled={!file || working || !canUpload || state.phase === "confirm"}
           data-testid="upload-start"
         >
           {state.phase === "failed" ? "Try again" : "Upload and check"}

@@ -9,6 +9,7 @@ import { Notice } from "@/components/ui/notice";
 import { fetchJson } from "@/lib/http/client";
 import type { AppError } from "@/lib/http/errors";
 import { accessionSchema } from "@/lib/validation/catalogue";
+import { isoDateInputProps } from "./format";
 import type { AccessionJson } from "./types";
 
 interface Values {
@@ -21,30 +22,46 @@ interface Values {
 const today = () => new Date().toISOString().slice(0, 10);
 
 /**
- * Records a new accession. It is a group inside whatever form holds it (HTML forms do
- * not nest), so Enter in its fields saves the accession, not the form around it.
+ * Records a new accession, or corrects one (`editing`). It is a group inside whatever
+ * form holds it (HTML forms do not nest), so Enter in its fields saves the accession,
+ * not the form around it.
  */
 export function AccessionForm({
   onCreated,
   onCancel,
+  editing,
   testId = "accession-form",
 }: {
   onCreated?: (a: AccessionJson) => void;
   onCancel?: () => void;
+  /** The accession to correct; without it the form records a new one. */
+  editing?: AccessionJson;
   testId?: string;
 }) {
   const uid = useId();
   const queryClient = useQueryClient();
+  const blank = { identifier: "", source: "", receivedOn: today(), notes: "" };
   const form = useForm<Values>({
     resolver: zodResolver(accessionSchema) as unknown as Resolver<Values>,
-    defaultValues: { identifier: "", source: "", receivedOn: today(), notes: "" },
+    defaultValues: editing
+      ? {
+          identifier: editing.identifier,
+          source: editing.source,
+          receivedOn: editing.receivedOn,
+          notes: editing.notes,
+        }
+      : blank,
   });
   const { errors } = form.formState;
   const create = useMutation<{ accession: AccessionJson }, AppError, Values>({
-    mutationFn: (v) => fetchJson("/api/accessions", { method: "POST", body: JSON.stringify(v) }),
+    mutationFn: (v) =>
+      editing
+        ? fetchJson(`/api/accessions/${editing.id}`, { method: "PATCH", body: JSON.stringify(v) })
+        : fetchJson("/api/accessions", { method: "POST", body: JSON.stringify(v) }),
     onSuccess: ({ accession }) => {
       void queryClient.invalidateQueries({ queryKey: ["accessions"] });
-      form.reset({ identifier: "", source: "", receivedOn: today(), notes: "" });
+      void queryClient.invalidateQueries({ queryKey: ["discs"] });
+      if (!editing) form.reset(blank);
       onCreated?.(accession);
     },
     onError: (e) => {
@@ -82,7 +99,7 @@ export function AccessionForm({
   return (
     <div
       role="group"
-      aria-label="New accession"
+      aria-label={editing ? `Correct accession ${editing.identifier}` : "New accession"}
       className="space-y-3"
       onKeyDown={enterSaves}
       data-testid={testId}
@@ -95,7 +112,7 @@ export function AccessionForm({
           placeholder: "e.g. MH-2026-003",
           autoComplete: "off",
         })}
-        {field("receivedOn", "Received on", { type: "date" })}
+        {field("receivedOn", "Received on (YYYY-MM-DD)", isoDateInputProps)}
       </div>
       {field("source", "Source", { placeholder: "Donor, transfer or purchase" })}
       <FieldShell id={`${uid}-notes`} label="Notes">
@@ -109,7 +126,7 @@ export function AccessionForm({
           disabled={create.isPending}
           data-testid={`${testId}-save`}
         >
-          {create.isPending ? "Saving…" : "Save accession"}
+          {create.isPending ? "Saving…" : editing ? "Save correction" : "Save accession"}
         </Button>
         {onCancel ? (
           <Button type="button" size="sm" variant="quiet" onClick={onCancel}>

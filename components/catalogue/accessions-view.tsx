@@ -2,7 +2,8 @@
 import { useQuery } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
 import Link from "next/link";
-import { useState } from "react";
+import { useMemo, useState } from "react";
+import { Button } from "@/components/ui/button";
 import { DataTable } from "@/components/ui/data-table";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
@@ -11,7 +12,7 @@ import { AccessionForm } from "./accession-form";
 import type { AccessionJson } from "./types";
 
 const column = createColumnHelper<AccessionJson>();
-const columns = [
+const baseColumns = [
   column.accessor("identifier", {
     header: "Identifier",
     cell: (c) => (
@@ -26,7 +27,7 @@ const columns = [
   column.accessor("source", { header: "Source" }),
   column.accessor("receivedOn", {
     header: "Received",
-    cell: (c) => <span className="font-mono text-xs">{c.getValue()}</span>,
+    cell: (c) => <span className="whitespace-nowrap font-mono text-xs">{c.getValue()}</span>,
   }),
   column.accessor("discCount", {
     header: "Discs",
@@ -45,6 +46,36 @@ export function AccessionsView({ canEdit }: { canEdit: boolean }) {
     queryFn: () => fetchJson<{ accessions: AccessionJson[] }>("/api/accessions"),
   });
   const [created, setCreated] = useState<AccessionJson | null>(null);
+  const [editing, setEditing] = useState<AccessionJson | null>(null);
+  const [corrected, setCorrected] = useState<AccessionJson | null>(null);
+  const columns = useMemo(
+    () =>
+      canEdit
+        ? [
+            ...baseColumns,
+            column.display({
+              id: "edit",
+              header: "",
+              cell: (c) => (
+                <Button
+                  type="button"
+                  size="sm"
+                  variant="quiet"
+                  onClick={() => {
+                    setCorrected(null);
+                    setEditing(c.row.original);
+                  }}
+                  aria-label={`Correct accession ${c.row.original.identifier}`}
+                  data-testid={`edit-accession-${c.row.original.identifier}`}
+                >
+                  Correct
+                </Button>
+              ),
+            }),
+          ]
+        : baseColumns,
+    [canEdit],
+  );
   return (
     <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_24rem]">
       <DataTable
@@ -58,8 +89,29 @@ export function AccessionsView({ canEdit }: { canEdit: boolean }) {
         defaultSort="-receivedOn"
         empty="No accessions recorded yet."
       />
-      {canEdit ? (
+      {canEdit && editing ? (
+        <Panel title={`Correct accession ${editing.identifier}`} className="self-start">
+          <p className="mb-3 text-sm text-ink-soft">
+            The provenance log keeps what each field said before and after the correction.
+          </p>
+          <AccessionForm
+            key={editing.id}
+            editing={editing}
+            testId="accession-edit"
+            onCreated={(a) => {
+              setEditing(null);
+              setCorrected(a);
+            }}
+            onCancel={() => setEditing(null)}
+          />
+        </Panel>
+      ) : canEdit ? (
         <Panel title="Record an accession" className="self-start">
+          {corrected ? (
+            <Notice tone="success" className="mb-4" testId="accession-corrected">
+              Accession {corrected.identifier} corrected.
+            </Notice>
+          ) : null}
           {created ? (
             <Notice tone="success" className="mb-4" testId="accession-created">
               Accession {created.identifier} recorded.{" "}

@@ -13,6 +13,7 @@ import { useCallback, useEffect, useMemo, useState } from "react";
 import { Button, buttonClass } from "@/components/ui/button";
 import { TableView } from "@/components/ui/data-table";
 import { cx } from "@/components/ui/cx";
+import { highlightParts, type SearchTerms, searchTerms } from "@/lib/catalogue/highlight";
 import { fetchJson } from "@/lib/http/client";
 import {
   discFormats,
@@ -31,6 +32,63 @@ export const filterKeys = ["q", "format", "status", "accession", "engineer", "sp
 type FilterKey = (typeof filterKeys)[number];
 const pageSizes = [25, 50, 100];
 const defaultSort = "shelfMark";
+/** The count stops here (lib/catalogue/list-query.ts: countCap). */
+const countCapText = "10 000";
+
+/** The columns a person may show or hide (the shelf mark always shows), in table order. */
+const optionalColumns = [
+  { id: "labelName", label: "Label · catalogue no." },
+  { id: "title", label: "First side: title · performers" },
+  { id: "year", label: "Recorded" },
+  { id: "format", label: "Format" },
+  { id: "speed", label: "Speed" },
+  { id: "sides", label: "Sides" },
+  { id: "accession", label: "Accession" },
+  { id: "condition", label: "Condition" },
+] as const;
+type OptionalColumn = (typeof optionalColumns)[number]["id"];
+const defaultColumns: OptionalColumn[] = [
+  "labelName",
+  "title",
+  "year",
+  "format",
+  "speed",
+  "sides",
+  "condition",
+];
+
+/** The shown columns from the address (`cols=labelName,title,…`); the default set without it. */
+function shownColumns(param: string | null): OptionalColumn[] {
+  if (param === null) return defaultColumns;
+  const wanted = new Set(param.split(","));
+  return optionalColumns.map((c) => c.id).filter((id) => wanted.has(id));
+}
+
+/** Sides the table lets a person tick for assigning: the ones an assignment can move. */
+const assignable = new Set(["catalogued", "returned", "assigned"]);
+
+/** Text with the parts a search matched marked. */
+function Marked({ text, terms, numbers }: { text: string; terms: SearchTerms; numbers?: boolean }) {
+  return (
+    <>
+      {highlightParts(text, terms, { numbers }).map((p, i) =>
+        p.match ? (
+          <mark key={i} className="rounded-sm bg-amber-200/80 px-0.5 text-ink" data-testid="search-match">
+            {p.text}
+          </mark>
+        ) : (
+          <span key={i}>{p.text}</span>
+        ),
+      )}
+    </>
+  );
+}
+
+function yearsText(from: number | null, to: number | null): string {
+  if (from === null && to === null) return "";
+  if (from === to) return String(from);
+  return `${from ?? "?"}–${to ?? "?"}`;
+}
 
 function useViewParams() {
   const params = useSearchParams();
@@ -82,7 +140,13 @@ export function CatalogueTable({ canAssign, self }: Props) {
   const discs = useQuery({
     queryKey: ["discs", listUrl],
     queryFn: () =>
-      fetchJson<{ rows: DiscListRowJson[]; total: number; page: number; pageSize: number }>(listUrl),
+      fetchJson<{
+        rows: DiscListRowJson[];
+        total: number;
+        totalIsCapped: boolean;
+        page: number;
+        pageSize: number;
+      }>(listUrl),
     placeholderData: keepPreviousData,
   });
   const accessions = useQuery({
@@ -111,10 +175,31 @@ export function CatalogueTable({ canAssign, self }: Props) {
 
   const [rowSelection, setRowSelection] = useState<RowSelectionState>({});
   const selectedIds = Object.keys(rowSelection).filter((k) => rowSelection[k]);
+  // Single sides ticked for assigning, beside (or instead of) whole discs.
+  const [sideSelection, setSideSelection] = useState<Record<string, string>>({});
+  const selectedSideIds = Object.keys(sideSelection);
+  const toggleSide = useCallback((sideId: string, name: string) => {
+    setSideSelection((sel) => {
+      const next = { ...sel };
+      if (next[sideId]) delete next[sideId];
+      else next[sideId] = name;
+      return next;
+    });
+  }, []);
+
+  const terms = useMemo(() => searchTerms(filters.q), [filters.q]);
+  const shown = shownColumns(params.get("cols"));
+  const setShown = (ids: OptionalColumn[]) => {
+    const same = ids.length === defaultColumns.length && defaultColumns.every((c) => ids.includes(c));
+    set({ cols: same ? undefined : ids.join(",") || "none", page: params.get("page") ?? undefined });
+  };
 
   const sorting: SortingState = [{ id: sort.replace(/^-/, ""), desc: sort.startsWith("-") }];
   const total = discs.data?.total ?? 0;
+  const capped = discs.data?.totalIsCapped ?? false;
+  const rowCount = discs.data?.rows.length ?? 0;
   const pageCount = Math.max(1, Math.ceil(total / pageSize));
+  const hasNext = capped ? rowCount === pageSize : page < pageCount;
 
   const columns = useMemo<ColumnDef<DiscListRowJson>[]>(
     () => [
@@ -149,29 +234,87 @@ export function CatalogueTable({ canAssign, self }: Props) {
         : []),
       {
         id: "shelfMark",
+        accessorFn: (r) => r.shelfMark,
         header: "Shelf mark",
         cell: ({ row }) => (
           <Link
             href={`/catalogue/${row.original.id}`}
-            className="font-mono font-medium text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac"
+            className="whitespace-nowrap font-mono font-medium text-shellac-deep underline decoration-shellac/30 underline-offset-2 hover:decoration-shellac"
           >
-            {row.original.shelfMark}
+            <Marked text={row.original.shelfMark} terms={terms} numbers />
           </Link>
         ),
       },
       {
         id: "labelName",
+        accessorFn: (r) => r.labelName,
         header: "Label · catalogue no.",
         cell: ({ row }) => (
           <div>
-            <p>{row.original.labelName || <span className="text-ink-faint">no label</span>}</p>
-            <p className="font-mono text-xs text-ink-faint">{row.original.catalogueNumber || "—"}</p>
+            <p>
+              {row.original.labelName ? (
+                <Marked text={row.original.labelName} terms={terms} />
+              ) : (
+                <span className="text-ink-faint">no label</span>
+              )}
+            </p>
+            <p className="font-mono text-xs text-ink-faint">
+              {row.original.catalogueNumber ? (
+                <Marked text={row.original.catalogueNumber} terms={terms} numbers />
+              ) : (
+                "—"
+              )}
+            </p>
           </div>
         ),
       },
-      { id: "format", header: "Format", cell: ({ row }) => formatLabel(row.original.format) },
+      {
+        id: "title",
+        accessorFn: (r) => r.sides[0]?.title ?? "",
+        header: "Title · performers",
+        cell: ({ row }) => {
+          const first = row.original.sides[0];
+          return first && (first.title || first.performers) ? (
+            <div className="min-w-48 max-w-80" data-testid="first-side">
+              <p>
+                {first.title ? (
+                  <Marked text={first.title} terms={terms} />
+                ) : (
+                  <span className="text-ink-faint">untitled</span>
+                )}
+              </p>
+              {first.performers ? (
+                <p className="text-xs text-ink-soft">
+                  <Marked text={first.performers} terms={terms} />
+                </p>
+              ) : null}
+            </div>
+          ) : (
+            <span className="text-xs text-ink-faint">untitled</span>
+          );
+        },
+      },
+      {
+        id: "year",
+        accessorFn: (r) => r.recordedFromYear ?? "",
+        header: "Recorded",
+        cell: ({ row }) => (
+          <span className="whitespace-nowrap font-mono text-xs">
+            {yearsText(row.original.recordedFromYear, row.original.recordedToYear) || (
+              <span className="text-ink-faint">—</span>
+            )}
+          </span>
+        ),
+      },
+      {
+        id: "format",
+        accessorFn: (r) => r.format,
+        header: "Format",
+        cell: ({ row }) => formatLabel(row.original.format),
+      },
       {
         id: "speed",
+        accessorFn: (r) => r.nominalSpeedRpm,
         header: "Speed",
         cell: ({ row }) => <span className="font-mono">{speedLabel(row.original.nominalSpeedRpm)}</span>,
       },
@@ -184,8 +327,22 @@ export function CatalogueTable({ canAssign, self }: Props) {
             <ul className="space-y-1">
               {row.original.sides.map((s) => (
                 <li key={s.id} className="flex flex-wrap items-center gap-x-2 gap-y-0.5 text-xs">
+                  {canAssign && assignable.has(s.status) ? (
+                    <input
+                      type="checkbox"
+                      aria-label={`Select side ${s.designation} of ${row.original.shelfMark}`}
+                      checked={Boolean(sideSelection[s.id])}
+                      onChange={() => toggleSide(s.id, `${row.original.shelfMark} side ${s.designation}`)}
+                      className="h-3.5 w-3.5 accent-shellac"
+                      data-testid={`select-side-${row.original.shelfMark}-${s.designation}`}
+                    />
+                  ) : canAssign ? (
+                    <span className="inline-block w-3.5" aria-hidden />
+                  ) : null}
                   <span className="w-6 font-mono font-semibold">{s.designation}</span>
-                  <span className="font-mono text-ink-soft">{s.matrixNumber || "—"}</span>
+                  <span className="font-mono text-ink-soft">
+                    {s.matrixNumber ? <Marked text={s.matrixNumber} terms={terms} numbers /> : "—"}
+                  </span>
                   <StatusBadge status={s.status} />
                   {s.assignedEngineerName ? (
                     <span className="text-ink-faint">{s.assignedEngineerName}</span>
@@ -201,7 +358,9 @@ export function CatalogueTable({ canAssign, self }: Props) {
         id: "accession",
         header: "Accession",
         enableSorting: false,
-        cell: ({ row }) => <span className="font-mono text-xs">{row.original.accessionIdentifier}</span>,
+        cell: ({ row }) => (
+          <span className="whitespace-nowrap font-mono text-xs">{row.original.accessionIdentifier}</span>
+        ),
       },
       {
         id: "condition",
@@ -210,14 +369,15 @@ export function CatalogueTable({ canAssign, self }: Props) {
         cell: ({ row }) => conditionLabels[row.original.conditionGrade] ?? row.original.conditionGrade,
       },
     ],
-    [canAssign],
+    [canAssign, terms, sideSelection, toggleSide],
   );
+  const columnVisibility = Object.fromEntries(optionalColumns.map((c) => [c.id, shown.includes(c.id)]));
 
   const table = useReactTable({
     data: discs.data?.rows ?? [],
     columns,
     getRowId: (r) => r.id,
-    state: { sorting, rowSelection, pagination: { pageIndex: page - 1, pageSize } },
+    state: { sorting, rowSelection, columnVisibility, pagination: { pageIndex: page - 1, pageSize } },
     manualSorting: true,
     manualPagination: true,
     manualFiltering: true,
@@ -354,46 +514,52 @@ export function CatalogueTable({ canAssign, self }: Props) {
         <div
           className={cx(
             "rounded-lg border px-4 py-3",
-            selectedIds.length ? "border-shellac/40 bg-shellac-wash/50" : "border-dashed border-paper-edge",
+            selectedIds.length || selectedSideIds.length
+              ? "border-shellac/40 bg-shellac-wash/50"
+              : "border-dashed border-paper-edge",
           )}
         >
-          <p className="mb-2 text-sm text-ink-soft" aria-live="polite">
-            {selectedIds.length ? (
+          <p className="mb-2 text-sm text-ink-soft" aria-live="polite" data-testid="assign-selection">
+            {selectedIds.length || selectedSideIds.length ? (
               <>
-                <strong className="text-ink">{selectedIds.length}</strong> disc
-                {selectedIds.length === 1 ? "" : "s"} selected: assign every side that is waiting to one
+                {selectionSentence(selectedIds.length, Object.values(sideSelection))} Assign{" "}
+                {selectedIds.length ? "every side of the ticked discs that is waiting" : "them"} to one
                 engineer.{" "}
-                <button type="button" className="underline" onClick={() => setRowSelection({})}>
+                <button
+                  type="button"
+                  className="underline"
+                  onClick={() => {
+                    setRowSelection({});
+                    setSideSelection({});
+                  }}
+                >
                   Clear selection
                 </button>
               </>
             ) : (
-              "Tick discs to assign their sides to a transfer engineer."
+              "Tick discs to assign all their sides, or single sides in the Sides column, to a transfer engineer."
             )}
           </p>
           <AssignControl
             discIds={selectedIds}
-            what={
-              selectedIds.length
-                ? `sides of ${selectedIds.length} disc${selectedIds.length === 1 ? "" : "s"}`
-                : "sides"
-            }
+            sideIds={selectedSideIds}
+            what={assignWhat(selectedIds.length, selectedSideIds.length)}
             testId="bulk-assign"
             onAssigned={() => {
               setRowSelection({});
+              setSideSelection({});
               void queryClient.invalidateQueries({ queryKey: ["discs"] });
             }}
           />
         </div>
       ) : null}
 
-      <div className="flex items-center justify-between text-xs text-ink-faint">
+      <div className="flex flex-wrap items-center justify-between gap-3 text-xs text-ink-faint">
         <span aria-live="polite" data-testid="catalogue-count">
-          {discs.isLoading
-            ? "Loading…"
-            : `${total} disc${total === 1 ? "" : "s"}${anyFilter ? (total === 1 ? " matches" : " match") : " in the catalogue"}`}
+          {discs.isLoading ? "Loading…" : countSentence(total, capped, anyFilter)}
           {discs.isFetching && !discs.isLoading ? " · updating…" : ""}
         </span>
+        <ColumnChooser shown={shown} onChange={setShown} />
       </div>
 
       <TableView
@@ -442,13 +608,17 @@ export function CatalogueTable({ canAssign, self }: Props) {
             ← Previous
           </Button>
           <span className="px-2 text-ink-soft" data-testid="catalogue-page">
-            Page {Math.min(page, pageCount)} of {pageCount}
+            {capped
+              ? `Page ${page} of more than ${Math.floor(total / pageSize)
+                  .toLocaleString("en-GB")
+                  .replace(/,/g, " ")}`
+              : `Page ${Math.min(page, pageCount)} of ${pageCount}`}
           </span>
           <Button
             type="button"
             variant="secondary"
             size="sm"
-            disabled={page >= pageCount}
+            disabled={!hasNext}
             onClick={() => set({ page: String(page + 1) })}
           >
             Next →
@@ -456,6 +626,77 @@ export function CatalogueTable({ canAssign, self }: Props) {
         </div>
       </nav>
     </div>
+  );
+}
+
+/** "1 234", the way the page writes counts (a thin space would wrap badly in some fonts). */
+function count(n: number): string {
+  return n.toLocaleString("en-GB").replace(/,/g, " ");
+}
+
+function countSentence(total: number, capped: boolean, filtered: boolean): string {
+  if (capped) return `More than ${countCapText} discs ${filtered ? "match" : "in the catalogue"}`;
+  return `${count(total)} disc${total === 1 ? "" : "s"}${filtered ? (total === 1 ? " matches" : " match") : " in the catalogue"}`;
+}
+
+function selectionSentence(discCount: number, sideNames: string[]): string {
+  const parts: string[] = [];
+  if (discCount) parts.push(`${discCount} disc${discCount === 1 ? "" : "s"}`);
+  if (sideNames.length)
+    parts.push(sideNames.length <= 3 ? sideNames.join(", ") : `${sideNames.length} single sides`);
+  return `Selected: ${parts.join(" and ")}.`;
+}
+
+function assignWhat(discCount: number, sideCount: number): string {
+  if (!discCount && !sideCount) return "sides";
+  if (!discCount) return sideCount === 1 ? "this side" : `${sideCount} sides`;
+  const discs = `sides of ${discCount} disc${discCount === 1 ? "" : "s"}`;
+  return sideCount ? `${discs} and ${sideCount} more side${sideCount === 1 ? "" : "s"}` : discs;
+}
+
+/** Which columns the table shows; the choice lives in the address (`cols`). */
+function ColumnChooser({
+  shown,
+  onChange,
+}: {
+  shown: OptionalColumn[];
+  onChange: (ids: OptionalColumn[]) => void;
+}) {
+  return (
+    <details className="relative" data-testid="column-chooser">
+      <summary className="cursor-pointer select-none rounded-md border border-paper-edge bg-white px-3 py-1.5 text-sm text-ink-soft hover:text-ink">
+        Columns ({shown.length + 1} of {optionalColumns.length + 1})
+      </summary>
+      <fieldset className="absolute right-0 z-20 mt-1 w-72 space-y-1.5 rounded-lg border border-paper-edge bg-white p-3 text-sm text-ink shadow-lg">
+        <legend className="sr-only">Columns to show</legend>
+        <p className="text-xs text-ink-faint">The shelf mark always shows.</p>
+        {optionalColumns.map((c) => (
+          <label key={c.id} className="flex items-center gap-2">
+            <input
+              type="checkbox"
+              checked={shown.includes(c.id)}
+              onChange={(e) =>
+                onChange(
+                  optionalColumns
+                    .map((o) => o.id)
+                    .filter((id) => (id === c.id ? e.target.checked : shown.includes(id))),
+                )
+              }
+              className="h-4 w-4 accent-shellac"
+              data-testid={`column-${c.id}`}
+            />
+            {c.label}
+          </label>
+        ))}
+        <button
+          type="button"
+          className="pt-1 text-xs underline"
+          onClick={() => onChange([...defaultColumns])}
+        >
+          Back to the usual columns
+        </button>
+      </fieldset>
+    </details>
   );
 }
 

@@ -1,6 +1,6 @@
 "use client";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import type { ReactNode } from "react";
+import { type ReactNode, useState } from "react";
 import { Panel } from "@/components/ui/panel";
 import type { Role } from "@/lib/auth/roles";
 import { fetchJson } from "@/lib/http/client";
@@ -136,16 +136,7 @@ export function DiscDetail({
 
           {canAssign ? (
             <Panel title="Assign for transfer">
-              <p className="mb-3 text-sm text-ink-soft">
-                Catalogued, returned and already assigned sides of this disc go to the engineer you choose;
-                sides further along stay as they are.
-              </p>
-              <AssignControl
-                discIds={[disc.id]}
-                what="this disc's sides"
-                testId="disc-assign"
-                onAssigned={refresh}
-              />
+              <AssignSides sides={disc.sides} onAssigned={refresh} />
             </Panel>
           ) : null}
 
@@ -193,6 +184,70 @@ export function DiscDetail({
           </dl>
         </Panel>
       </div>
+    </div>
+  );
+}
+
+const assignable = new Set(["catalogued", "returned", "assigned"]);
+
+/** Assigns the sides ticked here (every waiting side at first) to one engineer. */
+function AssignSides({ sides, onAssigned }: { sides: DiscJson["sides"]; onAssigned: () => void }) {
+  const waiting = sides.filter((s) => assignable.has(s.status));
+  const [unticked, setUnticked] = useState<Set<string>>(new Set());
+  const chosen = waiting.filter((s) => !unticked.has(s.id));
+  if (!waiting.length)
+    return (
+      <p className="text-sm text-ink-soft">
+        Every side of this disc is further along than assigning; nothing here to assign.
+      </p>
+    );
+  return (
+    <div className="space-y-3">
+      <fieldset>
+        <legend className="mb-2 text-sm text-ink-soft">
+          Sides to assign (catalogued, returned or already assigned; sides further along stay as they are):
+        </legend>
+        <div className="flex flex-wrap gap-x-5 gap-y-2">
+          {waiting.map((s) => (
+            <label key={s.id} className="flex items-center gap-2 text-sm">
+              <input
+                type="checkbox"
+                checked={!unticked.has(s.id)}
+                onChange={(e) =>
+                  setUnticked((u) => {
+                    const next = new Set(u);
+                    if (e.target.checked) next.delete(s.id);
+                    else next.add(s.id);
+                    return next;
+                  })
+                }
+                className="h-4 w-4 accent-shellac"
+                data-testid={`assign-side-${s.designation}`}
+              />
+              <span className="font-mono font-semibold">{s.designation}</span>
+              <span className="text-xs text-ink-soft">
+                {s.title || "untitled"}
+                {s.assignedEngineerName ? ` · with ${s.assignedEngineerName}` : ""}
+              </span>
+            </label>
+          ))}
+        </div>
+      </fieldset>
+      <AssignControl
+        sideIds={chosen.map((s) => s.id)}
+        what={
+          chosen.length === waiting.length && waiting.length > 1
+            ? "every waiting side"
+            : chosen.length === 1
+              ? `side ${chosen[0].designation}`
+              : `${chosen.length} sides`
+        }
+        testId="disc-assign"
+        onAssigned={() => {
+          setUnticked(new Set());
+          onAssigned();
+        }}
+      />
     </div>
   );
 }

@@ -27,7 +27,7 @@ import { discControls } from "./disc-form-controls";
 import { type DiscFormValues, emptyValues, toFormValues } from "./disc-form-values";
 import { reapplyMine } from "./disc-merge";
 import { DiscSidesPanel } from "./disc-sides-panel";
-import { baseLabels, conditionLabels, flagLabels, speedLabel } from "./format";
+import { baseLabels, conditionLabels, flagLabels, isoDateInputProps, speedLabel } from "./format";
 import { HandlingCautions } from "./handling-cautions";
 import type { AccessionJson, DiscJson } from "./types";
 
@@ -312,7 +312,12 @@ export function DiscForm({
 
           <Panel title="Date">
             <div className="grid gap-4 md:grid-cols-3">
-              {input("recordingDate", "Recording date", { type: "date" }, "When known exactly.")}
+              {input(
+                "recordingDate",
+                "Recording date (YYYY-MM-DD)",
+                isoDateInputProps,
+                "When known exactly.",
+              )}
               {input("recordedFromYear", "Recorded from (year)", {
                 inputMode: "numeric",
                 placeholder: "e.g. 1931",

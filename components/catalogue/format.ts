@@ -45,7 +45,31 @@ export const baseLabels: Record<string, string> = {
   unknown: "Unknown",
 };
 
-const dateTime = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "short" });
-export function when(at: string | Date): string {
-  return dateTime.format(new Date(at));
+const pad = (n: number) => String(n).padStart(2, "0");
+
+/** A calendar date as ISO 8601 (YYYY-MM-DD), the same whatever the browser's language. */
+export function isoDate(at: string | Date): string {
+  const d = new Date(at);
+  return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}`;
 }
+
+/**
+ * A moment as an ISO 8601 date and a 24-hour local time ("2026-12-03 14:05"), the same
+ * whatever the browser's language, so no one reads 03/12 as March or December.
+ */
+export function when(at: string | Date, { seconds = false }: { seconds?: boolean } = {}): string {
+  const d = new Date(at);
+  const time = `${pad(d.getHours())}:${pad(d.getMinutes())}${seconds ? `:${pad(d.getSeconds())}` : ""}`;
+  return `${isoDate(d)} ${time}`;
+}
+
+/** The props of a text field that takes a date as YYYY-MM-DD (a browser date picker shows the browser's locale). */
+export const isoDateInputProps = {
+  type: "text",
+  inputMode: "numeric",
+  placeholder: "YYYY-MM-DD",
+  pattern: "\\d{4}-\\d{2}-\\d{2}",
+  maxLength: 10,
+  autoComplete: "off",
+  spellCheck: false,
+} as const;

@@ -3,6 +3,7 @@ import { useQuery } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
 import { useMemo, useState } from "react";
 import { Badge } from "@/components/ui/badge";
+import { when } from "@/components/catalogue/format";
 import { DataTable } from "@/components/ui/data-table";
 import { fetchJson } from "@/lib/http/client";
 
@@ -19,7 +20,6 @@ interface Message {
 }
 
 const column = createColumnHelper<Message>();
-const fmt = new Intl.DateTimeFormat("en-GB", { dateStyle: "medium", timeStyle: "medium" });
 const tone = { queued: "accent", sent: "ok", failed: "alarm" } as const;
 
 export function OutboxTable() {
@@ -34,9 +34,14 @@ export function OutboxTable() {
     () => [
       column.accessor("createdAt", {
         header: "Queued",
-        cell: (c) => <span className="font-mono text-xs">{fmt.format(new Date(c.getValue()))}</span>,
+        cell: (c) => (
+          <span className="whitespace-nowrap font-mono text-xs">{when(c.getValue(), { seconds: true })}</span>
+        ),
       }),
-      column.accessor("to", { header: "To" }),
+      column.accessor("to", {
+        header: "To",
+        cell: (c) => <span className="whitespace-nowrap">{c.getValue()}</span>,
+      }),
       column.accessor("subject", {
         header: "Subject",
         cell: (c) => (
@@ -84,7 +89,7 @@ export function OutboxTable() {
           <div className="space-y-3">
             <h2 className="text-lg font-semibold">{open.subject}</h2>
             <p className="text-xs text-ink-faint">
-              to {open.to} · {open.sentAt ? `sent ${fmt.format(new Date(open.sentAt))}` : open.status}
+              to {open.to} · {open.sentAt ? `sent ${when(open.sentAt, { seconds: true })}` : open.status}
             </p>
             {open.lastError ? <p className="text-xs text-alarm">Last error: {open.lastError}</p> : null}
             <pre className="whitespace-pre-wrap break-words rounded bg-paper p-3 font-mono text-xs leading-relaxed">

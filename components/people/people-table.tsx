@@ -52,7 +52,7 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
         cell: (c) => (
           <div>
             <p className="font-medium">{c.getValue()}</p>
-            <p className="text-xs text-ink-faint">{c.row.original.email}</p>
+            <p className="whitespace-nowrap text-xs text-ink-faint">{c.row.original.email}</p>
           </div>
         ),
       }),
@@ -83,7 +83,9 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
         header: "Last signed in",
         sortingFn: "datetime",
         cell: (c) => (
-          <span className="font-mono text-xs">{c.getValue() ? when(c.getValue() as string) : "never"}</span>
+          <span className="whitespace-nowrap font-mono text-xs">
+            {c.getValue() ? when(c.getValue() as string) : "never"}
+          </span>
         ),
       }),
       column.display({
@@ -130,7 +132,9 @@ export function PeopleTable({ currentUserId }: { currentUserId: string }) {
                 <span>
                   {i.email} · {roleLabels[i.role]}
                 </span>
-                <span className="font-mono text-xs text-ink-faint">expires {when(i.expiresAt)}</span>
+                <span className="whitespace-nowrap font-mono text-xs text-ink-faint">
+                  expires {when(i.expiresAt)}
+                </span>
               </li>
             ))}
           </ul>

@@ -237,6 +237,39 @@ function parseFmt(body: Uint8Array, at: number): Fmt {
 }
 
 /** Read and check the header of a WAV, BWF or RF64 file. Throws WavError naming what and where. */
+/** Chunk ids met in WAV, BWF and RF64 files (EBU Tech 3285/3306, Microsoft RIFF): used to spot a missing pad byte. */
+const knownChunkIds = new Set([
+  "fmt ",
+  "data",
+  "fact",
+  "LIST",
+  "bext",
+  "iXML",
+  "axml",
+  "chna",
+  "cue ",
+  "JUNK",
+  "junk",
+  "PAD ",
+  "FLLR",
+  "smpl",
+  "inst",
+  "id3 ",
+  "ID3 ",
+  "umid",
+  "levl",
+  "link",
+  "mext",
+  "plst",
+  "cart",
+  "PEAK",
+  "qlty",
+  "acid",
+  "DISP",
+  "afsp",
+  "ds64",
+]);
+
 export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
   const size = source.size;
   const r = new Reader(source);
@@ -310,6 +343,8 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
   let fmt: Fmt | null = null;
   let data: WavChunk | null = null;
   let bext: Bext | undefined;
+  /** The chunk just walked when its size was odd: the next one should start after a pad byte. */
+  let odd: WavChunk | null = null;
   while (p < walkEnd) {
     if (p + 8 > size) {
       if (!data)
@@ -323,6 +358,21 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
     const h = await r.bytes(p, 8);
     const cid = ascii(h);
     const size32 = u32(h, 4);
+    if (odd && !knownChunkIds.has(cid)) {
+      // A writer that forgot the pad byte after an odd-sized chunk starts the next chunk one
+      // byte early; read there, the header makes sense where the aligned one does not.
+      const early = await r.bytes(p - 1, 8);
+      const earlyId = ascii(early);
+      const fits = p - 1 + 8 + u32(early, 4) <= size;
+      if (
+        knownChunkIds.has(earlyId) ||
+        (/^[A-Za-z][A-Za-z0-9 ]{3}$/.test(earlyId) && fits && p + 8 + size32 > size)
+      )
+        throw new WavError(
+          `The ${odd.id.trim()} chunk at byte offset ${odd.offset} has an odd size (${odd.size} bytes) but is not followed by the pad byte the RIFF format requires, so the next chunk ("${earlyId.trim()}") starts one byte early, at offset ${p - 1}. The program that wrote this file broke the format: export the transfer again or repair its chunks.`,
+          odd.offset,
+        );
+    }
     let csize = size32;
     if (isRf64 && size32 === U32_MAX) {
       const big = cid === "data" ? ds64Data : ds64Table.get(cid);
@@ -380,6 +430,7 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
       bext = parseBext(await r.bytes(body, csize));
     }
     // RIFF chunks start on even offsets: an odd-sized chunk is followed by a pad byte.
+    odd = csize & 1 ? chunk : null;
     p = body + csize + (csize & 1);
   }
 

@@ -31,6 +31,7 @@ export const routeAccess = {
   "POST /api/imports": "catalogue:edit",
   "GET /api/accessions": "catalogue:read",
   "POST /api/accessions": "catalogue:edit",
+  "PATCH /api/accessions/[id]": "catalogue:edit",
   "GET /api/sides/[id]": "catalogue:read",
   "POST /api/sides/[id]/transition": "catalogue:read",
   "POST /api/assignments": "catalogue:assign",

@@ -1,4 +1,4 @@
-import { type Kysely, sql } from "kysely";
+import { type Kysely, type OrderByItemBuilder, sql } from "kysely";
 import type { Database } from "../../db/types";
 import { type DiscListQuery, discListQuerySchema } from "../validation/catalogue";
 import { readSides, type SideRecord } from "./records";
@@ -14,17 +14,34 @@ export interface DiscListRow {
   nominalSpeedRpm: number;
   accessionIdentifier: string;
   conditionGrade: string;
+  recordedFromYear: number | null;
+  recordedToYear: number | null;
   updatedAt: Date;
+  /** In designation order: the first is the side whose title and performers the table shows. */
   sides: Pick<
     SideRecord,
-    "id" | "designation" | "matrixNumber" | "title" | "status" | "assignedEngineerName"
+    "id" | "designation" | "matrixNumber" | "title" | "performers" | "status" | "assignedEngineerName"
   >[];
+}
+
+/** A count stops here: past it the page says "more than 10 000" instead of counting a million rows. */
+export const countCap = 10_000;
+
+export interface DiscListPage {
+  rows: DiscListRow[];
+  /** Exact up to countCap; countCap when there are more (then totalIsCapped). */
+  total: number;
+  totalIsCapped: boolean;
+  page: number;
+  pageSize: number;
 }
 
 const sortColumns = {
   shelfMark: "d.shelf_mark",
   labelName: "d.label_name",
   catalogueNumber: "d.catalogue_number",
+  title: "d.first_title",
+  year: "d.recorded_from_year",
   format: "d.format",
   speed: "d.nominal_speed_rpm",
   updatedAt: "d.updated_at",
@@ -79,30 +96,62 @@ export function filteredDiscs(db: Db, q: DiscFilter) {
   return query;
 }
 
-/** The list's order: the chosen column, then the shelf mark in the same direction, so one index serves the whole ordering. */
-function ordering(q: DiscFilter) {
+/**
+ * The list's order: the chosen column, then the shelf mark in the same direction, so one
+ * index serves the whole ordering. Title and year may be blank: blanks come last either
+ * way (each direction has its index, migrations/2026_12_03_1400_catalogue_at_a_million.ts).
+ */
+export function listOrdering(q: DiscFilter) {
   const direction: "asc" | "desc" = q.sort.startsWith("-") ? "desc" : "asc";
-  return { column: sortColumns[q.sort.replace(/^-/, "") as keyof typeof sortColumns], direction };
+  const column = sortColumns[q.sort.replace(/^-/, "") as keyof typeof sortColumns];
+  const blanksLast = column === "d.first_title" || column === "d.recorded_from_year";
+  return {
+    column,
+    direction,
+    /** The chosen column's modifiers: its direction, and blanks last where it can be blank. */
+    modifiers: (ob: OrderByItemBuilder) => {
+      const o = direction === "desc" ? ob.desc() : ob.asc();
+      return blanksLast ? o.nullsLast() : o;
+    },
+  };
 }
 
 /** Every disc a list query selects, in the list's order and without paging (the CSV export). */
 export async function listDiscIds(db: Db, q: DiscFilter): Promise<string[]> {
-  const { column, direction } = ordering(q);
+  const { column, direction, modifiers } = listOrdering(q);
   const rows = await filteredDiscs(db, q)
     .select("d.id")
-    .orderBy(column, direction)
+    .orderBy(column, modifiers)
     .orderBy("d.shelf_mark", direction)
     .execute();
   return rows.map((r) => r.id);
 }
 
+/** The count query of countDiscs (the benchmark prints its plan). */
+export function cappedCountQuery(db: Db, q: DiscFilter) {
+  return db
+    .selectFrom(
+      filteredDiscs(db, q)
+        .select(sql<number>`1`.as("one"))
+        .limit(countCap + 1)
+        .as("capped"),
+    )
+    .select(sql<number>`count(*)::int`.as("n"));
+}
+
+/**
+ * How many discs a list query selects, counted up to countCap + 1 only: past countCap the
+ * page says "more than 10 000", and a million-disc catalogue is never counted row by row.
+ */
+export async function countDiscs(db: Db, q: DiscFilter): Promise<{ total: number; totalIsCapped: boolean }> {
+  const { n } = await cappedCountQuery(db, q).executeTakeFirstOrThrow();
+  return n > countCap ? { total: countCap, totalIsCapped: true } : { total: n, totalIsCapped: false };
+}
+
 /** The catalogue: filtered, searched, sorted and paged on the server. */
-export async function listDiscsWith(
-  db: Db,
-  input: unknown,
-): Promise<{ rows: DiscListRow[]; total: number; page: number; pageSize: number }> {
+export async function listDiscsWith(db: Db, input: unknown): Promise<DiscListPage> {
   const q = discListQuerySchema.parse(input);
-  const { column, direction } = ordering(q);
+  const { column, direction, modifiers } = listOrdering(q);
   const [rows, count] = await Promise.all([
     filteredDiscs(db, q)
       .innerJoin("accessions as a", "a.id", "d.accession_id")
@@ -115,16 +164,16 @@ export async function listDiscsWith(
         "d.nominal_speed_rpm as nominalSpeedRpm",
         "a.identifier as accessionIdentifier",
         "d.condition_grade as conditionGrade",
+        "d.recorded_from_year as recordedFromYear",
+        "d.recorded_to_year as recordedToYear",
         "d.updated_at as updatedAt",
       ])
-      .orderBy(column, direction)
+      .orderBy(column, modifiers)
       .orderBy("d.shelf_mark", direction)
       .limit(q.pageSize)
       .offset((q.page - 1) * q.pageSize)
       .execute(),
-    filteredDiscs(db, q)
-      .select(sql<number>`count(*)::int`.as("n"))
-      .executeTakeFirstOrThrow(),
+    countDiscs(db, q),
   ]);
   const sides = await readSides(
     db,
@@ -135,17 +184,18 @@ export async function listDiscsWith(
       ...r,
       nominalSpeedRpm: Number(r.nominalSpeedRpm),
       sides: (sides.get(r.id) ?? []).map(
-        ({ id, designation, matrixNumber, title, status, assignedEngineerName }) => ({
+        ({ id, designation, matrixNumber, title, performers, status, assignedEngineerName }) => ({
           id,
           designation,
           matrixNumber,
           title,
+          performers,
           status,
           assignedEngineerName,
         }),
       ),
     })),
-    total: count.n,
+    ...count,
     page: q.page,
     pageSize: q.pageSize,
   };

@@ -139,15 +139,17 @@ export async function readSides(db: Db, discIds: string[]): Promise<Map<string, 
   return out;
 }
 
-/** Rebuilds the disc's search columns from its own fields and its sides' (same transaction as the change). */
+/** Rebuilds the disc's search columns and title sort key from its own fields and its sides' (same transaction as the change). */
 export async function refreshSearch(db: Db, discIds: string[]): Promise<void> {
   if (!discIds.length) return;
   await sql`
     UPDATE discs d SET
       search_tsv = to_tsvector('simple', d.label_name || ' ' || d.catalogue_number || ' ' || coalesce(s.words, '')),
-      search_codes = lower(d.shelf_mark || ' ' || d.catalogue_number || ' ' || coalesce(s.codes, ''))
+      search_codes = lower(d.shelf_mark || ' ' || d.catalogue_number || ' ' || coalesce(s.codes, '')),
+      first_title = nullif(s.first_title, '')
     FROM (
       SELECT dd.id,
+             (array_agg(sd.title ORDER BY lower(sd.designation)))[1] AS first_title,
              string_agg(sd.title || ' ' || sd.performers || ' ' || sd.matrix_number, ' ') AS words,
              string_agg(sd.matrix_number, ' ') AS codes
       FROM discs dd LEFT JOIN sides sd ON sd.disc_id = dd.id

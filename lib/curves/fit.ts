@@ -173,7 +173,7 @@ export function fitCurve(request: FitRequest): FitResult {
   if (points.length < fitList.length + 1) {
     throw new CurveError(
       "points",
-      `${points.length} point(s) cannot determine ${fitList.length} parameter(s) with any check left over; give at least ${fitList.length + 1}.`,
+      `${plural(points.length, "point")} cannot settle ${plural(fitList.length, "value")} with one left over as a check: give at least ${fitList.length + 1} points.`,
     );
   }
   const cornerNames = fitList.filter((p): p is CornerName => p !== "levelOffset");
@@ -339,4 +339,8 @@ export function fitCurve(request: FitRequest): FitResult {
     conditionNumber,
     iterations: best.iterations,
   };
+}
+
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? "" : "s"}`;
 }

@@ -41,7 +41,11 @@ export function parsePointsCsv(text: string): CurvePoint[] {
     }
     sawData = true;
     if (fields.length !== 2) {
-      throw new PointsParseError(lineNo, "line", `expected two fields "hz,db", found ${fields.length}.`);
+      throw new PointsParseError(
+        lineNo,
+        "line",
+        `give two values, frequency in Hz and level in dB, separated by a comma (this line has ${fields.length}).`,
+      );
     }
     const [hzText, dbText] = fields;
     if (!NUMBER.test(hzText)) throw new PointsParseError(lineNo, "hz", `"${hzText}" is not a number.`);
@@ -49,11 +53,16 @@ export function parsePointsCsv(text: string): CurvePoint[] {
     const hz = Number(hzText);
     const db = Number(dbText);
     if (!(hz > 0) || !Number.isFinite(hz))
-      throw new PointsParseError(lineNo, "hz", `frequency must be greater than 0, got ${hzText}.`);
+      throw new PointsParseError(lineNo, "hz", `the frequency must be above 0 Hz (it is ${hzText}).`);
     if (!Number.isFinite(db))
-      throw new PointsParseError(lineNo, "db", `level must be finite, got ${dbText}.`);
+      throw new PointsParseError(lineNo, "db", `the level must be a number of dB (it is ${dbText}).`);
     points.push({ hz, db });
   });
-  if (points.length === 0) throw new PointsParseError(lines.length, "line", "no points found.");
+  if (points.length === 0)
+    throw new PointsParseError(
+      lines.length,
+      "line",
+      "no points found: give one frequency,level pair per line.",
+    );
   return points;
 }

@@ -26,40 +26,67 @@ function isFiniteNumber(x: unknown): x is number {
   return typeof x === "number" && Number.isFinite(x);
 }
 
+/** How a person names each corner in a message (the field's own words, not the code's). */
+const cornerWords: Record<CornerName, string> = {
+  turnover: "Turnover",
+  shelf: "Low-frequency shelf",
+  rolloff: "Rolloff",
+  highpass: "High-pass",
+  ultrasonic: "Ultrasonic corner",
+};
+
+/** A value as a person typed it, for a message ("blank" when there is no number at all). */
+function typed(v: unknown): string {
+  if (v === undefined || v === null || v === "" || (typeof v === "number" && Number.isNaN(v))) return "blank";
+  return `“${String(v)}”`;
+}
+
 function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number): ResolvedCorner | null {
+  const label = cornerWords[name] ?? name;
   if (typeof input !== "object" || input === null) {
-    throw new CurveError(name, `${name}: expected { unit, value }.`);
+    throw new CurveError(name, `${label}: give a value and its unit (Hz, µs or dB at 10 kHz).`);
   }
   const { unit } = input;
   // A rolloff in dB at 10 kHz only ever cuts: "−10" and "10" are the same 10 dB of attenuation (names.ts).
   const value =
     unit === "db10k" && isFiniteNumber(input.value) ? normalizeRolloffDb(input.value) : input.value;
   if (unit !== "hz" && unit !== "us" && unit !== "db10k") {
-    throw new CurveError(name, `${name}: unit must be "hz", "us" or "db10k", got ${JSON.stringify(unit)}.`);
+    throw new CurveError(name, `${label}: choose its unit: Hz, µs or dB at 10 kHz.`);
   }
   if (unit === "db10k" && name !== "rolloff") {
-    throw new CurveError(name, `${name}: dB at 10 kHz is only a way to give the rolloff; use "hz" or "us".`);
+    throw new CurveError(
+      name,
+      `${label}: dB at 10 kHz is only a way to give the rolloff; give it in Hz or µs.`,
+    );
   }
   if (!isFiniteNumber(value)) {
-    throw new CurveError(name, `${name}: value must be a finite number, got ${String(value)}.`);
+    throw new CurveError(
+      name,
+      typed(value) === "blank"
+        ? `${label}: type a number.`
+        : `${label}: type a number (${typed(value)} is not one).`,
+    );
   }
   if (unit === "db10k") {
     if (value === 0) return null;
     if (value > 60) {
       throw new CurveError(
         name,
-        `${name}: ${value} dB at 10 kHz is beyond any playback curve (limit 60 dB).`,
+        `${label}: ${value} dB at 10 kHz is beyond any playback curve (limit 60 dB).`,
       );
     }
   } else if (value <= 0) {
     throw new CurveError(
       name,
-      `${name}: ${unit === "hz" ? "frequency" : "time constant"} must be greater than 0, got ${value}.`,
+      `${label}: the ${unit === "hz" ? "frequency" : "time constant"} must be above 0 (it is ${value}).`,
     );
   }
   const tauUs = unit === "hz" ? hzToUs(value) : unit === "us" ? value : db10kToUs(value);
   if (!(tauUs > 0) || !Number.isFinite(tauUs)) {
-    throw new CurveError(name, `${name}: value ${value} ${unit} gives no usable time constant.`);
+    throw new CurveError(
+      name,
+      `${label}: ${value} ${unit === "hz" ? "Hz" : unit === "us" ? "µs" : "dB at 10 kHz"} gives no usable time constant.`,
+    );
   }
   const filterTauUs = tauUs / speedRatio;
   const corner: ResolvedCorner = {
@@ -99,36 +126,36 @@ export function mergeCurve(
 
 export function resolveCurve(spec: CurveSpec): ResolvedCurve {
   if (typeof spec !== "object" || spec === null)
-    throw new CurveError("spec", "Curve spec must be an object.");
+    throw new CurveError("spec", "The curve is missing: choose a preset or give its corners.");
 
   const speedRatio = spec.speedRatio ?? 1;
   if (!isFiniteNumber(speedRatio) || speedRatio <= 0) {
     throw new CurveError(
       "speedRatio",
-      `speedRatio (transfer speed / cut speed) must be a number greater than 0, got ${String(speedRatio)}.`,
+      `The transfer and cut speeds must both be numbers above 0 rpm (their ratio is ${typed(speedRatio)}).`,
     );
   }
   if (speedRatio < 0.1 || speedRatio > 10) {
     throw new CurveError(
       "speedRatio",
-      `speedRatio ${speedRatio} is outside 0.1–10; check the transfer and cut speeds.`,
+      `The transfer speed is ${speedRatio} times the cut speed, outside 0.1–10: check the two speeds.`,
     );
   }
 
   const reference = spec.reference ?? DEFAULT_REFERENCE;
   if (typeof reference !== "object" || reference === null) {
-    throw new CurveError("reference", "reference must be { hz, db }.");
+    throw new CurveError("reference", "The reference point needs a frequency (Hz) and a level (dB).");
   }
   if (!isFiniteNumber(reference.hz) || reference.hz < MIN_REFERENCE_HZ || reference.hz > MAX_REFERENCE_HZ) {
     throw new CurveError(
       "reference.hz",
-      `Reference frequency must be between ${MIN_REFERENCE_HZ} Hz and ${MAX_REFERENCE_HZ} Hz, got ${String(reference.hz)}.`,
+      `The reference frequency must be between ${MIN_REFERENCE_HZ} Hz and ${MAX_REFERENCE_HZ} Hz (it is ${typed(reference.hz)}).`,
     );
   }
   if (!isFiniteNumber(reference.db) || Math.abs(reference.db) > 60) {
     throw new CurveError(
       "reference.db",
-      `Reference gain must be a finite number of dB within ±60, got ${String(reference.db)}.`,
+      `The reference level must be a number of dB within ±60 (it is ${typed(reference.db)}).`,
     );
   }
 
@@ -170,7 +197,10 @@ export function resolveCurve(spec: CurveSpec): ResolvedCurve {
 /** Throws CurveError("sampleRateHz") unless 44 100 ≤ rate ≤ 384 000. */
 export function validateSampleRate(sampleRateHz: number): void {
   if (!isFiniteNumber(sampleRateHz)) {
-    throw new CurveError("sampleRateHz", `Sample rate must be a number, got ${String(sampleRateHz)}.`);
+    throw new CurveError(
+      "sampleRateHz",
+      `The sample rate must be a number of Hz (it is ${typed(sampleRateHz)}).`,
+    );
   }
   if (sampleRateHz < MIN_SAMPLE_RATE_HZ) {
     throw new CurveError(

@@ -7,6 +7,8 @@ export type ErrorCode =
   | "not_found"
   | "invalid"
   | "conflict"
+  /** A flat transfer identical (SHA-256) to one stored for another side: accepted only once the engineer confirms. */
+  | "duplicate_file"
   | "expired"
   | "used"
   | "throttled"

@@ -52,7 +52,16 @@ export interface AcceptedTransfer {
   };
 }
 
-export type UploadPhase = "idle" | "starting" | "uploading" | "checking" | "done" | "failed" | "cancelled";
+export type UploadPhase =
+  | "idle"
+  | "starting"
+  | "uploading"
+  | "checking"
+  /** Sent, but identical to another side's transfer: waiting for the engineer to confirm or cancel. */
+  | "confirm"
+  | "done"
+  | "failed"
+  | "cancelled";
 
 /** The store (or the app) is away and the upload waits to try again. */
 export interface UploadOutage {
@@ -77,6 +86,8 @@ export interface UploadState {
   fields: Record<string, string[]> | null;
   /** Whether "try again" picks up the same upload (false once the server has refused or closed it). */
   resumable: boolean;
+  /** In "confirm": the server's warning, naming the side that already has this file. */
+  duplicate: string | null;
   result: AcceptedTransfer | null;
   outage: UploadOutage | null;
 }
@@ -91,6 +102,7 @@ export const idleUpload: UploadState = {
   error: null,
   fields: null,
   resumable: false,
+  duplicate: null,
   result: null,
   outage: null,
 };
@@ -223,6 +235,12 @@ export async function runUpload(args: {
   onState: (update: (s: UploadState) => UploadState) => void;
   signal: AbortSignal;
   options?: UploadOptions;
+  /**
+   * Asked when the server holds the upload because another side has a file with the same
+   * SHA-256 (its warning names that side): true completes it, false abandons it. Without
+   * it, such an upload fails with the server's warning.
+   */
+  confirmDuplicate?: (warning: string) => Promise<boolean>;
 }): Promise<AcceptedTransfer | null> {
   const { sideId, file, details, io, onState, signal } = args;
   const firstPauseMs = args.options?.firstPauseMs ?? 1000;
@@ -436,15 +454,27 @@ export async function runUpload(args: {
     const parts = [...etags.entries()]
       .sort((a, b) => a[0] - b[0])
       .map(([partNumber, etag]) => ({ partNumber, etag }));
-    try {
-      const result = await persist(() =>
+    const complete = (confirmDuplicate: boolean) =>
+      persist(() =>
         io.api<AcceptedTransfer>("/api/uploads/complete", {
           method: "POST",
-          body: { uploadId: s.uploadId, parts, sha256, bytes: file.size, ...details },
+          body: { uploadId: s.uploadId, parts, sha256, bytes: file.size, ...details, confirmDuplicate },
         }),
       );
+    try {
+      let result: AcceptedTransfer;
+      try {
+        result = await complete(false);
+      } catch (err) {
+        if (!(err instanceof AppError && err.code === "duplicate_file" && args.confirmDuplicate)) throw err;
+        // The upload stays open on the server while the engineer decides.
+        onState((st) => ({ ...st, phase: "confirm", duplicate: err.message }));
+        if (!(await args.confirmDuplicate(err.message)) || cancelled()) throw new Cancelled();
+        onState((st) => ({ ...st, phase: "checking", duplicate: null }));
+        result = await complete(true);
+      }
       io.memory.remove(key);
-      onState((st) => ({ ...st, phase: "done", result, outage: null }));
+      onState((st) => ({ ...st, phase: "done", duplicate: null, result, outage: null }));
       return result;
     } catch (err) {
       // Refused (and what was stored deleted), or already closed: a new try starts afresh.
@@ -458,7 +488,7 @@ export async function runUpload(args: {
         await io.api("/api/uploads/abort", { method: "POST", body: { uploadId } }).catch(() => undefined);
         io.memory.remove(key);
       }
-      onState((st) => ({ ...st, phase: "cancelled", error: null, outage: null }));
+      onState((st) => ({ ...st, phase: "cancelled", error: null, duplicate: null, outage: null }));
       return null;
     }
     if (uploadClosed(err)) io.memory.remove(key);

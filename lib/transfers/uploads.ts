@@ -360,6 +360,9 @@ async function checkStoredParts(u: Upload, parts: { partNumber: number; etag: st
   } catch (err) {
     const { status } = storageAnswer(err);
     if (status === 405 || status === 501) return;
+    // An earlier completion of this upload assembled the parts and then gave the upload
+    // back (the engineer was asked to confirm a duplicate): its own object is the file.
+    if (status === 404 && (await objectExists(u.object_key))) return;
     if (status === 404)
       throw refusal(
         "The storage no longer holds this upload's parts. Upload the file again.",
@@ -514,6 +517,54 @@ async function assemble(u: Upload, parts: { partNumber: number; etag: string }[]
  * deletes its own object; success records the transfer and its event and moves the side
  * to "transferred", in one transaction.
  */
+interface SameFile {
+  transferId: string;
+  sideId: string;
+  designation: string;
+  shelfMark: string;
+  fileName: string;
+  uploadedBy: string | null;
+  createdAt: Date;
+}
+
+/** Flat transfers of other sides whose SHA-256 is this one: the same file, perhaps the wrong disc's. */
+async function sidesWithSameFile(sideId: string, sha256: string): Promise<SameFile[]> {
+  return db
+    .selectFrom("transfers as t")
+    .innerJoin("sides as s", "s.id", "t.side_id")
+    .innerJoin("discs as d", "d.id", "s.disc_id")
+    .leftJoin("users as u", "u.id", "t.uploaded_by")
+    .select([
+      "t.id as transferId",
+      "s.id as sideId",
+      "s.designation",
+      "d.shelf_mark as shelfMark",
+      "t.file_name as fileName",
+      "u.name as uploadedBy",
+      "t.created_at as createdAt",
+    ])
+    .where("t.sha256", "=", sha256)
+    .where("t.side_id", "<>", sideId)
+    .orderBy("t.created_at")
+    .limit(5)
+    .execute();
+}
+
+function duplicateFile(twins: SameFile[]): AppError {
+  const [first] = twins;
+  const day = first.createdAt.toISOString().slice(0, 10);
+  const more =
+    twins.length > 1 ? ` (and ${twins.length - 1} other side${twins.length === 2 ? "" : "s"})` : "";
+  return new AppError(
+    "duplicate_file",
+    409,
+    `This file is identical (same SHA-256) to the flat transfer of ${first.shelfMark} side ${first.designation}${more}, ` +
+      `uploaded as “${first.fileName}”${first.uploadedBy ? ` by ${first.uploadedBy}` : ""} on ${day}. ` +
+      `Two sides rarely give the same file: check that this is the right disc and side. Accept it only if it is.`,
+    { sameFileAs: twins.map((t) => `${t.shelfMark} side ${t.designation}`) },
+  );
+}
+
 export async function completeUpload(actor: SessionUser, input: unknown) {
   const c = completeUploadSchema.parse(input);
   const { upload, side } = await ownUpload(actor, c.uploadId);
@@ -561,6 +612,10 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
       if (err instanceof WavError) throw refusal(`Not accepted: ${err.message}`, { file: [err.message] });
       throw storageUnavailable("read the uploaded file's header", err);
     }
+    // The same file as another side's transfer (by the checksum worked out here): the
+    // upload goes back to open, not refused, so the engineer can confirm it or cancel it.
+    const twins = await sidesWithSameFile(side.id, sha256);
+    if (twins.length && !c.confirmDuplicate) throw duplicateFile(twins);
     return await db.transaction().execute(async (trx) => {
       const held = await trx
         .selectFrom("uploads")
@@ -629,6 +684,16 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
           stylusShape: c.stylusShape,
           measuredSpeedRpm: c.measuredSpeedRpm ?? null,
           chain: c.chain,
+          ...(twins.length
+            ? {
+                sameFileAs: twins.map((t) => ({
+                  sideId: t.sideId,
+                  shelfMark: t.shelfMark,
+                  side: t.designation,
+                  transferId: t.transferId,
+                })),
+              }
+            : {}),
         },
       });
       // The new transfer is the side's current one; what was rendered from the old one is superseded.

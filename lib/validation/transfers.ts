@@ -144,4 +144,6 @@ export const completeUploadSchema = uploadRefSchema.extend({
     z.coerce.number().positive("Measured speed must be above 0 rpm.").max(200).optional(),
   ),
   chain: z.string().trim().max(4000).default(""),
+  /** The engineer has seen that another side has a transfer with this SHA-256 and accepts this one anyway. */
+  confirmDuplicate: z.boolean().default(false),
 });

@@ -161,15 +161,25 @@ export async function uploadTransfer(
   sideId: string,
   bytes: Uint8Array,
   name: string,
-  opts: { sha256?: string } = {},
+  opts: { sha256?: string; confirmDuplicate?: boolean } = {},
 ) {
   const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, name, bytes.length);
   const parts = await sendParts(bytes, partSize, urls);
   const sha256 = opts.sha256 ?? sha256Of(bytes);
+  // Test files share a few seeded signals across their sides, so by default the engineer's
+  // confirmation of a file another side already has is given; the check itself has its
+  // own test (tests/integration/catalogue-table.test.ts), which does not give it.
   const done = await api("/api/uploads/complete", {
     cookie: c.engineer,
     method: "POST",
-    body: { uploadId, parts, sha256, bytes: bytes.length, ...transferDetails },
+    body: {
+      uploadId,
+      parts,
+      sha256,
+      bytes: bytes.length,
+      ...transferDetails,
+      confirmDuplicate: opts.confirmDuplicate ?? true,
+    },
   });
   return { key, uploadId, done };
 }

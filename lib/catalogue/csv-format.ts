@@ -202,7 +202,7 @@ const isBlank = (cells: string[]) => cells.every((c) => c.trim() === "");
 export function readCatalogueCsv(text: string): ReadSheet {
   let records: string[][];
   try {
-    records = parse(text, { bom: true, relax_column_count: true, skip_empty_lines: false }) as string[][];
+    records = parse(text, { bom: true, relax_column_count: true, skip_empty_lines: false });
   } catch (e) {
     if (e instanceof CsvError) return { rows: [], errors: [csvParseProblem(e)] };
     throw e;

@@ -120,7 +120,11 @@ function runChild(
     p.on("error", reject);
     p.on("close", (code) => {
       if (code !== 0) reject(new Error(`render child exited with ${code}`));
-      else resolve({ wallMs: performance.now() - t0, report: JSON.parse(out) });
+      else
+        resolve({
+          wallMs: performance.now() - t0,
+          report: JSON.parse(out) as Record<string, number | string | null>,
+        });
     });
   });
 }

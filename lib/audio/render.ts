@@ -377,11 +377,11 @@ export async function renderAccessCopy(opts: RenderOptions): Promise<RenderResul
         emitted += frames;
       });
     } catch (error) {
-      if (writer) await (writer as BwfWriter).abort();
+      if (writer) await writer.abort();
       throw error;
     }
     let gain = 1;
-    let written = writer ? await (writer as BwfWriter).close() : null;
+    let written = writer ? await writer.close() : null;
     let secondPass: RenderResult["secondPass"] = null;
 
     if (!written) {

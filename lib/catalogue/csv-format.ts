@@ -5,6 +5,7 @@
 import { CsvError, parse } from "csv-parse/sync";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
+import { valueText } from "@/lib/value-text";
 import {
   createDiscSchema,
   type DiscInput,
@@ -386,7 +387,7 @@ function sameValue(a: unknown, b: unknown): boolean {
 
 function shown(v: unknown): string {
   if (v === undefined || v === null || v === "" || (Array.isArray(v) && v.length === 0)) return "empty";
-  return `“${Array.isArray(v) ? v.join("; ") : String(v)}”`;
+  return `“${Array.isArray(v) ? v.join("; ") : valueText(v)}”`;
 }
 
 interface CheckedRow {

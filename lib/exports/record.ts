@@ -302,7 +302,7 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
         type: string,
         detail: string,
         objects: PremisEvent["objects"],
-        outcome = "success",
+        outcome: PremisEvent["outcome"] = "success",
         outcomeDetail?: string,
       ): PremisEvent => ({
         id: e.id,

@@ -161,7 +161,7 @@ export async function runRenderJob(renderId: string, ctx: RenderJobContext): Pro
       filter,
       outputPath,
       channelMode: job.channelMode,
-      output: { format: "pcm", bitsPerSample: job.bitDepth as 16 | 24 },
+      output: { format: "pcm", bitsPerSample: job.bitDepth },
       outputSampleRateHz: outputRateHz,
       bext: {
         description: description.slice(0, 256),

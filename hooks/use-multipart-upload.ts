@@ -212,7 +212,11 @@ export function useMultipartUpload() {
       hasher.init();
       const etags = new Map<number, string>(done);
       const running = new Set<Promise<void>>();
-      let failure: unknown = null;
+      // Held in an object: the part uploads set it from their callbacks.
+      const failed: { error: Error | null } = { error: null };
+      const throwIfFailed = () => {
+        if (failed.error) throw failed.error;
+      };
       let hashed = 0;
 
       const sendPart = async (n: number, body: ArrayBuffer) => {
@@ -247,7 +251,7 @@ export function useMultipartUpload() {
 
       for (let n = 1; n <= s.partCount; n++) {
         if (cancelled) throw new Cancelled("Cancelled.");
-        if (failure) throw failure;
+        throwIfFailed();
         const from = (n - 1) * s.partSize;
         const slice = await file.slice(from, Math.min(file.size, from + s.partSize)).arrayBuffer();
         hasher.update(new Uint8Array(slice));
@@ -258,17 +262,17 @@ export function useMultipartUpload() {
           continue;
         }
         while (running.size >= CONCURRENCY) await Promise.race(running);
-        if (failure) throw failure;
+        throwIfFailed();
         const p: Promise<void> = sendPart(n, slice)
           .catch((err) => {
-            failure ??= err;
+            failed.error ??= err instanceof Error ? err : new Error(String(err));
           })
           .finally(() => running.delete(p));
         running.add(p);
         report(hashed);
       }
       await Promise.all(running);
-      if (failure) throw failure;
+      throwIfFailed();
       const sha256 = hasher.digest("hex");
 
       setState((st) => ({ ...st, phase: "checking", sentBytes: file.size, hashedBytes: file.size }));

@@ -19,6 +19,7 @@ import {
   formatNumber,
 } from "@/lib/curves";
 import { channelModeLabels, evidenceLabels } from "@/lib/validation/transfers";
+import { valueText } from "@/lib/value-text";
 
 type P = Record<string, any>;
 
@@ -129,17 +130,13 @@ function shaShort(sha: unknown): string {
 }
 
 const idOf = (v: unknown): string | undefined =>
-  typeof v === "string"
-    ? v
-    : v && typeof v === "object" && "id" in v
-      ? String((v as { id: unknown }).id)
-      : undefined;
+  typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String(v.id) : undefined;
 
 const objectWords = (kind: unknown) => (kind === "render" ? "access copy" : "flat transfer");
 
 /** A status in running text; a status this page does not know yet is still readable ("needs_render" → "needs render"). */
 function statusWords(status: unknown): string {
-  const s = String(status ?? "?");
+  const s = valueText(status ?? "?");
   const label = statusLabel(s);
   return (label === s ? s.replace(/_/g, " ") : label).toLowerCase();
 }
@@ -167,7 +164,7 @@ function plainValue(v: unknown): string | null {
   if (v === null || v === undefined || v === "") return null;
   if (typeof v === "string" || typeof v === "number" || typeof v === "boolean") return String(v);
   if (typeof v === "object" && v && "status" in v && Object.keys(v).length === 1)
-    return statusWords((v as { status: unknown }).status);
+    return statusWords(v.status);
   return null;
 }
 

@@ -155,6 +155,8 @@ export function AuditionPanel({
     if (!p) return;
     try {
       p.setCandidates(candidates);
+      // The player is outside React: what it answers to the new chains is shown once it has them.
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- reports the outside player's answer
       setPlayError(null);
     } catch (err) {
       setPlayError(err instanceof Error ? err.message : String(err));
@@ -243,6 +245,7 @@ export function AuditionPanel({
   const [autoPlay, setAutoPlay] = useState(false);
   useEffect(() => {
     if (autoPlay && win.data && acknowledged) {
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- one play per click, started once the window has arrived
       setAutoPlay(false);
       void play();
     }
@@ -543,7 +546,7 @@ function Overview({
       aria-label="Peak levels across the side. Click to listen from a place; the slider below does the same from the keyboard."
       data-testid="audition-overview"
       onClick={(e) => {
-        const r = (e.currentTarget as SVGSVGElement).getBoundingClientRect();
+        const r = e.currentTarget.getBoundingClientRect();
         onPick(((e.clientX - r.left) / r.width) * duration);
       }}
     >

@@ -7,7 +7,7 @@
  * transfer through the curve, and sent for review.
  */
 import { useQuery } from "@tanstack/react-query";
-import { useCallback, useEffect, useId, useMemo, useState } from "react";
+import { useCallback, useId, useMemo, useState } from "react";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { CURVE_COLORS } from "@/components/curves/plot-format";
 import { ResponsePlot } from "@/components/curves/response-plot";
@@ -64,9 +64,7 @@ export function BenchView({
     renders.data?.renders.find((r) => r.id === data?.side.currentRenderId && r.status === "done") ?? null;
   // A curve picked in the listening panel, for the form (only while the recorded choice is the one it was picked against).
   const [prefill, setPrefill] = useState<(ChoicePrefill & { against: string | null }) | null>(null);
-  useEffect(() => {
-    if (prefill && prefill.against !== (current?.id ?? null)) setPrefill(null);
-  }, [current?.id, prefill]);
+  if (prefill && prefill.against !== (current?.id ?? null)) setPrefill(null);
   const speeds = current
     ? { cut: current.cutSpeedRpm, transfer: current.transferSpeedRpm }
     : { cut: data?.disc.nominalSpeedRpm ?? 78, transfer: data?.disc.nominalSpeedRpm ?? 78 };

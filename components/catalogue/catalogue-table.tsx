@@ -213,6 +213,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
     [canAssign],
   );
 
+  // eslint-disable-next-line react-hooks/incompatible-library -- the app is not built with React Compiler, whose memoizing this guards
   const table = useReactTable({
     data: discs.data?.rows ?? [],
     columns,

@@ -10,6 +10,7 @@ import { controlClass, FieldShell } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
 import { fetchJson } from "@/lib/http/client";
+import { valueText } from "@/lib/value-text";
 import type { AppError } from "@/lib/http/errors";
 import {
   conditionFlags,
@@ -78,7 +79,7 @@ const blankSide = (designation: string): SideValues => ({
 });
 
 export function toFormValues(d: DiscJson): DiscFormValues {
-  const s = (v: unknown) => (v === null || v === undefined ? "" : String(v));
+  const s = (v: unknown) => (v === null || v === undefined ? "" : valueText(v));
   return {
     accessionId: d.accessionId,
     shelfMark: d.shelfMark,
@@ -213,7 +214,7 @@ export function DiscForm({
 
   const save = useMutation<{ disc: DiscJson }, AppError, { body: unknown; yours: DiscFormValues }>({
     mutationFn: ({ body }) =>
-      fetchJson(editing ? `/api/discs/${initial!.id}` : "/api/discs", {
+      fetchJson(editing ? `/api/discs/${initial.id}` : "/api/discs", {
         method: editing ? "PATCH" : "POST",
         body: JSON.stringify(body),
       }),
@@ -358,7 +359,7 @@ export function DiscForm({
 
   return (
     <form
-      onSubmit={onSubmit}
+      onSubmit={(e) => void onSubmit(e)}
       noValidate
       className="space-y-6"
       data-testid="disc-form"
@@ -666,7 +667,7 @@ export function DiscForm({
           {save.isPending ? "Saving…" : editing ? "Save changes" : "Catalogue this disc"}
         </Button>
         <Link
-          href={editing ? `/catalogue/${initial!.id}` : "/catalogue"}
+          href={editing ? `/catalogue/${initial.id}` : "/catalogue"}
           className="rounded px-3 py-2 text-sm text-ink-soft hover:text-ink"
         >
           Cancel

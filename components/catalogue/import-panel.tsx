@@ -35,16 +35,22 @@ function formatSize(bytes: number): string {
   return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
 }
 
+/** What an answer that is not the one hoped for says, as far as this panel reads it. */
+function failureOf(body: unknown): { message?: string; errors?: unknown } {
+  const b = (body ?? {}) as { error?: { message?: string }; errors?: unknown };
+  return { message: b.error?.message, errors: b.errors };
+}
+
 async function send(
   url: string,
   file: File,
   fields: Record<string, string>,
-): Promise<{ status: number; body: any }> {
+): Promise<{ status: number; body: unknown }> {
   const form = new FormData();
   form.set("file", file, file.name);
   for (const [k, v] of Object.entries(fields)) if (v) form.set(k, v);
   const res = await fetch(url, { method: "POST", body: form, headers: { accept: "application/json" } });
-  const body = await res.json().catch(() => null);
+  const body: unknown = await res.json().catch(() => null);
   return { status: res.status, body };
 }
 
@@ -75,7 +81,7 @@ export function ImportPanel({
       if (status === 200) setReport(body as ImportReport);
       else {
         setReport(null);
-        setProblem(body?.error?.message ?? `The server answered ${status}.`);
+        setProblem(failureOf(body).message ?? `The server answered ${status}.`);
       }
     } catch {
       setReport(null);
@@ -99,12 +105,12 @@ export function ImportPanel({
         setDone(body as Imported);
         setReport(null);
         setFile(null);
-      } else if (status === 422 && Array.isArray(body?.errors)) {
+      } else if (status === 422 && Array.isArray(failureOf(body).errors)) {
         // The catalogue changed since the preview: show what is wrong now.
         setReport(body as ImportReport);
-        setProblem(body.error?.message ?? "Nothing was imported.");
+        setProblem(failureOf(body).message ?? "Nothing was imported.");
       } else {
-        setProblem(body?.error?.message ?? `The server answered ${status}.`);
+        setProblem(failureOf(body).message ?? `The server answered ${status}.`);
       }
     } catch {
       setProblem("The import could not be sent. Nothing was written; try again.");
@@ -446,7 +452,11 @@ export function ImportPanel({
                   ? "Importing is possible once every problem above is fixed."
                   : `All ${plural(report.discs, "disc")} go in as one change: if anything fails, none are written.`}
               </p>
-              <Button onClick={commit} disabled={blocked || phase !== "idle"} data-testid="import-confirm">
+              <Button
+                onClick={() => void commit()}
+                disabled={blocked || phase !== "idle"}
+                data-testid="import-confirm"
+              >
                 {phase === "importing" ? "Importing…" : `Import ${plural(report.discs, "disc")}`}
               </Button>
             </div>

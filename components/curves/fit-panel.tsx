@@ -12,7 +12,6 @@ import { Notice } from "@/components/ui/notice";
 import {
   analogGainDb,
   analogModel,
-  type CornerName,
   CurveError,
   type CurvePoint,
   type CurveSpec,
@@ -277,7 +276,7 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
         <tbody className="font-mono">
           {result.corners.map((c) => (
             <tr key={c.parameter} className="border-t border-paper-edge/70">
-              <td className="py-1 pr-2 font-sans">{PARAM_LABEL[c.parameter as CornerName]}</td>
+              <td className="py-1 pr-2 font-sans">{PARAM_LABEL[c.parameter]}</td>
               <td className="py-1 pr-2 text-right">{formatNumber(c.tauUs, 5)}</td>
               <td className="py-1 pr-2 text-right">{formatNumber(c.hz, 5)}</td>
               <td className="py-1 pr-2 text-right">{c.db10k !== undefined ? c.db10k.toFixed(2) : ""}</td>

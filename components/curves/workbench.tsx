@@ -119,9 +119,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
 
   const check = useMemo(() => checkSpec(spec), [spec]);
   const [lastGood, setLastGood] = useState<CurveSpec>(RIAA_SPEC);
-  useEffect(() => {
-    if (!check.error) setLastGood(spec);
-  }, [check, spec]);
+  if (!check.error && lastGood !== spec) setLastGood(spec);
   const shownSpec = check.error ? lastGood : spec;
   const shownDesc = useMemo(() => checkSpec(shownSpec).desc, [shownSpec]);
   // The filter design takes tens of milliseconds; let typing settle first.
@@ -177,7 +175,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
             <span className="text-ink-faint">Loading the preset…</span>
           ) : presetQuery.error ? (
             <Notice tone="error" title="The preset could not be loaded">
-              {(presetQuery.error as Error).message}
+              {presetQuery.error.message}
             </Notice>
           ) : loaded ? (
             <>
@@ -474,7 +472,7 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
           ) : versionsQuery.isLoading ? (
             <p className="text-sm text-ink-faint">Loading…</p>
           ) : versionsQuery.error ? (
-            <p className="text-sm text-alarm">{(versionsQuery.error as Error).message}</p>
+            <p className="text-sm text-alarm">{versionsQuery.error.message}</p>
           ) : (
             <ol className="space-y-3" data-testid="version-history">
               {[...(versionsQuery.data?.versions ?? [])]
@@ -540,7 +538,7 @@ function SummaryStrip({ desc, stale }: { desc: CurveDescription | null; stale: b
   if (!desc || !gains) return null;
   const c = desc.curve;
   const taus = (["shelf", "turnover", "rolloff", "highpass", "ultrasonic"] as const).flatMap((n) =>
-    c[n] ? [{ n, tau: c[n]!.filterTauUs }] : [],
+    c[n] ? [{ n, tau: c[n].filterTauUs }] : [],
   );
   return (
     <dl

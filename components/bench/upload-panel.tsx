@@ -81,7 +81,8 @@ export function UploadPanel({
           <div
             {...dz.getRootProps({
               className: cx(
-                "flex min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl border-2 border-dashed px-4 py-6 text-center transition-colors",
+                "flex min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl " +
+                  "border-2 border-dashed px-4 py-6 text-center transition-colors",
                 dz.isDragActive
                   ? "border-groove bg-groove-wash"
                   : "border-paper-edge bg-paper/50 hover:border-ink-faint",

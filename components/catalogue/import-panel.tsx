@@ -474,7 +474,10 @@ export function ImportPanel({
             <a
               href={templateHref}
               download="rillbook-catalogue-template.csv"
-              className="inline-flex h-9 items-center justify-center gap-2 rounded-md border border-paper-edge bg-white px-3 text-sm font-medium text-ink transition-colors hover:border-ink-faint"
+              className={
+                "inline-flex h-9 items-center justify-center gap-2 rounded-md border border-paper-edge " +
+                "bg-white px-3 text-sm font-medium text-ink transition-colors hover:border-ink-faint"
+              }
               data-testid="import-template"
             >
               Download the template CSV

@@ -261,7 +261,9 @@ export function readCatalogueCsv(text: string): ReadSheet {
         {
           row: maxImportRows + 2,
           column: "",
-          message: `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ${maxImportRows.toLocaleString("en-GB")}. Split it into several files.`,
+          message:
+            `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ` +
+            `${maxImportRows.toLocaleString("en-GB")}. Split it into several files.`,
         },
       ],
     };
@@ -476,7 +478,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
       errors.push({
         row: r.row,
         column: "shelf_mark",
-        message: `Shelf mark ${shelfMark} is already used by the disc at row ${firstRow}. Each disc needs its own shelf mark, and a disc's rows must sit together.`,
+        message:
+          `Shelf mark ${shelfMark} is already used by the disc at row ${firstRow}. Each disc ` +
+          `needs its own shelf mark, and a disc's rows must sit together.`,
       });
       r.ok = false;
     } else if (r.key) {
@@ -499,7 +503,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
             errors.push({
               row: r.row,
               column,
-              message: `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} there. Every row of a disc must repeat the same disc values.`,
+              message:
+                `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} ` +
+                `there. Every row of a disc must repeat the same disc values.`,
             });
           }
         }
@@ -512,7 +518,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
         errors.push({
           row: r.row,
           column: "side",
-          message: `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other rows. Give every row a side; a disc without sides takes one row.`,
+          message:
+            `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other ` +
+            `rows. Give every row a side; a disc without sides takes one row.`,
         });
       }
       if (!r.side) continue;

@@ -36,7 +36,9 @@ async function main(): Promise<void> {
   await migrateToLatest({ ownerUrl: url });
   const db = createDb(url, 4);
   const t0 = performance.now();
-  await sql`INSERT INTO accessions (identifier, source, received_on) SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(
+  await sql`
+    INSERT INTO accessions (identifier, source, received_on)
+    SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(
     db,
   );
   const labels = [
@@ -84,7 +86,8 @@ async function main(): Promise<void> {
     "Selby",
   ];
   await sql`
-    INSERT INTO discs (accession_id, shelf_mark, label_name, catalogue_number, format, nominal_speed_rpm, groove, cut, recorded_from_year, recorded_to_year, condition_grade)
+    INSERT INTO discs (accession_id, shelf_mark, label_name, catalogue_number, format, nominal_speed_rpm, groove, cut,
+                       recorded_from_year, recorded_to_year, condition_grade)
     SELECT (SELECT id FROM accessions ORDER BY identifier OFFSET (g % 50) LIMIT 1),
            'BX-' || lpad(g::text, 7, '0'),
            (${labels}::text[])[1 + g % 10],
@@ -113,7 +116,10 @@ async function main(): Promise<void> {
     UPDATE discs d SET
       search_tsv = to_tsvector('simple', d.label_name || ' ' || d.catalogue_number || ' ' || coalesce(s.words, '')),
       search_codes = lower(d.shelf_mark || ' ' || d.catalogue_number || ' ' || coalesce(s.codes, ''))
-    FROM (SELECT disc_id, string_agg(title || ' ' || performers || ' ' || matrix_number, ' ') words, string_agg(matrix_number, ' ') codes FROM sides GROUP BY disc_id) s
+    FROM (SELECT disc_id,
+                 string_agg(title || ' ' || performers || ' ' || matrix_number, ' ') words,
+                 string_agg(matrix_number, ' ') codes
+          FROM sides GROUP BY disc_id) s
     WHERE d.id = s.disc_id`.execute(db);
   await sql`VACUUM ANALYZE`.execute(db);
   const counts = await sql<{

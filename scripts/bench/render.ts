@@ -192,19 +192,25 @@ async function main(): Promise<void> {
     const mb = (kb: number | string | null) =>
       typeof kb !== "number" ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`;
     console.log(
-      `RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`,
+      `RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} ` +
+        `dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`,
     );
     console.log(
-      `Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`,
+      `Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ` +
+        `${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× ` +
+        `real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`,
     );
     console.log(
       `sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`,
     );
     console.log(
-      `sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`,
+      `sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} ` +
+        `s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`,
     );
     console.log(
-      `ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)} against sox fir (the same filter); ${(ours / (samples / biquadS)).toFixed(2)} against sox biquad (the IIR sections: the curve's magnitude, not its phase)`,
+      `ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)} against sox fir (the ` +
+        `same filter); ${(ours / (samples / biquadS)).toFixed(2)} against sox biquad (the ` +
+        `IIR sections: the curve's magnitude, not its phase)`,
     );
     console.log(
       `Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`,
@@ -217,7 +223,11 @@ async function main(): Promise<void> {
     await rm(output, { force: true });
     const trimmedS = (trimmed.report.renderMs as number) / 1000;
     console.log(
-      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, peak RSS ${mb(trimmed.report.maxRssKb)}`,
+      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} ` +
+        `dB, two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, ` +
+        `read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} ` +
+        `M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, peak RSS ` +
+        `${mb(trimmed.report.maxRssKb)}`,
     );
     // The two figures on lines of their own, for scripts that read them.
     console.log(`ratio one pass: ${(ours / theirs).toFixed(2)}`);

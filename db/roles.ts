@@ -1,4 +1,5 @@
 import { type Kysely, sql } from "kysely";
+import type { Database } from "./types";
 
 /**
  * Rillbook's two database roles.
@@ -47,7 +48,7 @@ export function roleOf(url: string): string {
  * refuse_*: the convention of the provenance log and the preset versions). A later
  * migration that makes a table append-only that way is covered without a list to edit.
  */
-async function guardedTables(db: Kysely<any>): Promise<string[]> {
+async function guardedTables(db: Kysely<Database>): Promise<string[]> {
   const { rows } = await sql<{ table: string }>`
     SELECT DISTINCT c.relname AS table
     FROM pg_trigger t
@@ -59,14 +60,14 @@ async function guardedTables(db: Kysely<any>): Promise<string[]> {
   return rows.map((r) => r.table);
 }
 
-async function tableExists(db: Kysely<any>, schema: string, table: string): Promise<boolean> {
+async function tableExists(db: Kysely<Database>, schema: string, table: string): Promise<boolean> {
   const { rows } = await sql<{
     ok: boolean;
   }>`SELECT to_regclass(${`${schema}.${table}`}) IS NOT NULL AS ok`.execute(db);
   return rows[0]?.ok ?? false;
 }
 
-async function schemaExists(db: Kysely<any>, schema: string): Promise<boolean> {
+async function schemaExists(db: Kysely<Database>, schema: string): Promise<boolean> {
   const { rows } = await sql<{
     ok: boolean;
   }>`SELECT EXISTS (SELECT 1 FROM pg_namespace WHERE nspname = ${schema}) AS ok`.execute(db);
@@ -77,7 +78,7 @@ async function schemaExists(db: Kysely<any>, schema: string): Promise<boolean> {
  * Gives the app's role exactly what it needs, run as the owner after the migrations.
  * Idempotent. Answers the append-only tables it withheld changes from.
  */
-export async function grantAppRole(db: Kysely<any>, appRole: string): Promise<string[]> {
+export async function grantAppRole(db: Kysely<Database>, appRole: string): Promise<string[]> {
   const { rows } = await sql<{
     owner: string;
     database: string;

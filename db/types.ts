@@ -5,7 +5,6 @@ import type { StoredCurveSpec, StoredRenderFilter } from "../lib/validation/reco
 type Timestamp = ColumnType<Date, Date | string, Date | string>;
 /** A timestamp the database fills in by default. */
 type DefaultTimestamp = ColumnType<Date, Date | string | undefined, Date | string>;
-type Json = ColumnType<unknown, string, string>;
 
 export interface UsersTable {
   id: Generated<string>;

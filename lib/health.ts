@@ -6,7 +6,8 @@ import { env } from "./env";
 import { createMailTransport } from "./mail/transport";
 import { s3 } from "./storage/s3";
 
-export type ServiceState = "ok" | string;
+/** "ok", or what went wrong. */
+export type ServiceState = string;
 
 async function probe(check: () => Promise<unknown>, timeoutMs = 3000): Promise<ServiceState> {
   try {

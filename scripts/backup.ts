@@ -104,7 +104,8 @@ async function copyObject(dir: string, o: ManifestObject): Promise<{ sha256: str
   if ((o.sha256 && sha256 !== o.sha256) || (o.bytes !== null && bytes !== o.bytes)) {
     await fs.rm(partial, { force: true });
     throw new Error(
-      `${o.kind} object ${o.key} in the bucket differs from the record: ${bytes} bytes, SHA-256 ${sha256}; the record says ${o.bytes ?? "?"} bytes, ${o.sha256 ?? "?"}`,
+      `${o.kind} object ${o.key} in the bucket differs from the record: ${bytes} bytes, ` +
+        `SHA-256 ${sha256}; the record says ${o.bytes ?? "?"} bytes, ${o.sha256 ?? "?"}`,
     );
   }
   await fs.rename(partial, file);
@@ -285,7 +286,8 @@ async function main(): Promise<number> {
   const c = finished.counts;
   console.log(`backup written to ${dir}`);
   console.log(
-    `  database: ${finished.database.name}, ${dumpStat.bytes} bytes (pg_dump custom format), chain head ${finished.chainHead ? `entry ${finished.chainHead.seq}` : "none"}`,
+    `  database: ${finished.database.name}, ${dumpStat.bytes} bytes (pg_dump custom ` +
+      `format), chain head ${finished.chainHead ? `entry ${finished.chainHead.seq}` : "none"}`,
   );
   console.log(
     `  manifest: ${c.objects} objects (${c.transfers} transfers, ${c.renders} renders, ${c.checkpoints} checkpoints), ${c.objectBytes} bytes`,

@@ -89,7 +89,26 @@ async function vitest(env: NodeJS.ProcessEnv, args: string[]): Promise<number> {
   return code;
 }
 
+/** Runs an npm script of package.json; resolves with its exit code. */
+function npmScript(name: string): Promise<number> {
+  return new Promise<number>((resolve) => {
+    const child = spawn("npm", ["run", "--silent", name], { cwd: root, stdio: "inherit" });
+    child.on("close", (c) => resolve(c ?? 1));
+  });
+}
+
+/** ESLint and Prettier over the tree: both run, so one run shows every finding. */
+async function checks(): Promise<boolean> {
+  log("lint (ESLint) and format:check (Prettier)");
+  const lint = await npmScript("lint");
+  const format = await npmScript("format:check");
+  if (lint !== 0) log("lint found problems: fix them (`npm run lint`)");
+  if (format !== 0) log("format:check found unformatted files: run `npm run format`");
+  return lint === 0 && format === 0;
+}
+
 async function test(args: string[]): Promise<number> {
+  if (!(await checks())) return 1;
   const p = profile("test");
   await stopAll(p); // leftovers of an interrupted run
   await fs.rm(p.dir, { recursive: true, force: true });

@@ -187,7 +187,8 @@ async function design(values: Values): Promise<void> {
     if (!c) continue;
     const extra = c.db10k !== undefined ? `, ${formatRolloffDb(c.db10k)}` : "";
     lines.push(
-      `${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra} (entered ${c.entered.value} ${c.entered.unit}; filter uses ${fmt(c.filterTauUs, 3)} µs)`,
+      `${c.parameter.padEnd(10)} ${fmt(c.tauUs, 2)} µs = ${fmt(c.hz, 2)} Hz${extra} (entered ` +
+        `${c.entered.value} ${c.entered.unit}; filter uses ${fmt(c.filterTauUs, 3)} µs)`,
     );
   }
   if (lines.length === 0) lines.push("flat curve (no corners)");
@@ -211,7 +212,8 @@ async function design(values: Values): Promise<void> {
       maxPhaseErrorDeg: number;
     };
     lines.push(
-      `render filter: FIR, ${rf.taps.length} taps, delay ${rf.delaySamples} samples, worst ${rf.maxErrorDb.toExponential(2)} dB, ${rf.maxPhaseErrorDeg.toExponential(2)}°`,
+      `render filter: FIR, ${rf.taps.length} taps, delay ${rf.delaySamples} samples, ` +
+        `worst ${rf.maxErrorDb.toExponential(2)} dB, ${rf.maxPhaseErrorDeg.toExponential(2)}°`,
     );
   }
   process.stdout.write(lines.join("\n") + "\n");
@@ -362,6 +364,6 @@ async function main(argv: string[]): Promise<number> {
   }
 }
 
-main(process.argv.slice(2)).then((code) => {
+void main(process.argv.slice(2)).then((code) => {
   process.exitCode = code;
 });

@@ -63,7 +63,9 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.a
   const { DATABASE_URL, DATABASE_OWNER_URL } = env();
   if (!DATABASE_OWNER_URL) {
     console.warn(
-      "DATABASE_OWNER_URL is not set: migrating as DATABASE_URL's role, which then owns the tables and could switch off the provenance log's guards. Set up the two roles (README, \"Database roles\").",
+      "DATABASE_OWNER_URL is not set: migrating as DATABASE_URL's role, which then owns " +
+        "the tables and could switch off the provenance log's guards. Set up the two roles " +
+        '(README, "Database roles").',
     );
   }
   migrateToLatest({ ownerUrl: DATABASE_OWNER_URL ?? DATABASE_URL, appUrl: DATABASE_URL })

@@ -143,7 +143,8 @@ async function main(): Promise<number> {
     await s3().send(new HeadBucketCommand({ Bucket: e.S3_BUCKET }));
   } catch (err) {
     throw new Refused(
-      `the bucket ${e.S3_BUCKET} at ${e.S3_ENDPOINT} cannot be reached (${(err as Error)?.name ?? "error"}): create it first, with versioning or object lock as for production`,
+      `the bucket ${e.S3_BUCKET} at ${e.S3_ENDPOINT} cannot be reached (${(err as Error)?.name ?? "error"}): ` +
+        `create it first, with versioning or object lock as for production`,
     );
   }
 
@@ -157,7 +158,10 @@ async function main(): Promise<number> {
     );
     if (rows[0].n > 0) {
       throw new Refused(
-        `the database ${target} already holds ${rows[0].n} tables: a restore goes only into an empty database. Make one as the owner role, e.g. \`CREATE DATABASE ${target}_restored OWNER ${roleOf(ownerUrl)}\`, point DATABASE_OWNER_URL and DATABASE_URL at it, and run the restore again.`,
+        `the database ${target} already holds ${rows[0].n} tables: a restore goes only ` +
+          `into an empty database. Make one as the owner role, e.g. \`CREATE DATABASE ${target}_restored ` +
+          `OWNER ${roleOf(ownerUrl)}\`, point DATABASE_OWNER_URL and DATABASE_URL at it, ` +
+          `and run the restore again.`,
       );
     }
 
@@ -204,7 +208,8 @@ async function main(): Promise<number> {
         const local = await hashFile(file);
         if ((o.sha256 && local.sha256 !== o.sha256) || (o.bytes !== null && local.bytes !== o.bytes)) {
           differences.push(
-            `${o.kind} object ${o.key} in the backup is damaged: SHA-256 ${local.sha256}, ${local.bytes} bytes; the manifest says ${o.sha256 ?? "?"}, ${o.bytes ?? "?"} bytes; not put back`,
+            `${o.kind} object ${o.key} in the backup is damaged: SHA-256 ${local.sha256}, ${local.bytes} ` +
+              `bytes; the manifest says ${o.sha256 ?? "?"}, ${o.bytes ?? "?"} bytes; not put back`,
           );
           continue;
         }
@@ -304,7 +309,8 @@ async function verify(
     if (!got) differences.push(`${o.kind} object ${o.key} is missing from the bucket`);
     else if ((o.sha256 && got.sha256 !== o.sha256) || (o.bytes !== null && got.bytes !== o.bytes)) {
       differences.push(
-        `${o.kind} object ${o.key} differs: the bucket holds ${got.bytes} bytes with SHA-256 ${got.sha256}; the manifest says ${o.bytes ?? "?"} bytes, ${o.sha256 ?? "?"}`,
+        `${o.kind} object ${o.key} differs: the bucket holds ${got.bytes} bytes with SHA-256 ` +
+          `${got.sha256}; the manifest says ${o.bytes ?? "?"} bytes, ${o.sha256 ?? "?"}`,
       );
     } else whole++;
   }
@@ -315,7 +321,9 @@ async function verify(
     `  backup: ${description.software}, taken ${description.startedAt} from ${description.database.name}`,
   );
   console.log(
-    `  provenance chain: ${chain.ok ? "verified" : "NOT verified"}, ${chain.events} entries, head ${head ? `entry ${head.seq}` : "none"}, ${chain.checkpoints.checked} of ${chain.checkpoints.total} checkpoints met`,
+    `  provenance chain: ${chain.ok ? "verified" : "NOT verified"}, ${chain.events} ` +
+      `entries, head ${head ? `entry ${head.seq}` : "none"}, ${chain.checkpoints.checked} ` +
+      `of ${chain.checkpoints.total} checkpoints met`,
   );
   console.log(
     `  objects: ${whole} of ${manifest.objects.length} present with the manifest's size and SHA-256`,

@@ -20,12 +20,13 @@ export async function acceptInvitationAction(_prev: ActionState, form: FormData)
 }
 
 export async function requestResetAction(_prev: ActionState, form: FormData): Promise<ActionState> {
+  const email = form.get("email");
   return runAction(
     async () => {
-      await requestPasswordReset({ email: form.get("email") });
+      await requestPasswordReset({ email });
       return "If that address belongs to an active account, a link to choose a new password is on its way. It works once, for two hours.";
     },
-    { email: String(form.get("email") ?? "") },
+    { email: typeof email === "string" ? email : "" },
   );
 }
 

@@ -157,7 +157,8 @@ export function ChainCheck() {
               <p data-testid="chain-checkpoints">
                 {report.checkpoints.total === 0
                   ? "No checkpoint in the bucket yet to check it against."
-                  : `It agrees with all ${report.checkpoints.checked} checkpoint${report.checkpoints.checked === 1 ? "" : "s"} read from the bucket (not from the database, whose copy could be rewritten too).`}
+                  : `It agrees with all ${report.checkpoints.checked} checkpoint${report.checkpoints.checked === 1 ? "" : "s"} ` +
+                    `read from the bucket (not from the database, whose copy could be rewritten too).`}
               </p>
             </Notice>
           ) : report.contradicts ? (

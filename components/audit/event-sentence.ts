@@ -20,6 +20,7 @@ import {
 } from "@/lib/curves";
 import { channelModeLabels } from "@/lib/audio/channel-mode";
 import { evidenceLabels } from "@/lib/validation/transfers";
+import { valueText } from "@/lib/value-text";
 
 type P = Record<string, any>;
 
@@ -130,17 +131,13 @@ function shaShort(sha: unknown): string {
 }
 
 const idOf = (v: unknown): string | undefined =>
-  typeof v === "string"
-    ? v
-    : v && typeof v === "object" && "id" in v
-      ? String((v as { id: unknown }).id)
-      : undefined;
+  typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String(v.id) : undefined;
 
 const objectWords = (kind: unknown) => (kind === "render" ? "access copy" : "flat transfer");
 
 /** A status in running text; a status this page does not know yet is still readable ("needs_render" → "needs render"). */
 function statusWords(status: unknown): string {
-  const s = String(status ?? "?");
+  const s = valueText(status ?? "?");
   const label = statusLabel(s);
   return (label === s ? s.replace(/_/g, " ") : label).toLowerCase();
 }
@@ -163,12 +160,28 @@ function bytesText(n: unknown): string {
     : formatBytes(v);
 }
 
+/** "1 row", "3 rows". */
+function counted(n: unknown, word: string): string {
+  return `${valueText(n)} ${word}${n === 1 ? "" : "s"}`;
+}
+
+/** ", 3 discs" from an import's list of discs or its count of them; "" when it names neither. */
+function importedDiscs(discs: unknown): string {
+  if (Array.isArray(discs)) return `, ${counted(discs.length, "disc")}`;
+  return typeof discs === "number" ? `, ${counted(discs, "disc")}` : "";
+}
+
+/** "stereo", "mono", "6 channels". */
+function channelsText(channels: unknown): string {
+  return channels === 2 ? "stereo" : channels === 1 ? "mono" : `${valueText(channels)} channels`;
+}
+
 /** A payload value in a detail line, for kinds this page has no words for yet. */
 function plainValue(v: unknown): string | null {
   if (v === null || v === undefined || v === "") return null;
   if (typeof v === "string" || typeof v === "number" || typeof v === "boolean") return String(v);
   if (typeof v === "object" && v && "status" in v && Object.keys(v).length === 1)
-    return statusWords((v as { status: unknown }).status);
+    return statusWords(v.status);
   return null;
 }
 
@@ -232,7 +245,7 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       if (p.fileName) d.push({ label: "File", value: String(p.fileName) });
       if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
       return {
-        sentence: `${who} committed a spreadsheet import${p.rows ? ` of ${p.rows} row${p.rows === 1 ? "" : "s"}` : ""}${Array.isArray(p.discs) ? `, ${p.discs.length} disc${p.discs.length === 1 ? "" : "s"}` : typeof p.discs === "number" ? `, ${p.discs} disc${p.discs === 1 ? "" : "s"}` : ""}.`,
+        sentence: `${who} committed a spreadsheet import${p.rows ? ` of ${counted(p.rows, "row")}` : ""}${importedDiscs(p.discs)}.`,
         details: d,
         tone: "plain",
       };
@@ -283,7 +296,9 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
     case "side.status_changed": {
       const why = p.note ?? p.reason;
       return {
-        sentence: `${who === "The system" ? "Rillbook" : who} moved ${side}${on} from ${statusWords(p.before?.status)} to ${statusWords(p.after?.status)}${why ? `: ${String(why).replace(/\.$/, "")}` : ""}.`,
+        sentence:
+          `${who === "The system" ? "Rillbook" : who} moved ${side}${on} from ${statusWords(p.before?.status)} ` +
+          `to ${statusWords(p.after?.status)}${why ? `: ${String(why).replace(/\.$/, "")}` : ""}.`,
         details: [],
         tone: "plain",
       };
@@ -333,13 +348,18 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       if (t.sampleRateHz)
         d.push({
           label: "Technical",
-          value:
-            `${t.container ?? ""} ${String(t.encoding ?? "").toUpperCase()} ${t.bitsPerSample ?? "?"}-bit · ${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${t.channels === 2 ? "stereo" : t.channels === 1 ? "mono" : `${t.channels} channels`}${t.durationSeconds ? ` · ${Number(t.durationSeconds).toFixed(1)} s` : ""}`.trim(),
+          value: (
+            `${t.container ?? ""} ${String(t.encoding ?? "").toUpperCase()} ${t.bitsPerSample ?? "?"}-bit ` +
+            `· ${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${channelsText(t.channels)}` +
+            `${t.durationSeconds ? ` · ${Number(t.durationSeconds).toFixed(1)} s` : ""}`
+          ).trim(),
         });
       if (p.objectKey) d.push({ label: "Stored as", value: String(p.objectKey), mono: true });
       const sha = shaShort(p.sha256);
       return {
-        sentence: `${who} uploaded the flat transfer ${fileNameOf(p)} of ${side}${on}${sha ? ` (${sha})` : ""}; its size, checksum and header were checked and it was accepted.`,
+        sentence:
+          `${who} uploaded the flat transfer ${fileNameOf(p)} of ${side}${on}${sha ? ` (${sha})` : ""}; ` +
+          `its size, checksum and header were checked and it was accepted.`,
         details: d,
         tone: "plain",
       };
@@ -387,14 +407,20 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       if (f.kind)
         d.push({
           label: "Filter",
-          value: `${f.kind === "fir" ? "FIR" : f.kind}${f.taps ? `, ${f.taps} taps` : ""}${f.delaySamples !== undefined ? `, delay ${f.delaySamples} samples` : ""}${f.software ? ` · ${f.software}` : ""}`,
+          value:
+            `${f.kind === "fir" ? "FIR" : f.kind}${f.taps ? `, ${f.taps} taps` : ""}` +
+            `${f.delaySamples !== undefined ? `, delay ${f.delaySamples} samples` : ""}` +
+            `${f.software ? ` · ${f.software}` : ""}`,
         });
       if (p.trimDb !== undefined && p.trimDb !== null)
         d.push({ label: "Trim", value: `${Number(p.trimDb).toFixed(2)} dB` });
       if (p.codingHistory) d.push({ label: "Coding history", value: String(p.codingHistory), mono: true });
       const sha = shaShort(p.accessCopy?.sha256);
       return {
-        sentence: `The worker rendered the access copy of ${side}${on}${e.actorName ? ` for ${e.actorName}` : ""}${source ? ` from ${source}` : ""}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}${sha ? ` (${sha})` : ""}.`,
+        sentence:
+          `The worker rendered the access copy of ${side}${on}${e.actorName ? ` for ${e.actorName}` : ""}` +
+          `${source ? ` from ${source}` : ""}${curve ? ` through ${curve}` : ""}${rate ? `, at ${rate}` : ""}` +
+          `${sha ? ` (${sha})` : ""}.`,
         details: d,
         tone: "plain",
       };

@@ -5,11 +5,12 @@
  * seconds; its results arrive as fixity events of that disc, which we poll for.
  */
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useEffect, useId, useRef, useState } from "react";
+import { useEffect, useId, useState } from "react";
 import { when } from "@/components/catalogue/format";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
 import { useLabSettings } from "@/hooks/use-lab-settings";
+import { useTimePassed } from "@/hooks/use-time-passed";
 import { AppError } from "@/lib/http/errors";
 import { fetchJson } from "@/lib/http/client";
 import { DiscPicker } from "./disc-picker";
@@ -121,6 +122,8 @@ interface RunState {
   disc: DiscPick;
   queued: number;
   askedAt: number;
+  /** When this page asked (its own clock), for the wait on the worker. */
+  startedAt: number;
 }
 
 /** Poll for this long before saying the results have not all come in. */
@@ -132,14 +135,15 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
   const [run, setRun] = useState<RunState | null>(null);
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
-  const startedAt = useRef(0);
 
   // Follow the disc named in the URL when it changes, not on every render.
   const initialId = initialDisc?.id ?? null;
-  useEffect(() => {
+  const [followedId, setFollowedId] = useState(initialId);
+  if (initialId !== followedId) {
+    setFollowedId(initialId);
     if (initialDisc) setDisc(initialDisc);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [initialId]);
+  }
+  const waitedTooLong = useTimePassed(run?.startedAt ?? null, WAIT_MS);
 
   const results = useQuery({
     queryKey: ["fixity-run", run?.disc.id, run?.askedAt],
@@ -151,9 +155,9 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
     refetchInterval: (q) => {
       if (!run) return false;
       const got = (q.state.data?.events ?? []).filter(
-        (e) => new Date(e.at).getTime() >= run!.askedAt - 1000,
+        (e) => new Date(e.at).getTime() >= run.askedAt - 1000,
       ).length;
-      return got >= run!.queued || Date.now() - startedAt.current > WAIT_MS ? false : 1000;
+      return got >= run.queued || waitedTooLong ? false : 1000;
     },
   });
   const fresh = run
@@ -177,8 +181,7 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
         method: "POST",
         body: JSON.stringify({ discId: disc.id }),
       });
-      startedAt.current = Date.now();
-      setRun({ disc, queued: r.queued, askedAt: r.askedAt });
+      setRun({ disc, queued: r.queued, askedAt: r.askedAt, startedAt: Date.now() });
     } catch (err) {
       setError(err instanceof Error ? err.message : String(err));
     } finally {
@@ -217,7 +220,7 @@ export function FixityRun({ initialDisc }: { initialDisc: DiscPick | null }) {
                 ? "See the alerts above and the disc's history below."
                 : `Each stored file of ${run.disc.shelfMark} read back with its recorded SHA-256.`}
             </Notice>
-          ) : Date.now() - startedAt.current > WAIT_MS ? (
+          ) : waitedTooLong ? (
             <Notice tone="caution" title="Still waiting for the worker">
               {fresh.length} of {run.queued} results so far. Is the worker running? The checks stay queued and
               will run when it is.

@@ -40,7 +40,7 @@ export function SignInForm() {
   }
 
   return (
-    <form onSubmit={onSubmit} className="space-y-5" noValidate data-testid="sign-in-form">
+    <form onSubmit={(e) => void onSubmit(e)} className="space-y-5" noValidate data-testid="sign-in-form">
       {error ? (
         <Notice tone="error" title="Not signed in" testId="sign-in-error">
           {error}

@@ -167,7 +167,8 @@ export function AccessCopyCompare({
           <label
             key={o.id}
             className={cx(
-              "flex min-w-0 cursor-pointer flex-col rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac",
+              "flex min-w-0 cursor-pointer flex-col rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline " +
+                "has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac",
               active === o.id ? "border-groove bg-groove-wash" : "border-paper-edge bg-white",
             )}
           >

@@ -45,7 +45,9 @@ export function listeningEvidence(o: {
   chosen: string;
 }): string {
   return [
-    `Compared by ear on the flat transfer ${o.transfer.fileName} (SHA-256 ${o.transfer.sha256.slice(0, 16)}…), ${formatDuration(o.fromSeconds)}–${formatDuration(o.toSeconds)}, ${channelModeLabels[o.channelMode].toLowerCase()}, at matched level at 1 kHz.`,
+    `Compared by ear on the flat transfer ${o.transfer.fileName} (SHA-256 ${o.transfer.sha256.slice(0, 16)}…), ` +
+      `${formatDuration(o.fromSeconds)}–${formatDuration(o.toSeconds)}, ${channelModeLabels[o.channelMode].toLowerCase()}, ` +
+      `at matched level at 1 kHz.`,
     `Heard: flat; ${o.compared.join("; ")}.`,
     `Chosen: ${o.chosen}.`,
   ].join(" ");
@@ -155,12 +157,14 @@ export function AuditionPanel({
     if (!p) return;
     try {
       p.setCandidates(candidates);
+      // The player is outside React: what it answers to the new chains is shown once it has them.
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- reports the outside player's answer
       setPlayError(null);
     } catch (err) {
       setPlayError(err instanceof Error ? err.message : String(err));
     }
     if (!candidates.some((c) => c.id === activeId)) setActiveId("flat");
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- candidateKey stands for the candidates' ids and curves; a new array with the same ones changes nothing
   }, [candidateKey]);
 
   useEffect(() => () => void playerRef.current?.close(), []);
@@ -243,10 +247,11 @@ export function AuditionPanel({
   const [autoPlay, setAutoPlay] = useState(false);
   useEffect(() => {
     if (autoPlay && win.data && acknowledged) {
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- one play per click, started once the window has arrived
       setAutoPlay(false);
       void play();
     }
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- runs when the asked-for window arrives, not when play's closure changes
   }, [autoPlay, win.data]);
 
   const options = [
@@ -355,7 +360,8 @@ export function AuditionPanel({
               <label
                 key={o.id}
                 className={cx(
-                  "flex min-w-0 cursor-pointer items-center gap-2 rounded-md border px-3 py-2 text-sm has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac",
+                  "flex min-w-0 cursor-pointer items-center gap-2 rounded-md border px-3 py-2 text-sm " +
+                    "has-[:focus-visible]:outline has-[:focus-visible]:outline-2 has-[:focus-visible]:outline-shellac",
                   activeId === o.id
                     ? "border-groove bg-groove-wash font-semibold"
                     : "border-paper-edge bg-white",
@@ -540,7 +546,7 @@ function Overview({
       aria-label="Peak levels across the side. Click to listen from a place; the slider below does the same from the keyboard."
       data-testid="audition-overview"
       onClick={(e) => {
-        const r = (e.currentTarget as SVGSVGElement).getBoundingClientRect();
+        const r = e.currentTarget.getBoundingClientRect();
         onPick(((e.clientX - r.left) / r.width) * duration);
       }}
     >

@@ -55,9 +55,7 @@ export function BenchView({
   const { choice: current, render: currentRender } = now;
   // A curve picked in the listening panel, for the form (only while the recorded choice is the one it was picked against).
   const [prefill, setPrefill] = useState<(ChoicePrefill & { against: string | null }) | null>(null);
-  useEffect(() => {
-    if (prefill && prefill.against !== (current?.id ?? null)) setPrefill(null);
-  }, [current?.id, prefill]);
+  if (prefill && prefill.against !== (current?.id ?? null)) setPrefill(null);
   const speeds = current
     ? { cut: current.cutSpeedRpm, transfer: current.transferSpeedRpm }
     : { cut: data?.disc.nominalSpeedRpm ?? 78, transfer: data?.disc.nominalSpeedRpm ?? 78 };

@@ -139,22 +139,26 @@ export function CurveChoiceForm({
   const [saved, setSaved] = useState<string | null>(null);
 
   // A pick from the listening panel: the curve heard, evidence "listening", and what was compared (editable).
-  useEffect(() => {
-    if (!prefill) return;
-    if (prefill.preset) {
-      setPresetId(prefill.preset.id);
-      setVersion(prefill.preset.version);
-      setCorners(draftsFrom(prefill.overrides ?? {}));
-      setRef({
-        on: !!prefill.overrides?.reference,
-        hz: String(prefill.overrides?.reference?.hz ?? 1000),
-        db: String(prefill.overrides?.reference?.db ?? 0),
-      });
+  // Applied while rendering, when a new pick arrives (React's way to adjust state to a prop).
+  const [appliedPrefill, setAppliedPrefill] = useState<ChoicePrefill | null>(null);
+  if ((prefill ?? null) !== appliedPrefill) {
+    setAppliedPrefill(prefill ?? null);
+    if (prefill) {
+      if (prefill.preset) {
+        setPresetId(prefill.preset.id);
+        setVersion(prefill.preset.version);
+        setCorners(draftsFrom(prefill.overrides ?? {}));
+        setRef({
+          on: !!prefill.overrides?.reference,
+          hz: String(prefill.overrides?.reference?.hz ?? 1000),
+          db: String(prefill.overrides?.reference?.db ?? 0),
+        });
+      }
+      setEvidenceKind("listening");
+      setEvidence(prefill.evidence);
+      setSaved(null);
     }
-    setEvidenceKind("listening");
-    setEvidence(prefill.evidence);
-    setSaved(null);
-  }, [prefill]);
+  }
 
   const versions = usePresetVersions(presetId);
   const preset = presets.data?.presets.find((p) => p.id === presetId) ?? null;

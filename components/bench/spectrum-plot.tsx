@@ -69,7 +69,10 @@ export function SpectrumPlot({ lines, activeId }: { lines: SpectrumLine[]; activ
         viewBox={`0 0 ${W} ${H}`}
         className="block h-auto w-full font-sans"
         role="img"
-        aria-label={`Averaged spectrum of the listening window, flat and through ${lines.length - 1} curve${lines.length === 2 ? "" : "s"}, in dB against frequency.`}
+        aria-label={
+          `Averaged spectrum of the listening window, flat and through ${lines.length - 1} ` +
+          `curve${lines.length === 2 ? "" : "s"}, in dB against frequency.`
+        }
       >
         <g transform={`translate(${M.left},${M.top})`}>
           <rect width={innerW} height={innerH} fill="#fffdf8" stroke="#d9d1bf" />

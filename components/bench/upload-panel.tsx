@@ -82,7 +82,8 @@ export function UploadPanel({
           <div
             {...dz.getRootProps({
               className: cx(
-                "flex min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl border-2 border-dashed px-4 py-6 text-center transition-colors",
+                "flex min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl " +
+                  "border-2 border-dashed px-4 py-6 text-center transition-colors",
                 dz.isDragActive
                   ? "border-groove bg-groove-wash"
                   : "border-paper-edge bg-paper/50 hover:border-ink-faint",
@@ -201,12 +202,7 @@ export function UploadPanel({
         >
           <p>{state.duplicate}</p>
           <div className="mt-3 flex flex-wrap gap-2">
-            <Button
-              type="button"
-              size="sm"
-              onClick={confirmDuplicate}
-              data-testid="upload-confirm-duplicate"
-            >
+            <Button type="button" size="sm" onClick={confirmDuplicate} data-testid="upload-confirm-duplicate">
               It is the right side: accept it
             </Button>
             <Button type="button" size="sm" variant="secondary" onClick={cancel}>

@@ -133,7 +133,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
     for (const k of filterKeys) if (filters[k]) q.set(k, filters[k]);
     q.set("sort", sort);
     return q;
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- filters and sort are read from params: a new query only when the address changes
   }, [params]);
   const listUrl = `/api/discs?${apiQuery}&page=${page}&pageSize=${pageSize}`;
 
@@ -373,6 +373,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
   );
   const columnVisibility = Object.fromEntries(optionalColumns.map((c) => [c.id, shown.includes(c.id)]));
 
+  // eslint-disable-next-line react-hooks/incompatible-library -- the app is not built with React Compiler, whose memoizing this guards
   const table = useReactTable({
     data: discs.data?.rows ?? [],
     columns,
@@ -402,7 +403,10 @@ export function CatalogueTable({ canAssign, self }: Props) {
         role="search"
         aria-label="Find discs"
         onSubmit={(e) => e.preventDefault()}
-        className="grid gap-3 rounded-lg border border-paper-edge bg-white/70 p-4 sm:grid-cols-2 lg:grid-cols-[minmax(16rem,2fr)_repeat(5,minmax(8rem,1fr))_auto]"
+        className={
+          "grid gap-3 rounded-lg border border-paper-edge bg-white/70 p-4 sm:grid-cols-2 " +
+          "lg:grid-cols-[minmax(16rem,2fr)_repeat(5,minmax(8rem,1fr))_auto]"
+        }
       >
         <div className="space-y-1">
           <label

@@ -10,6 +10,7 @@ import { controlClass, FieldShell } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
 import { fetchJson } from "@/lib/http/client";
+import { valueText } from "@/lib/value-text";
 import type { AppError } from "@/lib/http/errors";
 import {
   conditionFlags,
@@ -85,7 +86,7 @@ export function DiscForm({
 
   const save = useMutation<{ disc: DiscJson }, AppError, { body: unknown; yours: DiscFormValues }>({
     mutationFn: ({ body }) =>
-      fetchJson(editing ? `/api/discs/${initial!.id}` : "/api/discs", {
+      fetchJson(editing ? `/api/discs/${initial.id}` : "/api/discs", {
         method: editing ? "PATCH" : "POST",
         body: JSON.stringify(body),
       }),
@@ -160,7 +161,7 @@ export function DiscForm({
 
   return (
     <form
-      onSubmit={onSubmit}
+      onSubmit={(e) => void onSubmit(e)}
       noValidate
       className="space-y-6"
       data-testid="disc-form"
@@ -399,7 +400,7 @@ export function DiscForm({
           {save.isPending ? "Saving…" : editing ? "Save changes" : "Catalogue this disc"}
         </Button>
         <Link
-          href={editing ? `/catalogue/${initial!.id}` : "/catalogue"}
+          href={editing ? `/catalogue/${initial.id}` : "/catalogue"}
           className="rounded px-3 py-2 text-sm text-ink-soft hover:text-ink"
         >
           Cancel

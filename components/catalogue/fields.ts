@@ -1,3 +1,4 @@
+import { valueText } from "@/lib/value-text";
 import { baseLabels, conditionLabels, flagLabels, formatLabel, speedLabel } from "./format";
 
 /** What each disc field is called on screen, in edit histories and conflict lists. */
@@ -40,25 +41,27 @@ export function fieldText(
   if (value === null || value === undefined || value === "") return "—";
   switch (field) {
     case "format":
-      return formatLabel(String(value));
+      return formatLabel(valueText(value));
     case "base":
-      return baseLabels[String(value)] ?? String(value);
+      return baseLabels[valueText(value)] ?? valueText(value);
     case "nominalSpeedRpm":
       return `${speedLabel(value as number)} rpm`;
     case "diameterIn":
-      return `${value} in`;
+      return `${valueText(value)} in`;
     case "conditionGrade":
-      return conditionLabels[String(value)] ?? String(value);
+      return conditionLabels[valueText(value)] ?? valueText(value);
     case "conditionFlags":
-      return Array.isArray(value) && value.length ? value.map((f) => flagLabels[f] ?? f).join(", ") : "none";
+      return Array.isArray(value) && value.length
+        ? value.map((f: string) => flagLabels[f] ?? f).join(", ")
+        : "none";
     case "accessionId":
-      return accessionName?.(String(value)) ?? String(value);
+      return accessionName?.(valueText(value)) ?? valueText(value);
     case "groove":
       return value === "micro" ? "Microgroove" : "Coarse groove";
     case "cut":
       return value === "vertical" ? "Vertical (hill-and-dale)" : "Lateral";
     default:
-      return String(value);
+      return valueText(value);
   }
 }
 
@@ -88,8 +91,8 @@ export function sideChanges(before: SideLike[], after: SideLike[]): string[] {
     }
     seen.add(key(o));
     for (const f of Object.keys(sideFieldLabels) as (keyof SideLike)[]) {
-      const a = (o[f] ?? "") as string;
-      const b = (s[f] ?? "") as string;
+      const a = o[f] ?? "";
+      const b = s[f] ?? "";
       if (a !== b) out.push(`side ${o.designation} ${sideFieldLabels[f]}: ${a || "—"} → ${b || "—"}`);
     }
   }

@@ -52,14 +52,16 @@ export function handlingCautions(d: {
   }
   if (flags.has("mould")) {
     out.push(
-      "Mould has been logged: keep this disc isolated from the rest of the collection and follow the conservation team's procedure before anyone handles or plays it.",
+      "Mould has been logged: keep this disc isolated from the rest of the collection " +
+        "and follow the conservation team's procedure before anyone handles or plays it.",
     );
   }
   if (d.conditionGrade === "unplayable") {
     out.push("Graded unplayable: do not put it on a turntable without conservation's approval.");
   }
   out.push(
-    "Cleaning fluids can destroy some materials (lacquers; shellac with alcohol). Clean only by the method the institution's conservation rules set for this material.",
+    "Cleaning fluids can destroy some materials (lacquers; shellac with alcohol). Clean " +
+      "only by the method the institution's conservation rules set for this material.",
   );
   return out;
 }

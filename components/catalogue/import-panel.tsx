@@ -37,6 +37,12 @@ function formatSize(bytes: number): string {
   return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
 }
 
+/** What an answer that is not the one hoped for says, as far as this panel reads it. */
+function failureOf(body: unknown): { message?: string; errors?: unknown } {
+  const b = (body ?? {}) as { error?: { message?: string }; errors?: unknown };
+  return { message: b.error?.message, errors: b.errors };
+}
+
 async function send(
   url: string,
   file: File,
@@ -87,7 +93,7 @@ export function ImportPanel({
       if (status === 200) setReport(body as ImportReport);
       else {
         setReport(null);
-        setProblem(body?.error?.message ?? `The server answered ${status}.`);
+        setProblem(failureOf(body).message ?? `The server answered ${status}.`);
       }
     } catch {
       setReport(null);
@@ -116,7 +122,7 @@ export function ImportPanel({
         setReport(body.error.details);
         setProblem(body.error.message ?? "Nothing was imported.");
       } else {
-        setProblem(body?.error?.message ?? `The server answered ${status}.`);
+        setProblem(failureOf(body).message ?? `The server answered ${status}.`);
       }
     } catch {
       setProblem("The import could not be sent. Nothing was written; try again.");
@@ -368,7 +374,10 @@ export function ImportPanel({
             <a
               href={templateHref}
               download="rillbook-catalogue-template.csv"
-              className="inline-flex h-9 items-center justify-center gap-2 rounded-md border border-paper-edge bg-white px-3 text-sm font-medium text-ink transition-colors hover:border-ink-faint"
+              className={
+                "inline-flex h-9 items-center justify-center gap-2 rounded-md border border-paper-edge " +
+                "bg-white px-3 text-sm font-medium text-ink transition-colors hover:border-ink-faint"
+              }
               data-testid="import-template"
             >
               Download the template CSV

@@ -213,7 +213,10 @@ export function DeviationPlot({ spec, sampleRateHz }: { spec: CurveSpec; sampleR
             series={series("gainDb")}
             unit=""
             floor={0.001}
-            title={`Gain difference from the analog curve: access-copy filter worst ${dev.fir.worstDb.toExponential(1)} dB, listening preview worst ${dev.iir.worstDb.toFixed(3)} dB`}
+            title={
+              `Gain difference from the analog curve: access-copy filter worst ${dev.fir.worstDb.toExponential(1)} ` +
+              `dB, listening preview worst ${dev.iir.worstDb.toFixed(3)} dB`
+            }
           />
         </div>
         <div>
@@ -222,7 +225,10 @@ export function DeviationPlot({ spec, sampleRateHz }: { spec: CurveSpec; sampleR
             series={series("phaseDeg")}
             unit="°"
             floor={0.1}
-            title={`Phase difference from the analog curve: access-copy filter worst ${dev.fir.worstDeg.toExponential(1)} degrees, listening preview worst ${dev.iir.worstDeg.toFixed(1)} degrees`}
+            title={
+              `Phase difference from the analog curve: access-copy filter worst ${dev.fir.worstDeg.toExponential(1)} ` +
+              `degrees, listening preview worst ${dev.iir.worstDeg.toFixed(1)} degrees`
+            }
           />
         </div>
       </div>

@@ -12,7 +12,6 @@ import { Notice } from "@/components/ui/notice";
 import {
   analogGainDb,
   analogModel,
-  type CornerName,
   CurveError,
   type CurvePoint,
   type CurveSpec,
@@ -102,7 +101,9 @@ export function FitPanel({
           hz: p.hz,
           db: (kind === "recording" ? -p.db : p.db) - r.levelOffsetDb,
         })),
-        label: `Fit points (${kind === "recording" ? "recording table, sign turned" : "playback"}${Math.abs(r.levelOffsetDb) > 0.005 ? `, level ${formatSigned(-r.levelOffsetDb, 2)} dB` : ""})`,
+        label:
+          `Fit points (${kind === "recording" ? "recording table, sign turned" : "playback"}` +
+          `${Math.abs(r.levelOffsetDb) > 0.005 ? `, level ${formatSigned(-r.levelOffsetDb, 2)} dB` : ""})`,
       });
     } catch (err) {
       const sign = kind === "recording" ? -1 : 1;
@@ -138,7 +139,10 @@ export function FitPanel({
             rows={9}
             spellCheck={false}
             placeholder={"hz,db\n50,-16.9\n500,-2.6\n1000,0\n10000,13.7\n# or drop a .csv file here"}
-            className="block w-full rounded-md border border-paper-edge bg-white px-3 py-2 font-mono text-xs leading-5 shadow-inner shadow-paper-deep/60 focus:border-shellac"
+            className={
+              "block w-full rounded-md border border-paper-edge bg-white px-3 py-2 font-mono " +
+              "text-xs leading-5 shadow-inner shadow-paper-deep/60 focus:border-shellac"
+            }
             data-testid="fit-csv"
             aria-describedby={`${id}-csv-hint`}
           />
@@ -155,7 +159,10 @@ export function FitPanel({
               type="file"
               accept=".csv,text/csv,text/plain"
               onChange={(e) => void readFile(e.target.files?.[0])}
-              className="text-sm file:mr-3 file:rounded-md file:border file:border-paper-edge file:bg-white file:px-3 file:py-1.5 file:text-sm file:text-ink hover:file:border-ink-faint"
+              className={
+                "text-sm file:mr-3 file:rounded-md file:border file:border-paper-edge file:bg-white " +
+                "file:px-3 file:py-1.5 file:text-sm file:text-ink hover:file:border-ink-faint"
+              }
               data-testid="fit-file"
             />
             {fileName ? <span className="text-xs text-ink-faint">read {fileName}</span> : null}
@@ -222,7 +229,12 @@ export function FitPanel({
         {result ? (
           <FitResultView result={result} onLoad={() => onLoad(result.spec)} />
         ) : !error ? (
-          <div className="flex h-full min-h-40 items-center justify-center rounded-lg border border-dashed border-paper-edge p-6 text-center text-sm text-ink-faint">
+          <div
+            className={
+              "flex h-full min-h-40 items-center justify-center rounded-lg border border-dashed " +
+              "border-paper-edge p-6 text-center text-sm text-ink-faint"
+            }
+          >
             Fitted time constants, the error at each point and a plot of the residuals appear here.
           </div>
         ) : null}
@@ -277,7 +289,7 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
         <tbody className="font-mono">
           {result.corners.map((c) => (
             <tr key={c.parameter} className="border-t border-paper-edge/70">
-              <td className="py-1 pr-2 font-sans">{PARAM_LABEL[c.parameter as CornerName]}</td>
+              <td className="py-1 pr-2 font-sans">{PARAM_LABEL[c.parameter]}</td>
               <td className="py-1 pr-2 text-right">{formatNumber(c.tauUs, 5)}</td>
               <td className="py-1 pr-2 text-right">{formatNumber(c.hz, 5)}</td>
               <td className="py-1 pr-2 text-right">{c.db10k !== undefined ? c.db10k.toFixed(2) : ""}</td>

@@ -144,7 +144,7 @@ export function PresetTable() {
       label="Curve presets"
       urlKey="presets"
       loading={isLoading}
-      error={error ? (error as Error).message : null}
+      error={error ? error.message : null}
       empty="No presets yet. Start one in the workbench."
       testId="preset-table"
       defaultSort="name"

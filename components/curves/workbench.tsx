@@ -208,9 +208,7 @@ function useCurveDraft() {
   const [fieldsKey, setFieldsKey] = useState(0);
   const check = useMemo(() => checkSpec(spec), [spec]);
   const [lastGood, setLastGood] = useState<CurveSpec>(RIAA_SPEC);
-  useEffect(() => {
-    if (!check.error) setLastGood(spec);
-  }, [check, spec]);
+  if (!check.error && lastGood !== spec) setLastGood(spec);
   const shownSpec = check.error ? lastGood : spec;
   const shownDesc = useMemo(() => checkSpec(shownSpec).desc, [shownSpec]);
   const replaceSpec = useCallback((next: CurveSpec) => {

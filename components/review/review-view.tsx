@@ -20,6 +20,7 @@ import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
 import { useChannelMode } from "@/hooks/use-channel-mode";
 import { useSide } from "@/hooks/use-side";
+import { useTimePassed } from "@/hooks/use-time-passed";
 import { curveChoiceName } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { CurveSummary } from "./curve-summary";
@@ -45,17 +46,18 @@ export function ReviewView({ sideId }: { sideId: string }) {
   const { choice: current, transfer, render } = now;
   const previous = choices.data?.choices.find((c) => c.id !== current?.id) ?? null;
   const watched = [transfer?.id, render?.id].filter(Boolean) as string[];
+  const fixityWaited = useTimePassed(fixityAsk?.startedAt ?? null, FIXITY_WAIT_MS);
   const fixity = useQuery({
     queryKey: ["side-fixity", sideId],
     queryFn: () => fetchJson<{ checks: FixityCheckJson[] }>(`/api/sides/${sideId}/fixity`),
     refetchInterval: (q) => {
       if (!fixityAsk) return false;
-      if (Date.now() - fixityAsk.startedAt > FIXITY_WAIT_MS) return false;
+      if (fixityWaited) return false;
       return arrived(q.state.data?.checks, watched, fixityAsk.askedAt) ? false : 1000;
     },
   });
   const fixityDone = !!fixityAsk && arrived(fixity.data?.checks, watched, fixityAsk.askedAt);
-  const fixityTimedOut = !!fixityAsk && !fixityDone && Date.now() - fixityAsk.startedAt > FIXITY_WAIT_MS;
+  const fixityTimedOut = !!fixityAsk && !fixityDone && fixityWaited;
 
   const checkFixity = async () => {
     const discId = side.data?.disc.id;

@@ -38,6 +38,11 @@ const outcomeWords = {
   error: "could not be read",
 } as const;
 
+/** "stereo", "mono", "6 ch". */
+function channelsShort(channels: number): string {
+  return channels === 2 ? "stereo" : channels === 1 ? "mono" : `${channels} ch`;
+}
+
 function FixityLine({ f, testId }: { f: FixityState; testId: string }) {
   const c = f.check;
   return (
@@ -97,7 +102,7 @@ export function TransferCard({ t, fixity }: { t: TransferJson; fixity: FixitySta
         <FileFact k="Format" v={`${t.container} · ${t.encoding.toUpperCase()} ${t.bitsPerSample}-bit`} />
         <FileFact
           k="Rate · channels"
-          v={`${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${Number(t.channels) === 2 ? "stereo" : Number(t.channels) === 1 ? "mono" : `${t.channels} ch`}`}
+          v={`${Number(t.sampleRateHz).toLocaleString("en-GB")} Hz · ${channelsShort(Number(t.channels))}`}
         />
         <FileFact k="Length" v={formatDuration(Number(t.durationSeconds))} />
         <FileFact k="Size" v={formatBytes(Number(t.bytes))} />
@@ -163,7 +168,8 @@ export function RenderCard({
           k="Worst error vs the curve"
           v={
             f.maxErrorDb !== undefined
-              ? `${formatNumber(f.maxErrorDb, 2)} dB · ${f.maxPhaseErrorDeg !== undefined ? `${formatNumber(f.maxPhaseErrorDeg, 2)}°` : "—"} (20 Hz–20 kHz)`
+              ? `${formatNumber(f.maxErrorDb, 2)} dB · ` +
+                `${f.maxPhaseErrorDeg !== undefined ? `${formatNumber(f.maxPhaseErrorDeg, 2)}°` : "—"} (20 Hz–20 kHz)`
               : "—"
           }
           wide

@@ -69,7 +69,7 @@ export function Sidebar({
           </span>
           <button
             type="button"
-            onClick={() => signOut({ callbackUrl: "/sign-in" })}
+            onClick={() => void signOut({ callbackUrl: "/sign-in" })}
             className="rounded px-2 py-1 text-xs text-lacquer-text/80 hover:bg-lacquer-line hover:text-white"
           >
             Sign out

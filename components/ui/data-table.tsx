@@ -30,6 +30,7 @@ export function DataTable<T>({
   testId,
   defaultSort = "",
 }: {
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- TanStack Table's own type for columns of mixed value types
   columns: ColumnDef<T, any>[];
   data: T[] | undefined;
   label: string;
@@ -43,6 +44,7 @@ export function DataTable<T>({
   const [sortParam, setSortParam] = useUrlState(`${urlKey}Sort`, defaultSort);
   const [filter, setFilter] = useUrlState(`${urlKey}Q`);
   const sorting = useMemo(() => parseSort(sortParam), [sortParam]);
+  // eslint-disable-next-line react-hooks/incompatible-library -- the app is not built with React Compiler, whose memoizing this guards
   const table = useReactTable({
     data: data ?? [],
     columns,

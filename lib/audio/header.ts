@@ -153,7 +153,9 @@ function parseFmt(body: Uint8Array, at: number): Fmt {
     // WAVEFORMATEXTENSIBLE: cbSize (≥ 22) at 16, wValidBitsPerSample at 18, dwChannelMask at 20, SubFormat GUID at 24.
     if (body.length < 40 || u16(body, 16) < 22) {
       throw new WavError(
-        `The fmt chunk at byte offset ${at} says WAVE_FORMAT_EXTENSIBLE but is ${body.length} bytes (cbSize ${body.length >= 18 ? u16(body, 16) : "missing"}); it needs 40 bytes with cbSize 22.`,
+        `The fmt chunk at byte offset ${at} says WAVE_FORMAT_EXTENSIBLE but is ${body.length} ` +
+          `bytes (cbSize ${body.length >= 18 ? u16(body, 16) : "missing"}); it needs 40 bytes ` +
+          `with cbSize 22.`,
         at,
       );
     }
@@ -219,7 +221,8 @@ function parseFmt(body: Uint8Array, at: number): Fmt {
   const expected = (channels * bitsPerSample) / 8;
   if (blockAlign !== expected) {
     throw new WavError(
-      `Block align mismatch: nBlockAlign is ${blockAlign} but ${channels} channel${channels === 1 ? "" : "s"} × ${bitsPerSample} bits needs ${expected} bytes per frame (${where}).`,
+      `Block align mismatch: nBlockAlign is ${blockAlign} but ${channels} channel${channels === 1 ? "" : "s"} ` +
+        `× ${bitsPerSample} bits needs ${expected} bytes per frame (${where}).`,
       at + 8 + 12,
     );
   }
@@ -387,7 +390,8 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
     if (body + csize > size) {
       if (cid === "data") {
         throw new WavError(
-          `The data chunk at byte offset ${p} declares ${csize} bytes of audio but only ${size - body} bytes follow it: the file is truncated or its size field is wrong.`,
+          `The data chunk at byte offset ${p} declares ${csize} bytes of audio but only ${size - body} ` +
+            `bytes follow it: the file is truncated or its size field is wrong.`,
           p,
         );
       }
@@ -398,7 +402,8 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
         );
       }
       throw new WavError(
-        `Chunk "${printable(h)}" at byte offset ${p} declares ${csize} bytes, which runs ${body + csize - size} bytes past the end of the file (${size} bytes).`,
+        `Chunk "${printable(h)}" at byte offset ${p} declares ${csize} bytes, which runs ` +
+          `${body + csize - size} bytes past the end of the file (${size} bytes).`,
         p,
       );
     }

@@ -199,7 +199,8 @@ async function runChain(
     next = start + chunkFrames < header.frames ? readChunk(start + chunkFrames) : null;
     if (bytes.length !== n * header.blockAlign) {
       throw new RenderError(
-        `The transfer ended early: frame ${start + Math.floor(bytes.length / header.blockAlign)} of ${header.frames} (byte ${header.dataOffset + start * header.blockAlign + bytes.length}).`,
+        `The transfer ended early: frame ${start + Math.floor(bytes.length / header.blockAlign)} ` +
+          `of ${header.frames} (byte ${header.dataOffset + start * header.blockAlign + bytes.length}).`,
       );
     }
     dsp.decode(bytes, encoding, decoded);

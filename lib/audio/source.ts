@@ -28,9 +28,9 @@ export interface ClosableByteSource extends ByteSource {
 export function bufferSource(bytes: Uint8Array): ByteSource {
   return {
     size: bytes.length,
-    async read(offset: number, length: number): Promise<Uint8Array> {
+    read(offset: number, length: number): Promise<Uint8Array> {
       const start = Math.min(Math.max(0, offset), bytes.length);
-      return bytes.subarray(start, Math.min(bytes.length, start + Math.max(0, length)));
+      return Promise.resolve(bytes.subarray(start, Math.min(bytes.length, start + Math.max(0, length))));
     },
   };
 }

@@ -14,11 +14,15 @@ export function defaultChannelMode(
   if (cut === "vertical") {
     return {
       mode: "difference",
-      why: "Vertical (hill-and-dale) cut: the groove's motion comes out in opposite phase on the two channels, so their difference carries the recording and their sum mostly noise.",
+      why:
+        "Vertical (hill-and-dale) cut: the groove's motion comes out in opposite phase " +
+        "on the two channels, so their difference carries the recording and their sum mostly noise.",
     };
   }
   return {
     mode: "sum",
-    why: "Lateral cut: the groove's motion comes out in phase on the two channels, so their sum carries the recording and cancels some vertical rumble and noise.",
+    why:
+      "Lateral cut: the groove's motion comes out in phase on the two channels, so their " +
+      "sum carries the recording and cancels some vertical rumble and noise.",
   };
 }

@@ -115,7 +115,7 @@ export class AuditionPlayer {
       this.chains.set(cand.id, { nodes, switchGain });
     }
     if (!this.chains.has(this.active) && this.companion?.id !== this.active) this.select("flat");
-    if (wasPlaying && this.buffer) this.play(at);
+    if (wasPlaying && this.buffer) void this.play(at);
   }
 
   /**

@@ -18,7 +18,8 @@ export const authOptions: NextAuthOptions = {
       name: "E-mail and password",
       credentials: { email: { type: "email" }, password: { type: "password" } },
       async authorize(credentials, req) {
-        const forwarded = req?.headers?.["x-forwarded-for"];
+        const headers = req?.headers as Record<string, string | string[] | undefined> | undefined;
+        const forwarded = headers?.["x-forwarded-for"];
         const ip = (Array.isArray(forwarded) ? forwarded[0] : forwarded)?.split(",")[0]?.trim() ?? null;
         // A thrown error's message reaches the sign-in form as `error`.
         const user = await checkCredentials(

@@ -16,11 +16,12 @@ async function recentFailures(email: string): Promise<number> {
     .where("succeeded", "=", false)
     .where("reason", "!=", "locked")
     .where("at", ">", sql<Date>`now() - make_interval(mins => ${throttle.windowMinutes})`)
-    .where(({ eb, selectFrom }) =>
+    .where((eb) =>
       eb(
         "at",
         ">",
-        selectFrom("sign_in_attempts as s")
+        eb
+          .selectFrom("sign_in_attempts as s")
           .select(sql<Date>`coalesce(max(s.at), '-infinity'::timestamptz)`.as("last"))
           .where("s.email", "=", email)
           .where("s.succeeded", "=", true),

@@ -5,6 +5,7 @@
 import { CsvError, parse } from "csv-parse/sync";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
+import { valueText } from "@/lib/value-text";
 import {
   createDiscSchema,
   type DiscInput,
@@ -345,7 +346,9 @@ export function readCatalogueCsv(text: string): ReadSheet {
         {
           row: maxImportRows + 2,
           column: "",
-          message: `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ${maxImportRows.toLocaleString("en-GB")}. Split it into several files.`,
+          message:
+            `The file has ${filled.toLocaleString("en-GB")} rows; one import takes at most ` +
+            `${maxImportRows.toLocaleString("en-GB")}. Split it into several files.`,
         },
       ],
     };
@@ -484,7 +487,7 @@ function sameValue(a: unknown, b: unknown): boolean {
 
 function shown(v: unknown): string {
   if (v === undefined || v === null || v === "" || (Array.isArray(v) && v.length === 0)) return "empty";
-  return `“${Array.isArray(v) ? v.join("; ") : String(v)}”`;
+  return `“${Array.isArray(v) ? v.join("; ") : valueText(v)}”`;
 }
 
 /**
@@ -613,7 +616,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
       errors.push({
         row: r.row,
         column: "shelf_mark",
-        message: `Shelf mark ${shelfMark} is already used by the disc at row ${firstRow}. Each disc needs its own shelf mark, and a disc's rows must sit together.`,
+        message:
+          `Shelf mark ${shelfMark} is already used by the disc at row ${firstRow}. Each disc ` +
+          `needs its own shelf mark, and a disc's rows must sit together.`,
       });
       r.ok = false;
     } else if (r.key) {
@@ -636,7 +641,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
             errors.push({
               row: r.row,
               column,
-              message: `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} there. Every row of a disc must repeat the same disc values.`,
+              message:
+                `Differs from row ${head.row}, the disc's first row: ${shown(b)} here, ${shown(a)} ` +
+                `there. Every row of a disc must repeat the same disc values.`,
             });
           }
         }
@@ -659,7 +666,9 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
         errors.push({
           row: r.row,
           column: "side",
-          message: `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other rows. Give every row a side; a disc without sides takes one row.`,
+          message:
+            `This row has no side, but shelf mark ${head.fields?.shelfMark ?? r.key} has other ` +
+            `rows. Give every row a side; a disc without sides takes one row.`,
         });
       }
       if (!r.side) continue;

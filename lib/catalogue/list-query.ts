@@ -63,9 +63,10 @@ export function filteredDiscs(db: Db, q: DiscFilter) {
   if (q.speed) query = query.where("d.nominal_speed_rpm", "=", q.speed);
   if (q.status) {
     const status = q.status;
-    query = query.where(({ exists, selectFrom }) =>
-      exists(
-        selectFrom("sides as s")
+    query = query.where((eb) =>
+      eb.exists(
+        eb
+          .selectFrom("sides as s")
           .select("s.id")
           .whereRef("s.disc_id", "=", "d.id")
           .where("s.status", "=", status),
@@ -74,9 +75,10 @@ export function filteredDiscs(db: Db, q: DiscFilter) {
   }
   if (q.engineer) {
     const engineer = q.engineer;
-    query = query.where(({ exists, selectFrom }) =>
-      exists(
-        selectFrom("sides as s")
+    query = query.where((eb) =>
+      eb.exists(
+        eb
+          .selectFrom("sides as s")
           .select("s.id")
           .whereRef("s.disc_id", "=", "d.id")
           .where("s.assigned_engineer_id", "=", engineer),

@@ -41,8 +41,10 @@ export async function transitionSide(
         "conflict",
         409,
         step
-          ? `A side becomes ${statusLabels[to].toLowerCase()} when ${step.means.replace(/^its /, "its ")}; that happens on the bench or in review, not as a step of its own.`
-          : `A side that is ${statusLabels[side.status].toLowerCase()} cannot become ${statusLabels[to].toLowerCase()}${allowed.length ? `; next is ${[...new Set(allowed)].join(" or ")}` : ""}.`,
+          ? `A side becomes ${statusLabels[to].toLowerCase()} when ${step.means.replace(/^its /, "its ")}; ` +
+              `that happens on the bench or in review, not as a step of its own.`
+          : `A side that is ${statusLabels[side.status].toLowerCase()} cannot become ` +
+              `${statusLabels[to].toLowerCase()}${allowed.length ? `; next is ${[...new Set(allowed)].join(" or ")}` : ""}.`,
       );
     }
     if (!can(actor.role, "bench:use"))

@@ -301,7 +301,9 @@ export function fitCurve(request: FitRequest): FitResult {
     const involved = names.filter((_, j) => Math.abs(eig.minVector[j]) > 0.3);
     throw new CurveError(
       involved[0] ?? names[0],
-      `The points cannot tell ${involved.join(" and ")} apart (ill-conditioned fit, condition number ${conditionNumber.toExponential(1)}); fix one of them or add points where they differ.`,
+      `The points cannot tell ${involved.join(" and ")} apart (ill-conditioned fit, condition ` +
+        `number ${conditionNumber.toExponential(1)}); fix one of them or add points where ` +
+        `they differ.`,
     );
   }
 

@@ -216,7 +216,8 @@ export function designRenderFilterFromModel(
       if (!meets && options.maxLength === undefined) {
         throw new CurveError(
           "renderFilter",
-          `The render filter could not reach ${RENDER_TARGET_DB} dB / ${RENDER_TARGET_DEG}° within ${n} taps (reached ${narrow.maxErrorDb.toFixed(4)} dB, ${narrow.maxPhaseErrorDeg.toFixed(3)}°).`,
+          `The render filter could not reach ${RENDER_TARGET_DB} dB / ${RENDER_TARGET_DEG}° ` +
+            `within ${n} taps (reached ${narrow.maxErrorDb.toFixed(4)} dB, ${narrow.maxPhaseErrorDeg.toFixed(3)}°).`,
         );
       }
       const wide = passHighHz > 20_000 ? measureFir(model, taps, fs, delay, 20, passHighHz) : narrow;

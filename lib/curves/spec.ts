@@ -175,13 +175,16 @@ export function resolveCurve(spec: CurveSpec): ResolvedCurve {
   if (shelf && turnover && !(shelf.tauUs > turnover.tauUs)) {
     throw new CurveError(
       "shelf",
-      `The shelf time constant (${shelf.tauUs.toFixed(2)} µs, ${shelf.hz.toFixed(2)} Hz) must be longer than the turnover's (${turnover.tauUs.toFixed(2)} µs, ${turnover.hz.toFixed(2)} Hz): the shelf frequency must be below the turnover.`,
+      `The shelf time constant (${shelf.tauUs.toFixed(2)} µs, ${shelf.hz.toFixed(2)} ` +
+        `Hz) must be longer than the turnover's (${turnover.tauUs.toFixed(2)} µs, ${turnover.hz.toFixed(2)} ` +
+        `Hz): the shelf frequency must be below the turnover.`,
     );
   }
   if (turnover && !shelf && !highpass) {
     throw new CurveError(
       "shelf",
-      "A turnover with neither a shelf nor a high-pass has unbounded bass gain; add a low-frequency shelf (e.g. 3180 µs) or a rumble high-pass (e.g. 7950 µs).",
+      "A turnover with neither a shelf nor a high-pass has unbounded bass gain; " +
+        "add a low-frequency shelf (e.g. 3180 µs) or a rumble high-pass (e.g. 7950 µs).",
     );
   }
 

@@ -24,7 +24,11 @@ export async function discPackage(discId: string): Promise<{ fileName: string; s
     throw new AppError(
       "conflict",
       409,
-      `Only an approved disc is packaged: ${unapproved.length ? `side ${unapproved.map((s) => s.designation).join(", ")} ${unapproved.length > 1 ? "are" : "is"} not approved yet` : "it has no sides"}.`,
+      `Only an approved disc is packaged: ${
+        unapproved.length
+          ? `side ${unapproved.map((s) => s.designation).join(", ")} ${unapproved.length > 1 ? "are" : "is"} not approved yet`
+          : "it has no sides"
+      }.`,
     );
   }
   const base = fileNameBase(record.disc.shelfMark);

@@ -29,7 +29,7 @@ export interface PremisEvent {
   type: string;
   at: string;
   detail: string;
-  outcome: "success" | "failure" | string;
+  outcome: "success" | "failure";
   outcomeDetail?: string;
   agent: { id: string; role: string } | null;
   objects: { type: string; value: string; role?: string }[];

@@ -302,7 +302,7 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
         type: string,
         detail: string,
         objects: PremisEvent["objects"],
-        outcome = "success",
+        outcome: PremisEvent["outcome"] = "success",
         outcomeDetail?: string,
       ): PremisEvent => ({
         id: e.id,
@@ -329,7 +329,8 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
           events.push(
             ev(
               "capture",
-              `Flat (unequalized) transfer accepted after size, SHA-256 and header checks; stylus ${p.stylusSize || "?"} ${p.stylusShape || ""}; chain: ${p.chain || "not given"}`,
+              `Flat (unequalized) transfer accepted after size, SHA-256 and header checks; stylus ` +
+                `${p.stylusSize || "?"} ${p.stylusShape || ""}; chain: ${p.chain || "not given"}`,
               [...entity, { type: "Rillbook object key", value: p.objectKey, role: "outcome" }],
               "success",
               `SHA-256 ${p.sha256}`,
@@ -340,7 +341,9 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
           events.push(
             ev(
               "creation",
-              `Equalized access copy rendered (${p.filter?.kind ?? "filter"} of ${p.filter?.taps ?? "?"} taps, delay ${p.filter?.delaySamples ?? "?"} samples compensated, trim ${Number(p.trimDb ?? 0).toFixed(2)} dB) by ${p.filter?.software ?? software}`,
+              `Equalized access copy rendered (${p.filter?.kind ?? "filter"} of ${p.filter?.taps ?? "?"} ` +
+                `taps, delay ${p.filter?.delaySamples ?? "?"} samples compensated, trim ${Number(p.trimDb ?? 0).toFixed(2)} ` +
+                `dB) by ${p.filter?.software ?? software}`,
               [
                 ...entity,
                 {
@@ -367,15 +370,26 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
           );
           break;
         case "side.curve_chosen":
-        case "side.curve_changed":
+        case "side.curve_changed": {
+          const choiceName = curveChoiceName({
+            presetName: p.preset?.name,
+            presetVersion: p.preset?.version,
+            overrides: p.overrides,
+            cutSpeedRpm: Number(p.cutSpeedRpm),
+            transferSpeedRpm: Number(p.transferSpeedRpm),
+          });
           events.push(
             ev(
               "metadata modification",
-              `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ${curveChoiceName({ presetName: p.preset?.name, presetVersion: p.preset?.version, overrides: p.overrides, cutSpeedRpm: Number(p.cutSpeedRpm), transferSpeedRpm: Number(p.transferSpeedRpm) })}; curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`,
+              `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ` +
+                `${choiceName}; ` +
+                `curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} ` +
+                `rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`,
               entity,
             ),
           );
           break;
+        }
         case "side.approved": {
           // The approval names exactly what it binds: the flat transfer, the curve choice and the render made from them.
           const transferId = p.transfer?.id ?? p.transferId;
@@ -384,7 +398,8 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
           events.push(
             ev(
               "appraisal",
-              `Approved by a curator: the access copy rendered from this flat transfer through curve choice ${choiceId ?? "?"}${p.curveChoice?.specSha256 ? ` (curve SHA-256 ${p.curveChoice.specSha256})` : ""}`,
+              `Approved by a curator: the access copy rendered from this flat transfer through ` +
+                `curve choice ${choiceId ?? "?"}${p.curveChoice?.specSha256 ? ` (curve SHA-256 ${p.curveChoice.specSha256})` : ""}`,
               [
                 ...entity,
                 ...(transferId

@@ -39,10 +39,11 @@ export async function openFixityAlerts() {
       "d.shelf_mark as shelfMark",
     ])
     .where("f.outcome", "<>", "pass")
-    .where(({ not, exists, selectFrom }) =>
-      not(
-        exists(
-          selectFrom("fixity_checks as later")
+    .where((eb) =>
+      eb.not(
+        eb.exists(
+          eb
+            .selectFrom("fixity_checks as later")
             .select("later.id")
             .whereRef("later.object_id", "=", "f.object_id")
             .whereRef("later.checked_at", ">", "f.checked_at"),

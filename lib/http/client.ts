@@ -1,5 +1,13 @@
 import { AppError, type ErrorCode } from "./errors";
 
+/** The `error` of a failed answer, as lib/http/errors.ts writes it. */
+interface ErrorBody {
+  code?: ErrorCode;
+  message?: string;
+  fields?: Record<string, string[]>;
+  details?: unknown;
+}
+
 /** Fetches JSON from the app's API; a failed answer comes back as the same AppError the server threw. */
 export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> {
   const res = await fetch(url, {
@@ -17,9 +25,7 @@ export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> 
 export async function answerJson<T>(res: Response, method = "GET"): Promise<T> {
   const body = await res.json().catch(() => null);
   if (!res.ok) {
-    const e = body?.error as
-      | { code?: ErrorCode; message?: string; fields?: Record<string, string[]>; details?: unknown }
-      | undefined;
+    const e = (body as { error?: ErrorBody } | null)?.error;
     const message = e?.message ?? `The server answered ${res.status}.`;
     // A read (a list's filters from the address, say) has no form to show field errors beside: name them in the message.
     const read = method.toUpperCase() === "GET";

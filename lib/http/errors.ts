@@ -58,6 +58,17 @@ function isNulRefusedByDatabase(err: unknown): boolean {
   return typeof err === "object" && err !== null && (err as { code?: unknown }).code === "22021";
 }
 
+/** What node-postgres and PostgreSQL say when the server went away or is not there yet. */
+const lostConnectionMessage = new RegExp(
+  [
+    "Connection terminated",
+    "terminating connection due to administrator command",
+    "the database system is (starting up|shutting down)",
+    "Client has encountered a connection error",
+  ].join("|"),
+  "i",
+);
+
 /**
  * True for a failure to reach PostgreSQL, not a failed statement: the server refused or
  * dropped the connection (stopped, restarting), or it is starting up or shutting down
@@ -74,12 +85,7 @@ export function isDatabaseUnavailable(err: unknown): boolean {
   )
     return true;
   const message = typeof e.message === "string" ? e.message : "";
-  if (
-    /Connection terminated|terminating connection due to administrator command|the database system is (starting up|shutting down)|Client has encountered a connection error/i.test(
-      message,
-    )
-  )
-    return true;
+  if (lostConnectionMessage.test(message)) return true;
   // Node reports a refused connection to every address of a host as an AggregateError.
   return Array.isArray(e.errors) && e.errors.some(isDatabaseUnavailable);
 }

@@ -44,7 +44,8 @@ export function checkSameOrigin(headers: Headers, appOrigin: string): OriginVerd
 export const originMessages = {
   "cross-site": "This request came from another site, so it was refused. Use Rillbook's own pages.",
   unknown:
-    "This request did not say where it came from (no Origin, Sec-Fetch-Site or Referer header), so it was refused. Scripts must send the header Origin with the app's address.",
+    "This request did not say where it came from (no Origin, Sec-Fetch-Site or Referer " +
+    "header), so it was refused. Scripts must send the header Origin with the app's address.",
 } as const;
 
 /** The media type of a content-type header without its parameters, lower-cased ("application/json"). */

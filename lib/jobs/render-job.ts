@@ -185,7 +185,7 @@ export async function runRenderJob(
       filter,
       outputPath,
       channelMode: job.channelMode,
-      output: { format: "pcm", bitsPerSample: job.bitDepth as 16 | 24 },
+      output: { format: "pcm", bitsPerSample: job.bitDepth },
       outputSampleRateHz: outputRateHz,
       bext: {
         description: description.slice(0, 256),

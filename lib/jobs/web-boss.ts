@@ -31,7 +31,7 @@ export async function sendInTransaction(
     db: {
       executeSql: async (text: string, values: unknown[]) => {
         const r = await trx.executeQuery(CompiledQuery.raw(text, values));
-        return { rows: r.rows as unknown[] };
+        return { rows: r.rows };
       },
     },
   });

@@ -66,7 +66,8 @@ export async function takeCheckpoint(
 
   if (!report.ok || !report.head) {
     const what = report.contradicts
-      ? `The log contradicts checkpoint ${report.contradicts.key} (entry ${report.contradicts.headSeq}, taken ${report.contradicts.takenAt}): ${report.contradicts.reason}.`
+      ? `The log contradicts checkpoint ${report.contradicts.key} (entry ${report.contradicts.headSeq}, ` +
+        `taken ${report.contradicts.takenAt}): ${report.contradicts.reason}.`
       : report.brokenAt
         ? `The chain is broken at entry ${report.brokenAt.seq}: ${report.brokenAt.reason}.`
         : report.checkpoints.problems.join("\n");

@@ -285,7 +285,8 @@ export async function verifyChain(db: Kysely<Database>, opts: VerifyOptions = {}
       c,
       c.headSeq,
       null,
-      `the log ends at entry ${head?.seq ?? 0} with ${events} entries, but the checkpoint recorded entry ${c.headSeq} with ${c.events}: entries have been removed`,
+      `the log ends at entry ${head?.seq ?? 0} with ${events} entries, but the checkpoint ` +
+        `recorded entry ${c.headSeq} with ${c.events}: entries have been removed`,
     );
   }
   return finish();

@@ -80,7 +80,8 @@ export async function chooseCurve(
         throw new AppError(
           "conflict",
           409,
-          `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change${s.status === "in_review" ? " unless a curator returns it" : ""}.`,
+          `${where} is ${statusLabels[s.status].toLowerCase()}: its curve can no longer change` +
+            `${s.status === "in_review" ? " unless a curator returns it" : ""}.`,
         );
       }
       const previous = s.current_curve_choice_id ? previousById.get(s.current_curve_choice_id) : undefined;

@@ -206,7 +206,9 @@ async function requireOpen(u: Upload): Promise<void> {
 async function signParts(u: Upload, partNumbers: number[]) {
   const beyond = partNumbers.filter((n) => n > u.part_count);
   if (beyond.length) {
-    const message = `This upload was started for ${u.declared_bytes} bytes: ${u.part_count === 1 ? "one part" : `${u.part_count} parts`} of up to ${u.part_size} bytes. There is no part ${beyond[0]}.`;
+    const message =
+      `This upload was started for ${u.declared_bytes} bytes: ${u.part_count === 1 ? "one part" : `${u.part_count} parts`} ` +
+      `of up to ${u.part_size} bytes. There is no part ${beyond[0]}.`;
     throw new AppError("invalid", 422, message, { partNumbers: [message] });
   }
   const expiresIn = Math.max(

@@ -36,6 +36,7 @@ export function parseStored<T>(
   if (r.success) return r.data;
   const issue = r.error.issues[0];
   throw new Error(
-    `${where.table} ${where.id}: ${where.column}${issue?.path.length ? `.${issue.path.join(".")}` : ""} does not hold what it should (${issue?.message ?? "invalid"}).`,
+    `${where.table} ${where.id}: ${where.column}${issue?.path.length ? `.${issue.path.join(".")}` : ""} ` +
+      `does not hold what it should (${issue?.message ?? "invalid"}).`,
   );
 }

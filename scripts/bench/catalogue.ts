@@ -66,7 +66,9 @@ async function main(): Promise<void> {
 
 async function fill(db: ReturnType<typeof createDb>): Promise<void> {
   const t0 = performance.now();
-  await sql`INSERT INTO accessions (identifier, source, received_on) SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(
+  await sql`
+    INSERT INTO accessions (identifier, source, received_on)
+    SELECT 'BENCH-' || g, 'benchmark shelf ' || g, date '2020-01-01' + g FROM generate_series(1, 50) g`.execute(
     db,
   );
   const labels = [

@@ -136,7 +136,11 @@ function runChild(
     p.on("error", reject);
     p.on("close", (code) => {
       if (code !== 0) reject(new Error(`render child exited with ${code}`));
-      else resolve({ wallMs: performance.now() - t0, report: JSON.parse(out) });
+      else
+        resolve({
+          wallMs: performance.now() - t0,
+          report: JSON.parse(out) as Record<string, number | string | null>,
+        });
     });
   });
 }
@@ -203,10 +207,13 @@ async function main(): Promise<void> {
     const mb = (kb: number | string | null) =>
       typeof kb !== "number" ? "n/a" : `${(kb / 1024).toFixed(0)} MiB`;
     console.log(
-      `RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`,
+      `RIAA render filter: ${report.taps} taps; trim ${(report.trimDb as number).toFixed(2)} ` +
+        `dB (${report.trimDb === 0 ? "one pass" : "two passes"}); clipped ${report.clippedSamples}`,
     );
     console.log(
-      `Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`,
+      `Rillbook render (${report.engine}; filter, measure, trim, dither, write, SHA-256): ` +
+        `${renderS.toFixed(1)} s, ${(ours / 1e6).toFixed(2)} M samples/s, ${(audioS / renderS).toFixed(1)}× ` +
+        `real time (child wall ${(wallMs / 1000).toFixed(1)} s incl. start-up)`,
     );
     console.log(
       `sox fir (1 pass, single-threaded):    ${soxS.toFixed(1)} s, ${(theirs / 1e6).toFixed(2)} M samples/s, ${(audioS / soxS).toFixed(1)}× real time`,
@@ -216,10 +223,13 @@ async function main(): Promise<void> {
       `CPU time: Rillbook ${ourCpuS.toFixed(2)} s, sox fir ${soxCpuS.toFixed(2)} s (ratio ${(soxCpuS / ourCpuS).toFixed(2)})`,
     );
     console.log(
-      `sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`,
+      `sox biquad × ${sections.length} (the IIR sections, 1 pass): ${biquadS.toFixed(1)} ` +
+        `s, ${(samples / biquadS / 1e6).toFixed(2)} M samples/s, ${(audioS / biquadS).toFixed(1)}× real time`,
     );
     console.log(
-      `ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)} against sox fir (the same filter); ${(ours / (samples / biquadS)).toFixed(2)} against sox biquad (the IIR sections: the curve's magnitude, not its phase)`,
+      `ratio Rillbook/sox throughput: ${(ours / theirs).toFixed(2)} against sox fir (the ` +
+        `same filter); ${(ours / (samples / biquadS)).toFixed(2)} against sox biquad (the ` +
+        `IIR sections: the curve's magnitude, not its phase)`,
     );
     console.log(
       `Rillbook render peak RSS: ${mb(report.maxRssKb)} (resourceUsage maxRSS), VmHWM ${mb(report.vmHwmKb)}`,

@@ -17,7 +17,9 @@ export function seedPresets(): SeedPreset[] {
       name: "RIAA / IEC 60098 (3180/318/75 µs)",
       spec: RIAA_SPEC,
       notes:
-        "Source: IEC 60098, Analogue audio disk records and reproducing equipment (the RIAA characteristic): time constants 3180 µs, 318 µs and 75 µs. The standard playback curve for microgroove discs from the mid-1950s on.",
+        "Source: IEC 60098, Analogue audio disk records and reproducing equipment (the " +
+        "RIAA characteristic): time constants 3180 µs, 318 µs and 75 µs. The standard playback " +
+        "curve for microgroove discs from the mid-1950s on.",
     },
     {
       name: "IEC 60098 with 7950 µs high-pass",
@@ -51,7 +53,10 @@ export function seedPresets(): SeedPreset[] {
             reference: { hz: 1000, db: 0 },
             speedRatio: 1,
           },
-          notes: `Generic setting named by its values: bass turnover ${turnoverHz} Hz, treble attenuation ${rolloffDb} dB at 10 kHz, ${shelf ? "bass shelf at 50 Hz" : "no bass shelf (bounded by a 20 Hz rumble high-pass)"}. Not tied to any label or era: choose it on evidence and say why.`,
+          notes:
+            `Generic setting named by its values: bass turnover ${turnoverHz} Hz, treble attenuation ` +
+            `${rolloffDb} dB at 10 kHz, ${shelf ? "bass shelf at 50 Hz" : "no bass shelf (bounded by a 20 Hz rumble high-pass)"}. ` +
+            `Not tied to any label or era: choose it on evidence and say why.`,
         });
       }
     }

@@ -15,7 +15,8 @@ const server = new SMTPServer({
   onData(stream, _session, callback) {
     const chunks: Buffer[] = [];
     stream.on("data", (c: Buffer) => chunks.push(c));
-    stream.on("end", async () => {
+    stream.on("end", () => void keep());
+    async function keep(): Promise<void> {
       try {
         const raw = Buffer.concat(chunks);
         const parsed = await simpleParser(raw);
@@ -37,16 +38,18 @@ const server = new SMTPServer({
       } catch (err) {
         callback(err as Error);
       }
-    });
+    }
   },
 });
 
 server.on("error", (err) => console.error("mail sink error:", err));
-fs.mkdir(dir, { recursive: true }).then(() =>
-  server.listen(port, "127.0.0.1", () =>
-    console.log(`mail sink listening on 127.0.0.1:${port}, keeping mail in ${dir}`),
-  ),
-);
+void fs
+  .mkdir(dir, { recursive: true })
+  .then(() =>
+    server.listen(port, "127.0.0.1", () =>
+      console.log(`mail sink listening on 127.0.0.1:${port}, keeping mail in ${dir}`),
+    ),
+  );
 
 for (const signal of ["SIGTERM", "SIGINT"] as const) {
   process.on(signal, () => server.close(() => process.exit(0)));

@@ -362,7 +362,10 @@ describe("review and audit", () => {
       new RegExp(`uploaded the flat transfer ${shelfMark} A flat\\.wav of side A \\(SHA-256 [0-9a-f]{8}…\\)`),
     );
     await expect(item("side.rendered").first().innerText()).resolves.toMatch(
-      /rendered the access copy of side A .*from .*flat\.wav through RIAA .* \+ rolloff 13\.7 dB attenuation at 10 kHz, at [\d.]+ kHz, \d+-bit \(SHA-256 [0-9a-f]{8}…\)/,
+      new RegExp(
+        String.raw`rendered the access copy of side A .*from .*flat\.wav through RIAA .* ` +
+          String.raw`\+ rolloff 13\.7 dB attenuation at 10 kHz, at [\d.]+ kHz, \d+-bit \(SHA-256 [0-9a-f]{8}…\)`,
+      ),
     );
     const fixity = await item("side.fixity_checked").allInnerTexts();
     expect(fixity.length).toBeGreaterThanOrEqual(2);

@@ -8,7 +8,7 @@ import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { catalogueColumns, readCatalogueCsv } from "@/lib/catalogue/csv-format";
-import { api, appUrl, sameOrigin, signInCookie } from "../support/app";
+import { api, appUrl, type Json, sameOrigin, signInCookie } from "../support/app";
 import { testDb } from "../support/db";
 
 let archivist: string;
@@ -59,7 +59,7 @@ async function upload(
   path: "/api/imports/preview" | "/api/imports",
   csv: string,
   opts: { cookie: string; fields?: Record<string, string>; fileName?: string; as?: "multipart" | "text" },
-): Promise<{ status: number; body: any }> {
+): Promise<{ status: number; body: Json }> {
   let res: Response;
   if (opts.as === "text") {
     const query = new URLSearchParams({ ...opts.fields, fileName: opts.fileName ?? "discs.csv" });
@@ -141,7 +141,7 @@ async function discCount(accessionId: string): Promise<number> {
 
 async function importEvents(
   sha: string,
-): Promise<{ kind: string; subject_id: string | null; payload: any }[]> {
+): Promise<{ kind: string; subject_id: string | null; payload: Json }[]> {
   return testDb
     .selectFrom("provenance_events")
     .select(["kind", "subject_id", "payload"])
@@ -458,7 +458,7 @@ describe("export and import again", () => {
     expect(first.text).toContain(",'@Rillton,");
     expect(first.text).toContain(`"'=HYPERLINK(""http://x"")"`);
     // No cell of the exported file, as a spreadsheet reads it, starts as a formula.
-    const cells = (parse(first.text, { bom: true }) as string[][]).flat();
+    const cells = parse(first.text, { bom: true }).flat();
     expect(cells.length).toBeGreaterThan(catalogueColumns.length);
     expect(cells.filter((c) => /^[=+\-@]/.test(c))).toEqual([]);
 

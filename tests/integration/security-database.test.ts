@@ -218,9 +218,9 @@ describe("the app's database role", () => {
       await sql`CREATE FUNCTION refuse_later_log_${sql.raw(tag)}() RETURNS trigger LANGUAGE plpgsql AS $$ BEGIN RAISE EXCEPTION 'append-only'; END $$`.execute(
         trx,
       );
-      await sql`CREATE TRIGGER later_log_guard BEFORE UPDATE OR DELETE ON later_log_${sql.raw(tag)} FOR EACH ROW EXECUTE FUNCTION refuse_later_log_${sql.raw(tag)}()`.execute(
-        trx,
-      );
+      await sql`
+        CREATE TRIGGER later_log_guard BEFORE UPDATE OR DELETE ON later_log_${sql.raw(tag)}
+        FOR EACH ROW EXECUTE FUNCTION refuse_later_log_${sql.raw(tag)}()`.execute(trx);
       const rights = async (t: string) =>
         (
           await sql<{ insert: boolean; update: boolean; delete: boolean; truncate: boolean }>`
@@ -315,34 +315,38 @@ describe("checkpoints of the provenance chain", () => {
     expect(report.checkpoints.checked).toBeGreaterThanOrEqual(1);
   });
 
-  it("reports the checkpoint a log cut short contradicts when the newest events are deleted with the trigger off (as owner), even with its notes gone from the database", async () => {
-    const cp = await freshCheckpoint("truncation");
-    const cutFrom = cp.checkpoint.headSeq - 1; // the checkpoint's head, the entry before it, and everything after
-    const report = await asOwnerThenUndo(async (trx) => {
-      await lockAndUnguard(trx);
-      const removed = await sql`DELETE FROM provenance_events WHERE seq >= ${cutFrom}`.execute(trx);
-      expect(Number(removed.numAffectedRows)).toBeGreaterThanOrEqual(4);
-      // Whoever can do this can remove the database's notes of checkpoints too.
-      await sql`ALTER TABLE chain_checkpoints DISABLE TRIGGER chain_checkpoints_append_only`.execute(trx);
-      await sql`DELETE FROM chain_checkpoints`.execute(trx);
-      // The links that remain are intact: without checkpoints nothing would show.
-      return verifyChain(trx);
-    });
-    expect(report.ok).toBe(false);
-    expect(report.checkpoints.source).toBe("bucket");
-    expect(report.contradicts?.key).toBe(cp.key);
-    expect(report.contradicts?.headSeq).toBe(cp.checkpoint.headSeq);
-    expect(report.brokenAt?.seq).toBe(cp.checkpoint.headSeq);
-    expect(report.brokenAt?.reason).toMatch(/removed/);
-    expect(report.head?.seq).toBeLessThan(cutFrom);
-    // Checkpoints taken before the cut still agree with the log.
-    expect(report.checkpoints.checked).toBe(
-      (await readCheckpointObjects()).checkpoints.filter((c) => c.headSeq < cutFrom).length,
-    );
+  it(
+    "reports the checkpoint a log cut short contradicts when the newest events are " +
+      "deleted with the trigger off (as owner), even with its notes gone from the database",
+    async () => {
+      const cp = await freshCheckpoint("truncation");
+      const cutFrom = cp.checkpoint.headSeq - 1; // the checkpoint's head, the entry before it, and everything after
+      const report = await asOwnerThenUndo(async (trx) => {
+        await lockAndUnguard(trx);
+        const removed = await sql`DELETE FROM provenance_events WHERE seq >= ${cutFrom}`.execute(trx);
+        expect(Number(removed.numAffectedRows)).toBeGreaterThanOrEqual(4);
+        // Whoever can do this can remove the database's notes of checkpoints too.
+        await sql`ALTER TABLE chain_checkpoints DISABLE TRIGGER chain_checkpoints_append_only`.execute(trx);
+        await sql`DELETE FROM chain_checkpoints`.execute(trx);
+        // The links that remain are intact: without checkpoints nothing would show.
+        return verifyChain(trx);
+      });
+      expect(report.ok).toBe(false);
+      expect(report.checkpoints.source).toBe("bucket");
+      expect(report.contradicts?.key).toBe(cp.key);
+      expect(report.contradicts?.headSeq).toBe(cp.checkpoint.headSeq);
+      expect(report.brokenAt?.seq).toBe(cp.checkpoint.headSeq);
+      expect(report.brokenAt?.reason).toMatch(/removed/);
+      expect(report.head?.seq).toBeLessThan(cutFrom);
+      // Checkpoints taken before the cut still agree with the log.
+      expect(report.checkpoints.checked).toBe(
+        (await readCheckpointObjects()).checkpoints.filter((c) => c.headSeq < cutFrom).length,
+      );
 
-    // Rolled back: the log as it is still verifies.
-    expect((await verifyChain(testDb)).ok).toBe(true);
-  });
+      // Rolled back: the log as it is still verifies.
+      expect((await verifyChain(testDb)).ok).toBe(true);
+    },
+  );
 
   it("reports the checkpoint a rewritten log contradicts when an event is deleted and every later hash recomputed", async () => {
     const cp = await freshCheckpoint("rewrite");

@@ -184,73 +184,77 @@ describe("a preservation master cannot be claimed or lost", () => {
     await expectVictimIntact();
   });
 
-  it("a colleague's upload id cannot be used: listing, signing, completing and cancelling it answer 404, and the colleague's own upload still completes", async () => {
-    const bytes = flatTransfer(1, 23);
-    const theirs = await startUpload(
-      colleague.engineer,
-      (
-        await testDb
-          .selectFrom("sides")
-          .select("id")
-          .where(
-            "disc_id",
-            "=",
-            (
-              await testDb
-                .selectFrom("sides")
-                .select("disc_id")
-                .where("id", "=", victim.sideId)
-                .executeTakeFirstOrThrow()
-            ).disc_id,
-          )
-          .where("designation", "=", "B")
-          .executeTakeFirstOrThrow()
-      ).id,
-      "theirs-B.wav",
-      bytes.length,
-    );
-    const parts = await sendParts(bytes, theirs.partSize, theirs.urls);
+  it(
+    "a colleague's upload id cannot be used: listing, signing, completing and cancelling " +
+      "it answer 404, and the colleague's own upload still completes",
+    async () => {
+      const bytes = flatTransfer(1, 23);
+      const theirs = await startUpload(
+        colleague.engineer,
+        (
+          await testDb
+            .selectFrom("sides")
+            .select("id")
+            .where(
+              "disc_id",
+              "=",
+              (
+                await testDb
+                  .selectFrom("sides")
+                  .select("disc_id")
+                  .where("id", "=", victim.sideId)
+                  .executeTakeFirstOrThrow()
+              ).disc_id,
+            )
+            .where("designation", "=", "B")
+            .executeTakeFirstOrThrow()
+        ).id,
+        "theirs-B.wav",
+        bytes.length,
+      );
+      const parts = await sendParts(bytes, theirs.partSize, theirs.urls);
 
-    const listed = await api(`/api/uploads?uploadId=${theirs.uploadId}`, { cookie: c.engineer });
-    const signed = await api("/api/uploads/parts", {
-      cookie: c.engineer,
-      method: "POST",
-      body: { uploadId: theirs.uploadId, partNumbers: [1] },
-    });
-    const completed = await api("/api/uploads/complete", {
-      cookie: c.engineer,
-      method: "POST",
-      body: {
-        uploadId: theirs.uploadId,
-        parts,
-        sha256: sha256Of(bytes),
-        bytes: bytes.length,
-        ...transferDetails,
-      },
-    });
-    const aborted = await api("/api/uploads/abort", {
-      cookie: c.engineer,
-      method: "POST",
-      body: { uploadId: theirs.uploadId },
-    });
-    expect([listed.status, signed.status, completed.status, aborted.status]).toEqual([404, 404, 404, 404]);
-    expect(signed.body.urls).toBeUndefined();
-    expect(await uploadState(theirs.uploadId)).toBe("open");
+      const listed = await api(`/api/uploads?uploadId=${theirs.uploadId}`, { cookie: c.engineer });
+      const signed = await api("/api/uploads/parts", {
+        cookie: c.engineer,
+        method: "POST",
+        body: { uploadId: theirs.uploadId, partNumbers: [1] },
+      });
+      const completed = await api("/api/uploads/complete", {
+        cookie: c.engineer,
+        method: "POST",
+        body: {
+          uploadId: theirs.uploadId,
+          parts,
+          sha256: sha256Of(bytes),
+          bytes: bytes.length,
+          ...transferDetails,
+        },
+      });
+      const aborted = await api("/api/uploads/abort", {
+        cookie: c.engineer,
+        method: "POST",
+        body: { uploadId: theirs.uploadId },
+      });
+      expect([listed.status, signed.status, completed.status, aborted.status]).toEqual([404, 404, 404, 404]);
+      expect(signed.body.urls).toBeUndefined();
+      expect(await uploadState(theirs.uploadId)).toBe("open");
 
-    const theirsDone = await api("/api/uploads/complete", {
-      cookie: colleague.engineer,
-      method: "POST",
-      body: {
-        uploadId: theirs.uploadId,
-        parts,
-        sha256: sha256Of(bytes),
-        bytes: bytes.length,
-        ...transferDetails,
-      },
-    });
-    expect(theirsDone.status).toBe(201);
-    expect(await storedSha256(theirs.key)).toBe(sha256Of(bytes));
-  });
+      const theirsDone = await api("/api/uploads/complete", {
+        cookie: colleague.engineer,
+        method: "POST",
+        body: {
+          uploadId: theirs.uploadId,
+          parts,
+          sha256: sha256Of(bytes),
+          bytes: bytes.length,
+          ...transferDetails,
+        },
+      });
+      expect(theirsDone.status).toBe(201);
+      expect(await storedSha256(theirs.key)).toBe(sha256Of(bytes));
+    },
+  );
 
   it("an empty file is refused with “The file is empty (0 bytes).” as the answer's own message", async () => {
     const res = await api("/api/uploads", {

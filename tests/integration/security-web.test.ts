@@ -17,7 +17,7 @@ import { hiddenToken } from "@/lib/mail/redact";
 import { changeRole, setActive } from "@/lib/people/accounts";
 import { invitePerson } from "@/lib/people/invitations";
 import { requestPasswordReset, resetPassword } from "@/lib/people/password-resets";
-import { api, appUrl, linkIn, sameOrigin, signInCookie, uniqueEmail } from "../support/app";
+import { api, appUrl, type Json, linkIn, sameOrigin, signInCookie, uniqueEmail } from "../support/app";
 import { testDb } from "../support/db";
 import {
   chooseCurve,
@@ -69,7 +69,7 @@ async function raw(
     redirect: "manual",
   });
   const text = await res.text();
-  let body: any = text;
+  let body: Json = text;
   try {
     body = JSON.parse(text);
   } catch {

@@ -121,7 +121,8 @@ describe("RIAA render of a multitone against the analog curve (numpy FFT)", () =
         });
       }
       console.log(
-        `multitone RIAA @ ${fs} Hz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° over 20 tones × 2 channels; trim ${result.trimDb.toFixed(3)} dB`,
+        `multitone RIAA @ ${fs} Hz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° ` +
+          `over 20 tones × 2 channels; trim ${result.trimDb.toFixed(3)} dB`,
       );
     });
   }

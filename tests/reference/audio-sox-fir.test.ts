@@ -105,7 +105,8 @@ describe("renderAccessCopy vs sox fir", () => {
       expect(peak).toBeGreaterThan(0.05);
       expect(worst).toBeLessThanOrEqual(1e-5);
       console.log(
-        `sox fir vs Rillbook @ ${fs} Hz: max |difference| ${worst.toExponential(2)} (peak ${peak.toFixed(3)}), ${frames} frames × 2, ${filter.taps.length} taps, delay ${filter.delaySamples}`,
+        `sox fir vs Rillbook @ ${fs} Hz: max |difference| ${worst.toExponential(2)} (peak ` +
+          `${peak.toFixed(3)}), ${frames} frames × 2, ${filter.taps.length} taps, delay ${filter.delaySamples}`,
       );
     });
   }

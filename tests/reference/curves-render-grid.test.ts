@@ -49,7 +49,8 @@ describe("render filter over the curve grid × common rates", () => {
         worstDeg = Math.max(worstDeg, m.maxPhaseErrorDeg);
       });
       console.log(
-        `render FIR ${fs} Hz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° over 20 Hz–20 kHz (${curves.length} curves, longest ${Math.max(...filters.map((f) => f.taps.length))} taps)`,
+        `render FIR ${fs} Hz: worst ${worstDb.toExponential(2)} dB, ${worstDeg.toExponential(2)}° ` +
+          `over 20 Hz–20 kHz (${curves.length} curves, longest ${Math.max(...filters.map((f) => f.taps.length))} taps)`,
       );
     });
   }

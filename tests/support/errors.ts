@@ -1,5 +1,5 @@
 /** Runs `fn` and returns the error it throws, which must be an instance of `type`. */
-export function thrownBy<E extends Error>(type: new (...args: any[]) => E, fn: () => unknown): E {
+export function thrownBy<E extends Error>(type: new (...args: never[]) => E, fn: () => unknown): E {
   try {
     fn();
   } catch (e) {

@@ -118,12 +118,12 @@ function syntheticSource(head: Uint8Array, size: number): ByteSource & { bytesRe
   const s = {
     size,
     bytesRead: 0,
-    async read(offset: number, length: number) {
+    read(offset: number, length: number) {
       const n = Math.max(0, Math.min(length, size - offset));
       s.bytesRead += n;
       const out = new Uint8Array(n);
       if (offset < head.length) out.set(head.subarray(offset, Math.min(head.length, offset + n)));
-      return out;
+      return Promise.resolve(out);
     },
   };
   return s;

@@ -114,7 +114,9 @@ describe("reading the file", () => {
   });
 
   it("counts blank rows so row numbers match the spreadsheet, without making discs of them", () => {
-    const text = `${header}\n${row(shellac)}\n${",".repeat(catalogueColumns.length - 1)}\n\n${row({ ...shellac, shelf_mark: "MH-78-002", format: "vinyl" })}\n\n`;
+    const blank = ",".repeat(catalogueColumns.length - 1);
+    const vinyl = row({ ...shellac, shelf_mark: "MH-78-002", format: "vinyl" });
+    const text = `${header}\n${row(shellac)}\n${blank}\n\n${vinyl}\n\n`;
     const { discs, errors, rowCount } = check(text);
     expect(rowCount).toBe(2);
     // A row whose disc columns do not read gives no disc, only its error.

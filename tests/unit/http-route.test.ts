@@ -13,7 +13,7 @@ const { route } = await import("@/lib/http/route");
 const appOrigin = new URL(env().APP_URL).origin;
 const req = new NextRequest(`${appOrigin}/api/discs/x`);
 const withId = (id: string) => ({ params: Promise.resolve({ id }) });
-const handler = route("GET /api/discs/[id]", async (_req, { params }) => ({ id: params.id }));
+const handler = route("GET /api/discs/[id]", (_req, { params }) => Promise.resolve({ id: params.id }));
 const create = route("POST /api/accessions", async (r) => ({ got: await r.json() }));
 const noParams = { params: Promise.resolve({}) };
 
@@ -104,7 +104,7 @@ describe("route()", () => {
     );
     expect(res.status).toBe(422);
     expect((await res.json()).error.fields).toHaveProperty(["rows.0.title"]);
-    const list = route("GET /api/discs", async () => ({}));
+    const list = route("GET /api/discs", () => Promise.resolve({}));
     const q = await list(new NextRequest(`${appOrigin}/api/discs?q=%00`), noParams);
     expect(q.status).toBe(422);
     expect((await q.json()).error.fields).toHaveProperty(["q"]);

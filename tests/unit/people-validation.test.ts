@@ -1,9 +1,10 @@
 import { describe, expect, it } from "vitest";
+import type { z } from "zod";
 import { fromZod } from "@/lib/http/errors";
 import { acceptInvitationSchema, inviteSchema } from "@/lib/validation/people";
 import { throttle, throttleDelayMs } from "@/lib/auth/sign-in-policy";
 
-function fieldsOf(schema: { safeParse: (v: unknown) => any }, value: unknown): Record<string, string[]> {
+function fieldsOf(schema: z.ZodType, value: unknown): Record<string, string[]> {
   const r = schema.safeParse(value);
   if (r.success) return {};
   return fromZod(r.error).fields ?? {};

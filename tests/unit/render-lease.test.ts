@@ -75,7 +75,7 @@ describe("a database outage", () => {
 describe("temporary folders of renders", () => {
   it("removes a dead worker's folder and keeps a living one's", async () => {
     // A PID that has just ended (a child that exited).
-    const gone = spawnSync(process.execPath, ["-e", "0"]).pid!;
+    const gone = spawnSync(process.execPath, ["-e", "0"]).pid;
     const dead = await fs.mkdtemp(path.join(os.tmpdir(), renderTmpPrefix(gone)));
     const mine = await fs.mkdtemp(path.join(os.tmpdir(), renderTmpPrefix()));
     await fs.writeFile(path.join(dead, "access.wav"), "partial");

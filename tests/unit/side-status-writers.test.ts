@@ -30,7 +30,7 @@ export function sideWrites(text: string): string[] {
   const found: string[] = [];
   // Kysely: from updateTable("sides") / insertInto("sides") to the end of that statement.
   for (const m of text.matchAll(/\.(updateTable|insertInto)\(\s*["'`]sides(?:\s+as\s+\w+)?["'`]\s*\)/g)) {
-    const rest = text.slice(m.index!);
+    const rest = text.slice(m.index);
     const end = rest.search(/\.execute(TakeFirst(OrThrow)?)?\(/);
     const statement = rest.slice(0, end === -1 ? 600 : end);
     const setPart = (statement.match(/\.(set|values)\(([\s\S]*)$/)?.[2] ?? "").split(

@@ -12,7 +12,10 @@ export default async function CurvesPage() {
     <>
       <PageHeader
         title="Curve library"
-        lead="The lab's playback curves, each at its current version. Open one in the workbench to see its response, compare it, or save a new version with a note saying why."
+        lead={
+          "The lab's playback curves, each at its current version. Open one in the workbench " +
+          "to see its response, compare it, or save a new version with a note saying why."
+        }
         actions={
           <LinkButton href="/curves/workbench" variant="primary" data-testid="new-curve">
             New curve

@@ -12,7 +12,10 @@ export default async function ReviewPage() {
     <>
       <PageHeader
         title="Review"
-        lead="Sides whose engineer has sent them for review. Open one to check the curve, the files and their fixity, listen, then approve it or send it back with a reason."
+        lead={
+          "Sides whose engineer has sent them for review. Open one to check the curve, the " +
+          "files and their fixity, listen, then approve it or send it back with a reason."
+        }
       />
       <Suspense fallback={<p className="text-sm text-ink-faint">Loading…</p>}>
         <ReviewQueue />

@@ -3,7 +3,6 @@ import { route } from "@/lib/http/route";
 
 export const dynamic = "force-dynamic";
 
-export const GET = route("GET /api/me", async (_req, { user }) => ({
-  user,
-  may: permissionTable[user.role],
-}));
+export const GET = route("GET /api/me", (_req, { user }) =>
+  Promise.resolve({ user, may: permissionTable[user.role] }),
+);

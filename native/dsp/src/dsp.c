@@ -190,14 +190,16 @@ static napi_value encode(napi_env env, napi_callback_info info) {
   double gain;
   if (!typed(env, argv[0], napi_float64_array, (void**)&s, &nsamples)) return throw_type(env, "encode: samples must be a Float64Array.");
   if (!typed(env, argv[5], napi_uint8_array, (void**)&out, &nout)) return throw_type(env, "encode: out must be a Uint8Array.");
-  if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > nsamples) return throw_range(env, "encode: count must be a whole number within the samples.");
+  if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > nsamples)
+    return throw_range(env, "encode: count must be a whole number within the samples.");
   if (!get_double(env, argv[2], &gain)) return throw_type(env, "encode: gain must be a number.");
   if (!get_int(env, argv[3], &bits) || (bits != 16 && bits != 24 && bits != 32)) return throw_range(env, "encode: bits must be 16, 24 or 32.");
   napi_valuetype dt;
   CHECK(napi_typeof(env, argv[4], &dt));
   uint32_t* state = NULL;
   if (dt != napi_null && dt != napi_undefined) {
-    if (!typed(env, argv[4], napi_uint32_array, (void**)&state, &nstate) || nstate < 1) return throw_type(env, "encode: dither must be a Uint32Array holding the generator's state, or null.");
+    if (!typed(env, argv[4], napi_uint32_array, (void**)&state, &nstate) || nstate < 1)
+      return throw_type(env, "encode: dither must be a Uint32Array holding the generator's state, or null.");
   }
   int width = (int)(bits / 8);
   if (nout < (size_t)count * (size_t)width) return throw_range(env, "encode: out is too short.");

@@ -13,7 +13,10 @@ export default async function WorkbenchPage() {
     <>
       <PageHeader
         title="Curve workbench"
-        lead="Shape a playback curve from its time constants, check the filter that will render it, fit it to a published table or a test-disc transfer, and save it to the library."
+        lead={
+          "Shape a playback curve from its time constants, check the filter that will render " +
+          "it, fit it to a published table or a test-disc transfer, and save it to the library."
+        }
       />
       {/* The workbench reads ?preset= on the client. */}
       <Suspense fallback={<p className="text-sm text-ink-faint">Loading the workbench…</p>}>

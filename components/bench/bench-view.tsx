@@ -6,7 +6,7 @@
  * access copy rendered from exactly that transfer and curve, heard against the flat
  * transfer through the curve, and sent for review.
  */
-import { useCallback, useEffect, useId, useMemo, useState } from "react";
+import { useCallback, useId, useMemo, useState } from "react";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { CURVE_COLORS } from "@/components/curves/plot-format";
 import { PresetPicker } from "@/components/curves/preset-picker";
@@ -68,7 +68,7 @@ export function BenchView({
       out.push({ id: "edits", label: "Edits in the form", spec: editSpec });
     for (const id of extraPresets) {
       const p = presets.data?.presets.find((x) => x.id === id);
-      if (p) out.push(presetCandidate(p, speeds));
+      if (p) out.push(presetCandidate(p, { cut: speeds.cut, transfer: speeds.transfer }));
     }
     return out.filter((c) => !hidden.has(c.id)).slice(0, MAX_CANDIDATES);
   }, [current, editSpec, extraPresets, presets.data, speeds.cut, speeds.transfer, hidden]);

@@ -6,6 +6,7 @@ import {
   type StoredSide,
   storedSideFields,
 } from "@/lib/validation/catalogue";
+import { valueText } from "@/lib/value-text";
 import type { DiscJson } from "./types";
 
 /** Each stored field as the text its control shows (a list stays a list). */
@@ -22,13 +23,13 @@ export type DiscFormValues = AsFormText<StoredDisc> & { sides: SideValues[]; ver
 export type ScalarField = Exclude<keyof StoredDisc, "conditionFlags">;
 export const scalarFields = storedDiscFields.filter((f): f is ScalarField => f !== "conditionFlags");
 
-const text = (v: unknown) => (v === null || v === undefined ? "" : String(v));
+const text = (v: unknown) => (v === null || v === undefined ? "" : valueText(v));
 
 export function toFormValues(d: DiscJson): DiscFormValues {
   const fields = Object.fromEntries(
     storedDiscFields.map((f) => {
       const v = d[f];
-      return [f, Array.isArray(v) ? [...(v as string[])] : text(v)];
+      return [f, Array.isArray(v) ? [...v] : text(v)];
     }),
   ) as AsFormText<StoredDisc>;
   return {

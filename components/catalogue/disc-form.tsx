@@ -4,13 +4,12 @@ import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useEffect, useState } from "react";
-import { type FieldPath, type Resolver, useForm } from "react-hook-form";
+import { type FieldPath, type Resolver, useForm, useWatch } from "react-hook-form";
 import { Button } from "@/components/ui/button";
 import { controlClass, FieldShell } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { Panel } from "@/components/ui/panel";
 import { fetchJson } from "@/lib/http/client";
-import { valueText } from "@/lib/value-text";
 import type { AppError } from "@/lib/http/errors";
 import {
   conditionFlags,
@@ -61,10 +60,10 @@ export function DiscForm({
     defaultValues: loaded,
     mode: "onTouched",
   });
-  const { register, formState, control, watch, setValue, setError } = form;
+  const { register, formState, control, setValue, setError } = form;
   const { errors } = formState;
-  const format = watch("format");
-  const speed = watch("nominalSpeedRpm");
+  const format = useWatch({ control, name: "format" });
+  const speed = useWatch({ control, name: "nominalSpeedRpm" });
   const [speedOther, setSpeedOther] = useState(
     () => !nominalSpeeds.map(String).includes(loaded.nominalSpeedRpm),
   );
@@ -155,9 +154,9 @@ export function DiscForm({
   const controls = discControls(register, errors);
   const { err, input, select } = controls;
 
-  const flags = watch("conditionFlags");
-  const grade = watch("conditionGrade");
-  const base = watch("base");
+  const flags = useWatch({ control, name: "conditionFlags" });
+  const grade = useWatch({ control, name: "conditionGrade" });
+  const base = useWatch({ control, name: "base" });
 
   return (
     <form

@@ -356,7 +356,11 @@ export function ImportPanel({
                   ? "Importing is possible once every problem and conflict above is resolved."
                   : `All of it goes in as one change: if anything fails, nothing is written. Each changed disc gets its own entry in its history.`}
               </p>
-              <Button onClick={commit} disabled={blocked || phase !== "idle"} data-testid="import-confirm">
+              <Button
+                onClick={() => void commit()}
+                disabled={blocked || phase !== "idle"}
+                data-testid="import-confirm"
+              >
                 {phase === "importing" ? "Importing…" : confirmLabel(report)}
               </Button>
             </div>

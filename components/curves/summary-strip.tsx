@@ -14,7 +14,7 @@ export function SummaryStrip({ desc, stale }: { desc: CurveDescription | null; s
   if (!desc || !gains) return null;
   const c = desc.curve;
   const taus = (["shelf", "turnover", "rolloff", "highpass", "ultrasonic"] as const).flatMap((n) =>
-    c[n] ? [{ n, tau: c[n]!.filterTauUs }] : [],
+    c[n] ? [{ n, tau: c[n].filterTauUs }] : [],
   );
   return (
     <dl

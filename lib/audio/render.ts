@@ -532,10 +532,10 @@ async function measurePass(plan: RenderPlan): Promise<Measured> {
       else if (kept && !(await kept.append(samples, frames))) kept = null;
       emitted += frames;
     });
-    const written = writer ? await (writer as BwfWriter).close() : null;
+    const written = writer ? await writer.close() : null;
     return { peak, written, kept };
   } catch (error) {
-    if (writer) await (writer as BwfWriter).abort();
+    if (writer) await writer.abort();
     if (kept) await (kept as KeptSignal).discard();
     throw error;
   }

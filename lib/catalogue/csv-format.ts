@@ -274,7 +274,7 @@ export function readCatalogueCsv(text: string): ReadSheet {
       delimiter,
       relax_column_count: true,
       skip_empty_lines: false,
-    }) as string[][];
+    });
   } catch (e) {
     if (e instanceof CsvError) return { ...none, errors: [csvParseProblem(e)] };
     throw e;
@@ -458,7 +458,7 @@ function discCandidate(
 }
 
 function sideCandidate(values: Record<CatalogueColumn, string>): Record<string, unknown> | null {
-  if (sideColumns.every((c) => values[c as CatalogueColumn].trim() === "")) return null;
+  if (sideColumns.every((c) => values[c].trim() === "")) return null;
   return {
     designation: values.side,
     matrixNumber: values.matrix_number,
@@ -736,7 +736,7 @@ export type ExportDisc = Omit<StoredDisc, "accessionId"> & {
 };
 
 const cell = (v: unknown): string =>
-  v === null || v === undefined ? "" : Array.isArray(v) ? v.join(";") : String(v);
+  v === null || v === undefined ? "" : Array.isArray(v) ? v.join(";") : valueText(v);
 
 /** The cells of one disc's rows, by column: one row per side, or one with empty side columns. */
 function cellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {

@@ -38,7 +38,9 @@ const cornerWords: Record<CornerName, string> = {
 /** A value as a person typed it, for a message ("blank" when there is no number at all). */
 function typed(v: unknown): string {
   if (v === undefined || v === null || v === "" || (typeof v === "number" && Number.isNaN(v))) return "blank";
-  return `“${String(v)}”`;
+  const shown =
+    typeof v === "string" || typeof v === "number" || typeof v === "boolean" ? String(v) : JSON.stringify(v);
+  return `“${shown}”`;
 }
 
 function resolveCorner(name: CornerName, input: CornerInput, speedRatio: number): ResolvedCorner | null {

@@ -23,7 +23,7 @@ export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> 
 
 /** The JSON body of an answer from the app's API, or the AppError it carries. */
 export async function answerJson<T>(res: Response, method = "GET"): Promise<T> {
-  const body = await res.json().catch(() => null);
+  const body: unknown = await res.json().catch(() => null);
   if (!res.ok) {
     const e = (body as { error?: ErrorBody } | null)?.error;
     const message = e?.message ?? `The server answered ${res.status}.`;

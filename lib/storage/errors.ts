@@ -53,7 +53,7 @@ function isNetworkFailure(e: Failure, depth = 0): boolean {
   // A refused connection to every address of a host comes as an AggregateError; fetch wraps its cause.
   if (Array.isArray(e.errors) && e.errors.some((x) => x && isNetworkFailure(x as Failure, depth + 1)))
     return true;
-  return typeof e.cause === "object" && e.cause !== null && isNetworkFailure(e.cause as Failure, depth + 1);
+  return typeof e.cause === "object" && e.cause !== null && isNetworkFailure(e.cause, depth + 1);
 }
 
 /**

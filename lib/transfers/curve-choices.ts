@@ -41,12 +41,7 @@ export async function chooseCurve(
       preset = { name: v.name, spec: v.spec };
     }
     // The same merge the bench plots and plays (preset, then overrides, then transfer ÷ cut speed).
-    const spec = mergeCurve(
-      preset?.spec ?? null,
-      c.overrides as Partial<CurveSpec>,
-      c.cutSpeedRpm,
-      c.transferSpeedRpm,
-    );
+    const spec = mergeCurve(preset?.spec ?? null, c.overrides, c.cutSpeedRpm, c.transferSpeedRpm);
     checkCurveSpec(spec, "overrides");
     // Every side locked through the lifecycle, in a stable order.
     const sides = await lockSides(trx, c.sideIds);

@@ -384,7 +384,11 @@ export async function runUpload(args: {
     hasher.init();
     const etags = new Map<number, string>(done);
     const running = new Set<Promise<void>>();
-    let failure: unknown = null;
+    // The first part that failed for good (set from the parts' own promises).
+    const failed: { error: Error | null } = { error: null };
+    const throwIfFailed = () => {
+      if (failed.error) throw failed.error;
+    };
 
     const sendPart = async (n: number, body: Uint8Array) => {
       for (let refusals = 0; ;) {
@@ -426,7 +430,7 @@ export async function runUpload(args: {
 
     for (let n = 1; n <= s.partCount; n++) {
       if (cancelled()) throw new Cancelled("Cancelled.");
-      if (failure) throw failure;
+      throwIfFailed();
       const from = (n - 1) * s.partSize;
       const slice = await file.slice(from, Math.min(file.size, from + s.partSize));
       hasher.update(slice);
@@ -437,17 +441,17 @@ export async function runUpload(args: {
         continue;
       }
       while (running.size >= CONCURRENCY) await Promise.race(running);
-      if (failure) throw failure;
+      throwIfFailed();
       const p: Promise<void> = sendPart(n, slice)
         .catch((err: unknown) => {
-          failure ??= err;
+          failed.error ??= err instanceof Error ? err : new Error(String(err));
         })
         .finally(() => running.delete(p));
       running.add(p);
       report();
     }
     await Promise.all(running);
-    if (failure) throw failure;
+    throwIfFailed();
     const sha256 = hasher.digest("hex");
 
     onState((st) => ({ ...st, phase: "checking", sentBytes: file.size, hashedBytes: file.size }));

@@ -244,7 +244,7 @@ async function prepareWorld(clients: Record<Role, Client>, uploaders: number): P
       const found = await archivist.json<DiscListAnswer>(
         `/api/discs?accession=${accessionId}&q=${encodeURIComponent(shelfMark)}&pageSize=200`,
       );
-      let disc = found.rows.find((r) => r.shelfMark === shelfMark);
+      const disc = found.rows.find((r) => r.shelfMark === shelfMark);
       if (!disc) {
         const made = await archivist.json<{ disc: { id: string; sides: { id: string }[] } }>("/api/discs", {
           method: "POST",

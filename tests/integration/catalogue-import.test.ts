@@ -117,7 +117,7 @@ async function exportCsv(
 }
 
 /** The cells of an exported file, as a spreadsheet reads them. */
-const cellsOf = (text: string) => parse(text, { bom: true }) as string[][];
+const cellsOf = (text: string): string[][] => parse(text, { bom: true });
 /** Cells written back the way the export writes them (byte-order mark, CRLF). */
 const fileOf = (cells: string[][]) => stringify(cells, { bom: true, record_delimiter: "windows" });
 const versionAt = catalogueColumns.indexOf("version");

@@ -131,7 +131,7 @@ function startEngine(
     file: {
       name: fileName,
       size: bytes.length,
-      slice: async (from, to) => bytes.slice(from, to),
+      slice: (from, to) => Promise.resolve(bytes.slice(from, to)),
     },
     details: transferDetails,
     io,
@@ -161,7 +161,7 @@ describe("the file store unreachable in the middle of an upload", () => {
     const w = watchedIo(memory, async (part) => {
       if (part < 3) return;
       downOnce ??= (async () => {
-        await until("parts 1 and 2 stored", async () => (w.stored(1) && w.stored(2) ? true : undefined));
+        await until("parts 1 and 2 stored", () => (w.stored(1) && w.stored(2) ? true : undefined));
         await takeStoreDown();
       })();
       await downOnce;
@@ -172,12 +172,12 @@ describe("the file store unreachable in the middle of an upload", () => {
     // (A passing failure to reach the app itself, if one happens, is reported in its own words first.)
     const outage = await until(
       "the store's outage to be reported",
-      async () => (e.state().outage?.message === storeOutageMessage ? e.state().outage! : undefined),
+      () => (e.state().outage?.message === storeOutageMessage ? e.state().outage! : undefined),
       60_000,
     );
     expect(outage.message).toBe("The lab's file store cannot be reached; retrying…");
     expect(e.state().phase).toBe("uploading");
-    await until("several tries against the dead store", async () =>
+    await until("several tries against the dead store", () =>
       (e.state().outage?.tries ?? 0) >= 12 ? true : undefined,
     );
     // The pauses grow: 300 ms doubling to 1.5 s here (±20 %), so the first is short and later ones long.
@@ -263,7 +263,7 @@ describe("the file store unreachable in the middle of an upload", () => {
     const first = watchedIo(memory, async (part) => {
       if (part < 2) return;
       downOnce ??= (async () => {
-        await until("part 1 stored", async () => (first.stored(1) ? true : undefined));
+        await until("part 1 stored", () => (first.stored(1) ? true : undefined));
         await takeStoreDown();
       })();
       await downOnce;
@@ -290,7 +290,7 @@ describe("the file store unreachable in the middle of an upload", () => {
     await bringStoreBack();
     // "Try again": the same engine, the same remembered upload. s3rver cannot list parts:
     // the server says so (parts: null) and the engine goes by the parts it remembers.
-    const second = watchedIo(memory, async () => undefined);
+    const second = watchedIo(memory, () => Promise.resolve());
     const e2 = startEngine(sideId, bytes, "gave-up.wav", second.io);
     const result = await e2.run;
     expect(e2.state().error).toBeNull();

@@ -46,7 +46,7 @@ export type Json = any;
 export async function api(
   pathname: string,
   opts: { cookie?: string; method?: string; body?: unknown; base?: string } = {},
-): Promise<{ status: number; body: any }> {
+): Promise<{ status: number; body: Json }> {
   const base = opts.base ?? appUrl;
   const res = await fetch(`${base}${pathname}`, {
     method: opts.method ?? "GET",

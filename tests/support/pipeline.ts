@@ -21,7 +21,7 @@ export async function labCookies(): Promise<LabCookies> {
 
 export async function until<T>(
   what: string,
-  probe: () => Promise<T | undefined>,
+  probe: () => Promise<T | undefined> | T | undefined,
   timeoutMs = 60_000,
 ): Promise<T> {
   const deadline = Date.now() + timeoutMs;

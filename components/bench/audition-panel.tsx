@@ -164,7 +164,8 @@ export function AuditionPanel({
       setPlayError(err instanceof Error ? err.message : String(err));
     }
     if (!candidates.some((c) => c.id === activeId)) setActiveId("flat");
-    // eslint-disable-next-line react-hooks/exhaustive-deps -- candidateKey stands for the candidates' ids and curves; a new array with the same ones changes nothing
+    // candidateKey stands for the candidates' ids and curves; a new array with the same ones changes nothing.
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- candidateKey stands for the candidates
   }, [candidateKey]);
 
   useEffect(() => () => void playerRef.current?.close(), []);

@@ -372,7 +372,10 @@ export async function readWavHeader(source: ByteSource): Promise<WavHeader> {
         (/^[A-Za-z][A-Za-z0-9 ]{3}$/.test(earlyId) && fits && p + 8 + size32 > size)
       )
         throw new WavError(
-          `The ${odd.id.trim()} chunk at byte offset ${odd.offset} has an odd size (${odd.size} bytes) but is not followed by the pad byte the RIFF format requires, so the next chunk ("${earlyId.trim()}") starts one byte early, at offset ${p - 1}. The program that wrote this file broke the format: export the transfer again or repair its chunks.`,
+          `The ${odd.id.trim()} chunk at byte offset ${odd.offset} has an odd size (${odd.size} bytes) ` +
+            `but is not followed by the pad byte the RIFF format requires, so the next chunk ` +
+            `("${earlyId.trim()}") starts one byte early, at offset ${p - 1}. The program that wrote ` +
+            `this file broke the format: export the transfer again or repair its chunks.`,
           odd.offset,
         );
     }

@@ -173,7 +173,8 @@ export function fitCurve(request: FitRequest): FitResult {
   if (points.length < fitList.length + 1) {
     throw new CurveError(
       "points",
-      `${plural(points.length, "point")} cannot settle ${plural(fitList.length, "value")} with one left over as a check: give at least ${fitList.length + 1} points.`,
+      `${plural(points.length, "point")} cannot settle ${plural(fitList.length, "value")} ` +
+        `with one left over as a check: give at least ${fitList.length + 1} points.`,
     );
   }
   const cornerNames = fitList.filter((p): p is CornerName => p !== "levelOffset");

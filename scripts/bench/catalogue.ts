@@ -116,7 +116,8 @@ async function fill(db: ReturnType<typeof createDb>): Promise<void> {
     "Selby",
   ];
   await sql`
-    INSERT INTO discs (accession_id, shelf_mark, label_name, catalogue_number, format, nominal_speed_rpm, groove, cut, recorded_from_year, recorded_to_year, condition_grade)
+    INSERT INTO discs (accession_id, shelf_mark, label_name, catalogue_number, format, nominal_speed_rpm,
+                       groove, cut, recorded_from_year, recorded_to_year, condition_grade)
     SELECT acc.ids[1 + g % 50],
            'BX-' || lpad(g::text, 7, '0'),
            (${labels}::text[])[1 + g % 10],

@@ -243,7 +243,11 @@ async function main(): Promise<void> {
     const trimmedS = (trimmed.report.renderMs as number) / 1000;
     const trimmedCpuS = (trimmed.report.cpuMs as number) / 1000;
     console.log(
-      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, CPU ${trimmedCpuS.toFixed(2)} s (ratio ${(soxCpuS / trimmedCpuS).toFixed(2)}), peak RSS ${mb(trimmed.report.maxRssKb)}`,
+      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, ` +
+        `two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, ` +
+        `read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ` +
+        `${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, ` +
+        `CPU ${trimmedCpuS.toFixed(2)} s (ratio ${(soxCpuS / trimmedCpuS).toFixed(2)}), peak RSS ${mb(trimmed.report.maxRssKb)}`,
     );
 
     // The same one-pass render with the JavaScript engine (the fallback where the native one is not built).

@@ -645,7 +645,10 @@ async function main(): Promise<void> {
   }
   const all = samples.map((s) => s.ms);
   console.log(
-    `${"all".padEnd(34)}${pad(samples.length, 7)}${pad(errors, 8)}${pad(ms(percentile(all, 50)), 8)}${pad(ms(percentile(all, 95)), 8)}${pad(ms(percentile(all, 99)), 8)}`,
+    "all".padEnd(34) +
+      pad(samples.length, 7) +
+      pad(errors, 8) +
+      [50, 95, 99].map((q) => pad(ms(percentile(all, q)), 8)).join(""),
   );
   if (failures.size > 0) {
     console.log("\nErrors:");
@@ -702,7 +705,8 @@ async function main(): Promise<void> {
       );
     else if (saturation)
       console.log(
-        `Saturation point: not reached; the highest rate was ${saturation.highestRate.toFixed(0)} requests per second with p95 ${saturation.p95AtHighest.toFixed(0)} ms (try more clients or a longer ramp).`,
+        `Saturation point: not reached; the highest rate was ${saturation.highestRate.toFixed(0)} ` +
+          `requests per second with p95 ${saturation.p95AtHighest.toFixed(0)} ms (try more clients or a longer ramp).`,
       );
   }
 

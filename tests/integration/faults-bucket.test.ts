@@ -147,109 +147,116 @@ function startEngine(
 }
 
 describe("the file store unreachable in the middle of an upload", () => {
-  it("tells the engineer, waits the outage out with growing pauses, then sends only the parts not yet stored; the transfer is accepted once with the right SHA-256", async () => {
-    const { sideIds } = await assignedDisc(c, `FAULT-S3-UP-${Date.now().toString(36)}`, ["A"]);
-    const sideId = sideIds[0];
-    // About 38 MB: five 8 MiB parts, three in flight at a time.
-    const bytes = makeWav({ seconds: 290, channels: 1, seed: 15 });
-    expect(Math.ceil(bytes.length / (8 * 1024 * 1024))).toBe(5);
-    const expectedSha = sha256Of(bytes);
+  it(
+    "tells the engineer, waits the outage out with growing pauses, then sends only the parts not yet stored; " +
+      "the transfer is accepted once with the right SHA-256",
+    async () => {
+      const { sideIds } = await assignedDisc(c, `FAULT-S3-UP-${Date.now().toString(36)}`, ["A"]);
+      const sideId = sideIds[0];
+      // About 38 MB: five 8 MiB parts, three in flight at a time.
+      const bytes = makeWav({ seconds: 290, channels: 1, seed: 15 });
+      expect(Math.ceil(bytes.length / (8 * 1024 * 1024))).toBe(5);
+      const expectedSha = sha256Of(bytes);
 
-    // Parts 1 and 2 reach the store; then it dies, before part 3 (and 4, 5) can go.
-    let downOnce: Promise<void> | null = null;
-    const memory = new Map<string, string>();
-    const w = watchedIo(memory, async (part) => {
-      if (part < 3) return;
-      downOnce ??= (async () => {
-        await until("parts 1 and 2 stored", () => (w.stored(1) && w.stored(2) ? true : undefined));
-        await takeStoreDown();
-      })();
-      await downOnce;
-    });
-    const e = startEngine(sideId, bytes, "outage-drill.wav", w.io);
+      // Parts 1 and 2 reach the store; then it dies, before part 3 (and 4, 5) can go.
+      let downOnce: Promise<void> | null = null;
+      const memory = new Map<string, string>();
+      const w = watchedIo(memory, async (part) => {
+        if (part < 3) return;
+        downOnce ??= (async () => {
+          await until("parts 1 and 2 stored", () => (w.stored(1) && w.stored(2) ? true : undefined));
+          await takeStoreDown();
+        })();
+        await downOnce;
+      });
+      const e = startEngine(sideId, bytes, "outage-drill.wav", w.io);
 
-    // What the engineer sees: the outage in plain words, while the upload keeps trying.
-    // (A passing failure to reach the app itself, if one happens, is reported in its own words first.)
-    const outage = await until(
-      "the store's outage to be reported",
-      () => (e.state().outage?.message === storeOutageMessage ? e.state().outage! : undefined),
-      60_000,
-    );
-    expect(outage.message).toBe("The lab's file store cannot be reached; retrying…");
-    expect(e.state().phase).toBe("uploading");
-    await until("several tries against the dead store", () =>
-      (e.state().outage?.tries ?? 0) >= 12 ? true : undefined,
-    );
-    // The pauses grow: 300 ms doubling to 1.5 s here (±20 %), so the first is short and later ones long.
-    const pauses = e.seen
-      .filter((s) => s.state.outage?.message === storeOutageMessage)
-      .map((s) => s.state.outage!.nextTryAt - s.at);
-    expect(Math.min(...pauses)).toBeLessThan(500);
-    expect(Math.max(...pauses)).toBeGreaterThanOrEqual(1000);
-    const refusedMeanwhile = w.puts.filter((p) => p.outcome === "unreachable").length;
-    expect(refusedMeanwhile).toBeGreaterThanOrEqual(4);
-    expect(w.puts.filter((p) => p.outcome === "refused")).toEqual([]);
-    // The server's side of it: the upload is still open, nothing accepted.
-    const uploadRow = await testDb
-      .selectFrom("uploads")
-      .select(["id", "state", "storage_upload_id", "object_key"])
-      .where("side_id", "=", sideId)
-      .executeTakeFirstOrThrow();
-    expect(uploadRow.state).toBe("open");
-    expect(await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideId).execute()).toEqual(
-      [],
-    );
+      // What the engineer sees: the outage in plain words, while the upload keeps trying.
+      // (A passing failure to reach the app itself, if one happens, is reported in its own words first.)
+      const outage = await until(
+        "the store's outage to be reported",
+        () => (e.state().outage?.message === storeOutageMessage ? e.state().outage! : undefined),
+        60_000,
+      );
+      expect(outage.message).toBe("The lab's file store cannot be reached; retrying…");
+      expect(e.state().phase).toBe("uploading");
+      await until("several tries against the dead store", () =>
+        (e.state().outage?.tries ?? 0) >= 12 ? true : undefined,
+      );
+      // The pauses grow: 300 ms doubling to 1.5 s here (±20 %), so the first is short and later ones long.
+      const pauses = e.seen
+        .filter((s) => s.state.outage?.message === storeOutageMessage)
+        .map((s) => s.state.outage!.nextTryAt - s.at);
+      expect(Math.min(...pauses)).toBeLessThan(500);
+      expect(Math.max(...pauses)).toBeGreaterThanOrEqual(1000);
+      const refusedMeanwhile = w.puts.filter((p) => p.outcome === "unreachable").length;
+      expect(refusedMeanwhile).toBeGreaterThanOrEqual(4);
+      expect(w.puts.filter((p) => p.outcome === "refused")).toEqual([]);
+      // The server's side of it: the upload is still open, nothing accepted.
+      const uploadRow = await testDb
+        .selectFrom("uploads")
+        .select(["id", "state", "storage_upload_id", "object_key"])
+        .where("side_id", "=", sideId)
+        .executeTakeFirstOrThrow();
+      expect(uploadRow.state).toBe("open");
+      expect(
+        await testDb.selectFrom("transfers").select("id").where("side_id", "=", sideId).execute(),
+      ).toEqual([]);
 
-    // The store comes back on the same port and data folder: the upload carries on by itself.
-    await bringStoreBack();
-    const result = await e.run;
-    expect(e.state().error).toBeNull();
-    expect(e.state().phase).toBe("done");
-    expect(e.state().outage).toBeNull();
-    expect(result?.sha256).toBe(expectedSha);
-    expect(result?.bytes).toBe(bytes.length);
+      // The store comes back on the same port and data folder: the upload carries on by itself.
+      await bringStoreBack();
+      const result = await e.run;
+      expect(e.state().error).toBeNull();
+      expect(e.state().phase).toBe("done");
+      expect(e.state().outage).toBeNull();
+      expect(result?.sha256).toBe(expectedSha);
+      expect(result?.bytes).toBe(bytes.length);
 
-    // Resumed, not started over: parts 1 and 2 went once, before the outage; every part was stored exactly once.
-    expect(w.puts.filter((p) => p.part <= 2)).toEqual([
-      expect.objectContaining({ outcome: "stored" }),
-      expect.objectContaining({ outcome: "stored" }),
-    ]);
-    for (let n = 1; n <= 5; n++) expect(w.stored(n)).toBe(1);
-    // One upload, one transfer with the right checksum, one event; the side is transferred.
-    const uploads = await testDb
-      .selectFrom("uploads")
-      .select(["state"])
-      .where("side_id", "=", sideId)
-      .execute();
-    expect(uploads).toEqual([{ state: "completed" }]);
-    const transfers = await testDb
-      .selectFrom("transfers")
-      .select(["id", "sha256", "bytes", "object_key"])
-      .where("side_id", "=", sideId)
-      .execute();
-    expect(transfers).toHaveLength(1);
-    expect(transfers[0].sha256).toBe(expectedSha);
-    expect(Number(transfers[0].bytes)).toBe(bytes.length);
-    const events = await testDb
-      .selectFrom("provenance_events")
-      .select("id")
-      .where("kind", "=", "side.transfer_accepted")
-      .where("subject_id", "=", sideId)
-      .execute();
-    expect(events).toHaveLength(1);
-    const side = await testDb
-      .selectFrom("sides")
-      .select("status")
-      .where("id", "=", sideId)
-      .executeTakeFirstOrThrow();
-    expect(side.status).toBe("transferred");
-    // In the bucket: the one assembled file, byte for byte, and no parts left over.
-    expect(await listed(`transfers/${sideId}/`)).toEqual([{ key: uploadRow.object_key, size: bytes.length }]);
-    expect(await storedSha256(uploadRow.object_key)).toBe(expectedSha);
-    expect(await partsLeftInStore(uploadRow.storage_upload_id)).toBe(false);
-    // Nothing remembered for a resume any more.
-    expect(memory.size).toBe(0);
-  }, 300_000);
+      // Resumed, not started over: parts 1 and 2 went once, before the outage; every part was stored exactly once.
+      expect(w.puts.filter((p) => p.part <= 2)).toEqual([
+        expect.objectContaining({ outcome: "stored" }),
+        expect.objectContaining({ outcome: "stored" }),
+      ]);
+      for (let n = 1; n <= 5; n++) expect(w.stored(n)).toBe(1);
+      // One upload, one transfer with the right checksum, one event; the side is transferred.
+      const uploads = await testDb
+        .selectFrom("uploads")
+        .select(["state"])
+        .where("side_id", "=", sideId)
+        .execute();
+      expect(uploads).toEqual([{ state: "completed" }]);
+      const transfers = await testDb
+        .selectFrom("transfers")
+        .select(["id", "sha256", "bytes", "object_key"])
+        .where("side_id", "=", sideId)
+        .execute();
+      expect(transfers).toHaveLength(1);
+      expect(transfers[0].sha256).toBe(expectedSha);
+      expect(Number(transfers[0].bytes)).toBe(bytes.length);
+      const events = await testDb
+        .selectFrom("provenance_events")
+        .select("id")
+        .where("kind", "=", "side.transfer_accepted")
+        .where("subject_id", "=", sideId)
+        .execute();
+      expect(events).toHaveLength(1);
+      const side = await testDb
+        .selectFrom("sides")
+        .select("status")
+        .where("id", "=", sideId)
+        .executeTakeFirstOrThrow();
+      expect(side.status).toBe("transferred");
+      // In the bucket: the one assembled file, byte for byte, and no parts left over.
+      expect(await listed(`transfers/${sideId}/`)).toEqual([
+        { key: uploadRow.object_key, size: bytes.length },
+      ]);
+      expect(await storedSha256(uploadRow.object_key)).toBe(expectedSha);
+      expect(await partsLeftInStore(uploadRow.storage_upload_id)).toBe(false);
+      // Nothing remembered for a resume any more.
+      expect(memory.size).toBe(0);
+    },
+    300_000,
+  );
 
   it("when the outage outlasts the wait, says so and keeps the parts; trying again after the store is back sends only the rest", async () => {
     const { sideIds } = await assignedDisc(c, `FAULT-S3-AGAIN-${Date.now().toString(36)}`, ["A"]);

@@ -75,136 +75,143 @@ beforeAll(async () => {
 }, 60_000);
 
 describe("the worker killed by its PID in the middle of a render", () => {
-  it("is started again by its supervisor, the dead worker's render is taken up again and recorded once, with one object and no temporary folder left", async () => {
-    // Seven minutes at 44.1 kHz, resampled to 192 kHz for the access copy: long enough to be killed in the middle.
-    // Made first: seconds of work between two requests could outlast the app's keep-alive.
-    const long = monoTransfer(420);
-    const { sideIds } = await assignedDisc(c, `FAULT-KILL-${Date.now().toString(36)}`, ["A"]);
-    const sideId = sideIds[0];
-    await chooseCurve(c, sideIds);
-    const up = await uploadTransfer(c, sideId, long, "fault-drill.wav");
-    expect(up.done.status).toBe(201);
+  it(
+    "is started again by its supervisor, the dead worker's render is taken up again and recorded once, " +
+      "with one object and no temporary folder left",
+    async () => {
+      // Seven minutes at 44.1 kHz, resampled to 192 kHz for the access copy: long enough to be killed in the middle.
+      // Made first: seconds of work between two requests could outlast the app's keep-alive.
+      const long = monoTransfer(420);
+      const { sideIds } = await assignedDisc(c, `FAULT-KILL-${Date.now().toString(36)}`, ["A"]);
+      const sideId = sideIds[0];
+      await chooseCurve(c, sideIds);
+      const up = await uploadTransfer(c, sideId, long, "fault-drill.wav");
+      expect(up.done.status).toBe(201);
 
-    const supervisorPid = await readPidFile(pidFile(test, "worker"));
-    const queued = await api("/api/renders", {
-      cookie: c.engineer,
-      method: "POST",
-      body: { sideId, channelMode: "both", bitDepth: 24, sampleRateHz: 192_000 },
-    });
-    expect(queued.status).toBe(202);
-    const renderId: string = queued.body.renderId;
+      const supervisorPid = await readPidFile(pidFile(test, "worker"));
+      const queued = await api("/api/renders", {
+        cookie: c.engineer,
+        method: "POST",
+        body: { sideId, channelMode: "both", bitDepth: 24, sampleRateHz: 192_000 },
+      });
+      expect(queued.status).toBe(202);
+      const renderId: string = queued.body.renderId;
 
-    // Running, with some of it done: now the worker dies.
-    const before = await until(
-      "the render under way",
-      async () => {
-        const r = await testDb
-          .selectFrom("renders")
-          .select(["status", "progress", "lease_owner"])
-          .where("id", "=", renderId)
-          .executeTakeFirstOrThrow();
-        if (r.status === "done")
-          throw new Error(
-            "the render finished before the drill could kill its worker: make the transfer longer",
-          );
-        return r.status === "running" && r.progress > 0.01 ? r : undefined;
-      },
-      120_000,
-    );
-    const killedPid = await readPidFile(workerChildPidFile(test));
-    expect(before.lease_owner).toContain(`:${killedPid}:`);
-    expect((await ourRenderTmpDirs(killedPid)).length).toBe(1);
-    process.kill(killedPid, "SIGKILL");
-    const killedAt = Date.now();
+      // Running, with some of it done: now the worker dies.
+      const before = await until(
+        "the render under way",
+        async () => {
+          const r = await testDb
+            .selectFrom("renders")
+            .select(["status", "progress", "lease_owner"])
+            .where("id", "=", renderId)
+            .executeTakeFirstOrThrow();
+          if (r.status === "done")
+            throw new Error(
+              "the render finished before the drill could kill its worker: make the transfer longer",
+            );
+          return r.status === "running" && r.progress > 0.01 ? r : undefined;
+        },
+        120_000,
+      );
+      const killedPid = await readPidFile(workerChildPidFile(test));
+      expect(before.lease_owner).toContain(`:${killedPid}:`);
+      expect((await ourRenderTmpDirs(killedPid)).length).toBe(1);
+      process.kill(killedPid, "SIGKILL");
+      const killedAt = Date.now();
 
-    // The supervisor, still the same process, starts a new worker.
-    const newPid = await until(
-      "a new worker",
-      async () => {
-        const pid = await readPidFile(workerChildPidFile(test)).catch(() => 0);
-        return pid && pid !== killedPid && alive(pid) ? pid : undefined;
-      },
-      30_000,
-    );
-    expect(alive(supervisorPid)).toBe(true);
-    expect(newPid).not.toBe(killedPid);
+      // The supervisor, still the same process, starts a new worker.
+      const newPid = await until(
+        "a new worker",
+        async () => {
+          const pid = await readPidFile(workerChildPidFile(test)).catch(() => 0);
+          return pid && pid !== killedPid && alive(pid) ? pid : undefined;
+        },
+        30_000,
+      );
+      expect(alive(supervisorPid)).toBe(true);
+      expect(newPid).not.toBe(killedPid);
 
-    // The bench sees it stalled, or it is already taken up again; within two minutes a live worker holds it.
-    let sawStalled = false;
-    await until(
-      "the render taken up again",
-      async () => {
-        const list = await api(`/api/sides/${sideId}/renders`, { cookie: c.engineer });
-        const r = list.body.renders.find((x: { id: string }) => x.id === renderId);
-        if (r?.stalled) sawStalled = true;
-        const row = await testDb
-          .selectFrom("renders")
-          .select(["status", "lease_owner"])
-          .where("id", "=", renderId)
-          .executeTakeFirstOrThrow();
-        return row.status === "done" ||
-          (row.status === "running" && row.lease_owner && !row.lease_owner.includes(`:${killedPid}:`))
-          ? row
-          : undefined;
-      },
-      120_000,
-    );
-    expect(Date.now() - killedAt).toBeLessThan(120_000);
-    // The stale limit is 15 s and the sweep runs every 5 s in the test profile: the bench
-    // shows it stalled for a moment first (polled every half second).
-    expect(sawStalled).toBe(true);
+      // The bench sees it stalled, or it is already taken up again; within two minutes a live worker holds it.
+      let sawStalled = false;
+      await until(
+        "the render taken up again",
+        async () => {
+          const list = await api(`/api/sides/${sideId}/renders`, { cookie: c.engineer });
+          const r = list.body.renders.find((x: { id: string }) => x.id === renderId);
+          if (r?.stalled) sawStalled = true;
+          const row = await testDb
+            .selectFrom("renders")
+            .select(["status", "lease_owner"])
+            .where("id", "=", renderId)
+            .executeTakeFirstOrThrow();
+          return row.status === "done" ||
+            (row.status === "running" && row.lease_owner && !row.lease_owner.includes(`:${killedPid}:`))
+            ? row
+            : undefined;
+        },
+        120_000,
+      );
+      expect(Date.now() - killedAt).toBeLessThan(120_000);
+      // The stale limit is 15 s and the sweep runs every 5 s in the test profile: the bench
+      // shows it stalled for a moment first (polled every half second).
+      expect(sawStalled).toBe(true);
 
-    const done = await until(
-      "the render finished",
-      async () => {
-        const row = await testDb
-          .selectFrom("renders")
-          .selectAll()
-          .where("id", "=", renderId)
-          .executeTakeFirstOrThrow();
-        if (row.status === "failed" || row.status === "cancelled")
-          throw new Error(`render ${row.status}: ${row.error}`);
-        return row.status === "done" ? row : undefined;
-      },
-      240_000,
-    );
+      const done = await until(
+        "the render finished",
+        async () => {
+          const row = await testDb
+            .selectFrom("renders")
+            .selectAll()
+            .where("id", "=", renderId)
+            .executeTakeFirstOrThrow();
+          if (row.status === "failed" || row.status === "cancelled")
+            throw new Error(`render ${row.status}: ${row.error}`);
+          return row.status === "done" ? row : undefined;
+        },
+        240_000,
+      );
 
-    // Exactly one render of the side, recorded once, one object under the side's access prefix.
-    const rows = await testDb
-      .selectFrom("renders")
-      .select(["id", "status"])
-      .where("side_id", "=", sideId)
-      .execute();
-    expect(rows).toEqual([{ id: renderId, status: "done" }]);
-    const events = await testDb
-      .selectFrom("provenance_events")
-      .select("payload")
-      .where("kind", "=", "side.rendered")
-      .where("subject_id", "=", sideId)
-      .execute();
-    expect(events).toHaveLength(1);
-    const listed = await s3().send(
-      new ListObjectsV2Command({ Bucket: env().S3_BUCKET, Prefix: `access/${sideId}/` }),
-    );
-    expect((listed.Contents ?? []).map((o) => o.Key)).toEqual([`access/${sideId}/${renderId}.wav`]);
-    expect(Number(listed.Contents![0].Size)).toBe(Number(done.bytes));
-    const object = await s3().send(new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: done.object_key! }));
-    const hash = createHash("sha256");
-    for await (const chunk of object.Body as AsyncIterable<Uint8Array>) hash.update(chunk);
-    expect(hash.digest("hex")).toBe(done.sha256);
+      // Exactly one render of the side, recorded once, one object under the side's access prefix.
+      const rows = await testDb
+        .selectFrom("renders")
+        .select(["id", "status"])
+        .where("side_id", "=", sideId)
+        .execute();
+      expect(rows).toEqual([{ id: renderId, status: "done" }]);
+      const events = await testDb
+        .selectFrom("provenance_events")
+        .select("payload")
+        .where("kind", "=", "side.rendered")
+        .where("subject_id", "=", sideId)
+        .execute();
+      expect(events).toHaveLength(1);
+      const listed = await s3().send(
+        new ListObjectsV2Command({ Bucket: env().S3_BUCKET, Prefix: `access/${sideId}/` }),
+      );
+      expect((listed.Contents ?? []).map((o) => o.Key)).toEqual([`access/${sideId}/${renderId}.wav`]);
+      expect(Number(listed.Contents![0].Size)).toBe(Number(done.bytes));
+      const object = await s3().send(
+        new GetObjectCommand({ Bucket: env().S3_BUCKET, Key: done.object_key! }),
+      );
+      const hash = createHash("sha256");
+      for await (const chunk of object.Body as AsyncIterable<Uint8Array>) hash.update(chunk);
+      expect(hash.digest("hex")).toBe(done.sha256);
 
-    // The side is rendered, standing on this render.
-    const side = await testDb
-      .selectFrom("sides")
-      .select(["status", "current_render_id"])
-      .where("id", "=", sideId)
-      .executeTakeFirstOrThrow();
-    expect(side).toEqual({ status: "rendered", current_render_id: renderId });
+      // The side is rendered, standing on this render.
+      const side = await testDb
+        .selectFrom("sides")
+        .select(["status", "current_render_id"])
+        .where("id", "=", sideId)
+        .executeTakeFirstOrThrow();
+      expect(side).toEqual({ status: "rendered", current_render_id: renderId });
 
-    // The dead worker's temporary folder was removed by the one that replaced it.
-    expect(await ourRenderTmpDirs(killedPid)).toEqual([]);
-    expect(alive(supervisorPid)).toBe(true);
-  }, 600_000);
+      // The dead worker's temporary folder was removed by the one that replaced it.
+      expect(await ourRenderTmpDirs(killedPid)).toEqual([]);
+      expect(alive(supervisorPid)).toBe(true);
+    },
+    600_000,
+  );
 
   it("lets the side's engineer cancel a stalled render, and no one else", async () => {
     const { sideIds } = await assignedDisc(c, `FAULT-CANCEL-${Date.now().toString(36)}`, ["A"]);

@@ -15,7 +15,11 @@ export default async function ImportPage() {
     <>
       <PageHeader
         title="Import discs from a spreadsheet"
-        lead="Bring back an exported spreadsheet, or a new one: rows with a catalogued shelf mark update that disc, the others add discs. See every change before it is made; all of it goes in together, or nothing does."
+        lead={
+          "Bring back an exported spreadsheet, or a new one: rows with a catalogued shelf mark update " +
+          "that disc, the others add discs. See every change before it is made; all of it goes in " +
+          "together, or nothing does."
+        }
         actions={<LinkButton href="/catalogue">Back to the catalogue</LinkButton>}
       />
       <ImportPanel

@@ -199,6 +199,8 @@ export interface CurveChoicesTable {
   spec_sha256: string;
   cut_speed_rpm: ColumnType<string | number, number, never>;
   transfer_speed_rpm: ColumnType<string | number, number, never>;
+  /** The render resamples by cut ÷ transfer speed before writing (never when the two are equal). */
+  correct_speed: Generated<boolean>;
   rationale: string;
   evidence_kind: EvidenceKind;
   evidence: Generated<string>;

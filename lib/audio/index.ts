@@ -30,7 +30,8 @@ export type { SampleEncoding, SampleFormat, EncodeOptions, EncodeResult } from "
 export { BwfWriter } from "./writer";
 export type { BwfWriterOptions, BwfWriteResult } from "./writer";
 export { renderAccessCopy, RenderError } from "./render";
-export type { EqualizationNote, RenderOptions, RenderResult } from "./render";
+export type { EqualizationNote, RenderOptions, RenderResult, SpeedCorrection } from "./render";
+export { wholeRates } from "./resample";
 export { convolveDirect, convolverSizes, PairConvolver, StreamingConvolver } from "./convolver";
 export { CHANNEL_MODE_TEXT, mixToMono } from "./channel-mode";
 export type { ChannelMode } from "./channel-mode";

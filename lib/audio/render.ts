@@ -39,6 +39,16 @@
  * At another rate than the transfer's (the lab's choice), the filtered signal is
  * resampled after the equalization (lib/audio/resample.ts: libsamplerate's best sinc
  * converter, its delay compensated), before the peak is measured.
+ *
+ * Speed correction (`speedCorrection`, a disc cut at one speed and transferred at another):
+ * the transfer's samples are taken at the rate they have when played at the cut speed,
+ * rate × cut ÷ transfer, and the same resampler converts from that rate to the copy's, so
+ * the copy has round(frames × transfer ÷ cut × out ÷ in) frames and the cut's pitch and
+ * duration. The filter runs before it, at the transfer's rate, with the curve's corners at
+ * the transfer's frequencies (speed ratio transfer ÷ cut); played at the cut speed they are
+ * the cut's own. Filtering and resampling are both linear and time-invariant, so this is the
+ * curve at the cut speed applied to the corrected transfer, and the filter is always designed
+ * at a real rate (a 44.1 kHz transfer slowed by 70/78 would have no 20 kHz band to design in).
  */
 import { open, statfs, unlink } from "node:fs/promises";
 import type { FileHandle } from "node:fs/promises";
@@ -66,6 +76,12 @@ export interface EqualizationNote {
   software: string;
 }
 
+/** The speeds of a speed-corrected render; the transfer is played at cut ÷ transfer of its speed. */
+export interface SpeedCorrection {
+  cutSpeedRpm: number;
+  transferSpeedRpm: number;
+}
+
 export interface RenderOptions {
   source: ByteSource;
   header: WavHeader;
@@ -77,6 +93,12 @@ export interface RenderOptions {
   output?: SampleEncoding;
   /** Sample rate of the access copy; default the transfer's (then nothing is resampled). */
   outputSampleRateHz?: number;
+  /**
+   * Correct the speed: resample by cut ÷ transfer (lib/audio/resample.ts, the same converter as
+   * another rate). The filter keeps the curve's corners at the transfer's frequencies (its speed
+   * ratio transfer ÷ cut, which the render checks when `equalization` gives it).
+   */
+  speedCorrection?: SpeedCorrection;
   /** Peak ceiling in dBFS (≤ 0). Default 0: the trim only prevents clipping. */
   ceilingDbfs?: number;
   /** Frames per read; default a multiple of the convolver's block near 64k frames. */
@@ -121,6 +143,8 @@ export interface RenderResult {
   engine: string;
   /** With a trim: how pass 2 got its samples, frames filtered again and frames read back. */
   secondPass: { filteredFrames: number; readBackFrames: number } | null;
+  /** With speed correction: the factor cut ÷ transfer and the rate the transfer was converted from. */
+  speedCorrection: (SpeedCorrection & { factor: number; playedAtHz: number }) | null;
 }
 
 const DEFAULT_OUTPUT: SampleEncoding = { format: "pcm", bitsPerSample: 24 };
@@ -232,8 +256,11 @@ interface RenderPlan {
   channelsOut: 1 | 2;
   chunkFrames: number;
   output: SampleEncoding;
-  /** Rate of the access copy; `resampled` when it is not the transfer's. */
+  /** Rate of the access copy; `resampled` when it is not the rate the filtered signal is taken at (`inRate`). */
   outRate: number;
+  /** The transfer's rate, or with speed correction its rate played at the cut speed (rate × cut ÷ transfer). */
+  inRate: number;
+  speed: RenderResult["speedCorrection"];
   resampled: boolean;
   /** Frames of the access copy. */
   outFrames: number;
@@ -273,10 +300,10 @@ function planRender(opts: RenderOptions): RenderPlan {
   const chunkFrames =
     opts.chunkFrames ?? Math.max(1, Math.round(TARGET_CHUNK_FRAMES / blockSize)) * blockSize;
   const outRate = opts.outputSampleRateHz ?? header.sampleRateHz;
-  const resampled = outRate !== header.sampleRateHz;
-  const outFrames = resampled
-    ? Resampler.expectedFrames(header.frames, header.sampleRateHz, outRate)
-    : header.frames;
+  const speed = speedPlan(opts);
+  const inRate = speed ? speed.playedAtHz : header.sampleRateHz;
+  const resampled = outRate !== inRate;
+  const outFrames = resampled ? Resampler.expectedFrames(header.frames, inRate, outRate) : header.frames;
 
   const progress = progressScale(opts.onProgress ?? (() => {}));
   return {
@@ -287,11 +314,42 @@ function planRender(opts: RenderOptions): RenderPlan {
     chunkFrames,
     output,
     outRate,
+    inRate,
+    speed,
     resampled,
     outFrames,
     limit: peakLimit(output, ceilingDbfs),
-    codingHistoryFor: (trimDb) => renderCodingHistory(opts, { mode, output, outRate, channelsOut, trimDb }),
+    codingHistoryFor: (trimDb) =>
+      renderCodingHistory(opts, { mode, output, outRate, channelsOut, trimDb, speed }),
     ...progress,
+  };
+}
+
+/** The speed correction asked for, checked against the curve's speed ratio; null when none. */
+function speedPlan(opts: RenderOptions): RenderPlan["speed"] {
+  const sc = opts.speedCorrection;
+  if (!sc) return null;
+  const { cutSpeedRpm: cut, transferSpeedRpm: transfer } = sc;
+  if (!(cut > 0 && transfer > 0 && Number.isFinite(cut) && Number.isFinite(transfer)))
+    throw new RenderError(
+      `Speed correction needs two speeds above 0 rpm, not cut ${cut} and transfer ${transfer}.`,
+    );
+  const factor = cut / transfer;
+  if (factor < 0.5 || factor > 2)
+    throw new RenderError(
+      `Correcting ${transfer} rpm to ${cut} rpm (×${factor}) is outside ×0.5–2: check the speeds.`,
+    );
+  const ratio = opts.equalization?.speedRatio;
+  // The filter's corners sit where the transfer has them (transfer ÷ cut): corrected, they are the cut's.
+  if (ratio !== undefined && Math.abs(ratio * factor - 1) > 1e-9)
+    throw new RenderError(
+      `The curve's speed ratio ${ratio} is not transfer ÷ cut (${transfer}/${cut}): the corrected copy would misplace its corners.`,
+    );
+  return {
+    cutSpeedRpm: cut,
+    transferSpeedRpm: transfer,
+    factor,
+    playedAtHz: opts.header.sampleRateHz * factor,
   };
 }
 
@@ -309,10 +367,18 @@ function peakLimit(output: SampleEncoding, ceilingDbfs: number): number {
 /** The access copy's coding history (EBU R98): the transfer's own lines, then the equalization. */
 function renderCodingHistory(
   opts: RenderOptions,
-  copy: { mode: ChannelMode; output: SampleEncoding; outRate: number; channelsOut: 1 | 2; trimDb: number },
+  copy: {
+    mode: ChannelMode;
+    output: SampleEncoding;
+    outRate: number;
+    channelsOut: 1 | 2;
+    trimDb: number;
+    speed: RenderPlan["speed"];
+  },
 ): string {
   const { header } = opts;
-  const resampled = copy.outRate !== header.sampleRateHz;
+  const { speed } = copy;
+  const resampled = !speed && copy.outRate !== header.sampleRateHz;
   // Keep the transfer's own history (the capture chain) when it has one; otherwise describe it.
   const prior = header.bext?.codingHistory ?? "";
   const priorLines =
@@ -336,6 +402,10 @@ function renderCodingHistory(
     CHANNEL_MODE_TEXT[copy.mode],
     "delay-compensated FIR render filter",
     resampled ? `resampled from ${header.sampleRateHz} Hz (libsamplerate, best sinc)` : null,
+    speed
+      ? `speed corrected from ${speed.transferSpeedRpm} to ${speed.cutSpeedRpm} rpm (x${speed.factor.toFixed(6)}; ` +
+        `resampled from ${header.sampleRateHz} Hz played at ${speed.playedAtHz.toFixed(2)} Hz; libsamplerate, best sinc)`
+      : null,
     copy.output.format === "pcm" ? "TPDF dither" : "float",
   ]
     .filter((s) => s !== null)
@@ -402,7 +472,7 @@ async function filterPass(
   const { opts, channelsOut } = plan;
   const { header } = opts;
   const resampler = plan.resampled
-    ? await Resampler.create(channelsOut, header.sampleRateHz, plan.outRate, header.frames)
+    ? await Resampler.create(channelsOut, plan.inRate, plan.outRate, header.frames)
     : null;
   let more = true;
   await runChain(
@@ -617,6 +687,7 @@ function finishRender(
     codingHistory: plan.codingHistoryFor(toDb(gain)),
     engine: plan.dsp.name,
     secondPass,
+    speedCorrection: plan.speed,
   };
 }
 

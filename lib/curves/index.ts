@@ -6,6 +6,7 @@ export * from "./types";
 export * from "./units";
 export {
   mergeCurve,
+  speedCorrectedSpec,
   resolveCurve,
   validateSampleRate,
   DEFAULT_REFERENCE,

@@ -126,6 +126,18 @@ export function mergeCurve(
   return merged;
 }
 
+/**
+ * The curve a speed-corrected render filters the transfer with, before it is played at the cut
+ * speed: the corners stay where the transfer has them (speed ratio transfer ÷ cut) and the
+ * reference frequency moves with them, so the corrected copy, whose frequencies are the cut's,
+ * is levelled at the reference itself (0 dB at 1 kHz of the copy, not at 1 kHz of the transfer).
+ */
+export function speedCorrectedSpec(spec: CurveSpec): CurveSpec {
+  const ratio = spec.speedRatio ?? 1;
+  const reference = spec.reference ?? DEFAULT_REFERENCE;
+  return { ...spec, reference: { hz: reference.hz * ratio, db: reference.db } };
+}
+
 export function resolveCurve(spec: CurveSpec): ResolvedCurve {
   if (typeof spec !== "object" || spec === null)
     throw new CurveError("spec", "The curve is missing: choose a preset or give its corners.");

@@ -66,6 +66,7 @@ export async function discRecord(discId: string) {
         "c.spec",
         "c.cut_speed_rpm as cutSpeedRpm",
         "c.transfer_speed_rpm as transferSpeedRpm",
+        "c.correct_speed as correctSpeed",
         "c.spec_sha256 as specSha256",
         "c.rationale",
         "c.evidence_kind as evidenceKind",
@@ -343,7 +344,7 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
               "creation",
               `Equalized access copy rendered (${p.filter?.kind ?? "filter"} of ${p.filter?.taps ?? "?"} ` +
                 `taps, delay ${p.filter?.delaySamples ?? "?"} samples compensated, trim ${Number(p.trimDb ?? 0).toFixed(2)} ` +
-                `dB) by ${p.filter?.software ?? software}`,
+                `dB)${speedCorrectionText(p.speedCorrection)} by ${p.filter?.software ?? software}`,
               [
                 ...entity,
                 {
@@ -384,7 +385,7 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
               `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ` +
                 `${choiceName}; ` +
                 `curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} ` +
-                `rpm. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`,
+                `rpm${p.correctSpeed === true ? ", speed corrected in the render" : ""}. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`,
               entity,
             ),
           );
@@ -466,4 +467,12 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
     }
   }
   return { entities, files, events, agents: [...agents.values()] };
+}
+
+/** ", speed corrected from 78 to 80 rpm (×1.025641)" for a render event that corrected the speed, else "". */
+function speedCorrectionText(value: unknown): string {
+  if (typeof value !== "object" || value === null) return "";
+  const v = value as { cutSpeedRpm?: unknown; transferSpeedRpm?: unknown; factor?: unknown };
+  if (typeof v.factor !== "number") return "";
+  return `, speed corrected from ${String(v.transferSpeedRpm)} to ${String(v.cutSpeedRpm)} rpm (×${v.factor.toFixed(6)})`;
 }

@@ -15,6 +15,7 @@ import {
   designRenderFilterFromModel,
   type ResolvedCurve,
   resolveCurve,
+  speedCorrectedSpec,
 } from "../curves";
 import { env } from "../env";
 import { appendEvent } from "../provenance";
@@ -82,6 +83,9 @@ export async function runRenderJob(
       "t.sample_rate_hz as sampleRateHz",
       "c.id as choiceId",
       "c.spec",
+      "c.correct_speed as correctSpeed",
+      "c.cut_speed_rpm as cutSpeedRpm",
+      "c.transfer_speed_rpm as transferSpeedRpm",
       "s.designation",
       "s.disc_id as discId",
       "d.shelf_mark as shelfMark",
@@ -166,8 +170,15 @@ export async function runRenderJob(
       id: job.choiceId,
       column: "spec",
     });
+    // Speed correction: the filter keeps the corners where the transfer has them (speed ratio
+    // transfer ÷ cut) and is levelled at the reference as the corrected copy will play it; the
+    // render then resamples by cut ÷ transfer, so the curve lands at the cut speed (lib/audio/render.ts).
+    const speedCorrection = job.correctSpeed
+      ? { cutSpeedRpm: Number(job.cutSpeedRpm), transferSpeedRpm: Number(job.transferSpeedRpm) }
+      : undefined;
+    const filterSpec = speedCorrection ? speedCorrectedSpec(spec) : spec;
     // One resolved curve and model for the render filter, the coding history and the recorded sections.
-    const curve = resolveCurve(spec);
+    const curve = resolveCurve(filterSpec);
     const model = buildAnalogModel(curve);
     const filter = designRenderFilterFromModel(model, job.sampleRateHz);
     const outputRateHz = job.outputRateHz ?? job.sampleRateHz;
@@ -187,6 +198,7 @@ export async function runRenderJob(
       channelMode: job.channelMode,
       output: { format: "pcm", bitsPerSample: job.bitDepth },
       outputSampleRateHz: outputRateHz,
+      speedCorrection,
       bext: {
         description: description.slice(0, 256),
         originator: env().LAB_NAME.slice(0, 32),
@@ -196,7 +208,12 @@ export async function runRenderJob(
         timeReference: header.bext?.timeReference ?? 0,
       },
       unicodeText: { project: env().LAB_NAME, note: description },
-      equalization: { curve: curveText(curve), speedRatio: curve.speedRatio, software: softwareName() },
+      // The curve as chosen (levelled at its own reference; the speed correction is its own line item).
+      equalization: {
+        curve: curveText(speedCorrection ? resolveCurve(spec) : curve),
+        speedRatio: curve.speedRatio,
+        software: softwareName(),
+      },
       // Called between blocks: an error thrown here ends the render and removes its file.
       onProgress: (fraction) => {
         if (lease.signal.aborted) throw lease.signal.reason;
@@ -246,6 +263,10 @@ export async function runRenderJob(
       // The same curve as second-order sections, for anyone who redoes the render elsewhere.
       sections: iir.sos,
       spec,
+      // The curve the filter ran, when speed correction moved its reference with the corners.
+      ...(speedCorrection ? { filterSpec } : {}),
+      // Speed corrected: by what factor (cut ÷ transfer), from which rate the copy was resampled.
+      ...(result.speedCorrection ? { speedCorrection: result.speedCorrection } : {}),
       software: softwareName(),
       // Which implementation of the same arithmetic ran (lib/audio/dsp.ts): native FFTW or JavaScript.
       engine: result.engine,
@@ -299,6 +320,7 @@ export async function runRenderJob(
           description,
           trimDb: result.trimDb,
           peakDbfs: result.peakDbfs,
+          speedCorrection: result.speedCorrection,
           filter: filterRecord,
           codingHistory: result.codingHistory,
         },

@@ -21,6 +21,17 @@ export const renderFilterRecordSchema = z.object({
   sampleRateHz: z.number().positive(),
   sections: z.array(sosRow),
   spec: storedCurveSpecSchema,
+  /** Speed corrected: the curve the filter ran (the reference moved with the corners, lib/curves speedCorrectedSpec). */
+  filterSpec: storedCurveSpecSchema.optional(),
+  /** Speed corrected: cut ÷ transfer, and the rate the transfer was resampled from (its rate × factor). */
+  speedCorrection: z
+    .object({
+      cutSpeedRpm: z.number().positive(),
+      transferSpeedRpm: z.number().positive(),
+      factor: z.number().positive(),
+      playedAtHz: z.number().positive(),
+    })
+    .optional(),
   software: z.string(),
   engine: z.string().optional(),
 });

@@ -59,6 +59,8 @@ export const curveChoiceSchema = z
     overrides: curveSpecSchema.omit({ speedRatio: true }).partial().default({}),
     cutSpeedRpm: speed("The speed the disc was cut at"),
     transferSpeedRpm: speed("The speed it was transferred at"),
+    /** The render corrects the speed: resamples by cut ÷ transfer, so pitch and duration are the cut's. */
+    correctSpeed: z.boolean({ error: "Say yes or no to correcting the speed." }).default(false),
     rationale: z.string().trim().min(10, "Say why this curve: at least a sentence.").max(4000),
     evidenceKind: z.enum(evidenceKinds, { error: "Say what the choice rests on." }),
     evidence: z.string().trim().max(4000).default(""),
@@ -66,6 +68,10 @@ export const curveChoiceSchema = z
   .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), {
     path: ["presetVersion"],
     message: "Name the preset's version with the preset.",
+  })
+  .refine((v) => !v.correctSpeed || v.cutSpeedRpm !== v.transferSpeedRpm, {
+    path: ["correctSpeed"],
+    message: "The disc was transferred at the speed it was cut at: there is no speed to correct.",
   })
   .refine((v) => v.presetId !== undefined || Object.keys(v.overrides).length > 0, {
     path: ["presetId"],

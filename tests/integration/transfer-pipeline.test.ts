@@ -279,6 +279,83 @@ describe("an access copy at the lab's chosen rate", () => {
   }, 90_000);
 });
 
+describe("speed correction in the render", () => {
+  const choice = (correctSpeed: boolean, cutSpeedRpm: number) =>
+    api("/api/curve-choices", {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: {
+        sideIds: [sideIds[0]],
+        overrides: {
+          turnover: { unit: "us", value: 318 },
+          shelf: { unit: "us", value: 3180 },
+          rolloff: { unit: "us", value: 75 },
+        },
+        cutSpeedRpm,
+        transferSpeedRpm: 78,
+        correctSpeed,
+        rationale: "The label's pitch pipe on the run-in says the disc was cut at 80 rpm.",
+        evidenceKind: "disc_documentation",
+      },
+    });
+
+  it("refuses to correct the speed of a disc transferred at the speed it was cut at", async () => {
+    const r = await choice(true, 78);
+    expect(r.status).toBe(422);
+    expect(JSON.stringify(r.body)).toMatch(/no speed to correct/);
+  });
+
+  it("resamples a disc cut at 80 rpm and transferred at 78 by 80/78, and says so in the file and the record", async () => {
+    const chosen = await choice(true, 80);
+    expect(chosen.status).toBe(201);
+    const choiceId = chosen.body.choices[0].choiceId as string;
+    expect(
+      (
+        await testDb
+          .selectFrom("curve_choices")
+          .select("correct_speed")
+          .where("id", "=", choiceId)
+          .executeTakeFirstOrThrow()
+      ).correct_speed,
+    ).toBe(true);
+    const r = await renderAndWait(sideIds[0]);
+    const link = await fetch(`${appUrl}/api/renders/${r.id}/download`, {
+      headers: { cookie: cookie.curator },
+      redirect: "manual",
+    });
+    const file = new Uint8Array(await (await fetch(link.headers.get("location")!)).arrayBuffer());
+    const header = await readWavHeader(bufferSource(file));
+    // 132 300 frames played at 80/78 of the transfer's speed: round(132 300 × 78/80) = 128 993, at the transfer's rate.
+    expect(header).toMatchObject({ sampleRateHz: 44_100, frames: 128_993 });
+    expect(header.bext?.codingHistory).toMatch(
+      /speed ratio 0\.975;.*speed corrected from 78 to 80 rpm \(x1\.025641/s,
+    );
+    const row = await testDb
+      .selectFrom("renders")
+      .select("filter")
+      .where("id", "=", r.id)
+      .executeTakeFirstOrThrow();
+    expect(row.filter).toMatchObject({
+      spec: { speedRatio: 0.975 },
+      filterSpec: { speedRatio: 0.975, reference: { hz: 975, db: 0 } },
+      speedCorrection: {
+        cutSpeedRpm: 80,
+        transferSpeedRpm: 78,
+        factor: 80 / 78,
+        playedAtHz: (44_100 * 80) / 78,
+      },
+    });
+    const event = await testDb
+      .selectFrom("provenance_events")
+      .select("payload")
+      .where("subject_id", "=", sideIds[0])
+      .where("kind", "=", "side.rendered")
+      .orderBy("seq", "desc")
+      .executeTakeFirstOrThrow();
+    expect(event.payload).toMatchObject({ renderId: r.id, speedCorrection: { factor: 80 / 78 } });
+  }, 90_000);
+});
+
 describe("review", () => {
   it("returns with a reason, refuses approval by the maker and before fixity, and approves after", async () => {
     const sideA = sideIds[0];

@@ -32,6 +32,8 @@ export type { BwfWriterOptions, BwfWriteResult } from "./writer";
 export { renderAccessCopy, RenderError } from "./render";
 export type { EqualizationNote, RenderOptions, RenderResult, SpeedCorrection } from "./render";
 export { wholeRates } from "./resample";
+export { estimatePitch, proposedCutSpeed, PitchError, MAX_PITCH_FFT } from "./pitch";
+export type { PitchEstimate } from "./pitch";
 export { convolveDirect, convolverSizes, PairConvolver, StreamingConvolver } from "./convolver";
 export { CHANNEL_MODE_TEXT, mixToMono } from "./channel-mode";
 export type { ChannelMode } from "./channel-mode";

@@ -50,6 +50,7 @@ export const routeAccess = {
   "GET /api/transfers/[id]/download": "catalogue:read",
   "GET /api/sides/[id]/renders": "catalogue:read",
   "GET /api/sides/[id]/transfers": "catalogue:read",
+  "POST /api/sides/[id]/pitch-reference": "bench:use",
   "POST /api/fixity": "fixity:run",
   "GET /api/fixity": "audit:read",
   "GET /api/sides/[id]/fixity": "catalogue:read",

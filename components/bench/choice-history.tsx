@@ -50,6 +50,7 @@ function ChoiceList({ choices, loading }: { choices: CurveChoiceJson[] | undefin
               {c.cutSpeedRpm !== c.transferSpeedRpm ? (
                 <span className="font-mono text-xs text-ink-soft">
                   {formatNumber(c.transferSpeedRpm)}/{formatNumber(c.cutSpeedRpm)} rpm
+                  {c.correctSpeed ? " · speed corrected in the render" : ""}
                 </span>
               ) : (
                 <span className="font-mono text-xs text-ink-soft">{formatNumber(c.cutSpeedRpm)} rpm</span>

@@ -26,6 +26,7 @@ import {
 import { fetchJson } from "@/lib/http/client";
 import { AppError } from "@/lib/http/errors";
 import { evidenceKinds, evidenceLabels } from "@/lib/validation/transfers";
+import { PitchReference } from "./pitch-reference";
 import type { CurveChoiceJson, EvidenceKind, SideWithDisc } from "./types";
 
 type Mode = "keep" | "set" | "remove";
@@ -127,6 +128,7 @@ export function CurveChoiceForm({
   }));
   const [cutRpm, setCutRpm] = useState(String(current?.cutSpeedRpm ?? disc.nominalSpeedRpm));
   const [transferRpm, setTransferRpm] = useState(String(current?.transferSpeedRpm ?? disc.nominalSpeedRpm));
+  const [correctSpeed, setCorrectSpeed] = useState(current?.correctSpeed ?? false);
   const [rationale, setRationale] = useState("");
   const [evidenceKind, setEvidenceKind] = useState<EvidenceKind | "">("");
   const [evidence, setEvidence] = useState("");
@@ -207,6 +209,7 @@ export function CurveChoiceForm({
         overrides,
         cutSpeedRpm: cut,
         transferSpeedRpm: transfer,
+        correctSpeed: correctSpeed && cut !== transfer,
         rationale,
         evidenceKind: evidenceKind || undefined,
         evidence,
@@ -488,6 +491,39 @@ export function CurveChoiceForm({
           The disc is logged at {formatNumber(disc.nominalSpeedRpm)} rpm. Played at another speed than it was
           cut, every corner moves by transfer ÷ cut.
         </p>
+        {side.currentTransferId && Number.isFinite(transfer) && transfer > 0 ? (
+          <PitchReference
+            sideId={side.id}
+            transferSpeedRpm={transfer}
+            onAccept={(rpm) => setCutRpm(String(rpm))}
+          />
+        ) : null}
+        {Number.isFinite(cut) && Number.isFinite(transfer) && cut > 0 && transfer > 0 && cut !== transfer ? (
+          <div className="rounded-lg border border-paper-edge bg-white px-3 py-2" data-testid="correct-speed">
+            <label className="flex items-center gap-2 text-sm font-semibold text-ink">
+              <input
+                type="checkbox"
+                checked={correctSpeed}
+                onChange={(e) => setCorrectSpeed(e.target.checked)}
+                className="h-4 w-4 accent-[#2f6f6a]"
+                data-testid="choice-correct-speed"
+              />
+              Correct the speed in the render
+            </label>
+            <p className="text-xs text-ink-faint">
+              {correctSpeed
+                ? `The access copy plays as the disc was cut: ${formatNumber(cut)} ÷ ${formatNumber(transfer)} = ×${(cut / transfer).toFixed(4)} ` +
+                  `faster, so pitch ${cut > transfer ? "rises" : "falls"} and it lasts ${((transfer / cut) * 100).toFixed(1)} % as long. ` +
+                  "The curve is then at the cut speed. The flat transfer is kept as it is."
+                : "Left off, the access copy keeps the transfer's speed (and its pitch); only the curve's corners follow the speeds."}
+            </p>
+            {fieldErr("correctSpeed") ? (
+              <p role="alert" className="mt-1 text-xs font-medium text-alarm">
+                {fieldErr("correctSpeed")!.join(" ")}
+              </p>
+            ) : null}
+          </div>
+        ) : null}
         {errorFor("speedRatio") ? (
           <p role="alert" className="text-xs font-medium text-alarm">
             {errorFor("speedRatio")}

@@ -8,6 +8,7 @@
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect, useId, useState } from "react";
 import { when } from "@/components/catalogue/format";
+import { formatNumber } from "@/components/curves/plot-format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { SelectField } from "@/components/ui/field";
@@ -269,6 +270,14 @@ export function RenderPanel({
                   {r.bytes ? formatBytes(Number(r.bytes)) : ""} · trim{" "}
                   {r.trimDb !== null ? `${Number(r.trimDb).toFixed(2)} dB` : "—"} · peak{" "}
                   {r.peakDbfs !== null ? `${Number(r.peakDbfs).toFixed(2)} dBFS` : "—"}
+                  {r.filter?.speedCorrection ? (
+                    <span className="block font-sans text-ink" data-testid="render-speed-corrected">
+                      Speed corrected from {formatNumber(r.filter.speedCorrection.transferSpeedRpm)} to{" "}
+                      {formatNumber(r.filter.speedCorrection.cutSpeedRpm)} rpm (×
+                      {r.filter.speedCorrection.factor.toFixed(4)}): pitch and length as cut, the curve at the
+                      cut speed.
+                    </span>
+                  ) : null}
                   <span className="block break-all">SHA-256 {r.sha256}</span>
                 </p>
               ) : null}

@@ -24,6 +24,8 @@ export interface CurveChoiceJson {
   spec: CurveSpec;
   cutSpeedRpm: number;
   transferSpeedRpm: number;
+  /** The render corrects the speed (cut ÷ transfer). */
+  correctSpeed?: boolean;
   rationale: string;
   evidenceKind: EvidenceKind;
   evidence: string;

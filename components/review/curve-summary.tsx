@@ -50,7 +50,8 @@ export function CurveSummary({
         <p className="font-mono text-sm text-ink-soft">
           {ratio === 1
             ? `${formatNumber(current.cutSpeedRpm)} rpm`
-            : `cut ${formatNumber(current.cutSpeedRpm)} rpm · transferred ${formatNumber(current.transferSpeedRpm)} rpm · ratio ${formatNumber(ratio)}`}
+            : `cut ${formatNumber(current.cutSpeedRpm)} rpm · transferred ${formatNumber(current.transferSpeedRpm)} rpm · ratio ${formatNumber(ratio)}` +
+              (current.correctSpeed ? " · speed corrected in the render" : "")}
         </p>
       </div>
 

@@ -322,7 +322,8 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
           value:
             cut === tr
               ? `${formatNumber(cut)} rpm`
-              : `cut at ${formatNumber(cut)} rpm, transferred at ${formatNumber(tr)} rpm (ratio ${formatNumber(tr / cut)})`,
+              : `cut at ${formatNumber(cut)} rpm, transferred at ${formatNumber(tr)} rpm (ratio ${formatNumber(tr / cut)})` +
+                (p.correctSpeed === true ? "; speed corrected in the render" : ""),
         });
       if (p.rationale) d.push({ label: "Rationale", value: String(p.rationale) });
       if (p.evidenceKind)
@@ -414,6 +415,13 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
         });
       if (p.trimDb !== undefined && p.trimDb !== null)
         d.push({ label: "Trim", value: `${Number(p.trimDb).toFixed(2)} dB` });
+      if (p.speedCorrection && typeof p.speedCorrection.factor === "number")
+        d.push({
+          label: "Speed corrected",
+          value:
+            `from ${formatNumber(Number(p.speedCorrection.transferSpeedRpm))} to ` +
+            `${formatNumber(Number(p.speedCorrection.cutSpeedRpm))} rpm (×${Number(p.speedCorrection.factor).toFixed(6)})`,
+        });
       if (p.codingHistory) d.push({ label: "Coding history", value: String(p.codingHistory), mono: true });
       const sha = shaShort(p.accessCopy?.sha256);
       return {

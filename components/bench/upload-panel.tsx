@@ -12,6 +12,7 @@ import { cx } from "@/components/ui/cx";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { useMultipartUpload } from "@/hooks/use-multipart-upload";
+import { uploadDetailsSchema } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
 
 /** The flat transfer comes first: it never waits for the curve, which is decided afterwards by evidence and by ear on it. */
@@ -33,6 +34,7 @@ export function UploadPanel({
   const [measured, setMeasured] = useState("");
   const [chain, setChain] = useState("");
   const [localError, setLocalError] = useState<string | null>(null);
+  const [detailErrors, setDetailErrors] = useState<Record<string, string[]>>({});
   const working = state.phase === "starting" || state.phase === "uploading" || state.phase === "checking";
 
   const dz = useDropzone({
@@ -63,12 +65,26 @@ export function UploadPanel({
   };
   const send = async () => {
     if (!file) return;
-    const m = measured.trim() === "" ? undefined : Number(measured.replace(",", "."));
-    const result = await start(sideId, file, { stylusSize, stylusShape, measuredSpeedRpm: m, chain });
+    // The details are checked here first, so a mistyped speed is said before a large file travels.
+    const details = uploadDetailsSchema.safeParse({
+      stylusSize,
+      stylusShape,
+      measuredSpeedRpm: measured,
+      chain,
+    });
+    if (!details.success) {
+      const errors: Record<string, string[]> = {};
+      for (const issue of details.error.issues)
+        (errors[String(issue.path[0] ?? "_")] ??= []).push(issue.message);
+      setDetailErrors(errors);
+      return;
+    }
+    setDetailErrors({});
+    const result = await start(sideId, file, details.data);
     if (result) accepted();
   };
 
-  const f = (k: string) => state.fields?.[k];
+  const f = (k: string) => detailErrors[k] ?? state.fields?.[k];
   return (
     <div className="space-y-4" data-testid="upload-panel">
       {replaces && canUpload && file && state.phase !== "done" ? (

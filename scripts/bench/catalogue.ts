@@ -180,6 +180,10 @@ async function fill(db: ReturnType<typeof createDb>): Promise<void> {
                  (array_agg(title ORDER BY lower(designation)))[1] first_title
           FROM sides GROUP BY disc_id) s
     WHERE d.id = s.disc_id`.execute(db);
+  // That update wrote every disc a second time: compact the table as a catalogue that grew
+  // disc by disc would be (half of it is otherwise dead space a scan walks through), then
+  // mark it all-visible and gather its statistics.
+  await sql`VACUUM (FULL) discs`.execute(db);
   await sql`VACUUM ANALYZE`.execute(db);
   const counts = await sql<{
     discs: number;

@@ -130,8 +130,28 @@ export async function listDiscIds(db: Db, q: DiscFilter): Promise<string[]> {
   return rows.map((r) => r.id);
 }
 
-/** The count query of countDiscs (the benchmark prints its plan). */
+/**
+ * The count query of countDiscs (the benchmark prints its plan). A list filtered by a side's
+ * status or engineer alone is counted from that side index, one disc per run of its sides,
+ * without walking the discs (the semi join walked the disc ids in order, some 55 000 of them
+ * to find 10 001 discs with an assigned side).
+ */
 export function cappedCountQuery(db: Db, q: DiscFilter) {
+  const sideFilterOnly =
+    !q.q && !q.format && !q.accession && !q.speed && (q.status ? !q.engineer : !!q.engineer);
+  if (sideFilterOnly) {
+    let sides = db.selectFrom("sides as s").select("s.disc_id");
+    if (q.status) sides = sides.where("s.status", "=", q.status);
+    if (q.engineer) sides = sides.where("s.assigned_engineer_id", "=", q.engineer);
+    return db
+      .selectFrom(
+        sides
+          .distinct()
+          .limit(countCap + 1)
+          .as("capped"),
+      )
+      .select(sql<number>`count(*)::int`.as("n"));
+  }
   return db
     .selectFrom(
       filteredDiscs(db, q)

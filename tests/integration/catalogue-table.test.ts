@@ -3,7 +3,14 @@
 // one side, and correcting an accession with its event.
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { estimateDiscs, estimatedPast } from "@/lib/catalogue/list-query";
+import {
+  cappedCountQuery,
+  countCap,
+  countDiscs,
+  estimateDiscs,
+  estimatedPast,
+  filteredDiscs,
+} from "@/lib/catalogue/list-query";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
@@ -142,6 +149,49 @@ describe("the catalogue list", () => {
       expect(capped.body.rows[0].shelfMark).toBe(`ZZCAP-${tag}-00101`);
     } finally {
       await ownerDb.deleteFrom("discs").where("accession_id", "=", capId).execute();
+    }
+  });
+});
+
+describe("the count of a side filter", () => {
+  it("counted from the sides alone, equals the count over the discs", async () => {
+    const d = await createDisc(`CNT-${tag}`, "Copper Lantern", 1931);
+    const assigned = await api("/api/assignments", {
+      cookie: cookie.archivist,
+      method: "POST",
+      body: { engineerId, sideIds: [d.sides[0].id] },
+    });
+    expect(assigned.status).toBe(200);
+    for (const filter of [
+      { status: "assigned" as const },
+      { status: "catalogued" as const },
+      { engineer: engineerId },
+    ]) {
+      const q = { ...filter, sort: "shelfMark" as const };
+      // One snapshot for both counts, whatever other tests write meanwhile.
+      const [fromSides, overDiscs] = await testDb
+        .transaction()
+        .setIsolationLevel("repeatable read")
+        .execute(async (trx) => [
+          await countDiscs(trx, q),
+          (
+            await trx
+              .selectFrom(
+                filteredDiscs(trx, q)
+                  .select("d.id")
+                  .limit(countCap + 1)
+                  .as("c"),
+              )
+              .select((eb) => eb.fn.countAll<number>().as("n"))
+              .executeTakeFirstOrThrow()
+          ).n,
+        ]);
+      expect(cappedCountQuery(testDb, q).compile().sql).toMatch(/from "sides"/);
+      expect(overDiscs).toBeGreaterThan(0);
+      expect(fromSides).toMatchObject({
+        total: Math.min(Number(overDiscs), countCap),
+        totalIsCapped: Number(overDiscs) > countCap,
+      });
     }
   });
 });

@@ -27,6 +27,8 @@ export interface FrameFilter {
   readonly blockSize: number;
   /** Filter the next `frames` frames of `input` into `output` (may be the same array). */
   process(input: Float64Array, frames: number, output: Float64Array): void;
+  /** The same, answering the peak magnitude of the output from frame `peakFrom` on (as `peak` measures it). */
+  processPeak(input: Float64Array, frames: number, output: Float64Array, peakFrom: number): number;
 }
 
 export interface DspEngine {
@@ -52,6 +54,13 @@ export interface DspEngine {
    */
   peak(samples: Float64Array, count: number, out32?: Float32Array): number;
   filter(taps: ArrayLike<number>, channels: 1 | 2): FrameFilter;
+  /**
+   * Memory for a trimmed render's kept signal (the native engine's comes in huge pages where the
+   * kernel offers them: far fewer page faults). Its contents are undefined until written.
+   */
+  allocate(bytes: number): ArrayBuffer;
+  /** Gives memory from `allocate` back now; the buffer is detached (length 0) from then on. */
+  release(buffer: ArrayBuffer): void;
 }
 
 export const jsDsp: DspEngine = {
@@ -70,20 +79,26 @@ export const jsDsp: DspEngine = {
     }
     return peak;
   },
+  allocate: (bytes) => new ArrayBuffer(bytes),
+  release: () => {}, // the garbage collector's
   filter(taps, channels) {
+    let process: FrameFilter["process"];
     if (channels === 2) {
       const pair = new PairConvolver(taps);
-      return {
-        channels,
-        blockSize: pair.blockSize,
-        process: (input, frames, output) => pair.processInterleaved(input, frames, output),
-      };
+      process = (input, frames, output) => pair.processInterleaved(input, frames, output);
+    } else {
+      const single = new StreamingConvolver(taps);
+      process = (input, frames, output) => single.processInto(input, frames, output);
     }
-    const single = new StreamingConvolver(taps);
     return {
       channels,
-      blockSize: single.blockSize,
-      process: (input, frames, output) => single.processInto(input, frames, output),
+      blockSize: convolverSizes(taps.length).blockSize,
+      process,
+      processPeak: (input, frames, output, peakFrom) => {
+        process(input, frames, output);
+        const from = Math.min(peakFrom, frames) * channels;
+        return jsDsp.peak(output.subarray(from), frames * channels - from);
+      },
     };
   },
 };
@@ -102,11 +117,16 @@ interface NativeModule {
   importWisdom(path: string): boolean;
   exportWisdom(path: string): boolean;
   unsavedPlans(): number;
+  allocate(bytes: number): ArrayBuffer;
+  release(buffer: ArrayBuffer): void;
   Convolver: new (
     taps: Float64Array,
     channels: number,
     fftSize: number,
-  ) => { process(input: Float64Array, frames: number, output: Float64Array): void };
+  ) => {
+    process(input: Float64Array, frames: number, output: Float64Array): void;
+    process(input: Float64Array, frames: number, output: Float64Array, peakFrom: number): number;
+  };
   fftwVersion: string;
 }
 
@@ -154,11 +174,18 @@ function wrapNative(mod: NativeModule, saveWisdom: () => void): DspEngine {
       return mod.encode(samples, count, gain, bits, dither, out);
     },
     peak: (samples, count, out32) => mod.peak(samples, count, out32),
+    allocate: (bytes) => mod.allocate(bytes),
+    release: (buffer) => mod.release(buffer),
     filter(taps, channels) {
       const { fftSize, blockSize } = convolverSizes(taps.length);
       const conv = new mod.Convolver(Float64Array.from(taps), channels, fftSize);
       saveWisdom();
-      return { channels, blockSize, process: (input, frames, output) => conv.process(input, frames, output) };
+      return {
+        channels,
+        blockSize,
+        process: (input, frames, output) => conv.process(input, frames, output),
+        processPeak: (input, frames, output, peakFrom) => conv.process(input, frames, output, peakFrom),
+      };
     },
   };
 }

@@ -161,8 +161,8 @@ function outputChannels(mode: ChannelMode, inputChannels: number): 1 | 2 {
 
 /**
  * One pass of the chain; `sink` receives the aligned output in order, interleaved,
- * exactly header.frames frames in all, unless it answers `false` (enough: the pass
- * stops there). The array it gets is reused after it returns.
+ * exactly header.frames frames in all, with its peak magnitude, unless it answers
+ * `false` (enough: the pass stops there). The array it gets is reused after it returns.
  */
 async function runChain(
   opts: RenderOptions,
@@ -170,7 +170,7 @@ async function runChain(
   mode: ChannelMode,
   channelsOut: 1 | 2,
   chunkFrames: number,
-  sink: (samples: Float64Array, frames: number) => Promise<boolean | void> | boolean | void,
+  sink: (samples: Float64Array, frames: number, peak: number) => Promise<boolean | void> | boolean | void,
   progress: (framesRead: number) => void,
 ): Promise<void> {
   const { header, source } = opts;
@@ -184,11 +184,12 @@ async function runChain(
   /** False when the sink has had enough. */
   const filterAndEmit = async (n: number): Promise<boolean> => {
     if (mode !== "both") mixToMono(mode, decoded, n, mixed);
-    filter.process(mixed, n, filtered);
     const drop = Math.min(toDrop, n);
     toDrop -= drop;
+    // The filter measures the peak of what is kept as it writes it.
+    const peak = filter.processPeak(mixed, n, filtered, drop);
     if (n > drop)
-      return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop)) !== false;
+      return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop, peak)) !== false;
     return true;
   };
 
@@ -420,12 +421,12 @@ function createWriter(plan: RenderPlan, gain: number): Promise<BwfWriter> {
 
 /**
  * The filter: the chain over the transfer, resampled when asked. `sink` gets the aligned
- * output in order, as runChain's does, and may answer `false` to stop.
+ * output in order with its peak, as runChain's does, and may answer `false` to stop.
  */
 async function filterPass(
   plan: RenderPlan,
   passNumber: number,
-  sink: (samples: Float64Array, frames: number) => Promise<boolean | void>,
+  sink: (samples: Float64Array, frames: number, peak: number) => Promise<boolean | void>,
 ): Promise<void> {
   const { opts, channelsOut } = plan;
   const { header } = opts;
@@ -439,16 +440,16 @@ async function filterPass(
     plan.mode,
     channelsOut,
     plan.chunkFrames,
-    async (samples, frames) => {
-      if (!resampler) return (more = (await sink(samples, frames)) !== false);
+    async (samples, frames, peak) => {
+      if (!resampler) return (more = (await sink(samples, frames, peak)) !== false);
       const out = resampler.process(samples.subarray(0, frames * channelsOut));
-      return (more = (await sink(out, out.length / channelsOut)) !== false);
+      return (more = (await sink(out, out.length / channelsOut, plan.dsp.peak(out, out.length))) !== false);
     },
     (done) => plan.progress(passNumber, done / Math.max(1, header.frames)),
   );
   if (resampler && more) {
     const tail = resampler.finish();
-    await sink(tail, tail.length / channelsOut);
+    await sink(tail, tail.length / channelsOut, plan.dsp.peak(tail, tail.length));
   }
 }
 
@@ -486,6 +487,7 @@ function asKept(
 class KeptSignal {
   /** The kept frames in memory, in order, each piece a view of a block. */
   private pieces: Samples[] = [];
+  private blocks: ArrayBuffer[] = [];
   private block: Samples | null = null;
   private blockUsed = 0;
   private memoryBytes = 0;
@@ -567,7 +569,9 @@ class KeptSignal {
       Math.floor(left / this.bytesPerSample),
     );
     if (samples < count) return null;
-    this.block = samplesOf(this.plan.roundTo32, samples);
+    const buffer = this.plan.dsp.allocate(samples * this.bytesPerSample);
+    this.blocks.push(buffer);
+    this.block = this.plan.roundTo32 ? new Float32Array(buffer) : new Float64Array(buffer);
     this.memoryBytes += samples * this.bytesPerSample;
     this.blockUsed = count;
     return this.block.subarray(0, count);
@@ -588,6 +592,8 @@ class KeptSignal {
     for (let piece = this.pieces.shift(); piece; piece = this.pieces.shift()) {
       await sink(piece, piece.length / channels);
       total += piece.length / channels;
+      // A block goes back once its last piece is written.
+      if (this.pieces[0]?.buffer !== piece.buffer) this.releaseBlock(piece.buffer as ArrayBuffer);
     }
     if (this.fileBytes === 0) return total;
     if (!this.handle) throw new RenderError("The render's working file is gone.");
@@ -607,10 +613,18 @@ class KeptSignal {
     return total + this.fileFrames;
   }
 
-  /** Lets the memory go, and closes and removes the working file. */
+  private releaseBlock(buffer: ArrayBuffer): void {
+    const at = this.blocks.indexOf(buffer);
+    if (at >= 0) this.blocks.splice(at, 1);
+    this.plan.dsp.release(buffer);
+  }
+
+  /** Gives the memory back, and closes and removes the working file. */
   async discard(): Promise<void> {
     this.pieces = [];
     this.block = null;
+    for (const buffer of this.blocks) this.plan.dsp.release(buffer);
+    this.blocks = [];
     const handle = this.handle;
     this.handle = null;
     this.fileBytes = 0;
@@ -634,20 +648,15 @@ interface Measured {
  * keeping the rest of the filtered signal (if there is room) for pass 2.
  */
 async function measurePass(plan: RenderPlan): Promise<Measured> {
-  const { dsp, channelsOut, limit } = plan;
+  const { limit } = plan;
   let writer: BwfWriter | null = await createWriter(plan, 1);
   let kept: KeptSignal | null = null;
   let peak = 0;
   let emitted = 0;
   try {
-    await filterPass(plan, 1, async (samples, frames) => {
+    await filterPass(plan, 1, async (samples, frames, p) => {
       if (frames === 0) return;
-      // Kept samples are measured as they are rounded and stored: one sweep over them.
-      let p = kept ? await kept.append(samples, frames) : null;
-      if (p === null) {
-        kept = null;
-        p = dsp.peak(samples, frames * channelsOut);
-      }
+      if (kept && (await kept.append(samples, frames)) === null) kept = null;
       if (p > peak) peak = p;
       if (writer && peak > limit) {
         // It needs a trim after all: stop writing, finish measuring, then pass 2.

@@ -10,6 +10,8 @@
  *     .process(input, frames, output)                 interleaved float64 in and out
  *   importWisdom(path) / exportWisdom(path)           FFTW's measured plans, kept across processes
  *   unsavedPlans()                                    plans measured since the last export
+ *   allocate(bytes) / release(buffer)                 memory for a trimmed render's kept signal, in
+ *                                                     huge pages where the kernel offers them
  *
  * Each one does exactly what its JavaScript twin in lib/audio does (codecs.ts,
  * lib/audio/convolver.ts): the same scaling, the same dither sequence and the
@@ -30,6 +32,14 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/mman.h>
+
+/* AVX-512 (x86-64-v4) and AVX2 copies of the hot loops beside the baseline one, chosen at load time (x86-64 only). */
+#if defined(__x86_64__) && defined(__GNUC__)
+#define VECTOR_CLONES __attribute__((target_clones("arch=x86-64-v4", "avx2", "default")))
+#else
+#define VECTOR_CLONES
+#endif
 
 #define CHECK(call)                                                        \
   do {                                                                     \
@@ -80,6 +90,16 @@ static int get_double(napi_env env, napi_value v, double* out) {
 
 /* ---------------------------------------------------------------- decode */
 
+/* 24-bit little-endian PCM → float64, full scale 1.0 (the word lengths' commonest, so vectorised). */
+VECTOR_CLONES
+static void decode24(const uint8_t* restrict b, size_t count, double* restrict out) {
+  for (size_t i = 0; i < count; i++) {
+    const uint8_t* p = b + 3 * i;
+    const int32_t v = (int32_t)((uint32_t)p[0] << 8 | (uint32_t)p[1] << 16 | (uint32_t)p[2] << 24) >> 8;
+    out[i] = v / 8388608.0;
+  }
+}
+
 static napi_value decode(napi_env env, napi_callback_info info) {
   size_t argc = 4;
   napi_value argv[4];
@@ -113,11 +133,7 @@ static napi_value decode(napi_env env, napi_callback_info info) {
       out[i] = v / 32768.0;
     }
   } else if (bits == 24) {
-    for (size_t i = 0; i < count; i++) {
-      const uint8_t* p = b + 3 * i;
-      int32_t v = (int32_t)((uint32_t)p[0] << 8 | (uint32_t)p[1] << 16 | (uint32_t)p[2] << 24) >> 8;
-      out[i] = v / 8388608.0;
-    }
+    decode24(b, count, out);
   } else {
     for (size_t i = 0; i < count; i++) {
       int32_t v;
@@ -130,12 +146,6 @@ static napi_value decode(napi_env env, napi_callback_info info) {
 
 /* ---------------------------------------------------------------- encode */
 
-/* An AVX2 copy of the hot loop beside the baseline one, chosen at load time (x86-64 only). */
-#if defined(__x86_64__) && defined(__GNUC__)
-#define VECTOR_CLONES __attribute__((target_clones("avx2", "default")))
-#else
-#define VECTOR_CLONES
-#endif
 
 #define GOLDEN 0x6d2b79f5u
 #define BLOCK 512
@@ -336,6 +346,11 @@ typedef struct plan_pair {
 } plan_pair;
 
 static plan_pair* plans = NULL;
+/*
+ * How hard the planner looks. FFTW_PATIENT was tried: about 8 % off the filter's time at the
+ * render's size, for some 20 s of planning per size instead of about 1 s; not worth it.
+ */
+static const unsigned planner_effort = FFTW_MEASURE;
 /* Plans measured (not read from wisdom) since the wisdom was last exported. */
 static int unsaved_plans = 0;
 
@@ -352,7 +367,7 @@ static plan_pair* plans_for(int n, int channels) {
   fftw_complex* X = fftw_alloc_complex(bins);
   if (x && y && X) {
     for (int attempt = 0; attempt < 2 && !(p->forward && p->backward); attempt++) {
-      const unsigned flags = FFTW_MEASURE | (attempt == 0 ? FFTW_WISDOM_ONLY : 0);
+      const unsigned flags = planner_effort | (attempt == 0 ? FFTW_WISDOM_ONLY : 0);
       if (p->forward) fftw_destroy_plan(p->forward);
       if (p->backward) fftw_destroy_plan(p->backward);
       if (channels == 2) {
@@ -502,8 +517,8 @@ static void convolve_piece(convolver* c, const double* in, size_t m, double* out
 }
 
 static napi_value convolver_process(napi_env env, napi_callback_info info) {
-  size_t argc = 3;
-  napi_value argv[3], self;
+  size_t argc = 4;
+  napi_value argv[4], self;
   CHECK(napi_get_cb_info(env, info, &argc, argv, &self, NULL));
   convolver* c;
   if (napi_unwrap(env, self, (void**)&c) != napi_ok || !c) return throw_type(env, "process: not a Convolver.");
@@ -517,14 +532,32 @@ static napi_value convolver_process(napi_env env, napi_callback_info info) {
   if (!get_int(env, argv[1], &frames) || frames < 0) return throw_range(env, "process: frames must be a whole number.");
   const size_t need = (size_t)frames * (size_t)c->channels;
   if (nin < need || nout < need) return throw_range(env, "process: input and output must hold frames × channels samples.");
+  /* With peakFrom: also the peak of the output from that frame on, taken while it is in cache. */
+  int64_t peak_from = -1;
+  if (argc >= 4) {
+    napi_valuetype t;
+    CHECK(napi_typeof(env, argv[3], &t));
+    if (t != napi_undefined && (!get_int(env, argv[3], &peak_from) || peak_from < 0))
+      return throw_range(env, "process: peakFrom must be a whole number of frames.");
+  }
+  const size_t ch = (size_t)c->channels;
+  double best = 0;
   size_t done = 0;
   while (done < (size_t)frames) {
     size_t m = (size_t)frames - done;
     if (m > (size_t)c->block) m = (size_t)c->block;
-    convolve_piece(c, in + done * c->channels, m, out + done * c->channels);
+    convolve_piece(c, in + done * ch, m, out + done * ch);
+    if (peak_from >= 0 && done + m > (size_t)peak_from) {
+      const size_t from = (size_t)peak_from > done ? (size_t)peak_from : done;
+      const double p = peak_of(out + from * ch, (done + m - from) * ch);
+      best = p > best ? p : best;
+    }
     done += m;
   }
-  return NULL;
+  if (peak_from < 0) return NULL;
+  napi_value result;
+  CHECK(napi_create_double(env, best, &result));
+  return result;
 }
 
 static napi_value convolver_reset(napi_env env, napi_callback_info info) {
@@ -533,6 +566,102 @@ static napi_value convolver_reset(napi_env env, napi_callback_info info) {
   convolver* c;
   if (napi_unwrap(env, self, (void**)&c) != napi_ok || !c) return throw_type(env, "reset: not a Convolver.");
   memset(c->history, 0, (size_t)(c->hist > 0 ? c->hist : 1) * (size_t)c->channels * sizeof(double));
+  return NULL;
+}
+
+/* ---------------------------------------------------------------- memory */
+
+/*
+ * A trimmed render keeps up to a gigabyte of filtered signal. Taken as ordinary 4 KiB pages,
+ * each first touch is a page fault (a quarter of a million of them for 1 GiB), which costs
+ * more than the filtering itself on a virtual machine; so it is taken 2 MiB-aligned and
+ * offered to the kernel for transparent huge pages (madvise: a hint, harmless where refused).
+ * release(buffer) detaches the ArrayBuffer, so no view can reach the memory again, and frees it
+ * at once; a buffer never released is freed when the garbage collector finalizes it.
+ */
+#define HUGE_PAGE ((size_t)2 << 20)
+
+/* The blocks handed out and not yet freed: release() frees one at once, the GC's finalizer otherwise. */
+typedef struct block {
+  void* data; /* NULL once freed */
+  struct block* next;
+} block;
+
+static block* blocks = NULL;
+
+static void forget_block(block* b) {
+  for (block** at = &blocks; *at; at = &(*at)->next) {
+    if (*at == b) {
+      *at = b->next;
+      break;
+    }
+  }
+  free(b);
+}
+
+static void finalize_block(napi_env env, void* data, void* hint) {
+  (void)env;
+  (void)data;
+  block* b = hint;
+  free(b->data); /* NULL when release() freed it already */
+  forget_block(b);
+}
+
+static napi_value allocate(napi_env env, napi_callback_info info) {
+  size_t argc = 1;
+  napi_value argv[1];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  int64_t bytes;
+  if (argc < 1 || !get_int(env, argv[0], &bytes) || bytes < 1 || bytes > ((int64_t)1 << 40))
+    return throw_range(env, "allocate(bytes): bytes must be a positive whole number.");
+  void* data = NULL;
+  const size_t size = ((size_t)bytes + HUGE_PAGE - 1) / HUGE_PAGE * HUGE_PAGE;
+  block* b = calloc(1, sizeof *b);
+  if (!b || posix_memalign(&data, HUGE_PAGE, size) != 0 || !data) {
+    free(b);
+    return throw_range(env, "allocate: out of memory.");
+  }
+#ifdef MADV_HUGEPAGE
+  madvise(data, size, MADV_HUGEPAGE);
+#endif
+  b->data = data;
+  b->next = blocks;
+  blocks = b;
+  napi_value buffer;
+  if (napi_create_external_arraybuffer(env, data, (size_t)bytes, finalize_block, b, &buffer) != napi_ok) {
+    free(data);
+    forget_block(b);
+    return throw_range(env, "allocate: could not make an ArrayBuffer of this memory.");
+  }
+  return buffer;
+}
+
+static block* block_of(void* data) {
+  for (block* b = blocks; b; b = b->next)
+    if (b->data == data) return b;
+  return NULL;
+}
+
+static napi_value release(napi_env env, napi_callback_info info) {
+  size_t argc = 1;
+  napi_value argv[1];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  bool is = false;
+  if (argc < 1 || napi_is_arraybuffer(env, argv[0], &is) != napi_ok || !is) return throw_type(env, "release(buffer): buffer must be an ArrayBuffer.");
+  bool detached = false;
+  CHECK(napi_is_detached_arraybuffer(env, argv[0], &detached));
+  if (detached) return NULL;
+  void* data = NULL;
+  size_t length = 0;
+  CHECK(napi_get_arraybuffer_info(env, argv[0], &data, &length));
+  if (!block_of(data)) return throw_type(env, "release: this buffer did not come from allocate.");
+  /* Detached first, so no view reaches the memory; then freed, unless the detach let it go already. */
+  CHECK(napi_detach_arraybuffer(env, argv[0]));
+  block* b = block_of(data);
+  if (b) {
+    b->data = NULL;
+    free(data);
+  }
   return NULL;
 }
 
@@ -586,10 +715,13 @@ static napi_value init(napi_env env, napi_value exports) {
       {"importWisdom", NULL, import_wisdom, NULL, NULL, NULL, napi_enumerable, NULL},
       {"exportWisdom", NULL, export_wisdom, NULL, NULL, NULL, napi_enumerable, NULL},
       {"unsavedPlans", NULL, unsaved, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"allocate", NULL, allocate, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"release", NULL, release, NULL, NULL, NULL, napi_enumerable, NULL},
   };
   CHECK(napi_define_properties(env, exports, sizeof fns / sizeof fns[0], fns));
-  /* Measuring a large size tries many algorithms; past a few seconds FFTW keeps the best found so far. */
-  fftw_set_timelimit(5.0);
+  /* A bound on planning one size (FFTW_MEASURE takes about 1 s at 2^15 points, 3 s at 2^16, here):
+   * past it, FFTW keeps the best plan found so far. */
+  fftw_set_timelimit(30.0);
   napi_property_descriptor methods[] = {
       {"process", NULL, convolver_process, NULL, NULL, NULL, napi_default, NULL},
       {"reset", NULL, convolver_reset, NULL, NULL, NULL, napi_default, NULL},

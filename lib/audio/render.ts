@@ -18,12 +18,14 @@
  *   ceiling, writes the copy at 0 dB trim as it goes. When the whole signal fits
  *   (the usual case for a transfer with headroom) that is the copy: one pass.
  * - Once the peak passes the ceiling, pass 1 stops writing and measures on,
- *   keeping the filtered signal from that point: in memory up to a budget
- *   (`keepInMemoryBytes`, 1 GiB by default), the rest in a working file beside
- *   the output when the disk has room. Pass 2 writes with the trim: it filters
- *   the part before that point again (the same arithmetic, so the same samples)
- *   and takes the rest as kept, so for that part it only scales, dithers and
- *   encodes; without room it filters it all again, which takes longer.
+ *   keeping the filtered signal from that point: in a working file beside the
+ *   output when the disk has room (the kernel's page cache holds it: the
+ *   cheapest memory a process can fill, see lib/audio/README.md), else in memory
+ *   up to a budget (`keepInMemoryBytes`, 1 GiB by default) and the rest on disk.
+ *   Pass 2 writes with the trim: it filters the part before that point again
+ *   (the same arithmetic, so the same samples) and takes the rest as kept, so
+ *   for that part it only scales, dithers and encodes; without room anywhere it
+ *   filters it all again, which takes longer.
  * - A trimmed copy of 16- or 24-bit PCM scales the filtered signal rounded to
  *   float32 (relative error under 2^-24: under half an LSB of 24-bit, far under
  *   the dither), so the signal is kept in 4 bytes a sample; every way of making
@@ -102,13 +104,15 @@ export interface RenderOptions {
   /** Engine of the inner loops; default the native one where built (lib/audio/dsp.ts). */
   dsp?: DspEngine;
   /**
-   * When a trim is needed: "auto" (default) keeps the filtered signal from where the peak
-   * passed the ceiling (in memory up to `keepInMemoryBytes`, the rest in a working file
-   * beside the output if the disk has room), so pass 2 takes it as kept instead of filtering
-   * it again; "never" always filters again. The copy is the same bytes either way.
+   * When a trim is needed, pass 1 keeps the filtered signal from where the peak passed the
+   * ceiling, so pass 2 takes it as kept instead of filtering it again. "auto" (default): in a
+   * working file beside the output if the disk has room, else in memory up to
+   * `keepInMemoryBytes` and the rest on disk; "memory": in memory first, up to
+   * `keepInMemoryBytes`, the rest on disk; "never": not kept, pass 2 filters again. The copy
+   * is the same bytes every way.
    */
-  keepFiltered?: "auto" | "never";
-  /** Memory the kept signal may take before the rest goes to the working file; default 1 GiB. */
+  keepFiltered?: "auto" | "memory" | "never";
+  /** Memory the kept signal may take where it is kept in memory; default 1 GiB. */
   keepInMemoryBytes?: number;
 }
 
@@ -138,7 +142,7 @@ export interface RenderResult {
 
 const DEFAULT_OUTPUT: SampleEncoding = { format: "pcm", bitsPerSample: 24 };
 const TARGET_CHUNK_FRAMES = 65_536;
-/** The kept signal's memory before it goes to the working file: 10 minutes of 96 kHz stereo float32 is 0.46 GB. */
+/** The kept signal's memory where it is kept in memory: 10 minutes of 96 kHz stereo float32 is 0.46 GB. */
 export const DEFAULT_KEEP_IN_MEMORY_BYTES = 2 ** 30;
 /** Memory for the kept signal is taken in blocks of this many bytes (or one chunk, if larger). */
 const KEEP_BLOCK_BYTES = 16 * 2 ** 20;
@@ -481,8 +485,9 @@ function asKept(
 
 /**
  * The filtered signal from frame `fromFrame` of the output on, as a trimmed copy scales it
- * (float32 for 16/24-bit PCM, else float64): in memory up to the plan's budget, the rest in a
- * working file beside the access copy (the render's own temporary folder, removed with it).
+ * (float32 for 16/24-bit PCM, else float64): in memory up to its budget (none, by default, when
+ * the disk has room), the rest in a working file beside the access copy (the render's own
+ * temporary folder, removed with it).
  */
 class KeptSignal {
   /** The kept frames in memory, in order, each piece a view of a block. */
@@ -500,22 +505,26 @@ class KeptSignal {
     private readonly plan: RenderPlan,
     private readonly path: string,
     readonly fromFrame: number,
+    /** Memory this signal may take before the rest goes to the working file. */
+    private readonly memoryBudget: number,
   ) {
     this.bytesPerSample = plan.roundTo32 ? 4 : 8;
     this.staging = samplesOf(plan.roundTo32, 0);
   }
 
   /**
-   * Somewhere to keep the rest of the signal: memory, and the disk for what passes the memory
-   * budget if it has room; else null (pass 2 filters again).
+   * Somewhere to keep the rest of the signal: the working file when the disk has room (or, with
+   * "memory", memory first), memory up to the budget and the disk for the rest otherwise; else
+   * null (pass 2 filters again).
    */
   static async open(plan: RenderPlan, fromFrame: number): Promise<KeptSignal | null> {
-    if (plan.opts.keepFiltered === "never") return null;
+    const way = plan.opts.keepFiltered ?? "auto";
+    if (way === "never") return null;
     const path = `${plan.opts.outputPath}.filtered`;
     const need = (plan.outFrames - fromFrame) * plan.channelsOut * (plan.roundTo32 ? 4 : 8);
-    const onDisk = need - plan.keepInMemoryBytes;
-    if (onDisk > 0 && !(await hasRoom(path, onDisk))) return null;
-    return new KeptSignal(plan, path, fromFrame);
+    const memory = way === "auto" && (await hasRoom(path, need)) ? 0 : plan.keepInMemoryBytes;
+    if (memory > 0 && need > memory && !(await hasRoom(path, need - memory))) return null;
+    return new KeptSignal(plan, path, fromFrame, memory);
   }
 
   /** Frames kept in the working file. */
@@ -563,7 +572,7 @@ class KeptSignal {
       this.blockUsed += count;
       return view;
     }
-    const left = this.plan.keepInMemoryBytes - this.memoryBytes;
+    const left = this.memoryBudget - this.memoryBytes;
     const samples = Math.min(
       Math.max(count, KEEP_BLOCK_BYTES / this.bytesPerSample),
       Math.floor(left / this.bytesPerSample),

@@ -138,12 +138,12 @@ describe.each(engines)("a render that needs a trim (%s engine)", (_name, dsp) =>
       for (const [name, level] of cases) {
         const input = await writeInput(`${name}.wav`, level);
         const want = await definitionSamples(input, engine);
-        // Kept in memory (the default budget), in the working file (no memory), both (memory for
-        // 1500 frames of float32 stereo, the rest on disk), or filtered again.
+        // Kept in the working file (the default, the disk having room), in memory (the default
+        // budget), both (memory for 1500 frames of float32 stereo, the rest on disk), or filtered again.
         const ways = [
           { keepFiltered: "auto", keepInMemoryBytes: undefined },
-          { keepFiltered: "auto", keepInMemoryBytes: 0 },
-          { keepFiltered: "auto", keepInMemoryBytes: 12_000 },
+          { keepFiltered: "memory", keepInMemoryBytes: undefined },
+          { keepFiltered: "memory", keepInMemoryBytes: 12_000 },
           { keepFiltered: "never", keepInMemoryBytes: undefined },
         ] as const;
         for (const { keepFiltered, keepInMemoryBytes } of ways) {
@@ -165,8 +165,8 @@ describe.each(engines)("a render that needs a trim (%s engine)", (_name, dsp) =>
               expect(second).toEqual({ filteredFrames: frames, readBackFrames: 0, fromFileFrames: 0 });
             else {
               expect(second!.readBackFrames).toBeGreaterThan(0);
-              if (keepInMemoryBytes === undefined) expect(second!.fromFileFrames).toBe(0);
-              else if (keepInMemoryBytes === 0) expect(second!.fromFileFrames).toBe(second!.readBackFrames);
+              if (keepFiltered === "auto") expect(second!.fromFileFrames).toBe(second!.readBackFrames);
+              else if (keepInMemoryBytes === undefined) expect(second!.fromFileFrames).toBe(0);
               else {
                 // Whole chunks in memory while they fit in 12 000 bytes (8 bytes a frame), the rest on
                 // disk: with chunks of 1000 frames, the first kept chunk in memory and the others on disk.
@@ -195,7 +195,8 @@ describe.each(engines)("a render that needs a trim (%s engine)", (_name, dsp) =>
       const want = await definitionSamples(input, engine, 32);
       for (const [keepFiltered, keepInMemoryBytes] of [
         ["auto", undefined],
-        ["auto", 16_000],
+        ["memory", undefined],
+        ["memory", 16_000],
         ["never", undefined],
       ] as const) {
         const { result, bytes } = await render(input, `loud32-${keepFiltered}-${keepInMemoryBytes}.wav`, {

@@ -6,32 +6,24 @@ import { useRouter } from "next/navigation";
 import { useEffect, useState } from "react";
 import { type FieldPath, type Resolver, useForm, useWatch } from "react-hook-form";
 import { Button } from "@/components/ui/button";
-import { controlClass, FieldShell } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
-import { Panel } from "@/components/ui/panel";
 import { fetchJson } from "@/lib/http/client";
 import type { AppError } from "@/lib/http/errors";
-import {
-  conditionFlags,
-  conditionGrades,
-  createDiscSchema,
-  discBases,
-  discFormats,
-  formatLabels,
-  nominalSpeeds,
-  updateDiscSchema,
-} from "@/lib/validation/catalogue";
-import { AccessionForm } from "./accession-form";
+import { createDiscSchema, nominalSpeeds, updateDiscSchema } from "@/lib/validation/catalogue";
 import { type Conflict, ConflictPanel } from "./disc-conflict-panel";
 import { discControls } from "./disc-form-controls";
 import { type DiscFormValues, emptyValues, toFormValues } from "./disc-form-values";
 import { reapplyMine } from "./disc-merge";
+import {
+  basesAllowed,
+  DiscCarrierPanel,
+  DiscConditionPanel,
+  DiscDatePanel,
+  DiscIdentityPanel,
+} from "./disc-form-panels";
 import { DiscSidesPanel } from "./disc-sides-panel";
-import { baseLabels, conditionLabels, flagLabels, isoDateInputProps, speedLabel } from "./format";
 import { HandlingCautions } from "./handling-cautions";
 import type { AccessionJson, DiscJson } from "./types";
-
-const basesAllowed = new Set(["instantaneous_lacquer", "transcription", "other"]);
 
 export function DiscForm({
   initial,
@@ -51,7 +43,6 @@ export function DiscForm({
   );
   const [conflict, setConflict] = useState<Conflict | null>(null);
   const [notice, setNotice] = useState<{ tone: "error" | "info"; text: string } | null>(null);
-  const [newAccession, setNewAccession] = useState(false);
 
   const form = useForm<DiscFormValues>({
     resolver: zodResolver(
@@ -152,7 +143,6 @@ export function DiscForm({
   }
 
   const controls = discControls(register, errors);
-  const { err, input, select } = controls;
 
   const flags = useWatch({ control, name: "conditionFlags" });
   const grade = useWatch({ control, name: "conditionGrade" });
@@ -177,157 +167,30 @@ export function DiscForm({
 
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_24rem]">
         <div className="space-y-6">
-          <Panel title="Identity">
-            <div className="grid gap-4 md:grid-cols-2">
-              <div className="space-y-2 md:col-span-2">
-                <div className="flex flex-wrap items-end gap-3">
-                  <div className="min-w-64 flex-1">
-                    {select(
-                      "accessionId",
-                      "Accession",
-                      [
-                        ["", accessions.isLoading ? "Loading…" : "Choose the accession"],
-                        ...(accessions.data?.accessions ?? []).map((a): [string, string] => [
-                          a.id,
-                          `${a.identifier} — ${a.source}`,
-                        ]),
-                      ],
-                      {},
-                      "The batch this disc arrived in.",
-                    )}
-                  </div>
-                  <Button
-                    type="button"
-                    variant="secondary"
-                    size="sm"
-                    className="mb-6"
-                    aria-expanded={newAccession}
-                    onClick={() => setNewAccession((v) => !v)}
-                    data-testid="toggle-new-accession"
-                  >
-                    {newAccession ? "Close" : "New accession…"}
-                  </Button>
-                </div>
-                {newAccession ? (
-                  <div className="rounded-lg border border-dashed border-paper-edge bg-paper/50 p-4">
-                    <AccessionForm
-                      testId="inline-accession"
-                      onCancel={() => setNewAccession(false)}
-                      onCreated={(a) => {
-                        void queryClient
-                          .invalidateQueries({ queryKey: ["accessions"] })
-                          .then(() =>
-                            setValue("accessionId", a.id, { shouldValidate: true, shouldDirty: true }),
-                          );
-                        setNewAccession(false);
-                      }}
-                    />
-                  </div>
-                ) : null}
-              </div>
-              {input("shelfMark", "Shelf mark", {
-                autoComplete: "off",
-                className: controlClass(!!err("shelfMark"), "font-mono"),
-              })}
-              {input("labelName", "Label")}
-              {input("catalogueNumber", "Catalogue number", {
-                className: controlClass(!!err("catalogueNumber"), "font-mono"),
-              })}
-            </div>
-          </Panel>
+          <DiscIdentityPanel
+            controls={controls}
+            accessions={accessions.data?.accessions ?? []}
+            accessionsLoading={accessions.isLoading}
+            onAccessionCreated={(a) =>
+              void queryClient
+                .invalidateQueries({ queryKey: ["accessions"] })
+                .then(() => setValue("accessionId", a.id, { shouldValidate: true, shouldDirty: true }))
+            }
+          />
 
-          <Panel title="Carrier">
-            <div className="grid gap-4 md:grid-cols-3">
-              {select(
-                "format",
-                "Format",
-                discFormats.map((f) => [f, formatLabels[f]]),
-              )}
-              {basesAllowed.has(format) ? (
-                select(
-                  "base",
-                  "Base",
-                  [["", "Not recorded"], ...discBases.map((b): [string, string] => [b, baseLabels[b]])],
-                  {},
-                  "Lacquer and transcription discs only.",
-                )
-              ) : (
-                <FieldShell
-                  id="disc-base-na"
-                  label="Base"
-                  hint="Recorded for lacquer and transcription discs only."
-                >
-                  <input
-                    id="disc-base-na"
-                    disabled
-                    value="—"
-                    className={controlClass(false, "opacity-60")}
-                    readOnly
-                  />
-                </FieldShell>
-              )}
-              {input("diameterIn", "Diameter (inches)", { inputMode: "decimal" })}
-              <div className="space-y-1.5">
-                <label htmlFor="disc-speed-choice" className="block text-sm font-medium">
-                  Nominal speed (rpm)
-                </label>
-                <select
-                  id="disc-speed-choice"
-                  value={speedOther ? "other" : speed}
-                  onChange={(e) => {
-                    if (e.target.value === "other") {
-                      setSpeedOther(true);
-                    } else {
-                      setSpeedOther(false);
-                      setValue("nominalSpeedRpm", e.target.value, {
-                        shouldValidate: true,
-                        shouldDirty: true,
-                      });
-                    }
-                  }}
-                  className={controlClass(!!err("nominalSpeedRpm"))}
-                >
-                  {nominalSpeeds.map((s) => (
-                    <option key={s} value={String(s)}>
-                      {speedLabel(s)}
-                    </option>
-                  ))}
-                  <option value="other">Other…</option>
-                </select>
-                {!speedOther && err("nominalSpeedRpm") ? (
-                  <p className="text-xs font-medium text-alarm">{err("nominalSpeedRpm")}</p>
-                ) : null}
-              </div>
-              {speedOther ? input("nominalSpeedRpm", "Other speed (rpm)", { inputMode: "decimal" }) : null}
-              {select("groove", "Groove", [
-                ["coarse", "Coarse groove"],
-                ["micro", "Microgroove"],
-              ])}
-              {select("cut", "Cut", [
-                ["lateral", "Lateral"],
-                ["vertical", "Vertical (hill-and-dale)"],
-              ])}
-            </div>
-          </Panel>
+          <DiscCarrierPanel
+            controls={controls}
+            format={format}
+            speed={speed}
+            speedOther={speedOther}
+            onSpeedChoice={(choice) => {
+              setSpeedOther(choice === "other");
+              if (choice !== "other")
+                setValue("nominalSpeedRpm", choice, { shouldValidate: true, shouldDirty: true });
+            }}
+          />
 
-          <Panel title="Date">
-            <div className="grid gap-4 md:grid-cols-3">
-              {input(
-                "recordingDate",
-                "Recording date (YYYY-MM-DD)",
-                isoDateInputProps,
-                "When known exactly.",
-              )}
-              {input("recordedFromYear", "Recorded from (year)", {
-                inputMode: "numeric",
-                placeholder: "e.g. 1931",
-              })}
-              {input("recordedToYear", "Recorded to (year)", {
-                inputMode: "numeric",
-                placeholder: "e.g. 1933",
-              })}
-            </div>
-          </Panel>
+          <DiscDatePanel controls={controls} />
 
           <DiscSidesPanel
             control={control}
@@ -338,53 +201,7 @@ export function DiscForm({
         </div>
 
         <div className="space-y-6">
-          <Panel title="Condition">
-            <div className="space-y-4">
-              {select(
-                "conditionGrade",
-                "Condition",
-                conditionGrades.map((g) => [g, conditionLabels[g]]),
-              )}
-              <fieldset>
-                <legend className="mb-1.5 text-sm font-medium">Condition flags</legend>
-                <div className="grid grid-cols-2 gap-1.5">
-                  {conditionFlags.map((f) => (
-                    <label key={f} className="flex items-center gap-2 text-sm">
-                      <input
-                        type="checkbox"
-                        value={f}
-                        {...register("conditionFlags")}
-                        className="h-4 w-4 accent-shellac"
-                      />
-                      {flagLabels[f]}
-                    </label>
-                  ))}
-                </div>
-              </fieldset>
-              <FieldShell id="disc-conditionNotes" label="Condition notes" errors={err("conditionNotes")}>
-                <textarea
-                  id="disc-conditionNotes"
-                  rows={3}
-                  className={controlClass(!!err("conditionNotes"))}
-                  {...register("conditionNotes")}
-                />
-              </FieldShell>
-              <FieldShell
-                id="disc-handlingNotes"
-                label="Handling notes"
-                errors={err("handlingNotes")}
-                hint="Anything the next person to handle it should know."
-              >
-                <textarea
-                  id="disc-handlingNotes"
-                  rows={3}
-                  aria-describedby="disc-handlingNotes-hint"
-                  className={controlClass(!!err("handlingNotes"))}
-                  {...register("handlingNotes")}
-                />
-              </FieldShell>
-            </div>
-          </Panel>
+          <DiscConditionPanel controls={controls} register={register} />
           <HandlingCautions
             format={format}
             base={base || null}

@@ -187,6 +187,7 @@ export async function runRenderJob(
       channelMode: job.channelMode,
       output: { format: "pcm", bitsPerSample: job.bitDepth },
       outputSampleRateHz: outputRateHz,
+      keepInMemoryBytes: env().RENDER_MEMORY_MIB * 2 ** 20,
       bext: {
         description: description.slice(0, 256),
         originator: env().LAB_NAME.slice(0, 32),

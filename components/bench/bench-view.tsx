@@ -22,6 +22,7 @@ import { statusLabels } from "@/lib/validation/catalogue";
 import { curveChoosableStatuses, uploadableStatuses } from "@/lib/validation/transfers";
 import { AccessCopyCompare } from "./access-copy-compare";
 import { AuditionPanel } from "./audition-panel";
+import { type BenchStep, BenchSteps, nextAtBench } from "./bench-steps";
 import { choiceCandidate, presetCandidate } from "./candidates";
 import { ChoiceHistory } from "./choice-history";
 import { type ChoicePrefill, CurveChoiceForm } from "./curve-choice-form";
@@ -91,6 +92,43 @@ export function BenchView({
   const s = data.side;
   const mine = s.assignedEngineerId === userId;
   const canChoose = mine && curveChoosableStatuses.has(s.status);
+  const currentTransfer = now.transfer;
+  const steps: BenchStep[] = [
+    {
+      id: "bench-transfer",
+      label: "Flat transfer",
+      done: !!s.currentTransferId,
+      detail: currentTransfer?.fileName ?? null,
+    },
+    {
+      id: "bench-listen",
+      label: "Listen and compare",
+      done: false,
+      detail: candidates.length
+        ? `${candidates.length} curve${candidates.length === 1 ? "" : "s"} compared`
+        : null,
+    },
+    {
+      id: "bench-step-choose",
+      label: "Record the curve",
+      done: !!current,
+      detail: current ? curveChoiceName(current) : null,
+    },
+    {
+      id: "bench-access",
+      label: "Access copy",
+      done: !!currentRender,
+      detail: currentRender ? `${currentRender.bitDepth}-bit` : null,
+    },
+  ];
+  const next = nextAtBench({
+    status: s.status,
+    mine,
+    assignee: s.assignedEngineerName ?? null,
+    hasTransfer: !!s.currentTransferId,
+    hasCurve: !!current,
+    hasAccessCopy: !!currentRender,
+  });
   const recordFromListening = (candidateId: string, evidence: string) => {
     const nonce = Date.now();
     if (candidateId.startsWith("preset:")) {
@@ -138,29 +176,37 @@ export function BenchView({
         </Notice>
       ) : null}
 
-      <Panel title="1 · Flat transfer">
-        <div className="grid gap-6 2xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
-          <UploadPanel
-            sideId={sideId}
-            canUpload={mine && uploadableStatuses.has(s.status)}
-            replaces={!!s.currentTransferId}
-          />
-          <div className="min-w-0 space-y-2">
-            <h3 className="font-sans text-sm font-semibold">Transfers of this side</h3>
-            <TransfersList
-              transfers={transfers.data?.transfers}
-              loading={transfers.isLoading}
-              selectedId={auditioned?.id ?? null}
-              onSelect={setPickedTransfer}
-              currentId={s.currentTransferId}
-            />
-          </div>
-        </div>
-      </Panel>
+      <BenchSteps steps={steps} next={next} />
 
+      {/*
+        Wide screens: the transfer and the listening on the left, and the curve's form with its
+        history in a pane on the right that stays beside them while the page scrolls (it scrolls
+        on its own when taller than the window); the access copy below, across both. Narrow
+        screens: one column, in order.
+      */}
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_27rem]">
         <div className="min-w-0 space-y-6">
-          <Panel title="2 · Listen and compare">
+          <Panel id="bench-transfer" title="1 · Flat transfer">
+            <div className="space-y-5">
+              <UploadPanel
+                sideId={sideId}
+                canUpload={mine && uploadableStatuses.has(s.status)}
+                replaces={!!s.currentTransferId}
+              />
+              <div className="min-w-0 space-y-2 border-t border-paper-edge pt-4">
+                <h3 className="font-sans text-sm font-semibold">Transfers of this side</h3>
+                <TransfersList
+                  transfers={transfers.data?.transfers}
+                  loading={transfers.isLoading}
+                  selectedId={auditioned?.id ?? null}
+                  onSelect={setPickedTransfer}
+                  currentId={s.currentTransferId}
+                />
+              </div>
+            </div>
+          </Panel>
+
+          <Panel id="bench-listen" title="2 · Listen and compare">
             <div className="space-y-5">
               <p className="text-xs text-ink-faint">
                 Listening records nothing: compare as many curves as you like on the flat transfer, then
@@ -230,51 +276,52 @@ export function BenchView({
           </Panel>
         </div>
 
-        <div className="min-w-0 space-y-6">
-          <div id="bench-step-choose" className="scroll-mt-4">
-            <Panel title="3 · Record the curve">
-              {choices.isLoading ? (
-                <p className="text-sm text-ink-faint">Loading…</p>
-              ) : curveChoosableStatuses.has(s.status) ? (
-                <div className="space-y-4">
-                  {!s.currentTransferId ? (
-                    <p className="rounded-md bg-paper-deep/60 px-3 py-2 text-xs text-ink-soft">
-                      No flat transfer yet. You may record a curve now (from published guidance for the label,
-                      say); the transfer does not wait for it, and you can still change the curve after
-                      listening.
-                    </p>
-                  ) : null}
-                  <CurveChoiceForm
-                    key={current?.id ?? "none"}
-                    data={data}
-                    current={current}
-                    extraSideIds={extraSideIds}
-                    measuredSpeedRpm={
-                      newest?.measuredSpeedRpm != null ? Number(newest.measuredSpeedRpm) : null
-                    }
-                    onEffectiveSpec={onEffectiveSpec}
-                    prefill={prefill && prefill.against === (current?.id ?? null) ? prefill : null}
-                  />
-                </div>
-              ) : (
-                // The server refuses a new choice here; the recorded one stands below.
-                <Notice
-                  tone="info"
-                  title={`${statusLabels[s.status]}: the curve is settled`}
-                  testId="choice-locked"
-                >
-                  {s.status === "in_review"
-                    ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it."
-                    : "This side's curve can no longer change."}
-                </Notice>
-              )}
-            </Panel>
+        <div
+          className="min-w-0 space-y-6 xl:sticky xl:top-14 xl:max-h-[calc(100vh-4.5rem)] xl:self-start xl:overflow-y-auto xl:rounded-xl xl:pb-1"
+          data-testid="bench-curve-pane"
+        >
+          <Panel id="bench-step-choose" title="3 · Record the curve">
+            {choices.isLoading ? (
+              <p className="text-sm text-ink-faint">Loading…</p>
+            ) : curveChoosableStatuses.has(s.status) ? (
+              <div className="space-y-4">
+                {!s.currentTransferId ? (
+                  <p className="rounded-md bg-paper-deep/60 px-3 py-2 text-xs text-ink-soft">
+                    No flat transfer yet. You may record a curve now (from published guidance for the label,
+                    say); the transfer does not wait for it, and you can still change the curve after
+                    listening.
+                  </p>
+                ) : null}
+                <CurveChoiceForm
+                  key={current?.id ?? "none"}
+                  data={data}
+                  current={current}
+                  extraSideIds={extraSideIds}
+                  measuredSpeedRpm={newest?.measuredSpeedRpm != null ? Number(newest.measuredSpeedRpm) : null}
+                  onEffectiveSpec={onEffectiveSpec}
+                  prefill={prefill && prefill.against === (current?.id ?? null) ? prefill : null}
+                />
+              </div>
+            ) : (
+              // The server refuses a new choice here; the recorded one stands below.
+              <Notice
+                tone="info"
+                title={`${statusLabels[s.status]}: the curve is settled`}
+                testId="choice-locked"
+              >
+                {s.status === "in_review"
+                  ? "A curator is reviewing this side. Its curve and transfer can change again only if the curator returns it."
+                  : "This side's curve can no longer change."}
+              </Notice>
+            )}
+          </Panel>
+          <div id="bench-history" className="scroll-mt-20">
+            <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
           </div>
-          <ChoiceHistory choices={choices.data?.choices} loading={choices.isLoading} />
         </div>
       </div>
 
-      <Panel title="4 · Access copy">
+      <Panel id="bench-access" title="4 · Access copy">
         <div className="space-y-6">
           <RenderPanel
             sideId={sideId}

@@ -25,7 +25,12 @@ import {
 } from "@/lib/curves";
 import { fetchJson } from "@/lib/http/client";
 import { AppError } from "@/lib/http/errors";
-import { evidenceKinds, evidenceLabels } from "@/lib/validation/transfers";
+import {
+  cutSpeedSchema,
+  evidenceKinds,
+  evidenceLabels,
+  transferSpeedSchema,
+} from "@/lib/validation/transfers";
 import { PitchReference } from "./pitch-reference";
 import type { CurveChoiceJson, EvidenceKind, SideWithDisc } from "./types";
 
@@ -190,6 +195,18 @@ export function CurveChoiceForm({
 
   const errorFor = (p: string) => (effective.error?.parameter === p ? effective.error.message : null);
   const fieldErr = (k: string) => serverError?.fields[k];
+  /** The server's errors for a field and everything inside it ("overrides.turnover" holds "overrides.turnover.value"). */
+  const fieldErrsUnder = (prefix: string) =>
+    Object.entries(serverError?.fields ?? {})
+      .filter(([k]) => k === prefix || k.startsWith(`${prefix}.`))
+      .flatMap(([, v]) => v);
+  // The speeds are read as the engineer types them, with the same sentences the server would give.
+  const speedErr = (schema: typeof cutSpeedSchema, text: string) => {
+    const r = schema.safeParse(text);
+    return r.success ? undefined : r.error.issues.map((i) => i.message);
+  };
+  const cutErr = speedErr(cutSpeedSchema, cutRpm);
+  const transferErr = speedErr(transferSpeedSchema, transferRpm);
 
   const sideIds =
     applyTo === "side"
@@ -291,7 +308,7 @@ export function CurveChoiceForm({
         {CORNERS.map((c) => {
           const d = corners[c.name];
           const base = presetSpec?.[c.name];
-          const err = errorFor(c.name);
+          const err = errorFor(c.name) ?? (fieldErrsUnder(`overrides.${c.name}`).join(" ") || null);
           const set = (patch: Partial<CornerDraft>) =>
             setCorners((all) => ({ ...all, [c.name]: { ...all[c.name], ...patch } }));
           return (
@@ -411,9 +428,15 @@ export function CurveChoiceForm({
               />
             </div>
           ) : null}
-          {errorFor("reference") || errorFor("reference.hz") || errorFor("reference.db") ? (
+          {errorFor("reference") ||
+          errorFor("reference.hz") ||
+          errorFor("reference.db") ||
+          fieldErrsUnder("overrides.reference").length ? (
             <p role="alert" className="mt-1 text-xs font-medium text-alarm">
-              {errorFor("reference") ?? errorFor("reference.hz") ?? errorFor("reference.db")}
+              {errorFor("reference") ??
+                errorFor("reference.hz") ??
+                errorFor("reference.db") ??
+                fieldErrsUnder("overrides.reference").join(" ")}
             </p>
           ) : null}
         </div>
@@ -441,7 +464,7 @@ export function CurveChoiceForm({
             value={cutRpm}
             inputMode="decimal"
             onChange={(e) => setCutRpm(e.target.value)}
-            errors={fieldErr("cutSpeedRpm")}
+            errors={fieldErr("cutSpeedRpm") ?? cutErr}
             data-testid="choice-cut-rpm"
           />
           <TextField
@@ -450,7 +473,7 @@ export function CurveChoiceForm({
             value={transferRpm}
             inputMode="decimal"
             onChange={(e) => setTransferRpm(e.target.value)}
-            errors={fieldErr("transferSpeedRpm")}
+            errors={fieldErr("transferSpeedRpm") ?? transferErr}
             data-testid="choice-transfer-rpm"
           />
           <output className="pb-2 font-mono text-sm" aria-label="Speed ratio">
@@ -524,7 +547,7 @@ export function CurveChoiceForm({
             ) : null}
           </div>
         ) : null}
-        {errorFor("speedRatio") ? (
+        {errorFor("speedRatio") && !cutErr && !transferErr ? (
           <p role="alert" className="text-xs font-medium text-alarm">
             {errorFor("speedRatio")}
           </p>

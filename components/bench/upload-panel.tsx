@@ -12,6 +12,7 @@ import { cx } from "@/components/ui/cx";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { useMultipartUpload } from "@/hooks/use-multipart-upload";
+import { uploadDetailsSchema } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
 
 /** The flat transfer comes first: it never waits for the curve, which is decided afterwards by evidence and by ear on it. */
@@ -33,7 +34,11 @@ export function UploadPanel({
   const [measured, setMeasured] = useState("");
   const [chain, setChain] = useState("");
   const [localError, setLocalError] = useState<string | null>(null);
+  const [detailErrors, setDetailErrors] = useState<Record<string, string[]>>({});
   const working = state.phase === "starting" || state.phase === "uploading" || state.phase === "checking";
+  // With a transfer already in, the form waits behind one button (it replaces the current one);
+  // opened once, or used in this visit, it stays open.
+  const [open, setOpen] = useState(!replaces);
 
   const dz = useDropzone({
     multiple: false,
@@ -63,12 +68,49 @@ export function UploadPanel({
   };
   const send = async () => {
     if (!file) return;
-    const m = measured.trim() === "" ? undefined : Number(measured.replace(",", "."));
-    const result = await start(sideId, file, { stylusSize, stylusShape, measuredSpeedRpm: m, chain });
+    // The details are checked here first, so a mistyped speed is said before a large file travels.
+    const details = uploadDetailsSchema.safeParse({
+      stylusSize,
+      stylusShape,
+      measuredSpeedRpm: measured,
+      chain,
+    });
+    if (!details.success) {
+      const errors: Record<string, string[]> = {};
+      for (const issue of details.error.issues)
+        (errors[String(issue.path[0] ?? "_")] ??= []).push(issue.message);
+      setDetailErrors(errors);
+      return;
+    }
+    setDetailErrors({});
+    const result = await start(sideId, file, details.data);
     if (result) accepted();
   };
 
-  const f = (k: string) => state.fields?.[k];
+  const f = (k: string) => detailErrors[k] ?? state.fields?.[k];
+  if (!open)
+    return (
+      <div
+        className="flex flex-wrap items-center justify-between gap-3 rounded-lg border border-dashed border-paper-edge bg-paper/40 px-4 py-3"
+        data-testid="upload-panel"
+      >
+        <p className="text-sm text-ink-soft">
+          {canUpload
+            ? "The flat transfer is in. Another one, uploaded here, becomes the one the access copy is made from."
+            : "The flat transfer is in; no other can be uploaded while the side stands where it is."}
+        </p>
+        <Button
+          type="button"
+          size="sm"
+          variant="secondary"
+          disabled={!canUpload}
+          onClick={() => setOpen(true)}
+          data-testid="upload-open"
+        >
+          Upload another transfer
+        </Button>
+      </div>
+    );
   return (
     <div className="space-y-4" data-testid="upload-panel">
       {replaces && canUpload && file && state.phase !== "done" ? (
@@ -77,81 +119,86 @@ export function UploadPanel({
           from: any access copy rendered so far is superseded and the side is rendered again.
         </Notice>
       ) : null}
-      <div className="grid gap-5 lg:grid-cols-[minmax(0,1.1fr)_minmax(0,1fr)]">
-        <div className="space-y-3">
-          <div
-            {...dz.getRootProps({
-              className: cx(
-                "flex min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl " +
-                  "border-2 border-dashed px-4 py-6 text-center transition-colors",
-                dz.isDragActive
-                  ? "border-groove bg-groove-wash"
-                  : "border-paper-edge bg-paper/50 hover:border-ink-faint",
-                (working || !canUpload) && "cursor-not-allowed opacity-60",
-              ),
-              "aria-label": "Flat transfer file: drop it here or press Enter to choose",
-            })}
-            data-testid="upload-drop"
-          >
-            <input {...dz.getInputProps()} data-testid="upload-input" aria-label="Flat transfer file" />
-            <p className="text-sm font-medium">
-              {dz.isDragActive ? "Drop the file to take it" : "Drop the flat transfer here, or choose it"}
-            </p>
-            <p className="text-xs text-ink-faint">WAV, Broadcast WAVE or RF64 · unequalized · any size</p>
-            {file ? (
-              <p className="mt-2 rounded bg-white px-2 py-1 font-mono text-xs" data-testid="upload-file">
-                {file.name} · {formatBytes(file.size)}
-              </p>
-            ) : null}
+      {/* Side by side where the panel is wide enough (its own width, not the window's); put away once the file is accepted. */}
+      {state.phase === "done" ? null : (
+        <div className="@container">
+          <div className="grid gap-5 @3xl:grid-cols-[minmax(0,1.1fr)_minmax(0,1fr)]">
+            <div className="space-y-3">
+              <div
+                {...dz.getRootProps({
+                  className: cx(
+                    "flex min-h-28 @3xl:min-h-40 cursor-pointer flex-col items-center justify-center gap-1.5 rounded-xl " +
+                      "border-2 border-dashed px-4 py-6 text-center transition-colors",
+                    dz.isDragActive
+                      ? "border-groove bg-groove-wash"
+                      : "border-paper-edge bg-paper/50 hover:border-ink-faint",
+                    (working || !canUpload) && "cursor-not-allowed opacity-60",
+                  ),
+                  "aria-label": "Flat transfer file: drop it here or press Enter to choose",
+                })}
+                data-testid="upload-drop"
+              >
+                <input {...dz.getInputProps()} data-testid="upload-input" aria-label="Flat transfer file" />
+                <p className="text-sm font-medium">
+                  {dz.isDragActive ? "Drop the file to take it" : "Drop the flat transfer here, or choose it"}
+                </p>
+                <p className="text-xs text-ink-faint">WAV, Broadcast WAVE or RF64 · unequalized · any size</p>
+                {file ? (
+                  <p className="mt-2 rounded bg-white px-2 py-1 font-mono text-xs" data-testid="upload-file">
+                    {file.name} · {formatBytes(file.size)}
+                  </p>
+                ) : null}
+              </div>
+              {localError ? (
+                <p role="alert" className="text-xs font-medium text-alarm">
+                  {localError}
+                </p>
+              ) : null}
+            </div>
+            <div className="grid grid-cols-2 gap-3 @xl:grid-cols-3 @3xl:grid-cols-2">
+              <TextField
+                id={`${uid}-size`}
+                label="Stylus tip size"
+                placeholder="e.g. 3.0 mil"
+                value={stylusSize}
+                onChange={(e) => setStylusSize(e.target.value)}
+                errors={f("stylusSize")}
+                data-testid="upload-stylus-size"
+              />
+              <TextField
+                id={`${uid}-shape`}
+                label="Stylus shape"
+                placeholder="e.g. truncated elliptical"
+                value={stylusShape}
+                onChange={(e) => setStylusShape(e.target.value)}
+                errors={f("stylusShape")}
+                data-testid="upload-stylus-shape"
+              />
+              <TextField
+                id={`${uid}-speed`}
+                label="Measured turntable speed (rpm)"
+                inputMode="decimal"
+                placeholder="optional"
+                value={measured}
+                onChange={(e) => setMeasured(e.target.value)}
+                errors={f("measuredSpeedRpm")}
+                data-testid="upload-measured-speed"
+              />
+              <div className="col-span-full">
+                <TextField
+                  id={`${uid}-chain`}
+                  label="Transfer chain"
+                  placeholder="Turntable → arm → cartridge → flat preamp → converter, rate/bits"
+                  value={chain}
+                  onChange={(e) => setChain(e.target.value)}
+                  errors={f("chain")}
+                  data-testid="upload-chain"
+                />
+              </div>
+            </div>
           </div>
-          {localError ? (
-            <p role="alert" className="text-xs font-medium text-alarm">
-              {localError}
-            </p>
-          ) : null}
         </div>
-        <div className="grid grid-cols-2 gap-3">
-          <TextField
-            id={`${uid}-size`}
-            label="Stylus tip size"
-            placeholder="e.g. 3.0 mil"
-            value={stylusSize}
-            onChange={(e) => setStylusSize(e.target.value)}
-            errors={f("stylusSize")}
-            data-testid="upload-stylus-size"
-          />
-          <TextField
-            id={`${uid}-shape`}
-            label="Stylus shape"
-            placeholder="e.g. truncated elliptical"
-            value={stylusShape}
-            onChange={(e) => setStylusShape(e.target.value)}
-            errors={f("stylusShape")}
-            data-testid="upload-stylus-shape"
-          />
-          <TextField
-            id={`${uid}-speed`}
-            label="Measured turntable speed (rpm)"
-            inputMode="decimal"
-            placeholder="optional"
-            value={measured}
-            onChange={(e) => setMeasured(e.target.value)}
-            errors={f("measuredSpeedRpm")}
-            data-testid="upload-measured-speed"
-          />
-          <div className="col-span-2">
-            <TextField
-              id={`${uid}-chain`}
-              label="Transfer chain"
-              placeholder="Turntable → arm → cartridge → flat preamp → converter, rate/bits"
-              value={chain}
-              onChange={(e) => setChain(e.target.value)}
-              errors={f("chain")}
-              data-testid="upload-chain"
-            />
-          </div>
-        </div>
-      </div>
+      )}
 
       {state.phase !== "idle" ? (
         <div className="space-y-2 rounded-lg border border-paper-edge bg-white p-3" aria-live="polite">
@@ -224,14 +271,29 @@ export function UploadPanel({
       ) : null}
 
       <div className="flex flex-wrap gap-2">
-        <Button
-          type="button"
-          onClick={() => void send()}
-          disabled={!file || working || !canUpload || state.phase === "confirm"}
-          data-testid="upload-start"
-        >
-          {state.phase === "failed" ? "Try again" : "Upload and check"}
-        </Button>
+        {state.phase === "done" ? (
+          <Button
+            type="button"
+            variant="secondary"
+            disabled={!canUpload}
+            onClick={() => {
+              reset();
+              setFile(null);
+            }}
+            data-testid="upload-another"
+          >
+            Upload another transfer
+          </Button>
+        ) : (
+          <Button
+            type="button"
+            onClick={() => void send()}
+            disabled={!file || working || !canUpload || state.phase === "confirm"}
+            data-testid="upload-start"
+          >
+            {state.phase === "failed" ? "Try again" : "Upload and check"}
+          </Button>
+        )}
         {working ? (
           <Button type="button" variant="danger" onClick={cancel} data-testid="upload-cancel">
             Cancel upload

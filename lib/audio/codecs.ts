@@ -110,7 +110,7 @@ const ROUNDER = 6755399441055744;
  * taking away 1.5·2^52), the same sums the native encoder does, so both write the same bytes.
  */
 export function encodeInterleavedPcm(
-  samples: Float64Array,
+  samples: Float64Array | Float32Array,
   count: number,
   gain: number,
   bitsPerSample: number,
@@ -168,7 +168,7 @@ export interface EncodeResult {
 
 /** Encode interleaved float output (32 or 64-bit IEEE), counting samples beyond full scale. */
 export function encodeInterleavedFloat(
-  samples: Float64Array,
+  samples: Float64Array | Float32Array,
   count: number,
   gain: number,
   bitsPerSample: number,

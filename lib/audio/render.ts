@@ -18,11 +18,20 @@
  *   ceiling, writes the copy at 0 dB trim as it goes. When the whole signal fits
  *   (the usual case for a transfer with headroom) that is the copy: one pass.
  * - Once the peak passes the ceiling, pass 1 stops writing and measures on,
- *   keeping the filtered signal from that point in a float64 working file beside
- *   the output (8 bytes per sample) when the disk has room. Pass 2 writes with
- *   the trim: it filters the part before that point again (the same arithmetic,
- *   so the same samples) and reads the rest back; without room it filters it all
- *   again, which takes longer but no disk.
+ *   keeping the filtered signal from that point: in a working file beside the
+ *   output when the disk has room (the kernel's page cache holds it: the
+ *   cheapest memory a process can fill, see lib/audio/README.md), else in memory
+ *   up to a budget (`keepInMemoryBytes`, 1 GiB by default) and the rest on disk.
+ *   Pass 2 writes with the trim: it filters the part before that point again
+ *   (the same arithmetic, so the same samples) and takes the rest as kept, so
+ *   for that part it only scales, dithers and encodes; without room anywhere it
+ *   filters it all again, which takes longer.
+ * - A trimmed copy of 16- or 24-bit PCM scales the filtered signal rounded to
+ *   float32 (relative error under 2^-24: under half an LSB of 24-bit, far under
+ *   the dither), so the signal is kept in 4 bytes a sample; every way of making
+ *   the trimmed copy rounds so, hence writes the same bytes. A trimmed copy of
+ *   32-bit PCM or float keeps (and scales) float64. The copy at 0 dB is never
+ *   rounded: it is written from the filter's float64 output as it comes.
  *
  * Either way the copy is exactly what one filtering, one measured trim and one
  * dithered write give. The writer knows the length in advance, so the file's
@@ -117,12 +126,16 @@ export interface RenderOptions {
   /** Engine of the inner loops; default the native one where built (lib/audio/dsp.ts). */
   dsp?: DspEngine;
   /**
-   * When a trim is needed: "auto" (default) keeps the filtered signal from where the peak
-   * passed the ceiling in a float64 working file beside the output, if the disk has room,
-   * so pass 2 reads it back instead of filtering it again; "never" always filters again.
-   * The copy is the same bytes either way.
+   * When a trim is needed, pass 1 keeps the filtered signal from where the peak passed the
+   * ceiling, so pass 2 takes it as kept instead of filtering it again. "auto" (default): in a
+   * working file beside the output if the disk has room, else in memory up to
+   * `keepInMemoryBytes` and the rest on disk; "memory": in memory first, up to
+   * `keepInMemoryBytes`, the rest on disk; "never": not kept, pass 2 filters again. The copy
+   * is the same bytes every way.
    */
-  keepFiltered?: "auto" | "never";
+  keepFiltered?: "auto" | "memory" | "never";
+  /** Memory the kept signal may take where it is kept in memory; default 1 GiB. */
+  keepInMemoryBytes?: number;
 }
 
 export interface RenderResult {
@@ -141,14 +154,22 @@ export interface RenderResult {
   codingHistory: string;
   /** The engine that ran the inner loops, e.g. "native (fftw-3.3.10)". */
   engine: string;
-  /** With a trim: how pass 2 got its samples, frames filtered again and frames read back. */
-  secondPass: { filteredFrames: number; readBackFrames: number } | null;
+  /**
+   * With a trim: how pass 2 got its samples: frames filtered again, and frames kept by pass 1
+   * (`readBackFrames`), of which `fromFileFrames` came back from the working file (the rest
+   * from memory).
+   */
+  secondPass: { filteredFrames: number; readBackFrames: number; fromFileFrames: number } | null;
   /** With speed correction: the factor cut ÷ transfer and the rate the transfer was converted from. */
   speedCorrection: (SpeedCorrection & { factor: number; playedAtHz: number }) | null;
 }
 
 const DEFAULT_OUTPUT: SampleEncoding = { format: "pcm", bitsPerSample: 24 };
 const TARGET_CHUNK_FRAMES = 65_536;
+/** The kept signal's memory where it is kept in memory: 10 minutes of 96 kHz stereo float32 is 0.46 GB. */
+export const DEFAULT_KEEP_IN_MEMORY_BYTES = 2 ** 30;
+/** Memory for the kept signal is taken in blocks of this many bytes (or one chunk, if larger). */
+const KEEP_BLOCK_BYTES = 16 * 2 ** 20;
 
 export class RenderError extends Error {
   constructor(message: string) {
@@ -168,8 +189,8 @@ function outputChannels(mode: ChannelMode, inputChannels: number): 1 | 2 {
 
 /**
  * One pass of the chain; `sink` receives the aligned output in order, interleaved,
- * exactly header.frames frames in all, unless it answers `false` (enough: the pass
- * stops there). The array it gets is reused after it returns.
+ * exactly header.frames frames in all, with its peak magnitude, unless it answers
+ * `false` (enough: the pass stops there). The array it gets is reused after it returns.
  */
 async function runChain(
   opts: RenderOptions,
@@ -177,7 +198,7 @@ async function runChain(
   mode: ChannelMode,
   channelsOut: 1 | 2,
   chunkFrames: number,
-  sink: (samples: Float64Array, frames: number) => Promise<boolean | void> | boolean | void,
+  sink: (samples: Float64Array, frames: number, peak: number) => Promise<boolean | void> | boolean | void,
   progress: (framesRead: number) => void,
 ): Promise<void> {
   const { header, source } = opts;
@@ -191,11 +212,12 @@ async function runChain(
   /** False when the sink has had enough. */
   const filterAndEmit = async (n: number): Promise<boolean> => {
     if (mode !== "both") mixToMono(mode, decoded, n, mixed);
-    filter.process(mixed, n, filtered);
     const drop = Math.min(toDrop, n);
     toDrop -= drop;
+    // The filter measures the peak of what is kept as it writes it.
+    const peak = filter.processPeak(mixed, n, filtered, drop);
     if (n > drop)
-      return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop)) !== false;
+      return (await sink(filtered.subarray(drop * channelsOut, n * channelsOut), n - drop, peak)) !== false;
     return true;
   };
 
@@ -266,6 +288,10 @@ interface RenderPlan {
   outFrames: number;
   /** The largest filtered magnitude written at 0 dB: the ceiling, less room for dither and rounding on integer output. */
   limit: number;
+  /** A trimmed copy scales the filtered signal rounded to float32 (16/24-bit PCM), else float64. */
+  roundTo32: boolean;
+  /** Memory the kept signal may take (bytes). */
+  keepInMemoryBytes: number;
   /** The coding history of a copy written with this trim (dB). */
   codingHistoryFor: (trimDb: number) => string;
   /** Progress of pass `pass` (1 or 2) as a fraction of it; never goes back. */
@@ -295,6 +321,11 @@ function planRender(opts: RenderOptions): RenderPlan {
     );
   }
   const channelsOut = outputChannels(mode, header.channels);
+  const keepInMemoryBytes = opts.keepInMemoryBytes ?? DEFAULT_KEEP_IN_MEMORY_BYTES;
+  if (!(keepInMemoryBytes >= 0 && Number.isFinite(keepInMemoryBytes)))
+    throw new RenderError(
+      `The memory for the kept signal must be a number of bytes, not ${keepInMemoryBytes}.`,
+    );
   const dsp = opts.dsp ?? defaultDsp();
   const { blockSize } = convolverSizes(filter.taps.length); // the sizes both engines use
   const chunkFrames =
@@ -319,6 +350,8 @@ function planRender(opts: RenderOptions): RenderPlan {
     resampled,
     outFrames,
     limit: peakLimit(output, ceilingDbfs),
+    roundTo32: output.format === "pcm" && output.bitsPerSample <= 24,
+    keepInMemoryBytes,
     codingHistoryFor: (trimDb) =>
       renderCodingHistory(opts, { mode, output, outRate, channelsOut, trimDb, speed }),
     ...progress,
@@ -462,12 +495,12 @@ function createWriter(plan: RenderPlan, gain: number): Promise<BwfWriter> {
 
 /**
  * The filter: the chain over the transfer, resampled when asked. `sink` gets the aligned
- * output in order, as runChain's does, and may answer `false` to stop.
+ * output in order with its peak, as runChain's does, and may answer `false` to stop.
  */
 async function filterPass(
   plan: RenderPlan,
   passNumber: number,
-  sink: (samples: Float64Array, frames: number) => Promise<boolean | void>,
+  sink: (samples: Float64Array, frames: number, peak: number) => Promise<boolean | void>,
 ): Promise<void> {
   const { opts, channelsOut } = plan;
   const { header } = opts;
@@ -481,86 +514,199 @@ async function filterPass(
     plan.mode,
     channelsOut,
     plan.chunkFrames,
-    async (samples, frames) => {
-      if (!resampler) return (more = (await sink(samples, frames)) !== false);
+    async (samples, frames, peak) => {
+      if (!resampler) return (more = (await sink(samples, frames, peak)) !== false);
       const out = resampler.process(samples.subarray(0, frames * channelsOut));
-      return (more = (await sink(out, out.length / channelsOut)) !== false);
+      return (more = (await sink(out, out.length / channelsOut, plan.dsp.peak(out, out.length))) !== false);
     },
     (done) => plan.progress(passNumber, done / Math.max(1, header.frames)),
   );
   if (resampler && more) {
     const tail = resampler.finish();
-    await sink(tail, tail.length / channelsOut);
+    await sink(tail, tail.length / channelsOut, plan.dsp.peak(tail, tail.length));
   }
 }
 
+type Samples = Float32Array | Float64Array;
+
+/** A Float32Array or Float64Array of `length`, as the kept signal's precision asks. */
+function samplesOf(roundTo32: boolean, length: number): Samples {
+  return roundTo32 ? new Float32Array(length) : new Float64Array(length);
+}
+
 /**
- * The filtered signal as it is (float64, 8 bytes a sample, so pass 2 writes exactly what
- * filtering again would give), from frame `fromFrame` of the output on, in a working file
- * beside the access copy: the render's own temporary folder, removed with it.
+ * `samples` as a trimmed copy scales them, in `into` (grown as needed): rounded to float32 for
+ * 16/24-bit PCM, else copied as they are. Answers their peak (of the float64 values, as
+ * measured) and the array holding them.
+ */
+function asKept(
+  plan: RenderPlan,
+  samples: Float64Array,
+  count: number,
+  into: Samples,
+): { peak: number; kept: Samples } {
+  if (plan.roundTo32) {
+    const out = into as Float32Array;
+    return { peak: plan.dsp.peak(samples, count, out), kept: out };
+  }
+  (into as Float64Array).set(samples.subarray(0, count));
+  return { peak: plan.dsp.peak(samples, count), kept: into };
+}
+
+/**
+ * The filtered signal from frame `fromFrame` of the output on, as a trimmed copy scales it
+ * (float32 for 16/24-bit PCM, else float64): in memory up to its budget (none, by default, when
+ * the disk has room), the rest in a working file beside the access copy (the render's own
+ * temporary folder, removed with it).
  */
 class KeptSignal {
-  private bytes = 0;
-  private constructor(
-    private readonly path: string,
-    private handle: FileHandle | null,
-    readonly fromFrame: number,
-    private readonly channels: number,
-  ) {}
+  /** The kept frames in memory, in order, each piece a view of a block. */
+  private pieces: Samples[] = [];
+  private blocks: ArrayBuffer[] = [];
+  private block: Samples | null = null;
+  private blockUsed = 0;
+  private memoryBytes = 0;
+  private handle: FileHandle | null = null;
+  private fileBytes = 0;
+  private staging: Samples;
+  private readonly bytesPerSample: number;
 
-  /** A working file when the disk has room for the rest of the signal, else null (pass 2 filters again). */
-  static async open(plan: RenderPlan, fromFrame: number): Promise<KeptSignal | null> {
-    const path = `${plan.opts.outputPath}.filtered`;
-    const need = (plan.outFrames - fromFrame) * plan.channelsOut * 8;
-    if (plan.opts.keepFiltered === "never" || !(await hasRoom(path, need))) return null;
-    return new KeptSignal(path, await open(path, "w+"), fromFrame, plan.channelsOut);
+  private constructor(
+    private readonly plan: RenderPlan,
+    private readonly path: string,
+    readonly fromFrame: number,
+    /** Memory this signal may take before the rest goes to the working file. */
+    private readonly memoryBudget: number,
+  ) {
+    this.bytesPerSample = plan.roundTo32 ? 4 : 8;
+    this.staging = samplesOf(plan.roundTo32, 0);
   }
 
-  /** Appends; false when the disk filled up after all (something else wrote to it): the file is dropped. */
-  async append(samples: Float64Array, frames: number): Promise<boolean> {
-    if (!this.handle) return false;
-    const length = frames * this.channels * 8;
+  /**
+   * Somewhere to keep the rest of the signal: the working file when the disk has room (or, with
+   * "memory", memory first), memory up to the budget and the disk for the rest otherwise; else
+   * null (pass 2 filters again).
+   */
+  static async open(plan: RenderPlan, fromFrame: number): Promise<KeptSignal | null> {
+    const way = plan.opts.keepFiltered ?? "auto";
+    if (way === "never") return null;
+    const path = `${plan.opts.outputPath}.filtered`;
+    const need = (plan.outFrames - fromFrame) * plan.channelsOut * (plan.roundTo32 ? 4 : 8);
+    const memory = way === "auto" && (await hasRoom(path, need)) ? 0 : plan.keepInMemoryBytes;
+    if (memory > 0 && need > memory && !(await hasRoom(path, need - memory))) return null;
+    return new KeptSignal(plan, path, fromFrame, memory);
+  }
+
+  /** Frames kept in the working file. */
+  get fileFrames(): number {
+    return this.fileBytes / (this.bytesPerSample * this.plan.channelsOut);
+  }
+
+  /**
+   * Keeps the next `frames` frames (rounding them to float32 for 16/24-bit PCM as it goes);
+   * answers their peak, or null when the disk filled up after all (something else wrote to
+   * it): then everything kept is dropped.
+   */
+  async append(samples: Float64Array, frames: number): Promise<number | null> {
+    const count = frames * this.plan.channelsOut;
+    const room = this.memoryFor(count);
+    if (room) {
+      const { peak } = asKept(this.plan, samples, count, room);
+      this.pieces.push(room);
+      return peak;
+    }
+    if (this.staging.length < count) this.staging = samplesOf(this.plan.roundTo32, count);
+    const { peak, kept } = asKept(this.plan, samples, count, this.staging);
+    const length = count * this.bytesPerSample;
     try {
+      this.handle ??= await open(this.path, "w+");
       await this.handle.write(
-        new Uint8Array(samples.buffer, samples.byteOffset, length),
+        new Uint8Array(kept.buffer, kept.byteOffset, length),
         0,
         length,
-        this.bytes,
+        this.fileBytes,
       );
-      this.bytes += length;
-      return true;
+      this.fileBytes += length;
+      return peak;
     } catch {
       await this.discard();
-      return false;
+      return null;
     }
   }
 
-  /** Reads the kept frames back in order, `chunkFrames` at a time, into one reused array. */
+  /** A view for `count` samples in memory, within the budget; null once the budget is spent. */
+  private memoryFor(count: number): Samples | null {
+    if (this.handle || this.fileBytes > 0) return null; // once spilled, the rest goes to the file, in order
+    if (this.block && this.block.length - this.blockUsed >= count) {
+      const view = this.block.subarray(this.blockUsed, this.blockUsed + count);
+      this.blockUsed += count;
+      return view;
+    }
+    const left = this.memoryBudget - this.memoryBytes;
+    const samples = Math.min(
+      Math.max(count, KEEP_BLOCK_BYTES / this.bytesPerSample),
+      Math.floor(left / this.bytesPerSample),
+    );
+    if (samples < count) return null;
+    const buffer = this.plan.dsp.allocate(samples * this.bytesPerSample);
+    this.blocks.push(buffer);
+    this.block = this.plan.roundTo32 ? new Float32Array(buffer) : new Float64Array(buffer);
+    this.memoryBytes += samples * this.bytesPerSample;
+    this.blockUsed = count;
+    return this.block.subarray(0, count);
+  }
+
+  /**
+   * Hands the kept frames to `sink` in order: those in memory as they are (each let go once
+   * handed over), then those in the working file, read back `chunkFrames` at a time into one
+   * reused array. Answers the frames handed over.
+   */
   async readBack(
     chunkFrames: number,
-    sink: (samples: Float64Array, frames: number) => Promise<void>,
+    sink: (samples: Samples, frames: number) => Promise<void>,
   ): Promise<number> {
+    const channels = this.plan.channelsOut;
+    let total = 0;
+    this.block = null;
+    for (let piece = this.pieces.shift(); piece; piece = this.pieces.shift()) {
+      await sink(piece, piece.length / channels);
+      total += piece.length / channels;
+      // A block goes back once its last piece is written.
+      if (this.pieces[0]?.buffer !== piece.buffer) this.releaseBlock(piece.buffer as ArrayBuffer);
+    }
+    if (this.fileBytes === 0) return total;
     if (!this.handle) throw new RenderError("The render's working file is gone.");
-    const buffer = new Float64Array(chunkFrames * this.channels);
+    const buffer = samplesOf(this.plan.roundTo32, chunkFrames * channels);
     const bytes = new Uint8Array(buffer.buffer);
-    const total = this.bytes / (this.channels * 8);
+    const frameBytes = channels * this.bytesPerSample;
     let at = 0;
-    for (let done = 0; done < total;) {
-      const frames = Math.min(chunkFrames, total - done);
-      const { bytesRead } = await this.handle.read(bytes, 0, frames * this.channels * 8, at);
-      if (bytesRead !== frames * this.channels * 8)
+    for (let done = 0; done < this.fileFrames;) {
+      const frames = Math.min(chunkFrames, this.fileFrames - done);
+      const { bytesRead } = await this.handle.read(bytes, 0, frames * frameBytes, at);
+      if (bytesRead !== frames * frameBytes)
         throw new RenderError(`The render's working file ended early, at byte ${at + bytesRead}.`);
       at += bytesRead;
       await sink(buffer, frames);
       done += frames;
     }
-    return total;
+    return total + this.fileFrames;
   }
 
-  /** Closes and removes the working file. */
+  private releaseBlock(buffer: ArrayBuffer): void {
+    const at = this.blocks.indexOf(buffer);
+    if (at >= 0) this.blocks.splice(at, 1);
+    this.plan.dsp.release(buffer);
+  }
+
+  /** Gives the memory back, and closes and removes the working file. */
   async discard(): Promise<void> {
+    this.pieces = [];
+    this.block = null;
+    for (const buffer of this.blocks) this.plan.dsp.release(buffer);
+    this.blocks = [];
     const handle = this.handle;
     this.handle = null;
+    this.fileBytes = 0;
     if (handle) await handle.close().catch(() => {});
     await unlink(this.path).catch(() => {});
   }
@@ -581,15 +727,15 @@ interface Measured {
  * keeping the rest of the filtered signal (if there is room) for pass 2.
  */
 async function measurePass(plan: RenderPlan): Promise<Measured> {
-  const { dsp, channelsOut, limit } = plan;
+  const { limit } = plan;
   let writer: BwfWriter | null = await createWriter(plan, 1);
   let kept: KeptSignal | null = null;
   let peak = 0;
   let emitted = 0;
   try {
-    await filterPass(plan, 1, async (samples, frames) => {
+    await filterPass(plan, 1, async (samples, frames, p) => {
       if (frames === 0) return;
-      const p = dsp.peak(samples, frames * channelsOut);
+      if (kept && (await kept.append(samples, frames)) === null) kept = null;
       if (p > peak) peak = p;
       if (writer && peak > limit) {
         // It needs a trim after all: stop writing, finish measuring, then pass 2.
@@ -597,9 +743,8 @@ async function measurePass(plan: RenderPlan): Promise<Measured> {
         writer = null;
         plan.planSecondPass();
         kept = await KeptSignal.open(plan, emitted);
-      }
-      if (writer) await writer.writeInterleaved(samples, frames, 1);
-      else if (kept && !(await kept.append(samples, frames))) kept = null;
+        if (kept && (await kept.append(samples, frames)) === null) kept = null;
+      } else if (writer) await writer.writeInterleaved(samples, frames, 1);
       emitted += frames;
     });
     const written = writer ? await writer.close() : null;
@@ -614,13 +759,13 @@ async function measurePass(plan: RenderPlan): Promise<Measured> {
 /**
  * Pass 2, scale, dither and encode: writes the copy with the trim. The part before the kept
  * signal is filtered again (the same arithmetic, so the same samples: its frame count and peak
- * are checked); the kept signal is read back as it was measured.
+ * are checked) and rounded as the kept signal was; the kept signal is taken as it was kept.
  */
 async function trimPass(
   plan: RenderPlan,
   measured: Measured,
 ): Promise<{ written: BwfWriteResult; gain: number; secondPass: NonNullable<RenderResult["secondPass"]> }> {
-  const { dsp, channelsOut, outFrames } = plan;
+  const { channelsOut, outFrames } = plan;
   const { peak, kept } = measured;
   const gain = plan.limit / peak;
   const keptFrom = kept ? kept.fromFrame : outFrames;
@@ -628,22 +773,25 @@ async function trimPass(
   try {
     let done = 0;
     let peakAgain = 0;
-    const put = async (samples: Float64Array, frames: number) => {
+    const put = async (samples: Samples, frames: number) => {
       await writer.writeInterleaved(samples, frames, gain);
       done += frames;
       plan.progress(2, done / Math.max(1, outFrames));
     };
     if (keptFrom > 0) {
+      let rounded = samplesOf(plan.roundTo32, plan.chunkFrames * channelsOut);
       await filterPass(plan, 2, async (samples, frames) => {
         const take = Math.min(frames, keptFrom - done);
         if (take > 0) {
-          const p = dsp.peak(samples, take * channelsOut);
-          if (p > peakAgain) peakAgain = p;
-          await put(samples, take);
+          if (rounded.length < take * channelsOut) rounded = samplesOf(plan.roundTo32, take * channelsOut);
+          const again = asKept(plan, samples, take * channelsOut, rounded);
+          if (again.peak > peakAgain) peakAgain = again.peak;
+          await put(again.kept, take);
         }
         return done < keptFrom;
       });
     }
+    const fromFileFrames = kept ? kept.fileFrames : 0;
     if (kept) await kept.readBack(plan.chunkFrames, put);
     if (done !== outFrames || peakAgain > peak)
       throw new RenderError(
@@ -652,7 +800,7 @@ async function trimPass(
     return {
       written: await writer.close(),
       gain,
-      secondPass: { filteredFrames: keptFrom, readBackFrames: outFrames - keptFrom },
+      secondPass: { filteredFrames: keptFrom, readBackFrames: outFrames - keptFrom, fromFileFrames },
     };
   } catch (error) {
     await writer.abort();

@@ -276,7 +276,7 @@ export class BwfWriter {
   }
 
   /** Encode and append `frames` interleaved frames, times `gain`, dithered for integer output. */
-  async writeInterleaved(samples: Float64Array, frames: number, gain = 1): Promise<void> {
+  async writeInterleaved(samples: Float64Array | Float32Array, frames: number, gain = 1): Promise<void> {
     if (this.closed) throw new Error("The writer is closed.");
     const count = frames * this.options.channels;
     if (samples.length < count) throw new RangeError(`Expected ${count} samples, got ${samples.length}.`);

@@ -482,6 +482,8 @@ function issuesToErrors(
 }
 
 function sameValue(a: unknown, b: unknown): boolean {
+  // Most cells are text: compared directly, without writing both out as JSON.
+  if (typeof a === "string" && typeof b === "string") return a === b;
   return JSON.stringify(a ?? null) === JSON.stringify(b ?? null);
 }
 
@@ -501,7 +503,7 @@ function fillFromExisting(
   clearEmpty: boolean,
   present: ReadonlySet<string>,
 ): Record<CatalogueColumn, string> {
-  const stored = cellsOf(known);
+  const stored = storedCellsOf(known);
   const out = { ...values };
   const fill = (c: CatalogueColumn) =>
     out[c].trim() === "" && (!clearEmpty || keptColumns.has(c) || !present.has(c));
@@ -750,6 +752,15 @@ function cellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
     for (const c of specs) if (c.side) values[c.name] = s ? cell(s[c.side]) : "";
     return values as Record<CatalogueColumn, string>;
   });
+}
+
+const storedCells = new WeakMap<ExportDisc, Record<CatalogueColumn, string>[]>();
+
+/** cellsOf for a catalogued disc, written out once however many of the file's rows update it. */
+function storedCellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
+  let cells = storedCells.get(d);
+  if (!cells) storedCells.set(d, (cells = cellsOf(d)));
+  return cells;
 }
 
 /** The rows of one disc as written to the file: formula-looking cells protected. */

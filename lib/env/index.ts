@@ -26,6 +26,11 @@ const envSchema = z.object({
   APP_URL: z.string().url().default("http://127.0.0.1:3000"),
   NEXTAUTH_SECRET: z.string().min(16).optional(),
   LAB_NAME: z.string().min(1).default("Marrow Hill Sound Archive"),
+  /**
+   * Memory (MiB) a render that needs a trim may fill with the filtered signal when the disk
+   * beside its working folder has no room for it (lib/audio/render.ts); the rest goes to disk.
+   */
+  RENDER_MEMORY_MIB: z.coerce.number().int().min(0).max(1_048_576).default(1024),
 });
 
 export type Env = z.infer<typeof envSchema>;

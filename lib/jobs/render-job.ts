@@ -199,6 +199,7 @@ export async function runRenderJob(
       output: { format: "pcm", bitsPerSample: job.bitDepth },
       outputSampleRateHz: outputRateHz,
       speedCorrection,
+      keepInMemoryBytes: env().RENDER_MEMORY_MIB * 2 ** 20,
       bext: {
         description: description.slice(0, 256),
         originator: env().LAB_NAME.slice(0, 32),

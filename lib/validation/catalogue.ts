@@ -103,15 +103,18 @@ export const discFieldsSchema = z
     diameterIn: z.preprocess(
       blankToUndefined,
       z.coerce
-        .number({ error: "Diameter must be a number of inches." })
+        .number({ error: "Diameter must be a number of inches, for example 10." })
         .positive("Diameter must be above 0.")
         .max(24, "Diameter over 24 inches? Check the unit (inches).")
         .optional(),
     ),
-    nominalSpeedRpm: z.coerce
-      .number({ error: "Nominal speed must be a number (rpm)." })
-      .positive("Speed must be above 0 rpm.")
-      .max(200, "Speed over 200 rpm? Check the value."),
+    nominalSpeedRpm: z.preprocess(
+      blankToUndefined,
+      z.coerce
+        .number({ error: "Nominal speed must be a number (rpm), for example 78." })
+        .positive("Speed must be above 0 rpm.")
+        .max(200, "Speed over 200 rpm? Check the value."),
+    ),
     groove: z.enum(grooves, { error: "Groove must be coarse or micro." }),
     cut: z.enum(cuts, { error: "Cut must be lateral or vertical." }),
     recordingDate: z.preprocess(

@@ -1,29 +1,67 @@
+import "./zod-setup";
 import { z } from "zod";
 import { normalizeRolloffDb } from "../curves/names";
 import { cleanString } from "./text";
 
-const finite = (what: string) =>
-  z
-    .number({ error: `${what} must be a number.` })
-    .refine(Number.isFinite, `${what} must be a finite number.`);
+// Numbers here take zod's own z.number(), which refuses NaN and ±Infinity; a failed one is
+// told in a sentence that names the field (the error map in ./zod-setup). A corner's value
+// is told here, in the unit it came in.
+
+type CornerKey = "turnover" | "shelf" | "rolloff" | "highpass" | "ultrasonic";
+
+/** What a person might type for each corner in each unit. */
+const CORNER_EXAMPLES: Record<CornerKey, { hz: string; us: string; db10k?: string }> = {
+  turnover: { hz: "500", us: "318" },
+  shelf: { hz: "50", us: "3180" },
+  rolloff: { hz: "2122", us: "75", db10k: "13.7" },
+  highpass: { hz: "20", us: "7958" },
+  ultrasonic: { hz: "50000", us: "3.18" },
+};
+const CORNER_NAMES: Record<CornerKey, string> = {
+  turnover: "the bass turnover",
+  shelf: "the low-frequency shelf",
+  rolloff: "the treble rolloff",
+  highpass: "the rumble high-pass",
+  ultrasonic: "the ultrasonic zero",
+};
 
 /** A corner as sent. A rolloff in dB at 10 kHz is kept as attenuation (≥ 0): −10 and 10 are both 10 dB of cut (lib/curves/names.ts). */
-export const cornerInputSchema = z
-  .object({
-    unit: z.enum(["hz", "us", "db10k"], { error: "Unit must be hz, us or db10k." }),
-    value: finite("The value"),
-  })
-  .transform((c) => (c.unit === "db10k" ? { ...c, value: normalizeRolloffDb(c.value) } : c));
+function cornerInput(corner: CornerKey) {
+  const name = CORNER_NAMES[corner];
+  const ex = CORNER_EXAMPLES[corner];
+  return z
+    .discriminatedUnion(
+      "unit",
+      [
+        z.object({
+          unit: z.literal("hz"),
+          value: z.number({ error: `Type ${name} in hertz, for example ${ex.hz}.` }),
+        }),
+        z.object({
+          unit: z.literal("us"),
+          value: z.number({ error: `Type ${name} in microseconds, for example ${ex.us}.` }),
+        }),
+        z.object({
+          unit: z.literal("db10k"),
+          value: z.number({
+            error: `Type ${name} as its attenuation at 10 kHz in dB, for example ${ex.db10k ?? "13.7"}.`,
+          }),
+        }),
+      ],
+      { error: `Give ${name} in Hz, µs or dB at 10 kHz (unit hz, us or db10k).` },
+    )
+    .transform((c) => (c.unit === "db10k" ? { ...c, value: normalizeRolloffDb(c.value) } : c));
+}
 
 /** The JSON shape of a lib/curves CurveSpec; lib/curves then checks the maths (order of corners, bounded bass). */
 export const curveSpecSchema = z.object({
-  turnover: cornerInputSchema.nullish(),
-  shelf: cornerInputSchema.nullish(),
-  rolloff: cornerInputSchema.nullish(),
-  highpass: cornerInputSchema.nullish(),
-  ultrasonic: cornerInputSchema.nullish(),
-  reference: z.object({ hz: finite("Reference frequency"), db: finite("Reference gain") }).nullish(),
-  speedRatio: finite("Speed ratio").nullish(),
+  turnover: cornerInput("turnover").nullish(),
+  shelf: cornerInput("shelf").nullish(),
+  rolloff: cornerInput("rolloff").nullish(),
+  highpass: cornerInput("highpass").nullish(),
+  ultrasonic: cornerInput("ultrasonic").nullish(),
+  reference: z.object({ hz: z.number(), db: z.number() }).nullish(),
+  speedRatio: z.number().nullish(),
 });
 
 export const presetNameSchema = cleanString()
@@ -58,16 +96,13 @@ export const sampleRateSchema = z.coerce
 export const responseRequestSchema = z.object({
   spec: curveSpecSchema,
   sampleRateHz: sampleRateSchema.default(96_000),
-  frequenciesHz: z
-    .array(finite("Each frequency").positive("Frequencies must be above 0 Hz."))
-    .max(10_000)
-    .optional(),
+  frequenciesHz: z.array(z.number().positive()).max(10_000).optional(),
   renderFilter: z.boolean().default(false),
 });
 
 export const fitRequestSchema = z.object({
   points: z
-    .array(z.object({ hz: finite("hz").positive("hz must be above 0."), db: finite("db") }))
+    .array(z.object({ hz: z.number().positive(), db: z.number() }))
     .min(1, "Give at least one point.")
     .max(5000),
   fit: z
@@ -75,5 +110,5 @@ export const fitRequestSchema = z.object({
     .min(1, "Choose at least one parameter to fit."),
   kind: z.enum(["playback", "recording"]).default("playback"),
   initial: curveSpecSchema.default({}),
-  levelOffsetDb: finite("Level offset").default(0),
+  levelOffsetDb: z.number().default(0),
 });

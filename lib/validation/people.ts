@@ -8,7 +8,7 @@ export const emailSchema = z
   .toLowerCase()
   .min(1, "Enter an e-mail address.")
   .max(254, "That e-mail address is too long.")
-  .pipe(z.email({ error: "That is not a valid e-mail address (expected name@place.org)." }));
+  .pipe(z.email({ error: "That is not a valid e-mail address: one looks like name@example.org." }));
 
 /** At least 12 characters: long passphrases beat composition rules (NIST SP 800-63B §3.1.1.2). */
 export const passwordSchema = z

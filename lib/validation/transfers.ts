@@ -1,7 +1,9 @@
+import "./zod-setup";
 import { z } from "zod";
 import type { SideStatusName } from "./catalogue";
 import { curveSpecSchema } from "./curves";
 import { emptyFileMessage } from "./text";
+import { readNumber } from "./zod-setup";
 
 // Which work a side takes in which status (lib/sides/lifecycle.ts enforces them; the bench
 // uses them to lock its forms). The order: assigned → flat transfer accepted → curve chosen
@@ -44,11 +46,21 @@ export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {
   other: "Other",
 };
 
-const speed = (what: string) =>
-  z.coerce
-    .number({ error: `${what} must be a number (rpm).` })
-    .positive(`${what} must be above 0 rpm.`)
-    .max(200, `${what} over 200 rpm? Check the value.`);
+/** A speed in rpm, typed ("78,26") or sent as a number; `what` names it in a sentence: "the speed the disc was cut at". */
+const speed = (what: string) => {
+  const What = what.charAt(0).toUpperCase() + what.slice(1);
+  return z.preprocess(
+    readNumber,
+    z
+      .number({ error: `Type ${what} in rpm, for example 78.` })
+      .positive(`${What} must be above 0 rpm.`)
+      .max(200, `${What} over 200 rpm? Check the value.`),
+  );
+};
+
+/** The two speeds of a curve choice, also checked in the form as the engineer types. */
+export const cutSpeedSchema = speed("the speed the disc was cut at");
+export const transferSpeedSchema = speed("the speed it was transferred at");
 
 /** A curve choice for one or more sides: a preset version, overrides for these sides, the two speeds, and why. */
 export const curveChoiceSchema = z
@@ -57,8 +69,8 @@ export const curveChoiceSchema = z
     presetId: z.uuid().optional(),
     presetVersion: z.coerce.number().int().positive().optional(),
     overrides: curveSpecSchema.omit({ speedRatio: true }).partial().default({}),
-    cutSpeedRpm: speed("The speed the disc was cut at"),
-    transferSpeedRpm: speed("The speed it was transferred at"),
+    cutSpeedRpm: cutSpeedSchema,
+    transferSpeedRpm: transferSpeedSchema,
     /** The render corrects the speed: resamples by cut ÷ transfer, so pitch and duration are the cut's. */
     correctSpeed: z.boolean({ error: "Say yes or no to correcting the speed." }).default(false),
     rationale: z.string().trim().min(10, "Say why this curve: at least a sentence.").max(4000),
@@ -136,6 +148,22 @@ export const signPartsSchema = uploadRefSchema.extend({
     .max(1000, "At most 1000 parts at a time."),
 });
 
+/** What the engineer says about the transfer beside the file: checked in the browser before the upload starts, and again by the server. */
+export const uploadDetailsSchema = z.object({
+  stylusSize: z.string().trim().max(80, "Use at most 80 characters for the stylus tip size.").default(""),
+  stylusShape: z.string().trim().max(80, "Use at most 80 characters for the stylus shape.").default(""),
+  measuredSpeedRpm: z.preprocess(
+    readNumber,
+    z
+      .number({ error: "Type the measured turntable speed in rpm, for example 78.26, or leave it empty." })
+      .positive("The measured turntable speed must be above 0 rpm.")
+      .max(200, "The measured turntable speed over 200 rpm? Check the value.")
+      .optional(),
+  ),
+  chain: z.string().trim().max(4000, "Use at most 4000 characters for the transfer chain.").default(""),
+});
+export type UploadDetailsInput = z.input<typeof uploadDetailsSchema>;
+
 export const completeUploadSchema = uploadRefSchema.extend({
   parts: z
     .array(z.object({ partNumber: z.number().int().min(1).max(10_000), etag: z.string().min(1).max(200) }))
@@ -143,13 +171,7 @@ export const completeUploadSchema = uploadRefSchema.extend({
     .max(10_000),
   sha256: z.string().regex(/^[0-9a-f]{64}$/, "The SHA-256 must be 64 lower-case hex digits."),
   bytes: z.coerce.number().int().positive(),
-  stylusSize: z.string().trim().max(80).default(""),
-  stylusShape: z.string().trim().max(80).default(""),
-  measuredSpeedRpm: z.preprocess(
-    (v) => (v === "" || v === null ? undefined : v),
-    z.coerce.number().positive("Measured speed must be above 0 rpm.").max(200).optional(),
-  ),
-  chain: z.string().trim().max(4000).default(""),
+  ...uploadDetailsSchema.shape,
   /** The engineer has seen that another side has a transfer with this SHA-256 and accepts this one anyway. */
   confirmDuplicate: z.boolean().default(false),
 });

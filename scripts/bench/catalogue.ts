@@ -6,22 +6,48 @@
 //   BENCH_DISCS=1000000 npm run bench:catalogue
 //   BENCH_REUSE=1 …  keeps a benchmark database of that size from an earlier run (only
 //                    migrates it), so a second measurement does not rebuild a million discs.
+//   BENCH_PG_PORT=56600 …  needs no demo services: starts (or reuses) a PostgreSQL cluster of
+//                    its own in storage/bench on that port and leaves it running for the next
+//                    run; BENCH_PG_STOP=1 stops it once the measurement is done.
 import "../lib/demo-env";
+import os from "node:os";
+import path from "node:path";
 import { performance } from "node:perf_hooks";
 import { sql } from "kysely";
 import pg from "pg";
 import { createDb } from "../../db/client";
+import type { ExportDisc } from "../../lib/catalogue/csv-format";
 import { cappedCountQuery, filteredDiscs, listDiscsWith, listOrdering } from "../../lib/catalogue/list-query";
 import { discListQuerySchema } from "../../lib/validation/catalogue";
 import { env } from "../../lib/env";
 import { migrateToLatest } from "../migrate";
+import { localRoleUrls, readRoleSecrets } from "../lib/local-roles";
+import { type Profile, profiles, root, startPostgres, stopPostgres } from "../lib/stack";
 
 const discCount = Number(process.env.BENCH_DISCS ?? 100_000);
 const runs = Number(process.env.BENCH_RUNS ?? 60);
 const reuse = process.env.BENCH_REUSE === "1";
-// The owner role builds and fills the side database (the demo cluster gives it CREATEDB).
-const base = new URL(env().DATABASE_OWNER_URL ?? env().DATABASE_URL);
+const ownPgPort = process.env.BENCH_PG_PORT ? Number(process.env.BENCH_PG_PORT) : null;
 const benchName = "rillbook_bench";
+
+/** The benchmark's own cluster (BENCH_PG_PORT): the test profile's settings, its own folder and port. */
+function ownCluster(port: number): Profile {
+  return { ...profiles.test, pgPort: port, dir: path.join(root, "storage", "bench") };
+}
+
+/** The owner role's URL, which builds and fills the side database (each local cluster gives it CREATEDB). */
+async function ownerBase(): Promise<URL> {
+  if (ownPgPort === null) return new URL(env().DATABASE_OWNER_URL ?? env().DATABASE_URL);
+  if (!Number.isInteger(ownPgPort) || ownPgPort < 1024 || ownPgPort > 65535)
+    throw new Error(`BENCH_PG_PORT must be a port number, not "${process.env.BENCH_PG_PORT}"`);
+  const cluster = ownCluster(ownPgPort);
+  await startPostgres(cluster);
+  const secrets = readRoleSecrets(cluster.dir);
+  if (!secrets) throw new Error(`no database roles recorded in ${cluster.dir}`);
+  return new URL(localRoleUrls(ownPgPort, secrets).owner);
+}
+
+let base: URL;
 
 /** A fresh benchmark database; or, with BENCH_REUSE=1, the one left by a run of the same size. */
 async function prepareDatabase(): Promise<{ url: string; build: boolean }> {
@@ -52,6 +78,7 @@ async function prepareDatabase(): Promise<{ url: string; build: boolean }> {
 }
 
 async function main(): Promise<void> {
+  base = await ownerBase();
   const { url, build } = await prepareDatabase();
   await migrateToLatest({ ownerUrl: url });
   const db = createDb(url, 4);
@@ -62,6 +89,7 @@ async function main(): Promise<void> {
   }
   await measure(db);
   await db.destroy();
+  if (ownPgPort !== null && process.env.BENCH_PG_STOP === "1") await stopPostgres(ownCluster(ownPgPort));
 }
 
 async function fill(db: ReturnType<typeof createDb>): Promise<void> {
@@ -152,6 +180,10 @@ async function fill(db: ReturnType<typeof createDb>): Promise<void> {
                  (array_agg(title ORDER BY lower(designation)))[1] first_title
           FROM sides GROUP BY disc_id) s
     WHERE d.id = s.disc_id`.execute(db);
+  // That update wrote every disc a second time: compact the table as a catalogue that grew
+  // disc by disc would be (half of it is otherwise dead space a scan walks through), then
+  // mark it all-visible and gather its statistics.
+  await sql`VACUUM (FULL) discs`.execute(db);
   await sql`VACUUM ANALYZE`.execute(db);
   const counts = await sql<{
     discs: number;
@@ -191,19 +223,26 @@ async function measure(db: ReturnType<typeof createDb>): Promise<void> {
     "search matrix number": { q: sample.matrix_number },
     "search + filter + sort": { q: "lantern", format: "shellac_78", sort: "-catalogueNumber" },
   };
+  const cases: [string, () => Promise<unknown>][] = Object.entries(queries).map(([name, query]) => [
+    name,
+    () => listDiscsWith(db, query),
+  ]);
+  cases.push([`update-import preview, ${importRows} rows`, await importPreview(db)]);
   const results: { name: string; p50: number; p95: number; p99: number; max: number }[] = [];
-  for (const [name, query] of Object.entries(queries)) {
-    await listDiscsWith(db, query); // warm
+  console.log(`load before measuring (uptime): ${loadAverage()}`);
+  for (const [name, call] of cases) {
+    await call(); // warm
     const times: number[] = [];
     for (let i = 0; i < runs; i++) {
       const t = performance.now();
-      await listDiscsWith(db, query);
+      await call();
       times.push(performance.now() - t);
     }
     times.sort((a, b) => a - b);
     const at = (p: number) => times[Math.min(times.length - 1, Math.floor(p * times.length))];
     results.push({ name, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: times[times.length - 1] });
   }
+  console.log(`load after measuring (uptime): ${loadAverage()}`);
   console.log(
     `\n${runs} runs each (time = the whole list call: rows, count and sides, as the API does it)\n`,
   );
@@ -219,8 +258,9 @@ async function measure(db: ReturnType<typeof createDb>): Promise<void> {
     `\nslowest by p95: ${slowest.name} (${slowest.p95.toFixed(2)} ms); goal p95 < 50 ms: ${results.every((r) => r.p95 < 50) ? "met" : "NOT met"}`,
   );
 
-  // The plans of the slowest query's row fetch and count, as PostgreSQL runs them.
-  const q = discListQuerySchema.parse(queries[slowest.name]);
+  // The plans of the slowest list query's row fetch and count, as PostgreSQL runs them.
+  const slowestList = results.filter((r) => r.name in queries).reduce((a, b) => (b.p95 > a.p95 ? b : a));
+  const q = discListQuerySchema.parse(queries[slowestList.name]);
   const { column, modifiers } = listOrdering(q);
   const rowsQuery = filteredDiscs(db, q)
     .select(["d.id", "d.shelf_mark"])
@@ -238,9 +278,74 @@ async function measure(db: ReturnType<typeof createDb>): Promise<void> {
         `EXPLAIN (ANALYZE, BUFFERS) ${compiled.sql.replace(/\$(\d+)/g, (_, n) => literal(compiled.parameters[Number(n) - 1]))}`,
       )
       .execute(db);
-    console.log(`\nplan of "${slowest.name}", ${what}:`);
+    console.log(`\nplan of "${slowestList.name}", ${what}:`);
     for (const row of plan.rows) console.log(`  ${row["QUERY PLAN"]}`);
   }
+}
+
+/** The machine's load average over 1, 5 and 15 minutes, as `uptime` prints it, with its cores. */
+function loadAverage(): string {
+  return `${os
+    .loadavg()
+    .map((l) => l.toFixed(2))
+    .join(", ")} on ${os.cpus().length} cores`;
+}
+
+/** Rows of the spreadsheet the update-import preview is measured with. */
+const importRows = 2_000;
+
+/**
+ * The update-import preview as the route makes it (lib/catalogue/csv.ts's previewImport):
+ * an export of catalogued discs, 2 000 rows, with some edits made in the spreadsheet (a
+ * condition grade on every tenth disc, a side's title on every fifteenth), read back.
+ */
+async function importPreview(db: ReturnType<typeof createDb>): Promise<() => Promise<unknown>> {
+  // The app's pool is the benchmark database's (db/index.ts keeps one on globalThis).
+  (globalThis as unknown as { rillbookDb?: typeof db }).rillbookDb = db;
+  const { previewImport } = await import("../../lib/catalogue/csv");
+  const { toCatalogueCsv } = await import("../../lib/catalogue/csv-format");
+  const { readDiscs } = await import("../../lib/catalogue/records");
+  const { toStoredSide } = await import("../../lib/validation/catalogue");
+  const ids = await db
+    .selectFrom("discs")
+    .select("id")
+    .orderBy("shelf_mark")
+    .offset(Math.floor(discCount / 2))
+    .limit(importRows)
+    .execute();
+  const discs: ExportDisc[] = [];
+  let rows = 0;
+  for (const d of await readDiscs(
+    db,
+    ids.map((r) => r.id),
+  )) {
+    const n = Math.max(1, d.sides.length);
+    if (rows + n > importRows) break;
+    rows += n;
+    const i = discs.length;
+    discs.push({
+      ...d,
+      conditionGrade: i % 10 === 0 ? (d.conditionGrade === "poor" ? "fair" : "poor") : d.conditionGrade,
+      sides: d.sides.map((s, j) => ({
+        ...toStoredSide(s),
+        title: i % 15 === 0 && j === 0 ? `${s.title} (retitled)` : s.title,
+      })),
+    });
+  }
+  const upload = { bytes: new TextEncoder().encode(toCatalogueCsv(discs)), fields: {} };
+  const report = await previewImport(upload);
+  if (
+    report.rows !== rows ||
+    report.errorCount ||
+    report.conflictCount ||
+    report.updates !==
+      Math.ceil(discs.length / 10) + Math.ceil(discs.length / 15) - Math.ceil(discs.length / 30)
+  )
+    throw new Error(
+      `the import preview did not read the edited export as expected: ${JSON.stringify({ ...report, toUpdate: report.toUpdate.length })}`,
+    );
+  console.log(`update-import preview: ${rows} rows, ${discs.length} discs, ${report.updates} with changes`);
+  return () => previewImport(upload);
 }
 
 function literal(v: unknown): string {

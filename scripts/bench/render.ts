@@ -12,8 +12,11 @@
  * no delay compensation), and sox's `biquad` with the curve's IIR sections, for
  * comparison; all pinned to one CPU. Then renders
  * the file again under a lower ceiling, so that it needs a trim (two passes),
- * and prints that too, and once more with the JavaScript engine, to measure what
- * the native one gains. Beside the wall times it prints the CPU time each run
+ * and prints that too (the filtered signal kept as the render keeps it by default,
+ * in its working file; then kept in memory, and filtered again, for comparison),
+ * and once more with the JavaScript engine, to measure what the native one gains.
+ * The native engine's FFTW plans for the filter's size are made (or read from the
+ * wisdom file) before the timed renders, as a worker has them after its first render. Beside the wall times it prints the CPU time each run
  * took (user + system, from the process itself or bash's `times`): on a machine
  * other work shares, that is the steadier figure. All files are removed afterwards.
  */
@@ -24,13 +27,19 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { promisify } from "node:util";
 import { BwfWriter, openFileSource, readWavHeader, renderAccessCopy } from "../../lib/audio";
-import { jsDsp } from "../../lib/audio/dsp";
+import { jsDsp, nativeDsp } from "../../lib/audio/dsp";
 import { designIir, designRenderFilter, RIAA_SPEC } from "../../lib/curves";
 
 const RATE_HZ = 96_000;
 const run = promisify(execFile);
 
-async function child(input: string, output: string, ceilingDbfs: number, engine: string): Promise<void> {
+async function child(
+  input: string,
+  output: string,
+  ceilingDbfs: number,
+  engine: string,
+  keepFiltered: "auto" | "memory" | "never",
+): Promise<void> {
   const t0 = performance.now();
   const source = await openFileSource(input);
   const header = await readWavHeader(source);
@@ -44,6 +53,7 @@ async function child(input: string, output: string, ceilingDbfs: number, engine:
     outputPath: output,
     ceilingDbfs,
     dsp: engine === "js" ? jsDsp : undefined,
+    keepFiltered,
   });
   const cpu = process.cpuUsage(cpu0);
   const t2 = performance.now();
@@ -64,6 +74,7 @@ async function child(input: string, output: string, ceilingDbfs: number, engine:
       engine: result.engine,
       filteredAgain: result.secondPass?.filteredFrames ?? null,
       readBack: result.secondPass?.readBackFrames ?? null,
+      fromFile: result.secondPass?.fromFileFrames ?? null,
       maxRssKb: process.resourceUsage().maxRSS,
       vmHwmKb: hwm ? Number(hwm[1]) : null,
     }),
@@ -114,6 +125,7 @@ function runChild(
   output: string,
   ceilingDbfs = 0,
   engine = "default",
+  keepFiltered = "auto",
 ): Promise<{ wallMs: number; report: Record<string, number | string | null> }> {
   const self = fileURLToPath(import.meta.url);
   const t0 = performance.now();
@@ -128,6 +140,7 @@ function runChild(
     output,
     String(ceilingDbfs),
     engine,
+    keepFiltered,
   ];
   return new Promise((resolve, reject) => {
     const p = spawn(argv[0], argv.slice(1), { stdio: ["ignore", "pipe", "inherit"] });
@@ -167,6 +180,11 @@ async function main(): Promise<void> {
 
     const filter = designRenderFilter(RIAA_SPEC, RATE_HZ);
     await writeFile(tapsFile, `${Array.from(filter.taps, (v) => v.toPrecision(17)).join("\n")}\n`);
+
+    // The plans a worker has after its first render: measured now if the wisdom file lacks them.
+    t = performance.now();
+    nativeDsp()?.filter(filter.taps, 2);
+    console.log(`FFTW plans for the filter's size ready in ${((performance.now() - t) / 1000).toFixed(2)} s`);
 
     const pin = await pinnedCommand();
     console.log(
@@ -238,17 +256,23 @@ async function main(): Promise<void> {
     // The same file with a ceiling 6 dB under its filtered peak: the render needs a trim, so it
     // filters twice (measure, then write). sox has no such step; its time above is the yardstick.
     const ceilingDbfs = Math.min(0, Math.floor((report.peakDbfs as number) - 6));
-    const trimmed = await runChild(pin, input, output, ceilingDbfs);
-    await rm(output, { force: true });
-    const trimmedS = (trimmed.report.renderMs as number) / 1000;
-    const trimmedCpuS = (trimmed.report.cpuMs as number) / 1000;
-    console.log(
-      `with a trim (ceiling ${ceilingDbfs} dBFS, trim ${(trimmed.report.trimDb as number).toFixed(2)} dB, ` +
-        `two passes; pass 2 filtered ${trimmed.report.filteredAgain} frames again, ` +
-        `read ${trimmed.report.readBack} back): ${trimmedS.toFixed(1)} s, ` +
-        `${(samples / trimmedS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / trimmedS / theirs).toFixed(2)}, ` +
-        `CPU ${trimmedCpuS.toFixed(2)} s (ratio ${(soxCpuS / trimmedCpuS).toFixed(2)}), peak RSS ${mb(trimmed.report.maxRssKb)}`,
-    );
+    const trimmedRun = async (keepFiltered: string, label: string) => {
+      const run = await runChild(pin, input, output, ceilingDbfs, "default", keepFiltered);
+      await rm(output, { force: true });
+      const wallS = (run.report.renderMs as number) / 1000;
+      const cpuS = (run.report.cpuMs as number) / 1000;
+      console.log(
+        `with a trim, ${label} (ceiling ${ceilingDbfs} dBFS, trim ${(run.report.trimDb as number).toFixed(2)} dB, ` +
+          `two passes; pass 2 filtered ${run.report.filteredAgain} frames again, took ${run.report.readBack} as kept, ` +
+          `${run.report.fromFile} of them from the working file): ${wallS.toFixed(1)} s, ` +
+          `${(samples / wallS / 1e6).toFixed(2)} M samples/s, ratio to sox ${(samples / wallS / theirs).toFixed(2)}, ` +
+          `CPU ${cpuS.toFixed(2)} s (ratio ${(soxCpuS / cpuS).toFixed(2)}), peak RSS ${mb(run.report.maxRssKb)}`,
+      );
+      return { wallS, cpuS };
+    };
+    const trimmed = await trimmedRun("auto", "kept in the working file (the default)");
+    await trimmedRun("memory", "kept in memory");
+    await trimmedRun("never", "filtered again");
 
     // The same one-pass render with the JavaScript engine (the fallback where the native one is not built).
     const js = await runChild(pin, input, output, 0, "js");
@@ -262,8 +286,10 @@ async function main(): Promise<void> {
       `native engine speed-up: ${(jsS / renderS).toFixed(1)}× (wall), ${(jsCpuS / ourCpuS).toFixed(1)}× (CPU time)`,
     );
     // The two figures on lines of their own, for scripts that read them.
-    console.log(`ratio one pass: ${(ours / theirs).toFixed(2)}`);
-    console.log(`ratio with trim: ${(samples / trimmedS / theirs).toFixed(2)}`);
+    console.log(`ratio one pass: ${(ours / theirs).toFixed(2)} (CPU time ${(soxCpuS / ourCpuS).toFixed(2)})`);
+    console.log(
+      `ratio with trim: ${(samples / trimmed.wallS / theirs).toFixed(2)} (CPU time ${(soxCpuS / trimmed.cpuS).toFixed(2)})`,
+    );
   } finally {
     await rm(dir, { recursive: true, force: true });
   }
@@ -281,12 +307,17 @@ async function timedSox(pin: string[], args: string[]): Promise<number> {
 }
 
 if (process.argv[2] === "--child") {
-  child(process.argv[3], process.argv[4], Number(process.argv[5] ?? 0), process.argv[6] ?? "default").catch(
-    (e) => {
-      console.error(e);
-      process.exit(1);
-    },
-  );
+  const keep = process.argv[7] === "memory" || process.argv[7] === "never" ? process.argv[7] : "auto";
+  child(
+    process.argv[3],
+    process.argv[4],
+    Number(process.argv[5] ?? 0),
+    process.argv[6] ?? "default",
+    keep,
+  ).catch((e) => {
+    console.error(e);
+    process.exit(1);
+  });
 } else {
   main().catch((e) => {
     console.error(e);

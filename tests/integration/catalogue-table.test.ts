@@ -3,6 +3,14 @@
 // one side, and correcting an accession with its event.
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import {
+  cappedCountQuery,
+  countCap,
+  countDiscs,
+  estimateDiscs,
+  estimatedPast,
+  filteredDiscs,
+} from "@/lib/catalogue/list-query";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
@@ -141,6 +149,99 @@ describe("the catalogue list", () => {
       expect(capped.body.rows[0].shelfMark).toBe(`ZZCAP-${tag}-00101`);
     } finally {
       await ownerDb.deleteFrom("discs").where("accession_id", "=", capId).execute();
+    }
+  });
+});
+
+describe("the count of a side filter", () => {
+  it("counted from the sides alone, equals the count over the discs", async () => {
+    const d = await createDisc(`CNT-${tag}`, "Copper Lantern", 1931);
+    const assigned = await api("/api/assignments", {
+      cookie: cookie.archivist,
+      method: "POST",
+      body: { engineerId, sideIds: [d.sides[0].id] },
+    });
+    expect(assigned.status).toBe(200);
+    for (const filter of [
+      { status: "assigned" as const },
+      { status: "catalogued" as const },
+      { engineer: engineerId },
+    ]) {
+      const q = { ...filter, sort: "shelfMark" as const };
+      // One snapshot for both counts, whatever other tests write meanwhile.
+      const [fromSides, overDiscs] = await testDb
+        .transaction()
+        .setIsolationLevel("repeatable read")
+        .execute(async (trx) => [
+          await countDiscs(trx, q),
+          (
+            await trx
+              .selectFrom(
+                filteredDiscs(trx, q)
+                  .select("d.id")
+                  .limit(countCap + 1)
+                  .as("c"),
+              )
+              .select((eb) => eb.fn.countAll<number>().as("n"))
+              .executeTakeFirstOrThrow()
+          ).n,
+        ]);
+      expect(cappedCountQuery(testDb, q).compile().sql).toMatch(/from "sides"/);
+      expect(overDiscs).toBeGreaterThan(0);
+      expect(fromSides).toMatchObject({
+        total: Math.min(Number(overDiscs), countCap),
+        totalIsCapped: Number(overDiscs) > countCap,
+      });
+    }
+  });
+});
+
+describe("a broad search", () => {
+  it("says more than 10 000 on the planner's estimate, yet gives the exact total when its page is not full", async () => {
+    const created = await api("/api/accessions", {
+      cookie: cookie.archivist,
+      method: "POST",
+      body: { identifier: `BROAD-${tag}`, source: "A shelf of one word", receivedOn: "2026-11-30" },
+    });
+    const broadId: string = created.body.accession.id;
+    const word = `zbroad${tag}`;
+    // Half the discs hold the word at 78 rpm, the other half lack it at 45: the planner,
+    // taking the two as independent, expects a quarter of them to hold it at 45, and none do.
+    const insert = (part: string, words: string, speed: number) =>
+      sql`INSERT INTO discs (accession_id, shelf_mark, format, nominal_speed_rpm, groove, cut, search_tsv)
+          SELECT ${broadId}::uuid, 'ZZBRD-' || ${tag}::text || ${part}::text || lpad(g::text, 5, '0'), 'shellac_78',
+                 ${speed}, 'coarse', 'lateral', to_tsvector('simple', ${words}::text)
+          FROM generate_series(1, 50000) g`.execute(ownerDb);
+    const list = async (query: string) =>
+      (await api(`/api/discs?q=${word}&${query}`, { cookie: cookie.curator })).body as {
+        total: number;
+        totalIsCapped: boolean;
+        rows: { shelfMark: string }[];
+      };
+    try {
+      await insert("-A-", word, 78);
+      await insert("-B-", "plain", 45);
+      await sql`ANALYZE discs`.execute(ownerDb);
+      const q = { q: word, speed: 45, sort: "shelfMark" as const };
+      expect(await estimateDiscs(testDb, q)).toBeGreaterThanOrEqual(estimatedPast);
+
+      const first = await list("pageSize=50");
+      expect(first).toMatchObject({ total: 10_000, totalIsCapped: true });
+      expect(first.rows.map((r) => r.shelfMark)).toEqual(
+        Array.from({ length: 50 }, (_, i) => `ZZBRD-${tag}-A-${String(i + 1).padStart(5, "0")}`),
+      );
+      // The last page, not full: 50 000 discs in all, more than 10 000.
+      const last = await list("pageSize=30&page=1667");
+      expect(last.rows).toHaveLength(20);
+      expect(last).toMatchObject({ total: 10_000, totalIsCapped: true });
+      const past = await list("pageSize=30&page=1668");
+      expect(past).toMatchObject({ rows: [], total: 10_000, totalIsCapped: true });
+      // Expected at 45 rpm by the estimate, found at none: the empty page gives the exact count.
+      expect(await list("speed=45")).toMatchObject({ rows: [], total: 0, totalIsCapped: false });
+      expect(await list("speed=45&page=2")).toMatchObject({ rows: [], total: 0, totalIsCapped: false });
+    } finally {
+      await ownerDb.deleteFrom("discs").where("accession_id", "=", broadId).execute();
+      await sql`ANALYZE discs`.execute(ownerDb);
     }
   });
 });

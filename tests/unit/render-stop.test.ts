@@ -32,7 +32,12 @@ async function input(name: string, peak: number): Promise<string> {
   return path;
 }
 
-async function renderStoppedAt(inputPath: string, outName: string, stopAt: number) {
+async function renderStoppedAt(
+  inputPath: string,
+  outName: string,
+  stopAt: number,
+  keepFiltered: "auto" | "memory" = "auto",
+) {
   const source = await openFileSource(inputPath);
   let last = 0;
   try {
@@ -43,6 +48,7 @@ async function renderStoppedAt(inputPath: string, outName: string, stopAt: numbe
       filter: { taps: [1.5], delaySamples: 0 },
       outputPath: join(dir, outName),
       chunkFrames: 4096,
+      keepFiltered,
       onProgress: (fraction) => {
         last = fraction;
         if (fraction >= stopAt) throw new Stop("lease lost");
@@ -69,5 +75,15 @@ describe("a render stopped between blocks", () => {
     expect(at).toBeGreaterThanOrEqual(0.75);
     expect(at).toBeLessThan(1);
     expect((await readdir(dir)).filter((n) => n.startsWith("loud-out"))).toEqual([]);
+  });
+
+  it("ends in the trim's first pass too, the signal kept so far on disk or in memory, and leaves no file", async () => {
+    const loud = await input("loud-first.wav", 0.9);
+    for (const keepFiltered of ["auto", "memory"] as const) {
+      const at = await renderStoppedAt(loud, `first-${keepFiltered}-out.wav`, 0.3, keepFiltered);
+      expect(at).toBeGreaterThanOrEqual(0.3);
+      expect(at).toBeLessThan(0.5);
+      expect((await readdir(dir)).filter((n) => n.startsWith(`first-${keepFiltered}-out`))).toEqual([]);
+    }
   });
 });

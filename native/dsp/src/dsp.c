@@ -3,17 +3,28 @@
  * JavaScript runs about 3 times slower than this (scripts/bench/render.ts).
  *
  *   decode(bytes, bits, isFloat, out)                 interleaved WAVE data → float64
- *   encode(samples, count, gain, bits, dither, out)   float64 → interleaved PCM, TPDF dither
- *   peak(samples, count)                              largest magnitude
+ *   encode(samples, count, gain, bits, dither, out)   float64 or float32 → interleaved PCM, TPDF dither
+ *   peak(samples, count[, out32])                     largest magnitude; with out32, also the
+ *                                                     samples rounded to float32 (a trimmed copy's)
  *   new Convolver(taps, channels, fftSize)            overlap-save FIR filter, state kept
  *     .process(input, frames, output)                 interleaved float64 in and out
+ *   importWisdom(path) / exportWisdom(path)           FFTW's measured plans, kept across processes
+ *   unsavedPlans()                                    plans measured since the last export
+ *   allocate(bytes) / release(buffer)                 memory for a trimmed render's kept signal, in
+ *                                                     huge pages where the kernel offers them
  *
  * Each one does exactly what its JavaScript twin in lib/audio does (codecs.ts,
  * lib/audio/convolver.ts): the same scaling, the same dither sequence and the
  * same rounding, so the two engines write the same bytes; tests compare them.
  * The FFTs are FFTW 3 (double precision, Debian's libfftw3), planned with
- * FFTW_ESTIMATE so a render starts at once. FFTW's planner is not thread-safe:
- * the render calls this from Node's main thread only.
+ * FFTW_MEASURE (FFTW times candidate algorithms and keeps the fastest: about half
+ * the time of FFTW_ESTIMATE's guess at the render's sizes). Measuring takes about a
+ * second per size, so each size is planned once per process (the plans are shared
+ * by every convolver of that size) and the measurements are kept as FFTW "wisdom"
+ * in a file that lib/audio/dsp.ts imports at load and exports after a new size:
+ * later processes plan from it at once and pick the same algorithms, so the same
+ * machine filters with the same arithmetic. FFTW's planner is not thread-safe: the
+ * render calls this from Node's main thread only.
  */
 #include <fftw3.h>
 #include <math.h>
@@ -21,6 +32,14 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/mman.h>
+
+/* AVX-512 (x86-64-v4) and AVX2 copies of the hot loops beside the baseline one, chosen at load time (x86-64 only). */
+#if defined(__x86_64__) && defined(__GNUC__)
+#define VECTOR_CLONES __attribute__((target_clones("arch=x86-64-v4", "avx2", "default")))
+#else
+#define VECTOR_CLONES
+#endif
 
 #define CHECK(call)                                                        \
   do {                                                                     \
@@ -71,6 +90,16 @@ static int get_double(napi_env env, napi_value v, double* out) {
 
 /* ---------------------------------------------------------------- decode */
 
+/* 24-bit little-endian PCM → float64, full scale 1.0 (the word lengths' commonest, so vectorised). */
+VECTOR_CLONES
+static void decode24(const uint8_t* restrict b, size_t count, double* restrict out) {
+  for (size_t i = 0; i < count; i++) {
+    const uint8_t* p = b + 3 * i;
+    const int32_t v = (int32_t)((uint32_t)p[0] << 8 | (uint32_t)p[1] << 16 | (uint32_t)p[2] << 24) >> 8;
+    out[i] = v / 8388608.0;
+  }
+}
+
 static napi_value decode(napi_env env, napi_callback_info info) {
   size_t argc = 4;
   napi_value argv[4];
@@ -104,11 +133,7 @@ static napi_value decode(napi_env env, napi_callback_info info) {
       out[i] = v / 32768.0;
     }
   } else if (bits == 24) {
-    for (size_t i = 0; i < count; i++) {
-      const uint8_t* p = b + 3 * i;
-      int32_t v = (int32_t)((uint32_t)p[0] << 8 | (uint32_t)p[1] << 16 | (uint32_t)p[2] << 24) >> 8;
-      out[i] = v / 8388608.0;
-    }
+    decode24(b, count, out);
   } else {
     for (size_t i = 0; i < count; i++) {
       int32_t v;
@@ -121,12 +146,6 @@ static napi_value decode(napi_env env, napi_callback_info info) {
 
 /* ---------------------------------------------------------------- encode */
 
-/* An AVX2 copy of the hot loop beside the baseline one, chosen at load time (x86-64 only). */
-#if defined(__x86_64__) && defined(__GNUC__)
-#define VECTOR_CLONES __attribute__((target_clones("avx2", "default")))
-#else
-#define VECTOR_CLONES
-#endif
 
 #define GOLDEN 0x6d2b79f5u
 #define BLOCK 512
@@ -188,7 +207,9 @@ static napi_value encode(napi_env env, napi_callback_info info) {
   uint8_t* out;
   int64_t count, bits;
   double gain;
-  if (!typed(env, argv[0], napi_float64_array, (void**)&s, &nsamples)) return throw_type(env, "encode: samples must be a Float64Array.");
+  float* s32 = NULL;
+  if (!typed(env, argv[0], napi_float64_array, (void**)&s, &nsamples) && !typed(env, argv[0], napi_float32_array, (void**)&s32, &nsamples))
+    return throw_type(env, "encode: samples must be a Float64Array or a Float32Array.");
   if (!typed(env, argv[5], napi_uint8_array, (void**)&out, &nout)) return throw_type(env, "encode: out must be a Uint8Array.");
   if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > nsamples)
     return throw_range(env, "encode: count must be a whole number within the samples.");
@@ -208,10 +229,17 @@ static napi_value encode(napi_env env, napi_callback_info info) {
   const double k = gain * scale;
   int64_t clipped = 0;
   int32_t q[BLOCK];
+  double widened[BLOCK];
   uint32_t st = state ? state[0] : 0;
   for (int64_t at = 0; at < count; at += BLOCK) {
     const size_t n = (size_t)(count - at < BLOCK ? count - at : BLOCK);
-    clipped += quantize_block(s + at, n, k, state ? &st : NULL, max, min, q);
+    const double* x = s + at;
+    if (s32) {
+      /* float32 → double is exact: the same sums as on a Float64Array holding these values. */
+      for (size_t j = 0; j < n; j++) widened[j] = s32[at + (int64_t)j];
+      x = widened;
+    }
+    clipped += quantize_block(x, n, k, state ? &st : NULL, max, min, q);
     st += (uint32_t)(2 * n) * GOLDEN;
     uint8_t* o = out + (size_t)at * (size_t)width;
     if (width == 3) {
@@ -238,36 +266,135 @@ static napi_value encode(napi_env env, napi_callback_info info) {
 
 /* ------------------------------------------------------------------ peak */
 
-static napi_value peak(napi_env env, napi_callback_info info) {
-  size_t argc = 2;
-  napi_value argv[2];
-  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
-  size_t n;
-  double* x;
-  int64_t count;
-  if (argc < 2 || !typed(env, argv[0], napi_float64_array, (void**)&x, &n)) return throw_type(env, "peak(samples, count): samples must be a Float64Array.");
-  if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > n) return throw_range(env, "peak: count must be a whole number within the samples.");
-  /* Largest magnitude; NaN is passed over, as by the JavaScript loop. Four running maxima. */
+/* Largest magnitude; NaN is passed over, as by the JavaScript loop. Four running maxima. */
+VECTOR_CLONES
+static double peak_of(const double* x, size_t count) {
   double m[4] = {0, 0, 0, 0};
   size_t i = 0;
-  for (; i + 4 <= (size_t)count; i += 4) {
+  for (; i + 4 <= count; i += 4) {
     for (int j = 0; j < 4; j++) {
       const double a = fabs(x[i + j]);
       m[j] = a > m[j] ? a : m[j];
     }
   }
-  for (; i < (size_t)count; i++) {
+  for (; i < count; i++) {
     const double a = fabs(x[i]);
     m[0] = a > m[0] ? a : m[0];
   }
   double best = m[0];
   for (int j = 1; j < 4; j++) best = m[j] > best ? m[j] : best;
+  return best;
+}
+
+/* The same peak, and every sample rounded to float32 (to nearest, IEEE) into out, in one sweep. */
+VECTOR_CLONES
+static double peak_and_round(const double* x, size_t count, float* out) {
+  double m[4] = {0, 0, 0, 0};
+  size_t i = 0;
+  for (; i + 4 <= count; i += 4) {
+    for (int j = 0; j < 4; j++) {
+      const double a = fabs(x[i + j]);
+      m[j] = a > m[j] ? a : m[j];
+      out[i + j] = (float)x[i + j];
+    }
+  }
+  for (; i < count; i++) {
+    const double a = fabs(x[i]);
+    m[0] = a > m[0] ? a : m[0];
+    out[i] = (float)x[i];
+  }
+  double best = m[0];
+  for (int j = 1; j < 4; j++) best = m[j] > best ? m[j] : best;
+  return best;
+}
+
+static napi_value peak(napi_env env, napi_callback_info info) {
+  size_t argc = 3;
+  napi_value argv[3];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  size_t n, nout = 0;
+  double* x;
+  float* out = NULL;
+  int64_t count;
+  if (argc < 2 || !typed(env, argv[0], napi_float64_array, (void**)&x, &n)) return throw_type(env, "peak(samples, count): samples must be a Float64Array.");
+  if (!get_int(env, argv[1], &count) || count < 0 || (size_t)count > n) return throw_range(env, "peak: count must be a whole number within the samples.");
+  if (argc >= 3) {
+    napi_valuetype t;
+    CHECK(napi_typeof(env, argv[2], &t));
+    if (t != napi_undefined && t != napi_null) {
+      if (!typed(env, argv[2], napi_float32_array, (void**)&out, &nout)) return throw_type(env, "peak: out32 must be a Float32Array.");
+      if (nout < (size_t)count) return throw_range(env, "peak: out32 is shorter than count.");
+    }
+  }
+  const double best = out ? peak_and_round(x, (size_t)count, out) : peak_of(x, (size_t)count);
   napi_value result;
   CHECK(napi_create_double(env, best, &result));
   return result;
 }
 
 /* ------------------------------------------------------------- convolver */
+
+/*
+ * The plans of one transform size, shared by every convolver of that size and kept for the
+ * process (FFTW_MEASURE is costly; the new-array execute functions run a plan on any arrays
+ * with the alignment of those it was made on, which fftw_alloc_* guarantees).
+ */
+typedef struct plan_pair {
+  int n, channels;
+  fftw_plan forward, backward;
+  struct plan_pair* next;
+} plan_pair;
+
+static plan_pair* plans = NULL;
+/*
+ * How hard the planner looks. FFTW_PATIENT was tried: about 8 % off the filter's time at the
+ * render's size, for some 20 s of planning per size instead of about 1 s; not worth it.
+ */
+static const unsigned planner_effort = FFTW_MEASURE;
+/* Plans measured (not read from wisdom) since the wisdom was last exported. */
+static int unsaved_plans = 0;
+
+/* The plans for size n and this channel count: from the cache, else from wisdom, else measured. */
+static plan_pair* plans_for(int n, int channels) {
+  for (plan_pair* p = plans; p; p = p->next)
+    if (p->n == n && p->channels == channels) return p;
+  plan_pair* p = calloc(1, sizeof *p);
+  if (!p) return NULL;
+  const size_t bins = channels == 2 ? (size_t)n : (size_t)n / 2 + 1;
+  /* Scratch arrays of the convolvers' own kinds: FFTW_MEASURE overwrites what it plans on. */
+  double* x = fftw_alloc_real((size_t)n * (size_t)channels);
+  double* y = fftw_alloc_real((size_t)n * (size_t)channels);
+  fftw_complex* X = fftw_alloc_complex(bins);
+  if (x && y && X) {
+    for (int attempt = 0; attempt < 2 && !(p->forward && p->backward); attempt++) {
+      const unsigned flags = planner_effort | (attempt == 0 ? FFTW_WISDOM_ONLY : 0);
+      if (p->forward) fftw_destroy_plan(p->forward);
+      if (p->backward) fftw_destroy_plan(p->backward);
+      if (channels == 2) {
+        p->forward = fftw_plan_dft_1d(n, (fftw_complex*)x, X, FFTW_FORWARD, flags);
+        p->backward = fftw_plan_dft_1d(n, X, (fftw_complex*)y, FFTW_BACKWARD, flags);
+      } else {
+        p->forward = fftw_plan_dft_r2c_1d(n, x, X, flags);
+        p->backward = fftw_plan_dft_c2r_1d(n, X, y, flags);
+      }
+      if (attempt == 1 && p->forward && p->backward) unsaved_plans++;
+    }
+  }
+  fftw_free(x);
+  fftw_free(y);
+  fftw_free(X);
+  if (!p->forward || !p->backward) {
+    if (p->forward) fftw_destroy_plan(p->forward);
+    if (p->backward) fftw_destroy_plan(p->backward);
+    free(p);
+    return NULL;
+  }
+  p->n = n;
+  p->channels = channels;
+  p->next = plans;
+  plans = p;
+  return p;
+}
 
 typedef struct {
   int channels;     /* 1: real transforms; 2: left in the real part, right in the imaginary */
@@ -279,17 +406,26 @@ typedef struct {
   fftw_complex* X;  /* spectrum work */
   double* y;        /* filtered frame, same layout as x */
   fftw_complex* H;  /* the filter's spectrum, scaled by 1/n */
-  fftw_plan forward, backward;
+  const plan_pair* plans; /* shared, kept for the process */
   double* history;  /* hist frames, interleaved */
 } convolver;
+
+/* x → X and X → y with the shared plans, on this convolver's arrays. */
+static void forward(convolver* c) {
+  if (c->channels == 2) fftw_execute_dft(c->plans->forward, (fftw_complex*)c->x, c->X);
+  else fftw_execute_dft_r2c(c->plans->forward, c->x, c->X);
+}
+
+static void backward(convolver* c) {
+  if (c->channels == 2) fftw_execute_dft(c->plans->backward, c->X, (fftw_complex*)c->y);
+  else fftw_execute_dft_c2r(c->plans->backward, c->X, c->y);
+}
 
 static void convolver_free(napi_env env, void* data, void* hint) {
   (void)env;
   (void)hint;
   convolver* c = data;
   if (!c) return;
-  if (c->forward) fftw_destroy_plan(c->forward);
-  if (c->backward) fftw_destroy_plan(c->backward);
   fftw_free(c->x);
   fftw_free(c->X);
   fftw_free(c->y);
@@ -328,22 +464,19 @@ static napi_value convolver_new(napi_env env, napi_callback_info info) {
     convolver_free(env, c, NULL);
     return throw_range(env, "Convolver: out of memory.");
   }
+  c->plans = plans_for((int)n, (int)channels);
+  if (!c->plans) {
+    convolver_free(env, c, NULL);
+    return throw_range(env, "Convolver: FFTW could not plan this size.");
+  }
   /* The filter's spectrum, scaled by 1/n so the inverse transform needs no pass of its own. */
   memset(c->x, 0, sizeof(double) * (size_t)n * (size_t)channels);
   if (channels == 2) {
     for (size_t i = 0; i < ntaps; i++) c->x[2 * i] = taps[i];
-    c->forward = fftw_plan_dft_1d((int)n, (fftw_complex*)c->x, c->X, FFTW_FORWARD, FFTW_ESTIMATE);
-    c->backward = fftw_plan_dft_1d((int)n, c->X, (fftw_complex*)c->y, FFTW_BACKWARD, FFTW_ESTIMATE);
   } else {
     for (size_t i = 0; i < ntaps; i++) c->x[i] = taps[i];
-    c->forward = fftw_plan_dft_r2c_1d((int)n, c->x, c->X, FFTW_ESTIMATE);
-    c->backward = fftw_plan_dft_c2r_1d((int)n, c->X, c->y, FFTW_ESTIMATE);
   }
-  if (!c->forward || !c->backward) {
-    convolver_free(env, c, NULL);
-    return throw_range(env, "Convolver: FFTW could not plan this size.");
-  }
-  fftw_execute(c->forward);
+  forward(c);
   const double inv = 1.0 / (double)n;
   for (size_t k = 0; k < bins; k++) {
     c->H[k][0] = c->X[k][0] * inv;
@@ -356,6 +489,17 @@ static napi_value convolver_new(napi_env env, napi_callback_info info) {
   return self;
 }
 
+/* X ← X·H, bin by bin (the same products and sums as the JavaScript convolver's). */
+VECTOR_CLONES
+static void multiply(fftw_complex* restrict X, const fftw_complex* restrict H, size_t bins) {
+  for (size_t k = 0; k < bins; k++) {
+    const double re = X[k][0] * H[k][0] - X[k][1] * H[k][1];
+    const double im = X[k][0] * H[k][1] + X[k][1] * H[k][0];
+    X[k][0] = re;
+    X[k][1] = im;
+  }
+}
+
 /* One transform: frames [history | m new frames | zeros] → m filtered frames. */
 static void convolve_piece(convolver* c, const double* in, size_t m, double* out) {
   const int ch = c->channels;
@@ -366,23 +510,15 @@ static void convolve_piece(convolver* c, const double* in, size_t m, double* out
   memset(x + (h + m) * ch, 0, (n - h - m) * ch * sizeof(double));
   /* The last h frames of [history | piece] are the next call's history. */
   memcpy(c->history, x + m * ch, h * ch * sizeof(double));
-  fftw_execute(c->forward);
-  const size_t bins = ch == 2 ? n : n / 2 + 1;
-  fftw_complex* X = c->X;
-  const fftw_complex* H = c->H;
-  for (size_t k = 0; k < bins; k++) {
-    const double re = X[k][0] * H[k][0] - X[k][1] * H[k][1];
-    const double im = X[k][0] * H[k][1] + X[k][1] * H[k][0];
-    X[k][0] = re;
-    X[k][1] = im;
-  }
-  fftw_execute(c->backward);
+  forward(c);
+  multiply(c->X, (const fftw_complex*)c->H, ch == 2 ? n : n / 2 + 1);
+  backward(c);
   memcpy(out, c->y + h * ch, m * ch * sizeof(double));
 }
 
 static napi_value convolver_process(napi_env env, napi_callback_info info) {
-  size_t argc = 3;
-  napi_value argv[3], self;
+  size_t argc = 4;
+  napi_value argv[4], self;
   CHECK(napi_get_cb_info(env, info, &argc, argv, &self, NULL));
   convolver* c;
   if (napi_unwrap(env, self, (void**)&c) != napi_ok || !c) return throw_type(env, "process: not a Convolver.");
@@ -396,14 +532,32 @@ static napi_value convolver_process(napi_env env, napi_callback_info info) {
   if (!get_int(env, argv[1], &frames) || frames < 0) return throw_range(env, "process: frames must be a whole number.");
   const size_t need = (size_t)frames * (size_t)c->channels;
   if (nin < need || nout < need) return throw_range(env, "process: input and output must hold frames × channels samples.");
+  /* With peakFrom: also the peak of the output from that frame on, taken while it is in cache. */
+  int64_t peak_from = -1;
+  if (argc >= 4) {
+    napi_valuetype t;
+    CHECK(napi_typeof(env, argv[3], &t));
+    if (t != napi_undefined && (!get_int(env, argv[3], &peak_from) || peak_from < 0))
+      return throw_range(env, "process: peakFrom must be a whole number of frames.");
+  }
+  const size_t ch = (size_t)c->channels;
+  double best = 0;
   size_t done = 0;
   while (done < (size_t)frames) {
     size_t m = (size_t)frames - done;
     if (m > (size_t)c->block) m = (size_t)c->block;
-    convolve_piece(c, in + done * c->channels, m, out + done * c->channels);
+    convolve_piece(c, in + done * ch, m, out + done * ch);
+    if (peak_from >= 0 && done + m > (size_t)peak_from) {
+      const size_t from = (size_t)peak_from > done ? (size_t)peak_from : done;
+      const double p = peak_of(out + from * ch, (done + m - from) * ch);
+      best = p > best ? p : best;
+    }
     done += m;
   }
-  return NULL;
+  if (peak_from < 0) return NULL;
+  napi_value result;
+  CHECK(napi_create_double(env, best, &result));
+  return result;
 }
 
 static napi_value convolver_reset(napi_env env, napi_callback_info info) {
@@ -415,6 +569,142 @@ static napi_value convolver_reset(napi_env env, napi_callback_info info) {
   return NULL;
 }
 
+/* ---------------------------------------------------------------- memory */
+
+/*
+ * A trimmed render keeps up to a gigabyte of filtered signal. Taken as ordinary 4 KiB pages,
+ * each first touch is a page fault (a quarter of a million of them for 1 GiB), which costs
+ * more than the filtering itself on a virtual machine; so it is taken 2 MiB-aligned and
+ * offered to the kernel for transparent huge pages (madvise: a hint, harmless where refused).
+ * release(buffer) detaches the ArrayBuffer, so no view can reach the memory again, and frees it
+ * at once; a buffer never released is freed when the garbage collector finalizes it.
+ */
+#define HUGE_PAGE ((size_t)2 << 20)
+
+/* The blocks handed out and not yet freed: release() frees one at once, the GC's finalizer otherwise. */
+typedef struct block {
+  void* data; /* NULL once freed */
+  struct block* next;
+} block;
+
+static block* blocks = NULL;
+
+static void forget_block(block* b) {
+  for (block** at = &blocks; *at; at = &(*at)->next) {
+    if (*at == b) {
+      *at = b->next;
+      break;
+    }
+  }
+  free(b);
+}
+
+static void finalize_block(napi_env env, void* data, void* hint) {
+  (void)env;
+  (void)data;
+  block* b = hint;
+  free(b->data); /* NULL when release() freed it already */
+  forget_block(b);
+}
+
+static napi_value allocate(napi_env env, napi_callback_info info) {
+  size_t argc = 1;
+  napi_value argv[1];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  int64_t bytes;
+  if (argc < 1 || !get_int(env, argv[0], &bytes) || bytes < 1 || bytes > ((int64_t)1 << 40))
+    return throw_range(env, "allocate(bytes): bytes must be a positive whole number.");
+  void* data = NULL;
+  const size_t size = ((size_t)bytes + HUGE_PAGE - 1) / HUGE_PAGE * HUGE_PAGE;
+  block* b = calloc(1, sizeof *b);
+  if (!b || posix_memalign(&data, HUGE_PAGE, size) != 0 || !data) {
+    free(b);
+    return throw_range(env, "allocate: out of memory.");
+  }
+#ifdef MADV_HUGEPAGE
+  madvise(data, size, MADV_HUGEPAGE);
+#endif
+  b->data = data;
+  b->next = blocks;
+  blocks = b;
+  napi_value buffer;
+  if (napi_create_external_arraybuffer(env, data, (size_t)bytes, finalize_block, b, &buffer) != napi_ok) {
+    free(data);
+    forget_block(b);
+    return throw_range(env, "allocate: could not make an ArrayBuffer of this memory.");
+  }
+  return buffer;
+}
+
+static block* block_of(void* data) {
+  for (block* b = blocks; b; b = b->next)
+    if (b->data == data) return b;
+  return NULL;
+}
+
+static napi_value release(napi_env env, napi_callback_info info) {
+  size_t argc = 1;
+  napi_value argv[1];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  bool is = false;
+  if (argc < 1 || napi_is_arraybuffer(env, argv[0], &is) != napi_ok || !is) return throw_type(env, "release(buffer): buffer must be an ArrayBuffer.");
+  bool detached = false;
+  CHECK(napi_is_detached_arraybuffer(env, argv[0], &detached));
+  if (detached) return NULL;
+  void* data = NULL;
+  size_t length = 0;
+  CHECK(napi_get_arraybuffer_info(env, argv[0], &data, &length));
+  if (!block_of(data)) return throw_type(env, "release: this buffer did not come from allocate.");
+  /* Detached first, so no view reaches the memory; then freed, unless the detach let it go already. */
+  CHECK(napi_detach_arraybuffer(env, argv[0]));
+  block* b = block_of(data);
+  if (b) {
+    b->data = NULL;
+    free(data);
+  }
+  return NULL;
+}
+
+/* ---------------------------------------------------------------- wisdom */
+
+/* importWisdom(path): true when FFTW read the file (a missing or foreign file leaves the planner as it was). */
+static napi_value import_wisdom(napi_env env, napi_callback_info info) {
+  size_t argc = 1;
+  napi_value argv[1];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  char path[4096];
+  size_t len;
+  if (argc < 1 || napi_get_value_string_utf8(env, argv[0], path, sizeof path, &len) != napi_ok || len >= sizeof path - 1)
+    return throw_type(env, "importWisdom(path): path must be a string.");
+  const int ok = fftw_import_wisdom_from_filename(path);
+  napi_value result;
+  CHECK(napi_get_boolean(env, ok != 0, &result));
+  return result;
+}
+
+/* exportWisdom(path): writes everything the planner knows; true when written (the plans count as saved). */
+static napi_value export_wisdom(napi_env env, napi_callback_info info) {
+  size_t argc = 1;
+  napi_value argv[1];
+  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
+  char path[4096];
+  size_t len;
+  if (argc < 1 || napi_get_value_string_utf8(env, argv[0], path, sizeof path, &len) != napi_ok || len >= sizeof path - 1)
+    return throw_type(env, "exportWisdom(path): path must be a string.");
+  const int ok = fftw_export_wisdom_to_filename(path);
+  if (ok) unsaved_plans = 0;
+  napi_value result;
+  CHECK(napi_get_boolean(env, ok != 0, &result));
+  return result;
+}
+
+static napi_value unsaved(napi_env env, napi_callback_info info) {
+  (void)info;
+  napi_value result;
+  CHECK(napi_create_int32(env, unsaved_plans, &result));
+  return result;
+}
+
 /* ---------------------------------------------------------------- module */
 
 static napi_value init(napi_env env, napi_value exports) {
@@ -422,8 +712,16 @@ static napi_value init(napi_env env, napi_value exports) {
       {"decode", NULL, decode, NULL, NULL, NULL, napi_enumerable, NULL},
       {"encode", NULL, encode, NULL, NULL, NULL, napi_enumerable, NULL},
       {"peak", NULL, peak, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"importWisdom", NULL, import_wisdom, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"exportWisdom", NULL, export_wisdom, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"unsavedPlans", NULL, unsaved, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"allocate", NULL, allocate, NULL, NULL, NULL, napi_enumerable, NULL},
+      {"release", NULL, release, NULL, NULL, NULL, napi_enumerable, NULL},
   };
-  CHECK(napi_define_properties(env, exports, 3, fns));
+  CHECK(napi_define_properties(env, exports, sizeof fns / sizeof fns[0], fns));
+  /* A bound on planning one size (FFTW_MEASURE takes about 1 s at 2^15 points, 3 s at 2^16, here):
+   * past it, FFTW keeps the best plan found so far. */
+  fftw_set_timelimit(30.0);
   napi_property_descriptor methods[] = {
       {"process", NULL, convolver_process, NULL, NULL, NULL, napi_default, NULL},
       {"reset", NULL, convolver_reset, NULL, NULL, NULL, napi_default, NULL},

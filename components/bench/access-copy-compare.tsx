@@ -28,6 +28,8 @@ export interface ComparedRender {
   bytes: number | string | null;
   channelMode: ChannelMode;
   trimDb: number | string | null;
+  /** The render's record: with `speedCorrection` when the copy plays at the cut speed. */
+  filter?: { speedCorrection?: { factor: number; cutSpeedRpm: number; transferSpeedRpm: number } } | null;
 }
 
 type Side = "access" | "curve";
@@ -145,6 +147,16 @@ export function AccessCopyCompare({
 
   return (
     <div className="space-y-3" data-testid="access-ab">
+      {render.filter?.speedCorrection ? (
+        <Notice tone="info" title="Speed corrected">
+          <p data-testid="access-ab-speed">
+            This copy plays at the cut speed, {render.filter.speedCorrection.factor.toFixed(4)} times the
+            transfer&apos;s ({render.filter.speedCorrection.transferSpeedRpm} →{" "}
+            {render.filter.speedCorrection.cutSpeedRpm} rpm): against the transfer through the curve it sounds
+            higher and runs ahead. Compare the tone colour, not the pitch or the timing.
+          </p>
+        </Notice>
+      ) : null}
       {!acknowledged ? (
         <Notice tone="caution" title="Mind your ears">
           <p>

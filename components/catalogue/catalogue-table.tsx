@@ -144,6 +144,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
         rows: DiscListRowJson[];
         total: number;
         totalIsCapped: boolean;
+        totalIsEstimated: boolean;
         page: number;
         pageSize: number;
       }>(listUrl),
@@ -197,6 +198,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
   const sorting: SortingState = [{ id: sort.replace(/^-/, ""), desc: sort.startsWith("-") }];
   const total = discs.data?.total ?? 0;
   const capped = discs.data?.totalIsCapped ?? false;
+  const estimated = discs.data?.totalIsEstimated ?? false;
   const rowCount = discs.data?.rows.length ?? 0;
   const pageCount = Math.max(1, Math.ceil(total / pageSize));
   const hasNext = capped ? rowCount === pageSize : page < pageCount;
@@ -560,7 +562,7 @@ export function CatalogueTable({ canAssign, self }: Props) {
 
       <div className="flex flex-wrap items-center justify-between gap-3 text-xs text-ink-faint">
         <span aria-live="polite" data-testid="catalogue-count">
-          {discs.isLoading ? "Loading…" : countSentence(total, capped, anyFilter)}
+          {discs.isLoading ? "Loading…" : countSentence(total, capped, estimated, anyFilter)}
           {discs.isFetching && !discs.isLoading ? " · updating…" : ""}
         </span>
         <ColumnChooser shown={shown} onChange={setShown} />
@@ -612,11 +614,13 @@ export function CatalogueTable({ canAssign, self }: Props) {
             ← Previous
           </Button>
           <span className="px-2 text-ink-soft" data-testid="catalogue-page">
-            {capped
-              ? `Page ${page} of more than ${Math.floor(total / pageSize)
-                  .toLocaleString("en-GB")
-                  .replace(/,/g, " ")}`
-              : `Page ${Math.min(page, pageCount)} of ${pageCount}`}
+            {estimated
+              ? `Page ${page} of many`
+              : capped
+                ? `Page ${page} of more than ${Math.floor(total / pageSize)
+                    .toLocaleString("en-GB")
+                    .replace(/,/g, " ")}`
+                : `Page ${Math.min(page, pageCount)} of ${pageCount}`}
           </span>
           <Button
             type="button"
@@ -638,7 +642,9 @@ function count(n: number): string {
   return n.toLocaleString("en-GB").replace(/,/g, " ");
 }
 
-function countSentence(total: number, capped: boolean, filtered: boolean): string {
+function countSentence(total: number, capped: boolean, estimated: boolean, filtered: boolean): string {
+  // A broad search is not counted: the database's estimate says it passes the cap.
+  if (estimated) return `More than ${countCapText} discs match, by the database's estimate (not counted)`;
   if (capped) return `More than ${countCapText} discs ${filtered ? "match" : "in the catalogue"}`;
   return `${count(total)} disc${total === 1 ? "" : "s"}${filtered ? (total === 1 ? " matches" : " match") : " in the catalogue"}`;
 }

@@ -33,6 +33,11 @@ export interface DiscListPage {
   /** Exact up to countCap; countCap when there are more (then totalIsCapped). */
   total: number;
   totalIsCapped: boolean;
+  /**
+   * Capped on the planner's estimate of a broad search, not counted: the page says so, since
+   * an estimate can be off (a page that is not full always gives the exact total instead).
+   */
+  totalIsEstimated: boolean;
   page: number;
   pageSize: number;
 }
@@ -212,15 +217,19 @@ async function pageTotal(
   q: DiscListQuery,
   count: DiscCount,
   rowsOnPage: number,
-): Promise<{ total: number; totalIsCapped: boolean }> {
+): Promise<{ total: number; totalIsCapped: boolean; totalIsEstimated: boolean }> {
   if (!count.estimated || rowsOnPage === q.pageSize)
-    return { total: count.total, totalIsCapped: count.totalIsCapped };
+    return { total: count.total, totalIsCapped: count.totalIsCapped, totalIsEstimated: count.estimated };
   if (rowsOnPage === 0 && q.page > 1) {
     const { n } = await cappedCountQuery(db, q).executeTakeFirstOrThrow();
-    return n > countCap ? { total: countCap, totalIsCapped: true } : { total: n, totalIsCapped: false };
+    return n > countCap
+      ? { total: countCap, totalIsCapped: true, totalIsEstimated: false }
+      : { total: n, totalIsCapped: false, totalIsEstimated: false };
   }
   const n = (q.page - 1) * q.pageSize + rowsOnPage;
-  return n > countCap ? { total: countCap, totalIsCapped: true } : { total: n, totalIsCapped: false };
+  return n > countCap
+    ? { total: countCap, totalIsCapped: true, totalIsEstimated: false }
+    : { total: n, totalIsCapped: false, totalIsEstimated: false };
 }
 
 /**

@@ -32,7 +32,15 @@ async function currentWork(trx: Transaction<Database>, side: LockedSide) {
     side.current_curve_choice_id
       ? trx
           .selectFrom("curve_choices")
-          .select(["id", "spec_sha256", "preset_name", "preset_version", "overrides", "spec"])
+          .select([
+            "id",
+            "spec_sha256",
+            "preset_name",
+            "preset_version",
+            "overrides",
+            "spec",
+            "correct_speed",
+          ])
           .where("id", "=", side.current_curve_choice_id)
           .executeTakeFirst()
       : undefined,
@@ -179,6 +187,8 @@ export async function decideReview(
             presetVersion: work.choice.preset_version,
             overrides: work.choice.overrides,
             spec: work.choice.spec,
+            // Not part of the spec's hash: whether the render corrected the speed to the cut's.
+            correctSpeed: work.choice.correct_speed,
           }
         : null,
       render: work.render ? { id: work.render.id, sha256: work.render.sha256 } : null,

@@ -11,43 +11,30 @@ import {
   estimatedPast,
   filteredDiscs,
 } from "@/lib/catalogue/list-query";
-import { demoAccounts } from "@/scripts/seed/demo-accounts";
-import { api, signInCookie } from "../support/app";
+import { api } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
 import {
   assignedDisc,
+  demoUserId,
   flatTransfer,
+  type LabCookies,
   labCookies,
+  newAccession,
   sendParts,
   sha256Of,
   startUpload,
   uploadTransfer,
 } from "../support/pipeline";
 
-const cookie = {} as Record<"archivist" | "engineer" | "curator", string>;
+let cookie: LabCookies;
 const tag = Date.now().toString(36);
 let accessionId: string;
 let engineerId: string;
 
 beforeAll(async () => {
-  for (const role of ["archivist", "engineer", "curator"] as const) {
-    const a = demoAccounts.find((x) => x.role === role)!;
-    cookie[role] = await signInCookie(a.email, a.password);
-  }
-  const acc = await api("/api/accessions", {
-    cookie: cookie.archivist,
-    method: "POST",
-    body: { identifier: `TBL-${tag}`, source: "Table test shelf", receivedOn: "2026-11-30" },
-  });
-  expect(acc.status).toBe(201);
-  accessionId = acc.body.accession.id;
-  engineerId = (
-    await testDb
-      .selectFrom("users")
-      .select("id")
-      .where("email", "=", demoAccounts.find((a) => a.role === "engineer")!.email)
-      .executeTakeFirstOrThrow()
-  ).id;
+  cookie = await labCookies();
+  accessionId = await newAccession(cookie.archivist, `TBL-${tag}`, "Table test shelf");
+  engineerId = await demoUserId("engineer");
 });
 
 afterAll(async () => {

@@ -19,6 +19,24 @@ export async function labCookies(): Promise<LabCookies> {
   return out;
 }
 
+/** The id of the demo person of that role. */
+export async function demoUserId(role: (typeof demoAccounts)[number]["role"]): Promise<string> {
+  const email = demoAccounts.find((a) => a.role === role)!.email;
+  return (await testDb.selectFrom("users").select("id").where("email", "=", email).executeTakeFirstOrThrow())
+    .id;
+}
+
+/** A new accession made by the archivist through the API; its id. */
+export async function newAccession(archivist: string, identifier: string, source: string): Promise<string> {
+  const acc = await api("/api/accessions", {
+    cookie: archivist,
+    method: "POST",
+    body: { identifier, source, receivedOn: "2026-11-30" },
+  });
+  expect(acc.status).toBe(201);
+  return acc.body.accession.id as string;
+}
+
 export async function until<T>(
   what: string,
   probe: () => Promise<T | undefined> | T | undefined,

@@ -667,15 +667,19 @@ static napi_value release(napi_env env, napi_callback_info info) {
 
 /* ---------------------------------------------------------------- wisdom */
 
-/* importWisdom(path): true when FFTW read the file (a missing or foreign file leaves the planner as it was). */
-static napi_value import_wisdom(napi_env env, napi_callback_info info) {
+/* The wisdom file's path, the call's one argument: false when it is not a string that fits. */
+static bool wisdom_path(napi_env env, napi_callback_info info, char* path, size_t size) {
   size_t argc = 1;
   napi_value argv[1];
-  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
-  char path[4096];
   size_t len;
-  if (argc < 1 || napi_get_value_string_utf8(env, argv[0], path, sizeof path, &len) != napi_ok || len >= sizeof path - 1)
-    return throw_type(env, "importWisdom(path): path must be a string.");
+  return napi_get_cb_info(env, info, &argc, argv, NULL, NULL) == napi_ok && argc >= 1 &&
+         napi_get_value_string_utf8(env, argv[0], path, size, &len) == napi_ok && len < size - 1;
+}
+
+/* importWisdom(path): true when FFTW read the file (a missing or foreign file leaves the planner as it was). */
+static napi_value import_wisdom(napi_env env, napi_callback_info info) {
+  char path[4096];
+  if (!wisdom_path(env, info, path, sizeof path)) return throw_type(env, "importWisdom(path): path must be a string.");
   const int ok = fftw_import_wisdom_from_filename(path);
   napi_value result;
   CHECK(napi_get_boolean(env, ok != 0, &result));
@@ -684,13 +688,8 @@ static napi_value import_wisdom(napi_env env, napi_callback_info info) {
 
 /* exportWisdom(path): writes everything the planner knows; true when written (the plans count as saved). */
 static napi_value export_wisdom(napi_env env, napi_callback_info info) {
-  size_t argc = 1;
-  napi_value argv[1];
-  CHECK(napi_get_cb_info(env, info, &argc, argv, NULL, NULL));
   char path[4096];
-  size_t len;
-  if (argc < 1 || napi_get_value_string_utf8(env, argv[0], path, sizeof path, &len) != napi_ok || len >= sizeof path - 1)
-    return throw_type(env, "exportWisdom(path): path must be a string.");
+  if (!wisdom_path(env, info, path, sizeof path)) return throw_type(env, "exportWisdom(path): path must be a string.");
   const int ok = fftw_export_wisdom_to_filename(path);
   if (ok) unsaved_plans = 0;
   napi_value result;

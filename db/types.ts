@@ -92,6 +92,10 @@ export interface CurvePresetVersionsTable {
   change_note: string;
   created_by: string | null;
   created_at: DefaultTimestamp;
+  /** Earlier versions of the same preset this one corrects (empty: not a correction). */
+  corrects_versions: ColumnType<number[], number[] | undefined, never>;
+  /** What was wrong and on what evidence; required exactly when it corrects. */
+  correction_note: ColumnType<string | null, string | null | undefined, never>;
 }
 
 export interface AccessionsTable {
@@ -361,12 +365,50 @@ export interface LabSettingsTable {
   updated_at: DefaultTimestamp;
 }
 
+export type CampaignState = "running" | "finished";
+export type CampaignSideState = "waiting" | "done" | "failed" | "cancelled";
+
+export interface CampaignsTable {
+  id: Generated<string>;
+  preset_id: string;
+  correcting_version: number;
+  title: string;
+  rationale: string;
+  state: Generated<CampaignState>;
+  started_by: string;
+  started_at: DefaultTimestamp;
+  finished_at: ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
+  cancelled_by: string | null;
+  cancelled_at: ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
+  mailed_at: ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
+}
+
+export interface CampaignSidesTable {
+  campaign_id: string;
+  side_id: string;
+  state: Generated<CampaignSideState>;
+  status_before: SideStatus;
+  from_choice_id: string;
+  from_version: number;
+  choice_id: string | null;
+  render_id: string | null;
+  /** The side was rendered, in review or approved: it goes back to review after its new render. */
+  to_review: boolean;
+  attempts: Generated<number>;
+  error: string | null;
+  /** What became of the side, in words (done sides). */
+  outcome: string | null;
+  updated_at: DefaultTimestamp;
+}
+
 export interface SideTransitionsTable {
   from_status: SideStatus;
   to_status: SideStatus;
 }
 
 export interface Database {
+  campaigns: CampaignsTable;
+  campaign_sides: CampaignSidesTable;
   side_transitions: SideTransitionsTable;
   reviews: ReviewsTable;
   fixity_checks: FixityChecksTable;

@@ -40,6 +40,9 @@ export interface SavePresetInput {
   spec: CurveSpec;
   notes: string;
   changeNote: string;
+  /** The earlier versions a new version corrects, and what was wrong (lib/presets). */
+  corrects?: number[];
+  correctionNote?: string;
 }
 
 /**

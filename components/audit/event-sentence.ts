@@ -524,8 +524,47 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
           { label: "Before", value: curveText(p.before?.spec) },
           { label: "After", value: curveText(p.after) },
           ...(p.changeNote ? [{ label: "Why", value: String(p.changeNote) }] : []),
+          ...(Array.isArray(p.corrects) && p.corrects.length
+            ? [
+                {
+                  label: "Corrects",
+                  value: `version${p.corrects.length > 1 ? "s" : ""} ${p.corrects.join(", ")}: ${String(p.correctionNote ?? "")}`,
+                },
+              ]
+            : []),
         ],
         tone: "plain",
+      };
+    case "campaign.started":
+      return {
+        sentence:
+          `${who} started the re-render campaign "${p.title ?? "?"}" over ${p.sides ?? "?"} side${p.sides === 1 ? "" : "s"}: ` +
+          `${p.preset?.name ?? "a preset"} version ${p.correctingVersion ?? "?"} in place of ` +
+          `${Array.isArray(p.fromVersions) ? p.fromVersions.map((v: number) => `v${v}`).join(", ") : "earlier versions"}.`,
+        details: p.correctionNote ? [{ label: "Correction", value: String(p.correctionNote) }] : [],
+        tone: "plain",
+      };
+    case "campaign.cancelled":
+      return {
+        sentence:
+          `${who} cancelled the re-render campaign "${p.title ?? "?"}": ${p.cancelledSides ?? 0} render(s) not yet started were cancelled` +
+          `${p.stillRendering ? `, ${p.stillRendering} under way finish` : ""}.`,
+        details: [],
+        tone: "plain",
+      };
+    case "campaign.retried":
+      return {
+        sentence: `${who} retried the failed sides of the re-render campaign "${p.title ?? "?"}".`,
+        details: [],
+        tone: "plain",
+      };
+    case "campaign.finished":
+      return {
+        sentence:
+          `The re-render campaign "${p.title ?? "?"}" finished${p.cancelled ? " (cancelled)" : ""}: ` +
+          `${p.counts?.done ?? 0} done, ${p.counts?.failed ?? 0} failed, ${p.counts?.cancelled ?? 0} cancelled.`,
+        details: [],
+        tone: p.counts?.failed ? "bad" : "good",
       };
     case "person.invited":
       return {
@@ -620,6 +659,10 @@ const KIND_LABELS: Record<string, string> = {
   "lab.settings_changed": "Lab settings changed",
   "preset.created": "Curve preset added",
   "preset.versioned": "Curve preset versioned",
+  "campaign.started": "Re-render campaign started",
+  "campaign.cancelled": "Re-render campaign cancelled",
+  "campaign.retried": "Re-render campaign retried",
+  "campaign.finished": "Re-render campaign finished",
 };
 
 /** A kind in a few words for filters and the fallback sentence: "side.render_superseded" → "Access copy superseded". */
@@ -646,5 +689,6 @@ export const kindFilters: { value: string; label: string }[] = [
   { value: "import.", label: "Spreadsheet imports" },
   { value: "person.", label: "People and access" },
   { value: "preset.", label: "Curve presets" },
+  { value: "campaign.", label: "Re-render campaigns" },
   { value: "lab.", label: "Lab settings" },
 ];

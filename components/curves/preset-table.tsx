@@ -82,7 +82,23 @@ export function PresetTable() {
       }),
       column.accessor("version", {
         header: "Version",
-        cell: (c) => <span className="font-mono">v{c.getValue()}</span>,
+        cell: (c) => (
+          <div className="whitespace-nowrap leading-tight">
+            <p className="font-mono">v{c.getValue()}</p>
+            {c.row.original.correctsVersions.length ? (
+              <p className="text-xs text-moss" title={c.row.original.correctionNote ?? undefined}>
+                corrects v{c.row.original.correctsVersions.join(", v")}
+              </p>
+            ) : null}
+            <Link
+              href={`/curves/presets/${encodeURIComponent(c.row.original.id)}/uses`}
+              className="text-xs text-groove underline-offset-2 hover:underline"
+              data-testid="preset-uses"
+            >
+              uses
+            </Link>
+          </div>
+        ),
       }),
       column.accessor((r) => r.curve?.turnover?.hz ?? 0, {
         id: "turnover",

@@ -22,7 +22,7 @@ import { type PlotCurve, ResponsePlot } from "./response-plot";
 import { SummaryStrip } from "./summary-strip";
 import type { PresetJson } from "./types";
 import { ComparePanel, useCompareSlots } from "./workbench-compare";
-import { type PresetText, SaveForm, VersionHistory } from "./workbench-save";
+import { emptyCorrection, type PresetText, SaveForm, VersionHistory } from "./workbench-save";
 
 const SAMPLE_RATES = [44_100, 48_000, 88_200, 96_000, 176_400, 192_000];
 
@@ -42,7 +42,7 @@ const FIELD_PARAMETERS = [
 export function Workbench({ canEdit }: { canEdit: boolean }) {
   const [presetId, setPresetId] = useUrlState("preset");
   const curve = useCurveDraft();
-  const [text, setText] = useState<PresetText>({ name: "", notes: "", changeNote: "" });
+  const [text, setText] = useState<PresetText>({ name: "", notes: "", changeNote: "", ...emptyCorrection });
   const compare = useCompareSlots();
   const [fitPoints, setFitPoints] = useState<FitPoints | null>(null);
   const applied = useRef<string | null>(null);
@@ -57,16 +57,24 @@ export function Workbench({ canEdit }: { canEdit: boolean }) {
     if (applied.current === key) return;
     applied.current = key;
     replaceSpec(loaded.spec);
-    setText({ name: loaded.name, notes: loaded.notes, changeNote: "" });
+    setText({ name: loaded.name, notes: loaded.notes, changeNote: "", ...emptyCorrection });
   }, [loaded, replaceSpec]);
 
   const saving = useSavePreset((saved) => {
     applied.current = `${saved.id}:${saved.version}`;
-    setText((t) => ({ ...t, changeNote: "" }));
+    setText((t) => ({ ...t, changeNote: "", ...emptyCorrection }));
     if (saved.id !== presetId) setPresetId(saved.id);
   });
-  const save = (asNewVersion: boolean) =>
-    saving.mutate({ presetId: asNewVersion ? presetId : undefined, spec: curve.spec, ...text });
+  const save = (asNewVersion: boolean) => {
+    const { corrects, correctionNote, ...rest } = text;
+    saving.mutate({
+      presetId: asNewVersion ? presetId : undefined,
+      spec: curve.spec,
+      ...rest,
+      // A correction is of this preset's own earlier versions: only with a new version.
+      ...(asNewVersion && corrects.length ? { corrects, correctionNote } : {}),
+    });
+  };
 
   const editingLabel = loaded ? `${text.name || loaded.name} (editing)` : "This curve";
   const plotCurves: PlotCurve[] = useMemo(

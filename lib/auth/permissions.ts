@@ -17,6 +17,7 @@ export const actions = {
   "catalogue:assign": "assign sides to transfer engineers",
   "bench:use": "use the transfer bench",
   "review:decide": "approve or return sides",
+  "campaigns:run": "start, cancel and retry re-render campaigns after a preset is corrected",
   "audit:read": "read the provenance record",
   "audit:checkpoint": "write a checkpoint of the provenance log now",
   "fixity:run": "run fixity checks now",
@@ -42,7 +43,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "settings:edit",
   ],
   archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit", "catalogue:assign"],
-  engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use"],
+  engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use", "campaigns:run"],
   curator: [
     "lab:enter",
     "curves:read",
@@ -51,6 +52,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "audit:read",
     "audit:checkpoint",
     "fixity:run",
+    "campaigns:run",
   ],
 };
 

@@ -18,6 +18,7 @@ import {
   speedCorrectedSpec,
 } from "../curves";
 import { env } from "../env";
+import { campaignOfRender, campaignRenderRecorded, campaignRenderStopped } from "../campaigns/progress";
 import { appendEvent } from "../provenance";
 import { lockSide, renderFinished } from "../sides/lifecycle";
 import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../validation/records";
@@ -298,6 +299,8 @@ export async function runRenderJob(
         .where("lease_owner", "=", owner)
         .executeTakeFirst();
       if (Number(finished.numUpdatedRows) === 0) return false;
+      // A render a re-render campaign queued names it (its row lock taken before the log's).
+      const campaign = await campaignOfRender(trx, renderId, { lock: true });
       await appendEvent(trx, {
         actorId: job.requestedBy,
         kind: "side.rendered",
@@ -324,14 +327,17 @@ export async function runRenderJob(
           speedCorrection: result.speedCorrection,
           filter: filterRecord,
           codingHistory: result.codingHistory,
+          ...(campaign ? { campaignId: campaign.campaignId } : {}),
         },
       });
       // Current only if it was made from the side's current transfer and curve; otherwise superseded (lib/sides).
-      await renderFinished(
+      const taken = await renderFinished(
         trx,
         { id: job.requestedBy, role: null },
         { id: renderId, sideId: job.sideId, transferId: job.transferId, curveChoiceId: job.choiceId },
       );
+      // The campaign's side is done (sent back to review when it had been finished work) or failed.
+      if (campaign) await campaignRenderRecorded(trx, renderId, taken);
       return true;
     });
     if (!recorded) throw new LeaseLost();
@@ -347,17 +353,24 @@ export async function runRenderJob(
     // An unreachable store (../storage/errors) says so in plain words; the queue tries the render again.
     const message = err instanceof Error ? err.message : String(err);
     await db
-      .updateTable("renders")
-      .set({
-        status: ctx.finalAttempt ? "failed" : "queued",
-        lease_owner: null,
-        error: ctx.finalAttempt ? message : `${message} It will be tried again shortly.`,
-        ...(ctx.finalAttempt ? { finished_at: new Date() } : {}),
+      .transaction()
+      .execute(async (trx) => {
+        const marked = await trx
+          .updateTable("renders")
+          .set({
+            status: ctx.finalAttempt ? "failed" : "queued",
+            lease_owner: null,
+            error: ctx.finalAttempt ? message : `${message} It will be tried again shortly.`,
+            ...(ctx.finalAttempt ? { finished_at: new Date() } : {}),
+          })
+          .where("id", "=", renderId)
+          .where("status", "=", "running")
+          .where("lease_owner", "=", owner)
+          .executeTakeFirst();
+        // A campaign's side fails with the render's reason, for a retry from the campaign's page.
+        if (ctx.finalAttempt && Number(marked.numUpdatedRows) > 0)
+          await campaignRenderStopped(trx, renderId, `Its render failed: ${message}`);
       })
-      .where("id", "=", renderId)
-      .where("status", "=", "running")
-      .where("lease_owner", "=", owner)
-      .execute()
       .catch(() => undefined);
     if (stored && ctx.finalAttempt) await removeUnrecorded(db, renderId, key);
     throw err;

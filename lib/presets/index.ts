@@ -17,6 +17,9 @@ export interface PresetVersion {
   changeNote: string;
   createdAt: Date;
   createdBy: string | null;
+  /** Earlier versions of this preset that this one corrects, and why. */
+  correctsVersions: number[];
+  correctionNote: string | null;
 }
 
 export interface PresetSummary extends PresetVersion {
@@ -42,6 +45,8 @@ function presetQuery() {
       "v.change_note as changeNote",
       "v.created_at as createdAt",
       "u.name as createdBy",
+      "v.corrects_versions as correctsVersions",
+      "v.correction_note as correctionNote",
     ]);
 }
 
@@ -76,6 +81,8 @@ export async function listPresetVersions(id: string): Promise<PresetVersion[]> {
       "v.change_note as changeNote",
       "v.created_at as createdAt",
       "u.name as createdBy",
+      "v.corrects_versions as correctsVersions",
+      "v.correction_note as correctionNote",
     ])
     .where("v.preset_id", "=", id)
     .orderBy("v.version", "desc")
@@ -149,6 +156,16 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
       .forUpdate()
       .executeTakeFirstOrThrow();
     const version = locked.current_version + 1;
+    // A correction names earlier versions of this preset (the database refuses any other).
+    const corrects = [...new Set(patch.corrects)].sort((a, b) => a - b);
+    const beyond = corrects.filter((v) => v >= version);
+    if (beyond.length)
+      throw new AppError(
+        "invalid",
+        422,
+        `Version ${version} can only correct earlier versions (1 to ${version - 1}), not ${beyond.join(", ")}.`,
+        { corrects: ["Only earlier versions."] },
+      );
     await trx
       .insertInto("curve_preset_versions")
       .values({
@@ -159,6 +176,8 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
         notes: patch.notes ?? current.notes,
         change_note: patch.changeNote,
         created_by: actor.id,
+        corrects_versions: corrects,
+        correction_note: corrects.length ? (patch.correctionNote ?? null) : null,
       })
       .execute();
     await trx
@@ -177,6 +196,7 @@ export async function updatePreset(actor: SessionUser, id: string, input: unknow
         before: { name: current.name, version: current.version, spec: current.spec },
         after: spec,
         changeNote: patch.changeNote,
+        ...(corrects.length ? { corrects, correctionNote: patch.correctionNote } : {}),
       },
     });
   });

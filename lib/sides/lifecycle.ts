@@ -13,7 +13,7 @@ import { appendEvents, type NewEvent } from "../provenance";
 import { curveChoosableStatuses, renderableStatuses, uploadableStatuses } from "../validation/transfers";
 
 /** How a step happens. */
-export type StepVia = "assignment" | "upload" | "curve choice" | "render" | "submit" | "review";
+export type StepVia = "assignment" | "upload" | "curve choice" | "render" | "submit" | "review" | "campaign";
 
 export interface Step {
   from: SideStatus;
@@ -135,6 +135,25 @@ export const transitions: readonly Step[] = [
     means: "sent for review",
     assignedOnly: true,
   },
+  // A re-render campaign (lib/campaigns): a corrected preset version re-chooses the curve of
+  // sides that rested on the wrong one, approved and in-review sides included; their new
+  // access copy is sent to review by the campaign once it is rendered.
+  ...(["rendered", "returned", "in_review", "approved"] as const).map((from): Step => ({
+    from,
+    to: "curve_chosen",
+    via: "campaign",
+    action: "campaigns:run",
+    event: "side.status_changed",
+    means: "a re-render campaign chose the corrected curve: the access copy must be rendered again",
+  })),
+  {
+    from: "rendered",
+    to: "in_review",
+    via: "campaign",
+    action: "campaigns:run",
+    event: "side.status_changed",
+    means: "sent back to review by a re-render campaign, with its access copy made from the corrected curve",
+  },
   {
     from: "in_review",
     to: "approved",
@@ -245,7 +264,9 @@ async function writeSide(
         409,
         `A side that is ${side.status.replace("_", " ")} cannot become ${change.to.replace("_", " ")} by ${change.via}.`,
       );
-    const allowed = actor.role === null ? step.via === "render" : can(actor.role, step.action);
+    // The worker (role null) finishes renders, and the campaign steps of a campaign someone started.
+    const allowed =
+      actor.role === null ? step.via === "render" || step.via === "campaign" : can(actor.role, step.action);
     if (!allowed)
       throw new AppError(
         "forbidden",
@@ -538,6 +559,80 @@ export async function submitForReview(
         renderId: side.current_render_id,
         transferId: side.current_transfer_id,
         curveChoiceId: side.current_curve_choice_id,
+      },
+    },
+    events,
+  );
+  await flush(trx, events);
+}
+
+/**
+ * A re-render campaign recorded a new curve choice from a correcting preset version: it
+ * becomes the side's current one whatever stage the side had reached (approved and in
+ * review included), the current access copy is superseded, and a side with a transfer
+ * stands at "curve chosen" until the campaign's render. Every event names the campaign.
+ */
+export async function campaignCurveChosen(
+  trx: Transaction<Database>,
+  actor: StepActor,
+  side: LockedSide,
+  choiceId: string,
+  campaignId: string,
+  events: NewEvent[],
+): Promise<void> {
+  if (side.current_render_id)
+    await supersede(
+      trx,
+      side,
+      side.current_render_id,
+      "a re-render campaign chose the corrected curve",
+      actor.id,
+      events,
+    );
+  const set: SideColumns = {
+    current_curve_choice_id: choiceId,
+    current_render_id: null,
+    return_reason: null,
+  };
+  const moves = side.current_transfer_id && side.status !== "curve_chosen" && side.status !== "assigned";
+  await writeSide(
+    trx,
+    side,
+    actor,
+    moves
+      ? {
+          to: "curve_chosen",
+          via: "campaign",
+          set,
+          payload: { curveChoiceId: choiceId, campaignId },
+        }
+      : { set },
+    events,
+  );
+}
+
+/** A campaign's render of a side that had been finished work made it current: the side goes back to review. */
+export async function campaignSubmitted(
+  trx: Transaction<Database>,
+  actor: StepActor,
+  side: LockedSide,
+  campaignId: string,
+): Promise<void> {
+  if (side.status !== "rendered" || !side.current_render_id)
+    throw new AppError("conflict", 409, "The side has no current access copy to send to review.");
+  const events: NewEvent[] = [];
+  await writeSide(
+    trx,
+    side,
+    actor,
+    {
+      to: "in_review",
+      via: "campaign",
+      payload: {
+        renderId: side.current_render_id,
+        transferId: side.current_transfer_id,
+        curveChoiceId: side.current_curve_choice_id,
+        campaignId,
       },
     },
     events,

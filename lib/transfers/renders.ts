@@ -1,9 +1,10 @@
 import "server-only";
 import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { getSignedUrl } from "@aws-sdk/s3-request-presigner";
-import { sql } from "kysely";
+import { sql, type Transaction } from "kysely";
 import { z } from "zod";
 import { db } from "../../db";
+import type { ChannelMode, Database } from "../../db/types";
 import { channelModes } from "../audio/channel-mode";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
@@ -12,11 +13,12 @@ import { AppError } from "../http/errors";
 import { RENDER_QUEUE } from "../jobs/boss";
 import { accessCopyKey, leaseIsStale } from "../jobs/render-lease";
 import { sendInTransaction } from "../jobs/web-boss";
+import { campaignOfRender, campaignRenderStopped } from "../campaigns/progress";
 import { appendEvent } from "../provenance";
-import { lockSide } from "../sides/lifecycle";
+import { type LockedSide, lockSide } from "../sides/lifecycle";
 import { deleteObject } from "../storage/objects";
 import { s3 } from "../storage/s3";
-import { getSettings } from "../settings";
+import { getSettings, type LabSettings } from "../settings";
 import { parseStored, renderFilterRecordSchema } from "../validation/records";
 import { accessCopyBitDepthSchema, accessCopyRateSchema, renderableStatuses } from "../validation/transfers";
 
@@ -42,6 +44,26 @@ export async function requestRender(actor: SessionUser, input: unknown) {
     const side = await lockSide(trx, r.sideId);
     if (side.assigned_engineer_id !== actor.id)
       throw new AppError("forbidden", 403, "This side is not assigned to you.");
+    return queueRender(trx, actor, side, r, lab);
+  });
+}
+
+/**
+ * Queues a render of a locked side's current transfer through its current curve, on the
+ * render queue every render goes through: the render row, its job and its event in the
+ * caller's transaction. The engineer's request and a re-render campaign both come here;
+ * `extra` goes into the event (a campaign names itself).
+ */
+export async function queueRender(
+  trx: Transaction<Database>,
+  actor: { id: string },
+  side: LockedSide,
+  r: { channelMode: ChannelMode; bitDepth?: number; sampleRateHz?: number | "transfer" },
+  /** The lab's settings (lib/settings), read before the caller's transaction. */
+  lab: LabSettings,
+  extra: Record<string, unknown> = {},
+): Promise<{ renderId: string }> {
+  {
     if (!renderableStatuses.has(side.status) || !side.current_transfer_id || !side.current_curve_choice_id) {
       throw new AppError(
         "conflict",
@@ -100,10 +122,11 @@ export async function requestRender(actor: SessionUser, input: unknown) {
         channelMode: r.channelMode,
         bitDepth,
         sampleRateHz,
+        ...extra,
       },
     });
     return { renderId: row.id };
-  });
+  }
 }
 
 export async function listRenders(sideId: string) {
@@ -179,6 +202,8 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
     if (r.status !== "queued" && r.status !== "running")
       throw new AppError("conflict", 409, `The render is ${r.status}: there is nothing to cancel.`);
     const stalled = leaseIsStale({ status: r.status, heartbeatAt: r.heartbeat_at, startedAt: r.started_at });
+    // A render a re-render campaign queued: its campaign's row lock before the log's.
+    const campaign = await campaignOfRender(trx, id, { lock: true });
     await trx
       .updateTable("renders")
       .set({
@@ -195,8 +220,18 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, renderId: id, was: r.status, progress: r.progress, stalled },
+      payload: {
+        side: side.designation,
+        renderId: id,
+        was: r.status,
+        progress: r.progress,
+        stalled,
+        ...(campaign ? { campaignId: campaign.campaignId } : {}),
+      },
     });
+    // The campaign's side fails, for a retry from the campaign's page.
+    if (campaign)
+      await campaignRenderStopped(trx, id, "Its render was cancelled on the bench by the engineer.");
     return { renderId: id, sideId: side.id, status: "cancelled" as const };
   });
   // No one can record it now: an access copy a worker stored before it stopped (or before

@@ -80,12 +80,39 @@ export const createPresetSchema = z.object({
   changeNote: changeNoteSchema,
 });
 
-export const updatePresetSchema = z.object({
-  name: presetNameSchema.optional(),
-  spec: curveSpecSchema.optional(),
-  notes: cleanString().max(8000).optional(),
-  changeNote: changeNoteSchema,
-});
+export const correctionNoteSchema = cleanString()
+  .trim()
+  .min(10, "Say what was wrong with the earlier versions and on what evidence (at least a sentence).")
+  .max(4000);
+
+export const updatePresetSchema = z
+  .object({
+    name: presetNameSchema.optional(),
+    spec: curveSpecSchema.optional(),
+    notes: cleanString().max(8000).optional(),
+    changeNote: changeNoteSchema,
+    /** Earlier versions of this preset the new version corrects (values known to be wrong). */
+    corrects: z
+      .array(z.number().int("Name versions by their whole numbers.").positive("Versions start at 1."))
+      .max(500)
+      .default([]),
+    /** Required with `corrects`: what was wrong, on what evidence. */
+    correctionNote: z.preprocess((v) => (v === "" ? undefined : v), correctionNoteSchema.optional()),
+  })
+  .superRefine((v, ctx) => {
+    if (v.corrects.length && !v.correctionNote)
+      ctx.addIssue({
+        code: "custom",
+        path: ["correctionNote"],
+        message: "A correction needs a note: what was wrong, and on what evidence.",
+      });
+    if (!v.corrects.length && v.correctionNote)
+      ctx.addIssue({
+        code: "custom",
+        path: ["corrects"],
+        message: "Name the earlier versions this note corrects.",
+      });
+  });
 
 export const sampleRateSchema = z.coerce
   .number()

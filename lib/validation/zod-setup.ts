@@ -44,6 +44,9 @@ const FIELDS: Record<string, FieldWords> = {
   name: { name: "the name" },
   notes: { name: "the notes" },
   changeNote: { name: "the note on this version" },
+  corrects: { name: "the versions this one corrects", how: "as version numbers, for example 2" },
+  correctionNote: { name: "the correction note" },
+  correctingVersion: { name: "the correcting version", how: "as a whole number, for example 3" },
   // The bench
   sideIds: { name: "the sides" },
   sideId: { name: "the side" },

@@ -17,9 +17,14 @@ export default async function CurvesPage() {
           "to see its response, compare it, or save a new version with a note saying why."
         }
         actions={
-          <LinkButton href="/curves/workbench" variant="primary" data-testid="new-curve">
-            New curve
-          </LinkButton>
+          <>
+            <LinkButton href="/campaigns" data-testid="campaigns-link">
+              Re-render campaigns
+            </LinkButton>
+            <LinkButton href="/curves/workbench" variant="primary" data-testid="new-curve">
+              New curve
+            </LinkButton>
+          </>
         }
       />
       <PresetTable />

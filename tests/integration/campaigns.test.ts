@@ -326,7 +326,7 @@ describe("a re-render campaign", () => {
     const after = await api(`/api/curves/presets/${presetId}/uses`, { cookie: c.engineer });
     expect(after.body.versions.find((v: { version: number }) => v.version === 1).counts.total).toBe(0);
     expect(after.body.versions.find((v: { version: number }) => v.version === 2).counts.in_review).toBe(3);
-  });
+  }, 300_000);
 
   it("records a side it cannot render now as failed with the reason, and a retry finishes it", async () => {
     const presetId = await newPreset(`Campaign retry ${tag}`);
@@ -373,8 +373,10 @@ describe("a re-render campaign", () => {
     const failed = first.sides.find((s: { sideId: string }) => s.sideId === sideIds[1]);
     expect(failed).toMatchObject({ state: "failed", choiceId: null });
     expect(failed.error).toMatch(/already queued or running/);
-    // Side A was "rendered" before: the campaign renders it and leaves it to its engineer.
-    expect(first.sides.find((s: { sideId: string }) => s.sideId === sideIds[0]).outcome).toMatch(/engineer/);
+    // Side A had been rendered: its new access copy goes to review, as finished work.
+    expect(first.sides.find((s: { sideId: string }) => s.sideId === sideIds[0]).outcome).toMatch(
+      /sent back to review/,
+    );
 
     // The engineer cancels the stray render on the bench; then the retry goes through.
     expect(
@@ -401,7 +403,7 @@ describe("a re-render campaign", () => {
       .where("id", "=", s.current_curve_choice_id!)
       .executeTakeFirstOrThrow();
     expect(choice.preset_version).toBe(2);
-    expect(s.status).toBe("rendered");
+    expect(s.status).toBe("in_review");
     // Mailed once, at the first finish.
     expect(
       await testDb.selectFrom("campaigns").select("mailed_at").where("id", "=", id).executeTakeFirstOrThrow(),
@@ -413,7 +415,7 @@ describe("a re-render campaign", () => {
       .where("to_address", "=", "della.prior@marrowhill.example")
       .execute();
     expect(mails).toHaveLength(1);
-  });
+  }, 180_000);
 
   it("cancels the renders that have not started; the sides it reached finish, and the campaign still finishes", async () => {
     const presetId = await newPreset(`Campaign cancel ${tag}`);
@@ -447,7 +449,7 @@ describe("a re-render campaign", () => {
     }
     const retry = await api(`/api/campaigns/${id}/retry`, { cookie: c.curator, method: "POST", body: {} });
     expect(retry.status).toBe(409);
-  });
+  }, 180_000);
 });
 
 describe("who may run campaigns", () => {

@@ -112,9 +112,12 @@ export function PresetUses({ presetId, canRun }: { presetId: string; canRun: boo
     () => (data?.sides ?? []).filter((s) => version === null || s.version === version),
     [data, version],
   );
-  const sorting: SortingState = sortParam
-    ? [{ id: sortParam.replace(/^-/, ""), desc: sortParam.startsWith("-") }]
-    : [];
+  // One array per sort: a new one at every render would have the table sort again and reset its
+  // page on each render, which re-renders it, for ever.
+  const sorting: SortingState = useMemo(
+    () => (sortParam ? [{ id: sortParam.replace(/^-/, ""), desc: sortParam.startsWith("-") }] : []),
+    [sortParam],
+  );
   const selectable = (s: UseSideJson) => !!correcting && !s.runningCampaignId;
 
   const columns = useMemo(
@@ -213,6 +216,8 @@ export function PresetUses({ presetId, canRun }: { presetId: string; canRun: boo
     data: rows,
     columns,
     getRowId: (r) => r.sideId,
+    // One page: nothing to reset when the rows change.
+    autoResetPageIndex: false,
     state: { sorting, rowSelection },
     enableRowSelection: (row) => selectable(row.original),
     onRowSelectionChange: setRowSelection,

@@ -335,6 +335,7 @@ export async function runRenderJob(
         trx,
         { id: job.requestedBy, role: null },
         { id: renderId, sideId: job.sideId, transferId: job.transferId, curveChoiceId: job.choiceId },
+        campaign ? { campaignId: campaign.campaignId } : {},
       );
       // The campaign's side is done (sent back to review when it had been finished work) or failed.
       if (campaign) await campaignRenderRecorded(trx, renderId, taken);

@@ -315,6 +315,7 @@ async function supersede(
   reason: string,
   actorId: string,
   events: NewEvent[],
+  extra: Record<string, unknown> = {},
 ): Promise<void> {
   const updated = await trx
     .updateTable("renders")
@@ -330,7 +331,7 @@ async function supersede(
       subjectType: "side",
       subjectId: side.id,
       discId: side.disc_id,
-      payload: { side: side.designation, renderId, reason },
+      payload: { side: side.designation, renderId, reason, ...extra },
     });
   }
 }
@@ -483,6 +484,8 @@ export async function renderFinished(
   trx: Transaction<Database>,
   actor: StepActor,
   render: { id: string; sideId: string; transferId: string; curveChoiceId: string },
+  /** Goes into the events the render's finishing writes (a campaign's render names the campaign). */
+  extra: Record<string, unknown> = {},
 ): Promise<{ current: boolean; reason?: string }> {
   const side = await lockSide(trx, render.sideId);
   const events: NewEvent[] = [];
@@ -494,7 +497,7 @@ export async function renderFinished(
   else if (!renderableStatuses.has(side.status))
     reason = `the side had moved on (${side.status.replace("_", " ")}) when it finished`;
   if (reason) {
-    await supersede(trx, side, render.id, reason, actor.id, events);
+    await supersede(trx, side, render.id, reason, actor.id, events, extra);
     await flush(trx, events);
     return { current: false, reason };
   }
@@ -515,7 +518,7 @@ export async function renderFinished(
     actor,
     side.status === "rendered"
       ? { set }
-      : { to: "rendered", via: "render", set, payload: { renderId: render.id } },
+      : { to: "rendered", via: "render", set, payload: { renderId: render.id, ...extra } },
     events,
   );
   await flush(trx, events);
@@ -588,6 +591,7 @@ export async function campaignCurveChosen(
       "a re-render campaign chose the corrected curve",
       actor.id,
       events,
+      { campaignId },
     );
   const set: SideColumns = {
     current_curve_choice_id: choiceId,

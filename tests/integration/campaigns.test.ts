@@ -188,7 +188,7 @@ describe("a re-render campaign", () => {
     const [approvedId, reviewId, renderedId] = sideIds;
     expect((await toReview(approvedId)).status).toBe(200);
     expect((await toReview(reviewId)).status).toBe(200);
-    await fixityNow(c, discId, [approvedId]);
+    await fixityNow(c, discId, sideIds);
     const ok = await api(`/api/sides/${approvedId}/review`, {
       cookie: c.curator,
       method: "POST",

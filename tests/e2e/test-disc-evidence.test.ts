@@ -29,7 +29,7 @@ beforeAll(async () => {
   // The house test disc as measured: RIAA playback levels by scipy (IEC 60098 time constants), recording sign.
   const { db } = await runPython<{ db: number[] }>("riaa_table.py", { hz });
   points = ["hz,db", ...hz.map((f, i) => `${f},${(-db[i]).toFixed(2)}`)].join("\n");
-});
+}, 60_000);
 
 afterAll(async () => {
   await browser?.close();

@@ -183,6 +183,14 @@ async function rechooseAndRender(
     })
     .returning("id")
     .executeTakeFirstOrThrow();
+  // A test-disc measurement the old choice rested on is evidence about the disc, not the
+  // preset: the new choice keeps it as it was recorded.
+  await sql`
+    INSERT INTO curve_choice_evidence (choice_id, evidence_kind, points_kind, points, fit_parameters, fitted_spec,
+      level_offset_db, residuals, rms_db, worst_db, worst_hz, source_file_name, source_text, source_sha256)
+    SELECT ${row.id}, evidence_kind, points_kind, points, fit_parameters, fitted_spec,
+      level_offset_db, residuals, rms_db, worst_db, worst_hz, source_file_name, source_text, source_sha256
+    FROM curve_choice_evidence WHERE choice_id = ${old.id}`.execute(trx);
   const events: NewEvent[] = [
     {
       actorId: actor.id,

@@ -44,7 +44,7 @@ export function CampaignList({ presetId }: { presetId?: string }) {
   return (
     <ul className="divide-y divide-paper-edge" data-testid="campaign-list">
       {data.campaigns.map((c) => (
-        <li key={c.id} className="grid gap-2 py-3 sm:grid-cols-[1fr_14rem] sm:items-center">
+        <li key={c.id} className="grid gap-2 py-3 sm:grid-cols-[1fr_19rem] sm:items-center">
           <div className="min-w-0 space-y-0.5">
             <div className="flex flex-wrap items-center gap-2">
               <Link

@@ -6,6 +6,7 @@ import { AppError, fromZod } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { equipmentItemEditSchema, equipmentItemSchema, tipMicrometres } from "../validation/equipment";
 import { itemName } from "./describe";
+import { faultWindow, transfersWithItem } from "./recall";
 
 // The register's items. Every change is a provenance event in the transaction that makes it
 // (equipment.item_registered, equipment.item_edited with each changed field before and after).
@@ -115,10 +116,19 @@ export async function getItem(id: string) {
       .limit(20)
       .execute(),
   ]);
+  // A fault's window: the transfers made since the item's last good check, for re-transfer.
+  const withWindows = await Promise.all(
+    findings.map(async (f) => {
+      if (f.outcome !== "fault") return { ...f, window: null, transfersInDoubt: 0 };
+      const window = await faultWindow(id, f.foundOn);
+      const inDoubt = await transfersWithItem(id, { from: window.from ?? undefined, to: window.to });
+      return { ...f, window, transfersInDoubt: inDoubt.transfers.length };
+    }),
+  );
   return {
     item: { ...item, stylusTipUm: numeric(item.stylusTipUm), hoursOfUse: Number(item.hoursOfUse) },
     chains,
-    findings,
+    findings: withWindows,
     calibrations,
   };
 }

@@ -156,7 +156,7 @@ export const calibrationSchema = z
     testDisc: text("the test disc", 200).pipe(z.string().min(1, "Name the test disc as the lab names it.")),
     presetId: z.uuid().optional(),
     presetVersion: z.coerce.number().int().positive().optional(),
-    /** The expected curve when it is not a preset of the library (RIAA, for a standard test disc). */
+    /** The expected curve when it is not a preset of the library; with neither, RIAA (IEC 60098), a standard test disc's curve. */
     expectedSpec: curveSpecSchema.optional(),
     expectedName: text("the expected curve's name", 200).optional(),
     points: z
@@ -174,10 +174,6 @@ export const calibrationSchema = z
   .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), {
     path: ["presetVersion"],
     message: "Name the preset's version with the preset.",
-  })
-  .refine((v) => v.presetId !== undefined || v.expectedSpec !== undefined, {
-    path: ["presetId"],
-    message: "Choose the curve the test disc was cut with.",
   });
 
 export const findingSchema = z.object({

@@ -149,13 +149,11 @@ describe("the equipment register", () => {
 
     // 4 · The upload on the bench, with the chain and the new stylus swapped in.
     await page.goto(`${appUrl}/bench/${sideId}`);
-    await page
-      .getByTestId("upload-input")
-      .setInputFiles({
-        name: `E2E-EQ-${run} A flat.wav`,
-        mimeType: "audio/wav",
-        buffer: Buffer.from(makeWav({ seconds: 4 })),
-      });
+    await page.getByTestId("upload-input").setInputFiles({
+      name: `E2E-EQ-${run} A flat.wav`,
+      mimeType: "audio/wav",
+      buffer: Buffer.from(makeWav({ seconds: 4 })),
+    });
     await page.getByTestId("upload-measured-speed").fill("78.26");
     await page.getByTestId("upload-chain-id").selectOption(chainId);
     await page

@@ -10,3 +10,12 @@ export function ItemEditor({ item }: { item: ItemFormValues }) {
     </Reveal>
   );
 }
+
+/** "Register an item", opening the register's form for a new item. */
+export function NewItem() {
+  return (
+    <Reveal label="Register an item" testId="register-item">
+      {() => <ItemForm />}
+    </Reveal>
+  );
+}

@@ -1,8 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { hoursText, tipText } from "@/components/equipment/format";
-import { ItemForm } from "@/components/equipment/item-form";
-import { Reveal } from "@/components/equipment/reveal";
+import { NewItem } from "@/components/equipment/item-editor";
 import { Badge } from "@/components/ui/badge";
 import { LinkButton } from "@/components/ui/link-button";
 import { PageHeader, Panel } from "@/components/ui/panel";
@@ -96,9 +95,7 @@ export default async function EquipmentPage() {
         >
           {editor ? (
             <div className="mb-5">
-              <Reveal label="Register an item" testId="register-item">
-                {() => <ItemForm />}
-              </Reveal>
+              <NewItem />
             </div>
           ) : null}
           {items.length === 0 ? (

@@ -234,7 +234,11 @@ describe("the equipment register", () => {
     await screenshot(page, "equipment-item");
     await page.getByTestId("item-recall").click();
     await page.waitForURL(/\/transfers/);
-    await page.getByTestId("recall-row").first().getByText(`E2E-EQ-${run}`).waitFor();
+    await page
+      .getByTestId("recall-row")
+      .first()
+      .getByRole("link", { name: `E2E-EQ-${run}` })
+      .waitFor();
     await page.getByTestId("recall-from").fill("2020-01-01");
     await expect.poll(() => page.getByTestId("recall-row").count()).toBe(1);
     const csv = await page.request.get(

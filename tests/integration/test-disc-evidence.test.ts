@@ -46,7 +46,7 @@ beforeAll(async () => {
     "# house test disc, left channel",
     ...hz.map((f, i) => `${f},${(db[i] + 1.5).toFixed(3)}`),
   ].join("\n");
-});
+}, 60_000);
 
 afterAll(async () => {
   await testDb.destroy();

@@ -169,7 +169,9 @@ export default async function EquipmentPage() {
                             </td>
                             <td className="py-2 pr-3 text-xs">{i.chains.join(", ") || "—"}</td>
                             <td className="py-2 pr-3 text-right font-mono text-xs">
-                              {i.kind === "stylus" ? hoursText(i.hoursOfUse) : `${i.transferCount} transfers`}
+                              {i.kind === "stylus"
+                                ? hoursText(i.hoursOfUse)
+                                : `${i.transferCount} transfer${i.transferCount === 1 ? "" : "s"}`}
                             </td>
                             <td className="py-2">
                               {fault ? (

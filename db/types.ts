@@ -254,6 +254,8 @@ export interface TransfersTable {
   uploaded_by: string;
   /** The upload it came from (null only for transfers recorded before uploads were kept). */
   upload_id: string | null;
+  /** The register's chain the engineer picked (its items are in transfer_equipment). */
+  equipment_chain_id: Generated<string | null>;
   created_at: DefaultTimestamp;
 }
 
@@ -425,9 +427,104 @@ export interface SideTransitionsTable {
   to_status: SideStatus;
 }
 
+export type EquipmentKind =
+  "turntable" | "tonearm" | "cartridge" | "stylus" | "preamplifier" | "converter" | "other";
+/** A calendar date, kept as 'YYYY-MM-DD' text on the way in and out. */
+type DateText = ColumnType<string, string, string>;
+type NullableDateText = ColumnType<string | null, string | null, string | null>;
+/** numeric comes back from pg as a string. */
+type Numeric = ColumnType<string | null, number | string | null, number | string | null>;
+
+export interface EquipmentItemsTable {
+  id: Generated<string>;
+  kind: EquipmentKind;
+  make: string;
+  model: Generated<string>;
+  serial: Generated<string>;
+  in_service_on: NullableDateText;
+  out_of_service_on: NullableDateText;
+  /** A stylus's tip in µm (shown in mil too); null for every other kind. */
+  stylus_tip_um: Numeric;
+  stylus_shape: string | null;
+  notes: Generated<string>;
+  version: Generated<number>;
+  created_by: string | null;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+}
+
+export interface EquipmentChainsTable {
+  id: Generated<string>;
+  name: string;
+  notes: Generated<string>;
+  retired_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  version: Generated<number>;
+  created_by: string | null;
+  created_at: DefaultTimestamp;
+  updated_at: DefaultTimestamp;
+}
+
+export interface EquipmentChainItemsTable {
+  chain_id: string;
+  item_id: string;
+  kind: EquipmentKind;
+}
+
+/** The items a transfer was made with, as the register described them that day (append-only). */
+export interface TransferEquipmentTable {
+  transfer_id: string;
+  item_id: string;
+  kind: EquipmentKind;
+  make: string;
+  model: string;
+  serial: string;
+  stylus_tip_um: Numeric;
+  stylus_shape: string | null;
+  swapped: Generated<boolean>;
+}
+
+export interface EquipmentCalibrationsTable {
+  id: Generated<string>;
+  chain_id: string;
+  calibrated_on: DateText;
+  test_disc: string;
+  item_ids: string[];
+  expected_name: string;
+  expected_preset_id: string | null;
+  expected_preset_version: number | null;
+  expected_spec: ColumnType<StoredCurveSpec, string, never>;
+  points: ColumnType<{ hz: number; db: number }[], string, never>;
+  points_kind: "recording" | "playback";
+  fit_parameters: string[];
+  fitted_spec: ColumnType<StoredCurveSpec, string, never>;
+  fit_rms_db: number;
+  deviation_rms_db: number;
+  deviation_worst_db: number;
+  deviation_worst_hz: number;
+  notes: Generated<string>;
+  recorded_by: string;
+  created_at: DefaultTimestamp;
+}
+
+export interface EquipmentFindingsTable {
+  id: Generated<string>;
+  item_id: string;
+  found_on: DateText;
+  outcome: "fault" | "good";
+  description: string;
+  recorded_by: string;
+  created_at: DefaultTimestamp;
+}
+
 export interface Database {
   campaigns: CampaignsTable;
   campaign_sides: CampaignSidesTable;
+  equipment_items: EquipmentItemsTable;
+  equipment_chains: EquipmentChainsTable;
+  equipment_chain_items: EquipmentChainItemsTable;
+  transfer_equipment: TransferEquipmentTable;
+  equipment_calibrations: EquipmentCalibrationsTable;
+  equipment_findings: EquipmentFindingsTable;
   side_transitions: SideTransitionsTable;
   reviews: ReviewsTable;
   fixity_checks: FixityChecksTable;

@@ -5,7 +5,7 @@ export interface NavItem {
   label: string;
   action: Action;
   blurb: string;
-  icon: "home" | "shelf" | "queue" | "curve" | "bench" | "review" | "audit" | "people" | "mail";
+  icon: "home" | "shelf" | "queue" | "curve" | "bench" | "review" | "audit" | "people" | "mail" | "equipment";
 }
 
 /** The lab's places; each person sees those their role may use (the server checks again). */
@@ -38,6 +38,13 @@ export const navItems: NavItem[] = [
     action: "bench:use",
     blurb: "Choose curves, upload transfers, render",
     icon: "bench",
+  },
+  {
+    href: "/equipment",
+    label: "Equipment",
+    action: "equipment:read",
+    blurb: "Register, chains, calibrations and recall",
+    icon: "equipment",
   },
   {
     href: "/review",

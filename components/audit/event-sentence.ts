@@ -356,6 +356,18 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
           ).trim(),
         });
       if (p.objectKey) d.push({ label: "Stored as", value: String(p.objectKey), mono: true });
+      if (Array.isArray(p.equipment?.items) && p.equipment.items.length)
+        d.push({
+          label: "Made with",
+          value:
+            (p.equipment.chain?.name ? `${p.equipment.chain.name}: ` : "") +
+            p.equipment.items
+              .map(
+                (i: P) =>
+                  `${i.kind} ${[i.make, i.model].filter(Boolean).join(" ")}${i.swapped ? " (swapped in)" : ""}`,
+              )
+              .join(", "),
+        });
       const sha = shaShort(p.sha256);
       return {
         sentence:
@@ -565,6 +577,73 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
           `${p.counts?.done ?? 0} done, ${p.counts?.failed ?? 0} failed, ${p.counts?.cancelled ?? 0} cancelled.`,
         details: [],
         tone: p.counts?.failed ? "bad" : "good",
+      };
+    case "equipment.item_registered":
+      return {
+        sentence:
+          `${who} registered ${p.after?.kind ?? "an item"} ${p.item ?? ""} in the equipment register.`.replace(
+            / +\.$/,
+            ".",
+          ),
+        details: p.after?.serial ? [{ label: "Serial", value: String(p.after.serial), mono: true }] : [],
+        tone: "plain",
+      };
+    case "equipment.item_edited":
+      return {
+        sentence: `${who} corrected the register's ${p.kind ?? "item"} ${p.item ?? ""}: ${Object.keys(
+          p.after ?? {},
+        )
+          .map((k) => `${k} from ${plainValue(p.before?.[k]) ?? "—"} to ${plainValue(p.after?.[k]) ?? "—"}`)
+          .join("; ")}.`,
+        details: [],
+        tone: "plain",
+      };
+    case "equipment.chain_saved":
+      return {
+        sentence: `${who} saved the chain "${p.name ?? "?"}".`,
+        details: [
+          {
+            label: "Items",
+            value: Array.isArray(p.items) ? p.items.map((i: P) => `${i.kind} ${i.name}`).join(", ") : "—",
+          },
+        ],
+        tone: "plain",
+      };
+    case "equipment.chain_edited":
+      return {
+        sentence: `${who} changed the chain "${p.name ?? "?"}"${p.after?.retired === true ? " (retired it)" : p.after?.retired === false ? " (brought it back into use)" : ""}.`,
+        details: Array.isArray(p.after?.items)
+          ? [{ label: "Items now", value: p.after.items.map((i: P) => `${i.kind} ${i.name}`).join(", ") }]
+          : [],
+        tone: "plain",
+      };
+    case "equipment.chain_calibrated":
+      return {
+        sentence: `${who} calibrated the chain "${p.chain ?? "?"}" with ${p.testDisc ?? "a test disc"} on ${p.calibratedOn ?? "?"}.`,
+        details: [
+          { label: "Expected curve", value: String(p.expected ?? "?") },
+          {
+            label: "Deviation",
+            value: `${Number(p.deviationRmsDb).toFixed(2)} dB RMS, worst ${Number(p.deviationWorstDb).toFixed(2)} dB at ${Math.round(Number(p.deviationWorstHz))} Hz (${p.points ?? "?"} points)`,
+          },
+        ],
+        tone: "plain",
+      };
+    case "equipment.finding_recorded":
+      return {
+        sentence:
+          p.outcome === "fault"
+            ? `${who} recorded a fault in ${p.item ?? "an item"}, found ${p.foundOn ?? "?"}: ${p.description ?? ""}`
+            : `${who} inspected ${p.item ?? "an item"} on ${p.foundOn ?? "?"} and found it sound.`,
+        details: p.window
+          ? [
+              {
+                label: "Transfers in doubt",
+                value: `${p.transfersInDoubt ?? 0}, made ${p.window.from ? `from ${p.window.from}` : "since its first use"} to ${p.window.to}`,
+              },
+            ]
+          : [],
+        tone: p.outcome === "fault" ? "bad" : "good",
       };
     case "person.invited":
       return {

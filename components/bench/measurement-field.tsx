@@ -158,7 +158,7 @@ export function MeasurementField({
           </label>
         ))}
       </div>
-      <div className="grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-3">
+      <div className="grid grid-cols-2 gap-x-4 gap-y-1 text-sm">
         {FIT_CHOICES.map(([p, words]) => (
           <label key={p} className="inline-flex items-center gap-2">
             <input
@@ -183,7 +183,7 @@ export function MeasurementField({
           {problem}
         </p>
       ) : null}
-      {fit && atCut ? <MeasurementEvidence measurement={fit} chosen={atCut} /> : null}
+      {fit && atCut ? <MeasurementEvidence measurement={fit} chosen={atCut} compact /> : null}
     </fieldset>
   );
 }

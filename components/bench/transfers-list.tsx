@@ -2,6 +2,7 @@
 import { when } from "@/components/catalogue/format";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
+import { TransferEquipment } from "@/components/equipment/transfer-equipment";
 import { FileFact, Sha256Line } from "./file-facts";
 import { formatBytes, formatDuration } from "./progress-bar";
 import type { TransferJson } from "./types";
@@ -68,6 +69,7 @@ export function TransfersList({
             <FileFact k="Uploaded" v={`${t.uploadedBy} · ${when(t.createdAt)}`} wide />
             <FileFact k="Chain" v={t.chain || "—"} wide />
           </dl>
+          {t.equipment ? <TransferEquipment equipment={t.equipment} /> : null}
           <Sha256Line value={t.sha256} testId="transfer-sha256" />
         </li>
       ))}

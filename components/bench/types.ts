@@ -69,6 +69,30 @@ export interface TransferJson {
   chain: string;
   createdAt: string;
   uploadedBy: string;
+  /** The register's items it was made with (null for a transfer uploaded without a chain). */
+  equipment?: TransferEquipmentJson | null;
+}
+
+export interface TransferEquipmentJson {
+  chain: { id: string; name: string } | null;
+  items: {
+    itemId: string;
+    kind: import("@/lib/validation/equipment").EquipmentKindName;
+    make: string;
+    model: string;
+    serial: string;
+    stylusTipUm: number | null;
+    stylusShape: string | null;
+    swapped: boolean;
+  }[];
+  calibration: {
+    id: string;
+    calibratedOn: string;
+    testDisc: string;
+    deviationRmsDb: number;
+    ageDays: number;
+    itemsDiffer: boolean;
+  } | null;
 }
 
 export interface RenderJson {

@@ -11,6 +11,7 @@ import { Button } from "@/components/ui/button";
 import { cx } from "@/components/ui/cx";
 import { TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
+import { ChainPicker } from "@/components/equipment/chain-picker";
 import { useMultipartUpload } from "@/hooks/use-multipart-upload";
 import { uploadDetailsSchema } from "@/lib/validation/transfers";
 import { formatBytes, ProgressBar } from "./progress-bar";
@@ -33,6 +34,7 @@ export function UploadPanel({
   const [stylusShape, setStylusShape] = useState("");
   const [measured, setMeasured] = useState("");
   const [chain, setChain] = useState("");
+  const [equipment, setEquipment] = useState({ chainId: "", swapItemId: "" });
   const [localError, setLocalError] = useState<string | null>(null);
   const [detailErrors, setDetailErrors] = useState<Record<string, string[]>>({});
   const working = state.phase === "starting" || state.phase === "uploading" || state.phase === "checking";
@@ -74,6 +76,7 @@ export function UploadPanel({
       stylusShape,
       measuredSpeedRpm: measured,
       chain,
+      ...equipment,
     });
     if (!details.success) {
       const errors: Record<string, string[]> = {};
@@ -185,9 +188,18 @@ export function UploadPanel({
                 data-testid="upload-measured-speed"
               />
               <div className="col-span-full">
+                <ChainPicker
+                  chainId={equipment.chainId}
+                  swapItemId={equipment.swapItemId}
+                  onChange={setEquipment}
+                  disabled={working || !canUpload}
+                  errors={{ chainId: f("chainId"), swapItemId: f("swapItemId") }}
+                />
+              </div>
+              <div className="col-span-full">
                 <TextField
                   id={`${uid}-chain`}
-                  label="Transfer chain"
+                  label="Transfer chain, in words (kept as written)"
                   placeholder="Turntable → arm → cartridge → flat preamp → converter, rate/bits"
                   value={chain}
                   onChange={(e) => setChain(e.target.value)}

@@ -28,13 +28,16 @@ export function measuredPlaybackPoints(m: Pick<MeasurementJson, "pointsKind" | "
 export function MeasurementEvidence({
   measurement: m,
   chosen,
+  compact = false,
 }: {
   measurement: MeasurementJson;
   chosen: CurveSpec;
+  /** In a narrow column (the bench's curve form): the figures two by two. */
+  compact?: boolean;
 }) {
   return (
     <div className="space-y-3" data-testid="measurement-evidence">
-      <dl className="grid grid-cols-2 gap-2 text-sm sm:grid-cols-4">
+      <dl className={`grid grid-cols-2 gap-2 text-sm ${compact ? "" : "sm:grid-cols-4"}`}>
         <div className="rounded-md bg-paper-deep/60 px-3 py-2">
           <dt className="text-xs text-ink-soft">Points</dt>
           <dd className="font-mono font-semibold" data-testid="measurement-point-count">

@@ -5,6 +5,7 @@
  * check of the disc's files now (the worker reads them back within seconds).
  */
 import { FileFact, Sha256Line } from "@/components/bench/file-facts";
+import { TransferEquipment } from "@/components/equipment/transfer-equipment";
 import { formatBytes, formatDuration } from "@/components/bench/progress-bar";
 import type { RenderJson, TransferJson } from "@/components/bench/types";
 import { when } from "@/components/catalogue/format";
@@ -114,6 +115,7 @@ export function TransferCard({ t, fixity }: { t: TransferJson; fixity: FixitySta
         <FileFact k="Chain" v={t.chain || "—"} wide />
         <FileFact k="Uploaded" v={`${t.uploadedBy} · ${when(t.createdAt)}`} wide />
       </dl>
+      {t.equipment ? <TransferEquipment equipment={t.equipment} /> : null}
       <Sha256Line value={t.sha256} testId="review-transfer-sha256" />
       <FixityLine f={fixity} testId="review-transfer-fixity" />
     </article>

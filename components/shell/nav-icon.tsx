@@ -12,6 +12,8 @@ const paths: Record<NavItem["icon"], string> = {
   people:
     "M7 9a3 3 0 1 0 0-6 3 3 0 0 0 0 6zM2 17c0-3 2.5-5 5-5s5 2 5 5M14 8a2.5 2.5 0 1 0 0-5M14 12c2 0 4 1.5 4 4.5",
   mail: "M3 5h14v10H3zM3 5l7 6 7-6",
+  equipment:
+    "M2 4h16v13H2zM9 10.5m-4.5 0a4.5 4.5 0 1 0 9 0a4.5 4.5 0 1 0-9 0M9 10.5m-.8 0a.8.8 0 1 0 1.6 0a.8.8 0 1 0-1.6 0M16 6v5l-3.5 2.5",
 };
 
 export function NavIcon({ icon }: { icon: NavItem["icon"] }) {

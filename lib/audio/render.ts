@@ -118,6 +118,12 @@ export interface RenderOptions {
   unicodeText?: { project?: string; note: string };
   /** Recorded as the equalization line of the coding history. */
   equalization?: EqualizationNote;
+  /**
+   * The capture's own lines of coding history (EBU R98: the analogue source, then the A/D),
+   * from the lab's equipment register. They take the place of the plain flat-transfer line;
+   * a history the transfer's file carries itself follows them.
+   */
+  captureHistory?: string;
   /** Fraction done, 0…1, called after each chunk. */
   onProgress?: (fraction: number) => void;
   ditherSeed?: number;
@@ -397,7 +403,12 @@ function peakLimit(output: SampleEncoding, ceilingDbfs: number): number {
     : ceiling * (1 - 2 ** -24);
 }
 
-/** The access copy's coding history (EBU R98): the transfer's own lines, then the equalization. */
+/** Text as whole CR/LF-terminated lines of coding history. */
+function crlfTerminated(history: string): string {
+  return history.endsWith("\r\n") ? history : `${history.replace(/[\r\n]+$/, "")}\r\n`;
+}
+
+/** The access copy's coding history (EBU R98): the capture's lines (the register's, the file's own), then the equalization. */
 function renderCodingHistory(
   opts: RenderOptions,
   copy: {
@@ -414,8 +425,11 @@ function renderCodingHistory(
   const resampled = !speed && copy.outRate !== header.sampleRateHz;
   // Keep the transfer's own history (the capture chain) when it has one; otherwise describe it.
   const prior = header.bext?.codingHistory ?? "";
-  const priorLines =
-    prior === ""
+  const capture = opts.captureHistory ? crlfTerminated(opts.captureHistory) : "";
+  const fileLines = prior === "" ? "" : crlfTerminated(prior);
+  const priorLines = capture
+    ? capture + fileLines
+    : prior === ""
       ? formatCodingHistoryLine({
           algorithm: "PCM",
           samplingHz: header.sampleRateHz,

@@ -22,6 +22,9 @@ export const actions = {
   "audit:checkpoint": "write a checkpoint of the provenance log now",
   "fixity:run": "run fixity checks now",
   "settings:edit": "change the lab's settings",
+  "equipment:read": "see the equipment register, its chains, calibrations and recalls",
+  "equipment:edit": "keep the equipment register: items, chains and findings",
+  "equipment:calibrate": "record a calibration of a chain",
 } as const;
 
 export type Action = keyof typeof actions;
@@ -41,9 +44,28 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "audit:checkpoint",
     "fixity:run",
     "settings:edit",
+    "equipment:read",
+    "equipment:edit",
   ],
-  archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit", "catalogue:assign"],
-  engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use", "campaigns:run"],
+  archivist: [
+    "lab:enter",
+    "curves:read",
+    "catalogue:read",
+    "catalogue:edit",
+    "catalogue:assign",
+    "equipment:read",
+  ],
+  engineer: [
+    "lab:enter",
+    "curves:read",
+    "curves:edit",
+    "catalogue:read",
+    "bench:use",
+    "equipment:read",
+    "equipment:edit",
+    "equipment:calibrate",
+    "campaigns:run",
+  ],
   curator: [
     "lab:enter",
     "curves:read",
@@ -53,6 +75,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "audit:checkpoint",
     "fixity:run",
     "campaigns:run",
+    "equipment:read",
   ],
 };
 

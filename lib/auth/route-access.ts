@@ -70,6 +70,17 @@ export const routeAccess = {
   "PATCH /api/settings": "settings:edit",
   "GET /api/discs/[id]/export": "audit:read",
   "GET /api/accessions/[id]/export": "audit:read",
+  "GET /api/equipment/items": "equipment:read",
+  "POST /api/equipment/items": "equipment:edit",
+  "GET /api/equipment/items/[id]": "equipment:read",
+  "PATCH /api/equipment/items/[id]": "equipment:edit",
+  "GET /api/equipment/items/[id]/transfers": "equipment:read",
+  "POST /api/equipment/items/[id]/findings": "equipment:edit",
+  "GET /api/equipment/chains": "equipment:read",
+  "POST /api/equipment/chains": "equipment:edit",
+  "GET /api/equipment/chains/[id]": "equipment:read",
+  "PATCH /api/equipment/chains/[id]": "equipment:edit",
+  "POST /api/equipment/chains/[id]/calibrations": "equipment:calibrate",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

@@ -32,14 +32,17 @@ export interface PremisEvent {
   outcome: "success" | "failure";
   outcomeDetail?: string;
   agent: { id: string; role: string } | null;
+  /** Further agents of the event: the equipment a capture was made with, each in its role ("stylus"). */
+  otherAgents?: { id: string; role: string }[];
   objects: { type: string; value: string; role?: string }[];
 }
 
 export interface PremisAgent {
   id: string;
   name: string;
-  type: "person" | "software" | "organization";
+  type: "person" | "software" | "organization" | "hardware";
   version?: string;
+  note?: string;
 }
 
 export interface PremisRecord {
@@ -173,6 +176,12 @@ export function premisXml(record: PremisRecord): string {
       p(a, "linkingAgentIdentifierValue", e.agent.id);
       p(a, "linkingAgentRole", e.agent.role);
     }
+    for (const other of e.otherAgents ?? []) {
+      const a = p(ev, "linkingAgentIdentifier");
+      p(a, "linkingAgentIdentifierType", "Rillbook agent");
+      p(a, "linkingAgentIdentifierValue", other.id);
+      p(a, "linkingAgentRole", other.role);
+    }
     for (const o of e.objects) {
       const l = p(ev, "linkingObjectIdentifier");
       p(l, "linkingObjectIdentifierType", o.type);
@@ -189,6 +198,7 @@ export function premisXml(record: PremisRecord): string {
     p(ag, "agentName", a.name);
     p(ag, "agentType", a.type, { authority: "agentType" });
     if (a.version) p(ag, "agentVersion", a.version);
+    if (a.note) p(ag, "agentNote", a.note);
   }
   return root.end({ prettyPrint: true });
 }

@@ -2,8 +2,10 @@ import "server-only";
 import { sql } from "kysely";
 import { db } from "../../db";
 import { curveChoiceName } from "../curves";
+import { itemText } from "../equipment/describe";
 import { readDisc } from "../catalogue/records";
 import { env } from "../env";
+import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
 import { AppError } from "../http/errors";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { softwareName } from "../version";
@@ -200,6 +202,26 @@ export async function discRecord(discId: string) {
       .orderBy("e.seq")
       .execute(),
   ]);
+  // The items each transfer was made with (the register's chain) and that chain's latest calibration then.
+  const equipment = await equipmentOfTransfers(
+    db,
+    transfers.map((t) => t.id),
+  );
+  const transfersWithEquipment = await Promise.all(
+    transfers.map(async (t) => {
+      const e = equipment.get(t.id);
+      const day = new Date(t.createdAt).toISOString().slice(0, 10);
+      const calibration = e?.chain
+        ? await latestCalibration(
+            db,
+            e.chain.id,
+            day,
+            e.items.map((i) => i.itemId),
+          )
+        : null;
+      return { ...t, equipment: e ? { ...e, calibration } : null };
+    }),
+  );
   return {
     exportedAt: new Date().toISOString(),
     exportedBy: softwareName(),
@@ -212,7 +234,7 @@ export async function discRecord(discId: string) {
       transferSpeedRpm: Number(c.transferSpeedRpm),
       spec: parseStored(storedCurveSpecSchema, c.spec, { table: "curve_choices", id: c.id, column: "spec" }),
     })),
-    transfers,
+    transfers: transfersWithEquipment,
     // Every access copy made, each marked superseded or not: only one made from the
     // approved transfer and curve is the side's access copy.
     accessCopies: renders.map((r) => ({
@@ -370,18 +392,38 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
             ]),
           );
           break;
-        case "side.transfer_accepted":
-          events.push(
-            ev(
-              "capture",
-              `Flat (unequalized) transfer accepted after size, SHA-256 and header checks; stylus ` +
-                `${p.stylusSize || "?"} ${p.stylusShape || ""}; chain: ${p.chain || "not given"}`,
-              [...entity, { type: "Rillbook object key", value: p.objectKey, role: "outcome" }],
-              "success",
-              `SHA-256 ${p.sha256}`,
-            ),
+        case "side.transfer_accepted": {
+          // The register's items the transfer was made with are agents of the capture (PREMIS agentType "hardware").
+          const used = r.transfers.find((t) => t.id === p.transferId)?.equipment ?? null;
+          for (const i of used?.items ?? [])
+            if (!agents.has(`equipment:${i.itemId}`))
+              agents.set(`equipment:${i.itemId}`, {
+                id: `equipment:${i.itemId}`,
+                name: itemText(i),
+                type: "hardware",
+                note: `${i.kind}${i.serial ? `, serial ${i.serial}` : ""}`,
+              });
+          const capture = ev(
+            "capture",
+            `Flat (unequalized) transfer accepted after size, SHA-256 and header checks; stylus ` +
+              `${p.stylusSize || "?"} ${p.stylusShape || ""}; chain: ${p.chain || "not given"}` +
+              (used
+                ? `; made with ${used.chain ? `the register's chain ${used.chain.name}: ` : ""}` +
+                  used.items
+                    .map((i) => `${i.kind} ${itemText(i)}${i.swapped ? " (swapped in)" : ""}`)
+                    .join(", ")
+                : ""),
+            [...entity, { type: "Rillbook object key", value: p.objectKey, role: "outcome" }],
+            "success",
+            `SHA-256 ${p.sha256}`,
           );
+          capture.otherAgents = (used?.items ?? []).map((i) => ({
+            id: `equipment:${i.itemId}`,
+            role: i.kind,
+          }));
+          events.push(capture);
           break;
+        }
         case "side.rendered":
           events.push(
             ev(

@@ -19,6 +19,8 @@ import {
 } from "../curves";
 import { env } from "../env";
 import { campaignOfRender, campaignRenderRecorded, campaignRenderStopped } from "../campaigns/progress";
+import { captureCodingHistory } from "../equipment/describe";
+import { equipmentOfTransfers } from "../equipment/transfer-equipment";
 import { appendEvent } from "../provenance";
 import { lockSide, renderFinished } from "../sides/lifecycle";
 import { parseStored, type StoredRenderFilter, storedCurveSpecSchema } from "../validation/records";
@@ -82,6 +84,7 @@ export async function runRenderJob(
       "t.object_key as transferKey",
       "t.sha256 as transferSha256",
       "t.sample_rate_hz as sampleRateHz",
+      "t.measured_speed_rpm as measuredSpeedRpm",
       "c.id as choiceId",
       "c.spec",
       "c.correct_speed as correctSpeed",
@@ -187,6 +190,17 @@ export async function runRenderJob(
     const description = `${job.shelfMark} side ${job.designation}: ${[job.labelName, job.catalogueNumber].filter(Boolean).join(" ")}. Equalized access copy.`;
     const source = await objectSource(job.transferKey);
     const header = await readWavHeader(source);
+    // The items the transfer was made with (the register's chain): the analogue-source and A/D lines.
+    const equipment = (await equipmentOfTransfers(db, [job.transferId])).get(job.transferId);
+    const captureHistory = equipment?.items.length
+      ? captureCodingHistory(equipment.items, {
+          sampleRateHz: header.sampleRateHz,
+          bitsPerSample: header.bitsPerSample,
+          channels: header.channels,
+          encoding: header.format,
+          measuredSpeedRpm: job.measuredSpeedRpm,
+        })
+      : undefined;
     let lastWrite = 0;
     // The render's own creation time, not the clock: a render taken up again after its
     // worker died writes the same bytes under the same key.
@@ -210,6 +224,7 @@ export async function runRenderJob(
         timeReference: header.bext?.timeReference ?? 0,
       },
       unicodeText: { project: env().LAB_NAME, note: description },
+      captureHistory,
       // The curve as chosen (levelled at its own reference; the speed correction is its own line item).
       equalization: {
         curve: curveText(speedCorrection ? resolveCurve(spec) : curve),

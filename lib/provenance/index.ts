@@ -4,7 +4,8 @@ import type { Database } from "../../db/types";
 import { type ChainedContent, eventHash, genesisHash } from "./chain";
 import { type CheckpointRead, readCheckpointObjects, type StoredCheckpoint } from "./checkpoint-store";
 
-export type SubjectType = "person" | "accession" | "disc" | "side" | "preset" | "import" | "lab" | "campaign";
+export type SubjectType =
+  "person" | "accession" | "disc" | "side" | "preset" | "import" | "lab" | "equipment" | "chain" | "campaign";
 
 export interface NewEvent {
   actorId: string | null;

@@ -5,6 +5,7 @@ import { sql, type Transaction } from "kysely";
 import { z } from "zod";
 import { db } from "../../db";
 import type { ChannelMode, Database } from "../../db/types";
+import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
 import { channelModes } from "../audio/channel-mode";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
@@ -242,8 +243,9 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
   return { renderId: id, status: cancelled.status };
 }
 
+/** A side's transfers, newest first, each with the register's items it was made with and its chain's latest calibration then. */
 export async function listTransfers(sideId: string) {
-  return db
+  const transfers = await db
     .selectFrom("transfers as t")
     .innerJoin("users as u", "u.id", "t.uploaded_by")
     .select([
@@ -269,6 +271,26 @@ export async function listTransfers(sideId: string) {
     .where("t.side_id", "=", sideId)
     .orderBy("t.created_at", "desc")
     .execute();
+  const equipment = await equipmentOfTransfers(
+    db,
+    transfers.map((t) => t.id),
+  );
+  return Promise.all(
+    transfers.map(async (t) => {
+      const e = equipment.get(t.id);
+      if (!e) return { ...t, equipment: null };
+      const day = new Date(t.createdAt).toISOString().slice(0, 10);
+      const calibration = e.chain
+        ? await latestCalibration(
+            db,
+            e.chain.id,
+            day,
+            e.items.map((i) => i.itemId),
+          )
+        : null;
+      return { ...t, equipment: { ...e, calibration } };
+    }),
+  );
 }
 
 /** The download is named from stored text (a shelf mark, an engineer's file name): made safe for a header whatever it holds. */

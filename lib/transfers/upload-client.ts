@@ -35,6 +35,9 @@ export interface UploadDetails {
   stylusShape: string;
   measuredSpeedRpm?: number;
   chain: string;
+  /** The register's chain, and the one item swapped in for this transfer. */
+  chainId?: string;
+  swapItemId?: string;
 }
 
 export interface AcceptedTransfer {

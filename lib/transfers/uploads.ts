@@ -16,6 +16,7 @@ import { readWavHeader, WavError } from "../audio";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
 import { AppError, fromZod } from "../http/errors";
+import { recordTransferEquipment } from "../equipment/transfer-equipment";
 import { appendEvent } from "../provenance";
 import { lockSide, transferAccepted } from "../sides/lifecycle";
 import { storeFailure } from "../storage/errors";
@@ -655,8 +656,15 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
           chain: c.chain,
           uploaded_by: actor.id,
         })
-        .returning("id")
+        .returning(["id", sql<string>`to_char(created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD')`.as("day")])
         .executeTakeFirstOrThrow();
+      // The register's chain (and the one item swapped in): the items this transfer was made with, kept as they stand today.
+      const equipment = await recordTransferEquipment(trx, {
+        transferId: row.id,
+        chainId: c.chainId,
+        swapItemId: c.swapItemId,
+        day: row.day,
+      });
       const technical = {
         container: header.container,
         encoding: header.format,
@@ -686,6 +694,23 @@ export async function completeUpload(actor: SessionUser, input: unknown) {
           stylusShape: c.stylusShape,
           measuredSpeedRpm: c.measuredSpeedRpm ?? null,
           chain: c.chain,
+          ...(equipment
+            ? {
+                equipment: {
+                  chain: equipment.chain,
+                  items: equipment.items.map((i) => ({
+                    id: i.itemId,
+                    kind: i.kind,
+                    make: i.make,
+                    model: i.model,
+                    serial: i.serial,
+                    stylusTipUm: i.stylusTipUm,
+                    stylusShape: i.stylusShape,
+                    swapped: i.swapped,
+                  })),
+                },
+              }
+            : {}),
           ...(twins.length
             ? {
                 sameFileAs: twins.map((t) => ({

@@ -2,6 +2,7 @@ import "./zod-setup";
 import { z } from "zod";
 import type { SideStatusName } from "./catalogue";
 import { curveSpecSchema, fitParametersSchema } from "./curves";
+import { uploadEquipmentSchema } from "./equipment";
 import { emptyFileMessage } from "./text";
 import { readNumber } from "./zod-setup";
 
@@ -196,6 +197,8 @@ export const uploadDetailsSchema = z.object({
       .optional(),
   ),
   chain: z.string().trim().max(4000, "Use at most 4000 characters for the transfer chain.").default(""),
+  /** The register's chain this transfer was made with, and the one item swapped in for it (lib/equipment). */
+  ...uploadEquipmentSchema.shape,
 });
 export type UploadDetailsInput = z.input<typeof uploadDetailsSchema>;
 

@@ -3,6 +3,7 @@ import type { Database } from "../../db/types";
 import { hashPassword } from "../../lib/auth/password";
 import { demoAccounts } from "./demo-accounts";
 import { seedCatalogue } from "./demo-catalogue";
+import { seedEquipment } from "./demo-equipment";
 import { seedPresets } from "./demo-presets";
 
 /**
@@ -73,5 +74,6 @@ export async function seed(
   const idOf = (role: (typeof demoAccounts)[number]["role"]) =>
     userIds.get(demoAccounts.find((a) => a.role === role)!.email) ?? null;
   const { discsAdded } = await seedCatalogue(db, idOf("archivist"), idOf("engineer"));
+  await seedEquipment(db, idOf("engineer"));
   return { usersAdded, presetsAdded: newPresets.length, discsAdded };
 }

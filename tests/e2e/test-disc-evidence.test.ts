@@ -62,10 +62,15 @@ describe("test-disc evidence in the browser", () => {
     await form
       .getByTestId("choice-rationale")
       .fill("The house frequency test disc, measured on chain 2, sits on the RIAA curve.");
-    await form.getByTestId("record-choice").click();
-    await form.getByTestId("choice-saved").waitFor();
-    await field.scrollIntoViewIfNeeded().catch(() => undefined);
+    await field.scrollIntoViewIfNeeded();
     await screenshot(page, "bench-test-disc");
+    await form.getByTestId("record-choice").click();
+    // The form starts afresh on the recorded choice; the history lists it.
+    await page
+      .getByTestId("choice-history")
+      .getByText(/Test-disc measurement/)
+      .first()
+      .waitFor();
     await context.close();
 
     const recorded = (await api(`/api/sides/${sideId}/curve-choices`, { cookie: c.engineer })).body

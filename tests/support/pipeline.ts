@@ -179,7 +179,7 @@ export async function uploadTransfer(
   sideId: string,
   bytes: Uint8Array,
   name: string,
-  opts: { sha256?: string; confirmDuplicate?: boolean } = {},
+  opts: { sha256?: string; confirmDuplicate?: boolean; details?: Record<string, unknown> } = {},
 ) {
   const { uploadId, partSize, urls, key } = await startUpload(c.engineer, sideId, name, bytes.length);
   const parts = await sendParts(bytes, partSize, urls);
@@ -196,6 +196,7 @@ export async function uploadTransfer(
       sha256,
       bytes: bytes.length,
       ...transferDetails,
+      ...opts.details,
       confirmDuplicate: opts.confirmDuplicate ?? true,
     },
   });

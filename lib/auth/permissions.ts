@@ -21,6 +21,7 @@ export const actions = {
   "audit:checkpoint": "write a checkpoint of the provenance log now",
   "fixity:run": "run fixity checks now",
   "settings:edit": "change the lab's settings",
+  "packages:deliver": "write BagIt packages into the delivery bucket",
 } as const;
 
 export type Action = keyof typeof actions;
@@ -40,6 +41,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "audit:checkpoint",
     "fixity:run",
     "settings:edit",
+    "packages:deliver",
   ],
   archivist: ["lab:enter", "curves:read", "catalogue:read", "catalogue:edit", "catalogue:assign"],
   engineer: ["lab:enter", "curves:read", "curves:edit", "catalogue:read", "bench:use"],
@@ -51,6 +53,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "audit:read",
     "audit:checkpoint",
     "fixity:run",
+    "packages:deliver",
   ],
 };
 

@@ -64,6 +64,15 @@ export const routeAccess = {
   "PATCH /api/settings": "settings:edit",
   "GET /api/discs/[id]/export": "audit:read",
   "GET /api/accessions/[id]/export": "audit:read",
+  "GET /api/discs/[id]/label-images": "catalogue:read",
+  "POST /api/discs/[id]/label-images": "catalogue:edit",
+  "POST /api/label-images/[id]/complete": "catalogue:edit",
+  "GET /api/label-images/[id]/thumbnail": "catalogue:read",
+  "GET /api/label-images/[id]/download": "catalogue:read",
+  "GET /api/discs/[id]/deliveries": "audit:read",
+  "POST /api/discs/[id]/deliveries": "packages:deliver",
+  "GET /api/accessions/[id]/deliveries": "audit:read",
+  "POST /api/accessions/[id]/deliveries": "packages:deliver",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

@@ -340,6 +340,7 @@ describe("a payload file whose bytes no longer match its record", () => {
       return d?.state === "failed" ? d : undefined;
     });
     expect(failed.error).toMatch(/no longer matches its record/);
+    expect(failed.prefix).toMatch(new RegExp(`^delivery/${shelf}-bag-\\d{8}T\\d{6}Z/$`));
     const listed = await testBucketClient().send(
       new ListObjectsV2Command({ Bucket: "rillbook", Prefix: failed.prefix }),
     );

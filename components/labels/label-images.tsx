@@ -80,7 +80,7 @@ export function LabelImages({
   const all = list.data?.labelImages ?? [];
   const shown = onlySideId ? all.filter((i) => i.kind === "sleeve" || i.sideId === onlySideId) : all;
 
-  const add = async () => {
+  const add = async (form: HTMLFormElement) => {
     if (!file) return;
     setBusy(true);
     setSaid(null);
@@ -102,8 +102,11 @@ export function LabelImages({
         body: JSON.stringify({ sha256 }),
       });
       await queryClient.invalidateQueries({ queryKey: ["label-images", discId] });
+      // The disc's timeline shows the new event.
+      void queryClient.invalidateQueries({ queryKey: ["disc-events", discId] });
       setSaid({ ok: true, text: `“${file.name}” is stored with its SHA-256 and a thumbnail.` });
       setFile(null);
+      form.reset();
     } catch (err) {
       setSaid({ ok: false, text: err instanceof Error ? err.message : String(err) });
     } finally {
@@ -157,7 +160,7 @@ export function LabelImages({
           className="space-y-3 border-t border-paper-edge pt-4"
           onSubmit={(e) => {
             e.preventDefault();
-            void add();
+            void add(e.currentTarget);
           }}
           data-testid="label-image-form"
         >

@@ -208,6 +208,25 @@ export interface CurveChoicesTable {
   chosen_at: DefaultTimestamp;
 }
 
+/** The test-disc measurement a curve choice rests on, with the server's fit of it (append-only). */
+export interface CurveChoiceEvidenceTable {
+  choice_id: string;
+  evidence_kind: Generated<"test_disc">;
+  points_kind: "recording" | "playback";
+  points: ColumnType<{ hz: number; db: number }[], string, never>;
+  fit_parameters: string[];
+  fitted_spec: ColumnType<StoredCurveSpec, string, never>;
+  level_offset_db: number;
+  residuals: ColumnType<{ hz: number; db: number; modelDb: number; residualDb: number }[], string, never>;
+  rms_db: number;
+  worst_db: number;
+  worst_hz: number;
+  source_file_name: string | null;
+  source_text: string | null;
+  source_sha256: string | null;
+  created_at: DefaultTimestamp;
+}
+
 export interface TransfersTable {
   id: Generated<string>;
   side_id: string;
@@ -424,6 +443,7 @@ export interface Database {
   chain_checkpoints: ChainCheckpointsTable;
   lab_settings: LabSettingsTable;
   curve_choices: CurveChoicesTable;
+  curve_choice_evidence: CurveChoiceEvidenceTable;
   transfers: TransfersTable;
   uploads: UploadsTable;
   renders: RendersTable;

@@ -32,6 +32,7 @@ import {
   transferSpeedSchema,
 } from "@/lib/validation/transfers";
 import { PitchReference } from "./pitch-reference";
+import { emptyMeasurement, type MeasurementDraft, MeasurementField } from "./measurement-field";
 import type { CurveChoiceJson, EvidenceKind, SideWithDisc } from "./types";
 
 type Mode = "keep" | "set" | "remove";
@@ -137,6 +138,7 @@ export function CurveChoiceForm({
   const [rationale, setRationale] = useState("");
   const [evidenceKind, setEvidenceKind] = useState<EvidenceKind | "">("");
   const [evidence, setEvidence] = useState("");
+  const [measurement, setMeasurement] = useState<MeasurementDraft>(emptyMeasurement);
   const [applyTo, setApplyTo] = useState<"side" | "disc" | "set">(extraSideIds.length ? "set" : "side");
   const [busy, setBusy] = useState(false);
   const [serverError, setServerError] = useState<{
@@ -230,6 +232,7 @@ export function CurveChoiceForm({
         rationale,
         evidenceKind: evidenceKind || undefined,
         evidence,
+        ...(evidenceKind === "test_disc" ? { measurement } : {}),
       };
       const r = await fetchJson<{ choices: unknown[] }>("/api/curve-choices", {
         method: "POST",
@@ -238,6 +241,7 @@ export function CurveChoiceForm({
       setSaved(`Recorded for ${r.choices.length === 1 ? "this side" : `${r.choices.length} sides`}.`);
       setRationale("");
       setEvidence("");
+      setMeasurement(emptyMeasurement);
       for (const key of [["curve-choices", side.id], ["side", side.id], ["queue"]])
         void queryClient.invalidateQueries({ queryKey: key });
     } catch (err) {
@@ -588,6 +592,14 @@ export function CurveChoiceForm({
           </option>
         ))}
       </SelectField>
+      {evidenceKind === "test_disc" ? (
+        <MeasurementField
+          value={measurement}
+          onChange={setMeasurement}
+          chosen={effective.spec}
+          errors={fieldErrsUnder("measurement")}
+        />
+      ) : null}
       <FieldShell
         id={`${uid}-evidence`}
         label="Evidence (optional)"

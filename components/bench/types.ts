@@ -31,6 +31,23 @@ export interface CurveChoiceJson {
   evidence: string;
   chosenAt: string;
   chosenBy: string;
+  /** The test-disc measurement the choice rests on, as the server fitted it; null for other evidence. */
+  measurement?: MeasurementJson | null;
+}
+
+/** A test-disc measurement kept with a curve choice (lib/transfers/test-disc-evidence.ts). */
+export interface MeasurementJson {
+  pointsKind: "recording" | "playback";
+  points: { hz: number; db: number }[];
+  fitParameters: string[];
+  fittedSpec: CurveSpec;
+  levelOffsetDb: number;
+  residuals: { hz: number; db: number; modelDb: number; residualDb: number }[];
+  rmsDb: number;
+  worstDb: number;
+  worstHz: number;
+  sourceFileName: string | null;
+  sourceSha256: string | null;
 }
 
 export interface TransferJson {

@@ -298,7 +298,7 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
           ))}
         </tbody>
       </table>
-      <ResidualPlot result={result} />
+      <ResidualPlot residuals={result.residuals} rmsDb={result.rmsDb} />
       <div className="flex flex-wrap items-center gap-3">
         <Button type="button" variant="secondary" onClick={onLoad} data-testid="fit-load">
           Load the fitted curve into the editor
@@ -311,17 +311,26 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
   );
 }
 
-function ResidualPlot({ result }: { result: FitResult }) {
+/** The residual at each point of a fit (table − fitted curve), as stems around 0 dB. */
+export function ResidualPlot({
+  residuals,
+  rmsDb,
+  caption = "Residual at each point, table − fitted curve (dB)",
+}: {
+  residuals: FitResult["residuals"];
+  rmsDb: number;
+  caption?: string;
+}) {
   const width = 520;
   const height = 150;
   const m = { top: 10, right: 12, bottom: 24, left: 50 };
   const w = width - m.left - m.right;
   const h = height - m.top - m.bottom;
-  const hz = result.residuals.map((r) => r.hz);
+  const hz = residuals.map((r) => r.hz);
   const lo = Math.min(10, ...hz);
   const hi = Math.max(30_000, ...hz);
   const x = scaleLog().domain([lo, hi]).range([0, w]);
-  const peak = Math.max(0.1, ...result.residuals.map((r) => Math.abs(r.residualDb)));
+  const peak = Math.max(0.1, ...residuals.map((r) => Math.abs(r.residualDb)));
   const y = scaleLinear()
     .domain([-peak * 1.15, peak * 1.15])
     .range([h, 0])
@@ -332,19 +341,17 @@ function ResidualPlot({ result }: { result: FitResult }) {
   const digits = peak < 0.5 ? 2 : 1;
   return (
     <figure>
-      <figcaption className="mb-1 text-xs font-medium text-ink-soft">
-        Residual at each point, table − fitted curve (dB)
-      </figcaption>
+      <figcaption className="mb-1 text-xs font-medium text-ink-soft">{caption}</figcaption>
       <svg
         viewBox={`0 0 ${width} ${height}`}
         className="h-auto w-full"
         role="img"
-        aria-label={`Residuals of the fit, RMS ${result.rmsDb.toFixed(3)} dB`}
+        aria-label={`Residuals of the fit, RMS ${rmsDb.toFixed(3)} dB`}
         data-testid="fit-residual-plot"
       >
         <g transform={`translate(${m.left},${m.top})`}>
           <SmallPlotGrid x={x} y={y} width={w} height={h} frequencyTicks={ticks} digits={digits} />
-          {result.residuals.map((r, i) => (
+          {residuals.map((r, i) => (
             <g key={i}>
               <line
                 x1={x(r.hz)}

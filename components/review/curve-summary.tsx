@@ -8,6 +8,7 @@ import { useMemo } from "react";
 import type { Candidate, CurveChoiceJson } from "@/components/bench/types";
 import { when } from "@/components/catalogue/format";
 import { formatDb, formatHz, formatNumber } from "@/components/curves/plot-format";
+import { MeasurementEvidence } from "@/components/curves/measurement-evidence";
 import { ResponsePlot } from "@/components/curves/response-plot";
 import { cornerText } from "@/components/audit/event-sentence";
 import { CORNER_NAMES, type CornerName, curveChoiceName, type CurveSpec, describeCurve } from "@/lib/curves";
@@ -152,6 +153,20 @@ export function CurveSummary({
         </p>
       )}
       <ResponsePlot curves={compared} height={320} showPhase={false} />
+      {current.measurement ? (
+        <section aria-labelledby="measurement-heading" className="space-y-2 border-t border-paper-edge pt-4">
+          <h3 id="measurement-heading" className="text-sm font-semibold">
+            The test-disc measurement this choice rests on
+          </h3>
+          <MeasurementEvidence measurement={current.measurement} chosen={atCutSpeed(current.spec)} />
+        </section>
+      ) : null}
     </div>
   );
+}
+
+/** The curve as it stands at the disc's cut speed: a test disc is measured at its own speed. */
+function atCutSpeed(spec: CurveSpec): CurveSpec {
+  const { speedRatio: _speedRatio, ...atCut } = spec;
+  return atCut;
 }

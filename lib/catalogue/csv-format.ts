@@ -2,16 +2,16 @@
 // database and no framework, so the importer, the exporter and the unit tests share it.
 // The importer on the server (lib/catalogue/csv.ts) adds what needs the database:
 // accession identifiers and shelf marks already in the catalogue.
-import { CsvError, parse } from "csv-parse/sync";
+import Papa from "papaparse";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
 import { valueText } from "@/lib/value-text";
 import {
-  createDiscSchema,
   type DiscInput,
   discFieldsSchema,
   discFormats,
   formatLabels,
+  maxSidesPerDisc,
   sideInputSchema,
   type StoredDisc,
   type StoredSide,
@@ -19,6 +19,7 @@ import {
   storedSideFields,
   toStoredDisc,
   toStoredSide,
+  tooManySidesMessage,
 } from "../validation/catalogue";
 import { emptyFileMessage } from "../validation/text";
 
@@ -234,25 +235,27 @@ export class CsvFormatError extends Error {
   }
 }
 
-function csvParseProblem(e: CsvError): ImportError {
-  const row = ((e as unknown as { records?: number }).records ?? 0) + 1;
-  const line = (e as unknown as { lines?: number }).lines;
-  const where = line ? ` (text line ${line})` : "";
+/** A quoting fault the parser found, as the row and text line a person can find it on. */
+function csvParseProblem(e: Papa.ParseError, text: string): ImportError {
+  const row = (e.row ?? 0) + 1;
+  let line = 1;
+  for (let i = text.indexOf("\n"); i !== -1 && i < (e.index ?? 0); i = text.indexOf("\n", i + 1)) line++;
+  const where = ` (text line ${line})`;
   switch (e.code) {
-    case "CSV_QUOTE_NOT_CLOSED":
+    case "MissingQuotes":
       return {
         row,
         column: "",
         message: `A quoted field opened in this row is never closed${where}. Check for a stray double quote.`,
       };
-    case "CSV_INVALID_CLOSING_QUOTE":
+    case "InvalidQuotes":
       return {
         row,
         column: "",
         message: `A double quote inside a field is not doubled${where}. Write "" for a quote inside a quoted field.`,
       };
     default:
-      return { row, column: "", message: `This row cannot be read as CSV${where}: ${e.message}` };
+      return { row, column: "", message: `This row cannot be read as CSV${where}: ${e.message}.` };
   }
 }
 
@@ -267,18 +270,16 @@ const isBlank = (cells: string[]) => cells.every((c) => c.trim() === "");
 export function readCatalogueCsv(text: string): ReadSheet {
   const delimiter = detectDelimiter(text);
   const none = { rows: [], columns: [], delimiter };
-  let records: string[][];
-  try {
-    records = parse(text, {
-      bom: true,
-      delimiter,
-      relax_column_count: true,
-      skip_empty_lines: false,
-    });
-  } catch (e) {
-    if (e instanceof CsvError) return { ...none, errors: [csvParseProblem(e)] };
-    throw e;
-  }
+  // RFC 4180 fields: quoted fields may hold separators, doubled quotes and line breaks.
+  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+  const parsed = Papa.parse<string[]>(body, {
+    delimiter,
+    quoteChar: '"',
+    escapeChar: '"',
+    skipEmptyLines: false,
+  });
+  if (parsed.errors.length) return { ...none, errors: [csvParseProblem(parsed.errors[0], body)] };
+  const records = parsed.data;
   // A file that ends in blank lines has no rows there.
   while (records.length && isBlank(records[records.length - 1])) records.pop();
   if (!records.length)
@@ -359,6 +360,7 @@ export function readCatalogueCsv(text: string): ReadSheet {
       errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }],
     };
 
+  const columnAt = catalogueColumns.map((name) => [name, at.get(name) ?? -1] as const);
   const rows: SheetRow[] = [];
   for (let i = 1; i <= dataRows; i++) {
     const cells = records[i];
@@ -374,12 +376,8 @@ export function readCatalogueCsv(text: string): ReadSheet {
       });
       continue;
     }
-    const values = Object.fromEntries(
-      catalogueColumns.map((name) => [
-        name,
-        at.has(name) ? unprotectFormula(cells[at.get(name)!] ?? "") : "",
-      ]),
-    ) as Record<CatalogueColumn, string>;
+    const values = {} as Record<CatalogueColumn, string>;
+    for (const [name, i] of columnAt) values[name] = i < 0 ? "" : unprotectFormula(cells[i] ?? "");
     rows.push({ row, values });
   }
   return { rows, errors, columns: catalogueColumns.filter((c) => at.has(c)), delimiter };
@@ -514,6 +512,12 @@ function fillFromExisting(
   return out;
 }
 
+/** Whether two rows hold the same disc cells (the side columns aside). */
+function sameDiscCells(a: Record<CatalogueColumn, string>, b: Record<CatalogueColumn, string>): boolean {
+  for (const c of discColumnNames) if (a[c] !== b[c]) return false;
+  return true;
+}
+
 function versionOf(cell: string): number | null | "bad" {
   const v = cell.trim();
   if (v === "") return null;
@@ -543,6 +547,14 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
   const checked: CheckedRow[] = [];
 
   const present = new Set<string>(options.columns ?? catalogueColumns);
+  let previous:
+    | {
+        key: string;
+        accessionId: string | undefined;
+        values: Record<CatalogueColumn, string>;
+        disc: ReturnType<typeof discFieldsSchema.safeParse>;
+      }
+    | undefined;
   for (const { row, values: cells } of sheet) {
     const rowErrors: ImportError[] = [];
     const known = options.existing?.(cells.shelf_mark.trim().toLowerCase());
@@ -574,7 +586,16 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
             "No accession given: fill in the accession column, or choose an accession for rows that leave it empty.",
         });
     }
-    const disc = discFieldsSchema.safeParse(discCandidate(values, accessionId));
+    // A disc's later rows repeat its columns: the same cells (and accession) give the same result.
+    const key = values.shelf_mark.trim().toLowerCase();
+    const disc =
+      previous &&
+      previous.key === key &&
+      previous.accessionId === accessionId &&
+      sameDiscCells(previous.values, values)
+        ? previous.disc
+        : discFieldsSchema.safeParse(discCandidate(values, accessionId));
+    previous = { key, accessionId, values, disc };
     if (!disc.success) {
       // The accession is reported above in words a person can act on, not as a bad id.
       rowErrors.push(
@@ -591,7 +612,7 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
     errors.push(...rowErrors);
     checked.push({
       row,
-      key: values.shelf_mark.trim().toLowerCase(),
+      key,
       version: version === "bad" ? null : version,
       accessionIdentifier: identifier,
       fields: disc.success ? disc.data : undefined,
@@ -688,27 +709,13 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
     }
     // A repeated shelf mark is not a disc to add: the error above says why.
     if (!head.fields || repeated.has(group[0].row)) continue;
-    const whole = createDiscSchema.safeParse({ ...head.fields, sides });
-    if (!whole.success) {
-      for (const issue of whole.error.issues) {
-        const sideIndex = issue.path[0] === "sides" && typeof issue.path[1] === "number" ? issue.path[1] : -1;
-        const sidesIssue = issue.path[0] === "sides";
-        const row = sidesIssue
-          ? sides[sideIndex]
-            ? sideRow.get(sides[sideIndex].designation.toLowerCase())!
-            : group[group.length - 1].row
-          : head.row;
-        errors.push({
-          row,
-          column: sidesIssue ? "side" : (columnOfDiscField.get(String(issue.path[0])) ?? ""),
-          message: issue.message,
-        });
-      }
-    }
+    // The rows' fields and sides are checked above; a whole disc adds only the number of sides.
+    if (sides.length > maxSidesPerDisc)
+      errors.push({ row: group[group.length - 1].row, column: "side", message: tooManySidesMessage });
     discs.push({
       row: head.row,
       rows: group.map((r) => r.row),
-      disc: whole.success ? whole.data : { ...head.fields, sides },
+      disc: { ...head.fields, sides },
       accessionIdentifier: head.accessionIdentifier,
       version: head.version,
     });
@@ -761,6 +768,84 @@ function storedCellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
   let cells = storedCells.get(d);
   if (!cells) storedCells.set(d, (cells = cellsOf(d)));
   return cells;
+}
+
+export interface UnchangedSplit {
+  /** The rows left to check: every row of a disc that is new, edited, or not as exported. */
+  rows: SheetRow[];
+  /** Discs whose rows are, cell for cell, what an export of the stored disc writes. */
+  discs: number;
+  /** Their rows. */
+  rowCount: number;
+}
+
+/**
+ * Sets aside the discs a file brings back exactly as exported: every row of the disc,
+ * in the stored order, equal cell for cell (the version included) to the stored disc's
+ * export. Such a disc changes nothing and needs no checking; in a batch exported and
+ * brought back, most discs are like that. A shelf mark that appears in more than one
+ * group of rows stays in, so the file's duplicates are still reported.
+ */
+export function setAsideUnchanged(
+  sheet: SheetRow[],
+  existing: (shelfMarkKey: string) => ExportDisc | undefined,
+  columns: readonly CatalogueColumn[],
+): UnchangedSplit {
+  const groups: SheetRow[][] = [];
+  const groupsOfKey = new Map<string, number>();
+  let lastKey: string | null = null;
+  for (const r of sheet) {
+    const key = r.values.shelf_mark.trim().toLowerCase();
+    if (key !== "" && key === lastKey) groups[groups.length - 1].push(r);
+    else {
+      groups.push([r]);
+      groupsOfKey.set(key, (groupsOfKey.get(key) ?? 0) + 1);
+    }
+    lastKey = key;
+  }
+  const split: UnchangedSplit = { rows: [], discs: 0, rowCount: 0 };
+  const canSetAside = columns.includes("version");
+  const present = new Set<string>(columns);
+  const compared = specs.filter((c) => present.has(c.name));
+  for (const group of groups) {
+    const key = group[0].values.shelf_mark.trim().toLowerCase();
+    const known = canSetAside && key && groupsOfKey.get(key) === 1 ? existing(key) : undefined;
+    if (
+      known &&
+      Math.max(1, known.sides.length) === group.length &&
+      group.every((r, i) => rowAsExported(r.values, known, i, compared))
+    ) {
+      split.discs++;
+      split.rowCount += group.length;
+    } else split.rows.push(...group);
+  }
+  return split;
+}
+
+/**
+ * Whether a row's cells are what the export writes for the disc's side at `index` (its
+ * only row when it has no sides), compared cell by cell without writing the row out.
+ */
+function rowAsExported(
+  values: Record<CatalogueColumn, string>,
+  d: ExportDisc,
+  index: number,
+  compared: readonly ColumnSpec[],
+): boolean {
+  const side = d.sides[index] ?? null;
+  for (const c of compared) {
+    const expected = c.disc
+      ? c.disc === "accessionId"
+        ? d.accessionIdentifier
+        : cell(d[c.disc])
+      : c.side
+        ? side
+          ? cell(side[c.side])
+          : ""
+        : cell(d.version);
+    if (values[c.name as CatalogueColumn] !== expected) return false;
+  }
+  return true;
 }
 
 /** The rows of one disc as written to the file: formula-looking cells protected. */

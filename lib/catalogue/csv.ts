@@ -5,7 +5,13 @@ import { z } from "zod";
 import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
 import { appendEvent } from "../provenance";
-import { blankToUndefined, type DiscEdit, discListQuerySchema, toStoredSide } from "../validation/catalogue";
+import {
+  blankToUndefined,
+  type DiscEdit,
+  discListQuerySchema,
+  maxSidesPerDisc,
+  toStoredSide,
+} from "../validation/catalogue";
 import {
   type BuiltDisc,
   buildDiscs,
@@ -19,12 +25,13 @@ import {
   type ImportError,
   maxListedErrors,
   readCatalogueCsv,
+  setAsideUnchanged,
   summariseDisc,
   toCatalogueCsv,
 } from "./csv-format";
 import { insertDiscs, writeDiscEdit } from "./discs";
 import { listDiscIds } from "./list-query";
-import { type DiscRecord, readDiscs, readDiscsByShelfMarks } from "./records";
+import { type DiscFieldsRecord, type DiscRecord, readDiscFieldsByShelfMarks, readDiscs } from "./records";
 
 // The catalogue's spreadsheet import and export against the database. The file's format
 // is lib/catalogue/csv-format.ts (pure); reading the request and answering over HTTP is
@@ -35,8 +42,6 @@ import { type DiscRecord, readDiscs, readDiscsByShelfMarks } from "./records";
 export const maxUploadBytes = 40 * 1024 * 1024;
 /** Discs listed in a preview (to add, to update, in conflict); the counts cover the whole file. */
 export const previewDiscLimit = 200;
-/** The most sides a disc may have (lib/validation/catalogue.ts). */
-const maxSides = 8;
 
 const truthy = z.preprocess(
   (v) => (typeof v === "string" ? ["true", "1", "yes", "on"].includes(v.trim().toLowerCase()) : v),
@@ -185,17 +190,19 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
   const identifierOfId = new Map([...known.values()].map((a) => [a.id, a.identifier]));
 
   // The discs the file's shelf marks name (the unique index is on lower(shelf_mark)), with their sides.
-  const records = await readDiscsByShelfMarks(
+  const records = await readDiscFieldsByShelfMarks(
     db,
     read.rows.map((r) => r.values.shelf_mark.trim()).filter(Boolean),
   );
   const byMark = new Map(records.map((d) => [d.shelfMark.toLowerCase(), d]));
-  const asInFile = new Map(records.map((d) => [d.shelfMark.toLowerCase(), toExportDisc(d)]));
 
-  const sheet = buildDiscs(read.rows, {
+  // A disc brought back as exported changes nothing: it is counted, not checked again.
+  // A stored disc's record reads as the rows an export of it writes (its ids aside).
+  const asExported = setAsideUnchanged(read.rows, (key) => byMark.get(key), read.columns);
+  const sheet = buildDiscs(asExported.rows, {
     resolveAccession: (i) => known.get(i.toLowerCase())?.id,
     defaultAccessionId: defaultAccession,
-    existing: (key) => asInFile.get(key),
+    existing: (key) => byMark.get(key),
     clearEmpty,
     columns: read.columns,
   });
@@ -208,8 +215,8 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
 
   const plan: Plan = { adds: [], updates: [] };
   const toUpdate: DiscUpdate[] = [];
-  const stale: { built: BuiltDisc; record: DiscRecord }[] = [];
-  let unchanged = 0;
+  const stale: { built: BuiltDisc; record: DiscFieldsRecord }[] = [];
+  let unchanged = asExported.discs;
   for (const d of sheet.discs) {
     const record = byMark.get(d.disc.shelfMark.toLowerCase());
     if (!record) {
@@ -243,11 +250,11 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
       ...record.sides.map((s) => s.designation.toLowerCase()),
       ...d.disc.sides.map((s) => s.designation.toLowerCase()),
     ]).size;
-    if (sideCount > maxSides) {
+    if (sideCount > maxSidesPerDisc) {
       errors.push({
         row: d.row,
         column: "side",
-        message: `Disc ${d.disc.shelfMark} would have ${sideCount} sides with the ones this file adds; a disc has at most ${maxSides}.`,
+        message: `Disc ${d.disc.shelfMark} would have ${sideCount} sides with the ones this file adds; a disc has at most ${maxSidesPerDisc}.`,
       });
       continue;
     }
@@ -267,7 +274,7 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
   }
   const conflicts = await conflictsOf(stale);
 
-  if (read.errors.length === 0 && sheet.discs.length === 0 && errors.length === 0) {
+  if (read.errors.length === 0 && sheet.discs.length === 0 && unchanged === 0 && errors.length === 0) {
     errors.push({ row: 2, column: "", message: "The file has no discs to import." });
   }
   errors.sort((a, b) => a.row - b.row);
@@ -282,7 +289,7 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
       fileName,
       separatedBy: delimiters[read.delimiter],
       clearEmpty,
-      rows: sheet.rowCount,
+      rows: sheet.rowCount + asExported.rowCount,
       discs: plan.adds.length,
       sides: plan.adds.reduce((n, d) => n + d.disc.sides.length, 0),
       toAdd: plan.adds.slice(0, previewDiscLimit).map((d) => summariseDisc(d, identifierOf(d))),
@@ -312,13 +319,8 @@ function withAccessionNames(u: DiscUpdate, identifierOfId: Map<string, string>):
   return { ...u, changes: { ...u.changes, fields } };
 }
 
-/** The disc as the export writes it, from its record. */
-function toExportDisc(d: DiscRecord): ExportDisc {
-  return { ...d, sides: d.sides.map(toStoredSide) };
-}
-
 /** The saves behind each stale row, in one query for all of them. */
-async function conflictsOf(stale: { built: BuiltDisc; record: DiscRecord }[]): Promise<DiscConflict[]> {
+async function conflictsOf(stale: { built: BuiltDisc; record: DiscFieldsRecord }[]): Promise<DiscConflict[]> {
   if (!stale.length) return [];
   const ids = stale.map((s) => s.record.id);
   const rows = await sql<{ discId: string; at: Date; by: string | null; changed: unknown }>`

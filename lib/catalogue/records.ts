@@ -44,21 +44,58 @@ export async function readDiscs(db: Db, ids: string[]): Promise<DiscRecord[]> {
   return ids.flatMap((id) => byId.get(id) ?? []);
 }
 
+/** A disc's catalogue fields and what names it, without its workflow: what an import compares. */
+export type DiscFieldsRecord = StoredDisc & {
+  id: string;
+  accessionIdentifier: string;
+  version: number;
+  sides: (StoredSide & { id: string })[];
+};
+
 /**
- * Reads the discs with these shelf marks (any case) and their sides: one query for the
- * discs and one for the sides, whatever the number of marks (the unique index on
- * lower(shelf_mark) answers the first).
+ * The catalogue fields of the discs with these shelf marks (any case), with their sides',
+ * in two queries whatever the number of marks (the unique index on lower(shelf_mark)
+ * answers the first, the sides' index on disc_id the second). They read only the fields a
+ * spreadsheet holds: an import of thousands of rows does not wait for the workflow's.
  */
-export async function readDiscsByShelfMarks(db: Db, shelfMarks: string[]): Promise<DiscRecord[]> {
+export async function readDiscFieldsByShelfMarks(db: Db, shelfMarks: string[]): Promise<DiscFieldsRecord[]> {
   const marks = [...new Set(shelfMarks.map((m) => m.toLowerCase()))];
   if (!marks.length) return [];
-  const rows = await selectDiscs(db)
+  const discs = await selectDiscFields(db)
     .where(sql<boolean>`lower(d.shelf_mark) = ANY(${marks}::text[])`)
     .execute();
-  return withSides(db, rows);
+  if (!discs.length) return [];
+  const sides = await db
+    .selectFrom("sides as s")
+    .select([
+      "s.id",
+      "s.disc_id as discId",
+      "s.designation",
+      "s.matrix_number as matrixNumber",
+      "s.take",
+      "s.title",
+      "s.performers",
+      "s.notes",
+    ])
+    .where(sql<boolean>`s.disc_id = ANY(${discs.map((d) => d.id)}::uuid[])`)
+    .orderBy("s.disc_id")
+    .orderBy(sql`lower(s.designation)`)
+    .execute();
+  const sidesOf = new Map<string, DiscFieldsRecord["sides"]>();
+  for (const { discId, ...side } of sides) {
+    const list = sidesOf.get(discId);
+    if (list) list.push(side);
+    else sidesOf.set(discId, [side]);
+  }
+  return discs.map((d) => ({
+    ...d,
+    diameterIn: d.diameterIn === null ? null : Number(d.diameterIn),
+    nominalSpeedRpm: Number(d.nominalSpeedRpm),
+    sides: sidesOf.get(d.id) ?? [],
+  }));
 }
 
-function selectDiscs(db: Db) {
+function selectDiscFields(db: Db) {
   return db
     .selectFrom("discs as d")
     .innerJoin("accessions as a", "a.id", "d.accession_id")
@@ -83,9 +120,11 @@ function selectDiscs(db: Db) {
       "d.condition_notes as conditionNotes",
       "d.handling_notes as handlingNotes",
       "d.version",
-      "d.created_at as createdAt",
-      "d.updated_at as updatedAt",
     ]);
+}
+
+function selectDiscs(db: Db) {
+  return selectDiscFields(db).select(["d.created_at as createdAt", "d.updated_at as updatedAt"]);
 }
 
 type DiscRow = Awaited<ReturnType<ReturnType<typeof selectDiscs>["execute"]>>[number];

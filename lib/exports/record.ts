@@ -1,4 +1,5 @@
 import "server-only";
+import { sql } from "kysely";
 import { db } from "../../db";
 import { curveChoiceName } from "../curves";
 import { readDisc } from "../catalogue/records";
@@ -56,6 +57,7 @@ export async function discRecord(discId: string) {
     db
       .selectFrom("curve_choices as c")
       .innerJoin("users as u", "u.id", "c.chosen_by")
+      .leftJoin("curve_choice_evidence as m", "m.choice_id", "c.id")
       .select([
         "c.id",
         "c.side_id as sideId",
@@ -73,6 +75,14 @@ export async function discRecord(discId: string) {
         "c.evidence",
         "c.chosen_at as chosenAt",
         "u.name as chosenBy",
+        // The test-disc measurement a choice rests on: the points, the server's fit and the file's hash.
+        sql<TestDiscMeasurementRecord | null>`CASE WHEN m.choice_id IS NULL THEN NULL ELSE jsonb_build_object(
+          'pointsKind', m.points_kind, 'points', m.points, 'fitParameters', to_jsonb(m.fit_parameters),
+          'fittedSpec', m.fitted_spec, 'levelOffsetDb', m.level_offset_db, 'residuals', m.residuals,
+          'rmsDb', m.rms_db, 'worstDb', m.worst_db, 'worstHz', m.worst_hz,
+          'sourceFileName', m.source_file_name, 'sourceSha256', m.source_sha256) END`.as(
+          "testDiscMeasurement",
+        ),
       ])
       .where("c.side_id", "in", ids)
       .orderBy("c.chosen_at")
@@ -257,6 +267,40 @@ async function discLabelImages(discId: string) {
     sha256: r.sha256!,
     storedAt: r.storedAt!,
   }));
+}
+
+/** A test-disc measurement as the record carries it (lib/transfers/test-disc-evidence.ts keeps it). */
+export interface TestDiscMeasurementRecord {
+  pointsKind: "recording" | "playback";
+  points: { hz: number; db: number }[];
+  fitParameters: string[];
+  fittedSpec: Record<string, unknown>;
+  levelOffsetDb: number;
+  residuals: { hz: number; db: number; modelDb: number; residualDb: number }[];
+  rmsDb: number;
+  worstDb: number;
+  worstHz: number;
+  sourceFileName: string | null;
+  sourceSha256: string | null;
+}
+
+/** The measurement in one sentence of a PREMIS event's detail: what was fitted, how well, and the file's hash. */
+function testDiscSentence(t: {
+  pointsKind?: string;
+  pointCount?: number;
+  fitParameters?: string[];
+  rmsDb?: number;
+  worstDb?: number;
+  worstHz?: number;
+  sourceFileName?: string | null;
+  sourceSha256?: string | null;
+}): string {
+  const what = t.pointsKind === "playback" ? "playback curve" : "recording characteristic";
+  return (
+    `Test-disc measurement: ${t.pointCount} points of the ${what}, fitted for ${(t.fitParameters ?? []).join(", ")}; ` +
+    `RMS error ${Number(t.rmsDb).toFixed(3)} dB, worst ${Number(t.worstDb).toFixed(3)} dB at ${Number(t.worstHz)} Hz` +
+    (t.sourceSha256 ? `; points file ${t.sourceFileName ?? "(pasted)"}, SHA-256 ${t.sourceSha256}` : "")
+  );
 }
 
 /** A shelf mark or accession identifier as the start of a file name: other characters than letters, digits, ".", "_" and "-" become "_". */
@@ -466,7 +510,8 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
               `Playback equalization ${e.kind === "side.curve_chosen" ? "chosen" : "changed"}: ` +
                 `${choiceName}; ` +
                 `curve ${JSON.stringify(p.spec)}; cut at ${p.cutSpeedRpm} rpm, transferred at ${p.transferSpeedRpm} ` +
-                `rpm${p.correctSpeed === true ? ", speed corrected in the render" : ""}. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})`,
+                `rpm${p.correctSpeed === true ? ", speed corrected in the render" : ""}. Rationale: ${p.rationale} (evidence: ${p.evidenceKind}${p.evidence ? `, ${p.evidence}` : ""})` +
+                (p.testDisc ? `. ${testDiscSentence(p.testDisc)}` : ""),
               entity,
             ),
           );

@@ -10,6 +10,7 @@ import { canonicalJson } from "../provenance/chain";
 import { curveChoosableStatuses, curveChosen, lockSides } from "../sides/lifecycle";
 import { statusLabels } from "../validation/catalogue";
 import { curveChoiceSchema } from "../validation/transfers";
+import { evidenceSummary, fitTestDiscMeasurement } from "./test-disc-evidence";
 
 function sha256Hex(text: string): string {
   return createHash("sha256").update(text).digest("hex");
@@ -43,6 +44,8 @@ export async function chooseCurve(
     // The same merge the bench plots and plays (preset, then overrides, then transfer ÷ cut speed).
     const spec = mergeCurve(preset?.spec ?? null, c.overrides, c.cutSpeedRpm, c.transferSpeedRpm);
     checkCurveSpec(spec, "overrides");
+    // A test-disc measurement is read and fitted here, once for every side it is recorded for.
+    const measured = c.measurement ? fitTestDiscMeasurement(c.measurement, spec) : null;
     // Every side locked through the lifecycle, in a stable order.
     const sides = await lockSides(trx, c.sideIds);
     if (sides.length !== new Set(c.sideIds).size)
@@ -101,6 +104,25 @@ export async function chooseCurve(
         })
         .returning("id")
         .executeTakeFirstOrThrow();
+      if (measured)
+        await trx
+          .insertInto("curve_choice_evidence")
+          .values({
+            choice_id: row.id,
+            points_kind: measured.pointsKind,
+            points: JSON.stringify(measured.points),
+            fit_parameters: measured.fitParameters,
+            fitted_spec: JSON.stringify(measured.fittedSpec),
+            level_offset_db: measured.levelOffsetDb,
+            residuals: JSON.stringify(measured.residuals),
+            rms_db: measured.rmsDb,
+            worst_db: measured.worstDb,
+            worst_hz: measured.worstHz,
+            source_file_name: measured.sourceFileName,
+            source_text: measured.sourceText,
+            source_sha256: measured.sourceSha256,
+          })
+          .execute();
       events.push({
         actorId: actor.id,
         kind: previous ? "side.curve_changed" : "side.curve_chosen",
@@ -122,6 +144,7 @@ export async function chooseCurve(
           rationale: c.rationale,
           evidenceKind: c.evidenceKind,
           evidence: c.evidence,
+          ...(measured ? { testDisc: evidenceSummary(measured) } : {}),
           ...(previous ? { before: { choiceId: previous.id, spec: previous.spec } } : {}),
         },
       });
@@ -139,6 +162,7 @@ export async function listCurveChoices(sideId: string) {
   const rows = await db
     .selectFrom("curve_choices as c")
     .innerJoin("users as u", "u.id", "c.chosen_by")
+    .leftJoin("curve_choice_evidence as e", "e.choice_id", "c.id")
     .select([
       "c.id",
       "c.preset_id as presetId",
@@ -155,13 +179,56 @@ export async function listCurveChoices(sideId: string) {
       "c.evidence",
       "c.chosen_at as chosenAt",
       "u.name as chosenBy",
+      "e.points_kind as measurementPointsKind",
+      "e.points as measurementPoints",
+      "e.fit_parameters as measurementFit",
+      "e.fitted_spec as measurementFittedSpec",
+      "e.level_offset_db as measurementLevelOffsetDb",
+      "e.residuals as measurementResiduals",
+      "e.rms_db as measurementRmsDb",
+      "e.worst_db as measurementWorstDb",
+      "e.worst_hz as measurementWorstHz",
+      "e.source_file_name as measurementFileName",
+      "e.source_sha256 as measurementSha256",
     ])
     .where("c.side_id", "=", sideId)
     .orderBy("c.chosen_at", "desc")
     .execute();
-  return rows.map((r) => ({
-    ...r,
-    cutSpeedRpm: Number(r.cutSpeedRpm),
-    transferSpeedRpm: Number(r.transferSpeedRpm),
-  }));
+  return rows.map(
+    ({
+      measurementPointsKind,
+      measurementPoints,
+      measurementFit,
+      measurementFittedSpec,
+      measurementLevelOffsetDb,
+      measurementResiduals,
+      measurementRmsDb,
+      measurementWorstDb,
+      measurementWorstHz,
+      measurementFileName,
+      measurementSha256,
+      ...r
+    }) => ({
+      ...r,
+      cutSpeedRpm: Number(r.cutSpeedRpm),
+      transferSpeedRpm: Number(r.transferSpeedRpm),
+      // The test-disc measurement the choice rests on, as the server fitted it (null for other evidence).
+      measurement:
+        measurementPointsKind && measurementPoints && measurementFittedSpec && measurementResiduals
+          ? {
+              pointsKind: measurementPointsKind,
+              points: measurementPoints,
+              fitParameters: measurementFit ?? [],
+              fittedSpec: measurementFittedSpec,
+              levelOffsetDb: measurementLevelOffsetDb ?? 0,
+              residuals: measurementResiduals,
+              rmsDb: measurementRmsDb ?? 0,
+              worstDb: measurementWorstDb ?? 0,
+              worstHz: measurementWorstHz ?? 0,
+              sourceFileName: measurementFileName,
+              sourceSha256: measurementSha256,
+            }
+          : null,
+    }),
+  );
 }

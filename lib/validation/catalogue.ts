@@ -223,7 +223,10 @@ export function toStoredSide(s: z.infer<typeof sideInputSchema>): StoredSide {
   };
 }
 
-const sidesSchema = z.array(sideInputSchema).max(8, "At most 8 sides.").default([]);
+/** The most sides a disc may have. */
+export const maxSidesPerDisc = 8;
+export const tooManySidesMessage = `At most ${maxSidesPerDisc} sides.`;
+const sidesSchema = z.array(sideInputSchema).max(maxSidesPerDisc, tooManySidesMessage).default([]);
 
 export const createDiscSchema = discFieldsSchema.and(z.object({ sides: sidesSchema }));
 export type DiscInput = z.infer<typeof createDiscSchema>;

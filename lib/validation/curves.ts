@@ -100,14 +100,17 @@ export const responseRequestSchema = z.object({
   renderFilter: z.boolean().default(false),
 });
 
+/** The values a fit may settle (lib/curves/fit.ts's FitParameter). */
+export const fitParametersSchema = z
+  .array(z.enum(["turnover", "shelf", "rolloff", "highpass", "ultrasonic", "levelOffset"]))
+  .min(1, "Choose at least one parameter to fit.");
+
 export const fitRequestSchema = z.object({
   points: z
     .array(z.object({ hz: z.number().positive(), db: z.number() }))
     .min(1, "Give at least one point.")
     .max(5000),
-  fit: z
-    .array(z.enum(["turnover", "shelf", "rolloff", "highpass", "ultrasonic", "levelOffset"]))
-    .min(1, "Choose at least one parameter to fit."),
+  fit: fitParametersSchema,
   kind: z.enum(["playback", "recording"]).default("playback"),
   initial: curveSpecSchema.default({}),
   levelOffsetDb: z.number().default(0),

@@ -1,7 +1,7 @@
 import "./zod-setup";
 import { z } from "zod";
 import type { SideStatusName } from "./catalogue";
-import { curveSpecSchema } from "./curves";
+import { curveSpecSchema, fitParametersSchema } from "./curves";
 import { emptyFileMessage } from "./text";
 import { readNumber } from "./zod-setup";
 
@@ -40,7 +40,7 @@ export const evidenceKinds = [
 ] as const;
 export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {
   published_guidance: "Published guidance for the label and era",
-  test_disc: "Test-disc measurement fitted in the workbench",
+  test_disc: "Test-disc measurement (its points and fit kept with the choice)",
   listening: "Listening comparison",
   disc_documentation: "The disc's own documentation",
   other: "Other",
@@ -62,6 +62,30 @@ const speed = (what: string) => {
 export const cutSpeedSchema = speed("the speed the disc was cut at");
 export const transferSpeedSchema = speed("the speed it was transferred at");
 
+/** The largest points file kept with a curve choice. */
+export const maxMeasurementBytes = 1024 * 1024;
+
+/**
+ * The test-disc measurement a curve choice rests on: the points file as the engineer gave
+ * it (the server reads the points from it and fits them itself), what the points are,
+ * and which values to fit.
+ */
+export const testDiscMeasurementSchema = z.object({
+  pointsKind: z.enum(["recording", "playback"], {
+    error: "Say whether the points are the recording characteristic or the playback curve.",
+  }),
+  fit: fitParametersSchema,
+  sourceText: z
+    .string({ error: "Give the measured points." })
+    .refine((t) => t.trim() !== "", "Give the measured points: one frequency (Hz) and level (dB) per line.")
+    .refine(
+      (t) => new TextEncoder().encode(t).length <= maxMeasurementBytes,
+      "The points file is over 1 MB; a measurement of up to 5 000 points fits well below.",
+    ),
+  sourceFileName: z.string().trim().min(1).max(255, "The file name is too long.").optional(),
+});
+export type TestDiscMeasurement = z.infer<typeof testDiscMeasurementSchema>;
+
 /** A curve choice for one or more sides: a preset version, overrides for these sides, the two speeds, and why. */
 export const curveChoiceSchema = z
   .object({
@@ -76,6 +100,17 @@ export const curveChoiceSchema = z
     rationale: z.string().trim().min(10, "Say why this curve: at least a sentence.").max(4000),
     evidenceKind: z.enum(evidenceKinds, { error: "Say what the choice rests on." }),
     evidence: z.string().trim().max(4000).default(""),
+    /** Required when the choice rests on a test disc, and only then. */
+    measurement: testDiscMeasurementSchema.optional(),
+  })
+  .refine((v) => v.evidenceKind !== "test_disc" || v.measurement !== undefined, {
+    path: ["measurement"],
+    message: "A choice that rests on a test disc keeps its measurement: give the measured points.",
+  })
+  .refine((v) => v.evidenceKind === "test_disc" || v.measurement === undefined, {
+    path: ["measurement"],
+    message:
+      "Measured points go with a choice that rests on a test disc: choose that evidence, or leave the points out.",
   })
   .refine((v) => (v.presetId === undefined) === (v.presetVersion === undefined), {
     path: ["presetVersion"],

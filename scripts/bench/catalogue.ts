@@ -29,6 +29,8 @@ const runs = Number(process.env.BENCH_RUNS ?? 60);
 const reuse = process.env.BENCH_REUSE === "1";
 const ownPgPort = process.env.BENCH_PG_PORT ? Number(process.env.BENCH_PG_PORT) : null;
 const benchName = "rillbook_bench";
+/** BENCH_ONLY=preview measures only the cases whose names hold that text. */
+const only = process.env.BENCH_ONLY?.toLowerCase();
 
 /** The benchmark's own cluster (BENCH_PG_PORT): the test profile's settings, its own folder and port. */
 function ownCluster(port: number): Profile {
@@ -223,35 +225,49 @@ async function measure(db: ReturnType<typeof createDb>): Promise<void> {
     "search matrix number": { q: sample.matrix_number },
     "search + filter + sort": { q: "lantern", format: "shellac_78", sort: "-catalogueNumber" },
   };
-  const cases: [string, () => Promise<unknown>][] = Object.entries(queries).map(([name, query]) => [
-    name,
-    () => listDiscsWith(db, query),
-  ]);
-  cases.push([`update-import preview, ${importRows} rows`, await importPreview(db)]);
-  const results: { name: string; p50: number; p95: number; p99: number; max: number }[] = [];
+  const previewName = `update-import preview, ${importRows} rows`;
+  const wanted = (name: string) => !only || name.toLowerCase().includes(only);
+  const cases: [string, () => Promise<unknown>][] = Object.entries(queries)
+    .filter(([name]) => wanted(name))
+    .map(([name, query]) => [name, () => listDiscsWith(db, query)]);
+  if (wanted(previewName)) cases.push([previewName, await importPreview(db)]);
+  if (!cases.length) throw new Error(`BENCH_ONLY="${only}" names none of the measured cases`);
+  const results: { name: string; p50: number; p95: number; p99: number; max: number; cpu: number }[] = [];
   console.log(`load before measuring (uptime): ${loadAverage()}`);
   for (const [name, call] of cases) {
     await call(); // warm
+    const cpuBefore = process.cpuUsage();
     const times: number[] = [];
     for (let i = 0; i < runs; i++) {
       const t = performance.now();
       await call();
       times.push(performance.now() - t);
     }
+    const cpu = process.cpuUsage(cpuBefore);
     times.sort((a, b) => a - b);
     const at = (p: number) => times[Math.min(times.length - 1, Math.floor(p * times.length))];
-    results.push({ name, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: times[times.length - 1] });
+    // This process's CPU time per call (its garbage collection included; PostgreSQL's not).
+    const cpuMs = (cpu.user + cpu.system) / 1000 / runs;
+    results.push({
+      name,
+      p50: at(0.5),
+      p95: at(0.95),
+      p99: at(0.99),
+      max: times[times.length - 1],
+      cpu: cpuMs,
+    });
   }
   console.log(`load after measuring (uptime): ${loadAverage()}`);
   console.log(
-    `\n${runs} runs each (time = the whole list call: rows, count and sides, as the API does it)\n`,
+    `\n${runs} runs each (time = the whole list call: rows, count and sides, as the API does it;\n` +
+      "cpu = this process's CPU time per call, its garbage collection included, PostgreSQL's not)\n",
   );
   console.log(
-    `${"query".padEnd(34)} ${"p50 ms".padStart(8)} ${"p95 ms".padStart(8)} ${"p99 ms".padStart(8)}`,
+    `${"query".padEnd(34)} ${"p50 ms".padStart(8)} ${"p95 ms".padStart(8)} ${"p99 ms".padStart(8)} ${"cpu ms".padStart(8)}`,
   );
   for (const r of results)
     console.log(
-      `${r.name.padEnd(34)} ${r.p50.toFixed(2).padStart(8)} ${r.p95.toFixed(2).padStart(8)} ${r.p99.toFixed(2).padStart(8)}`,
+      `${r.name.padEnd(34)} ${r.p50.toFixed(2).padStart(8)} ${r.p95.toFixed(2).padStart(8)} ${r.p99.toFixed(2).padStart(8)} ${r.cpu.toFixed(2).padStart(8)}`,
     );
   const slowest = results.reduce((a, b) => (b.p95 > a.p95 ? b : a));
   console.log(
@@ -259,7 +275,9 @@ async function measure(db: ReturnType<typeof createDb>): Promise<void> {
   );
 
   // The plans of the slowest list query's row fetch and count, as PostgreSQL runs them.
-  const slowestList = results.filter((r) => r.name in queries).reduce((a, b) => (b.p95 > a.p95 ? b : a));
+  const lists = results.filter((r) => r.name in queries);
+  if (!lists.length) return;
+  const slowestList = lists.reduce((a, b) => (b.p95 > a.p95 ? b : a));
   const q = discListQuerySchema.parse(queries[slowestList.name]);
   const { column, modifiers } = listOrdering(q);
   const rowsQuery = filteredDiscs(db, q)

@@ -15,6 +15,7 @@ import {
   maxImportRows,
   protectFormula,
   readCatalogueCsv,
+  setAsideUnchanged,
   toCatalogueCsv,
   unprotectFormula,
 } from "@/lib/catalogue/csv-format";
@@ -104,6 +105,7 @@ describe("reading the file", () => {
     expect(read.errors).toHaveLength(1);
     expect(read.errors[0].row).toBe(3);
     expect(read.errors[0].message).toMatch(/quote/);
+    expect(read.errors[0].message).toMatch(/text line 3\b/);
   });
 
   it("refuses a row with more fields than the header", () => {
@@ -577,5 +579,37 @@ describe("rows that update a catalogued disc", () => {
         { field: "title", after: "Encore" },
       ],
     });
+  });
+
+  it("sets aside a disc brought back exactly as exported, and checks every other one", () => {
+    const exported = toCatalogueCsv([stored], { bom: false });
+    const asIs = readCatalogueCsv(exported);
+    const same = setAsideUnchanged(asIs.rows, existing, asIs.columns);
+    expect(same).toEqual({ rows: [], discs: 1, rowCount: 2 });
+
+    // One cell changed (side B's title): both of the disc's rows are checked as before.
+    const edited = readCatalogueCsv(exported.replace("Jig", "Jig in G"));
+    const split = setAsideUnchanged(edited.rows, existing, edited.columns);
+    expect(split).toMatchObject({ discs: 0, rowCount: 0 });
+    expect(split.rows.map((r) => r.row)).toEqual([2, 3]);
+
+    // The sides in another order, a repeated shelf mark, or no version column: nothing set aside.
+    const lines = exported.trimEnd().split("\r\n");
+    const swapped = readCatalogueCsv([lines[0], lines[2], lines[1]].join("\n"));
+    expect(setAsideUnchanged(swapped.rows, existing, swapped.columns).discs).toBe(0);
+    const repeated = readCatalogueCsv(
+      [...lines, row({ ...shellac, shelf_mark: "X-9" }), lines[1]].join("\n"),
+    );
+    const withRepeat = setAsideUnchanged(repeated.rows, existing, repeated.columns);
+    expect(withRepeat.discs).toBe(0);
+    expect(withRepeat.rows).toHaveLength(4);
+    const noVersion = readCatalogueCsv(
+      exported
+        .split("\r\n")
+        .map((l) => l.replace(/,[^,]*$/, ""))
+        .join("\n"),
+    );
+    expect(noVersion.columns).not.toContain("version");
+    expect(setAsideUnchanged(noVersion.rows, existing, noVersion.columns).discs).toBe(0);
   });
 });

@@ -1,0 +1,189 @@
+"use client";
+/**
+ * The test-disc measurement a curve choice rests on: the points file (dropped, chosen or
+ * pasted), what the points are and which values to fit. The fit is tried here, in the
+ * browser, with the curve engine the server uses; the server reads and fits the points
+ * again from the same text when the choice is recorded, and keeps its own result.
+ */
+import { useId, useMemo } from "react";
+import { useDropzone } from "react-dropzone";
+import { MeasurementEvidence } from "@/components/curves/measurement-evidence";
+import { type CurveSpec, type FitParameter, fitCurve, parsePointsCsv } from "@/lib/curves";
+import { maxMeasurementBytes } from "@/lib/validation/transfers";
+import type { MeasurementJson } from "./types";
+
+export interface MeasurementDraft {
+  sourceText: string;
+  sourceFileName?: string;
+  pointsKind: "recording" | "playback";
+  fit: FitParameter[];
+}
+
+export const emptyMeasurement: MeasurementDraft = {
+  sourceText: "",
+  pointsKind: "recording",
+  fit: ["turnover", "rolloff", "levelOffset"],
+};
+
+const FIT_CHOICES: [FitParameter, string][] = [
+  ["turnover", "Bass turnover"],
+  ["shelf", "Low-frequency shelf"],
+  ["rolloff", "Treble rolloff"],
+  ["highpass", "Rumble high-pass"],
+  ["ultrasonic", "Ultrasonic zero"],
+  ["levelOffset", "Level offset"],
+];
+
+/** The fit as the browser works it out, shaped as the server will keep it; or why it cannot be made. */
+function tryFit(
+  d: MeasurementDraft,
+  chosen: CurveSpec | null,
+): { fit: MeasurementJson | null; problem: string | null } {
+  if (!d.sourceText.trim()) return { fit: null, problem: null };
+  try {
+    const points = parsePointsCsv(d.sourceText);
+    const { speedRatio: _speedRatio, ...initial } = chosen ?? {};
+    const r = fitCurve({ points, kind: d.pointsKind, fit: d.fit, initial });
+    return {
+      fit: {
+        pointsKind: d.pointsKind,
+        points,
+        fitParameters: d.fit,
+        fittedSpec: r.spec,
+        levelOffsetDb: r.levelOffsetDb,
+        residuals: r.residuals,
+        rmsDb: r.rmsDb,
+        worstDb: r.worstDb,
+        worstHz: r.worstHz,
+        sourceFileName: d.sourceFileName ?? null,
+        sourceSha256: null,
+      },
+      problem: null,
+    };
+  } catch (err) {
+    return { fit: null, problem: err instanceof Error ? err.message : String(err) };
+  }
+}
+
+export function MeasurementField({
+  value,
+  onChange,
+  chosen,
+  errors,
+}: {
+  value: MeasurementDraft;
+  onChange: (next: MeasurementDraft) => void;
+  /** The curve being chosen: the fit starts from it, and the plot compares the two. */
+  chosen: CurveSpec | null;
+  errors: string[];
+}) {
+  const uid = useId();
+  const { fit, problem } = useMemo(() => tryFit(value, chosen), [value, chosen]);
+  const { getRootProps, getInputProps, isDragActive, fileRejections } = useDropzone({
+    multiple: false,
+    maxSize: maxMeasurementBytes,
+    accept: { "text/csv": [".csv"], "text/plain": [".txt", ".tsv"] },
+    onDropAccepted: ([file]) => {
+      void file.text().then((sourceText) => onChange({ ...value, sourceText, sourceFileName: file.name }));
+    },
+  });
+  const rejected = fileRejections[0]?.errors[0];
+  const atCut: CurveSpec | null = chosen ? { ...chosen, speedRatio: undefined } : null;
+
+  return (
+    <fieldset
+      className="space-y-3 rounded-lg border border-paper-edge bg-paper/60 p-3"
+      data-testid="measurement-field"
+    >
+      <legend className="px-1 text-sm font-medium">Test-disc measurement</legend>
+      <p className="text-xs text-ink-soft">
+        The points are kept with the choice, fitted on the server, and plotted for the reviewer. One frequency
+        (Hz) and level (dB) per line, as <span className="font-mono">hz,db</span>; a header and{" "}
+        <span className="font-mono">#</span> comments are allowed.
+      </p>
+      <div
+        {...getRootProps({
+          className:
+            "cursor-pointer rounded-md border border-dashed px-3 py-2 text-center text-xs " +
+            (isDragActive ? "border-groove bg-groove-wash/40" : "border-paper-edge bg-white text-ink-soft"),
+        })}
+        data-testid="measurement-drop"
+      >
+        <input {...getInputProps()} data-testid="measurement-file" aria-label="Points file" />
+        {value.sourceFileName
+          ? `Read “${value.sourceFileName}”. Drop or choose another file to replace it.`
+          : "Drop the points file here, or click to choose it (CSV or text, up to 1 MB)."}
+      </div>
+      {rejected ? (
+        <p className="text-xs font-medium text-alarm">
+          {rejected.code === "file-too-large"
+            ? "That file is over 1 MB: a measurement of up to 5 000 points fits well below."
+            : "That file is not a CSV or text file of points."}
+        </p>
+      ) : null}
+      <label htmlFor={`${uid}-points`} className="block text-xs font-medium">
+        Or paste the points
+      </label>
+      <textarea
+        id={`${uid}-points`}
+        value={value.sourceText}
+        onChange={(e) => onChange({ ...value, sourceText: e.target.value, sourceFileName: undefined })}
+        rows={5}
+        spellCheck={false}
+        placeholder={"hz,db\n50,-16.9\n500,-2.6\n1000,0\n10000,13.7"}
+        aria-invalid={errors.length ? true : undefined}
+        className={
+          "block w-full rounded-md border bg-white px-3 py-2 font-mono text-xs leading-5 " +
+          (errors.length ? "border-alarm" : "border-paper-edge")
+        }
+        data-testid="measurement-points"
+      />
+      <div className="flex flex-wrap gap-4 text-sm">
+        {(
+          [
+            ["recording", "The recording characteristic"],
+            ["playback", "The playback curve"],
+          ] as const
+        ).map(([k, words]) => (
+          <label key={k} className="inline-flex items-center gap-2">
+            <input
+              type="radio"
+              name={`${uid}-kind`}
+              checked={value.pointsKind === k}
+              onChange={() => onChange({ ...value, pointsKind: k })}
+              className="accent-[#2f6f6a]"
+              data-testid={`measurement-kind-${k}`}
+            />
+            {words}
+          </label>
+        ))}
+      </div>
+      <div className="grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-3">
+        {FIT_CHOICES.map(([p, words]) => (
+          <label key={p} className="inline-flex items-center gap-2">
+            <input
+              type="checkbox"
+              checked={value.fit.includes(p)}
+              onChange={(e) =>
+                onChange({
+                  ...value,
+                  fit: e.target.checked ? [...value.fit, p] : value.fit.filter((x) => x !== p),
+                })
+              }
+              className="h-4 w-4 accent-[#2f6f6a]"
+              data-testid={`measurement-fit-${p}`}
+            />
+            {words}
+          </label>
+        ))}
+      </div>
+      {errors.length ? <p className="text-xs font-medium text-alarm">{errors.join(" ")}</p> : null}
+      {problem ? (
+        <p className="text-xs font-medium text-alarm" data-testid="measurement-problem">
+          {problem}
+        </p>
+      ) : null}
+      {fit && atCut ? <MeasurementEvidence measurement={fit} chosen={atCut} /> : null}
+    </fieldset>
+  );
+}

@@ -14,7 +14,7 @@
 //                         store, the verifier and the zip in full: what is measured is the same)
 //   BENCH_KEEP=1          keep storage/bench-package (the objects) for another run
 import { spawn } from "node:child_process";
-import { createHash } from "node:crypto";
+import { createHash, randomBytes } from "node:crypto";
 import { promises as fs } from "node:fs";
 import net from "node:net";
 import path from "node:path";
@@ -71,22 +71,15 @@ async function waitForPort(p: number, timeoutMs = 20_000): Promise<void> {
   throw new Error(`s3rver did not listen on ${p}`);
 }
 
-/** Deterministic bytes (a counter through SHA-256, 1 MiB at a time): incompressible, like audio. */
-function syntheticBytes(bytes: number, seed: number): Readable {
+/** Random bytes, 1 MiB at a time: incompressible, like audio (their SHA-256 is worked out as they are stored). */
+function syntheticBytes(bytes: number): Readable {
   let sent = 0;
-  let block = 0;
   return new Readable({
     read() {
       if (sent >= bytes) return void this.push(null);
       const n = Math.min(1024 * 1024, bytes - sent);
-      const chunk = Buffer.allocUnsafe(n);
-      for (let off = 0; off < n; off += 32)
-        createHash("sha256")
-          .update(`${seed}:${block++}`)
-          .digest()
-          .copy(chunk, off, 0, Math.min(32, n - off));
       sent += n;
-      this.push(chunk);
+      this.push(randomBytes(n));
     },
   });
 }
@@ -126,7 +119,7 @@ async function main() {
     const objectFile = (key: string, what: string) => path.join(dir, "s3", bucket, `${key}._S3rver_${what}`);
 
     /** Stores one synthetic object by multipart upload (64 MiB parts), hashing it on the way. */
-    async function store(key: string, seed: number): Promise<string> {
+    async function store(key: string): Promise<string> {
       const hash = createHash("sha256");
       const { UploadId } = await s3().send(new CreateMultipartUploadCommand({ Bucket: bucket, Key: key }));
       const parts: { PartNumber: number; ETag: string }[] = [];
@@ -142,7 +135,7 @@ async function main() {
         );
         parts.push({ PartNumber: n, ETag: r.ETag! });
       };
-      for await (const c of syntheticBytes(objectBytes, seed)) {
+      for await (const c of syntheticBytes(objectBytes)) {
         hash.update(c as Buffer);
         pending.push(c as Buffer);
         size += (c as Buffer).length;
@@ -176,7 +169,7 @@ async function main() {
               if (err.code !== "EEXIST") throw err;
             });
         known[key] = known[keyOf(0)];
-      } else known[key] = await store(key, i);
+      } else known[key] = await store(key);
       await fs.writeFile(shaFile, JSON.stringify(known));
     }
     console.log(`[bench] payload objects ready in ${((performance.now() - t0) / 1000).toFixed(0)} s`);

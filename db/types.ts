@@ -335,10 +335,13 @@ export type FixityOutcome = "pass" | "mismatch" | "missing" | "error";
 
 export interface FixityChecksTable {
   id: Generated<string>;
-  object_kind: "transfer" | "render";
+  object_kind: "transfer" | "render" | "label_image";
   object_id: string;
   object_key: string;
-  side_id: string;
+  /** Null only for a label image of the sleeve, which belongs to the disc. */
+  side_id: string | null;
+  /** Set for label images (the disc they belong to). */
+  disc_id: Generated<string | null>;
   expected_sha256: string;
   actual_sha256: string | null;
   bytes: number | null;
@@ -516,6 +519,51 @@ export interface EquipmentFindingsTable {
   created_at: DefaultTimestamp;
 }
 
+export type LabelImageKind = "label" | "sleeve";
+export type LabelImageFormat = "jpeg" | "png" | "tiff";
+
+/** A photograph or scan of a side's label or of the sleeve, stored in the bucket (pending until checked). */
+export interface LabelImagesTable {
+  id: string;
+  disc_id: string;
+  side_id: string | null;
+  kind: LabelImageKind;
+  state: Generated<"pending" | "stored" | "refused">;
+  object_key: string;
+  thumbnail_key: string | null;
+  file_name: string;
+  declared_type: string;
+  declared_bytes: number;
+  format: LabelImageFormat | null;
+  width: number | null;
+  height: number | null;
+  bytes: number | null;
+  sha256: string | null;
+  reason: string | null;
+  uploaded_by: string;
+  created_at: DefaultTimestamp;
+  expires_at: ColumnType<Date, Date | string, Date | string>;
+  stored_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+}
+
+/** A BagIt package a curator asked to be written into the delivery prefix of a bucket. */
+export interface BagDeliveriesTable {
+  id: Generated<string>;
+  scope: "disc" | "accession";
+  disc_id: string | null;
+  accession_id: string | null;
+  state: Generated<"queued" | "running" | "done" | "failed">;
+  bucket: string;
+  prefix: string;
+  payload_oxum: string | null;
+  tagmanifest_sha256: string | null;
+  error: string | null;
+  requested_by: string;
+  requested_at: DefaultTimestamp;
+  started_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  finished_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+}
+
 export interface Database {
   campaigns: CampaignsTable;
   campaign_sides: CampaignSidesTable;
@@ -525,6 +573,8 @@ export interface Database {
   transfer_equipment: TransferEquipmentTable;
   equipment_calibrations: EquipmentCalibrationsTable;
   equipment_findings: EquipmentFindingsTable;
+  label_images: LabelImagesTable;
+  bag_deliveries: BagDeliveriesTable;
   side_transitions: SideTransitionsTable;
   reviews: ReviewsTable;
   fixity_checks: FixityChecksTable;

@@ -8,6 +8,11 @@ export interface LabSettingsJson {
   fixityCycleDays: number;
   accessCopyRateHz: "transfer" | number;
   accessCopyBitDepth: 16 | 24;
+  /** The lab's contact, written into every bag's bag-info.txt ("" when not set). */
+  contactName: string;
+  contactEmail: string;
+  contactPhone: string;
+  contactAddress: string;
 }
 
 export function useLabSettings() {

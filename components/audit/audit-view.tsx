@@ -5,6 +5,7 @@
  * when ?disc= names one).
  */
 import { AccessCopySettings } from "./access-copy-settings";
+import { ContactSettings } from "./contact-settings";
 import { useQuery } from "@tanstack/react-query";
 import Link from "next/link";
 import type { DiscJson } from "@/components/catalogue/types";
@@ -99,6 +100,10 @@ export function AuditView({
             <div className="border-t border-paper-edge pt-4">
               <h3 className="mb-2 font-sans text-sm font-semibold">Access copies</h3>
               <AccessCopySettings canEdit={canEditSettings} />
+            </div>
+            <div className="border-t border-paper-edge pt-4">
+              <h3 className="mb-2 font-sans text-sm font-semibold">The lab&apos;s contact in packages</h3>
+              <ContactSettings canEdit={canEditSettings} />
             </div>
             {canRunFixity ? (
               <div className="border-t border-paper-edge pt-4">

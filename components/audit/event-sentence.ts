@@ -133,7 +133,8 @@ function shaShort(sha: unknown): string {
 const idOf = (v: unknown): string | undefined =>
   typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String(v.id) : undefined;
 
-const objectWords = (kind: unknown) => (kind === "render" ? "access copy" : "flat transfer");
+const objectWords = (kind: unknown) =>
+  kind === "render" ? "access copy" : kind === "label_image" ? "label image" : "flat transfer";
 
 /** A status in running text; a status this page does not know yet is still readable ("needs_render" → "needs render"). */
 function statusWords(status: unknown): string {
@@ -461,6 +462,35 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
         tone: "plain",
       };
     }
+    case "disc.label_image_added": {
+      if (p.fileName) d.push({ label: "File", value: String(p.fileName) });
+      if (p.format)
+        d.push({
+          label: "Image",
+          value: `${String(p.format).toUpperCase()}${p.width && p.height ? `, ${p.width} × ${p.height} px` : ""}`,
+        });
+      if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
+      const what = p.kind === "sleeve" ? "the sleeve" : `the label of ${side}`;
+      return { sentence: `${who} added an image of ${what}${on}.`, details: d, tone: "plain" };
+    }
+    case "disc.packaged":
+    case "accession.packaged": {
+      if (p.bag) d.push({ label: "Bag", value: String(p.bag), mono: true });
+      if (p.location) d.push({ label: "Delivered to", value: String(p.location), mono: true });
+      if (p.payloadOxum) d.push({ label: "Payload-Oxum", value: String(p.payloadOxum), mono: true });
+      if (p.tagmanifestSha256)
+        d.push({ label: "Tagmanifest SHA-256", value: String(p.tagmanifestSha256), mono: true });
+      const what =
+        e.kind === "accession.packaged"
+          ? `the accession's approved disc${Array.isArray(p.discs) && p.discs.length === 1 ? "" : "s"}${Array.isArray(p.discs) ? ` (${p.discs.join(", ")})` : ""}`
+          : (e.shelfMark ?? "the disc");
+      return {
+        sentence: `${who} packaged ${what} as a BagIt bag${p.way === "delivery" ? ", written to the delivery bucket" : ", downloaded as a zip"}.`,
+        details: d,
+        tone: "good",
+      };
+    }
+    case "disc.fixity_checked":
     case "side.fixity_checked": {
       const ok = p.outcome === "pass";
       d.push({ label: "Expected SHA-256", value: String(p.expectedSha256 ?? "—"), mono: true });
@@ -483,7 +513,7 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
         p.object?.kind === "render" ? "" : p.object?.key ? ` ${fileNameOf({ objectKey: p.object.key })}` : "";
       const sha = shaShort(p.expectedSha256);
       return {
-        sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${side}${on}${sha ? ` (${sha})` : ""} ${outcome}.`,
+        sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${p.side ? side : "the disc"}${on}${sha ? ` (${sha})` : ""} ${outcome}${p.readFor ? ` while ${String(p.readFor)}` : ""}.`,
         details: d,
         tone: ok ? "good" : "bad",
       };
@@ -733,6 +763,10 @@ const KIND_LABELS: Record<string, string> = {
   "side.render_cancelled": "Render cancelled",
   "side.render_superseded": "Access copy superseded",
   "side.fixity_checked": "Fixity check",
+  "disc.fixity_checked": "Fixity check",
+  "disc.label_image_added": "Label image added",
+  "disc.packaged": "Packaged (BagIt)",
+  "accession.packaged": "Accession packaged (BagIt)",
   "side.approved": "Approved",
   "side.returned": "Returned",
   "lab.settings_changed": "Lab settings changed",
@@ -763,7 +797,7 @@ export const kindFilters: { value: string; label: string }[] = [
   { value: "side.returned", label: "— returns" },
   { value: "side.status_changed", label: "— status changes" },
   { value: "side.assigned", label: "— assignments" },
-  { value: "disc.", label: "Discs: catalogued and edited" },
+  { value: "disc.", label: "Discs: catalogued, edited, label images, packages" },
   { value: "accession.", label: "Accessions received and corrected" },
   { value: "import.", label: "Spreadsheet imports" },
   { value: "person.", label: "People and access" },

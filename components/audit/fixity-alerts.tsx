@@ -66,14 +66,20 @@ export function FixityAlerts() {
           >
             <p>
               <span className="font-semibold text-alarm">{outcomeWords[a.outcome] ?? a.outcome}</span> ·{" "}
-              {a.objectKind === "render" ? "access copy" : "flat transfer"} of{" "}
+              {a.objectKind === "render"
+                ? "access copy"
+                : a.objectKind === "label_image"
+                  ? "label image"
+                  : "flat transfer"}{" "}
+              of{" "}
               <Link
                 href={`/catalogue/${a.discId}`}
                 className="font-mono font-semibold text-shellac-deep underline underline-offset-2"
               >
                 {a.shelfMark}
               </Link>{" "}
-              side {a.designation} · <time dateTime={a.checkedAt}>{when(a.checkedAt)}</time>
+              {a.designation ? `side ${a.designation} ` : ""}·{" "}
+              <time dateTime={a.checkedAt}>{when(a.checkedAt)}</time>
             </p>
             {a.detail ? <p className="mt-0.5 break-all text-xs text-ink-soft">{a.detail}</p> : null}
             <p className="mt-0.5 break-all font-mono text-[0.7rem] text-ink-faint">{a.objectKey}</p>

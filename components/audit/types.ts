@@ -62,13 +62,14 @@ export interface LastCheckpoint {
 
 export interface FixityAlert {
   id: string;
-  objectKind: "transfer" | "render";
+  objectKind: "transfer" | "render" | "label_image";
   objectId: string;
   objectKey: string;
   outcome: "mismatch" | "missing" | "error";
   detail: string | null;
   checkedAt: string;
-  designation: string;
+  /** Null for a label image of the sleeve, which belongs to the disc. */
+  designation: string | null;
   discId: string;
   shelfMark: string;
 }

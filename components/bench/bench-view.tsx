@@ -13,6 +13,7 @@ import { PresetPicker } from "@/components/curves/preset-picker";
 import { ResponsePlot } from "@/components/curves/response-plot";
 import { Button } from "@/components/ui/button";
 import { Notice } from "@/components/ui/notice";
+import { LabelImages } from "@/components/labels/label-images";
 import { Panel } from "@/components/ui/panel";
 import { useChannelMode } from "@/hooks/use-channel-mode";
 import { usePresets } from "@/hooks/use-presets";
@@ -280,6 +281,9 @@ export function BenchView({
           className="min-w-0 space-y-6 xl:sticky xl:top-14 xl:max-h-[calc(100vh-4.5rem)] xl:self-start xl:overflow-y-auto xl:rounded-xl xl:pb-1"
           data-testid="bench-curve-pane"
         >
+          <Panel id="bench-label" title="The label">
+            <LabelImages discId={disc.id} sides={[]} canAdd={false} onlySideId={sideId} />
+          </Panel>
           <Panel id="bench-step-choose" title="3 · Record the curve">
             {choices.isLoading ? (
               <p className="text-sm text-ink-faint">Loading…</p>

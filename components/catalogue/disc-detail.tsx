@@ -1,7 +1,9 @@
 "use client";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { type ReactNode, useState } from "react";
+import { LabelImages } from "@/components/labels/label-images";
 import { Panel } from "@/components/ui/panel";
+import { can } from "@/lib/auth/permissions";
 import type { Role } from "@/lib/auth/roles";
 import { fetchJson } from "@/lib/http/client";
 import { AssignControl } from "./assign-control";
@@ -132,6 +134,14 @@ export function DiscDetail({
             ) : (
               <p className="text-sm text-ink-faint">No sides logged yet.</p>
             )}
+          </Panel>
+
+          <Panel title="Label images">
+            <LabelImages
+              discId={disc.id}
+              sides={disc.sides.map((s) => ({ id: s.id, designation: s.designation }))}
+              canAdd={can(user.role, "catalogue:edit")}
+            />
           </Panel>
 
           {canAssign ? (

@@ -17,6 +17,7 @@ import { statusLabel, when } from "@/components/catalogue/format";
 import { SideHeader } from "@/components/catalogue/side-header";
 import { Badge } from "@/components/ui/badge";
 import { Notice } from "@/components/ui/notice";
+import { LabelImages } from "@/components/labels/label-images";
 import { Panel } from "@/components/ui/panel";
 import { useChannelMode } from "@/hooks/use-channel-mode";
 import { useSide } from "@/hooks/use-side";
@@ -161,6 +162,10 @@ export function ReviewView({ sideId }: { sideId: string }) {
             ) : (
               <Notice tone="error">No curve is recorded for this side.</Notice>
             )}
+          </Panel>
+
+          <Panel title="The label">
+            <LabelImages discId={disc.id} sides={[]} canAdd={false} onlySideId={sideId} />
           </Panel>
 
           <Panel title="Listen">

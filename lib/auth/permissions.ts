@@ -25,6 +25,7 @@ export const actions = {
   "equipment:read": "see the equipment register, its chains, calibrations and recalls",
   "equipment:edit": "keep the equipment register: items, chains and findings",
   "equipment:calibrate": "record a calibration of a chain",
+  "packages:deliver": "write BagIt packages into the delivery bucket",
 } as const;
 
 export type Action = keyof typeof actions;
@@ -46,6 +47,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "settings:edit",
     "equipment:read",
     "equipment:edit",
+    "packages:deliver",
   ],
   archivist: [
     "lab:enter",
@@ -76,6 +78,7 @@ export const permissionTable: Record<Role, readonly Action[]> = {
     "fixity:run",
     "campaigns:run",
     "equipment:read",
+    "packages:deliver",
   ],
 };
 

@@ -81,6 +81,15 @@ export const routeAccess = {
   "GET /api/equipment/chains/[id]": "equipment:read",
   "PATCH /api/equipment/chains/[id]": "equipment:edit",
   "POST /api/equipment/chains/[id]/calibrations": "equipment:calibrate",
+  "GET /api/discs/[id]/label-images": "catalogue:read",
+  "POST /api/discs/[id]/label-images": "catalogue:edit",
+  "POST /api/label-images/[id]/complete": "catalogue:edit",
+  "GET /api/label-images/[id]/thumbnail": "catalogue:read",
+  "GET /api/label-images/[id]/download": "catalogue:read",
+  "GET /api/discs/[id]/deliveries": "audit:read",
+  "POST /api/discs/[id]/deliveries": "packages:deliver",
+  "GET /api/accessions/[id]/deliveries": "audit:read",
+  "POST /api/accessions/[id]/deliveries": "packages:deliver",
 } as const satisfies Record<string, Action | "public">;
 
 export type RouteKey = keyof typeof routeAccess;

@@ -21,6 +21,13 @@ const envSchema = z.object({
     .enum(["true", "false"])
     .default("true")
     .transform((v) => v === "true"),
+  /** Bucket that delivered BagIt packages are written into; the lab's own bucket when not set. */
+  DELIVERY_S3_BUCKET: z.string().min(3).optional(),
+  /** Folder (key prefix) of delivered bags in that bucket: ends with "/". */
+  DELIVERY_PREFIX: z
+    .string()
+    .regex(/^([A-Za-z0-9._-]+\/)+$/, "a key prefix such as delivery/ (letters, digits, . _ -, ending with /)")
+    .default("delivery/"),
   SMTP_URL: z.string().url().default("smtp://127.0.0.1:54325"),
   MAIL_FROM: z.string().min(3).default("Rillbook <rillbook@lab.example>"),
   APP_URL: z.string().url().default("http://127.0.0.1:3000"),

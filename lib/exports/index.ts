@@ -3,7 +3,7 @@ import { Readable } from "node:stream";
 import { z } from "zod";
 import { db } from "../../db";
 import { AppError } from "../http/errors";
-import { discPackage } from "./package";
+import { planAccessionBag, planDiscBag, preflight, runDelivery, deliveryTarget, zipBag } from "./bag";
 import { premisXml } from "./premis";
 import { discRecord, fileNameBase, premisRecord } from "./record";
 
@@ -21,12 +21,22 @@ function download(body: BodyInit, type: string, fileName: string): Response {
   });
 }
 
-export async function exportDisc(discId: string, input: unknown): Promise<Response> {
+/** The BagIt package as a streamed zip, after the checks that can answer plainly before any byte goes out. */
+async function bagDownload(
+  plan: Awaited<ReturnType<typeof planDiscBag>>,
+  actorId: string,
+): Promise<Response> {
+  await preflight(plan);
+  return download(
+    Readable.toWeb(zipBag(plan, actorId)) as ReadableStream,
+    "application/zip",
+    `${plan.name}.zip`,
+  );
+}
+
+export async function exportDisc(discId: string, input: unknown, actorId: string): Promise<Response> {
   const { format } = exportQuerySchema.parse(input);
-  if (format === "zip") {
-    const pkg = await discPackage(discId);
-    return download(Readable.toWeb(pkg.stream) as ReadableStream, "application/zip", pkg.fileName);
-  }
+  if (format === "zip") return bagDownload(await planDiscBag(discId), actorId);
   const record = await discRecord(discId);
   const base = fileNameBase(record.disc.shelfMark);
   if (format === "premis")
@@ -42,15 +52,13 @@ export async function exportDisc(discId: string, input: unknown): Promise<Respon
   );
 }
 
-export async function exportAccession(accessionId: string, input: unknown): Promise<Response> {
+export async function exportAccession(
+  accessionId: string,
+  input: unknown,
+  actorId: string,
+): Promise<Response> {
   const { format } = exportQuerySchema.parse(input);
-  if (format === "zip")
-    throw new AppError(
-      "invalid",
-      422,
-      "Packages are made per approved disc; export the accession as json or premis.",
-      { format: ["Use json or premis."] },
-    );
+  if (format === "zip") return bagDownload(await planAccessionBag(accessionId), actorId);
   if (!/^[0-9a-f-]{36}$/i.test(accessionId)) throw new AppError("not_found", 404, "No such accession.");
   const accession = await db
     .selectFrom("accessions")
@@ -76,4 +84,57 @@ export async function exportAccession(accessionId: string, input: unknown): Prom
     "application/json; charset=utf-8",
     `${base}-record.json`,
   );
+}
+
+/**
+ * A curator asks for the bag to be written into the delivery bucket. The bag is made by
+ * this server in the background (streaming, memory flat); its row says where it stands.
+ * The checks that can fail at once (not approved, a file missing or failing fixity) answer now.
+ */
+export async function requestDelivery(
+  actorId: string,
+  scope: "disc" | "accession",
+  id: string,
+): Promise<{ deliveryId: string; state: string }> {
+  const plan = scope === "disc" ? await planDiscBag(id) : await planAccessionBag(id);
+  await preflight(plan);
+  const { bucket, prefix } = deliveryTarget();
+  const row = await db
+    .insertInto("bag_deliveries")
+    .values({
+      scope,
+      disc_id: scope === "disc" ? id : null,
+      accession_id: scope === "accession" ? id : null,
+      bucket,
+      prefix,
+      requested_by: actorId,
+      requested_at: plan.at,
+    })
+    .returning(["id", "state"])
+    .executeTakeFirstOrThrow();
+  void runDelivery(row.id);
+  return { deliveryId: row.id, state: row.state };
+}
+
+/** The deliveries of a disc or an accession, newest first. */
+export async function listDeliveries(scope: "disc" | "accession", id: string) {
+  return db
+    .selectFrom("bag_deliveries as b")
+    .innerJoin("users as u", "u.id", "b.requested_by")
+    .select([
+      "b.id",
+      "b.state",
+      "b.bucket",
+      "b.prefix",
+      "b.payload_oxum as payloadOxum",
+      "b.tagmanifest_sha256 as tagmanifestSha256",
+      "b.error",
+      "b.requested_at as requestedAt",
+      "b.finished_at as finishedAt",
+      "u.name as requestedBy",
+    ])
+    .where(scope === "disc" ? "b.disc_id" : "b.accession_id", "=", id)
+    .orderBy("b.requested_at", "desc")
+    .limit(20)
+    .execute();
 }

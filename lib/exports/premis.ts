@@ -11,7 +11,7 @@ const EVENT_TYPE_AUTHORITY = "http://id.loc.gov/vocabulary/preservation/eventTyp
 export interface PremisFile {
   /** The object key in the bucket: the file's identifier. */
   key: string;
-  role: "flat transfer" | "access copy" | "superseded access copy";
+  role: "flat transfer" | "access copy" | "superseded access copy" | "label image";
   sha256: string;
   bytes: number;
   originalName: string;
@@ -19,6 +19,8 @@ export interface PremisFile {
   formatName: string;
   formatVersion?: string;
   sideIdentifier: string;
+  /** What sideIdentifier names: a side (the default), or the disc for a sleeve's image. */
+  partOfType?: "Rillbook side" | "Rillbook shelf mark";
   /** For an access copy: the key of the flat transfer it was made from. */
   derivedFrom?: string;
 }
@@ -65,6 +67,8 @@ const EVENT_TYPE_SLUGS: Record<string, string> = {
   appraisal: "app",
   "policy assignment": "poa",
   ingestion: "ing",
+  packing: "pac",
+  transfer: "tra",
 };
 
 function eventTypeUri(type: string): string | undefined {
@@ -141,7 +145,7 @@ export function premisXml(record: PremisRecord): string {
     p(part, "relationshipType", "structural", { authority: "relationshipType" });
     p(part, "relationshipSubType", "is included in", { authority: "relationshipSubType" });
     const r = p(part, "relatedObjectIdentifier");
-    p(r, "relatedObjectIdentifierType", "Rillbook side");
+    p(r, "relatedObjectIdentifierType", f.partOfType ?? "Rillbook side");
     p(r, "relatedObjectIdentifierValue", f.sideIdentifier);
     if (f.derivedFrom) {
       const der = p(o, "relationship");

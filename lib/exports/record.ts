@@ -174,7 +174,8 @@ export async function discRecord(discId: string) {
         "outcome",
         "checked_at as checkedAt",
       ])
-      .where("side_id", "in", ids)
+      // A label image of the sleeve is checked as the disc's, with no side.
+      .where((eb) => eb.or([eb("side_id", "in", ids), eb("disc_id", "=", discId)]))
       .orderBy("checked_at")
       .execute(),
     db
@@ -222,6 +223,7 @@ export async function discRecord(discId: string) {
       return { ...t, equipment: e ? { ...e, calibration } : null };
     }),
   );
+  const labelImages = await discLabelImages(discId);
   return {
     exportedAt: new Date().toISOString(),
     exportedBy: softwareName(),
@@ -248,11 +250,46 @@ export async function discRecord(discId: string) {
     // Per side, what its latest approval binds: the flat transfer, the curve choice and the render made from them.
     approved: approvedWork(reviews),
     fixityChecks: fixity,
+    labelImages,
     events,
   };
 }
 
 export type DiscRecordExport = Awaited<ReturnType<typeof discRecord>>;
+
+/** The disc's stored label images: photographs or scans of each side's label and of the sleeve. */
+async function discLabelImages(discId: string) {
+  const rows = await db
+    .selectFrom("label_images as l")
+    .leftJoin("sides as s", "s.id", "l.side_id")
+    .innerJoin("users as u", "u.id", "l.uploaded_by")
+    .select([
+      "l.id",
+      "l.kind",
+      "l.side_id as sideId",
+      "s.designation as side",
+      "l.object_key as objectKey",
+      "l.file_name as fileName",
+      "l.format",
+      "l.width",
+      "l.height",
+      "l.bytes",
+      "l.sha256",
+      "l.stored_at as storedAt",
+      "u.name as uploadedBy",
+    ])
+    .where("l.disc_id", "=", discId)
+    .where("l.state", "=", "stored")
+    .orderBy("l.stored_at")
+    .execute();
+  return rows.map((r) => ({
+    ...r,
+    format: r.format!,
+    bytes: Number(r.bytes),
+    sha256: r.sha256!,
+    storedAt: r.storedAt!,
+  }));
+}
 
 /** A test-disc measurement as the record carries it (lib/transfers/test-disc-evidence.ts keeps it). */
 export interface TestDiscMeasurementRecord {
@@ -357,6 +394,18 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
         derivedFrom: transferKeys.get(a.transferId),
       });
     }
+    for (const l of r.labelImages) {
+      files.push({
+        key: l.objectKey,
+        role: "label image",
+        sha256: l.sha256,
+        bytes: l.bytes,
+        originalName: l.fileName,
+        formatName: { jpeg: "JPEG", png: "PNG", tiff: "TIFF" }[l.format],
+        sideIdentifier: l.sideId ? sideName(r, l.sideId) : r.disc.shelfMark,
+        partOfType: l.sideId ? "Rillbook side" : "Rillbook shelf mark",
+      });
+    }
     for (const e of r.events) {
       if (e.actorId && !agents.has(e.actorId))
         agents.set(e.actorId, { id: e.actorId, name: e.actorName ?? "unknown person", type: "person" });
@@ -445,11 +494,43 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
             ),
           );
           break;
+        case "disc.label_image_added":
+          events.push(
+            ev(
+              "capture",
+              `${p.kind === "sleeve" ? "Image of the sleeve" : `Image of the label of side ${p.side ?? "?"}`} added (${String(p.format).toUpperCase()}, ` +
+                `${p.width ?? "?"} × ${p.height ?? "?"} px, “${p.fileName}”) after size, SHA-256 and type checks`,
+              [...entity, { type: "Rillbook object key", value: p.objectKey, role: "outcome" }],
+              "success",
+              `SHA-256 ${p.sha256}`,
+            ),
+          );
+          break;
+        case "disc.packaged":
+        case "accession.packaged":
+          events.push(
+            ev(
+              "packing",
+              `BagIt ${p.bagItVersion ?? "1.0"} package ${p.bag} made (${p.way === "delivery" ? `delivered to ${p.location}` : "downloaded as a zip"}) ` +
+                `of ${Array.isArray(p.discs) ? p.discs.join(", ") : r.disc.shelfMark}; Payload-Oxum ${p.payloadOxum}`,
+              [
+                e.kind === "accession.packaged"
+                  ? { type: "Rillbook accession", value: r.accession.identifier }
+                  : { type: "Rillbook shelf mark", value: r.disc.shelfMark },
+                { type: "BagIt bag", value: String(p.bag), role: "outcome" },
+              ],
+              "success",
+              `SHA-256 of tagmanifest-sha256.txt ${p.tagmanifestSha256}`,
+            ),
+          );
+          break;
+        case "disc.fixity_checked":
         case "side.fixity_checked":
           events.push(
             ev(
               "fixity check",
-              `SHA-256 recomputed from the stored ${p.object?.kind === "render" ? "access copy" : "flat transfer"}`,
+              `SHA-256 recomputed from the stored ${p.object?.kind === "render" ? "access copy" : p.object?.kind === "label_image" ? "label image" : "flat transfer"}` +
+                `${p.readFor ? ` while ${p.readFor}` : ""}`,
               [...entity, { type: "Rillbook object key", value: p.object?.key, role: "source" }],
               p.outcome === "pass" ? "success" : "failure",
               `${p.outcome}: expected ${p.expectedSha256}, read ${p.actualSha256 ?? "nothing"}`,

@@ -1,4 +1,4 @@
-// Fixity: re-reading stored objects (flat transfers and access copies), recomputing
+// Fixity: re-reading stored objects (flat transfers, access copies, label images), recomputing
 // their SHA-256 and recording each result as an event. Used by the worker's scheduled
 // sweep and by a curator's "check this disc now". No framework imports.
 import { type Kysely, sql } from "kysely";
@@ -9,17 +9,25 @@ import { appendEvent } from "../provenance";
 import { StoreUnreachableError, storeFailure } from "../storage/errors";
 import { hashObject } from "../storage/objects";
 
-export type StoredObjectKind = "transfer" | "render";
+export type StoredObjectKind = "transfer" | "render" | "label_image";
 
 export interface StoredObject {
   kind: StoredObjectKind;
   id: string;
   key: string;
   sha256: string;
-  sideId: string;
+  /** The side it belongs to; null for a label image of the sleeve, which is the disc's. */
+  sideId: string | null;
   discId: string;
   storedAt: Date;
 }
+
+/** What a stored object is, in the words of a message to the curators. */
+export const objectKindWords: Record<StoredObjectKind, string> = {
+  transfer: "flat transfer",
+  render: "access copy",
+  label_image: "label image",
+};
 
 /** Every stored object of the lab (or of one disc), with the checksum recorded when it was stored. */
 export async function storedObjects(
@@ -50,17 +58,31 @@ export async function storedObjects(
       "r.finished_at as storedAt",
     ])
     .where("r.status", "=", "done");
+  let labels = db
+    .selectFrom("label_images as l")
+    .select([
+      "l.id",
+      "l.object_key as key",
+      "l.sha256",
+      "l.side_id as sideId",
+      "l.disc_id as discId",
+      "l.stored_at as storedAt",
+    ])
+    .where("l.state", "=", "stored");
   if (discId) {
     transfers = transfers.where("s.disc_id", "=", discId);
     renders = renders.where("s.disc_id", "=", discId);
+    labels = labels.where("l.disc_id", "=", discId);
   }
   if (one) {
     transfers = transfers.where("t.id", "=", one.id);
     renders = renders.where("r.id", "=", one.id);
+    labels = labels.where("l.id", "=", one.id);
   }
-  const [t, r] = await Promise.all([
+  const [t, r, l] = await Promise.all([
     !one || one.kind === "transfer" ? transfers.execute() : [],
     !one || one.kind === "render" ? renders.execute() : [],
+    !one || one.kind === "label_image" ? labels.execute() : [],
   ]);
   return [
     ...t.map((x) => ({ kind: "transfer" as const, ...x })),
@@ -68,6 +90,15 @@ export async function storedObjects(
       kind: "render" as const,
       id: x.id,
       key: x.key!,
+      sha256: x.sha256!,
+      sideId: x.sideId,
+      discId: x.discId,
+      storedAt: x.storedAt ?? new Date(0),
+    })),
+    ...l.map((x) => ({
+      kind: "label_image" as const,
+      id: x.id,
+      key: x.key,
       sha256: x.sha256!,
       sideId: x.sideId,
       discId: x.discId,
@@ -116,14 +147,10 @@ async function findObject(
 /**
  * Re-reads one object (streaming, bounded memory), compares its SHA-256 with the one
  * recorded when it was stored, and records the result and its event together. A
-<<<<<<< HEAD
- * failure also mails every active curator through the outbox. `worker` names the worker
- * process that read it, recorded with the result.
-=======
  * failure (mismatch, missing, or a refusal from the store) also mails every active
  * curator through the outbox. A store that cannot be reached is no result at all: it
  * throws StoreUnreachableError, records nothing, and the queue tries the check again.
->>>>>>> faults2
+ * `worker` names the worker process that read it, recorded with the result.
  */
 export async function checkObject(
   db: Kysely<Database>,
@@ -160,6 +187,32 @@ export async function checkObject(
           ? err.message
           : String(err);
   }
+  await recordFixityResult(db, obj, { outcome, actual, bytes, detail, worker: opts.worker });
+  return outcome;
+}
+
+export interface FixityResult {
+  outcome: FixityOutcome;
+  actual: string | null;
+  bytes: number | null;
+  detail: string | null;
+  worker?: string;
+  /** Who read the object back when it was not a scheduled check (e.g. "packaging a bag"). */
+  readFor?: string;
+}
+
+/**
+ * Records one fixity result and its event in one transaction; anything but a pass also
+ * mails every active curator (the fixity alert). Used by checkObject and by any other
+ * reader that finds an object's bytes no longer match its record (the BagIt packager).
+ */
+export async function recordFixityResult(
+  db: Kysely<Database>,
+  obj: StoredObject,
+  result: FixityResult,
+): Promise<void> {
+  const { outcome, actual, bytes, detail } = result;
+  const { kind, id } = obj;
   await db.transaction().execute(async (trx) => {
     await trx
       .insertInto("fixity_checks")
@@ -168,34 +221,42 @@ export async function checkObject(
         object_id: id,
         object_key: obj.key,
         side_id: obj.sideId,
+        disc_id: kind === "label_image" ? obj.discId : null,
         expected_sha256: obj.sha256,
         actual_sha256: actual,
         bytes,
         outcome,
         detail,
-        worker_identity: opts.worker ?? null,
+        worker_identity: result.worker ?? null,
       })
       .execute();
-    const side = await trx
-      .selectFrom("sides as s")
-      .innerJoin("discs as d", "d.id", "s.disc_id")
-      .select(["s.designation", "d.shelf_mark"])
-      .where("s.id", "=", obj.sideId)
+    const disc = await trx
+      .selectFrom("discs")
+      .select("shelf_mark")
+      .where("id", "=", obj.discId)
       .executeTakeFirstOrThrow();
+    const side = obj.sideId
+      ? await trx
+          .selectFrom("sides")
+          .select("designation")
+          .where("id", "=", obj.sideId)
+          .executeTakeFirstOrThrow()
+      : null;
     await appendEvent(trx, {
       actorId: null,
-      kind: "side.fixity_checked",
-      subjectType: "side",
-      subjectId: obj.sideId,
+      kind: side ? "side.fixity_checked" : "disc.fixity_checked",
+      subjectType: side ? "side" : "disc",
+      subjectId: obj.sideId ?? obj.discId,
       discId: obj.discId,
       payload: {
-        side: side.designation,
+        ...(side ? { side: side.designation } : {}),
         object: { kind, id, key: obj.key },
         expectedSha256: obj.sha256,
         actualSha256: actual,
         bytes,
         outcome,
         ...(detail ? { detail } : {}),
+        ...(result.readFor ? { readFor: result.readFor } : {}),
       },
     });
     if (outcome !== "pass") {
@@ -205,13 +266,15 @@ export async function checkObject(
         .where("role", "=", "curator")
         .where("active", "=", true)
         .execute();
-      const what = kind === "transfer" ? "flat transfer" : "access copy";
+      const what = objectKindWords[kind];
+      const where = side ? `${disc.shelf_mark} side ${side.designation}` : disc.shelf_mark;
       for (const c of curators) {
         await enqueueMail(trx, {
           to: c.email,
-          subject: `Fixity ${outcome}: ${side.shelf_mark} side ${side.designation} (${what})`,
+          subject: `Fixity ${outcome}: ${where} (${what})`,
           text: [
-            `The fixity check of the ${what} of ${side.shelf_mark} side ${side.designation} found: ${outcome}.`,
+            `The fixity check of the ${what} of ${where} found: ${outcome}.`,
+            result.readFor ? `Found while ${result.readFor}.` : "",
             detail ? `Detail: ${detail}` : "",
             `Object: ${obj.key}`,
             "",
@@ -224,5 +287,4 @@ export async function checkObject(
       }
     }
   });
-  return outcome;
 }

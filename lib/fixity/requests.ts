@@ -24,8 +24,9 @@ export async function requestDiscFixity(input: unknown): Promise<{ queued: numbe
 export async function openFixityAlerts() {
   const failures = await db
     .selectFrom("fixity_checks as f")
-    .innerJoin("sides as s", "s.id", "f.side_id")
-    .innerJoin("discs as d", "d.id", "s.disc_id")
+    .leftJoin("sides as s", "s.id", "f.side_id")
+    // A label image of the sleeve has no side: its check names the disc itself.
+    .innerJoin("discs as d", (j) => j.on((eb) => eb("d.id", "=", eb.fn.coalesce("f.disc_id", "s.disc_id"))))
     .select([
       "f.id",
       "f.object_kind as objectKind",

@@ -102,19 +102,21 @@ describe("exports for the repository", () => {
     expect(accRun.stderr).toMatch(/validates/);
   });
 
-  it("packages the approved disc so that its manifest verifies with sha256sum", async () => {
+  it("packages the approved disc as a BagIt bag whose manifest verifies with sha256sum", async () => {
     const res = await fetch(`${appUrl}/api/discs/${discId}/export?format=zip`, {
       headers: { cookie: c.curator },
     });
     expect(res.status).toBe(200);
+    const name = /filename="([^"]+)\.zip"/.exec(res.headers.get("content-disposition") ?? "")![1];
     const zip = path.join(tmp, "package.zip");
     await fs.writeFile(zip, Buffer.from(await res.arrayBuffer()));
     await run("unzip", ["-q", zip, "-d", tmp]);
-    const dir = path.join(tmp, `EX-${tag}`);
+    const dir = path.join(tmp, name);
     const manifest = await fs.readFile(path.join(dir, "manifest-sha256.txt"), "utf8");
-    expect(manifest).toMatch(/record\.json/);
-    expect(manifest).toMatch(/premis\.xml/);
-    expect(manifest).toMatch(/access\/.*\.wav/);
+    expect(manifest).toMatch(/data\/record\.json/);
+    expect(manifest).toMatch(/data\/premis\.xml/);
+    expect(manifest).toMatch(/data\/access\/.*\.wav/);
+    expect(manifest).toMatch(/data\/transfers\/.*-flat\.wav/);
     // coreutils sha256sum, outside the project, checks every line.
     const { stdout } = await run("sha256sum", ["-c", "manifest-sha256.txt"], { cwd: dir });
     expect(
@@ -123,7 +125,7 @@ describe("exports for the repository", () => {
         .split("\n")
         .every((l) => l.endsWith(": OK")),
     ).toBe(true);
-    const record = JSON.parse(await fs.readFile(path.join(dir, "record.json"), "utf8"));
+    const record = JSON.parse(await fs.readFile(path.join(dir, "data", "record.json"), "utf8"));
     expect(record.disc.shelfMark).toBe(`EX-${tag}`);
     expect(record.events.length).toBeGreaterThan(5);
   });

@@ -3,7 +3,7 @@ import { route } from "@/lib/http/route";
 
 export const dynamic = "force-dynamic";
 
-/** The disc for the repository: ?format=json (the record), premis (PREMIS 3.0 XML) or zip (package of an approved disc). */
-export const GET = route("GET /api/discs/[id]/export", async (req, { params }) =>
-  exportDisc(String(params.id), Object.fromEntries(req.nextUrl.searchParams)),
+/** The disc for the repository: ?format=json (the record), premis (PREMIS 3.0 XML) or zip (the BagIt package of an approved disc, streamed). */
+export const GET = route("GET /api/discs/[id]/export", async (req, { params, user }) =>
+  exportDisc(String(params.id), Object.fromEntries(req.nextUrl.searchParams), user.id),
 );

@@ -1,7 +1,7 @@
 import "server-only";
 // BagIt 1.0 packages (RFC 8493) of an approved disc, or of an accession's approved discs,
 // for the repository: data/ holds the flat transfers (the masters), the access copies, the
-// label images, record.json and premis.xml; manifest-sha256.txt and manifest-sha512.txt,
+// label images, the test-disc points files the curves rest on, record.json and premis.xml; manifest-sha256.txt and manifest-sha512.txt,
 // bag-info.txt and tagmanifest-sha256.txt describe them. Two ways out share one writer:
 // a streamed zip (yazl, ZIP64 past 4 GB) and plain files under the delivery prefix of a
 // bucket (multipart uploads for big objects). Both stream: no payload file is held in memory.
@@ -19,6 +19,7 @@ import "server-only";
 // a bag at all; a stopped delivery deletes what it wrote. Before a download starts, the
 // objects' sizes are looked at and their last fixity results read, so the usual failures
 // (a missing object, one already found damaged) answer a plain 409 before any byte goes out.
+import { createHash } from "node:crypto";
 import type { Readable } from "node:stream";
 import { HeadObjectCommand } from "@aws-sdk/client-s3";
 import { sql } from "kysely";
@@ -141,10 +142,44 @@ function discPayload(record: DiscRecordExport, dir: string) {
   return { objects, texts };
 }
 
+/**
+ * The points files of the test-disc measurements the approved curve choices rest on, kept
+ * in the database with their SHA-256 (lib/transfers/test-disc-evidence.ts): checked against
+ * it here, as a stored object is, before they join the payload under evidence/.
+ */
+async function evidenceTexts(record: DiscRecordExport, dir: string): Promise<PayloadText[]> {
+  const choiceToSide = new Map(
+    Object.entries(record.approved).map(([sideId, a]) => [a.curveChoice.id, sideId] as const),
+  );
+  if (!choiceToSide.size) return [];
+  const rows = await db
+    .selectFrom("curve_choice_evidence")
+    .select(["choice_id", "source_text", "source_sha256"])
+    .where("choice_id", "in", [...choiceToSide.keys()])
+    .where("source_text", "is not", null)
+    .execute();
+  const base = fileNameBase(record.disc.shelfMark);
+  return rows.map((r) => {
+    const side = record.disc.sides.find((s) => s.id === choiceToSide.get(r.choice_id));
+    const content = Buffer.from(r.source_text ?? "", "utf8");
+    if (createHash("sha256").update(content).digest("hex") !== r.source_sha256)
+      throw new AppError(
+        "conflict",
+        409,
+        `The test-disc points of ${record.disc.shelfMark} side ${side?.designation ?? "?"} no longer match their SHA-256: nothing was packaged.`,
+      );
+    return {
+      path: `${dir}evidence/${base}-${safe(side?.designation ?? "side")}-test-disc-points.csv`,
+      content,
+    };
+  });
+}
+
 /** The bag of one approved disc. */
 export async function planDiscBag(discId: string, at = new Date()): Promise<BagPlan> {
   const record = await discRecord(discId);
   const { objects, texts } = discPayload(record, "data/");
+  texts.push(...(await evidenceTexts(record, "data/")));
   return {
     scope: "disc",
     name: `${fileNameBase(record.disc.shelfMark)}-bag-${bagStamp(at)}`,
@@ -202,7 +237,7 @@ export async function planAccessionBag(accessionId: string, at = new Date()): Pr
     records.push(record);
     const part = discPayload(record, `data/${fileNameBase(d.shelfMark)}/`);
     objects.push(...part.objects);
-    texts.push(...part.texts);
+    texts.push(...part.texts, ...(await evidenceTexts(record, `data/${fileNameBase(d.shelfMark)}/`)));
   }
   texts.push({
     path: "data/accession.json",

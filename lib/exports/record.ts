@@ -9,6 +9,7 @@ import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-e
 import { AppError } from "../http/errors";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { softwareName } from "../version";
+import type { PremisAgent, PremisEvent, PremisFile, PremisRecord } from "./premis";
 
 interface ReviewRow {
   sideId: string;
@@ -41,7 +42,6 @@ function approvedWork(reviews: readonly ReviewRow[]) {
   }
   return bySide;
 }
-import type { PremisAgent, PremisEvent, PremisFile, PremisRecord } from "./premis";
 
 /** Everything the lab knows of one disc, for the repository: record, choices, files, reviews, fixity and events. */
 export async function discRecord(discId: string) {

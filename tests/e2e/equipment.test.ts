@@ -4,8 +4,8 @@
 // the expected curve before it is saved); uploads a side's flat transfer on the bench with
 // that chain, swapping in the new stylus; has the access copy rendered, and the coding
 // history read back from the file holds the chain's analogue-source and converter lines.
-// The side is approved (API), and the disc's zip package downloads and opens (the BagIt
-// validation joins when that work is on main). Last, a fault is recorded against the
+// The side is approved (API), and the disc's package downloads as a zip and is a valid
+// BagIt bag. Last, a fault is recorded against the
 // stylus, and the recall lists the transfer. Screenshots "equipment-register",
 // "equipment-chain", "equipment-calibration", "bench-chain-upload", "equipment-item" and
 // "equipment-recall" land in storage/test/screenshots.
@@ -20,6 +20,7 @@ import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { bufferSource, parseCodingHistory, readWavHeader } from "@/lib/audio";
 import { analogGainDb, analogModel, RIAA_SPEC } from "@/lib/curves";
 import { api, appUrl, signInCookie } from "../support/app";
+import { validateBag } from "../support/bagit";
 import { launchBrowser, screenshot, SignInPage } from "../support/browser";
 import { makeWav } from "../support/make-wav";
 import { assignedDisc, chooseCurve, fixityNow, type LabCookies } from "../support/pipeline";
@@ -211,6 +212,12 @@ describe("the equipment register", () => {
       await fs.writeFile(file, Buffer.from(await zip.arrayBuffer()));
       await exec("unzip", ["-tq", file]);
       await exec("unzip", ["-q", file, "-d", tmp]);
+      // The package is a valid BagIt bag (RFC 8493, tests/support/bagit.ts).
+      const bag = path.join(
+        tmp,
+        (await fs.readdir(tmp)).find((f) => f !== "package.zip")!,
+      );
+      expect((await validateBag(bag)).problems).toEqual([]);
       const names = (await fs.readdir(tmp, { recursive: true })).map(String);
       const recordFile = names.find((n) => n.endsWith("record.json"))!;
       const premisFile = names.find((n) => n.endsWith("premis.xml"))!;

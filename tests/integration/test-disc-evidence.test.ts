@@ -1,13 +1,27 @@
 // A curve choice that rests on a test-disc measurement keeps the measurement as evidence:
 // the points, the server's own fit and its residuals, and the points file with its SHA-256;
 // it is shown with the choice, and goes into the record and PREMIS.
+import { execFile } from "node:child_process";
 import { createHash } from "node:crypto";
+import { promises as fs } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { promisify } from "node:util";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { resolveCurve } from "@/lib/curves";
-import { api } from "../support/app";
+import { api, appUrl } from "../support/app";
+import { validateBag } from "../support/bagit";
 import { testDb } from "../support/db";
-import { assignedDisc, labCookies, type LabCookies } from "../support/pipeline";
+import {
+  assignedDisc,
+  fixityNow,
+  flatTransfer,
+  labCookies,
+  type LabCookies,
+  renderAndWait,
+  uploadTransfer,
+} from "../support/pipeline";
 import { runPython } from "../support/python";
 
 const tag = Date.now().toString(36);
@@ -220,4 +234,66 @@ describe("test-disc measurements kept with a curve choice", () => {
       sql`DELETE FROM curve_choice_evidence WHERE choice_id = ${kept.choice_id}`.execute(testDb),
     ).rejects.toThrow(/permission denied|immutable/);
   });
+
+  it("puts the points file the approved curve rests on into the disc's bag, under its recorded SHA-256", async () => {
+    const {
+      discId: packagedDisc,
+      sideIds: [side],
+    } = await assignedDisc(c, `TDB-${tag}`, ["A"]);
+    const chosen = await api("/api/curve-choices", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        ...choice({
+          evidenceKind: "test_disc",
+          measurement: {
+            pointsKind: "playback",
+            fit: ["turnover", "rolloff", "levelOffset"],
+            sourceText: pointsFile,
+          },
+        }),
+        sideIds: [side],
+      },
+    });
+    expect(chosen.status).toBe(201);
+    expect((await uploadTransfer(c, side, flatTransfer(2, 5), `TDB-${tag}.wav`)).done.status).toBe(201);
+    await renderAndWait(c, side);
+    const sent = await api(`/api/sides/${side}/transition`, {
+      cookie: c.engineer,
+      method: "POST",
+      body: { to: "in_review" },
+    });
+    expect(sent.status).toBe(200);
+    await fixityNow(c, packagedDisc, [side]);
+    const approved = await api(`/api/sides/${side}/review`, {
+      cookie: c.curator,
+      method: "POST",
+      body: { decision: "approved" },
+    });
+    expect(approved.status).toBe(200);
+
+    const res = await fetch(`${appUrl}/api/discs/${packagedDisc}/export?format=zip`, {
+      headers: { cookie: c.curator },
+    });
+    expect(res.status).toBe(200);
+    const dir = await fs.mkdtemp(path.join(os.tmpdir(), "rillbook-td-"));
+    try {
+      await fs.writeFile(path.join(dir, "bag.zip"), Buffer.from(await res.arrayBuffer()));
+      await promisify(execFile)("unzip", ["-q", path.join(dir, "bag.zip"), "-d", dir]);
+      const bag = path.join(
+        dir,
+        (await fs.readdir(dir)).find((f) => f !== "bag.zip")!,
+      );
+      const report = await validateBag(bag);
+      expect(report.problems).toEqual([]);
+      const evidence = report.payload.find((p) => p.startsWith("data/evidence/"));
+      expect(evidence).toBe(`data/evidence/TDB-${tag}-A-test-disc-points.csv`);
+      expect(await fs.readFile(path.join(bag, evidence!), "utf8")).toBe(pointsFile);
+      expect(report.manifests.sha256.get(evidence!)).toBe(
+        createHash("sha256").update(pointsFile).digest("hex"),
+      );
+    } finally {
+      await fs.rm(dir, { recursive: true, force: true });
+    }
+  }, 240_000);
 });

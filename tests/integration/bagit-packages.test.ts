@@ -12,11 +12,11 @@ import path from "node:path";
 import { promisify } from "node:util";
 import { GetObjectCommand, ListObjectsV2Command } from "@aws-sdk/client-s3";
 import { sql } from "kysely";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, onTestFinished } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, appUrl, signInCookie, waitForMail } from "../support/app";
 import { validateBag } from "../support/bagit";
-import { testBucketClient } from "../support/bucket";
+import { damageStoredObject, testBucketClient } from "../support/bucket";
 import { testDb } from "../support/db";
 import { addLabelImage, labelPicture } from "../support/label-images";
 import { approvedDisc, type LabCookies, labCookies, until } from "../support/pipeline";
@@ -307,6 +307,7 @@ describe("a bag written into the delivery prefix of the bucket", () => {
 });
 
 describe("a payload file whose bytes no longer match its record", () => {
+  let repair: (() => Promise<void>) | undefined;
   let shelf: string;
   let disc: string;
   let key: string;
@@ -324,11 +325,12 @@ describe("a payload file whose bytes no longer match its record", () => {
         .executeTakeFirstOrThrow()
     ).object_key!;
     // Flip a byte in s3rver's own storage, as bit rot would, keeping the size.
-    const file = path.join(process.cwd(), "storage", "test", "s3", "rillbook", `${key}._S3rver_object`);
-    const bytes = await fs.readFile(file);
-    bytes[bytes.length - 100] ^= 0xff;
-    await fs.writeFile(file, bytes);
+    repair = await damageStoredObject(key, -100);
   }, 240_000);
+
+  afterAll(async () => {
+    await repair?.();
+  });
 
   it("stops a delivery, leaves nothing under its prefix, and raises the fixity alert", async () => {
     const asked = await api(`/api/discs/${disc}/deliveries`, { cookie: c.curator, method: "POST" });
@@ -369,10 +371,7 @@ describe("a download that meets a damaged file on the way", () => {
       .where("s.disc_id", "=", disc)
       .executeTakeFirstOrThrow();
     // Same size, last fixity check passed: only reading the bytes finds it.
-    const file = path.join(process.cwd(), "storage", "test", "s3", "rillbook", `${key}._S3rver_object`);
-    const bytes = await fs.readFile(file);
-    bytes[200] ^= 0x01;
-    await fs.writeFile(file, bytes);
+    onTestFinished(await damageStoredObject(key, 200));
 
     const res = await fetch(`${appUrl}/api/discs/${disc}/export?format=zip`, {
       headers: { cookie: c.curator },

@@ -6,8 +6,9 @@ import { existsSync, promises as fs } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, onTestFinished } from "vitest";
 import { api, appUrl, waitForMail } from "../support/app";
+import { damageStoredObject } from "../support/bucket";
 import { testDb } from "../support/db";
 import {
   approvedDisc,
@@ -47,10 +48,7 @@ describe("fixity", () => {
     expect(first.map((r) => r.outcome)).toEqual(["pass"]);
 
     // Flip bytes in s3rver's own storage, as bit rot or a careless hand would.
-    const file = path.join(process.cwd(), "storage", "test", "s3", "rillbook", `${key}._S3rver_object`);
-    const bytes = await fs.readFile(file);
-    bytes[bytes.length - 10] ^= 0xff;
-    await fs.writeFile(file, bytes);
+    onTestFinished(await damageStoredObject(key, -10));
 
     const second = await fixityNow(c, discId, sideIds);
     expect(second[0].outcome).toBe("mismatch");

@@ -32,7 +32,7 @@ export function MeasurementEvidence({
 }: {
   measurement: MeasurementJson;
   chosen: CurveSpec;
-  /** In a narrow column (the bench's curve form): the figures two by two. */
+  /** In a narrow column (the bench's curve form): the figures two by two and the residuals, without the response plot. */
   compact?: boolean;
 }) {
   return (
@@ -79,18 +79,21 @@ export function MeasurementEvidence({
           </>
         ) : null}
       </p>
-      <ResponsePlot
-        curves={[
-          { label: "Fitted to the points", spec: m.fittedSpec, color: "#a9591a" },
-          { label: "Chosen curve", spec: chosen, color: "#2f6f6a" },
-        ]}
-        points={measuredPlaybackPoints(m)}
-        pointsLabel="Measured points (as playback)"
-        showAsymptotes={false}
-        showPhase={false}
-        height={300}
-        testId="measurement-plot"
-      />
+      {/* The response plot needs a wider column than the bench's curve form; there the residuals say enough. */}
+      {compact ? null : (
+        <ResponsePlot
+          curves={[
+            { label: "Fitted to the points", spec: m.fittedSpec, color: "#a9591a" },
+            { label: "Chosen curve", spec: chosen, color: "#2f6f6a" },
+          ]}
+          points={measuredPlaybackPoints(m)}
+          pointsLabel="Measured points (as playback)"
+          showAsymptotes={false}
+          showPhase={false}
+          height={300}
+          testId="measurement-plot"
+        />
+      )}
       <ResidualPlot
         residuals={m.residuals}
         rmsDb={m.rmsDb}

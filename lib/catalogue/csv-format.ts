@@ -130,10 +130,33 @@ export interface FileDuplicate {
   firstRow: number;
 }
 
-/** One row of the sheet, with its values by column (absent columns read as ""). */
+/** Where each column's cell sits in a row's `cells` (the order of `catalogueColumns`). */
+export const columnIndex = Object.fromEntries(catalogueColumns.map((c, i) => [c, i])) as Record<
+  CatalogueColumn,
+  number
+>;
+const shelfMarkAt = columnIndex.shelf_mark;
+
+/**
+ * One row of the sheet: its cells in the order of `catalogueColumns` (absent columns read
+ * as ""), and its shelf mark as a key (trimmed, lower case), worked out once.
+ */
 export interface SheetRow {
   row: number;
-  values: Record<CatalogueColumn, string>;
+  key: string;
+  cells: string[];
+}
+
+/** A row's cells by column name. */
+export function rowValues(r: SheetRow): Record<CatalogueColumn, string> {
+  return valuesOf(r.cells);
+}
+
+/** Cells by column name, for the few rows that are checked field by field. */
+function valuesOf(cells: readonly string[]): Record<CatalogueColumn, string> {
+  const values = {} as Record<CatalogueColumn, string>;
+  for (let i = 0; i < catalogueColumns.length; i++) values[catalogueColumns[i]] = cells[i];
+  return values;
 }
 
 export interface ReadSheet {
@@ -339,7 +362,10 @@ export function readCatalogueCsv(text: string): ReadSheet {
   if (errors.length) return { ...none, errors };
 
   const dataRows = records.length - 1;
-  const filled = records.slice(1).filter((r) => !isBlank(r)).length;
+  // Which rows are blank, worked out once: they are skipped but still counted.
+  const blank = records.map(isBlank);
+  let filled = 0;
+  for (let i = 1; i <= dataRows; i++) if (!blank[i]) filled++;
   if (filled > maxImportRows) {
     return {
       ...none,
@@ -360,12 +386,15 @@ export function readCatalogueCsv(text: string): ReadSheet {
       errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }],
     };
 
-  const columnAt = catalogueColumns.map((name) => [name, at.get(name) ?? -1] as const);
+  const columnAt = catalogueColumns.map((name) => at.get(name) ?? -1);
+  // A header in the export's own order (the usual case: a file exported and brought back)
+  // lets each row keep the parser's array of cells rather than be copied into another.
+  const inOrder = header.length >= columnAt.length && columnAt.every((at, i) => at === i);
   const rows: SheetRow[] = [];
   for (let i = 1; i <= dataRows; i++) {
     const cells = records[i];
     const row = i + 1;
-    if (isBlank(cells)) continue;
+    if (blank[i]) continue;
     if (cells.length > header.length && cells.slice(header.length).some((c) => c.trim() !== "")) {
       errors.push({
         row,
@@ -376,9 +405,17 @@ export function readCatalogueCsv(text: string): ReadSheet {
       });
       continue;
     }
-    const values = {} as Record<CatalogueColumn, string>;
-    for (const [name, i] of columnAt) values[name] = i < 0 ? "" : unprotectFormula(cells[i] ?? "");
-    rows.push({ row, values });
+    let own: string[];
+    if (inOrder) {
+      own = cells;
+      own.length = columnAt.length;
+      for (let c = 0; c < own.length; c++) own[c] = unprotectFormula(own[c] ?? "");
+    } else {
+      own = new Array<string>(columnAt.length);
+      for (let c = 0; c < columnAt.length; c++)
+        own[c] = columnAt[c] < 0 ? "" : unprotectFormula(cells[columnAt[c]] ?? "");
+    }
+    rows.push({ row, key: own[shelfMarkAt].trim().toLowerCase(), cells: own });
   }
   return { rows, errors, columns: catalogueColumns.filter((c) => at.has(c)), delimiter };
 }
@@ -555,9 +592,10 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
         disc: ReturnType<typeof discFieldsSchema.safeParse>;
       }
     | undefined;
-  for (const { row, values: cells } of sheet) {
+  for (const { row, key, cells: rowCells } of sheet) {
     const rowErrors: ImportError[] = [];
-    const known = options.existing?.(cells.shelf_mark.trim().toLowerCase());
+    const cells = valuesOf(rowCells);
+    const known = options.existing?.(key);
     const values = known ? fillFromExisting(cells, known, options.clearEmpty ?? false, present) : cells;
     const version = versionOf(values.version);
     if (version === "bad")
@@ -587,7 +625,6 @@ export function buildDiscs(sheet: SheetRow[], options: BuildOptions): BuiltSheet
         });
     }
     // A disc's later rows repeat its columns: the same cells (and accession) give the same result.
-    const key = values.shelf_mark.trim().toLowerCase();
     const disc =
       previous &&
       previous.key === key &&
@@ -794,33 +831,35 @@ export function setAsideUnchanged(
   existing: (shelfMarkKey: string) => ExportDisc | undefined,
   columns: readonly CatalogueColumn[],
 ): UnchangedSplit {
-  const groups: SheetRow[][] = [];
+  // Groups of consecutive rows with the same shelf mark, as [first, end) ranges of `sheet`.
+  const starts: number[] = [];
   const groupsOfKey = new Map<string, number>();
   let lastKey: string | null = null;
-  for (const r of sheet) {
-    const key = r.values.shelf_mark.trim().toLowerCase();
-    if (key !== "" && key === lastKey) groups[groups.length - 1].push(r);
-    else {
-      groups.push([r]);
+  for (let i = 0; i < sheet.length; i++) {
+    const key = sheet[i].key;
+    if (key === "" || key !== lastKey) {
+      starts.push(i);
       groupsOfKey.set(key, (groupsOfKey.get(key) ?? 0) + 1);
     }
     lastKey = key;
   }
+  starts.push(sheet.length);
   const split: UnchangedSplit = { rows: [], discs: 0, rowCount: 0 };
   const canSetAside = columns.includes("version");
   const present = new Set<string>(columns);
-  const compared = specs.filter((c) => present.has(c.name));
-  for (const group of groups) {
-    const key = group[0].values.shelf_mark.trim().toLowerCase();
+  const compared = catalogueColumnSpecs.flatMap((c, i) => (present.has(c.name) ? [{ spec: c, at: i }] : []));
+  for (let g = 0; g + 1 < starts.length; g++) {
+    const first = starts[g];
+    const end = starts[g + 1];
+    const key = sheet[first].key;
     const known = canSetAside && key && groupsOfKey.get(key) === 1 ? existing(key) : undefined;
-    if (
-      known &&
-      Math.max(1, known.sides.length) === group.length &&
-      group.every((r, i) => rowAsExported(r.values, known, i, compared))
-    ) {
+    let asExported = known !== undefined && Math.max(1, known.sides.length) === end - first;
+    for (let i = first; asExported && i < end; i++)
+      asExported = rowAsExported(sheet[i].cells, known!, i - first, compared);
+    if (asExported) {
       split.discs++;
-      split.rowCount += group.length;
-    } else split.rows.push(...group);
+      split.rowCount += end - first;
+    } else for (let i = first; i < end; i++) split.rows.push(sheet[i]);
   }
   return split;
 }
@@ -830,13 +869,14 @@ export function setAsideUnchanged(
  * only row when it has no sides), compared cell by cell without writing the row out.
  */
 function rowAsExported(
-  values: Record<CatalogueColumn, string>,
+  cells: readonly string[],
   d: ExportDisc,
   index: number,
-  compared: readonly ColumnSpec[],
+  compared: readonly { spec: ColumnSpec; at: number }[],
 ): boolean {
   const side = d.sides[index] ?? null;
-  return compared.every((c) => values[c.name as CatalogueColumn] === exportedCell(d, side, c));
+  for (const { spec, at } of compared) if (cells[at] !== exportedCell(d, side, spec)) return false;
+  return true;
 }
 
 /** The rows of one disc as written to the file: formula-looking cells protected. */

@@ -15,6 +15,7 @@ import {
 import {
   type BuiltDisc,
   buildDiscs,
+  columnIndex,
   decodeCsv,
   type DiscChanges,
   discChanges,
@@ -160,13 +161,26 @@ interface Checked {
  */
 async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
   const { defaultAccession, fileName, clearEmpty } = options;
-  const sha256 = createHash("sha256").update(upload.bytes).digest("hex");
   const read = readCatalogueCsv(decodeCsv(upload.bytes));
 
+  // The discs the file's shelf marks name (the unique index is on lower(shelf_mark)), with
+  // their sides, asked for as soon as the rows are read: the file's hash is worked out and
+  // the accessions are looked up while the database reads them.
+  const marks: string[] = [];
+  for (const r of read.rows) if (r.key) marks.push(r.key);
+  const reading = readDiscFieldsByShelfMarks(db, marks);
+  // Settled either way, so a refusal below never leaves it unhandled.
+  reading.catch(() => undefined);
+  const sha256 = createHash("sha256").update(upload.bytes).digest("hex");
+
   // Accessions: the ones the file names, by identifier, and the default one.
-  const identifiers = [
-    ...new Set(read.rows.map((r) => r.values.accession.trim().toLowerCase()).filter(Boolean)),
-  ];
+  const accessionAt = columnIndex.accession;
+  const identifierSet = new Set<string>();
+  for (const r of read.rows) {
+    const identifier = r.cells[accessionAt].trim().toLowerCase();
+    if (identifier) identifierSet.add(identifier);
+  }
+  const identifiers = [...identifierSet];
   const known = new Map<string, { id: string; identifier: string }>();
   let defaultIdentifier = "";
   if (identifiers.length || defaultAccession) {
@@ -189,11 +203,7 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
     throw new ImportRefused("unknown_accession", "The accession chosen for rows without one does not exist.");
   const identifierOfId = new Map([...known.values()].map((a) => [a.id, a.identifier]));
 
-  // The discs the file's shelf marks name (the unique index is on lower(shelf_mark)), with their sides.
-  const records = await readDiscFieldsByShelfMarks(
-    db,
-    read.rows.map((r) => r.values.shelf_mark.trim()).filter(Boolean),
-  );
+  const records = await reading;
   const byMark = new Map(records.map((d) => [d.shelfMark.toLowerCase(), d]));
 
   // A disc brought back as exported changes nothing: it is counted, not checked again.

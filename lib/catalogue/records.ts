@@ -73,7 +73,14 @@ export async function readDiscFieldsByShelfMarks(db: Db, shelfMarks: string[]): 
     .orderBy(sql`lower(s.designation)`)
     .execute();
   const sidesOf = byDisc(sides);
-  return discs.map((d) => ({ ...withNumbers(d), sides: sidesOf.get(d.id) ?? [] }));
+  const out: DiscFieldsRecord[] = [];
+  for (const d of discs) {
+    const record = d as unknown as DiscFieldsRecord;
+    setNumbers(record, d);
+    record.sides = sidesOf.get(d.id) ?? [];
+    out.push(record);
+  }
+  return out;
 }
 
 /** A side's catalogue fields, and the disc it is on: what every reading of sides selects. */
@@ -97,6 +104,15 @@ function byDisc<T extends { discId: string }>(rows: T[]): Map<string, Omit<T, "d
     else out.set(discId, [side]);
   }
   return out;
+}
+
+/** withNumbers in place, for a row read only to be turned into its record. */
+function setNumbers(
+  record: { diameterIn: number | null; nominalSpeedRpm: number },
+  row: { diameterIn: string | number | null; nominalSpeedRpm: string | number },
+): void {
+  record.diameterIn = row.diameterIn === null ? null : Number(row.diameterIn);
+  record.nominalSpeedRpm = Number(row.nominalSpeedRpm);
 }
 
 /** pg reads numeric columns as text: the diameter and the speed as numbers. */

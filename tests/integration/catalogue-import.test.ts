@@ -7,7 +7,7 @@ import { stringify } from "csv-stringify/sync";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
-import { catalogueColumns, readCatalogueCsv } from "@/lib/catalogue/csv-format";
+import { catalogueColumns, readCatalogueCsv, rowValues } from "@/lib/catalogue/csv-format";
 import { api, appUrl, type Json, sameOrigin, signInCookie } from "../support/app";
 import { testDb } from "../support/db";
 
@@ -542,7 +542,7 @@ describe("export and import again", () => {
     );
     expect(view.status).toBe(200);
     const rows = readCatalogueCsv(view.text).rows;
-    expect(rows.map((r) => [r.values.shelf_mark, r.values.side])).toEqual([
+    expect(rows.map((r) => [rowValues(r).shelf_mark, rowValues(r).side])).toEqual([
       [`V${stamp}-2`, ""],
       [`V${stamp}-1`, "1"],
       [`V${stamp}-1`, "2"],
@@ -560,14 +560,14 @@ describe("export and import again", () => {
       for (const c of catalogueColumns) {
         const expected =
           c === "shelf_mark"
-            ? rows[i].values[c].replace(`V${stamp}-`, `W${stamp}-`)
+            ? rowValues(rows[i])[c].replace(`V${stamp}-`, `W${stamp}-`)
             : c === "accession"
               ? copy.identifier
-              : rows[i].values[c];
-        expect(r.values[c], `row ${r.row}, ${c}`).toBe(expected);
+              : rowValues(rows[i])[c];
+        expect(rowValues(r)[c], `row ${r.row}, ${c}`).toBe(expected);
       }
     });
-    expect(back[1].values).toMatchObject({
+    expect(rowValues(back[1])).toMatchObject({
       base: "glass",
       diameter_in: "16",
       speed_rpm: "33.33",
@@ -576,7 +576,7 @@ describe("export and import again", () => {
       condition_flags: "cracks;residue",
       title: "Talk, part 1",
     });
-    expect(back[0].values).toMatchObject({
+    expect(rowValues(back[0])).toMatchObject({
       diameter_in: "12.5",
       year_from: "1936",
       year_to: "1939",

@@ -831,7 +831,29 @@ export function setAsideUnchanged(
   existing: (shelfMarkKey: string) => ExportDisc | undefined,
   columns: readonly CatalogueColumn[],
 ): UnchangedSplit {
-  // Groups of consecutive rows with the same shelf mark, as [first, end) ranges of `sheet`.
+  if (!columns.includes("version")) return { rows: sheet, discs: 0, rowCount: 0 };
+  const present = new Set<string>(columns);
+  const compared = catalogueColumnSpecs.flatMap((c, i) => (present.has(c.name) ? [{ spec: c, at: i }] : []));
+  return splitUnchanged(sheet, (first, end) => {
+    const known = existing(sheet[first].key);
+    if (known === undefined || Math.max(1, known.sides.length) !== end - first) return false;
+    for (let i = first; i < end; i++)
+      if (!rowAsExported(sheet[i].cells, known, i - first, compared)) return false;
+    return true;
+  });
+}
+
+/**
+ * Splits a sheet into groups of consecutive rows with the same shelf mark and sets aside
+ * the groups `asExported` says are a catalogued disc brought back unchanged. Only a shelf
+ * mark that has one group is asked about, and never a group between two groups of one
+ * shelf mark: taking it out would join them, and their repeat would go unreported.
+ */
+function splitUnchanged(
+  sheet: SheetRow[],
+  asExported: (first: number, end: number) => boolean,
+): UnchangedSplit {
+  // Groups as [first, end) ranges of `sheet`.
   const starts: number[] = [];
   const groupsOfKey = new Map<string, number>();
   let lastKey: string | null = null;
@@ -845,23 +867,123 @@ export function setAsideUnchanged(
   }
   starts.push(sheet.length);
   const split: UnchangedSplit = { rows: [], discs: 0, rowCount: 0 };
-  const canSetAside = columns.includes("version");
-  const present = new Set<string>(columns);
-  const compared = catalogueColumnSpecs.flatMap((c, i) => (present.has(c.name) ? [{ spec: c, at: i }] : []));
   for (let g = 0; g + 1 < starts.length; g++) {
     const first = starts[g];
     const end = starts[g + 1];
     const key = sheet[first].key;
-    const known = canSetAside && key && groupsOfKey.get(key) === 1 ? existing(key) : undefined;
-    let asExported = known !== undefined && Math.max(1, known.sides.length) === end - first;
-    for (let i = first; asExported && i < end; i++)
-      asExported = rowAsExported(sheet[i].cells, known!, i - first, compared);
-    if (asExported) {
+    const before = g > 0 ? sheet[starts[g - 1]].key : "";
+    const between = before !== "" && end < sheet.length && sheet[end].key === before;
+    if (key && groupsOfKey.get(key) === 1 && !between && asExported(first, end)) {
       split.discs++;
       split.rowCount += end - first;
     } else for (let i = first; i < end; i++) split.rows.push(sheet[i]);
   }
   return split;
+}
+
+/**
+ * A catalogued disc's cells as the export writes them, put together by the database
+ * (lib/catalogue/records.ts's `readExportedCellsByShelfMarks`).
+ */
+export interface ExportedCellsText {
+  /** The disc's columns (shelf_mark to handling_notes) separated by `cellSeparator`. */
+  disc: string;
+  /** The side columns of each side, separated by `cellSeparator`, the sides by `rowSeparator`; null without sides. */
+  sides: string | null;
+  sideCount: number;
+  version: string;
+}
+export const cellSeparator = "\x1f";
+export const rowSeparator = "\x1e";
+const cellSep = 0x1f;
+const rowSep = 0x1e;
+const discColumnCount = discColumnNames.length;
+const versionAt = columnIndex.version;
+
+/**
+ * Where `cells[from..to)`, separated by `cellSeparator`, end in `text` when it holds
+ * them from `at` on, followed by `end` (a separator's code, or -1 for the end of the
+ * text); -1 when it does not.
+ */
+function cellsEndIn(
+  cells: readonly string[],
+  from: number,
+  to: number,
+  text: string,
+  at: number,
+  end: number,
+): number {
+  for (let c = from; c < to; c++) {
+    const cell = cells[c];
+    if (!text.startsWith(cell, at)) return -1;
+    at += cell.length;
+    const next = c + 1 < to ? cellSep : end;
+    if (next < 0 ? at !== text.length : text.charCodeAt(at) !== next) return -1;
+    at++;
+  }
+  return at;
+}
+
+/** How many times a character's code occurs in a text. */
+function occurrences(text: string, code: number): number {
+  const ch = String.fromCharCode(code);
+  let n = 0;
+  for (let i = text.indexOf(ch); i !== -1; i = text.indexOf(ch, i + 1)) n++;
+  return n;
+}
+
+/**
+ * Whether a group of rows (every column present) is, cell for cell, the export of the
+ * disc the database put together as text. The texts match only when each of the rows'
+ * cells sits at its place between the separators; once they match, counting the
+ * separators tells whether a stored cell holds one of them itself (then nothing is
+ * said here, and the disc is compared field by field like any other).
+ */
+function groupAsExportedText(
+  sheet: readonly SheetRow[],
+  first: number,
+  end: number,
+  e: ExportedCellsText,
+): boolean {
+  const n = end - first;
+  if (n !== Math.max(1, e.sideCount)) return false;
+  let at = 0;
+  for (let i = first; i < end; i++) {
+    const cells = sheet[i].cells;
+    if (cells[versionAt] !== e.version) return false;
+    if (cellsEndIn(cells, 0, discColumnCount, e.disc, 0, -1) < 0) return false;
+    if (e.sides === null) {
+      for (let c = discColumnCount; c < versionAt; c++) if (cells[c] !== "") return false;
+    } else {
+      at = cellsEndIn(cells, discColumnCount, versionAt, e.sides, at, i + 1 < end ? rowSep : -1);
+      if (at < 0) return false;
+    }
+  }
+  const sideColumnCount = versionAt - discColumnCount;
+  return (
+    occurrences(e.disc, cellSep) === discColumnCount - 1 &&
+    (e.sides === null ||
+      (occurrences(e.sides, rowSep) === n - 1 && occurrences(e.sides, cellSep) === n * (sideColumnCount - 1)))
+  );
+}
+
+/**
+ * `setAsideUnchanged` for a file with every column, against the export's cells as the
+ * database wrote them: nothing of a stored disc is read into fields. A disc whose
+ * stored cells cannot be told apart this way (one holds a separator) stays in, for
+ * `setAsideUnchanged` to compare field by field; so do discs that are not in the
+ * catalogue, edited, or not as exported, and every shelf mark in more than one group.
+ */
+export function setAsideAsExportedText(
+  sheet: SheetRow[],
+  exported: (shelfMarkKey: string) => ExportedCellsText | undefined,
+  columns: readonly CatalogueColumn[],
+): UnchangedSplit {
+  if (columns.length !== catalogueColumns.length) return { rows: sheet, discs: 0, rowCount: 0 };
+  return splitUnchanged(sheet, (first, end) => {
+    const e = exported(sheet[first].key);
+    return e !== undefined && groupAsExportedText(sheet, first, end, e);
+  });
 }
 
 /**

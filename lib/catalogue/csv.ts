@@ -15,6 +15,7 @@ import {
 import {
   type BuiltDisc,
   buildDiscs,
+  catalogueColumns,
   columnIndex,
   decodeCsv,
   type DiscChanges,
@@ -26,13 +27,21 @@ import {
   type ImportError,
   maxListedErrors,
   readCatalogueCsv,
+  setAsideAsExportedText,
   setAsideUnchanged,
   summariseDisc,
   toCatalogueCsv,
+  type UnchangedSplit,
 } from "./csv-format";
 import { insertDiscs, writeDiscEdit } from "./discs";
 import { listDiscIds } from "./list-query";
-import { type DiscFieldsRecord, type DiscRecord, readDiscFieldsByShelfMarks, readDiscs } from "./records";
+import {
+  type DiscFieldsRecord,
+  type DiscRecord,
+  readDiscFieldsByShelfMarks,
+  readDiscs,
+  readExportedCellsByShelfMarks,
+} from "./records";
 
 // The catalogue's spreadsheet import and export against the database. The file's format
 // is lib/catalogue/csv-format.ts (pure); reading the request and answering over HTTP is
@@ -163,12 +172,17 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
   const { defaultAccession, fileName, clearEmpty } = options;
   const read = readCatalogueCsv(decodeCsv(upload.bytes));
 
-  // The discs the file's shelf marks name (the unique index is on lower(shelf_mark)), with
-  // their sides, asked for as soon as the rows are read: the file's hash is worked out and
-  // the accessions are looked up while the database reads them.
+  // The discs the file's shelf marks name (the unique index is on lower(shelf_mark)), asked
+  // for as soon as the rows are read: the file's hash is worked out and the accessions are
+  // looked up while the database reads them. A file with every column (an export brought
+  // back) is first compared with the export's cells as the database writes them, and only
+  // the discs left over are read field by field; any other file reads them all so.
   const marks: string[] = [];
   for (const r of read.rows) if (r.key) marks.push(r.key);
-  const reading = readDiscFieldsByShelfMarks(db, marks);
+  const everyColumn = read.columns.length === catalogueColumns.length;
+  const reading = everyColumn
+    ? readExportedCellsByShelfMarks(db, marks)
+    : readDiscFieldsByShelfMarks(db, marks);
   // Settled either way, so a refusal below never leaves it unhandled.
   reading.catch(() => undefined);
   const sha256 = createHash("sha256").update(upload.bytes).digest("hex");
@@ -203,12 +217,24 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
     throw new ImportRefused("unknown_accession", "The accession chosen for rows without one does not exist.");
   const identifierOfId = new Map([...known.values()].map((a) => [a.id, a.identifier]));
 
-  const records = await reading;
-  const byMark = new Map(records.map((d) => [d.shelfMark.toLowerCase(), d]));
-
   // A disc brought back as exported changes nothing: it is counted, not checked again.
   // A stored disc's record reads as the rows an export of it writes (its ids aside).
-  const asExported = setAsideUnchanged(read.rows, (key) => byMark.get(key), read.columns);
+  const stored = await reading;
+  let records: DiscFieldsRecord[];
+  let asText: UnchangedSplit = { rows: read.rows, discs: 0, rowCount: 0 };
+  if (stored instanceof Map) {
+    asText = setAsideAsExportedText(read.rows, (key) => stored.get(key), read.columns);
+    const left: string[] = [];
+    for (const r of asText.rows) if (r.key) left.push(r.key);
+    records = await readDiscFieldsByShelfMarks(db, left);
+  } else records = stored;
+  const byMark = new Map(records.map((d) => [d.shelfMark.toLowerCase(), d]));
+  const asFields = setAsideUnchanged(asText.rows, (key) => byMark.get(key), read.columns);
+  const asExported = {
+    rows: asFields.rows,
+    discs: asText.discs + asFields.discs,
+    rowCount: asText.rowCount + asFields.rowCount,
+  };
   const sheet = buildDiscs(asExported.rows, {
     resolveAccession: (i) => known.get(i.toLowerCase())?.id,
     defaultAccessionId: defaultAccession,

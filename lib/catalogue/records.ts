@@ -83,6 +83,55 @@ export async function readDiscFieldsByShelfMarks(db: Db, shelfMarks: string[]): 
   return out;
 }
 
+/**
+ * A catalogued disc's cells as the export writes them (lib/catalogue/csv-format.ts's
+ * `exportedCell`), put together by the database: what an import compares a disc brought
+ * back unchanged with, without reading the disc's fields one by one.
+ */
+export interface ExportedCells {
+  /** The disc's own columns, shelf_mark to handling_notes, separated by \x1f. */
+  disc: string;
+  /** Its sides' columns, side to side_notes, separated by \x1f, one side after another separated by \x1e; null without sides. */
+  sides: string | null;
+  sideCount: number;
+  version: string;
+}
+
+/** Text as the export writes it: a number without trailing zeros, a list joined by ";", nothing for null. */
+const exportedDiscCells = sql<string>`concat_ws(E'\x1f',
+    d.shelf_mark, a.identifier, d.label_name, d.catalogue_number, d.format, coalesce(d.base, ''),
+    coalesce(trim_scale(d.diameter_in)::text, ''), trim_scale(d.nominal_speed_rpm)::text, d.groove, d.cut,
+    coalesce(d.recording_date::text, ''), coalesce(d.recorded_from_year::text, ''), coalesce(d.recorded_to_year::text, ''),
+    d.condition_grade, array_to_string(d.condition_flags, ';', ''), d.condition_notes, d.handling_notes)`;
+
+/**
+ * The export's cells of the discs with these shelf marks (in lower case), by shelf mark in lower case:
+ * one query, one row and four values per disc whatever its number of sides.
+ */
+export async function readExportedCellsByShelfMarks(
+  db: Db,
+  shelfMarkKeys: string[],
+): Promise<Map<string, ExportedCells>> {
+  const marks = [...new Set(shelfMarkKeys)];
+  const out = new Map<string, ExportedCells>();
+  if (!marks.length) return out;
+  const rows = await sql<ExportedCells & { shelfMark: string }>`
+    SELECT d.shelf_mark AS "shelfMark", ${exportedDiscCells} AS disc, d.version::text AS version,
+           s.sides, coalesce(s.n, 0)::int AS "sideCount"
+    FROM discs d
+    JOIN accessions a ON a.id = d.accession_id
+    LEFT JOIN LATERAL (
+      SELECT string_agg(concat_ws(E'\x1f', s.designation, s.matrix_number, s.take, s.title, s.performers, s.notes),
+                        E'\x1e' ORDER BY lower(s.designation)) AS sides,
+             count(*) AS n
+      FROM sides s WHERE s.disc_id = d.id
+    ) s ON true
+    WHERE lower(d.shelf_mark) = ANY(${marks}::text[])`.execute(db);
+  // Keyed as the import keys the other reading (readDiscFieldsByShelfMarks) by shelf mark.
+  for (const r of rows.rows) out.set(r.shelfMark.toLowerCase(), r);
+  return out;
+}
+
 /** A side's catalogue fields, and the disc it is on: what every reading of sides selects. */
 const sideFieldColumns = [
   "s.id",

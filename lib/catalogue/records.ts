@@ -105,16 +105,29 @@ const exportedDiscCells = sql<string>`concat_ws(E'\x1f',
     d.condition_grade, array_to_string(d.condition_flags, ';', ''), d.condition_notes, d.handling_notes)`;
 
 /**
- * The export's cells of the discs with these shelf marks (in lower case), by shelf mark in lower case:
- * one query, one row and four values per disc whatever its number of sides.
+ * The export's cells of the discs with these shelf marks (in lower case), by shelf mark in
+ * lower case: one row and four values per disc whatever its number of sides. A long list
+ * is read in two halves at once, on two connections: the server works on both together.
  */
 export async function readExportedCellsByShelfMarks(
   db: Db,
   shelfMarkKeys: string[],
 ): Promise<Map<string, ExportedCells>> {
   const marks = [...new Set(shelfMarkKeys)];
+  const half = marks.length >= 2 * exportedCellsChunk ? Math.ceil(marks.length / 2) : marks.length;
+  const parts = await Promise.all(
+    [marks.slice(0, half), marks.slice(half)].filter((m) => m.length).map((m) => exportedCellsOf(db, m)),
+  );
   const out = new Map<string, ExportedCells>();
-  if (!marks.length) return out;
+  // Keyed as the import keys the other reading (readDiscFieldsByShelfMarks) by shelf mark.
+  for (const rows of parts) for (const r of rows) out.set(r.shelfMark.toLowerCase(), r);
+  return out;
+}
+
+/** The fewest shelf marks read in each half: fewer are read in one query. */
+const exportedCellsChunk = 250;
+
+async function exportedCellsOf(db: Db, marks: string[]) {
   const rows = await sql<ExportedCells & { shelfMark: string }>`
     SELECT d.shelf_mark AS "shelfMark", ${exportedDiscCells} AS disc, d.version::text AS version,
            s.sides, coalesce(s.n, 0)::int AS "sideCount"
@@ -127,9 +140,7 @@ export async function readExportedCellsByShelfMarks(
       FROM sides s WHERE s.disc_id = d.id
     ) s ON true
     WHERE lower(d.shelf_mark) = ANY(${marks}::text[])`.execute(db);
-  // Keyed as the import keys the other reading (readDiscFieldsByShelfMarks) by shelf mark.
-  for (const r of rows.rows) out.set(r.shelfMark.toLowerCase(), r);
-  return out;
+  return rows.rows;
 }
 
 /** A side's catalogue fields, and the disc it is on: what every reading of sides selects. */

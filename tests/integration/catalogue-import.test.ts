@@ -7,7 +7,16 @@ import { stringify } from "csv-stringify/sync";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
-import { catalogueColumns, readCatalogueCsv, rowValues } from "@/lib/catalogue/csv-format";
+import {
+  catalogueColumns,
+  cellSeparator,
+  readCatalogueCsv,
+  rowSeparator,
+  rowValues,
+  setAsideAsExportedText,
+  toCatalogueCsv,
+} from "@/lib/catalogue/csv-format";
+import { readDiscs, readExportedCellsByShelfMarks } from "@/lib/catalogue/records";
 import { api, appUrl, type Json, sameOrigin, signInCookie } from "../support/app";
 import { testDb } from "../support/db";
 
@@ -581,6 +590,67 @@ describe("export and import again", () => {
       year_from: "1936",
       year_to: "1939",
       condition: "unassessed",
+    });
+  });
+});
+
+describe("a stored disc's export, as the database writes it", () => {
+  it("is cell for cell what the export writes, so a disc brought back unchanged is set aside", async () => {
+    const acc = await newAccession("CELLS");
+    const disc = {
+      shelf_mark: `C${stamp}-1`,
+      accession: acc.identifier,
+      label: 'Rillton, "Deluxe"',
+      catalogue_number: "=R 100",
+      format: "instantaneous_lacquer",
+      base: "aluminium",
+      diameter_in: "12.5",
+      speed_rpm: "33.33",
+      groove: "micro",
+      cut: "vertical",
+      recording_date: "1941-06-14",
+      year_from: "1940",
+      year_to: "1941",
+      condition: "fair",
+      condition_flags: "residue;wear",
+      condition_notes: "Lifting at the edge.\nCafé ♫ line two.",
+      handling_notes: "+ gloves",
+    } as const;
+    const csv = csvOf([
+      { ...disc, side: "b", title: "Second", performers: "@Rillton band", side_notes: "Ends early" },
+      { ...disc, side: "A", matrix_number: "W-1", take: "2", title: "First, part 1" },
+      { ...base, shelf_mark: `C${stamp}-2`, accession: acc.identifier, diameter_in: "10" },
+      { ...base, shelf_mark: `C${stamp}-3`, accession: acc.identifier, speed_rpm: "16.67", side: "1" },
+    ]);
+    await importFile(csv);
+    const ids = await testDb.selectFrom("discs").select("id").where("accession_id", "=", acc.id).execute();
+    const stored = await readDiscs(
+      testDb,
+      ids.map((r) => r.id),
+    );
+    expect(stored).toHaveLength(3);
+    const read = readCatalogueCsv(toCatalogueCsv(stored));
+    const got = await readExportedCellsByShelfMarks(
+      testDb,
+      stored.map((d) => d.shelfMark.toLowerCase()),
+    );
+    const side = catalogueColumns.indexOf("side");
+    for (const d of stored) {
+      const rows = read.rows.filter((r) => r.key === d.shelfMark.toLowerCase());
+      expect(got.get(d.shelfMark.toLowerCase())).toEqual({
+        shelfMark: d.shelfMark,
+        disc: rows[0].cells.slice(0, side).join(cellSeparator),
+        sides: d.sides.length
+          ? rows.map((r) => r.cells.slice(side, versionAt).join(cellSeparator)).join(rowSeparator)
+          : null,
+        sideCount: d.sides.length,
+        version: String(d.version),
+      });
+    }
+    expect(setAsideAsExportedText(read.rows, (key) => got.get(key), read.columns)).toEqual({
+      rows: [],
+      discs: 3,
+      rowCount: 4,
     });
   });
 });

@@ -4,6 +4,7 @@ import { describe, expect, it } from "vitest";
 import {
   buildDiscs,
   type BuiltSheet,
+  cellSeparator,
   catalogueColumns,
   catalogueTemplateCsv,
   CsvFormatError,
@@ -11,12 +12,16 @@ import {
   detectDelimiter,
   discChanges,
   type ExportDisc,
+  type ExportedCellsText,
   hasChanges,
   maxImportRows,
   protectFormula,
   readCatalogueCsv,
+  rowSeparator,
   rowValues,
+  setAsideAsExportedText,
   setAsideUnchanged,
+  type SheetRow,
   toCatalogueCsv,
   unprotectFormula,
 } from "@/lib/catalogue/csv-format";
@@ -29,6 +34,7 @@ const accessions = new Map([
 const resolveAccession = (identifier: string) => accessions.get(identifier.toLowerCase());
 
 const header = catalogueColumns.join(",");
+const cellOfRow = (r: SheetRow, c: (typeof catalogueColumns)[number]) => r.cells[catalogueColumns.indexOf(c)];
 
 /** A row with the given columns set; the others empty. */
 function row(values: Partial<Record<(typeof catalogueColumns)[number], string>>): string {
@@ -612,5 +618,140 @@ describe("rows that update a catalogued disc", () => {
     );
     expect(noVersion.columns).not.toContain("version");
     expect(setAsideUnchanged(noVersion.rows, existing, noVersion.columns).discs).toBe(0);
+  });
+
+  it("never sets aside a disc between two groups of rows of one shelf mark, so the repeat is still reported", () => {
+    const exported = toCatalogueCsv([stored], { bom: false });
+    const lines = exported.trimEnd().split("\r\n");
+    const other = row({ ...shellac, shelf_mark: "X-9", side: "A", version: "1" });
+    // X-9 is split around the stored disc, which is brought back exactly as exported.
+    const read = readCatalogueCsv(
+      [lines[0], other, lines[1], lines[2], other.replace(",A,", ",B,")].join("\n"),
+    );
+    const split = setAsideUnchanged(read.rows, existing, read.columns);
+    expect(split.discs).toBe(0);
+    expect(split.rows.map((r) => r.row)).toEqual([2, 3, 4, 5]);
+    const built = buildDiscs(split.rows, { resolveAccession, existing, columns: read.columns });
+    expect(built.duplicates).toEqual([{ row: 5, shelfMark: "X-9", firstRow: 2 }]);
+  });
+});
+
+describe("setting aside a disc brought back as the database writes its export", () => {
+  const stored: ExportDisc = {
+    shelfMark: "LAC-0042",
+    accessionIdentifier: "ACC-2026-02",
+    labelName: "",
+    catalogueNumber: "=R 1",
+    format: "instantaneous_lacquer",
+    base: "aluminium",
+    diameterIn: 12.5,
+    nominalSpeedRpm: 33.33,
+    groove: "micro",
+    cut: "lateral",
+    recordingDate: "1941-06-14",
+    recordedFromYear: null,
+    recordedToYear: null,
+    conditionGrade: "fair",
+    conditionFlags: ["residue", "wear"],
+    conditionNotes: 'Lifting, "slightly", at the edge.\nSecond line.',
+    handlingNotes: "",
+    version: 7,
+    sides: [
+      { designation: "A", matrixNumber: "W 1", take: "2", title: "Reel", performers: "A band", notes: "" },
+      {
+        designation: "b",
+        matrixNumber: "",
+        take: "",
+        title: "Jig",
+        performers: "A band",
+        notes: "Ends early",
+      },
+    ],
+  };
+  const sideless: ExportDisc = { ...stored, shelfMark: "LAC-0043", version: 1, sides: [] };
+  const S = cellSeparator;
+  /** What the database writes for a disc: built here from the export's own cells. */
+  function textOf(d: ExportDisc): ExportedCellsText {
+    const rows = readCatalogueCsv(toCatalogueCsv([d])).rows;
+    const disc = catalogueColumns.indexOf("side");
+    const version = catalogueColumns.indexOf("version");
+    return {
+      disc: rows[0].cells.slice(0, disc).join(S),
+      sides: d.sides.length ? rows.map((r) => r.cells.slice(disc, version).join(S)).join(rowSeparator) : null,
+      sideCount: d.sides.length,
+      version: rows[0].cells[version],
+    };
+  }
+  const texts = new Map([stored, sideless].map((d) => [d.shelfMark.toLowerCase(), textOf(d)]));
+  const exported = (key: string) => texts.get(key);
+  const file = toCatalogueCsv([stored, sideless], { bom: false });
+
+  it("sets aside discs whose rows are their export, with or without sides", () => {
+    const read = readCatalogueCsv(file);
+    expect(read.errors).toEqual([]);
+    expect(setAsideAsExportedText(read.rows, exported, read.columns)).toEqual({
+      rows: [],
+      discs: 2,
+      rowCount: 3,
+    });
+  });
+
+  it("keeps a disc with one cell changed, its sides in another order, or another version", () => {
+    for (const [edited, rows] of [
+      [file.replace("Ends early", "Ends early."), [2, 3]],
+      [file.replaceAll("=R 1", "=R 2"), [2, 3, 4]],
+      [file.replace(/,7\r\n/g, ",8\r\n"), [2, 3]],
+    ] as const) {
+      const read = readCatalogueCsv(edited);
+      const split = setAsideAsExportedText(read.rows, exported, read.columns);
+      expect(split.rows.map((r) => r.row)).toEqual(rows);
+      expect(split.discs).toBe(rows.length === 3 ? 0 : 1);
+    }
+    const lines = file.trimEnd().split("\r\n");
+    const swapped = readCatalogueCsv([lines[0], lines[3], lines[2], lines[1]].join("\n"));
+    expect(swapped.rows).toHaveLength(3);
+    const split = setAsideAsExportedText(swapped.rows, exported, swapped.columns);
+    expect(split.discs).toBe(1);
+    expect(split.rows.map((r) => cellOfRow(r, "shelf_mark"))).toEqual(["LAC-0042", "LAC-0042"]);
+  });
+
+  it("says nothing of a file without every column, a shelf mark not catalogued, or a stored cell that holds a separator", () => {
+    const noTake = readCatalogueCsv(
+      file
+        .split("\r\n")
+        .map((l) =>
+          l
+            .split(",")
+            .filter((_, i) => i !== catalogueColumns.indexOf("take"))
+            .join(","),
+        )
+        .join("\n"),
+    );
+    expect(setAsideAsExportedText(noTake.rows, exported, noTake.columns).discs).toBe(0);
+    const read = readCatalogueCsv(file);
+    expect(setAsideAsExportedText(read.rows, () => undefined, read.columns).discs).toBe(0);
+
+    // The stored title holds a separator, the file's performers another: the texts are the same,
+    // the cells are not, and the disc is left to be compared field by field.
+    const tricky: ExportDisc = {
+      ...sideless,
+      shelfMark: "LAC-0044",
+      sides: [
+        { designation: "A", matrixNumber: "", take: "", title: `Reel${S}A`, performers: "band", notes: "" },
+      ],
+    };
+    const trickyText = textOf(tricky);
+    const shifted = readCatalogueCsv(
+      toCatalogueCsv([
+        { ...tricky, sides: [{ ...tricky.sides[0], title: "Reel", performers: `A${S}band` }] },
+      ]),
+    );
+    expect(trickyText.sides).toBe(shifted.rows[0].cells.slice(17, 23).join(S));
+    expect(setAsideAsExportedText(shifted.rows, () => trickyText, shifted.columns).discs).toBe(0);
+    // Brought back as it is, it is set aside by its fields instead.
+    const asIs = readCatalogueCsv(toCatalogueCsv([tricky]));
+    const left = setAsideAsExportedText(asIs.rows, () => trickyText, asIs.columns);
+    expect(left.discs).toBe(0);
+    expect(setAsideUnchanged(left.rows, () => tricky, asIs.columns).discs).toBe(1);
   });
 });

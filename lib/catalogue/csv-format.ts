@@ -517,8 +517,9 @@ function issuesToErrors(
 }
 
 function sameValue(a: unknown, b: unknown): boolean {
-  // Most cells are text: compared directly, without writing both out as JSON.
-  if (typeof a === "string" && typeof b === "string") return a === b;
+  // Most cells are text, and most values are unchanged: compared directly, without writing both out as JSON.
+  if (a === b) return true;
+  if (typeof a === "string" && typeof b === "string") return false;
   return JSON.stringify(a ?? null) === JSON.stringify(b ?? null);
 }
 

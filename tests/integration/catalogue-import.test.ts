@@ -598,7 +598,7 @@ describe("a stored disc's export, as the database writes it", () => {
   it("is cell for cell what the export writes, so a disc brought back unchanged is set aside", async () => {
     const acc = await newAccession("CELLS");
     const disc = {
-      shelf_mark: `C${stamp}-1`,
+      shelf_mark: `CELLS${stamp}-1`,
       accession: acc.identifier,
       label: 'Rillton, "Deluxe"',
       catalogue_number: "=R 100",
@@ -619,8 +619,8 @@ describe("a stored disc's export, as the database writes it", () => {
     const csv = csvOf([
       { ...disc, side: "b", title: "Second", performers: "@Rillton band", side_notes: "Ends early" },
       { ...disc, side: "A", matrix_number: "W-1", take: "2", title: "First, part 1" },
-      { ...base, shelf_mark: `C${stamp}-2`, accession: acc.identifier, diameter_in: "10" },
-      { ...base, shelf_mark: `C${stamp}-3`, accession: acc.identifier, speed_rpm: "16.67", side: "1" },
+      { ...base, shelf_mark: `CELLS${stamp}-2`, accession: acc.identifier, diameter_in: "10" },
+      { ...base, shelf_mark: `CELLS${stamp}-3`, accession: acc.identifier, speed_rpm: "16.67", side: "1" },
     ]);
     await importFile(csv);
     const ids = await testDb.selectFrom("discs").select("id").where("accession_id", "=", acc.id).execute();

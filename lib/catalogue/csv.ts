@@ -224,6 +224,9 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
   let asText: UnchangedSplit = { rows: read.rows, discs: 0, rowCount: 0 };
   if (stored instanceof Map) {
     asText = setAsideAsExportedText(read.rows, (key) => stored.get(key), read.columns);
+    // The rows set aside are done with: let them go before the rest is read and checked (a
+    // garbage collection meanwhile then has only the rows left over to keep).
+    read.rows = [];
     const left: string[] = [];
     for (const r of asText.rows) if (r.key) left.push(r.key);
     records = await readDiscFieldsByShelfMarks(db, left);

@@ -54,30 +54,28 @@ export type DiscFieldsRecord = StoredDisc & {
 
 /**
  * The catalogue fields of the discs with these shelf marks (any case), with their sides',
- * in two queries whatever the number of marks (the unique index on lower(shelf_mark)
- * answers the first, the sides' index on disc_id the second). They read only the fields a
- * spreadsheet holds: an import of thousands of rows does not wait for the workflow's.
+ * in one query whatever the number of marks (the unique index on lower(shelf_mark) finds
+ * the discs, the sides' index on disc_id their sides, which come as one JSON list per
+ * disc). They read only the fields a spreadsheet holds: an import of thousands of rows
+ * does not wait for the workflow's.
  */
 export async function readDiscFieldsByShelfMarks(db: Db, shelfMarks: string[]): Promise<DiscFieldsRecord[]> {
   const marks = [...new Set(shelfMarks.map((m) => m.toLowerCase()))];
   if (!marks.length) return [];
   const discs = await selectDiscFields(db)
+    .select(
+      sql<DiscFieldsRecord["sides"]>`(
+        SELECT coalesce(json_agg(json_build_object(
+                 'id', s.id, 'designation', s.designation, 'matrixNumber', s.matrix_number, 'take', s.take,
+                 'title', s.title, 'performers', s.performers, 'notes', s.notes) ORDER BY lower(s.designation)), '[]'::json)
+        FROM sides s WHERE s.disc_id = d.id)`.as("sides"),
+    )
     .where(sql<boolean>`lower(d.shelf_mark) = ANY(${marks}::text[])`)
     .execute();
-  if (!discs.length) return [];
-  const sides = await db
-    .selectFrom("sides as s")
-    .select(sideFieldColumns)
-    .where(sql<boolean>`s.disc_id = ANY(${discs.map((d) => d.id)}::uuid[])`)
-    .orderBy("s.disc_id")
-    .orderBy(sql`lower(s.designation)`)
-    .execute();
-  const sidesOf = byDisc(sides);
   const out: DiscFieldsRecord[] = [];
   for (const d of discs) {
     const record = d as unknown as DiscFieldsRecord;
     setNumbers(record, d);
-    record.sides = sidesOf.get(d.id) ?? [];
     out.push(record);
   }
   return out;

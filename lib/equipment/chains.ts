@@ -12,6 +12,7 @@ import {
   equipmentChainEditSchema,
   equipmentChainSchema,
   equipmentKindLabels,
+  RIAA_CALIBRATION_NAME,
 } from "../validation/equipment";
 import { parseStored, storedCurveSpecSchema } from "../validation/records";
 import { inChainOrder, itemName } from "./describe";
@@ -318,8 +319,8 @@ export async function recordCalibration(actor: SessionUser, chainId: string, inp
     expectedSpec = preset.spec;
     expectedName = `${preset.name} (v${v.presetVersion})`;
   } else {
-    expectedSpec = v.expectedSpec ?? RIAA_SPEC;
-    expectedName = v.expectedName || "RIAA (IEC 60098)";
+    expectedSpec = RIAA_SPEC;
+    expectedName = RIAA_CALIBRATION_NAME;
   }
   let fitted, deviation;
   try {

@@ -1,6 +1,5 @@
 import "./zod-setup";
 import { z } from "zod";
-import { curveSpecSchema } from "./curves";
 import { cleanString } from "./text";
 import { readNumber } from "./zod-setup";
 
@@ -38,6 +37,9 @@ export const chainOrder: readonly EquipmentKindName[] = [
   "converter",
   "other",
 ];
+
+/** The name a calibration records for the curve a test disc was cut with when no preset is named. */
+export const RIAA_CALIBRATION_NAME = "RIAA (IEC 60098)";
 
 /** 1 mil = 0.001 inch = 25.4 µm (the inch is exactly 25.4 mm). */
 export const MICROMETRES_PER_MIL = 25.4;
@@ -154,11 +156,9 @@ export const calibrationSchema = z
   .object({
     calibratedOn: calendarDate("the date of the calibration"),
     testDisc: text("the test disc", 200).pipe(z.string().min(1, "Name the test disc as the lab names it.")),
+    /** The curve the test disc was cut with: a preset version of the library; without one, RIAA (IEC 60098), a standard test disc's curve. */
     presetId: z.uuid().optional(),
     presetVersion: z.coerce.number().int().positive().optional(),
-    /** The expected curve when it is not a preset of the library; with neither, RIAA (IEC 60098), a standard test disc's curve. */
-    expectedSpec: curveSpecSchema.optional(),
-    expectedName: text("the expected curve's name", 200).optional(),
     points: z
       .array(z.object({ hz: z.number().positive().max(100_000), db: z.number().min(-200).max(200) }))
       .min(3, "Give at least three measured points.")

@@ -343,6 +343,12 @@ export async function recordCalibration(actor: SessionUser, chainId: string, inp
       .forUpdate()
       .executeTakeFirst();
     if (!chain) throw new AppError("not_found", 404, "No such chain.");
+    if (chain.retired_at)
+      throw new AppError(
+        "conflict",
+        409,
+        `The chain “${chain.name}” is retired: bring it back into use to record a calibration of it.`,
+      );
     const items = await trx
       .selectFrom("equipment_chain_items")
       .select("item_id")

@@ -271,6 +271,7 @@ describe("the register", () => {
 
 describe("chains", () => {
   let spareId: string;
+  let spareVersion: number;
 
   it("hold at most one item of each kind but other", async () => {
     const r = await api("/api/equipment/chains", {
@@ -302,6 +303,7 @@ describe("chains", () => {
     });
     expect(spare.status, JSON.stringify(spare.body)).toBe(201);
     spareId = spare.body.chain.id as string;
+    spareVersion = spare.body.chain.version as number;
     const cal = await api(`/api/equipment/chains/${spareId}/calibrations`, {
       cookie: cookie.engineer,
       method: "POST",
@@ -323,6 +325,26 @@ describe("chains", () => {
       .executeTakeFirstOrThrow();
     expect(stored.expected_name).toBe("RIAA (IEC 60098)");
     expect(stored.expected_spec).toEqual(JSON.parse(JSON.stringify(RIAA_SPEC)));
+  });
+
+  it("refuse a calibration of a retired chain, as its page offers none", async () => {
+    const retired = await api(`/api/equipment/chains/${spareId}`, {
+      cookie: cookie.engineer,
+      method: "PATCH",
+      body: { retired: true, version: spareVersion },
+    });
+    expect(retired.status, JSON.stringify(retired.body)).toBe(200);
+    const late = await api(`/api/equipment/chains/${spareId}/calibrations`, {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: {
+        calibratedOn: "2026-01-06",
+        testDisc: "Lab frequency disc FR-78 side A",
+        points: testDiscPoints(),
+      },
+    });
+    expect(late.status).toBe(409);
+    expect(late.body.error.message).toMatch(/retired/);
   });
 
   it("list their items in the order of the chain, from the disc to the file", async () => {

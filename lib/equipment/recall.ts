@@ -1,7 +1,9 @@
 import "server-only";
+import { stringify } from "csv-stringify/sync";
 import { sql } from "kysely";
 import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
+import { protectFormula } from "../catalogue/csv-format";
 import { AppError, fromZod } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { findingSchema, recallQuerySchema } from "../validation/equipment";
@@ -149,13 +151,6 @@ export async function transfersWithItem(itemId: string, query: unknown) {
   };
 }
 
-const csvCell = (v: string | number | Date | null) => {
-  const s = v === null ? "" : v instanceof Date ? v.toISOString() : String(v);
-  // A cell a spreadsheet would take for a formula is written as text (OWASP's CSV injection advice).
-  const safe = /^[=+\-@\t\r]/.test(s) ? `'${s}` : s;
-  return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
-};
-
 /** The recall as CSV, one transfer a row, for the lab's re-transfer list. */
 export function recallCsv(result: Awaited<ReturnType<typeof transfersWithItem>>): string {
   const head = [
@@ -175,30 +170,28 @@ export function recallCsv(result: Awaited<ReturnType<typeof transfersWithItem>>)
     "side_status",
     "transfer_id",
   ];
-  const lines = [head.join(",")];
-  for (const t of result.transfers)
-    lines.push(
-      [
-        t.createdAt,
-        t.shelfMark,
-        t.side,
-        t.title,
-        t.labelName,
-        t.catalogueNumber,
-        t.fileName,
-        t.durationSeconds.toFixed(3),
-        t.sha256,
-        t.engineer,
-        t.chain ?? "",
-        t.swapped ? "yes" : "no",
-        t.current ? "yes" : "no",
-        t.sideStatus,
-        t.transferId,
-      ]
-        .map(csvCell)
-        .join(","),
-    );
-  return `${lines.join("\r\n")}\r\n`;
+  const rows = result.transfers.map((t) => [
+    t.createdAt.toISOString(),
+    t.shelfMark,
+    t.side,
+    t.title,
+    t.labelName,
+    t.catalogueNumber,
+    t.fileName,
+    t.durationSeconds.toFixed(3),
+    t.sha256,
+    t.engineer,
+    t.chain ?? "",
+    t.swapped ? "yes" : "no",
+    t.current ? "yes" : "no",
+    t.sideStatus,
+    t.transferId,
+  ]);
+  // Written as the catalogue's export is: formula-looking cells protected, a byte-order mark and CRLF line ends.
+  return stringify([head, ...rows.map((r) => r.map(protectFormula))], {
+    bom: true,
+    record_delimiter: "windows",
+  });
 }
 
 /** Records a finding against an item; a fault answers with the window of transfers it puts in doubt. */

@@ -5,7 +5,7 @@ import { curveChoiceName } from "../curves";
 import { itemText } from "../equipment/describe";
 import { readDisc } from "../catalogue/records";
 import { env } from "../env";
-import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
+import { equipmentWithCalibrations } from "../equipment/transfer-equipment";
 import { AppError } from "../http/errors";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { softwareName } from "../version";
@@ -204,25 +204,11 @@ export async function discRecord(discId: string) {
       .execute(),
   ]);
   // The items each transfer was made with (the register's chain) and that chain's latest calibration then.
-  const equipment = await equipmentOfTransfers(
+  const equipment = await equipmentWithCalibrations(
     db,
     transfers.map((t) => t.id),
   );
-  const transfersWithEquipment = await Promise.all(
-    transfers.map(async (t) => {
-      const e = equipment.get(t.id);
-      const day = new Date(t.createdAt).toISOString().slice(0, 10);
-      const calibration = e?.chain
-        ? await latestCalibration(
-            db,
-            e.chain.id,
-            day,
-            e.items.map((i) => i.itemId),
-          )
-        : null;
-      return { ...t, equipment: e ? { ...e, calibration } : null };
-    }),
-  );
+  const transfersWithEquipment = transfers.map((t) => ({ ...t, equipment: equipment.get(t.id) ?? null }));
   const labelImages = await discLabelImages(discId);
   return {
     exportedAt: new Date().toISOString(),

@@ -88,6 +88,30 @@ export interface RecallRow {
   sideStatus: string;
 }
 
+/** A transfer's day: the lab's days are UTC days. */
+const transferDay = sql<string>`to_char(t.created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD')`;
+
+/** The transfers made with an item between two days (inclusive), with their sides; optionally only those a side stands on. */
+function madeWith(itemId: string, f: { from?: string | null; to?: string | null; currentOnly?: boolean }) {
+  let q = db
+    .selectFrom("transfer_equipment as te")
+    .innerJoin("transfers as t", "t.id", "te.transfer_id")
+    .innerJoin("sides as s", "s.id", "t.side_id")
+    .where("te.item_id", "=", itemId);
+  if (f.from) q = q.where(transferDay, ">=", f.from);
+  if (f.to) q = q.where(transferDay, "<=", f.to);
+  if (f.currentOnly) q = q.where(sql<boolean>`s.current_transfer_id = t.id`);
+  return q;
+}
+
+/** How many transfers a fault's window puts in doubt, counted in the database (the item page shows the number). */
+export async function countTransfersWithItem(itemId: string, window: { from: string | null; to: string }) {
+  const r = await madeWith(itemId, window)
+    .select(sql<number>`count(*)::int`.as("n"))
+    .executeTakeFirstOrThrow();
+  return r.n;
+}
+
 /** Transfers made with the item, between two days (inclusive, the lab's days in UTC), newest first. */
 export async function transfersWithItem(itemId: string, query: unknown) {
   const parsed = recallQuerySchema.safeParse(query);
@@ -103,17 +127,13 @@ export async function transfersWithItem(itemId: string, query: unknown) {
     .where("id", "=", itemId)
     .executeTakeFirst();
   if (!item) throw new AppError("not_found", 404, "No such item in the register.");
-  const day = sql<string>`to_char(t.created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD')`;
-  let rows = db
-    .selectFrom("transfer_equipment as te")
-    .innerJoin("transfers as t", "t.id", "te.transfer_id")
-    .innerJoin("sides as s", "s.id", "t.side_id")
+  const rows = madeWith(itemId, q)
     .innerJoin("discs as d", "d.id", "s.disc_id")
     .innerJoin("users as u", "u.id", "t.uploaded_by")
     .leftJoin("equipment_chains as c", "c.id", "t.equipment_chain_id")
     .select([
       "t.id as transferId",
-      day.as("transferredOn"),
+      transferDay.as("transferredOn"),
       "t.created_at as createdAt",
       "s.id as sideId",
       "d.id as discId",
@@ -130,11 +150,7 @@ export async function transfersWithItem(itemId: string, query: unknown) {
       "te.swapped",
       sql<boolean>`s.current_transfer_id IS NOT DISTINCT FROM t.id`.as("current"),
       "s.status as sideStatus",
-    ])
-    .where("te.item_id", "=", itemId);
-  if (q.from) rows = rows.where(day, ">=", q.from);
-  if (q.to) rows = rows.where(day, "<=", q.to);
-  if (q.currentOnly) rows = rows.where(sql<boolean>`s.current_transfer_id = t.id`);
+    ]);
   const transfers: RecallRow[] = (await rows.orderBy("t.created_at", "desc").limit(10_000).execute()).map(
     (r) => ({
       ...r,

@@ -46,18 +46,13 @@ export const MICROMETRES_PER_MIL = 25.4;
 
 const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
 
-/** A calendar date typed as YYYY-MM-DD that exists (not 2026-02-30). */
+/** A calendar date typed as YYYY-MM-DD that exists (not 2026-02-30): zod's ISO date, which knows the calendar. */
 function calendarDate(what: string) {
   return z
     .string({ error: `Type ${what} as YYYY-MM-DD.` })
     .trim()
-    .regex(/^\d{4}-\d{2}-\d{2}$/, `Type ${what} as YYYY-MM-DD, for example 2026-11-30.`)
-    .refine(
-      (v) => {
-        const d = new Date(`${v}T00:00:00Z`);
-        return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === v;
-      },
-      `${what.charAt(0).toUpperCase()}${what.slice(1)} is not a day of the calendar.`,
+    .pipe(
+      z.iso.date({ error: `Type ${what} as a day of the calendar, YYYY-MM-DD, for example 2026-11-30.` }),
     );
 }
 const optionalDate = (what: string) => z.preprocess(blankToUndefined, calendarDate(what).nullish());

@@ -53,21 +53,22 @@ const latestCalibrationColumns = sql<{
   'deviationRmsDb', k.deviation_rms_db) FROM equipment_calibrations k WHERE k.chain_id = c.id
   ORDER BY k.calibrated_on DESC, k.created_at DESC LIMIT 1)`;
 
+/** A chain as the register lists it: its latest calibration and how many transfers were made with it. */
+const chainColumns = [
+  "c.id",
+  "c.name",
+  "c.notes",
+  "c.retired_at as retiredAt",
+  "c.version",
+  "c.updated_at as updatedAt",
+  latestCalibrationColumns.as("latestCalibration"),
+  sql<number>`(SELECT count(*)::int FROM transfers t WHERE t.equipment_chain_id = c.id)`.as("transferCount"),
+] as const;
+
 export async function listChains(opts: { includeRetired?: boolean } = {}) {
   let q = db
     .selectFrom("equipment_chains as c")
-    .select([
-      "c.id",
-      "c.name",
-      "c.notes",
-      "c.retired_at as retiredAt",
-      "c.version",
-      "c.updated_at as updatedAt",
-      latestCalibrationColumns.as("latestCalibration"),
-      sql<number>`(SELECT count(*)::int FROM transfers t WHERE t.equipment_chain_id = c.id)`.as(
-        "transferCount",
-      ),
-    ])
+    .select(chainColumns)
     .orderBy(sql`c.retired_at IS NOT NULL`)
     .orderBy("c.name");
   if (!opts.includeRetired) q = q.where("c.retired_at", "is", null);
@@ -81,18 +82,7 @@ export type ChainJson = Awaited<ReturnType<typeof listChains>>[number];
 export async function getChain(id: string) {
   const chain = await db
     .selectFrom("equipment_chains as c")
-    .select([
-      "c.id",
-      "c.name",
-      "c.notes",
-      "c.retired_at as retiredAt",
-      "c.version",
-      "c.updated_at as updatedAt",
-      latestCalibrationColumns.as("latestCalibration"),
-      sql<number>`(SELECT count(*)::int FROM transfers t WHERE t.equipment_chain_id = c.id)`.as(
-        "transferCount",
-      ),
-    ])
+    .select(chainColumns)
     .where("c.id", "=", id)
     .executeTakeFirst();
   if (!chain) throw new AppError("not_found", 404, "No such chain.");

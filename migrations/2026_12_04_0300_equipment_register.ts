@@ -5,13 +5,6 @@ import { type Kysely, sql } from "kysely";
 // in, the calibrations of those chains, findings against items, and the items each flat
 // transfer was actually made with (a snapshot row per item, never changed afterwards).
 export async function up(db: Kysely<unknown>): Promise<void> {
-  // The register's records (what a transfer was made with, calibrations, findings) are never
-  // changed: one function refuses it, each table's trigger giving its own sentence.
-  await sql`
-    CREATE FUNCTION refuse_equipment_record_change() RETURNS trigger LANGUAGE plpgsql AS $$
-    BEGIN
-      RAISE EXCEPTION '%', TG_ARGV[0];
-    END $$`.execute(db);
   await sql`
     CREATE TABLE equipment_items (
       id uuid PRIMARY KEY DEFAULT gen_random_uuid(),
@@ -97,9 +90,13 @@ export async function up(db: Kysely<unknown>): Promise<void> {
   );
   await sql`CREATE INDEX transfer_equipment_item ON transfer_equipment (item_id)`.execute(db);
   await sql`
+    CREATE FUNCTION refuse_transfer_equipment_change() RETURNS trigger LANGUAGE plpgsql AS $$
+    BEGIN
+      RAISE EXCEPTION 'transfer_equipment is a record of what a transfer was made with: rows are never changed';
+    END $$`.execute(db);
+  await sql`
     CREATE TRIGGER transfer_equipment_append_only BEFORE UPDATE OR DELETE ON transfer_equipment
-    FOR EACH ROW EXECUTE FUNCTION refuse_equipment_record_change(
-      'transfer_equipment is a record of what a transfer was made with: rows are never changed')`.execute(db);
+    FOR EACH ROW EXECUTE FUNCTION refuse_transfer_equipment_change()`.execute(db);
 
   await sql`
     CREATE TABLE equipment_calibrations (
@@ -133,9 +130,13 @@ export async function up(db: Kysely<unknown>): Promise<void> {
     db,
   );
   await sql`
+    CREATE FUNCTION refuse_equipment_calibration_change() RETURNS trigger LANGUAGE plpgsql AS $$
+    BEGIN
+      RAISE EXCEPTION 'a calibration is a measurement on record: it is never changed; record a new one';
+    END $$`.execute(db);
+  await sql`
     CREATE TRIGGER equipment_calibrations_append_only BEFORE UPDATE OR DELETE ON equipment_calibrations
-    FOR EACH ROW EXECUTE FUNCTION refuse_equipment_record_change(
-      'a calibration is a measurement on record: it is never changed; record a new one')`.execute(db);
+    FOR EACH ROW EXECUTE FUNCTION refuse_equipment_calibration_change()`.execute(db);
 
   await sql`
     CREATE TABLE equipment_findings (
@@ -150,18 +151,24 @@ export async function up(db: Kysely<unknown>): Promise<void> {
     )`.execute(db);
   await sql`CREATE INDEX equipment_findings_item ON equipment_findings (item_id, found_on DESC)`.execute(db);
   await sql`
+    CREATE FUNCTION refuse_equipment_finding_change() RETURNS trigger LANGUAGE plpgsql AS $$
+    BEGIN
+      RAISE EXCEPTION 'a finding is on record: it is never changed; record a new one';
+    END $$`.execute(db);
+  await sql`
     CREATE TRIGGER equipment_findings_append_only BEFORE UPDATE OR DELETE ON equipment_findings
-    FOR EACH ROW EXECUTE FUNCTION refuse_equipment_record_change(
-      'a finding is on record: it is never changed; record a new one')`.execute(db);
+    FOR EACH ROW EXECUTE FUNCTION refuse_equipment_finding_change()`.execute(db);
 }
 
 export async function down(db: Kysely<unknown>): Promise<void> {
   await sql`DROP TABLE equipment_findings`.execute(db);
+  await sql`DROP FUNCTION refuse_equipment_finding_change()`.execute(db);
   await sql`DROP TABLE equipment_calibrations`.execute(db);
+  await sql`DROP FUNCTION refuse_equipment_calibration_change()`.execute(db);
   await sql`DROP TABLE transfer_equipment`.execute(db);
+  await sql`DROP FUNCTION refuse_transfer_equipment_change()`.execute(db);
   await sql`ALTER TABLE transfers DROP COLUMN equipment_chain_id`.execute(db);
   await sql`DROP TABLE equipment_chain_items`.execute(db);
   await sql`DROP TABLE equipment_chains`.execute(db);
   await sql`DROP TABLE equipment_items`.execute(db);
-  await sql`DROP FUNCTION refuse_equipment_record_change()`.execute(db);
 }

@@ -26,6 +26,7 @@ import { sql } from "kysely";
 import { db } from "../../db";
 import { env } from "../env";
 import { recordFixityResult } from "../fixity";
+import { leaseTimes } from "../jobs/render-lease";
 import { AppError } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { getSettings } from "../settings";
@@ -424,16 +425,35 @@ export function deliveryTarget(): { bucket: string; prefix: string } {
   return { bucket: e.DELIVERY_S3_BUCKET ?? e.S3_BUCKET, prefix: e.DELIVERY_PREFIX };
 }
 
-/** Runs one delivery: the bag written into the delivery bucket, its state kept in bag_deliveries. */
+/**
+ * Runs one delivery: the bag written into its folder of the delivery bucket (decided when it
+ * was asked for), its state kept in bag_deliveries. While it runs its lease is renewed; a
+ * server that stops mid-way leaves a stale lease, and a worker's sweep closes the delivery
+ * as stopped and empties its folder (lib/exports/delivery-lease.ts).
+ */
 export async function runDelivery(deliveryId: string): Promise<void> {
   const d = await db
     .updateTable("bag_deliveries")
-    .set({ state: "running", started_at: sql<Date>`now()` })
+    .set({ state: "running", started_at: sql<Date>`now()`, heartbeat_at: sql<Date>`now()` })
     .where("id", "=", deliveryId)
     .where("state", "=", "queued")
     .returningAll()
     .executeTakeFirst();
   if (!d) return;
+  const beat = setInterval(() => {
+    db.updateTable("bag_deliveries")
+      .set({ heartbeat_at: sql<Date>`now()` })
+      .where("id", "=", d.id)
+      .where("state", "=", "running")
+      .execute()
+      .catch((err: unknown) =>
+        console.error(
+          `[rillbook] delivery ${d.id}: could not renew its lease:`,
+          err instanceof Error ? err.message : err,
+        ),
+      );
+  }, leaseTimes().RENDER_HEARTBEAT_SECONDS * 1000);
+  beat.unref();
   let sink: ReturnType<typeof bucketSink> | undefined;
   try {
     const plan =
@@ -441,26 +461,25 @@ export async function runDelivery(deliveryId: string): Promise<void> {
         ? await planDiscBag(d.disc_id!, new Date(d.requested_at))
         : await planAccessionBag(d.accession_id!, new Date(d.requested_at));
     await preflight(plan);
-    const folder = `${d.prefix}${plan.name}/`;
-    // The bag's own folder from now on, so a stopped delivery names where it was going.
-    await db.updateTable("bag_deliveries").set({ prefix: folder }).where("id", "=", d.id).execute();
-    sink = bucketSink(d.bucket, folder);
+    sink = bucketSink(d.bucket, d.prefix);
     const result = await writeBag(plan, sink, {
       way: "delivery",
       actorId: d.requested_by,
-      location: `s3://${d.bucket}/${folder}`,
+      location: `s3://${d.bucket}/${d.prefix}`,
     });
-    await db
+    const closed = await db
       .updateTable("bag_deliveries")
       .set({
         state: "done",
-        prefix: folder,
         payload_oxum: result.payloadOxum,
         tagmanifest_sha256: result.tagmanifestSha256,
         finished_at: sql<Date>`now()`,
       })
       .where("id", "=", d.id)
-      .execute();
+      .where("state", "=", "running")
+      .executeTakeFirst();
+    if (!closed.numUpdatedRows)
+      console.error(`[rillbook] delivery ${d.id} was closed as stopped while it was still being written`);
   } catch (err) {
     await sink?.removeAll();
     const message = err instanceof Error ? err.message : String(err);
@@ -469,6 +488,9 @@ export async function runDelivery(deliveryId: string): Promise<void> {
       .updateTable("bag_deliveries")
       .set({ state: "failed", error: message.slice(0, 2000), finished_at: sql<Date>`now()` })
       .where("id", "=", d.id)
+      .where("state", "=", "running")
       .execute();
+  } finally {
+    clearInterval(beat);
   }
 }

@@ -106,7 +106,7 @@ export async function requestDelivery(
       disc_id: scope === "disc" ? id : null,
       accession_id: scope === "accession" ? id : null,
       bucket,
-      prefix,
+      prefix: `${prefix}${plan.name}/`,
       requested_by: actorId,
       requested_at: plan.at,
     })

@@ -28,6 +28,7 @@ import { env } from "../env";
 import { recordFixityResult } from "../fixity";
 import { leaseTimes } from "../jobs/render-lease";
 import { AppError } from "../http/errors";
+import { labelImageExtension } from "../labels/stored";
 import { appendEvent } from "../provenance";
 import { getSettings } from "../settings";
 import { fromStore, isObjectMissing } from "../storage/errors";
@@ -49,10 +50,6 @@ import { premisXml } from "./premis";
 import { type DiscRecordExport, discRecord, fileNameBase, premisRecord } from "./record";
 
 export type { BagPlan, BagResult } from "./bag-writer";
-
-const safe = (s: string) => s.replace(/[^A-Za-z0-9._-]+/g, "_");
-
-const extensionOf = { jpeg: "jpg", png: "png", tiff: "tif" } as const;
 
 /** The payload of one approved disc, its paths under `dir` ("data/" or "data/<shelf mark>/"). */
 function discPayload(record: DiscRecordExport, dir: string) {
@@ -77,7 +74,7 @@ function discPayload(record: DiscRecordExport, dir: string) {
     const approved = record.approved[side.id];
     const transfer = approved ? transfers.get(approved.transfer.id) : undefined;
     const copy = approved ? copies.get(approved.render.id) : undefined;
-    const sideName = safe(side.designation);
+    const sideName = fileNameBase(side.designation);
     if (!transfer || transfer.sha256 !== approved?.transfer.sha256)
       throw new AppError(
         "conflict",
@@ -119,11 +116,11 @@ function discPayload(record: DiscRecordExport, dir: string) {
   }
   const counts = new Map<string, number>();
   for (const l of record.labelImages) {
-    const who = l.kind === "sleeve" ? "sleeve" : `${safe(l.side ?? "side")}-label`;
+    const who = l.kind === "sleeve" ? "sleeve" : `${fileNameBase(l.side ?? "side")}-label`;
     const n = (counts.get(who) ?? 0) + 1;
     counts.set(who, n);
     objects.push({
-      path: `${dir}labels/${base}-${who}-${n}.${extensionOf[l.format]}`,
+      path: `${dir}labels/${base}-${who}-${n}.${labelImageExtension[l.format]}`,
       bytes: l.bytes,
       object: {
         kind: "label_image",
@@ -170,7 +167,7 @@ async function evidenceTexts(record: DiscRecordExport, dir: string): Promise<Pay
         `The test-disc points of ${record.disc.shelfMark} side ${side?.designation ?? "?"} no longer match their SHA-256: nothing was packaged.`,
       );
     return {
-      path: `${dir}evidence/${base}-${safe(side?.designation ?? "side")}-test-disc-points.csv`,
+      path: `${dir}evidence/${base}-${fileNameBase(side?.designation ?? "side")}-test-disc-points.csv`,
       content,
     };
   });

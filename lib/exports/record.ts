@@ -7,6 +7,7 @@ import { readDisc } from "../catalogue/records";
 import { env } from "../env";
 import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
 import { AppError } from "../http/errors";
+import { storedLabelImages } from "../labels/stored";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { softwareName } from "../version";
 import type { PremisAgent, PremisEvent, PremisFile, PremisRecord } from "./premis";
@@ -223,7 +224,7 @@ export async function discRecord(discId: string) {
       return { ...t, equipment: e ? { ...e, calibration } : null };
     }),
   );
-  const labelImages = await discLabelImages(discId);
+  const labelImages = await storedLabelImages(discId);
   return {
     exportedAt: new Date().toISOString(),
     exportedBy: softwareName(),
@@ -256,40 +257,6 @@ export async function discRecord(discId: string) {
 }
 
 export type DiscRecordExport = Awaited<ReturnType<typeof discRecord>>;
-
-/** The disc's stored label images: photographs or scans of each side's label and of the sleeve. */
-async function discLabelImages(discId: string) {
-  const rows = await db
-    .selectFrom("label_images as l")
-    .leftJoin("sides as s", "s.id", "l.side_id")
-    .innerJoin("users as u", "u.id", "l.uploaded_by")
-    .select([
-      "l.id",
-      "l.kind",
-      "l.side_id as sideId",
-      "s.designation as side",
-      "l.object_key as objectKey",
-      "l.file_name as fileName",
-      "l.format",
-      "l.width",
-      "l.height",
-      "l.bytes",
-      "l.sha256",
-      "l.stored_at as storedAt",
-      "u.name as uploadedBy",
-    ])
-    .where("l.disc_id", "=", discId)
-    .where("l.state", "=", "stored")
-    .orderBy("l.stored_at")
-    .execute();
-  return rows.map((r) => ({
-    ...r,
-    format: r.format!,
-    bytes: Number(r.bytes),
-    sha256: r.sha256!,
-    storedAt: r.storedAt!,
-  }));
-}
 
 /** A test-disc measurement as the record carries it (lib/transfers/test-disc-evidence.ts keeps it). */
 export interface TestDiscMeasurementRecord {

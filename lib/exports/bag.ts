@@ -26,6 +26,7 @@ import { sql } from "kysely";
 import { db } from "../../db";
 import { env } from "../env";
 import { recordFixityResult } from "../fixity";
+import { openFixityAlerts } from "../fixity/requests";
 import { leaseTimes } from "../jobs/render-lease";
 import { AppError } from "../http/errors";
 import { labelImageExtension } from "../labels/stored";
@@ -262,34 +263,15 @@ export async function planAccessionBag(accessionId: string, at = new Date()): Pr
  * the file; the full SHA-256 check happens as the bytes pass.
  */
 export async function preflight(plan: BagPlan): Promise<void> {
-  const ids = plan.objects.map((o) => o.object.id);
-  if (ids.length) {
-    const failing = await db
-      .selectFrom("fixity_checks as f")
-      .select(["f.object_id", "f.outcome"])
-      .where("f.object_id", "in", ids)
-      .where("f.outcome", "<>", "pass")
-      .where((eb) =>
-        eb.not(
-          eb.exists(
-            eb
-              .selectFrom("fixity_checks as later")
-              .select("later.id")
-              .whereRef("later.object_id", "=", "f.object_id")
-              .whereRef("later.checked_at", ">", "f.checked_at"),
-          ),
-        ),
-      )
-      .execute();
-    if (failing.length) {
-      const o = plan.objects.find((x) => x.object.id === failing[0].object_id)!;
-      throw new AppError(
-        "conflict",
-        409,
-        `The package cannot be made: ${o.path.replace(/^data\//, "")} failed its last fixity check (${failing[0].outcome}). ` +
-          "Restore the file from a replica and check it again first.",
-      );
-    }
+  const failing = await openFixityAlerts(plan.objects.map((o) => o.object.id));
+  if (failing.length) {
+    const o = plan.objects.find((x) => x.object.id === failing[0].objectId)!;
+    throw new AppError(
+      "conflict",
+      409,
+      `The package cannot be made: ${o.path.replace(/^data\//, "")} failed its last fixity check (${failing[0].outcome}). ` +
+        "Restore the file from a replica and check it again first.",
+    );
   }
   for (const o of plan.objects) {
     try {

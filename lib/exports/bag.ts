@@ -305,7 +305,7 @@ export async function preflight(plan: BagPlan): Promise<void> {
   }
 }
 
-/** Records the mismatch as a fixity result: the alert on the audit page, the curators' mail. */
+/** Records the mismatch as a fixity result: the alert on the audit page, the curators' mail. The caller stops the bag. */
 async function recordMismatch(
   plan: BagPlan,
   o: PayloadObject,
@@ -322,7 +322,6 @@ async function recordMismatch(
   }).catch((err) =>
     console.error("[rillbook] could not record the fixity mismatch found while packaging:", err),
   );
-  throw new PayloadMismatchError(o.object, o.path, detail);
 }
 
 /** Writes the bag with the lab's bag-info.txt fields, raising the fixity alert on a mismatch, and records it. */

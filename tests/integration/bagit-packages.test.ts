@@ -442,3 +442,28 @@ describe("a download that meets a damaged file on the way", () => {
     await waitForMail((m) => m.subject === `Fixity mismatch: ${shelf} side A (flat transfer)`);
   }, 240_000);
 });
+
+describe("a payload file whose size differs from its record", () => {
+  it("refuses the download with a plain 409 naming the file before any byte goes out, and raises the fixity alert", async () => {
+    const { object_key: key } = await testDb
+      .selectFrom("label_images")
+      .select("object_key")
+      .where("disc_id", "=", discId)
+      .where("kind", "=", "sleeve")
+      .where("state", "=", "stored")
+      .executeTakeFirstOrThrow();
+    // One byte more in s3rver's own file, taken off again when the test is done (the bucket is shared).
+    const file = path.join(process.cwd(), "storage", "test", "s3", "rillbook", `${key}._S3rver_object`);
+    const size = (await fs.stat(file)).size;
+    await fs.appendFile(file, Buffer.from([0]));
+    onTestFinished(() => fs.truncate(file, size));
+
+    const res = await api(`/api/discs/${discId}/export?format=zip`, { cookie: c.curator });
+    expect(res.status).toBe(409);
+    expect(res.body.error.message).toMatch(
+      /labels\/BG-.*-sleeve-1\.tif no longer matches its record \(it has \d+ bytes, the record \d+\)/,
+    );
+    const alerts = await api("/api/fixity", { cookie: c.curator });
+    expect(alerts.body.alerts.map((a: { objectKey: string }) => a.objectKey)).toContain(key);
+  });
+});

@@ -509,8 +509,14 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
           : p.outcome === "missing"
             ? "found the file MISSING"
             : "could not read the file";
+      // An access copy's and a label image's keys end in names the server gave ("original.png"),
+      // not the file's: the sentence names them by what they are; the key is in the details.
       const file =
-        p.object?.kind === "render" ? "" : p.object?.key ? ` ${fileNameOf({ objectKey: p.object.key })}` : "";
+        p.object?.kind === "render" || p.object?.kind === "label_image"
+          ? ""
+          : p.object?.key
+            ? ` ${fileNameOf({ objectKey: p.object.key })}`
+            : "";
       const sha = shaShort(p.expectedSha256);
       return {
         sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${p.side ? side : "the disc"}${on}${sha ? ` (${sha})` : ""} ${outcome}${p.readFor ? ` while ${String(p.readFor)}` : ""}.`,

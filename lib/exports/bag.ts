@@ -404,12 +404,13 @@ export function deliveryTarget(): { bucket: string; prefix: string } {
 }
 
 /**
- * Runs one delivery: the bag written into its folder of the delivery bucket (decided when it
- * was asked for), its state kept in bag_deliveries. While it runs its lease is renewed; a
- * server that stops mid-way leaves a stale lease, and a worker's sweep closes the delivery
- * as stopped and empties its folder (lib/exports/delivery-lease.ts).
+ * Runs one delivery: the bag planned and checked when it was asked for (requestDelivery),
+ * written into its folder of the delivery bucket, its state kept in bag_deliveries. While
+ * it runs its lease is renewed; a server that stops mid-way leaves a stale lease, and a
+ * worker's sweep closes the delivery as stopped and empties its folder
+ * (lib/exports/delivery-lease.ts).
  */
-export async function runDelivery(deliveryId: string): Promise<void> {
+export async function runDelivery(deliveryId: string, plan: BagPlan): Promise<void> {
   const d = await db
     .updateTable("bag_deliveries")
     .set({ state: "running", started_at: sql<Date>`now()`, heartbeat_at: sql<Date>`now()` })
@@ -434,11 +435,6 @@ export async function runDelivery(deliveryId: string): Promise<void> {
   beat.unref();
   let sink: ReturnType<typeof bucketSink> | undefined;
   try {
-    const plan =
-      d.scope === "disc"
-        ? await planDiscBag(d.disc_id!, new Date(d.requested_at))
-        : await planAccessionBag(d.accession_id!, new Date(d.requested_at));
-    await preflight(plan);
     sink = bucketSink(d.bucket, d.prefix);
     const result = await writeBag(plan, sink, {
       way: "delivery",

@@ -89,7 +89,8 @@ export async function exportAccession(
 /**
  * A curator asks for the bag to be written into the delivery bucket. The bag is made by
  * this server in the background (streaming, memory flat); its row says where it stands.
- * The checks that can fail at once (not approved, a file missing or failing fixity) answer now.
+ * The checks that can fail at once (not approved, a file missing or failing fixity) answer now;
+ * the writing then uses that same plan, read and checked once.
  */
 export async function requestDelivery(
   actorId: string,
@@ -112,7 +113,7 @@ export async function requestDelivery(
     })
     .returning(["id", "state"])
     .executeTakeFirstOrThrow();
-  void runDelivery(row.id);
+  void runDelivery(row.id, plan);
   return { deliveryId: row.id, state: row.state };
 }
 

@@ -71,7 +71,7 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("accession_id", "uuid", (c) => c.references("accessions.id"))
     .addColumn("state", "text", (c) => c.notNull().defaultTo("queued"))
     .addColumn("bucket", "text", (c) => c.notNull())
-    /** The bag's folder in the bucket: the delivery prefix, then the bag's name (decided when it is asked for). */
+    /** The bag's folder in the bucket: the delivery prefix, then the bag's name. */
     .addColumn("prefix", "text", (c) => c.notNull())
     .addColumn("payload_oxum", "text")
     .addColumn("tagmanifest_sha256", "text")
@@ -79,8 +79,6 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("requested_by", "uuid", (c) => c.notNull().references("users.id"))
     .addColumn("requested_at", "timestamptz", (c) => c.notNull().defaultTo(sql`now()`))
     .addColumn("started_at", "timestamptz")
-    /** Renewed by the server writing the bag; a stale one means that server stopped (lib/exports/delivery-lease.ts). */
-    .addColumn("heartbeat_at", "timestamptz")
     .addColumn("finished_at", "timestamptz")
     .addCheckConstraint("bag_deliveries_scope", sql`scope IN ('disc', 'accession')`)
     .addCheckConstraint(

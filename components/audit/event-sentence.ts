@@ -19,6 +19,7 @@ import {
   formatNumber,
 } from "@/lib/curves";
 import { channelModeLabels } from "@/lib/audio/channel-mode";
+import { objectWords } from "@/lib/fixity/object-words";
 import { evidenceLabels } from "@/lib/validation/transfers";
 import { valueText } from "@/lib/value-text";
 
@@ -132,9 +133,6 @@ function shaShort(sha: unknown): string {
 
 const idOf = (v: unknown): string | undefined =>
   typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String(v.id) : undefined;
-
-const objectWords = (kind: unknown) =>
-  kind === "render" ? "access copy" : kind === "label_image" ? "label image" : "flat transfer";
 
 /** A status in running text; a status this page does not know yet is still readable ("needs_render" → "needs render"). */
 function statusWords(status: unknown): string {

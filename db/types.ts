@@ -561,6 +561,7 @@ export interface BagDeliveriesTable {
   requested_by: string;
   requested_at: DefaultTimestamp;
   started_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  heartbeat_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
   finished_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
 }
 

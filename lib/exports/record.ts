@@ -6,6 +6,7 @@ import { readDisc } from "../catalogue/records";
 import { env } from "../env";
 import { equipmentWithCalibrations } from "../equipment/transfer-equipment";
 import { AppError } from "../http/errors";
+import { storedLabelImages } from "../labels/stored";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { measurementJson } from "../transfers/test-disc-evidence";
 import { softwareName } from "../version";
@@ -203,7 +204,7 @@ export async function discRecord(discId: string) {
     transfers.map((t) => t.id),
   );
   const transfersWithEquipment = transfers.map((t) => ({ ...t, equipment: equipment.get(t.id) ?? null }));
-  const labelImages = await discLabelImages(discId);
+  const labelImages = await storedLabelImages(discId);
   return {
     exportedAt: new Date().toISOString(),
     exportedBy: softwareName(),
@@ -236,40 +237,6 @@ export async function discRecord(discId: string) {
 }
 
 export type DiscRecordExport = Awaited<ReturnType<typeof discRecord>>;
-
-/** The disc's stored label images: photographs or scans of each side's label and of the sleeve. */
-async function discLabelImages(discId: string) {
-  const rows = await db
-    .selectFrom("label_images as l")
-    .leftJoin("sides as s", "s.id", "l.side_id")
-    .innerJoin("users as u", "u.id", "l.uploaded_by")
-    .select([
-      "l.id",
-      "l.kind",
-      "l.side_id as sideId",
-      "s.designation as side",
-      "l.object_key as objectKey",
-      "l.file_name as fileName",
-      "l.format",
-      "l.width",
-      "l.height",
-      "l.bytes",
-      "l.sha256",
-      "l.stored_at as storedAt",
-      "u.name as uploadedBy",
-    ])
-    .where("l.disc_id", "=", discId)
-    .where("l.state", "=", "stored")
-    .orderBy("l.stored_at")
-    .execute();
-  return rows.map((r) => ({
-    ...r,
-    format: r.format!,
-    bytes: Number(r.bytes),
-    sha256: r.sha256!,
-    storedAt: r.storedAt!,
-  }));
-}
 
 /** The measurement in one sentence of a PREMIS event's detail: what was fitted, how well, and the file's hash. */
 function testDiscSentence(t: {

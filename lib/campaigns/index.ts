@@ -5,7 +5,7 @@ import { z } from "zod";
 import { db } from "../../db";
 import type { CampaignSideState, Database, SideStatus } from "../../db/types";
 import type { SessionUser } from "../auth/session-user";
-import { mergeCurve } from "../curves";
+import { type FitParameter, mergeCurve } from "../curves";
 import { checkCurveSpec } from "../http/curve-errors";
 import { AppError } from "../http/errors";
 import { appendEvent, appendEvents, type NewEvent } from "../provenance";
@@ -13,6 +13,12 @@ import { canonicalJson } from "../provenance/chain";
 import { getSettings, type LabSettings } from "../settings";
 import { campaignCurveChosen, type LockedSide, lockSides } from "../sides/lifecycle";
 import { queueRender } from "../transfers/renders";
+import {
+  evidenceSummary,
+  insertTestDiscEvidence,
+  refitTestDiscEvidence,
+  type TestDiscEvidence,
+} from "../transfers/test-disc-evidence";
 import { cleanString } from "../validation/text";
 import { parseStored, storedCurveSpecSchema } from "../validation/records";
 import { renderableStatuses } from "../validation/transfers";
@@ -150,6 +156,34 @@ async function rechooseAndRender(
       error: `The side's own overrides do not make a valid curve with version ${fix.version}: ${err instanceof Error ? err.message : String(err)}`,
     };
   }
+  // A test-disc measurement the old choice rested on is evidence about the disc, not the
+  // preset: the new choice keeps its points and file, fitted again from the corrected curve.
+  const kept = await trx
+    .selectFrom("curve_choice_evidence")
+    .select(["points_kind", "points", "fit_parameters", "source_file_name", "source_text", "source_sha256"])
+    .where("choice_id", "=", old.id)
+    .executeTakeFirst();
+  let measured: TestDiscEvidence | null = null;
+  if (kept)
+    try {
+      measured = refitTestDiscEvidence(
+        {
+          pointsKind: kept.points_kind,
+          points: kept.points,
+          fitParameters: kept.fit_parameters as FitParameter[],
+          sourceFileName: kept.source_file_name,
+          sourceText: kept.source_text,
+          sourceSha256: kept.source_sha256,
+        },
+        spec,
+      );
+    } catch (err) {
+      return {
+        state: "failed",
+        choiceId: null,
+        error: `The side's test-disc measurement cannot be fitted from version ${fix.version}: ${err instanceof Error ? err.message : String(err)}`,
+      };
+    }
   // What the render of the side's access copy was like: kept for the new one.
   const previousRender = side.current_render_id
     ? await trx
@@ -183,14 +217,7 @@ async function rechooseAndRender(
     })
     .returning("id")
     .executeTakeFirstOrThrow();
-  // A test-disc measurement the old choice rested on is evidence about the disc, not the
-  // preset: the new choice keeps it as it was recorded.
-  await sql`
-    INSERT INTO curve_choice_evidence (choice_id, evidence_kind, points_kind, points, fit_parameters, fitted_spec,
-      level_offset_db, residuals, rms_db, worst_db, worst_hz, source_file_name, source_text, source_sha256)
-    SELECT ${row.id}, evidence_kind, points_kind, points, fit_parameters, fitted_spec,
-      level_offset_db, residuals, rms_db, worst_db, worst_hz, source_file_name, source_text, source_sha256
-    FROM curve_choice_evidence WHERE choice_id = ${old.id}`.execute(trx);
+  if (measured) await insertTestDiscEvidence(trx, row.id, measured);
   const events: NewEvent[] = [
     {
       actorId: actor.id,
@@ -213,6 +240,7 @@ async function rechooseAndRender(
         rationale,
         evidenceKind: old.evidence_kind,
         evidence: old.evidence,
+        ...(measured ? { testDisc: evidenceSummary(measured) } : {}),
         before: { choiceId: old.id, spec: old.spec, presetVersion: old.preset_version, status: side.status },
       },
     },

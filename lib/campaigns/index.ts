@@ -21,7 +21,6 @@ import {
 } from "../transfers/test-disc-evidence";
 import { cleanString } from "../validation/text";
 import { parseStored, storedCurveSpecSchema } from "../validation/records";
-import { renderableStatuses } from "../validation/transfers";
 import { campaignCounts, settleCampaign } from "./progress";
 
 // Re-render campaigns: when a preset version turns out wrong and a later version corrects
@@ -114,7 +113,6 @@ async function rechooseAndRender(
   campaign: { id: string; title: string },
   fix: CorrectingVersion,
   side: LockedSide,
-  where: string,
   lab: LabSettings,
 ): Promise<SideOutcome> {
   const busy = await trx
@@ -184,14 +182,6 @@ async function rechooseAndRender(
         error: `The side's test-disc measurement cannot be fitted from version ${fix.version}: ${err instanceof Error ? err.message : String(err)}`,
       };
     }
-  // What the render of the side's access copy was like: kept for the new one.
-  const previousRender = side.current_render_id
-    ? await trx
-        .selectFrom("renders")
-        .select(["channel_mode", "bit_depth", "sample_rate_hz"])
-        .where("id", "=", side.current_render_id)
-        .executeTakeFirst()
-    : undefined;
   const specSha256 = sha256Hex(canonicalJson(spec));
   const rationale =
     `Re-render campaign "${campaign.title}": ${fix.presetName} version ${fix.version} corrects version ${old.preset_version}.` +
@@ -253,21 +243,38 @@ async function rechooseAndRender(
       choiceId: row.id,
       outcome: "curve recorded; the side has no flat transfer yet, so there was nothing to render",
     };
-  if (!renderableStatuses.has(side.status))
-    return { state: "failed", choiceId: row.id, error: `${where} cannot be rendered now (${side.status}).` };
-  const { renderId } = await queueRender(
-    trx,
-    actor,
-    side,
-    {
-      channelMode: previousRender?.channel_mode ?? "both",
-      bitDepth: previousRender?.bit_depth,
-      sampleRateHz: previousRender?.sample_rate_hz ?? undefined,
-    },
-    lab,
-    { campaignId: campaign.id },
-  );
-  return { state: "waiting", choiceId: row.id, renderId };
+  return queueCampaignRender(trx, actor, side, row.id, lab, { campaignId: campaign.id });
+}
+
+/**
+ * Queues the side's render on the render queue every render goes through, with the channels,
+ * word length and rate of its last access copy. A side the queue refuses now (not renderable,
+ * a render already under way) fails with the queue's reason, for a retry: the refusals come
+ * before anything is written, so the campaign's transaction goes on.
+ */
+async function queueCampaignRender(
+  trx: Transaction<Database>,
+  actor: SessionUser,
+  side: LockedSide,
+  choiceId: string,
+  lab: LabSettings,
+  extra: { campaignId: string; retry?: true },
+): Promise<SideOutcome> {
+  try {
+    const { renderId } = await queueRender(
+      trx,
+      actor,
+      side,
+      { channelMode: "both", ...(await lastRenderSettings(trx, side.id)) },
+      lab,
+      extra,
+    );
+    return { state: "waiting", choiceId, renderId };
+  } catch (err) {
+    if (err instanceof AppError && (err.status === 409 || err.status === 422))
+      return { state: "failed", choiceId, error: err.message };
+    throw err;
+  }
 }
 
 async function shelfMarks(trx: Transaction<Database>, sides: LockedSide[]): Promise<Map<string, string>> {
@@ -376,15 +383,7 @@ export async function startCampaign(actor: SessionUser, input: unknown): Promise
       const statusBefore = side.status;
       const toReview =
         statusBefore === "rendered" || statusBefore === "in_review" || statusBefore === "approved";
-      const out = await rechooseAndRender(
-        trx,
-        actor,
-        { id: campaign.id, title },
-        fix,
-        side,
-        labels.get(side.id)!,
-        lab,
-      );
+      const out = await rechooseAndRender(trx, actor, { id: campaign.id, title }, fix, side, lab);
       await trx
         .insertInto("campaign_sides")
         .values({
@@ -547,7 +546,6 @@ export async function retryCampaign(actor: SessionUser, id: string, input: unkno
     if (campaign.cancelled_at) throw new AppError("conflict", 409, "A cancelled campaign is not retried.");
     if (!failed.length) throw new AppError("conflict", 409, "No side of this campaign has failed.");
     const fix = await correctingVersion(trx, campaign.preset_id, campaign.correcting_version);
-    const labels = await shelfMarks(trx, sides);
     const choiceOf = new Map(failed.map((f) => [f.side_id, f.choice_id]));
     const results: { sideId: string; state: CampaignSideState; error?: string }[] = [];
     for (const side of sides) {
@@ -571,7 +569,7 @@ export async function retryCampaign(actor: SessionUser, id: string, input: unkno
             "Its curve was chosen again since, and no longer rests on a version this correction replaces.",
         };
       } else if (!choiceId) {
-        out = await rechooseAndRender(trx, actor, campaign, fix, side, labels.get(side.id)!, lab);
+        out = await rechooseAndRender(trx, actor, campaign, fix, side, lab);
       } else if (side.current_curve_choice_id !== choiceId) {
         out = {
           state: "failed",
@@ -579,33 +577,8 @@ export async function retryCampaign(actor: SessionUser, id: string, input: unkno
           error:
             "Its curve was chosen again after the campaign's choice: the campaign leaves it to that choice.",
         };
-      } else if (!side.current_transfer_id || !renderableStatuses.has(side.status)) {
-        out = {
-          state: "failed",
-          choiceId,
-          error: `${labels.get(side.id)} cannot be rendered now (${side.status}).`,
-        };
       } else {
-        const busy = await trx
-          .selectFrom("renders")
-          .select("id")
-          .where("side_id", "=", side.id)
-          .where("status", "in", ["queued", "running"])
-          .executeTakeFirst();
-        out = busy
-          ? { state: "failed", choiceId, error: "A render of this side is already queued or running." }
-          : {
-              state: "waiting",
-              choiceId,
-              ...(await queueRender(
-                trx,
-                actor,
-                side,
-                { channelMode: "both", ...(await lastRenderSettings(trx, side.id)) },
-                lab,
-                { campaignId: cid, retry: true },
-              )),
-            };
+        out = await queueCampaignRender(trx, actor, side, choiceId, lab, { campaignId: cid, retry: true });
       }
       await trx
         .updateTable("campaign_sides")

@@ -381,8 +381,6 @@ export async function startCampaign(actor: SessionUser, input: unknown): Promise
     for (const side of sides) {
       const fromChoice = choices.get(side.current_curve_choice_id!)!;
       const statusBefore = side.status;
-      const toReview =
-        statusBefore === "rendered" || statusBefore === "in_review" || statusBefore === "approved";
       const out = await rechooseAndRender(trx, actor, { id: campaign.id, title }, fix, side, lab);
       await trx
         .insertInto("campaign_sides")
@@ -395,7 +393,6 @@ export async function startCampaign(actor: SessionUser, input: unknown): Promise
           from_version: fromChoice.preset_version!,
           choice_id: out.choiceId,
           render_id: out.state === "waiting" ? out.renderId : null,
-          to_review: toReview,
           attempts: out.state === "waiting" ? 1 : 0,
           error: out.state === "failed" ? out.error : null,
           outcome: out.state === "done" ? out.outcome : null,
@@ -688,7 +685,6 @@ export async function getCampaign(id: string) {
       "cs.from_version as fromVersion",
       "cs.choice_id as choiceId",
       "cs.render_id as renderId",
-      "cs.to_review as toReview",
       "cs.attempts",
       "cs.error",
       "cs.outcome",

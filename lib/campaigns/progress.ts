@@ -11,6 +11,14 @@ import { campaignSubmitted, lockSide } from "../sides/lifecycle";
 /** Sides that had been finished work (rendered, in review or approved) go back to review after a campaign's render. */
 const finishedWork: ReadonlySet<SideStatus> = new Set(["rendered", "in_review", "approved"]);
 
+/** The campaign a render was queued for, and its side's row. */
+export interface RenderCampaign {
+  campaignId: string;
+  sideId: string;
+  statusBefore: SideStatus;
+  startedBy: string;
+}
+
 /**
  * The campaign (and its side's row) a render was queued for, if any. `lock` takes the
  * campaign's row lock: in the lab's lock order (side, render, campaign, then the log), so
@@ -20,7 +28,7 @@ export async function campaignOfRender(
   db: Kysely<Database> | Transaction<Database>,
   renderId: string,
   opts: { lock?: boolean } = {},
-): Promise<{ campaignId: string; sideId: string; statusBefore: SideStatus; startedBy: string } | undefined> {
+): Promise<RenderCampaign | undefined> {
   const q = db
     .selectFrom("campaign_sides as cs")
     .innerJoin("campaigns as c", "c.id", "cs.campaign_id")
@@ -132,11 +140,10 @@ export async function settleCampaign(trx: Transaction<Database>, campaignId: str
  */
 export async function campaignRenderRecorded(
   trx: Transaction<Database>,
-  renderId: string,
+  /** What campaignOfRender found, its lock taken. */
+  owner: RenderCampaign,
   result: { current: boolean; reason?: string },
 ): Promise<void> {
-  const owner = await campaignOfRender(trx, renderId, { lock: true });
-  if (!owner) return;
   let state: CampaignSideState = "done";
   let error: string | null = null;
   let outcome: string;
@@ -166,11 +173,10 @@ export async function campaignRenderRecorded(
  */
 export async function campaignRenderStopped(
   trx: Transaction<Database>,
-  renderId: string,
+  /** What campaignOfRender found, its lock taken. */
+  owner: RenderCampaign,
   reason: string,
 ): Promise<void> {
-  const owner = await campaignOfRender(trx, renderId, { lock: true });
-  if (!owner) return;
   await trx
     .updateTable("campaign_sides")
     .set({ state: "failed", error: reason, outcome: null, updated_at: sql<Date>`now()` })

@@ -413,7 +413,6 @@ export interface CampaignSidesTable {
   state: Generated<CampaignSideState>;
   status_before: SideStatus;
   from_choice_id: string;
-  from_version: number;
   choice_id: string | null;
   render_id: string | null;
   attempts: Generated<number>;

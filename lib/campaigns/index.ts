@@ -390,7 +390,6 @@ export async function startCampaign(actor: SessionUser, input: unknown): Promise
           state: out.state,
           status_before: statusBefore,
           from_choice_id: fromChoice.id,
-          from_version: fromChoice.preset_version!,
           choice_id: out.choiceId,
           render_id: out.state === "waiting" ? out.renderId : null,
           attempts: out.state === "waiting" ? 1 : 0,
@@ -677,12 +676,14 @@ export async function getCampaign(id: string) {
     .selectFrom("campaign_sides as cs")
     .innerJoin("sides as s", "s.id", "cs.side_id")
     .innerJoin("discs as d", "d.id", "s.disc_id")
+    // The version the side rested on: its choice before the campaign's.
+    .innerJoin("curve_choices as fc", "fc.id", "cs.from_choice_id")
     .leftJoin("renders as r", "r.id", "cs.render_id")
     .select([
       "cs.side_id as sideId",
       "cs.state",
       "cs.status_before as statusBefore",
-      "cs.from_version as fromVersion",
+      "fc.preset_version as fromVersion",
       "cs.choice_id as choiceId",
       "cs.render_id as renderId",
       "cs.attempts",

@@ -67,6 +67,7 @@ export async function up(db: Kysely<any>): Promise<void> {
     .addColumn("from_version", "integer", (c) => c.notNull())
     .addColumn("choice_id", "uuid", (c) => c.references("curve_choices.id"))
     .addColumn("render_id", "uuid", (c) => c.references("renders.id"))
+    .addColumn("to_review", "boolean", (c) => c.notNull())
     .addColumn("attempts", "integer", (c) => c.notNull().defaultTo(0))
     .addColumn("error", "text")
     .addColumn("outcome", "text")

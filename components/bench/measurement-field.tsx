@@ -8,9 +8,14 @@
 import { useId, useMemo } from "react";
 import { useDropzone } from "react-dropzone";
 import { MeasurementEvidence } from "@/components/curves/measurement-evidence";
-import { type CurveSpec, type FitParameter, fitCurve, parsePointsCsv } from "@/lib/curves";
+import {
+  atCutSpeed,
+  type CurveSpec,
+  type FitParameter,
+  fitMeasuredPoints,
+  type MeasurementJson,
+} from "@/lib/curves";
 import { maxMeasurementBytes } from "@/lib/validation/transfers";
-import type { MeasurementJson } from "./types";
 
 export interface MeasurementDraft {
   sourceText: string;
@@ -41,25 +46,8 @@ function tryFit(
 ): { fit: MeasurementJson | null; problem: string | null } {
   if (!d.sourceText.trim()) return { fit: null, problem: null };
   try {
-    const points = parsePointsCsv(d.sourceText);
-    const { speedRatio: _speedRatio, ...initial } = chosen ?? {};
-    const r = fitCurve({ points, kind: d.pointsKind, fit: d.fit, initial });
-    return {
-      fit: {
-        pointsKind: d.pointsKind,
-        points,
-        fitParameters: d.fit,
-        fittedSpec: r.spec,
-        levelOffsetDb: r.levelOffsetDb,
-        residuals: r.residuals,
-        rmsDb: r.rmsDb,
-        worstDb: r.worstDb,
-        worstHz: r.worstHz,
-        sourceFileName: d.sourceFileName ?? null,
-        sourceSha256: null,
-      },
-      problem: null,
-    };
+    const fit = fitMeasuredPoints(d.sourceText, d.pointsKind, d.fit, chosen ?? {});
+    return { fit: { ...fit, sourceFileName: d.sourceFileName ?? null, sourceSha256: null }, problem: null };
   } catch (err) {
     return { fit: null, problem: err instanceof Error ? err.message : String(err) };
   }
@@ -88,7 +76,7 @@ export function MeasurementField({
     },
   });
   const rejected = fileRejections[0]?.errors[0];
-  const atCut: CurveSpec | null = chosen ? { ...chosen, speedRatio: undefined } : null;
+  const atCut = chosen ? atCutSpeed(chosen) : null;
 
   return (
     <fieldset

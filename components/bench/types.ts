@@ -1,6 +1,6 @@
 /** Shapes of the bench's API answers as the browser receives them (dates as ISO text). */
 import type { DiscJson, SideJson } from "@/components/catalogue/types";
-import type { CurveSpec } from "@/lib/curves";
+import type { CurveSpec, MeasurementJson } from "@/lib/curves";
 import type { StoredRenderFilter } from "@/lib/validation/records";
 import type { ChannelMode } from "@/lib/audio/channel-mode";
 import type { evidenceKinds } from "@/lib/validation/transfers";
@@ -33,21 +33,6 @@ export interface CurveChoiceJson {
   chosenBy: string;
   /** The test-disc measurement the choice rests on, as the server fitted it; null for other evidence. */
   measurement?: MeasurementJson | null;
-}
-
-/** A test-disc measurement kept with a curve choice (lib/transfers/test-disc-evidence.ts). */
-export interface MeasurementJson {
-  pointsKind: "recording" | "playback";
-  points: { hz: number; db: number }[];
-  fitParameters: string[];
-  fittedSpec: CurveSpec;
-  levelOffsetDb: number;
-  residuals: { hz: number; db: number; modelDb: number; residualDb: number }[];
-  rmsDb: number;
-  worstDb: number;
-  worstHz: number;
-  sourceFileName: string | null;
-  sourceSha256: string | null;
 }
 
 export interface TransferJson {

@@ -4,8 +4,7 @@
  * curve the server fitted to them and the curve chosen, the fit's figures, and the
  * residual at each point. Read-only: what the review and the record rest on.
  */
-import type { MeasurementJson } from "@/components/bench/types";
-import type { CurveSpec } from "@/lib/curves";
+import { type CurveSpec, type MeasurementJson, measuredPlaybackPoints } from "@/lib/curves";
 import { ResidualPlot } from "./fit-panel";
 import { formatHz, formatSigned } from "./plot-format";
 import { ResponsePlot } from "./response-plot";
@@ -18,12 +17,6 @@ const PARAMETER_WORDS: Record<string, string> = {
   ultrasonic: "ultrasonic zero",
   levelOffset: "level offset",
 };
-
-/** The points as playback levels lying on the fitted curve: a recording table's sign turned, the level offset taken off. */
-export function measuredPlaybackPoints(m: Pick<MeasurementJson, "pointsKind" | "points" | "levelOffsetDb">) {
-  const sign = m.pointsKind === "recording" ? -1 : 1;
-  return m.points.map((p) => ({ hz: p.hz, db: sign * p.db - m.levelOffsetDb }));
-}
 
 export function MeasurementEvidence({
   measurement: m,

@@ -11,7 +11,14 @@ import { formatDb, formatHz, formatNumber } from "@/components/curves/plot-forma
 import { MeasurementEvidence } from "@/components/curves/measurement-evidence";
 import { ResponsePlot } from "@/components/curves/response-plot";
 import { cornerText } from "@/components/audit/event-sentence";
-import { CORNER_NAMES, type CornerName, curveChoiceName, type CurveSpec, describeCurve } from "@/lib/curves";
+import {
+  atCutSpeed,
+  CORNER_NAMES,
+  type CornerName,
+  curveChoiceName,
+  type CurveSpec,
+  describeCurve,
+} from "@/lib/curves";
 import { evidenceLabels } from "@/lib/validation/transfers";
 
 const CORNER_LABELS: Record<CornerName, string> = {
@@ -163,10 +170,4 @@ export function CurveSummary({
       ) : null}
     </div>
   );
-}
-
-/** The curve as it stands at the disc's cut speed: a test disc is measured at its own speed. */
-function atCutSpeed(spec: CurveSpec): CurveSpec {
-  const { speedRatio: _speedRatio, ...atCut } = spec;
-  return atCut;
 }

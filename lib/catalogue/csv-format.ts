@@ -749,16 +749,19 @@ const cell = (v: unknown): string =>
 
 /** The cells of one disc's rows, by column: one row per side, or one with empty side columns. */
 function cellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
-  const disc: Record<string, string> = { version: cell(d.version) };
-  for (const c of specs) {
-    if (c.disc) disc[c.name] = c.disc === "accessionId" ? d.accessionIdentifier : cell(d[c.disc]);
-  }
   const sides: (StoredSide | null)[] = d.sides.length ? d.sides : [null];
-  return sides.map((s) => {
-    const values = { ...disc };
-    for (const c of specs) if (c.side) values[c.name] = s ? cell(s[c.side]) : "";
-    return values as Record<CatalogueColumn, string>;
+  return sides.map((side) => {
+    const values = {} as Record<CatalogueColumn, string>;
+    for (const c of specs) values[c.name as CatalogueColumn] = exportedCell(d, side, c);
+    return values;
   });
+}
+
+/** One cell as the export writes it: the disc's column, its side's (empty without a side), or the version. */
+function exportedCell(d: ExportDisc, side: StoredSide | null, c: ColumnSpec): string {
+  if (c.disc) return c.disc === "accessionId" ? d.accessionIdentifier : cell(d[c.disc]);
+  if (c.side) return side ? cell(side[c.side]) : "";
+  return cell(d.version);
 }
 
 const storedCells = new WeakMap<ExportDisc, Record<CatalogueColumn, string>[]>();
@@ -833,19 +836,7 @@ function rowAsExported(
   compared: readonly ColumnSpec[],
 ): boolean {
   const side = d.sides[index] ?? null;
-  for (const c of compared) {
-    const expected = c.disc
-      ? c.disc === "accessionId"
-        ? d.accessionIdentifier
-        : cell(d[c.disc])
-      : c.side
-        ? side
-          ? cell(side[c.side])
-          : ""
-        : cell(d.version);
-    if (values[c.name as CatalogueColumn] !== expected) return false;
-  }
-  return true;
+  return compared.every((c) => values[c.name as CatalogueColumn] === exportedCell(d, side, c));
 }
 
 /** The rows of one disc as written to the file: formula-looking cells protected. */

@@ -67,32 +67,47 @@ export async function readDiscFieldsByShelfMarks(db: Db, shelfMarks: string[]): 
   if (!discs.length) return [];
   const sides = await db
     .selectFrom("sides as s")
-    .select([
-      "s.id",
-      "s.disc_id as discId",
-      "s.designation",
-      "s.matrix_number as matrixNumber",
-      "s.take",
-      "s.title",
-      "s.performers",
-      "s.notes",
-    ])
+    .select(sideFieldColumns)
     .where(sql<boolean>`s.disc_id = ANY(${discs.map((d) => d.id)}::uuid[])`)
     .orderBy("s.disc_id")
     .orderBy(sql`lower(s.designation)`)
     .execute();
-  const sidesOf = new Map<string, DiscFieldsRecord["sides"]>();
-  for (const { discId, ...side } of sides) {
-    const list = sidesOf.get(discId);
+  const sidesOf = byDisc(sides);
+  return discs.map((d) => ({ ...withNumbers(d), sides: sidesOf.get(d.id) ?? [] }));
+}
+
+/** A side's catalogue fields, and the disc it is on: what every reading of sides selects. */
+const sideFieldColumns = [
+  "s.id",
+  "s.disc_id as discId",
+  "s.designation",
+  "s.matrix_number as matrixNumber",
+  "s.take",
+  "s.title",
+  "s.performers",
+  "s.notes",
+] as const;
+
+/** Rows of sides, in order, gathered by their disc. */
+function byDisc<T extends { discId: string }>(rows: T[]): Map<string, Omit<T, "discId">[]> {
+  const out = new Map<string, Omit<T, "discId">[]>();
+  for (const { discId, ...side } of rows) {
+    const list = out.get(discId);
     if (list) list.push(side);
-    else sidesOf.set(discId, [side]);
+    else out.set(discId, [side]);
   }
-  return discs.map((d) => ({
+  return out;
+}
+
+/** pg reads numeric columns as text: the diameter and the speed as numbers. */
+function withNumbers<T extends { diameterIn: string | number | null; nominalSpeedRpm: string | number }>(
+  d: T,
+) {
+  return {
     ...d,
     diameterIn: d.diameterIn === null ? null : Number(d.diameterIn),
     nominalSpeedRpm: Number(d.nominalSpeedRpm),
-    sides: sidesOf.get(d.id) ?? [],
-  }));
+  };
 }
 
 function selectDiscFields(db: Db) {
@@ -135,28 +150,18 @@ async function withSides(db: Db, rows: DiscRow[]): Promise<DiscRecord[]> {
     rows.map((d) => d.id),
   );
   return rows.map((d) => ({
-    ...d,
-    diameterIn: d.diameterIn === null ? null : Number(d.diameterIn),
-    nominalSpeedRpm: Number(d.nominalSpeedRpm),
+    ...withNumbers(d),
     sides: sides.get(d.id) ?? [],
   }));
 }
 
 export async function readSides(db: Db, discIds: string[]): Promise<Map<string, SideRecord[]>> {
-  const out = new Map<string, SideRecord[]>();
-  if (!discIds.length) return out;
+  if (!discIds.length) return new Map();
   const rows = await db
     .selectFrom("sides as s")
     .leftJoin("users as u", "u.id", "s.assigned_engineer_id")
     .select([
-      "s.id",
-      "s.disc_id as discId",
-      "s.designation",
-      "s.matrix_number as matrixNumber",
-      "s.take",
-      "s.title",
-      "s.performers",
-      "s.notes",
+      ...sideFieldColumns,
       "s.status",
       "s.assigned_engineer_id as assignedEngineerId",
       "u.name as assignedEngineerName",
@@ -170,12 +175,7 @@ export async function readSides(db: Db, discIds: string[]): Promise<Map<string, 
     .orderBy("s.disc_id")
     .orderBy(sql`lower(s.designation)`)
     .execute();
-  for (const { discId, ...side } of rows) {
-    const list = out.get(discId) ?? [];
-    list.push(side);
-    out.set(discId, list);
-  }
-  return out;
+  return byDisc(rows);
 }
 
 /** Rebuilds the disc's search columns and title sort key from its own fields and its sides' (same transaction as the change). */

@@ -1,5 +1,4 @@
 import "server-only";
-import { sql } from "kysely";
 import { db } from "../../db";
 import { curveChoiceName } from "../curves";
 import { itemText } from "../equipment/describe";
@@ -8,6 +7,7 @@ import { env } from "../env";
 import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
 import { AppError } from "../http/errors";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
+import { measurementJson } from "../transfers/test-disc-evidence";
 import { softwareName } from "../version";
 import type { PremisAgent, PremisEvent, PremisFile, PremisRecord } from "./premis";
 
@@ -78,13 +78,7 @@ export async function discRecord(discId: string) {
         "c.chosen_at as chosenAt",
         "u.name as chosenBy",
         // The test-disc measurement a choice rests on: the points, the server's fit and the file's hash.
-        sql<TestDiscMeasurementRecord | null>`CASE WHEN m.choice_id IS NULL THEN NULL ELSE jsonb_build_object(
-          'pointsKind', m.points_kind, 'points', m.points, 'fitParameters', to_jsonb(m.fit_parameters),
-          'fittedSpec', m.fitted_spec, 'levelOffsetDb', m.level_offset_db, 'residuals', m.residuals,
-          'rmsDb', m.rms_db, 'worstDb', m.worst_db, 'worstHz', m.worst_hz,
-          'sourceFileName', m.source_file_name, 'sourceSha256', m.source_sha256) END`.as(
-          "testDiscMeasurement",
-        ),
+        measurementJson("m").as("testDiscMeasurement"),
       ])
       .where("c.side_id", "in", ids)
       .orderBy("c.chosen_at")
@@ -289,21 +283,6 @@ async function discLabelImages(discId: string) {
     sha256: r.sha256!,
     storedAt: r.storedAt!,
   }));
-}
-
-/** A test-disc measurement as the record carries it (lib/transfers/test-disc-evidence.ts keeps it). */
-export interface TestDiscMeasurementRecord {
-  pointsKind: "recording" | "playback";
-  points: { hz: number; db: number }[];
-  fitParameters: string[];
-  fittedSpec: Record<string, unknown>;
-  levelOffsetDb: number;
-  residuals: { hz: number; db: number; modelDb: number; residualDb: number }[];
-  rmsDb: number;
-  worstDb: number;
-  worstHz: number;
-  sourceFileName: string | null;
-  sourceSha256: string | null;
 }
 
 /** The measurement in one sentence of a PREMIS event's detail: what was fitted, how well, and the file's hash. */

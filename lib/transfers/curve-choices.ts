@@ -10,7 +10,12 @@ import { canonicalJson } from "../provenance/chain";
 import { curveChoosableStatuses, curveChosen, lockSides } from "../sides/lifecycle";
 import { statusLabels } from "../validation/catalogue";
 import { curveChoiceSchema } from "../validation/transfers";
-import { evidenceSummary, fitTestDiscMeasurement, insertTestDiscEvidence } from "./test-disc-evidence";
+import {
+  evidenceSummary,
+  fitTestDiscMeasurement,
+  insertTestDiscEvidence,
+  measurementJson,
+} from "./test-disc-evidence";
 
 function sha256Hex(text: string): string {
   return createHash("sha256").update(text).digest("hex");
@@ -161,56 +166,15 @@ export async function listCurveChoices(sideId: string) {
       "c.evidence",
       "c.chosen_at as chosenAt",
       "u.name as chosenBy",
-      "e.points_kind as measurementPointsKind",
-      "e.points as measurementPoints",
-      "e.fit_parameters as measurementFit",
-      "e.fitted_spec as measurementFittedSpec",
-      "e.level_offset_db as measurementLevelOffsetDb",
-      "e.residuals as measurementResiduals",
-      "e.rms_db as measurementRmsDb",
-      "e.worst_db as measurementWorstDb",
-      "e.worst_hz as measurementWorstHz",
-      "e.source_file_name as measurementFileName",
-      "e.source_sha256 as measurementSha256",
+      // The test-disc measurement the choice rests on, as the server fitted it (null for other evidence).
+      measurementJson("e").as("measurement"),
     ])
     .where("c.side_id", "=", sideId)
     .orderBy("c.chosen_at", "desc")
     .execute();
-  return rows.map(
-    ({
-      measurementPointsKind,
-      measurementPoints,
-      measurementFit,
-      measurementFittedSpec,
-      measurementLevelOffsetDb,
-      measurementResiduals,
-      measurementRmsDb,
-      measurementWorstDb,
-      measurementWorstHz,
-      measurementFileName,
-      measurementSha256,
-      ...r
-    }) => ({
-      ...r,
-      cutSpeedRpm: Number(r.cutSpeedRpm),
-      transferSpeedRpm: Number(r.transferSpeedRpm),
-      // The test-disc measurement the choice rests on, as the server fitted it (null for other evidence).
-      measurement:
-        measurementPointsKind && measurementPoints && measurementFittedSpec && measurementResiduals
-          ? {
-              pointsKind: measurementPointsKind,
-              points: measurementPoints,
-              fitParameters: measurementFit ?? [],
-              fittedSpec: measurementFittedSpec,
-              levelOffsetDb: measurementLevelOffsetDb ?? 0,
-              residuals: measurementResiduals,
-              rmsDb: measurementRmsDb ?? 0,
-              worstDb: measurementWorstDb ?? 0,
-              worstHz: measurementWorstHz ?? 0,
-              sourceFileName: measurementFileName,
-              sourceSha256: measurementSha256,
-            }
-          : null,
-    }),
-  );
+  return rows.map((r) => ({
+    ...r,
+    cutSpeedRpm: Number(r.cutSpeedRpm),
+    transferSpeedRpm: Number(r.transferSpeedRpm),
+  }));
 }

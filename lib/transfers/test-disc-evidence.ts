@@ -1,29 +1,20 @@
 import { createHash } from "node:crypto";
-import type { Transaction } from "kysely";
+import { type RawBuilder, sql, type Transaction } from "kysely";
 import type { Database } from "../../db/types";
 import {
   type CurveSpec,
-  type FitParameter,
-  type FitResult,
-  fitCurve,
-  parsePointsCsv,
+  fitMeasuredPoints,
+  fitPoints,
+  type MeasurementFit,
+  type MeasurementJson,
   PointsParseError,
 } from "../curves";
 import { curveErrorToAppError } from "../http/curve-errors";
 import { AppError } from "../http/errors";
 import type { TestDiscMeasurement } from "../validation/transfers";
 
-/** A test-disc measurement as a curve choice keeps it: the points, the server's fit, and the file. */
-export interface TestDiscEvidence {
-  pointsKind: "recording" | "playback";
-  points: { hz: number; db: number }[];
-  fitParameters: FitParameter[];
-  fittedSpec: CurveSpec;
-  levelOffsetDb: number;
-  residuals: FitResult["residuals"];
-  rmsDb: number;
-  worstDb: number;
-  worstHz: number;
+/** A test-disc measurement as a curve choice keeps it: the server's fit, and the points file. */
+export interface TestDiscEvidence extends MeasurementFit {
   sourceFileName: string | null;
   /** Null only for evidence recorded without its file (the table allows it). */
   sourceText: string | null;
@@ -32,63 +23,27 @@ export interface TestDiscEvidence {
 
 /**
  * Reads the points from the file the engineer gave and fits them with the curve engine's
- * own fit, starting from the curve being chosen (its speed aside: a test disc is measured
- * at its own speed). What is kept is what the server worked out, never a client's figures.
- * A file it cannot read, or points that cannot settle the values, answer 422 naming the
- * line or the value.
+ * own fit, starting from the curve being chosen at its cut speed (lib/curves/measurement.ts,
+ * the same the bench's form tries in the browser). What is kept is what the server worked
+ * out, never a client's figures. A file it cannot read, or points that cannot settle the
+ * values, answer 422 naming the line or the value.
  */
 export function fitTestDiscMeasurement(m: TestDiscMeasurement, chosen: CurveSpec): TestDiscEvidence {
-  let points: { hz: number; db: number }[];
+  let fit: MeasurementFit;
   try {
-    points = parsePointsCsv(m.sourceText);
+    fit = fitMeasuredPoints(m.sourceText, m.pointsKind, m.fit, chosen);
   } catch (err) {
     if (err instanceof PointsParseError)
       throw new AppError("invalid", 422, `The measured points cannot be read: ${err.message}`, {
         "measurement.sourceText": [err.message],
       });
-    throw err;
-  }
-  if (points.length > 5000)
-    throw new AppError(
-      "invalid",
-      422,
-      `The measurement has ${points.length} points; at most 5 000 are kept.`,
-      {
-        "measurement.sourceText": ["At most 5 000 points."],
-      },
-    );
-  return {
-    pointsKind: m.pointsKind,
-    points,
-    fitParameters: m.fit,
-    ...fitPoints(points, m.pointsKind, m.fit, chosen),
-    sourceFileName: m.sourceFileName ?? null,
-    sourceText: m.sourceText,
-    sourceSha256: createHash("sha256").update(m.sourceText, "utf8").digest("hex"),
-  };
-}
-
-/** The fit of points already read, starting from the curve being chosen (its speed aside). */
-function fitPoints(
-  points: { hz: number; db: number }[],
-  kind: TestDiscEvidence["pointsKind"],
-  parameters: FitParameter[],
-  chosen: CurveSpec,
-) {
-  const { speedRatio: _speedRatio, ...initial } = chosen;
-  let fit: FitResult;
-  try {
-    fit = fitCurve({ points, kind, fit: parameters, initial });
-  } catch (err) {
     throw curveErrorToAppError(err, "measurement");
   }
   return {
-    fittedSpec: fit.spec,
-    levelOffsetDb: fit.levelOffsetDb,
-    residuals: fit.residuals,
-    rmsDb: fit.rmsDb,
-    worstDb: fit.worstDb,
-    worstHz: fit.worstHz,
+    ...fit,
+    sourceFileName: m.sourceFileName ?? null,
+    sourceText: m.sourceText,
+    sourceSha256: createHash("sha256").update(m.sourceText, "utf8").digest("hex"),
   };
 }
 
@@ -104,7 +59,11 @@ export function refitTestDiscEvidence(
   >,
   chosen: CurveSpec,
 ): TestDiscEvidence {
-  return { ...kept, ...fitPoints(kept.points, kept.pointsKind, kept.fitParameters, chosen) };
+  try {
+    return { ...kept, ...fitPoints(kept.points, kept.pointsKind, kept.fitParameters, chosen) };
+  } catch (err) {
+    throw curveErrorToAppError(err, "measurement");
+  }
 }
 
 /** Keeps the evidence with its curve choice (the table refuses any later change). */
@@ -133,7 +92,7 @@ export async function insertTestDiscEvidence(
     .execute();
 }
 
-/** What an event and the record say of the evidence: the figures and the file's hash, not the whole file. */
+/** What an event says of the evidence: the figures and the file's hash, not the whole file. */
 export function evidenceSummary(e: TestDiscEvidence) {
   return {
     pointsKind: e.pointsKind,
@@ -147,4 +106,18 @@ export function evidenceSummary(e: TestDiscEvidence) {
     sourceFileName: e.sourceFileName,
     sourceSha256: e.sourceSha256,
   };
+}
+
+/**
+ * The measurement kept with a curve choice, as one JSON value (null for a choice without
+ * one), from `curve_choice_evidence` joined as `alias`: the choice's list and the record
+ * read it the same way.
+ */
+export function measurementJson(alias: string): RawBuilder<MeasurementJson | null> {
+  const e = (column: string) => sql.ref(`${alias}.${column}`);
+  return sql<MeasurementJson | null>`CASE WHEN ${e("choice_id")} IS NULL THEN NULL ELSE jsonb_build_object(
+    'pointsKind', ${e("points_kind")}, 'points', ${e("points")}, 'fitParameters', to_jsonb(${e("fit_parameters")}),
+    'fittedSpec', ${e("fitted_spec")}, 'levelOffsetDb', ${e("level_offset_db")}, 'residuals', ${e("residuals")},
+    'rmsDb', ${e("rms_db")}, 'worstDb', ${e("worst_db")}, 'worstHz', ${e("worst_hz")},
+    'sourceFileName', ${e("source_file_name")}, 'sourceSha256', ${e("source_sha256")}) END`;
 }

@@ -41,7 +41,7 @@ export const evidenceKinds = [
 ] as const;
 export const evidenceLabels: Record<(typeof evidenceKinds)[number], string> = {
   published_guidance: "Published guidance for the label and era",
-  test_disc: "Test-disc measurement (its points and fit kept with the choice)",
+  test_disc: "Test-disc measurement",
   listening: "Listening comparison",
   disc_documentation: "The disc's own documentation",
   other: "Other",

@@ -413,11 +413,8 @@ export interface CampaignSidesTable {
   state: Generated<CampaignSideState>;
   status_before: SideStatus;
   from_choice_id: string;
-  from_version: number;
   choice_id: string | null;
   render_id: string | null;
-  /** The side was rendered, in review or approved: it goes back to review after its new render. */
-  to_review: boolean;
   attempts: Generated<number>;
   error: string | null;
   /** What became of the side, in words (done sides). */

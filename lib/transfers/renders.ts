@@ -232,7 +232,7 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
     });
     // The campaign's side fails, for a retry from the campaign's page.
     if (campaign)
-      await campaignRenderStopped(trx, id, "Its render was cancelled on the bench by the engineer.");
+      await campaignRenderStopped(trx, campaign, "Its render was cancelled on the bench by the engineer.");
     return { renderId: id, sideId: side.id, status: "cancelled" as const };
   });
   // No one can record it now: an access copy a worker stored before it stopped (or before

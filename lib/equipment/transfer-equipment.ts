@@ -258,15 +258,9 @@ export async function equipmentWithCalibrations(
               .as("k"),
           (join) => join.onTrue(),
         )
+        .selectAll("k")
         .select([
           "t.id as transferId",
-          "k.id",
-          "k.calibrated_on",
-          "k.test_disc",
-          "k.item_ids",
-          "k.deviation_rms_db",
-          "k.deviation_worst_db",
-          "k.deviation_worst_hz",
           sql<number>`((t.created_at AT TIME ZONE 'UTC')::date - k.calibrated_on)`.as("age_days"),
         ])
         .where("t.id", "in", withChain)

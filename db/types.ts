@@ -525,7 +525,8 @@ export interface LabelImagesTable {
   disc_id: string;
   side_id: string | null;
   kind: LabelImageKind;
-  state: Generated<"pending" | "stored" | "refused">;
+  /** A withdrawn image (added by mistake) keeps its row and objects but leaves the disc's page, record and bags. */
+  state: Generated<"pending" | "stored" | "refused" | "withdrawn">;
   object_key: string;
   thumbnail_key: string | null;
   file_name: string;
@@ -541,6 +542,9 @@ export interface LabelImagesTable {
   created_at: DefaultTimestamp;
   expires_at: ColumnType<Date, Date | string, Date | string>;
   stored_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  withdrawn_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  withdrawn_by: string | null;
+  withdrawn_reason: string | null;
 }
 
 /** A BagIt package a curator asked to be written into the delivery prefix of a bucket. */

@@ -165,7 +165,7 @@ async function main(): Promise<number> {
       sha256: string;
       bytes: string;
     }>(
-      "SELECT id, object_key, thumbnail_key, sha256, bytes FROM label_images WHERE state = 'stored' ORDER BY created_at, id",
+      "SELECT id, object_key, thumbnail_key, sha256, bytes FROM label_images WHERE state IN ('stored', 'withdrawn') ORDER BY created_at, id",
     );
     const checkpoints = await client.query<{ id: string; object_key: string }>(
       "SELECT id, object_key FROM chain_checkpoints ORDER BY head_seq, id",

@@ -286,7 +286,7 @@ async function verify(
   for (const r of await db
     .selectFrom("label_images")
     .select(["object_key", "thumbnail_key", "sha256", "bytes"])
-    .where("state", "=", "stored")
+    .where("state", "in", ["stored", "withdrawn"])
     .execute()) {
     recorded.set(r.object_key, { sha256: r.sha256, bytes: Number(r.bytes) });
     recorded.set(r.thumbnail_key!, { sha256: null, bytes: null });

@@ -471,6 +471,13 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       const what = p.kind === "sleeve" ? "the sleeve" : `the label of ${side}`;
       return { sentence: `${who} added an image of ${what}${on}.`, details: d, tone: "plain" };
     }
+    case "disc.label_image_withdrawn": {
+      if (p.fileName) d.push({ label: "File", value: String(p.fileName) });
+      if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
+      if (p.reason) d.push({ label: "Reason", value: String(p.reason) });
+      const what = p.kind === "sleeve" ? "the sleeve" : `the label of ${side}`;
+      return { sentence: `${who} withdrew an image of ${what}${on}.`, details: d, tone: "plain" };
+    }
     case "disc.packaged":
     case "accession.packaged": {
       if (p.bag) d.push({ label: "Bag", value: String(p.bag), mono: true });
@@ -769,6 +776,7 @@ const KIND_LABELS: Record<string, string> = {
   "side.fixity_checked": "Fixity check",
   "disc.fixity_checked": "Fixity check",
   "disc.label_image_added": "Label image added",
+  "disc.label_image_withdrawn": "Label image withdrawn",
   "disc.packaged": "Packaged (BagIt)",
   "accession.packaged": "Accession packaged (BagIt)",
   "side.approved": "Approved",

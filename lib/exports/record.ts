@@ -438,6 +438,19 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
             ),
           );
           break;
+        case "disc.label_image_withdrawn":
+          // An appraisal: the image is judged not to be the disc's; its object is kept, under fixity.
+          events.push(
+            ev(
+              "appraisal",
+              `${p.kind === "sleeve" ? "Image of the sleeve" : `Image of the label of side ${p.side ?? "?"}`} “${p.fileName}” ` +
+                `withdrawn from the disc's record: ${p.reason}. The file is kept in storage, under fixity checks`,
+              [...entity, { type: "Rillbook label image", value: p.labelImageId, role: "source" }],
+              "success",
+              `SHA-256 ${p.sha256}`,
+            ),
+          );
+          break;
         case "disc.packaged":
         case "accession.packaged":
           events.push(

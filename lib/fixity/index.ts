@@ -62,7 +62,8 @@ export async function storedObjects(
       "l.disc_id as discId",
       "l.stored_at as storedAt",
     ])
-    .where("l.state", "=", "stored");
+    // A withdrawn image left the disc's page, but its object is still the lab's to keep whole.
+    .where("l.state", "in", ["stored", "withdrawn"]);
   if (discId) {
     transfers = transfers.where("s.disc_id", "=", discId);
     renders = renders.where("s.disc_id", "=", discId);

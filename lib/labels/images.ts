@@ -31,6 +31,7 @@ import {
   labelImageTypes,
   type LabelImageType,
   startLabelImageSchema,
+  withdrawLabelImageSchema,
 } from "../validation/label-images";
 
 /** An upload URL, and the pending row, last an hour: a label image is one PUT. */
@@ -363,4 +364,52 @@ export async function labelImageFile(
     if (isObjectMissing(err)) throw new AppError("not_found", 404, "The image is not in the file store.");
     throw storeUnavailable("read the image", err);
   }
+}
+
+/**
+ * Withdraws a stored label image added by mistake, with the person's reason: it leaves the
+ * disc's page, record and bags; its row, object and thumbnail stay, under fixity and backup,
+ * and the event names the file and its SHA-256. Final: the database refuses any later change.
+ */
+export async function withdrawLabelImage(actor: SessionUser, id: string, input: unknown) {
+  const { reason } = withdrawLabelImageSchema.parse(input);
+  return db.transaction().execute(async (trx) => {
+    const row = await trx
+      .selectFrom("label_images as l")
+      .leftJoin("sides as s", "s.id", "l.side_id")
+      .select(["l.id", "l.state", "l.disc_id", "l.kind", "l.file_name", "l.sha256", "s.designation"])
+      .where("l.id", "=", id)
+      .forUpdate("l")
+      .executeTakeFirst();
+    if (!row || row.state === "pending" || row.state === "refused")
+      throw new AppError("not_found", 404, "No such label image on record.");
+    if (row.state === "withdrawn")
+      throw new AppError("conflict", 409, "This label image is already withdrawn.");
+    await trx
+      .updateTable("label_images")
+      .set({
+        state: "withdrawn",
+        withdrawn_at: sql<Date>`now()`,
+        withdrawn_by: actor.id,
+        withdrawn_reason: reason,
+      })
+      .where("id", "=", row.id)
+      .execute();
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "disc.label_image_withdrawn",
+      subjectType: "disc",
+      subjectId: row.disc_id,
+      discId: row.disc_id,
+      payload: {
+        labelImageId: row.id,
+        kind: row.kind,
+        ...(row.designation ? { side: row.designation } : {}),
+        fileName: row.file_name,
+        sha256: row.sha256,
+        reason,
+      },
+    });
+    return { labelImageId: row.id, state: "withdrawn" as const };
+  });
 }

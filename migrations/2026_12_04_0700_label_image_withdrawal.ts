@@ -22,8 +22,10 @@ export async function up(db: Kysely<unknown>): Promise<void> {
   await sql`ALTER TABLE label_images ADD CONSTRAINT label_images_withdrawn
     CHECK ((state = 'withdrawn') = coalesce(withdrawn_at IS NOT NULL AND withdrawn_by IS NOT NULL
       AND length(btrim(withdrawn_reason)) BETWEEN 1 AND 1000, false))`.execute(db);
+  // Not a refuse_* function (db/roles.ts takes those tables from the app role as append-only):
+  // a pending image still becomes stored or refused, and a stored one withdrawn.
   await sql`
-    CREATE FUNCTION refuse_label_image_change() RETURNS trigger LANGUAGE plpgsql AS $$
+    CREATE FUNCTION keep_label_image_on_record() RETURNS trigger LANGUAGE plpgsql AS $$
     BEGIN
       IF TG_OP = 'DELETE' THEN
         IF OLD.state IN ('stored', 'withdrawn') THEN
@@ -43,12 +45,12 @@ export async function up(db: Kysely<unknown>): Promise<void> {
     END $$`.execute(db);
   await sql`
     CREATE TRIGGER label_images_on_record BEFORE UPDATE OR DELETE ON label_images
-    FOR EACH ROW EXECUTE FUNCTION refuse_label_image_change()`.execute(db);
+    FOR EACH ROW EXECUTE FUNCTION keep_label_image_on_record()`.execute(db);
 }
 
 export async function down(db: Kysely<unknown>): Promise<void> {
   await sql`DROP TRIGGER label_images_on_record ON label_images`.execute(db);
-  await sql`DROP FUNCTION refuse_label_image_change()`.execute(db);
+  await sql`DROP FUNCTION keep_label_image_on_record()`.execute(db);
   await sql`UPDATE label_images SET state = 'stored' WHERE state = 'withdrawn'`.execute(db);
   await sql`ALTER TABLE label_images DROP CONSTRAINT label_images_withdrawn`.execute(db);
   await sql`ALTER TABLE label_images DROP CONSTRAINT label_images_stored`.execute(db);

@@ -413,11 +413,8 @@ export interface CampaignSidesTable {
   state: Generated<CampaignSideState>;
   status_before: SideStatus;
   from_choice_id: string;
-  from_version: number;
   choice_id: string | null;
   render_id: string | null;
-  /** The side was rendered, in review or approved: it goes back to review after its new render. */
-  to_review: boolean;
   attempts: Generated<number>;
   error: string | null;
   /** What became of the side, in words (done sides). */
@@ -528,7 +525,8 @@ export interface LabelImagesTable {
   disc_id: string;
   side_id: string | null;
   kind: LabelImageKind;
-  state: Generated<"pending" | "stored" | "refused">;
+  /** A withdrawn image (added by mistake) keeps its row and objects but leaves the disc's page, record and bags. */
+  state: Generated<"pending" | "stored" | "refused" | "withdrawn">;
   object_key: string;
   thumbnail_key: string | null;
   file_name: string;
@@ -544,6 +542,9 @@ export interface LabelImagesTable {
   created_at: DefaultTimestamp;
   expires_at: ColumnType<Date, Date | string, Date | string>;
   stored_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  withdrawn_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  withdrawn_by: string | null;
+  withdrawn_reason: string | null;
 }
 
 /** A BagIt package a curator asked to be written into the delivery prefix of a bucket. */
@@ -561,6 +562,7 @@ export interface BagDeliveriesTable {
   requested_by: string;
   requested_at: DefaultTimestamp;
   started_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
+  heartbeat_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
   finished_at: ColumnType<Date | null, Date | string | null, Date | string | null>;
 }
 

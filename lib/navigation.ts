@@ -5,7 +5,18 @@ export interface NavItem {
   label: string;
   action: Action;
   blurb: string;
-  icon: "home" | "shelf" | "queue" | "curve" | "bench" | "review" | "audit" | "people" | "mail" | "equipment";
+  icon:
+    | "home"
+    | "shelf"
+    | "queue"
+    | "curve"
+    | "bench"
+    | "review"
+    | "audit"
+    | "people"
+    | "mail"
+    | "equipment"
+    | "campaign";
 }
 
 /** The lab's places; each person sees those their role may use (the server checks again). */
@@ -31,6 +42,13 @@ export const navItems: NavItem[] = [
     action: "curves:read",
     blurb: "Playback curve library and workbench",
     icon: "curve",
+  },
+  {
+    href: "/campaigns",
+    label: "Campaigns",
+    action: "campaigns:run",
+    blurb: "Sides re-rendered after a preset is corrected",
+    icon: "campaign",
   },
   {
     href: "/bench",

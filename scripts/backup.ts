@@ -158,6 +158,15 @@ async function main(): Promise<number> {
     const renders = await client.query<{ id: string; object_key: string; sha256: string; bytes: number }>(
       "SELECT id, object_key, sha256, bytes FROM renders WHERE object_key IS NOT NULL AND sha256 IS NOT NULL ORDER BY created_at, id",
     );
+    const labelImages = await client.query<{
+      id: string;
+      object_key: string;
+      thumbnail_key: string;
+      sha256: string;
+      bytes: string;
+    }>(
+      "SELECT id, object_key, thumbnail_key, sha256, bytes FROM label_images WHERE state IN ('stored', 'withdrawn') ORDER BY created_at, id",
+    );
     const checkpoints = await client.query<{ id: string; object_key: string }>(
       "SELECT id, object_key FROM chain_checkpoints ORDER BY head_seq, id",
     );
@@ -192,6 +201,24 @@ async function main(): Promise<number> {
         sha256: r.sha256,
         source: "record" as const,
       })),
+      ...labelImages.rows.flatMap((r) => [
+        {
+          kind: "label_image" as const,
+          id: r.id,
+          key: r.object_key,
+          bytes: Number(r.bytes),
+          sha256: r.sha256,
+          source: "record" as const,
+        },
+        {
+          kind: "label_thumbnail" as const,
+          id: r.id,
+          key: r.thumbnail_key,
+          bytes: null,
+          sha256: null,
+          source: "none" as const,
+        },
+      ]),
       ...checkpoints.rows.map((r) => ({
         kind: "checkpoint" as const,
         id: r.id,
@@ -215,6 +242,7 @@ async function main(): Promise<number> {
         transfers: transfers.rows.length,
         renders: renders.rows.length,
         checkpoints: checkpoints.rows.length,
+        labelImages: labelImages.rows.length,
       },
       withObjects: args.withObjects,
       bucket: { endpoint: e.S3_ENDPOINT, name: e.S3_BUCKET },

@@ -27,6 +27,7 @@ import {
   type Manifest,
   manifestFile,
   manifestSchema,
+  objectContentType,
   objectPath,
   objectsDir,
   pgConnection,
@@ -219,7 +220,7 @@ async function main(): Promise<number> {
             Key: o.key,
             Body: createReadStream(file),
             ContentLength: local.bytes,
-            ContentType: o.kind === "checkpoint" ? "application/json" : "audio/wav",
+            ContentType: objectContentType(o),
           }),
         );
         put++;
@@ -282,6 +283,14 @@ async function verify(
     .where("sha256", "is not", null)
     .execute())
     recorded.set(r.object_key!, { sha256: r.sha256, bytes: r.bytes });
+  for (const r of await db
+    .selectFrom("label_images")
+    .select(["object_key", "thumbnail_key", "sha256", "bytes"])
+    .where("state", "in", ["stored", "withdrawn"])
+    .execute()) {
+    recorded.set(r.object_key, { sha256: r.sha256, bytes: Number(r.bytes) });
+    recorded.set(r.thumbnail_key!, { sha256: null, bytes: null });
+  }
   for (const r of await db.selectFrom("chain_checkpoints").select("object_key").execute())
     recorded.set(r.object_key, { sha256: null, bytes: null });
   const inManifest = new Set(manifest.objects.map((o) => o.key));

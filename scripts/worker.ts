@@ -19,6 +19,7 @@ import {
   fixityJobKey,
   RENDER_QUEUE,
 } from "../lib/jobs/boss";
+import { releaseStaleDeliveries } from "../lib/exports/delivery-lease";
 import { runRenderJob } from "../lib/jobs/render-job";
 import {
   leaseTimes,
@@ -51,6 +52,7 @@ async function mailLoop(): Promise<void> {
 /**
  * Every worker looks for renders whose worker died (a stale lease) and sends them to the
  * render queue again, so another worker, or this one, takes them up and finishes them.
+ * Bag deliveries whose server stopped mid-way are closed as stopped, their folder emptied.
  * A round that fails (the database away) is logged and the next one tries again.
  */
 async function leaseSweepLoop(): Promise<void> {
@@ -65,6 +67,10 @@ async function leaseSweepLoop(): Promise<void> {
           `[worker] render ${renderId}: its worker stopped renewing the lease; handed back to the queue`,
         );
       }
+      for (const d of await releaseStaleDeliveries(db, stale))
+        console.log(
+          `[worker] delivery ${d.id}: its server stopped writing s3://${d.bucket}/${d.prefix}; closed as stopped`,
+        );
     } catch (err) {
       console.error("[worker] lease sweep failed:", err instanceof Error ? err.message : err);
     }

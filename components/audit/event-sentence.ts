@@ -19,6 +19,7 @@ import {
   formatNumber,
 } from "@/lib/curves";
 import { channelModeLabels } from "@/lib/audio/channel-mode";
+import { objectWords } from "@/lib/fixity/object-words";
 import { evidenceLabels } from "@/lib/validation/transfers";
 import { valueText } from "@/lib/value-text";
 
@@ -132,9 +133,6 @@ function shaShort(sha: unknown): string {
 
 const idOf = (v: unknown): string | undefined =>
   typeof v === "string" ? v : v && typeof v === "object" && "id" in v ? String(v.id) : undefined;
-
-const objectWords = (kind: unknown) =>
-  kind === "render" ? "access copy" : kind === "label_image" ? "label image" : "flat transfer";
 
 /** A status in running text; a status this page does not know yet is still readable ("needs_render" → "needs render"). */
 function statusWords(status: unknown): string {
@@ -473,6 +471,13 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
       const what = p.kind === "sleeve" ? "the sleeve" : `the label of ${side}`;
       return { sentence: `${who} added an image of ${what}${on}.`, details: d, tone: "plain" };
     }
+    case "disc.label_image_withdrawn": {
+      if (p.fileName) d.push({ label: "File", value: String(p.fileName) });
+      if (p.sha256) d.push({ label: "SHA-256", value: String(p.sha256), mono: true });
+      if (p.reason) d.push({ label: "Reason", value: String(p.reason) });
+      const what = p.kind === "sleeve" ? "the sleeve" : `the label of ${side}`;
+      return { sentence: `${who} withdrew an image of ${what}${on}.`, details: d, tone: "plain" };
+    }
     case "disc.packaged":
     case "accession.packaged": {
       if (p.bag) d.push({ label: "Bag", value: String(p.bag), mono: true });
@@ -509,8 +514,14 @@ export function describeEvent(e: EventLike, ctx: EventContext = emptyContext): E
           : p.outcome === "missing"
             ? "found the file MISSING"
             : "could not read the file";
+      // An access copy's and a label image's keys end in names the server gave ("original.png"),
+      // not the file's: the sentence names them by what they are; the key is in the details.
       const file =
-        p.object?.kind === "render" ? "" : p.object?.key ? ` ${fileNameOf({ objectKey: p.object.key })}` : "";
+        p.object?.kind === "render" || p.object?.kind === "label_image"
+          ? ""
+          : p.object?.key
+            ? ` ${fileNameOf({ objectKey: p.object.key })}`
+            : "";
       const sha = shaShort(p.expectedSha256);
       return {
         sentence: `A fixity check of the ${objectWords(p.object?.kind)}${file} of ${p.side ? side : "the disc"}${on}${sha ? ` (${sha})` : ""} ${outcome}${p.readFor ? ` while ${String(p.readFor)}` : ""}.`,
@@ -765,6 +776,7 @@ const KIND_LABELS: Record<string, string> = {
   "side.fixity_checked": "Fixity check",
   "disc.fixity_checked": "Fixity check",
   "disc.label_image_added": "Label image added",
+  "disc.label_image_withdrawn": "Label image withdrawn",
   "disc.packaged": "Packaged (BagIt)",
   "accession.packaged": "Accession packaged (BagIt)",
   "side.approved": "Approved",

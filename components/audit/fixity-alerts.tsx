@@ -6,6 +6,7 @@
 import { useQuery } from "@tanstack/react-query";
 import Link from "next/link";
 import { when } from "@/components/catalogue/format";
+import { objectWords } from "@/lib/fixity/object-words";
 import { fetchJson } from "@/lib/http/client";
 import type { FixityAlert } from "./types";
 
@@ -66,12 +67,7 @@ export function FixityAlerts() {
           >
             <p>
               <span className="font-semibold text-alarm">{outcomeWords[a.outcome] ?? a.outcome}</span> ·{" "}
-              {a.objectKind === "render"
-                ? "access copy"
-                : a.objectKind === "label_image"
-                  ? "label image"
-                  : "flat transfer"}{" "}
-              of{" "}
+              {objectWords(a.objectKind)} of{" "}
               <Link
                 href={`/catalogue/${a.discId}`}
                 className="font-mono font-semibold text-shellac-deep underline underline-offset-2"

@@ -45,7 +45,7 @@ function sideState(s: CampaignSideJson): string {
   return "queued";
 }
 
-export function CampaignView({ id, canRun }: { id: string; canRun: boolean }) {
+export function CampaignView({ id, canRun, canReview }: { id: string; canRun: boolean; canReview: boolean }) {
   const q = useCampaign(id);
   const act = useCampaignAction(id);
   if (q.isLoading) return <p className="text-sm text-ink-faint">Loading…</p>;
@@ -210,7 +210,12 @@ export function CampaignView({ id, canRun }: { id: string; canRun: boolean }) {
                 >
                   <td className="px-3 py-2.5">
                     <Link
-                      href={`/review/${s.sideId}`}
+                      // A side waiting for review opens in the review for a curator; otherwise its disc.
+                      href={
+                        canReview && s.status === "in_review"
+                          ? `/review/${s.sideId}`
+                          : `/catalogue/${s.discId}`
+                      }
                       className="font-medium text-shellac-deep underline-offset-2 hover:underline"
                     >
                       {s.shelfMark} · {s.designation}

@@ -12,7 +12,7 @@ import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { usePresets } from "@/hooks/use-presets";
 import { type CurvePoint, type CurveSpec, parsePointsCsv, RIAA_SPEC } from "@/lib/curves";
-import { calibrationFitParameters } from "@/lib/validation/equipment";
+import { calibrationFitParameters, RIAA_CALIBRATION_NAME } from "@/lib/validation/equipment";
 import { CalibrationPlots, calibrationFits } from "./calibration-plots";
 import { useSave } from "./use-save";
 
@@ -40,7 +40,7 @@ export function CalibrationForm({ chainId, onDone }: { chainId: string; onDone?:
   const preset = presets.data?.presets.find((p) => p.id === expectedId);
   const expected: { spec: CurveSpec; name: string } = preset
     ? { spec: preset.spec, name: `${preset.name} (v${preset.version})` }
-    : { spec: RIAA_SPEC, name: "RIAA (IEC 60098)" };
+    : { spec: RIAA_SPEC, name: RIAA_CALIBRATION_NAME };
 
   const preview = useMemo(() => {
     if (!text.trim())
@@ -58,9 +58,7 @@ export function CalibrationForm({ chainId, onDone }: { chainId: string; onDone?:
     const answer = await save(`/api/equipment/chains/${chainId}/calibrations`, "POST", {
       calibratedOn,
       testDisc,
-      ...(preset
-        ? { presetId: preset.id, presetVersion: preset.version }
-        : { expectedSpec: RIAA_SPEC, expectedName: expected.name }),
+      ...(preset ? { presetId: preset.id, presetVersion: preset.version } : {}),
       points: preview.points,
       pointsKind,
       fit: params,
@@ -105,7 +103,7 @@ export function CalibrationForm({ chainId, onDone }: { chainId: string; onDone?:
           errors={field("presetId") ?? field("presetVersion")}
           data-testid="calibration-expected"
         >
-          <option value={RIAA}>RIAA (IEC 60098)</option>
+          <option value={RIAA}>{RIAA_CALIBRATION_NAME}</option>
           {presets.data?.presets.map((p) => (
             <option key={p.id} value={p.id}>
               {p.name} (v{p.version})

@@ -11,6 +11,7 @@ import { ResponsePlot } from "@/components/curves/response-plot";
 import { formatHz } from "@/components/curves/plot-format";
 import { SmallPlotGrid } from "@/components/curves/small-plot-grid";
 import { type CurvePoint, type CurveSpec, type FitResult, fitCurve } from "@/lib/curves";
+import type { calibrationFitParameters } from "@/lib/validation/equipment";
 
 export interface CalibrationFits {
   /** The corners chosen free: the curve the chain reproduces. */
@@ -23,7 +24,7 @@ export interface CalibrationFits {
 export function calibrationFits(
   points: CurvePoint[],
   kind: "recording" | "playback",
-  fit: ("turnover" | "shelf" | "rolloff" | "levelOffset")[],
+  fit: (typeof calibrationFitParameters)[number][],
   expected: CurveSpec,
 ): CalibrationFits {
   return {

@@ -2,6 +2,7 @@
 /** A recorded calibration, plotted from its stored points and curves with the same fits as when it was recorded. */
 import { useMemo } from "react";
 import type { CurvePoint, CurveSpec } from "@/lib/curves";
+import { calibrationFitParameters } from "@/lib/validation/equipment";
 import { CalibrationPlots, calibrationFits } from "./calibration-plots";
 
 export function CalibrationView({
@@ -22,8 +23,8 @@ export function CalibrationView({
       return calibrationFits(
         points,
         pointsKind,
-        fitParameters.filter((p): p is "turnover" | "shelf" | "rolloff" | "levelOffset" =>
-          ["turnover", "shelf", "rolloff", "levelOffset"].includes(p),
+        fitParameters.filter((p): p is (typeof calibrationFitParameters)[number] =>
+          (calibrationFitParameters as readonly string[]).includes(p),
         ),
         expected,
       );

@@ -5,9 +5,8 @@ import { useId, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { SelectField, TextField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
-import { itemName } from "@/lib/equipment/describe";
 import { chainOrder, equipmentKindLabels, type EquipmentKindName } from "@/lib/validation/equipment";
-import { tipText } from "./format";
+import { itemLabel } from "./format";
 import { useSave } from "./use-save";
 
 export interface PickableItem {
@@ -21,11 +20,6 @@ export interface PickableItem {
   /** Out of service (today or before): offered only when the chain already holds it. */
   retired: boolean;
 }
-
-export const pickLabel = (i: PickableItem) =>
-  [itemName(i), i.serial && `SN ${i.serial}`, i.kind === "stylus" && tipText(i.stylusTipUm), i.stylusShape]
-    .filter(Boolean)
-    .join(" · ");
 
 export function ChainForm({
   items,
@@ -108,7 +102,7 @@ export function ChainForm({
                 .filter((i) => i.kind === kind)
                 .map((i) => (
                   <option key={i.id} value={i.id}>
-                    {pickLabel(i)}
+                    {itemLabel(i)}
                   </option>
                 ))}
             </SelectField>
@@ -131,7 +125,7 @@ export function ChainForm({
                       }
                       className="h-4 w-4 accent-[#2f6f6a]"
                     />
-                    {pickLabel(i)}
+                    {itemLabel(i)}
                   </label>
                 ))}
             </div>
@@ -148,7 +142,7 @@ export function ChainForm({
       ) : null}
       <div className="flex flex-wrap gap-2">
         <Button type="submit" disabled={saving} data-testid="chain-save">
-          {editing ? "Save the chain" : "Save the chain"}
+          Save the chain
         </Button>
         {editing ? (
           <Button

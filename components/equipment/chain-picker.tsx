@@ -8,9 +8,8 @@ import Link from "next/link";
 import { useId } from "react";
 import { SelectField } from "@/components/ui/field";
 import { fetchJson } from "@/lib/http/client";
-import { itemName } from "@/lib/equipment/describe";
 import { equipmentKindLabels, type EquipmentKindName } from "@/lib/validation/equipment";
-import { ageText, tipText } from "./format";
+import { ageText, itemLabel } from "./format";
 
 interface ChainItem {
   id: string;
@@ -32,11 +31,6 @@ interface ChainsJson {
 interface ItemsJson {
   items: (ChainItem & { outOfServiceOn: string | null; inServiceOn: string | null })[];
 }
-
-const itemLabel = (i: ChainItem) =>
-  [itemName(i), i.serial && `SN ${i.serial}`, i.kind === "stylus" && tipText(i.stylusTipUm), i.stylusShape]
-    .filter(Boolean)
-    .join(" · ");
 
 export function ChainPicker({
   chainId,

@@ -1,6 +1,18 @@
-import { tipText } from "@/lib/equipment/describe";
+import { type ItemDescription, itemName, tipText } from "@/lib/equipment/describe";
 
 export { tipText };
+
+/** "Vellum Audio S-30 · SN ST-301 · 3.0 mil (76.2 µm) · truncated elliptical": an item as the pickers offer it. */
+export function itemLabel(i: ItemDescription): string {
+  return [
+    itemName(i),
+    i.serial && `SN ${i.serial}`,
+    i.kind === "stylus" && tipText(i.stylusTipUm),
+    i.stylusShape,
+  ]
+    .filter(Boolean)
+    .join(" · ");
+}
 
 /** "12.4 h" or "35 min": a stylus's hours of use as the bench speaks of them. */
 export function hoursText(hours: number): string {

@@ -1,14 +1,15 @@
 "use client";
 /**
  * A disc's label images: thumbnails (made on the server) of each side's label and of the
- * sleeve, each opening the stored original; and, for archivists and admins, adding one:
- * the file goes straight to the bucket by a presigned URL, then the server checks it.
+ * sleeve, each opening the stored original; and, for archivists and admins, adding one
+ * (the file goes straight to the bucket by a presigned URL, then the server checks it) and
+ * withdrawing one added by mistake, with a reason (the file itself is kept on record).
  */
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { createSHA256 } from "hash-wasm";
 import { useId, useState } from "react";
 import { Button } from "@/components/ui/button";
-import { SelectField } from "@/components/ui/field";
+import { controlClass, SelectField } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { fetchJson } from "@/lib/http/client";
 
@@ -52,6 +53,79 @@ async function sha256Of(file: File): Promise<string> {
 
 function caption(img: LabelImageJson): string {
   return img.kind === "sleeve" ? "Sleeve" : `Side ${img.side ?? "?"} label`;
+}
+
+/** Withdrawing an image added by mistake: a reason, then the server's answer. */
+function WithdrawImage({ img, onWithdrawn }: { img: LabelImageJson; onWithdrawn: () => Promise<void> }) {
+  const uid = useId();
+  const [open, setOpen] = useState(false);
+  const [reason, setReason] = useState("");
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  if (!open)
+    return (
+      <button
+        type="button"
+        className="text-[0.7rem] text-ink-faint underline underline-offset-2 hover:text-alarm"
+        onClick={() => setOpen(true)}
+        data-testid="label-image-withdraw-open"
+      >
+        Withdraw…
+      </button>
+    );
+  return (
+    <form
+      className="space-y-1.5 rounded-md border border-alarm/30 bg-white p-2"
+      onSubmit={(e) => {
+        e.preventDefault();
+        setBusy(true);
+        setError(null);
+        fetchJson(`/api/label-images/${img.id}/withdraw`, {
+          method: "POST",
+          body: JSON.stringify({ reason }),
+        })
+          .then(onWithdrawn)
+          .catch((err: unknown) => setError(err instanceof Error ? err.message : String(err)))
+          .finally(() => setBusy(false));
+      }}
+      data-testid="label-image-withdraw-form"
+    >
+      <label htmlFor={`${uid}-reason`} className="block text-[0.7rem] font-medium">
+        Why is it withdrawn?
+      </label>
+      <textarea
+        id={`${uid}-reason`}
+        rows={2}
+        value={reason}
+        onChange={(e) => setReason(e.target.value)}
+        placeholder="Another disc's label"
+        className={controlClass(!!error, "px-2 py-1 text-xs")}
+        data-testid="label-image-withdraw-reason"
+      />
+      <p className="text-[0.65rem] text-ink-faint">
+        It leaves this disc&rsquo;s page, record and packages; the file stays on record.
+      </p>
+      {error ? (
+        <p role="alert" className="text-[0.7rem] font-medium text-alarm">
+          {error}
+        </p>
+      ) : null}
+      <div className="flex gap-1.5">
+        <Button
+          type="submit"
+          variant="danger"
+          size="sm"
+          disabled={busy || !reason.trim()}
+          data-testid="label-image-withdraw"
+        >
+          {busy ? "Withdrawing…" : "Withdraw"}
+        </Button>
+        <Button type="button" variant="quiet" size="sm" onClick={() => setOpen(false)}>
+          Keep
+        </Button>
+      </div>
+    </form>
+  );
 }
 
 export function LabelImages({
@@ -145,6 +219,15 @@ export function LabelImages({
                   {img.sha256.slice(0, 10)}…
                 </span>
               </p>
+              {canAdd ? (
+                <WithdrawImage
+                  img={img}
+                  onWithdrawn={async () => {
+                    await queryClient.invalidateQueries({ queryKey: ["label-images", discId] });
+                    void queryClient.invalidateQueries({ queryKey: ["disc-events", discId] });
+                  }}
+                />
+              ) : null}
             </li>
           ))}
         </ul>

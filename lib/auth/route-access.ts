@@ -84,6 +84,7 @@ export const routeAccess = {
   "GET /api/discs/[id]/label-images": "catalogue:read",
   "POST /api/discs/[id]/label-images": "catalogue:edit",
   "POST /api/label-images/[id]/complete": "catalogue:edit",
+  "POST /api/label-images/[id]/withdraw": "catalogue:edit",
   "GET /api/label-images/[id]/thumbnail": "catalogue:read",
   "GET /api/label-images/[id]/download": "catalogue:read",
   "GET /api/discs/[id]/deliveries": "audit:read",

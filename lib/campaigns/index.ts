@@ -5,7 +5,7 @@ import { z } from "zod";
 import { db } from "../../db";
 import type { CampaignSideState, Database, SideStatus } from "../../db/types";
 import type { SessionUser } from "../auth/session-user";
-import { mergeCurve } from "../curves";
+import { type FitParameter, mergeCurve } from "../curves";
 import { checkCurveSpec } from "../http/curve-errors";
 import { AppError } from "../http/errors";
 import { appendEvent, appendEvents, type NewEvent } from "../provenance";
@@ -13,9 +13,14 @@ import { canonicalJson } from "../provenance/chain";
 import { getSettings, type LabSettings } from "../settings";
 import { campaignCurveChosen, type LockedSide, lockSides } from "../sides/lifecycle";
 import { queueRender } from "../transfers/renders";
+import {
+  evidenceSummary,
+  insertTestDiscEvidence,
+  refitTestDiscEvidence,
+  type TestDiscEvidence,
+} from "../transfers/test-disc-evidence";
 import { cleanString } from "../validation/text";
 import { parseStored, storedCurveSpecSchema } from "../validation/records";
-import { renderableStatuses } from "../validation/transfers";
 import { campaignCounts, settleCampaign } from "./progress";
 
 // Re-render campaigns: when a preset version turns out wrong and a later version corrects
@@ -108,7 +113,6 @@ async function rechooseAndRender(
   campaign: { id: string; title: string },
   fix: CorrectingVersion,
   side: LockedSide,
-  where: string,
   lab: LabSettings,
 ): Promise<SideOutcome> {
   const busy = await trx
@@ -150,14 +154,34 @@ async function rechooseAndRender(
       error: `The side's own overrides do not make a valid curve with version ${fix.version}: ${err instanceof Error ? err.message : String(err)}`,
     };
   }
-  // What the render of the side's access copy was like: kept for the new one.
-  const previousRender = side.current_render_id
-    ? await trx
-        .selectFrom("renders")
-        .select(["channel_mode", "bit_depth", "sample_rate_hz"])
-        .where("id", "=", side.current_render_id)
-        .executeTakeFirst()
-    : undefined;
+  // A test-disc measurement the old choice rested on is evidence about the disc, not the
+  // preset: the new choice keeps its points and file, fitted again from the corrected curve.
+  const kept = await trx
+    .selectFrom("curve_choice_evidence")
+    .select(["points_kind", "points", "fit_parameters", "source_file_name", "source_text", "source_sha256"])
+    .where("choice_id", "=", old.id)
+    .executeTakeFirst();
+  let measured: TestDiscEvidence | null = null;
+  if (kept)
+    try {
+      measured = refitTestDiscEvidence(
+        {
+          pointsKind: kept.points_kind,
+          points: kept.points,
+          fitParameters: kept.fit_parameters as FitParameter[],
+          sourceFileName: kept.source_file_name,
+          sourceText: kept.source_text,
+          sourceSha256: kept.source_sha256,
+        },
+        spec,
+      );
+    } catch (err) {
+      return {
+        state: "failed",
+        choiceId: null,
+        error: `The side's test-disc measurement cannot be fitted from version ${fix.version}: ${err instanceof Error ? err.message : String(err)}`,
+      };
+    }
   const specSha256 = sha256Hex(canonicalJson(spec));
   const rationale =
     `Re-render campaign "${campaign.title}": ${fix.presetName} version ${fix.version} corrects version ${old.preset_version}.` +
@@ -183,14 +207,7 @@ async function rechooseAndRender(
     })
     .returning("id")
     .executeTakeFirstOrThrow();
-  // A test-disc measurement the old choice rested on is evidence about the disc, not the
-  // preset: the new choice keeps it as it was recorded.
-  await sql`
-    INSERT INTO curve_choice_evidence (choice_id, evidence_kind, points_kind, points, fit_parameters, fitted_spec,
-      level_offset_db, residuals, rms_db, worst_db, worst_hz, source_file_name, source_text, source_sha256)
-    SELECT ${row.id}, evidence_kind, points_kind, points, fit_parameters, fitted_spec,
-      level_offset_db, residuals, rms_db, worst_db, worst_hz, source_file_name, source_text, source_sha256
-    FROM curve_choice_evidence WHERE choice_id = ${old.id}`.execute(trx);
+  if (measured) await insertTestDiscEvidence(trx, row.id, measured);
   const events: NewEvent[] = [
     {
       actorId: actor.id,
@@ -213,6 +230,7 @@ async function rechooseAndRender(
         rationale,
         evidenceKind: old.evidence_kind,
         evidence: old.evidence,
+        ...(measured ? { testDisc: evidenceSummary(measured) } : {}),
         before: { choiceId: old.id, spec: old.spec, presetVersion: old.preset_version, status: side.status },
       },
     },
@@ -225,21 +243,38 @@ async function rechooseAndRender(
       choiceId: row.id,
       outcome: "curve recorded; the side has no flat transfer yet, so there was nothing to render",
     };
-  if (!renderableStatuses.has(side.status))
-    return { state: "failed", choiceId: row.id, error: `${where} cannot be rendered now (${side.status}).` };
-  const { renderId } = await queueRender(
-    trx,
-    actor,
-    side,
-    {
-      channelMode: previousRender?.channel_mode ?? "both",
-      bitDepth: previousRender?.bit_depth,
-      sampleRateHz: previousRender?.sample_rate_hz ?? undefined,
-    },
-    lab,
-    { campaignId: campaign.id },
-  );
-  return { state: "waiting", choiceId: row.id, renderId };
+  return queueCampaignRender(trx, actor, side, row.id, lab, { campaignId: campaign.id });
+}
+
+/**
+ * Queues the side's render on the render queue every render goes through, with the channels,
+ * word length and rate of its last access copy. A side the queue refuses now (not renderable,
+ * a render already under way) fails with the queue's reason, for a retry: the refusals come
+ * before anything is written, so the campaign's transaction goes on.
+ */
+async function queueCampaignRender(
+  trx: Transaction<Database>,
+  actor: SessionUser,
+  side: LockedSide,
+  choiceId: string,
+  lab: LabSettings,
+  extra: { campaignId: string; retry?: true },
+): Promise<SideOutcome> {
+  try {
+    const { renderId } = await queueRender(
+      trx,
+      actor,
+      side,
+      { channelMode: "both", ...(await lastRenderSettings(trx, side.id)) },
+      lab,
+      extra,
+    );
+    return { state: "waiting", choiceId, renderId };
+  } catch (err) {
+    if (err instanceof AppError && (err.status === 409 || err.status === 422))
+      return { state: "failed", choiceId, error: err.message };
+    throw err;
+  }
 }
 
 async function shelfMarks(trx: Transaction<Database>, sides: LockedSide[]): Promise<Map<string, string>> {
@@ -346,17 +381,7 @@ export async function startCampaign(actor: SessionUser, input: unknown): Promise
     for (const side of sides) {
       const fromChoice = choices.get(side.current_curve_choice_id!)!;
       const statusBefore = side.status;
-      const toReview =
-        statusBefore === "rendered" || statusBefore === "in_review" || statusBefore === "approved";
-      const out = await rechooseAndRender(
-        trx,
-        actor,
-        { id: campaign.id, title },
-        fix,
-        side,
-        labels.get(side.id)!,
-        lab,
-      );
+      const out = await rechooseAndRender(trx, actor, { id: campaign.id, title }, fix, side, lab);
       await trx
         .insertInto("campaign_sides")
         .values({
@@ -365,10 +390,8 @@ export async function startCampaign(actor: SessionUser, input: unknown): Promise
           state: out.state,
           status_before: statusBefore,
           from_choice_id: fromChoice.id,
-          from_version: fromChoice.preset_version!,
           choice_id: out.choiceId,
           render_id: out.state === "waiting" ? out.renderId : null,
-          to_review: toReview,
           attempts: out.state === "waiting" ? 1 : 0,
           error: out.state === "failed" ? out.error : null,
           outcome: out.state === "done" ? out.outcome : null,
@@ -519,7 +542,6 @@ export async function retryCampaign(actor: SessionUser, id: string, input: unkno
     if (campaign.cancelled_at) throw new AppError("conflict", 409, "A cancelled campaign is not retried.");
     if (!failed.length) throw new AppError("conflict", 409, "No side of this campaign has failed.");
     const fix = await correctingVersion(trx, campaign.preset_id, campaign.correcting_version);
-    const labels = await shelfMarks(trx, sides);
     const choiceOf = new Map(failed.map((f) => [f.side_id, f.choice_id]));
     const results: { sideId: string; state: CampaignSideState; error?: string }[] = [];
     for (const side of sides) {
@@ -543,7 +565,7 @@ export async function retryCampaign(actor: SessionUser, id: string, input: unkno
             "Its curve was chosen again since, and no longer rests on a version this correction replaces.",
         };
       } else if (!choiceId) {
-        out = await rechooseAndRender(trx, actor, campaign, fix, side, labels.get(side.id)!, lab);
+        out = await rechooseAndRender(trx, actor, campaign, fix, side, lab);
       } else if (side.current_curve_choice_id !== choiceId) {
         out = {
           state: "failed",
@@ -551,33 +573,8 @@ export async function retryCampaign(actor: SessionUser, id: string, input: unkno
           error:
             "Its curve was chosen again after the campaign's choice: the campaign leaves it to that choice.",
         };
-      } else if (!side.current_transfer_id || !renderableStatuses.has(side.status)) {
-        out = {
-          state: "failed",
-          choiceId,
-          error: `${labels.get(side.id)} cannot be rendered now (${side.status}).`,
-        };
       } else {
-        const busy = await trx
-          .selectFrom("renders")
-          .select("id")
-          .where("side_id", "=", side.id)
-          .where("status", "in", ["queued", "running"])
-          .executeTakeFirst();
-        out = busy
-          ? { state: "failed", choiceId, error: "A render of this side is already queued or running." }
-          : {
-              state: "waiting",
-              choiceId,
-              ...(await queueRender(
-                trx,
-                actor,
-                side,
-                { channelMode: "both", ...(await lastRenderSettings(trx, side.id)) },
-                lab,
-                { campaignId: cid, retry: true },
-              )),
-            };
+        out = await queueCampaignRender(trx, actor, side, choiceId, lab, { campaignId: cid, retry: true });
       }
       await trx
         .updateTable("campaign_sides")
@@ -679,15 +676,16 @@ export async function getCampaign(id: string) {
     .selectFrom("campaign_sides as cs")
     .innerJoin("sides as s", "s.id", "cs.side_id")
     .innerJoin("discs as d", "d.id", "s.disc_id")
+    // The version the side rested on: its choice before the campaign's.
+    .innerJoin("curve_choices as fc", "fc.id", "cs.from_choice_id")
     .leftJoin("renders as r", "r.id", "cs.render_id")
     .select([
       "cs.side_id as sideId",
       "cs.state",
       "cs.status_before as statusBefore",
-      "cs.from_version as fromVersion",
+      "fc.preset_version as fromVersion",
       "cs.choice_id as choiceId",
       "cs.render_id as renderId",
-      "cs.to_review as toReview",
       "cs.attempts",
       "cs.error",
       "cs.outcome",

@@ -2,11 +2,22 @@
 // the worker (lib/jobs/render-job.ts), the bench's render cancel and the campaign's own
 // routes, each inside the transaction of the change it follows. No framework imports.
 import { type Kysely, sql, type Transaction } from "kysely";
-import type { CampaignSideState, Database } from "../../db/types";
+import type { CampaignSideState, Database, SideStatus } from "../../db/types";
 import { env } from "../env";
 import { enqueueMail } from "../mail/outbox";
 import { appendEvent } from "../provenance";
 import { campaignSubmitted, lockSide } from "../sides/lifecycle";
+
+/** Sides that had been finished work (rendered, in review or approved) go back to review after a campaign's render. */
+const finishedWork: ReadonlySet<SideStatus> = new Set(["rendered", "in_review", "approved"]);
+
+/** The campaign a render was queued for, and its side's row. */
+export interface RenderCampaign {
+  campaignId: string;
+  sideId: string;
+  statusBefore: SideStatus;
+  startedBy: string;
+}
 
 /**
  * The campaign (and its side's row) a render was queued for, if any. `lock` takes the
@@ -17,14 +28,14 @@ export async function campaignOfRender(
   db: Kysely<Database> | Transaction<Database>,
   renderId: string,
   opts: { lock?: boolean } = {},
-): Promise<{ campaignId: string; sideId: string; toReview: boolean; startedBy: string } | undefined> {
+): Promise<RenderCampaign | undefined> {
   const q = db
     .selectFrom("campaign_sides as cs")
     .innerJoin("campaigns as c", "c.id", "cs.campaign_id")
     .select([
       "cs.campaign_id as campaignId",
       "cs.side_id as sideId",
-      "cs.to_review as toReview",
+      "cs.status_before as statusBefore",
       "c.started_by as startedBy",
     ])
     .where("cs.render_id", "=", renderId)
@@ -129,11 +140,10 @@ export async function settleCampaign(trx: Transaction<Database>, campaignId: str
  */
 export async function campaignRenderRecorded(
   trx: Transaction<Database>,
-  renderId: string,
+  /** What campaignOfRender found, its lock taken. */
+  owner: RenderCampaign,
   result: { current: boolean; reason?: string },
 ): Promise<void> {
-  const owner = await campaignOfRender(trx, renderId, { lock: true });
-  if (!owner) return;
   let state: CampaignSideState = "done";
   let error: string | null = null;
   let outcome: string;
@@ -141,7 +151,7 @@ export async function campaignRenderRecorded(
     state = "failed";
     error = `Its new access copy was not taken up: ${result.reason ?? "the side had moved on"}.`;
     outcome = "";
-  } else if (owner.toReview) {
+  } else if (finishedWork.has(owner.statusBefore)) {
     const side = await lockSide(trx, owner.sideId);
     await campaignSubmitted(trx, { id: owner.startedBy, role: null }, side, owner.campaignId);
     outcome = "rendered from the corrected curve and sent back to review";
@@ -163,11 +173,10 @@ export async function campaignRenderRecorded(
  */
 export async function campaignRenderStopped(
   trx: Transaction<Database>,
-  renderId: string,
+  /** What campaignOfRender found, its lock taken. */
+  owner: RenderCampaign,
   reason: string,
 ): Promise<void> {
-  const owner = await campaignOfRender(trx, renderId, { lock: true });
-  if (!owner) return;
   await trx
     .updateTable("campaign_sides")
     .set({ state: "failed", error: reason, outcome: null, updated_at: sql<Date>`now()` })

@@ -43,7 +43,7 @@ export type { RenderFilter, RenderFilterOptions } from "./render-filter";
 export { fitCurve, FIT_PARAMETERS } from "./fit";
 export type { FitParameter, FitRequest, FitResult, FitResidual, FittedCorner } from "./fit";
 export { parsePointsCsv, PointsParseError } from "./points-csv";
-export { atCutSpeed, fitMeasuredPoints, measuredPlaybackPoints } from "./measurement";
+export { atCutSpeed, fitMeasuredPoints, fitPoints, measuredPlaybackPoints } from "./measurement";
 export type { MeasurementFit, MeasurementJson } from "./measurement";
 export { logGrid, linearGrid } from "./grid";
 export { RIAA_SPEC, IEC_HIGHPASS_SPEC, BS1928_COARSE_SPEC } from "./standard-curves";

@@ -52,6 +52,20 @@ export function fitMeasuredPoints(
       "points",
       `The measurement has ${points.length} points; at most ${maxMeasuredPoints} are kept.`,
     );
+  return fitPoints(points, pointsKind, fit, chosen);
+}
+
+/**
+ * Fits points already read, starting from the curve being chosen at its cut speed: a new
+ * measurement, or one kept with an earlier choice and fitted again from a new curve (the
+ * values the fit leaves alone, and so its residuals, are the chosen curve's).
+ */
+export function fitPoints(
+  points: CurvePoint[],
+  pointsKind: "recording" | "playback",
+  fit: FitParameter[],
+  chosen: CurveSpec,
+): MeasurementFit {
   const r = fitCurve({ points, kind: pointsKind, fit, initial: atCutSpeed(chosen) });
   return {
     pointsKind,

@@ -12,6 +12,7 @@ import {
   equipmentChainEditSchema,
   equipmentChainSchema,
   equipmentKindLabels,
+  RIAA_CALIBRATION_NAME,
 } from "../validation/equipment";
 import { parseStored, storedCurveSpecSchema } from "../validation/records";
 import { inChainOrder, itemName } from "./describe";
@@ -52,21 +53,22 @@ const latestCalibrationColumns = sql<{
   'deviationRmsDb', k.deviation_rms_db) FROM equipment_calibrations k WHERE k.chain_id = c.id
   ORDER BY k.calibrated_on DESC, k.created_at DESC LIMIT 1)`;
 
+/** A chain as the register lists it: its latest calibration and how many transfers were made with it. */
+const chainColumns = [
+  "c.id",
+  "c.name",
+  "c.notes",
+  "c.retired_at as retiredAt",
+  "c.version",
+  "c.updated_at as updatedAt",
+  latestCalibrationColumns.as("latestCalibration"),
+  sql<number>`(SELECT count(*)::int FROM transfers t WHERE t.equipment_chain_id = c.id)`.as("transferCount"),
+] as const;
+
 export async function listChains(opts: { includeRetired?: boolean } = {}) {
   let q = db
     .selectFrom("equipment_chains as c")
-    .select([
-      "c.id",
-      "c.name",
-      "c.notes",
-      "c.retired_at as retiredAt",
-      "c.version",
-      "c.updated_at as updatedAt",
-      latestCalibrationColumns.as("latestCalibration"),
-      sql<number>`(SELECT count(*)::int FROM transfers t WHERE t.equipment_chain_id = c.id)`.as(
-        "transferCount",
-      ),
-    ])
+    .select(chainColumns)
     .orderBy(sql`c.retired_at IS NOT NULL`)
     .orderBy("c.name");
   if (!opts.includeRetired) q = q.where("c.retired_at", "is", null);
@@ -80,18 +82,7 @@ export type ChainJson = Awaited<ReturnType<typeof listChains>>[number];
 export async function getChain(id: string) {
   const chain = await db
     .selectFrom("equipment_chains as c")
-    .select([
-      "c.id",
-      "c.name",
-      "c.notes",
-      "c.retired_at as retiredAt",
-      "c.version",
-      "c.updated_at as updatedAt",
-      latestCalibrationColumns.as("latestCalibration"),
-      sql<number>`(SELECT count(*)::int FROM transfers t WHERE t.equipment_chain_id = c.id)`.as(
-        "transferCount",
-      ),
-    ])
+    .select(chainColumns)
     .where("c.id", "=", id)
     .executeTakeFirst();
   if (!chain) throw new AppError("not_found", 404, "No such chain.");
@@ -318,8 +309,8 @@ export async function recordCalibration(actor: SessionUser, chainId: string, inp
     expectedSpec = preset.spec;
     expectedName = `${preset.name} (v${v.presetVersion})`;
   } else {
-    expectedSpec = v.expectedSpec ?? RIAA_SPEC;
-    expectedName = v.expectedName || "RIAA (IEC 60098)";
+    expectedSpec = RIAA_SPEC;
+    expectedName = RIAA_CALIBRATION_NAME;
   }
   let fitted, deviation;
   try {
@@ -342,6 +333,12 @@ export async function recordCalibration(actor: SessionUser, chainId: string, inp
       .forUpdate()
       .executeTakeFirst();
     if (!chain) throw new AppError("not_found", 404, "No such chain.");
+    if (chain.retired_at)
+      throw new AppError(
+        "conflict",
+        409,
+        `The chain “${chain.name}” is retired: bring it back into use to record a calibration of it.`,
+      );
     const items = await trx
       .selectFrom("equipment_chain_items")
       .select("item_id")

@@ -1,7 +1,9 @@
 import "server-only";
+import { stringify } from "csv-stringify/sync";
 import { sql } from "kysely";
 import { db } from "../../db";
 import type { SessionUser } from "../auth/session-user";
+import { protectFormula } from "../catalogue/csv-format";
 import { AppError, fromZod } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { findingSchema, recallQuerySchema } from "../validation/equipment";
@@ -86,6 +88,30 @@ export interface RecallRow {
   sideStatus: string;
 }
 
+/** A transfer's day: the lab's days are UTC days. */
+const transferDay = sql<string>`to_char(t.created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD')`;
+
+/** The transfers made with an item between two days (inclusive), with their sides; optionally only those a side stands on. */
+function madeWith(itemId: string, f: { from?: string | null; to?: string | null; currentOnly?: boolean }) {
+  let q = db
+    .selectFrom("transfer_equipment as te")
+    .innerJoin("transfers as t", "t.id", "te.transfer_id")
+    .innerJoin("sides as s", "s.id", "t.side_id")
+    .where("te.item_id", "=", itemId);
+  if (f.from) q = q.where(transferDay, ">=", f.from);
+  if (f.to) q = q.where(transferDay, "<=", f.to);
+  if (f.currentOnly) q = q.where(sql<boolean>`s.current_transfer_id = t.id`);
+  return q;
+}
+
+/** How many transfers a fault's window puts in doubt, counted in the database (the item page shows the number). */
+export async function countTransfersWithItem(itemId: string, window: { from: string | null; to: string }) {
+  const r = await madeWith(itemId, window)
+    .select(sql<number>`count(*)::int`.as("n"))
+    .executeTakeFirstOrThrow();
+  return r.n;
+}
+
 /** Transfers made with the item, between two days (inclusive, the lab's days in UTC), newest first. */
 export async function transfersWithItem(itemId: string, query: unknown) {
   const parsed = recallQuerySchema.safeParse(query);
@@ -101,17 +127,13 @@ export async function transfersWithItem(itemId: string, query: unknown) {
     .where("id", "=", itemId)
     .executeTakeFirst();
   if (!item) throw new AppError("not_found", 404, "No such item in the register.");
-  const day = sql<string>`to_char(t.created_at AT TIME ZONE 'UTC', 'YYYY-MM-DD')`;
-  let rows = db
-    .selectFrom("transfer_equipment as te")
-    .innerJoin("transfers as t", "t.id", "te.transfer_id")
-    .innerJoin("sides as s", "s.id", "t.side_id")
+  const rows = madeWith(itemId, q)
     .innerJoin("discs as d", "d.id", "s.disc_id")
     .innerJoin("users as u", "u.id", "t.uploaded_by")
     .leftJoin("equipment_chains as c", "c.id", "t.equipment_chain_id")
     .select([
       "t.id as transferId",
-      day.as("transferredOn"),
+      transferDay.as("transferredOn"),
       "t.created_at as createdAt",
       "s.id as sideId",
       "d.id as discId",
@@ -128,11 +150,7 @@ export async function transfersWithItem(itemId: string, query: unknown) {
       "te.swapped",
       sql<boolean>`s.current_transfer_id IS NOT DISTINCT FROM t.id`.as("current"),
       "s.status as sideStatus",
-    ])
-    .where("te.item_id", "=", itemId);
-  if (q.from) rows = rows.where(day, ">=", q.from);
-  if (q.to) rows = rows.where(day, "<=", q.to);
-  if (q.currentOnly) rows = rows.where(sql<boolean>`s.current_transfer_id = t.id`);
+    ]);
   const transfers: RecallRow[] = (await rows.orderBy("t.created_at", "desc").limit(10_000).execute()).map(
     (r) => ({
       ...r,
@@ -148,13 +166,6 @@ export async function transfersWithItem(itemId: string, query: unknown) {
     hours,
   };
 }
-
-const csvCell = (v: string | number | Date | null) => {
-  const s = v === null ? "" : v instanceof Date ? v.toISOString() : String(v);
-  // A cell a spreadsheet would take for a formula is written as text (OWASP's CSV injection advice).
-  const safe = /^[=+\-@\t\r]/.test(s) ? `'${s}` : s;
-  return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
-};
 
 /** The recall as CSV, one transfer a row, for the lab's re-transfer list. */
 export function recallCsv(result: Awaited<ReturnType<typeof transfersWithItem>>): string {
@@ -175,30 +186,28 @@ export function recallCsv(result: Awaited<ReturnType<typeof transfersWithItem>>)
     "side_status",
     "transfer_id",
   ];
-  const lines = [head.join(",")];
-  for (const t of result.transfers)
-    lines.push(
-      [
-        t.createdAt,
-        t.shelfMark,
-        t.side,
-        t.title,
-        t.labelName,
-        t.catalogueNumber,
-        t.fileName,
-        t.durationSeconds.toFixed(3),
-        t.sha256,
-        t.engineer,
-        t.chain ?? "",
-        t.swapped ? "yes" : "no",
-        t.current ? "yes" : "no",
-        t.sideStatus,
-        t.transferId,
-      ]
-        .map(csvCell)
-        .join(","),
-    );
-  return `${lines.join("\r\n")}\r\n`;
+  const rows = result.transfers.map((t) => [
+    t.createdAt.toISOString(),
+    t.shelfMark,
+    t.side,
+    t.title,
+    t.labelName,
+    t.catalogueNumber,
+    t.fileName,
+    t.durationSeconds.toFixed(3),
+    t.sha256,
+    t.engineer,
+    t.chain ?? "",
+    t.swapped ? "yes" : "no",
+    t.current ? "yes" : "no",
+    t.sideStatus,
+    t.transferId,
+  ]);
+  // Written as the catalogue's export is: formula-looking cells protected, a byte-order mark and CRLF line ends.
+  return stringify([head, ...rows.map((r) => r.map(protectFormula))], {
+    bom: true,
+    record_delimiter: "windows",
+  });
 }
 
 /** Records a finding against an item; a fault answers with the window of transfers it puts in doubt. */

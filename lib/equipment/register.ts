@@ -6,7 +6,7 @@ import { AppError, fromZod } from "../http/errors";
 import { appendEvent } from "../provenance";
 import { equipmentItemEditSchema, equipmentItemSchema, tipMicrometres } from "../validation/equipment";
 import { itemName } from "./describe";
-import { faultWindow, transfersWithItem } from "./recall";
+import { countTransfersWithItem, faultWindow } from "./recall";
 
 // The register's items. Every change is a provenance event in the transaction that makes it
 // (equipment.item_registered, equipment.item_edited with each changed field before and after).
@@ -121,8 +121,7 @@ export async function getItem(id: string) {
     findings.map(async (f) => {
       if (f.outcome !== "fault") return { ...f, window: null, transfersInDoubt: 0 };
       const window = await faultWindow(id, f.foundOn);
-      const inDoubt = await transfersWithItem(id, { from: window.from ?? undefined, to: window.to });
-      return { ...f, window, transfersInDoubt: inDoubt.transfers.length };
+      return { ...f, window, transfersInDoubt: await countTransfersWithItem(id, window) };
     }),
   );
   return {

@@ -218,46 +218,75 @@ export interface CalibrationSummary {
   itemsDiffer: boolean;
 }
 
+/** The items a transfer was made with, and its chain's latest calibration on or before the transfer's day. */
+export interface TransferEquipmentWithCalibration extends TransferEquipment {
+  calibration: CalibrationSummary | null;
+}
+
 /**
- * The latest calibration of a chain on or before a day, and its age on that day; `itemIds`
- * (the items a transfer used) say whether the calibration measured those very items.
+ * The items each of these transfers was made with and, for one made with a chain, that
+ * chain's latest calibration on or before the transfer's day (the lab's days in UTC) and
+ * its age that day: two queries, however many transfers. A transfer without a chain is absent.
  */
-export async function latestCalibration(
+export async function equipmentWithCalibrations(
   db: Kysely<Database>,
-  chainId: string,
-  day: string,
-  itemIds?: readonly string[],
-): Promise<CalibrationSummary | null> {
-  const c = await db
-    .selectFrom("equipment_calibrations")
-    .select([
-      "id",
-      "calibrated_on",
-      "test_disc",
-      "item_ids",
-      "deviation_rms_db",
-      "deviation_worst_db",
-      "deviation_worst_hz",
-      sql<number>`(${day}::date - calibrated_on)`.as("age_days"),
-    ])
-    .where("chain_id", "=", chainId)
-    .where("calibrated_on", "<=", day)
-    .orderBy("calibrated_on", "desc")
-    .orderBy("created_at", "desc")
-    .limit(1)
-    .executeTakeFirst();
-  if (!c) return null;
-  const measured = new Set(c.item_ids);
-  return {
-    id: c.id,
-    calibratedOn: c.calibrated_on,
-    testDisc: c.test_disc,
-    deviationRmsDb: c.deviation_rms_db,
-    deviationWorstDb: c.deviation_worst_db,
-    deviationWorstHz: c.deviation_worst_hz,
-    ageDays: Number(c.age_days),
-    itemsDiffer: itemIds
-      ? itemIds.length !== measured.size || itemIds.some((id) => !measured.has(id))
-      : false,
-  };
+  transferIds: readonly string[],
+): Promise<Map<string, TransferEquipmentWithCalibration>> {
+  const equipment = await equipmentOfTransfers(db, transferIds);
+  const withChain = [...equipment].filter(([, e]) => e.chain).map(([id]) => id);
+  const calibrations = withChain.length
+    ? await db
+        .selectFrom("transfers as t")
+        .innerJoinLateral(
+          (eb) =>
+            eb
+              .selectFrom("equipment_calibrations as k")
+              .select([
+                "k.id",
+                "k.calibrated_on",
+                "k.test_disc",
+                "k.item_ids",
+                "k.deviation_rms_db",
+                "k.deviation_worst_db",
+                "k.deviation_worst_hz",
+              ])
+              .whereRef("k.chain_id", "=", "t.equipment_chain_id")
+              .where("k.calibrated_on", "<=", sql<string>`(t.created_at AT TIME ZONE 'UTC')::date`)
+              .orderBy("k.calibrated_on", "desc")
+              .orderBy("k.created_at", "desc")
+              .limit(1)
+              .as("k"),
+          (join) => join.onTrue(),
+        )
+        .selectAll("k")
+        .select([
+          "t.id as transferId",
+          sql<number>`((t.created_at AT TIME ZONE 'UTC')::date - k.calibrated_on)`.as("age_days"),
+        ])
+        .where("t.id", "in", withChain)
+        .execute()
+    : [];
+  const latest = new Map(calibrations.map((c) => [c.transferId, c]));
+  const out = new Map<string, TransferEquipmentWithCalibration>();
+  for (const [id, e] of equipment) {
+    const c = latest.get(id);
+    const measured = new Set(c?.item_ids ?? []);
+    out.set(id, {
+      ...e,
+      calibration: c
+        ? {
+            id: c.id,
+            calibratedOn: c.calibrated_on,
+            testDisc: c.test_disc,
+            deviationRmsDb: c.deviation_rms_db,
+            deviationWorstDb: c.deviation_worst_db,
+            deviationWorstHz: c.deviation_worst_hz,
+            ageDays: Number(c.age_days),
+            // The chain held other items when it was measured than the transfer used.
+            itemsDiffer: e.items.length !== measured.size || e.items.some((i) => !measured.has(i.itemId)),
+          }
+        : null,
+    });
+  }
+  return out;
 }

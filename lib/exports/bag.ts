@@ -26,7 +26,10 @@ import { sql } from "kysely";
 import { db } from "../../db";
 import { env } from "../env";
 import { recordFixityResult } from "../fixity";
+import { openFixityAlerts } from "../fixity/requests";
+import { leaseTimes } from "../jobs/render-lease";
 import { AppError } from "../http/errors";
+import { labelImageExtension } from "../labels/stored";
 import { appendEvent } from "../provenance";
 import { getSettings } from "../settings";
 import { fromStore, isObjectMissing } from "../storage/errors";
@@ -48,10 +51,6 @@ import { premisXml } from "./premis";
 import { type DiscRecordExport, discRecord, fileNameBase, premisRecord } from "./record";
 
 export type { BagPlan, BagResult } from "./bag-writer";
-
-const safe = (s: string) => s.replace(/[^A-Za-z0-9._-]+/g, "_");
-
-const extensionOf = { jpeg: "jpg", png: "png", tiff: "tif" } as const;
 
 /** The payload of one approved disc, its paths under `dir` ("data/" or "data/<shelf mark>/"). */
 function discPayload(record: DiscRecordExport, dir: string) {
@@ -76,7 +75,7 @@ function discPayload(record: DiscRecordExport, dir: string) {
     const approved = record.approved[side.id];
     const transfer = approved ? transfers.get(approved.transfer.id) : undefined;
     const copy = approved ? copies.get(approved.render.id) : undefined;
-    const sideName = safe(side.designation);
+    const sideName = fileNameBase(side.designation);
     if (!transfer || transfer.sha256 !== approved?.transfer.sha256)
       throw new AppError(
         "conflict",
@@ -118,11 +117,11 @@ function discPayload(record: DiscRecordExport, dir: string) {
   }
   const counts = new Map<string, number>();
   for (const l of record.labelImages) {
-    const who = l.kind === "sleeve" ? "sleeve" : `${safe(l.side ?? "side")}-label`;
+    const who = l.kind === "sleeve" ? "sleeve" : `${fileNameBase(l.side ?? "side")}-label`;
     const n = (counts.get(who) ?? 0) + 1;
     counts.set(who, n);
     objects.push({
-      path: `${dir}labels/${base}-${who}-${n}.${extensionOf[l.format]}`,
+      path: `${dir}labels/${base}-${who}-${n}.${labelImageExtension[l.format]}`,
       bytes: l.bytes,
       object: {
         kind: "label_image",
@@ -169,7 +168,7 @@ async function evidenceTexts(record: DiscRecordExport, dir: string): Promise<Pay
         `The test-disc points of ${record.disc.shelfMark} side ${side?.designation ?? "?"} no longer match their SHA-256: nothing was packaged.`,
       );
     return {
-      path: `${dir}evidence/${base}-${safe(side?.designation ?? "side")}-test-disc-points.csv`,
+      path: `${dir}evidence/${base}-${fileNameBase(side?.designation ?? "side")}-test-disc-points.csv`,
       content,
     };
   });
@@ -264,34 +263,15 @@ export async function planAccessionBag(accessionId: string, at = new Date()): Pr
  * the file; the full SHA-256 check happens as the bytes pass.
  */
 export async function preflight(plan: BagPlan): Promise<void> {
-  const ids = plan.objects.map((o) => o.object.id);
-  if (ids.length) {
-    const failing = await db
-      .selectFrom("fixity_checks as f")
-      .select(["f.object_id", "f.outcome"])
-      .where("f.object_id", "in", ids)
-      .where("f.outcome", "<>", "pass")
-      .where((eb) =>
-        eb.not(
-          eb.exists(
-            eb
-              .selectFrom("fixity_checks as later")
-              .select("later.id")
-              .whereRef("later.object_id", "=", "f.object_id")
-              .whereRef("later.checked_at", ">", "f.checked_at"),
-          ),
-        ),
-      )
-      .execute();
-    if (failing.length) {
-      const o = plan.objects.find((x) => x.object.id === failing[0].object_id)!;
-      throw new AppError(
-        "conflict",
-        409,
-        `The package cannot be made: ${o.path.replace(/^data\//, "")} failed its last fixity check (${failing[0].outcome}). ` +
-          "Restore the file from a replica and check it again first.",
-      );
-    }
+  const failing = await openFixityAlerts(plan.objects.map((o) => o.object.id));
+  if (failing.length) {
+    const o = plan.objects.find((x) => x.object.id === failing[0].objectId)!;
+    throw new AppError(
+      "conflict",
+      409,
+      `The package cannot be made: ${o.path.replace(/^data\//, "")} failed its last fixity check (${failing[0].outcome}). ` +
+        "Restore the file from a replica and check it again first.",
+    );
   }
   for (const o of plan.objects) {
     try {
@@ -325,7 +305,7 @@ export async function preflight(plan: BagPlan): Promise<void> {
   }
 }
 
-/** Records the mismatch as a fixity result: the alert on the audit page, the curators' mail. */
+/** Records the mismatch as a fixity result: the alert on the audit page, the curators' mail. The caller stops the bag. */
 async function recordMismatch(
   plan: BagPlan,
   o: PayloadObject,
@@ -342,7 +322,6 @@ async function recordMismatch(
   }).catch((err) =>
     console.error("[rillbook] could not record the fixity mismatch found while packaging:", err),
   );
-  throw new PayloadMismatchError(o.object, o.path, detail);
 }
 
 /** Writes the bag with the lab's bag-info.txt fields, raising the fixity alert on a mismatch, and records it. */
@@ -424,43 +403,57 @@ export function deliveryTarget(): { bucket: string; prefix: string } {
   return { bucket: e.DELIVERY_S3_BUCKET ?? e.S3_BUCKET, prefix: e.DELIVERY_PREFIX };
 }
 
-/** Runs one delivery: the bag written into the delivery bucket, its state kept in bag_deliveries. */
-export async function runDelivery(deliveryId: string): Promise<void> {
+/**
+ * Runs one delivery: the bag planned and checked when it was asked for (requestDelivery),
+ * written into its folder of the delivery bucket, its state kept in bag_deliveries. While
+ * it runs its lease is renewed; a server that stops mid-way leaves a stale lease, and a
+ * worker's sweep closes the delivery as stopped and empties its folder
+ * (lib/exports/delivery-lease.ts).
+ */
+export async function runDelivery(deliveryId: string, plan: BagPlan): Promise<void> {
   const d = await db
     .updateTable("bag_deliveries")
-    .set({ state: "running", started_at: sql<Date>`now()` })
+    .set({ state: "running", started_at: sql<Date>`now()`, heartbeat_at: sql<Date>`now()` })
     .where("id", "=", deliveryId)
     .where("state", "=", "queued")
     .returningAll()
     .executeTakeFirst();
   if (!d) return;
+  const beat = setInterval(() => {
+    db.updateTable("bag_deliveries")
+      .set({ heartbeat_at: sql<Date>`now()` })
+      .where("id", "=", d.id)
+      .where("state", "=", "running")
+      .execute()
+      .catch((err: unknown) =>
+        console.error(
+          `[rillbook] delivery ${d.id}: could not renew its lease:`,
+          err instanceof Error ? err.message : err,
+        ),
+      );
+  }, leaseTimes().RENDER_HEARTBEAT_SECONDS * 1000);
+  beat.unref();
   let sink: ReturnType<typeof bucketSink> | undefined;
   try {
-    const plan =
-      d.scope === "disc"
-        ? await planDiscBag(d.disc_id!, new Date(d.requested_at))
-        : await planAccessionBag(d.accession_id!, new Date(d.requested_at));
-    await preflight(plan);
-    const folder = `${d.prefix}${plan.name}/`;
-    // The bag's own folder from now on, so a stopped delivery names where it was going.
-    await db.updateTable("bag_deliveries").set({ prefix: folder }).where("id", "=", d.id).execute();
-    sink = bucketSink(d.bucket, folder);
+    sink = bucketSink(d.bucket, d.prefix);
     const result = await writeBag(plan, sink, {
       way: "delivery",
       actorId: d.requested_by,
-      location: `s3://${d.bucket}/${folder}`,
+      location: `s3://${d.bucket}/${d.prefix}`,
     });
-    await db
+    const closed = await db
       .updateTable("bag_deliveries")
       .set({
         state: "done",
-        prefix: folder,
         payload_oxum: result.payloadOxum,
         tagmanifest_sha256: result.tagmanifestSha256,
         finished_at: sql<Date>`now()`,
       })
       .where("id", "=", d.id)
-      .execute();
+      .where("state", "=", "running")
+      .executeTakeFirst();
+    if (!closed.numUpdatedRows)
+      console.error(`[rillbook] delivery ${d.id} was closed as stopped while it was still being written`);
   } catch (err) {
     await sink?.removeAll();
     const message = err instanceof Error ? err.message : String(err);
@@ -469,6 +462,9 @@ export async function runDelivery(deliveryId: string): Promise<void> {
       .updateTable("bag_deliveries")
       .set({ state: "failed", error: message.slice(0, 2000), finished_at: sql<Date>`now()` })
       .where("id", "=", d.id)
+      .where("state", "=", "running")
       .execute();
+  } finally {
+    clearInterval(beat);
   }
 }

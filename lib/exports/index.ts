@@ -89,7 +89,8 @@ export async function exportAccession(
 /**
  * A curator asks for the bag to be written into the delivery bucket. The bag is made by
  * this server in the background (streaming, memory flat); its row says where it stands.
- * The checks that can fail at once (not approved, a file missing or failing fixity) answer now.
+ * The checks that can fail at once (not approved, a file missing or failing fixity) answer now;
+ * the writing then uses that same plan, read and checked once.
  */
 export async function requestDelivery(
   actorId: string,
@@ -106,13 +107,13 @@ export async function requestDelivery(
       disc_id: scope === "disc" ? id : null,
       accession_id: scope === "accession" ? id : null,
       bucket,
-      prefix,
+      prefix: `${prefix}${plan.name}/`,
       requested_by: actorId,
       requested_at: plan.at,
     })
     .returning(["id", "state"])
     .executeTakeFirstOrThrow();
-  void runDelivery(row.id);
+  void runDelivery(row.id, plan);
   return { deliveryId: row.id, state: row.state };
 }
 

@@ -4,8 +4,9 @@ import { curveChoiceName } from "../curves";
 import { itemText } from "../equipment/describe";
 import { readDisc } from "../catalogue/records";
 import { env } from "../env";
-import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
+import { equipmentWithCalibrations } from "../equipment/transfer-equipment";
 import { AppError } from "../http/errors";
+import { storedLabelImages } from "../labels/stored";
 import { parseStored, renderFilterRecordSchema, storedCurveSpecSchema } from "../validation/records";
 import { measurementJson } from "../transfers/test-disc-evidence";
 import { softwareName } from "../version";
@@ -198,26 +199,12 @@ export async function discRecord(discId: string) {
       .execute(),
   ]);
   // The items each transfer was made with (the register's chain) and that chain's latest calibration then.
-  const equipment = await equipmentOfTransfers(
+  const equipment = await equipmentWithCalibrations(
     db,
     transfers.map((t) => t.id),
   );
-  const transfersWithEquipment = await Promise.all(
-    transfers.map(async (t) => {
-      const e = equipment.get(t.id);
-      const day = new Date(t.createdAt).toISOString().slice(0, 10);
-      const calibration = e?.chain
-        ? await latestCalibration(
-            db,
-            e.chain.id,
-            day,
-            e.items.map((i) => i.itemId),
-          )
-        : null;
-      return { ...t, equipment: e ? { ...e, calibration } : null };
-    }),
-  );
-  const labelImages = await discLabelImages(discId);
+  const transfersWithEquipment = transfers.map((t) => ({ ...t, equipment: equipment.get(t.id) ?? null }));
+  const labelImages = await storedLabelImages(discId);
   return {
     exportedAt: new Date().toISOString(),
     exportedBy: softwareName(),
@@ -250,40 +237,6 @@ export async function discRecord(discId: string) {
 }
 
 export type DiscRecordExport = Awaited<ReturnType<typeof discRecord>>;
-
-/** The disc's stored label images: photographs or scans of each side's label and of the sleeve. */
-async function discLabelImages(discId: string) {
-  const rows = await db
-    .selectFrom("label_images as l")
-    .leftJoin("sides as s", "s.id", "l.side_id")
-    .innerJoin("users as u", "u.id", "l.uploaded_by")
-    .select([
-      "l.id",
-      "l.kind",
-      "l.side_id as sideId",
-      "s.designation as side",
-      "l.object_key as objectKey",
-      "l.file_name as fileName",
-      "l.format",
-      "l.width",
-      "l.height",
-      "l.bytes",
-      "l.sha256",
-      "l.stored_at as storedAt",
-      "u.name as uploadedBy",
-    ])
-    .where("l.disc_id", "=", discId)
-    .where("l.state", "=", "stored")
-    .orderBy("l.stored_at")
-    .execute();
-  return rows.map((r) => ({
-    ...r,
-    format: r.format!,
-    bytes: Number(r.bytes),
-    sha256: r.sha256!,
-    storedAt: r.storedAt!,
-  }));
-}
 
 /** The measurement in one sentence of a PREMIS event's detail: what was fitted, how well, and the file's hash. */
 function testDiscSentence(t: {
@@ -480,6 +433,19 @@ export function premisRecord(records: DiscRecordExport[]): PremisRecord {
               `${p.kind === "sleeve" ? "Image of the sleeve" : `Image of the label of side ${p.side ?? "?"}`} added (${String(p.format).toUpperCase()}, ` +
                 `${p.width ?? "?"} × ${p.height ?? "?"} px, “${p.fileName}”) after size, SHA-256 and type checks`,
               [...entity, { type: "Rillbook object key", value: p.objectKey, role: "outcome" }],
+              "success",
+              `SHA-256 ${p.sha256}`,
+            ),
+          );
+          break;
+        case "disc.label_image_withdrawn":
+          // An appraisal: the image is judged not to be the disc's; its object is kept, under fixity.
+          events.push(
+            ev(
+              "appraisal",
+              `${p.kind === "sleeve" ? "Image of the sleeve" : `Image of the label of side ${p.side ?? "?"}`} “${p.fileName}” ` +
+                `withdrawn from the disc's record: ${p.reason}. The file is kept in storage, under fixity checks`,
+              [...entity, { type: "Rillbook label image", value: p.labelImageId, role: "source" }],
               "success",
               `SHA-256 ${p.sha256}`,
             ),

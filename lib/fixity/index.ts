@@ -8,8 +8,9 @@ import { enqueueMail } from "../mail/outbox";
 import { appendEvent } from "../provenance";
 import { StoreUnreachableError, storeFailure } from "../storage/errors";
 import { hashObject } from "../storage/objects";
+import { objectKindWords, type StoredObjectKind } from "./object-words";
 
-export type StoredObjectKind = "transfer" | "render" | "label_image";
+export { objectKindWords, type StoredObjectKind };
 
 export interface StoredObject {
   kind: StoredObjectKind;
@@ -21,13 +22,6 @@ export interface StoredObject {
   discId: string;
   storedAt: Date;
 }
-
-/** What a stored object is, in the words of a message to the curators. */
-export const objectKindWords: Record<StoredObjectKind, string> = {
-  transfer: "flat transfer",
-  render: "access copy",
-  label_image: "label image",
-};
 
 /** Every stored object of the lab (or of one disc), with the checksum recorded when it was stored. */
 export async function storedObjects(
@@ -68,7 +62,8 @@ export async function storedObjects(
       "l.disc_id as discId",
       "l.stored_at as storedAt",
     ])
-    .where("l.state", "=", "stored");
+    // A withdrawn image left the disc's page, but its object is still the lab's to keep whole.
+    .where("l.state", "in", ["stored", "withdrawn"]);
   if (discId) {
     transfers = transfers.where("s.disc_id", "=", discId);
     renders = renders.where("s.disc_id", "=", discId);

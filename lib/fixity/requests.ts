@@ -20,9 +20,13 @@ export async function requestDiscFixity(input: unknown): Promise<{ queued: numbe
   return { queued: objects.length, askedAt };
 }
 
-/** Failed checks not yet followed by a passing one for the same object: what the audit page raises. */
-export async function openFixityAlerts() {
-  const failures = await db
+/**
+ * Failed checks not yet followed by a passing one for the same object: what the audit page
+ * raises. Given objects' ids, only theirs (a bag is not made of a file whose alert is open).
+ */
+export async function openFixityAlerts(objectIds?: string[]) {
+  if (objectIds && !objectIds.length) return [];
+  let query = db
     .selectFrom("fixity_checks as f")
     .leftJoin("sides as s", "s.id", "f.side_id")
     // A label image of the sleeve has no side: its check names the disc itself.
@@ -51,7 +55,7 @@ export async function openFixityAlerts() {
         ),
       ),
     )
-    .orderBy("f.checked_at", "desc")
-    .execute();
-  return failures;
+    .orderBy("f.checked_at", "desc");
+  if (objectIds) query = query.where("f.object_id", "in", objectIds);
+  return query.execute();
 }

@@ -12,7 +12,7 @@ type Params = Record<string, string | string[]>;
 type Context = { params: Promise<Params> };
 
 // Every dynamic segment of the API ([id]) names a row by its UUID.
-const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+export const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /**
  * The route's params; an id that cannot be a row's answers 404 here, once, instead of

@@ -353,7 +353,7 @@ export async function runRenderJob(
         campaign ? { campaignId: campaign.campaignId } : {},
       );
       // The campaign's side is done (sent back to review when it had been finished work) or failed.
-      if (campaign) await campaignRenderRecorded(trx, renderId, taken);
+      if (campaign) await campaignRenderRecorded(trx, campaign, taken);
       return true;
     });
     if (!recorded) throw new LeaseLost();
@@ -384,8 +384,9 @@ export async function runRenderJob(
           .where("lease_owner", "=", owner)
           .executeTakeFirst();
         // A campaign's side fails with the render's reason, for a retry from the campaign's page.
-        if (ctx.finalAttempt && Number(marked.numUpdatedRows) > 0)
-          await campaignRenderStopped(trx, renderId, `Its render failed: ${message}`);
+        if (!ctx.finalAttempt || Number(marked.numUpdatedRows) === 0) return;
+        const campaign = await campaignOfRender(trx, renderId, { lock: true });
+        if (campaign) await campaignRenderStopped(trx, campaign, `Its render failed: ${message}`);
       })
       .catch(() => undefined);
     if (stored && ctx.finalAttempt) await removeUnrecorded(db, renderId, key);

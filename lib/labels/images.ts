@@ -25,11 +25,13 @@ import { appendEvent } from "../provenance";
 import { isObjectMissing, storeFailure } from "../storage/errors";
 import { deleteObject, objectStream } from "../storage/objects";
 import { s3 } from "../storage/s3";
+import { labelImageExtension, storedLabelImages } from "./stored";
 import {
   completeLabelImageSchema,
   labelImageTypes,
   type LabelImageType,
   startLabelImageSchema,
+  withdrawLabelImageSchema,
 } from "../validation/label-images";
 
 /** An upload URL, and the pending row, last an hour: a label image is one PUT. */
@@ -38,8 +40,6 @@ const uploadLifetimeSeconds = 3600;
 export const thumbnailPx = 480;
 
 const formatWords: Record<LabelImageFormat, string> = { jpeg: "JPEG", png: "PNG", tiff: "TIFF" };
-
-const extensionOf: Record<LabelImageFormat, string> = { jpeg: "jpg", png: "png", tiff: "tif" };
 
 /** The file's own type, from its first bytes (JPEG SOI marker, PNG signature, TIFF byte-order header). */
 export function sniffImageFormat(head: Uint8Array): LabelImageFormat | null {
@@ -68,7 +68,7 @@ function whatItLooksLike(head: Uint8Array): string {
 }
 
 function objectKeyFor(discId: string, id: string, format: LabelImageFormat): string {
-  return `labels/${discId}/${id}/original.${extensionOf[format]}`;
+  return `labels/${discId}/${id}/original.${labelImageExtension[format]}`;
 }
 
 const thumbnailKeyFor = (discId: string, id: string) => `labels/${discId}/${id}/thumbnail.jpg`;
@@ -214,7 +214,7 @@ export async function completeLabelImage(actor: SessionUser, id: string, input: 
     if (format !== declared)
       throw new Refusal(
         `“${row.file_name}” was sent as a ${formatWords[declared]} image (${row.declared_type}) but its bytes are a ${formatWords[format]} image. ` +
-          `Nothing was kept: give the file its true type (a .${extensionOf[format]} name) and add it again.`,
+          `Nothing was kept: give the file its true type (a .${labelImageExtension[format]} name) and add it again.`,
       );
     let meta: Metadata;
     let thumbnail: Buffer;
@@ -326,55 +326,10 @@ async function refuseImage(id: string, key: string, thumbKey: string | null, rea
     if (k) await deleteObject(k).catch((err) => console.error(`[rillbook] could not delete ${k}:`, err));
 }
 
-export interface LabelImageView {
-  id: string;
-  kind: "label" | "sleeve";
-  sideId: string | null;
-  side: string | null;
-  fileName: string;
-  format: LabelImageFormat;
-  width: number | null;
-  height: number | null;
-  bytes: number;
-  sha256: string;
-  storedAt: Date;
-  uploadedBy: string;
-  thumbnailUrl: string;
-  downloadUrl: string;
-}
-
-/** The disc's stored label images: sides in order (label images first), then the sleeve. */
-export async function listLabelImages(discId: string): Promise<LabelImageView[]> {
-  const rows = await db
-    .selectFrom("label_images as l")
-    .leftJoin("sides as s", "s.id", "l.side_id")
-    .innerJoin("users as u", "u.id", "l.uploaded_by")
-    .select([
-      "l.id",
-      "l.kind",
-      "l.side_id as sideId",
-      "s.designation as side",
-      "l.file_name as fileName",
-      "l.format",
-      "l.width",
-      "l.height",
-      "l.bytes",
-      "l.sha256",
-      "l.stored_at as storedAt",
-      "u.name as uploadedBy",
-    ])
-    .where("l.disc_id", "=", discId)
-    .where("l.state", "=", "stored")
-    .orderBy(sql`l.kind = 'sleeve'`)
-    .orderBy("s.designation")
-    .orderBy("l.stored_at")
-    .execute();
-  return rows.map((r) => ({
+/** The disc's stored label images for its page, with their thumbnail and download URLs (the keys stay on the server). */
+export async function listLabelImages(discId: string) {
+  return (await storedLabelImages(discId)).map(({ objectKey: _key, ...r }) => ({
     ...r,
-    format: r.format!,
-    bytes: r.bytes!,
-    sha256: r.sha256!,
-    storedAt: r.storedAt!,
     thumbnailUrl: `/api/label-images/${r.id}/thumbnail`,
     downloadUrl: `/api/label-images/${r.id}/download`,
   }));
@@ -409,4 +364,52 @@ export async function labelImageFile(
     if (isObjectMissing(err)) throw new AppError("not_found", 404, "The image is not in the file store.");
     throw storeUnavailable("read the image", err);
   }
+}
+
+/**
+ * Withdraws a stored label image added by mistake, with the person's reason: it leaves the
+ * disc's page, record and bags; its row, object and thumbnail stay, under fixity and backup,
+ * and the event names the file and its SHA-256. Final: the database refuses any later change.
+ */
+export async function withdrawLabelImage(actor: SessionUser, id: string, input: unknown) {
+  const { reason } = withdrawLabelImageSchema.parse(input);
+  return db.transaction().execute(async (trx) => {
+    const row = await trx
+      .selectFrom("label_images as l")
+      .leftJoin("sides as s", "s.id", "l.side_id")
+      .select(["l.id", "l.state", "l.disc_id", "l.kind", "l.file_name", "l.sha256", "s.designation"])
+      .where("l.id", "=", id)
+      .forUpdate("l")
+      .executeTakeFirst();
+    if (!row || row.state === "pending" || row.state === "refused")
+      throw new AppError("not_found", 404, "No such label image on record.");
+    if (row.state === "withdrawn")
+      throw new AppError("conflict", 409, "This label image is already withdrawn.");
+    await trx
+      .updateTable("label_images")
+      .set({
+        state: "withdrawn",
+        withdrawn_at: sql<Date>`now()`,
+        withdrawn_by: actor.id,
+        withdrawn_reason: reason,
+      })
+      .where("id", "=", row.id)
+      .execute();
+    await appendEvent(trx, {
+      actorId: actor.id,
+      kind: "disc.label_image_withdrawn",
+      subjectType: "disc",
+      subjectId: row.disc_id,
+      discId: row.disc_id,
+      payload: {
+        labelImageId: row.id,
+        kind: row.kind,
+        ...(row.designation ? { side: row.designation } : {}),
+        fileName: row.file_name,
+        sha256: row.sha256,
+        reason,
+      },
+    });
+    return { labelImageId: row.id, state: "withdrawn" as const };
+  });
 }

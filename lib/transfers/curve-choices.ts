@@ -10,7 +10,12 @@ import { canonicalJson } from "../provenance/chain";
 import { curveChoosableStatuses, curveChosen, lockSides } from "../sides/lifecycle";
 import { statusLabels } from "../validation/catalogue";
 import { curveChoiceSchema } from "../validation/transfers";
-import { evidenceSummary, fitTestDiscMeasurement, measurementJson } from "./test-disc-evidence";
+import {
+  evidenceSummary,
+  fitTestDiscMeasurement,
+  insertTestDiscEvidence,
+  measurementJson,
+} from "./test-disc-evidence";
 
 function sha256Hex(text: string): string {
   return createHash("sha256").update(text).digest("hex");
@@ -104,25 +109,7 @@ export async function chooseCurve(
         })
         .returning("id")
         .executeTakeFirstOrThrow();
-      if (measured)
-        await trx
-          .insertInto("curve_choice_evidence")
-          .values({
-            choice_id: row.id,
-            points_kind: measured.pointsKind,
-            points: JSON.stringify(measured.points),
-            fit_parameters: measured.fitParameters,
-            fitted_spec: JSON.stringify(measured.fittedSpec),
-            level_offset_db: measured.levelOffsetDb,
-            residuals: JSON.stringify(measured.residuals),
-            rms_db: measured.rmsDb,
-            worst_db: measured.worstDb,
-            worst_hz: measured.worstHz,
-            source_file_name: measured.sourceFileName,
-            source_text: measured.sourceText,
-            source_sha256: measured.sourceSha256,
-          })
-          .execute();
+      if (measured) await insertTestDiscEvidence(trx, row.id, measured);
       events.push({
         actorId: actor.id,
         kind: previous ? "side.curve_changed" : "side.curve_chosen",

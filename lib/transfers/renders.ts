@@ -5,7 +5,7 @@ import { sql, type Transaction } from "kysely";
 import { z } from "zod";
 import { db } from "../../db";
 import type { ChannelMode, Database } from "../../db/types";
-import { equipmentOfTransfers, latestCalibration } from "../equipment/transfer-equipment";
+import { equipmentWithCalibrations } from "../equipment/transfer-equipment";
 import { channelModes } from "../audio/channel-mode";
 import type { SessionUser } from "../auth/session-user";
 import { env } from "../env";
@@ -232,7 +232,7 @@ export async function cancelRender(actor: SessionUser, renderId: string) {
     });
     // The campaign's side fails, for a retry from the campaign's page.
     if (campaign)
-      await campaignRenderStopped(trx, id, "Its render was cancelled on the bench by the engineer.");
+      await campaignRenderStopped(trx, campaign, "Its render was cancelled on the bench by the engineer.");
     return { renderId: id, sideId: side.id, status: "cancelled" as const };
   });
   // No one can record it now: an access copy a worker stored before it stopped (or before
@@ -271,26 +271,11 @@ export async function listTransfers(sideId: string) {
     .where("t.side_id", "=", sideId)
     .orderBy("t.created_at", "desc")
     .execute();
-  const equipment = await equipmentOfTransfers(
+  const equipment = await equipmentWithCalibrations(
     db,
     transfers.map((t) => t.id),
   );
-  return Promise.all(
-    transfers.map(async (t) => {
-      const e = equipment.get(t.id);
-      if (!e) return { ...t, equipment: null };
-      const day = new Date(t.createdAt).toISOString().slice(0, 10);
-      const calibration = e.chain
-        ? await latestCalibration(
-            db,
-            e.chain.id,
-            day,
-            e.items.map((i) => i.itemId),
-          )
-        : null;
-      return { ...t, equipment: { ...e, calibration } };
-    }),
-  );
+  return transfers.map((t) => ({ ...t, equipment: equipment.get(t.id) ?? null }));
 }
 
 /** The download is named from stored text (a shelf mark, an engineer's file name): made safe for a header whatever it holds. */

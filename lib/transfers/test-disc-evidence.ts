@@ -1,8 +1,10 @@
 import { createHash } from "node:crypto";
-import { type RawBuilder, sql } from "kysely";
+import { type RawBuilder, sql, type Transaction } from "kysely";
+import type { Database } from "../../db/types";
 import {
   type CurveSpec,
   fitMeasuredPoints,
+  fitPoints,
   type MeasurementFit,
   type MeasurementJson,
   PointsParseError,
@@ -14,8 +16,9 @@ import type { TestDiscMeasurement } from "../validation/transfers";
 /** A test-disc measurement as a curve choice keeps it: the server's fit, and the points file. */
 export interface TestDiscEvidence extends MeasurementFit {
   sourceFileName: string | null;
-  sourceText: string;
-  sourceSha256: string;
+  /** Null only for evidence recorded without its file (the table allows it). */
+  sourceText: string | null;
+  sourceSha256: string | null;
 }
 
 /**
@@ -42,6 +45,51 @@ export function fitTestDiscMeasurement(m: TestDiscMeasurement, chosen: CurveSpec
     sourceText: m.sourceText,
     sourceSha256: createHash("sha256").update(m.sourceText, "utf8").digest("hex"),
   };
+}
+
+/**
+ * The same measurement kept for another curve choice of the side (a re-render campaign's):
+ * the points and the file as they were recorded, fitted again from the new curve, since the
+ * values the fit leaves alone, and so its residuals, are the chosen curve's.
+ */
+export function refitTestDiscEvidence(
+  kept: Pick<
+    TestDiscEvidence,
+    "pointsKind" | "points" | "fitParameters" | "sourceFileName" | "sourceText" | "sourceSha256"
+  >,
+  chosen: CurveSpec,
+): TestDiscEvidence {
+  try {
+    return { ...kept, ...fitPoints(kept.points, kept.pointsKind, kept.fitParameters, chosen) };
+  } catch (err) {
+    throw curveErrorToAppError(err, "measurement");
+  }
+}
+
+/** Keeps the evidence with its curve choice (the table refuses any later change). */
+export async function insertTestDiscEvidence(
+  trx: Transaction<Database>,
+  choiceId: string,
+  e: TestDiscEvidence,
+): Promise<void> {
+  await trx
+    .insertInto("curve_choice_evidence")
+    .values({
+      choice_id: choiceId,
+      points_kind: e.pointsKind,
+      points: JSON.stringify(e.points),
+      fit_parameters: e.fitParameters,
+      fitted_spec: JSON.stringify(e.fittedSpec),
+      level_offset_db: e.levelOffsetDb,
+      residuals: JSON.stringify(e.residuals),
+      rms_db: e.rmsDb,
+      worst_db: e.worstDb,
+      worst_hz: e.worstHz,
+      source_file_name: e.sourceFileName,
+      source_text: e.sourceText,
+      source_sha256: e.sourceSha256,
+    })
+    .execute();
 }
 
 /** What an event says of the evidence: the figures and the file's hash, not the whole file. */

@@ -1,6 +1,5 @@
 import "./zod-setup";
 import { z } from "zod";
-import { curveSpecSchema } from "./curves";
 import { cleanString } from "./text";
 import { readNumber } from "./zod-setup";
 
@@ -39,23 +38,21 @@ export const chainOrder: readonly EquipmentKindName[] = [
   "other",
 ];
 
+/** The name a calibration records for the curve a test disc was cut with when no preset is named. */
+export const RIAA_CALIBRATION_NAME = "RIAA (IEC 60098)";
+
 /** 1 mil = 0.001 inch = 25.4 µm (the inch is exactly 25.4 mm). */
 export const MICROMETRES_PER_MIL = 25.4;
 
 const blankToUndefined = (v: unknown) => (typeof v === "string" && v.trim() === "" ? undefined : v);
 
-/** A calendar date typed as YYYY-MM-DD that exists (not 2026-02-30). */
+/** A calendar date typed as YYYY-MM-DD that exists (not 2026-02-30): zod's ISO date, which knows the calendar. */
 function calendarDate(what: string) {
   return z
     .string({ error: `Type ${what} as YYYY-MM-DD.` })
     .trim()
-    .regex(/^\d{4}-\d{2}-\d{2}$/, `Type ${what} as YYYY-MM-DD, for example 2026-11-30.`)
-    .refine(
-      (v) => {
-        const d = new Date(`${v}T00:00:00Z`);
-        return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === v;
-      },
-      `${what.charAt(0).toUpperCase()}${what.slice(1)} is not a day of the calendar.`,
+    .pipe(
+      z.iso.date({ error: `Type ${what} as a day of the calendar, YYYY-MM-DD, for example 2026-11-30.` }),
     );
 }
 const optionalDate = (what: string) => z.preprocess(blankToUndefined, calendarDate(what).nullish());
@@ -154,11 +151,9 @@ export const calibrationSchema = z
   .object({
     calibratedOn: calendarDate("the date of the calibration"),
     testDisc: text("the test disc", 200).pipe(z.string().min(1, "Name the test disc as the lab names it.")),
+    /** The curve the test disc was cut with: a preset version of the library; without one, RIAA (IEC 60098), a standard test disc's curve. */
     presetId: z.uuid().optional(),
     presetVersion: z.coerce.number().int().positive().optional(),
-    /** The expected curve when it is not a preset of the library; with neither, RIAA (IEC 60098), a standard test disc's curve. */
-    expectedSpec: curveSpecSchema.optional(),
-    expectedName: text("the expected curve's name", 200).optional(),
     points: z
       .array(z.object({ hz: z.number().positive().max(100_000), db: z.number().min(-200).max(200) }))
       .min(3, "Give at least three measured points.")

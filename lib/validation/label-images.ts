@@ -50,3 +50,11 @@ export const startLabelImageSchema = z
 export const completeLabelImageSchema = z.object({
   sha256: z.string().regex(/^[0-9a-f]{64}$/, "The SHA-256 must be 64 lower-case hex digits."),
 });
+
+export const withdrawLabelImageSchema = z.object({
+  reason: z
+    .string({ error: "Say why the image is withdrawn." })
+    .trim()
+    .min(1, "Say why the image is withdrawn (the wrong disc, the wrong side, a blurred shot…).")
+    .max(1000, "Keep the reason under 1 000 characters."),
+});

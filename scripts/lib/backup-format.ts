@@ -14,11 +14,11 @@ export const objectsDir = "objects";
 const sha256 = z.string().regex(/^[0-9a-f]{64}$/);
 
 export const manifestObjectSchema = z.object({
-  kind: z.enum(["transfer", "render", "checkpoint"]),
-  /** The row that names the object (a transfer's or render's id, a checkpoint note's id). */
+  kind: z.enum(["transfer", "render", "checkpoint", "label_image", "label_thumbnail"]),
+  /** The row that names the object (a transfer's, render's or label image's id, a checkpoint note's id). */
   id: z.string(),
   key: z.string().min(1),
-  /** Size and SHA-256 as the record keeps them; a checkpoint's are measured when it is copied. */
+  /** Size and SHA-256 as the record keeps them; a checkpoint's and a thumbnail's are measured when copied. */
   bytes: z.number().int().nonnegative().nullable(),
   sha256: sha256.nullable(),
   /** Where the size and hash come from: the database's record, or measured while copying. */
@@ -57,6 +57,8 @@ export const descriptionSchema = z.object({
     transfers: z.number().int().nonnegative(),
     renders: z.number().int().nonnegative(),
     checkpoints: z.number().int().nonnegative(),
+    /** Stored label images (each an original and its thumbnail); absent from backups taken before they were kept. */
+    labelImages: z.number().int().nonnegative().optional(),
     objects: z.number().int().nonnegative(),
     objectBytes: z.number().int().nonnegative(),
   }),
@@ -65,6 +67,22 @@ export const descriptionSchema = z.object({
   note: z.string(),
 });
 export type BackupDescription = z.infer<typeof descriptionSchema>;
+
+/** The type an object is put back with: what the app stored it as (a label image's by its key's extension). */
+export function objectContentType(o: Pick<ManifestObject, "kind" | "key">): string {
+  switch (o.kind) {
+    case "checkpoint":
+      return "application/json";
+    case "label_thumbnail":
+      return "image/jpeg";
+    case "label_image": {
+      const ext = path.extname(o.key).toLowerCase();
+      return ext === ".png" ? "image/png" : ext === ".tif" ? "image/tiff" : "image/jpeg";
+    }
+    default:
+      return "audio/wav";
+  }
+}
 
 /** The directory of PostgreSQL's client programs: the newest Debian server package's, or PATH. */
 export function pgProgram(name: "pg_dump" | "pg_restore"): string {

@@ -8,7 +8,9 @@
 // BagIt bag. Last, a fault is recorded against the
 // stylus, and the recall lists the transfer. Screenshots "equipment-register",
 // "equipment-chain", "equipment-calibration", "bench-chain-upload", "equipment-item" and
-// "equipment-recall" land in storage/test/screenshots.
+// "equipment-recall" land in storage/test/screenshots. Then the admin, the archivist and the
+// curator each open the register, a chain, an item and its recall, and see only what their
+// role may do ("equipment-register-<role>", "equipment-item-<role>").
 import { execFile } from "node:child_process";
 import { promises as fs } from "node:fs";
 import os from "node:os";
@@ -29,7 +31,7 @@ const exec = promisify(execFile);
 let browser: Browser;
 const engineer = demoAccounts.find((a) => a.role === "engineer")!;
 const run = `${Date.now().toString(36)}${Math.random().toString(36).slice(2, 5)}`.toUpperCase();
-const cookie = {} as LabCookies;
+const cookie = {} as LabCookies & { admin: string };
 const items = {} as Record<"turntable" | "cartridge" | "stylus" | "preamp" | "converter", string>;
 let discId: string;
 let sideId: string;
@@ -52,7 +54,7 @@ function testDiscCsv(): string {
 
 beforeAll(async () => {
   browser = await launchBrowser();
-  for (const role of ["archivist", "engineer", "curator"] as const) {
+  for (const role of ["admin", "archivist", "engineer", "curator"] as const) {
     const a = demoAccounts.find((x) => x.role === role)!;
     cookie[role] = await signInCookie(a.email, a.password);
   }
@@ -259,4 +261,57 @@ describe("the equipment register", () => {
     await screenshot(page, "equipment-register");
     await context.close();
   }, 300_000);
+
+  it("shows the admin, the archivist and the curator only what each may do, and a 404 page for an address naming nothing", async () => {
+    const chain = await api("/api/equipment/chains", {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: { name: `Roles ${run}`, itemIds: [items.turntable, items.cartridge, items.stylus] },
+    });
+    expect(chain.status, JSON.stringify(chain.body)).toBe(201);
+    const chainId = chain.body.chain.id as string;
+    for (const role of ["admin", "archivist", "curator"] as const) {
+      const keeps = role === "admin";
+      const account = demoAccounts.find((a) => a.role === role)!;
+      const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
+      const page = await context.newPage();
+      await (await new SignInPage(page).open()).signIn(account.email, account.password);
+      await page.waitForURL(`${appUrl}/`);
+
+      // The register, reached from the lab's navigation: only a keeper of the register may add to it.
+      await page.getByTestId("lab-nav").getByRole("link", { name: "Equipment", exact: true }).click();
+      await page.waitForURL(`${appUrl}/equipment`);
+      await page.getByTestId("item-table").getByText(`S-30 ${run}`).waitFor();
+      await expect(page.getByTestId("register-item").count(), role).resolves.toBe(keeps ? 1 : 0);
+      await expect(page.getByTestId("new-chain").count(), role).resolves.toBe(keeps ? 1 : 0);
+      await screenshot(page, `equipment-register-${role}`);
+
+      // A chain: an admin may change it but, like every role but the engineer, not calibrate it.
+      await page.goto(`${appUrl}/equipment/chains/${chainId}`);
+      await expect(page.getByTestId("chain-items").locator("li").count()).resolves.toBe(3);
+      await expect(page.getByTestId("edit-chain").count(), role).resolves.toBe(keeps ? 1 : 0);
+      await expect(page.getByTestId("record-calibration").count(), role).resolves.toBe(0);
+
+      // An item: everyone may open its recall; only a keeper records a finding or corrects it.
+      await page.goto(`${appUrl}/equipment/items/${items.stylus}`);
+      await page.getByTestId("item-tip-text").waitFor();
+      await expect(page.getByTestId("finding-form").count(), role).resolves.toBe(keeps ? 1 : 0);
+      await expect(page.getByTestId("edit-item").count(), role).resolves.toBe(keeps ? 1 : 0);
+      await screenshot(page, `equipment-item-${role}`);
+      await page.getByTestId("item-recall").click();
+      await page.waitForURL(/\/transfers/);
+      await page.getByTestId("recall-count").waitFor();
+
+      // An address that names no item or chain is the 404 page, not an error.
+      for (const address of [
+        "/equipment/items/not-an-item",
+        "/equipment/items/00000000-0000-4000-8000-000000000000",
+        "/equipment/chains/00000000-0000-4000-8000-000000000000",
+      ]) {
+        const answer = await page.goto(`${appUrl}${address}`);
+        expect(answer?.status(), `${role} ${address}`).toBe(404);
+      }
+      await context.close();
+    }
+  }, 180_000);
 });

@@ -3,7 +3,8 @@
 // the side's label on the disc page (straight to the bucket); the engineer sees it on the
 // bench and the curator on the review page; after approval the admin sets the lab's contact
 // and the curator writes the bag into the delivery bucket from the audit page, then the bag
-// downloaded from the page's link is validated (RFC 8493). Screenshots "disc-label-images",
+// downloaded from the page's link is validated (RFC 8493). A second image, of the wrong
+// sleeve, is withdrawn with a reason. Screenshots "disc-label-images", "label-image-withdraw",
 // "bench-label", "review-label", "audit-contact" and "audit-bag" land in storage/test/screenshots.
 import { execFile } from "node:child_process";
 import { promises as fs } from "node:fs";
@@ -95,8 +96,24 @@ describe("label images and bags in the browser", () => {
       .toBeGreaterThan(0);
     await panel.scrollIntoViewIfNeeded();
     await screenshot(page, "disc-label-images");
+
+    // A second picture, taken of the wrong sleeve: the archivist withdraws it, saying why.
+    const wrong = path.join(tmp, "wrong-sleeve.png");
+    await fs.writeFile(wrong, await labelPicture("png", 400));
+    await panel.locator("select").selectOption("sleeve");
+    await panel.getByTestId("label-image-file").setInputFiles(wrong);
+    await panel.getByTestId("label-image-add").click();
+    await expect.poll(() => panel.getByTestId("label-image").count(), { timeout: 30_000 }).toBe(2);
+    const sleeve = panel.getByTestId("label-image").filter({ hasText: "Sleeve" });
+    await sleeve.getByTestId("label-image-withdraw-open").click();
+    await expect(sleeve.getByTestId("label-image-withdraw").isDisabled()).resolves.toBe(true);
+    await sleeve.getByTestId("label-image-withdraw-reason").fill("The sleeve of the next disc on the cart.");
+    await screenshot(page, "label-image-withdraw");
+    await sleeve.getByTestId("label-image-withdraw").click();
+    await expect.poll(() => panel.getByTestId("label-image").count()).toBe(1);
+    await expect.poll(() => panel.getByTestId("label-image").first().innerText()).toMatch(/Side A label/);
     await page.close();
-  }, 60_000);
+  }, 90_000);
 
   it("shows the label beside the curve on the bench, and on the review page", async () => {
     const bench = await signedIn("engineer");

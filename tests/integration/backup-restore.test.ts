@@ -19,6 +19,7 @@ import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { profile } from "@/scripts/lib/stack";
 import { api, appUrl, signInCookie } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
+import { addLabelImage, labelPicture } from "../support/label-images";
 import { approvedDisc, type LabCookies, labCookies } from "../support/pipeline";
 import { testBucketClient } from "../support/bucket";
 import { freePort, startExtraApp } from "../support/processes";
@@ -105,6 +106,15 @@ afterAll(async () => {
 describe("backup and restore", () => {
   it("a backup taken with its objects restores into an empty database and bucket, verifies, and holds the same catalogue, chain and files", async () => {
     ({ discId, sideId } = await approvedDisc(c, `BR-${tag}`));
+    // A photograph of the side's label: its original and its thumbnail are the lab's objects too.
+    const picture = await labelPicture("png");
+    const added = await addLabelImage(c.archivist, discId, picture, {
+      kind: "label",
+      sideId,
+      contentType: "image/png",
+      fileName: "label-a.png",
+    });
+    expect(added.status).toBe(201);
     const cp = await takeCheckpoint(testDb, { reason: "requested" });
     expect(cp.status).toBe("written");
 
@@ -145,6 +155,17 @@ describe("backup and restore", () => {
     expect(keys).toContain(transfer.object_key);
     expect(keys).toContain(render.object_key!);
     expect(keys).toContain(cp.status === "written" ? cp.key : "");
+    const label = await testDb
+      .selectFrom("label_images")
+      .select(["object_key", "thumbnail_key", "sha256"])
+      .where("id", "=", added.labelImageId!)
+      .executeTakeFirstOrThrow();
+    expect(manifest.objects.find((o: { key: string }) => o.key === label.object_key)).toMatchObject({
+      kind: "label_image",
+      sha256: label.sha256,
+    });
+    expect(keys).toContain(label.thumbnail_key);
+    expect(description.counts.labelImages).toBeGreaterThanOrEqual(1);
     expect(manifest.objects.find((o: { key: string }) => o.key === transfer.object_key).sha256).toBe(
       transfer.sha256,
     );
@@ -221,6 +242,15 @@ describe("backup and restore", () => {
     // The files, with the same hashes as the lab's record.
     expect(await storedHash(target.bucketName, transfer.object_key)).toBe(transfer.sha256);
     expect(await storedHash(target.bucketName, render.object_key!)).toBe(render.sha256);
+    expect(await storedHash(target.bucketName, label.object_key)).toBe(label.sha256);
+    const original = await bucket.send(
+      new GetObjectCommand({ Bucket: target.bucketName, Key: label.object_key }),
+    );
+    expect(original.ContentType).toBe("image/png");
+    const thumbnail = await bucket.send(
+      new GetObjectCommand({ Bucket: target.bucketName, Key: label.thumbnail_key! }),
+    );
+    expect(thumbnail.ContentType).toBe("image/jpeg");
 
     // A second restore into the now-full database is refused, and says how to make an empty one.
     const again = await runScript("restore.ts", [dir], target.env);

@@ -10,7 +10,7 @@ import { promises as fs } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
-import { GetObjectCommand, ListObjectsV2Command } from "@aws-sdk/client-s3";
+import { GetObjectCommand, ListObjectsV2Command, PutObjectCommand } from "@aws-sdk/client-s3";
 import { sql } from "kysely";
 import { afterAll, beforeAll, describe, expect, it, onTestFinished } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
@@ -306,6 +306,49 @@ describe("a bag written into the delivery prefix of the bucket", () => {
   });
 });
 
+describe("a delivery whose server stopped while writing it", () => {
+  it("is closed as stopped by a worker's lease sweep, and what it had written is removed", async () => {
+    const prefix = `delivery/BS-${tag}-bag-20261203T101500Z/`;
+    const s3 = testBucketClient();
+    await s3.send(
+      new PutObjectCommand({ Bucket: "rillbook", Key: `${prefix}data/record.json`, Body: "{}\n" }),
+    );
+    const { id: curatorId } = await testDb
+      .selectFrom("users")
+      .select("id")
+      .where("role", "=", "curator")
+      .executeTakeFirstOrThrow();
+    // As a server left it when it was restarted mid-way: running, its lease ten minutes old.
+    const { id } = await testDb
+      .insertInto("bag_deliveries")
+      .values({
+        scope: "disc",
+        disc_id: discId,
+        state: "running",
+        bucket: "rillbook",
+        prefix,
+        requested_by: curatorId,
+        requested_at: sql<Date>`now() - interval '11 minutes'`,
+        started_at: sql<Date>`now() - interval '11 minutes'`,
+        heartbeat_at: sql<Date>`now() - interval '10 minutes'`,
+      })
+      .returning("id")
+      .executeTakeFirstOrThrow();
+    const stopped = await until(
+      "the sweep to close the delivery",
+      async () => {
+        const list = await api(`/api/discs/${discId}/deliveries`, { cookie: c.curator });
+        const d = list.body.deliveries.find((x: { id: string }) => x.id === id);
+        return d?.state === "failed" ? d : undefined;
+      },
+      40_000,
+    );
+    expect(stopped.error).toMatch(/server writing this bag stopped before it was done/);
+    const listed = await s3.send(new ListObjectsV2Command({ Bucket: "rillbook", Prefix: prefix }));
+    expect(listed.KeyCount ?? 0).toBe(0);
+  }, 60_000);
+});
+
 describe("a payload file whose bytes no longer match its record", () => {
   let repair: (() => Promise<void>) | undefined;
   let shelf: string;
@@ -398,4 +441,29 @@ describe("a download that meets a damaged file on the way", () => {
     expect(alerts.body.alerts.map((a: { objectKey: string }) => a.objectKey)).toContain(key);
     await waitForMail((m) => m.subject === `Fixity mismatch: ${shelf} side A (flat transfer)`);
   }, 240_000);
+});
+
+describe("a payload file whose size differs from its record", () => {
+  it("refuses the download with a plain 409 naming the file before any byte goes out, and raises the fixity alert", async () => {
+    const { object_key: key } = await testDb
+      .selectFrom("label_images")
+      .select("object_key")
+      .where("disc_id", "=", discId)
+      .where("kind", "=", "sleeve")
+      .where("state", "=", "stored")
+      .executeTakeFirstOrThrow();
+    // One byte more in s3rver's own file, taken off again when the test is done (the bucket is shared).
+    const file = path.join(process.cwd(), "storage", "test", "s3", "rillbook", `${key}._S3rver_object`);
+    const size = (await fs.stat(file)).size;
+    await fs.appendFile(file, Buffer.from([0]));
+    onTestFinished(() => fs.truncate(file, size));
+
+    const res = await api(`/api/discs/${discId}/export?format=zip`, { cookie: c.curator });
+    expect(res.status).toBe(409);
+    expect(res.body.error.message).toMatch(
+      /labels\/BG-.*-sleeve-1\.tif no longer matches its record \(it has \d+ bytes, the record \d+\)/,
+    );
+    const alerts = await api("/api/fixity", { cookie: c.curator });
+    expect(alerts.body.alerts.map((a: { objectKey: string }) => a.objectKey)).toContain(key);
+  });
 });

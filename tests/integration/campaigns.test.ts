@@ -3,6 +3,7 @@
 // each side's overrides), renders them through the render queue and sends finished work
 // back to review; cancel, retry, the curators' mail, the database's refusals, and who may.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { type CurveSpec, fitCurve, type FitParameter, resolveCurve } from "@/lib/curves";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import { api, signInCookie, waitForMail } from "../support/app";
 import { ownerDb, testDb } from "../support/db";
@@ -16,6 +17,7 @@ import {
   until,
   uploadTransfer,
 } from "../support/pipeline";
+import { runPython } from "../support/python";
 
 let c: LabCookies;
 let admin: string;
@@ -449,6 +451,120 @@ describe("a re-render campaign", () => {
     }
     const retry = await api(`/api/campaigns/${id}/retry`, { cookie: c.curator, method: "POST", body: {} });
     expect(retry.status).toBe(409);
+  }, 180_000);
+});
+
+describe("a campaign over a side that rests on a test-disc measurement", () => {
+  it("keeps the measurement's points and file with the new choice, fitted again from the corrected curve", async () => {
+    const presetId = await newPreset(`Campaign test disc ${tag}`);
+    // A measured playback curve: RIAA from its IEC 60098 time constants by scipy, 1.5 dB up.
+    const hz = [30, 50, 100, 200, 300, 500, 700, 1000, 2000, 3000, 5000, 7000, 10_000, 14_000];
+    const { db } = await runPython<{ db: number[] }>("riaa_table.py", { hz });
+    const pointsFile = [
+      "hz,db",
+      "# house test disc",
+      ...hz.map((f, i) => `${f},${(db[i] + 1.5).toFixed(3)}`),
+    ].join("\n");
+    // The engineer fitted the treble and the level; the bass corners are the preset's.
+    const fit: FitParameter[] = ["rolloff", "levelOffset"];
+    const { sideIds } = await assignedDisc(c, `TDCAMP-${tag}`, ["A"]);
+    const [sideId] = sideIds;
+    const chosen = await api("/api/curve-choices", {
+      cookie: c.engineer,
+      method: "POST",
+      body: {
+        sideIds,
+        presetId,
+        presetVersion: 1,
+        overrides,
+        cutSpeedRpm: 78,
+        transferSpeedRpm: 78,
+        rationale: "The house test disc, measured on the chain.",
+        evidenceKind: "test_disc",
+        measurement: {
+          pointsKind: "playback",
+          fit,
+          sourceText: pointsFile,
+          sourceFileName: "house-disc.csv",
+        },
+      },
+    });
+    expect(chosen.status).toBe(201);
+    const oldChoiceId = chosen.body.choices[0].choiceId as string;
+    const up = await uploadTransfer(c, sideId, flatTransfer(1, 31), `TDCAMP-${tag}.wav`);
+    expect(up.done.status).toBe(201);
+    await renderAndWait(c, sideId);
+    const evidence = (choiceId: string) =>
+      testDb
+        .selectFrom("curve_choice_evidence")
+        .selectAll()
+        .where("choice_id", "=", choiceId)
+        .executeTakeFirstOrThrow();
+    const before = await evidence(oldChoiceId);
+
+    await correct(presetId, 350, [1]);
+    const started = await api("/api/campaigns", {
+      cookie: c.engineer,
+      method: "POST",
+      body: { presetId, correctingVersion: 2, sideIds },
+    });
+    expect(started.status).toBe(201);
+    const campaignId = started.body.campaignId as string;
+    const finished = await until("the campaign to finish", async () => {
+      const r = await api(`/api/campaigns/${campaignId}`, { cookie: c.curator });
+      return r.body.campaign.state === "finished" ? r.body : undefined;
+    });
+    expect(finished.campaign).toMatchObject({ done: 1, failed: 0 });
+
+    const now = await side(sideId);
+    expect(now.status).toBe("in_review");
+    const choice = await testDb
+      .selectFrom("curve_choices")
+      .select(["id", "spec", "evidence_kind"])
+      .where("id", "=", now.current_curve_choice_id!)
+      .executeTakeFirstOrThrow();
+    expect(choice.id).not.toBe(oldChoiceId);
+    expect(choice.evidence_kind).toBe("test_disc");
+    const after = await evidence(choice.id);
+    // The measurement itself is the same: its points, its file and its hash, what was fitted.
+    expect(after.points).toEqual(before.points);
+    expect(after.points_kind).toBe("playback");
+    expect(after.fit_parameters).toEqual(fit);
+    expect(after.source_text).toBe(pointsFile);
+    expect(after.source_sha256).toBe(before.source_sha256);
+    expect(after.source_file_name).toBe("house-disc.csv");
+    // The fit starts from the corrected curve: the turnover it leaves alone is version 2's
+    // 350 Hz, not version 1's 500 Hz that the old choice's fit carried.
+    const tau = (s: unknown) => resolveCurve(s as CurveSpec).turnover!.tauUs;
+    expect(tau(before.fitted_spec)).toBeCloseTo(1e6 / (2 * Math.PI * 500), 3);
+    expect(tau(after.fitted_spec)).toBeCloseTo(tau(choice.spec), 6);
+    expect(tau(after.fitted_spec)).toBeCloseTo(1e6 / (2 * Math.PI * 350), 3);
+    // Its figures are the curve engine's fit of the kept points from the new choice's curve,
+    // and they say how far the measured bass now lies from the corrected curve.
+    const { speedRatio: _speed, ...initial } = choice.spec;
+    const expected = fitCurve({ points: before.points, kind: "playback", fit, initial });
+    expect(after.rms_db).toBeCloseTo(expected.rmsDb, 6);
+    expect(after.level_offset_db).toBeCloseTo(expected.levelOffsetDb, 6);
+    expect(after.residuals).toHaveLength(hz.length);
+    expect(after.rms_db).toBeGreaterThan(before.rms_db + 0.5);
+
+    // The campaign's curve event names the measurement, and the reviewer sees it with the choice.
+    const event = await testDb
+      .selectFrom("provenance_events")
+      .select("payload")
+      .where("subject_id", "=", sideId)
+      .where("kind", "=", "side.curve_changed")
+      .orderBy("seq", "desc")
+      .executeTakeFirstOrThrow();
+    expect(event.payload).toMatchObject({
+      campaignId,
+      choiceId: choice.id,
+      testDisc: { sourceSha256: before.source_sha256, pointCount: hz.length },
+    });
+    const list = await api(`/api/sides/${sideId}/curve-choices`, { cookie: c.curator });
+    const shown = list.body.choices.find((x: { id: string }) => x.id === choice.id);
+    expect(shown.measurement).toMatchObject({ fitParameters: fit, sourceSha256: before.source_sha256 });
+    expect(shown.measurement.rmsDb).toBeCloseTo(after.rms_db, 6);
   }, 180_000);
 });
 

@@ -270,6 +270,9 @@ describe("the register", () => {
 });
 
 describe("chains", () => {
+  let spareId: string;
+  let spareVersion: number;
+
   it("hold at most one item of each kind but other", async () => {
     const r = await api("/api/equipment/chains", {
       cookie: cookie.engineer,
@@ -284,6 +287,64 @@ describe("chains", () => {
       body: { name: `bench 2 COARSE groove ${run}`, itemIds: [ids.stylus] },
     });
     expect(taken.status).toBe(409);
+  });
+
+  it("record a calibration against a curve the server names: a preset version, or else RIAA, never the client's", async () => {
+    // An item of its own, so that no other test's window of doubt starts from this calibration.
+    const filter = await register(cookie.engineer, {
+      kind: "other",
+      make: "Fenwick",
+      model: `Rumble filter ${run}`,
+    });
+    const spare = await api("/api/equipment/chains", {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: { name: `Spare filter ${run}`, itemIds: [filter] },
+    });
+    expect(spare.status, JSON.stringify(spare.body)).toBe(201);
+    spareId = spare.body.chain.id as string;
+    spareVersion = spare.body.chain.version as number;
+    const cal = await api(`/api/equipment/chains/${spareId}/calibrations`, {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: {
+        calibratedOn: "2026-01-05",
+        testDisc: "Lab frequency disc FR-78 side A",
+        points: testDiscPoints(),
+        // A curve and a name of the client's own: not what the record may say the disc was cut with.
+        expectedSpec: { ...RIAA_SPEC, turnover: { unit: "us", value: 500 } },
+        expectedName: "Anything at all",
+      },
+    });
+    expect(cal.status, JSON.stringify(cal.body)).toBe(201);
+    expect(cal.body.calibration.expectedName).toBe("RIAA (IEC 60098)");
+    const stored = await testDb
+      .selectFrom("equipment_calibrations")
+      .select(["expected_name", "expected_spec"])
+      .where("id", "=", cal.body.calibration.id)
+      .executeTakeFirstOrThrow();
+    expect(stored.expected_name).toBe("RIAA (IEC 60098)");
+    expect(stored.expected_spec).toEqual(JSON.parse(JSON.stringify(RIAA_SPEC)));
+  });
+
+  it("refuse a calibration of a retired chain, as its page offers none", async () => {
+    const retired = await api(`/api/equipment/chains/${spareId}`, {
+      cookie: cookie.engineer,
+      method: "PATCH",
+      body: { retired: true, version: spareVersion },
+    });
+    expect(retired.status, JSON.stringify(retired.body)).toBe(200);
+    const late = await api(`/api/equipment/chains/${spareId}/calibrations`, {
+      cookie: cookie.engineer,
+      method: "POST",
+      body: {
+        calibratedOn: "2026-01-06",
+        testDisc: "Lab frequency disc FR-78 side A",
+        points: testDiscPoints(),
+      },
+    });
+    expect(late.status).toBe(409);
+    expect(late.body.error.message).toMatch(/retired/);
   });
 
   it("list their items in the order of the chain, from the disc to the file", async () => {

@@ -183,3 +183,118 @@ describe("adding label images", () => {
     expect(checks.filter((x) => x.side_id === null)).toHaveLength(1);
   });
 });
+
+describe("withdrawing a label image added by mistake", () => {
+  let imageId: string;
+  let objectKey: string;
+
+  beforeAll(async () => {
+    const added = await addLabelImage(c.archivist, discId, await labelPicture("png", 320), {
+      kind: "label",
+      sideId: sideIds[1],
+      contentType: "image/png",
+      fileName: "another-disc-label.png",
+    });
+    expect(added.status).toBe(201);
+    imageId = added.labelImageId!;
+    objectKey = (
+      await testDb
+        .selectFrom("label_images")
+        .select("object_key")
+        .where("id", "=", imageId)
+        .executeTakeFirstOrThrow()
+    ).object_key;
+  });
+
+  it("needs a reason, and is for archivists and admins only", async () => {
+    const noReason = await api(`/api/label-images/${imageId}/withdraw`, {
+      cookie: c.archivist,
+      method: "POST",
+      body: { reason: "   " },
+    });
+    expect(noReason.status).toBe(422);
+    expect(JSON.stringify(noReason.body)).toMatch(/Say why the image is withdrawn/);
+    for (const cookie of [c.engineer, c.curator])
+      expect(
+        (
+          await api(`/api/label-images/${imageId}/withdraw`, {
+            cookie,
+            method: "POST",
+            body: { reason: "x" },
+          })
+        ).status,
+      ).toBe(403);
+    const listed = await api(`/api/discs/${discId}/label-images`, { cookie: c.archivist });
+    expect(listed.body.labelImages.map((i: { id: string }) => i.id)).toContain(imageId);
+  });
+
+  it("leaves the disc's page and record with its reason on the timeline, keeps the file, and is final", async () => {
+    const reason = "The label of another disc of the accession, photographed by mistake.";
+    const done = await api(`/api/label-images/${imageId}/withdraw`, {
+      cookie: c.archivist,
+      method: "POST",
+      body: { reason },
+    });
+    expect(done.status).toBe(200);
+    const listed = await api(`/api/discs/${discId}/label-images`, { cookie: c.engineer });
+    expect(listed.body.labelImages.map((i: { id: string }) => i.id)).not.toContain(imageId);
+    expect(listed.body.labelImages).toHaveLength(3);
+    expect((await api(`/api/label-images/${imageId}/thumbnail`, { cookie: c.engineer })).status).toBe(404);
+    const record = await api(`/api/discs/${discId}/export?format=json`, { cookie: c.curator });
+    expect(record.status).toBe(200);
+    expect(JSON.stringify(record.body.labelImages)).not.toContain(imageId);
+    // The file is kept: the provenance log names it.
+    expect(await objectExists(objectKey)).toBe(true);
+    const event = await testDb
+      .selectFrom("provenance_events")
+      .select("payload")
+      .where("kind", "=", "disc.label_image_withdrawn")
+      .where("subject_id", "=", discId)
+      .executeTakeFirstOrThrow();
+    expect(event.payload).toMatchObject({ labelImageId: imageId, side: "B", reason });
+    const again = await api(`/api/label-images/${imageId}/withdraw`, {
+      cookie: c.archivist,
+      method: "POST",
+      body: { reason: "twice" },
+    });
+    expect(again.status).toBe(409);
+  });
+
+  it("is refused by the database any change but withdrawing, and any deletion", async () => {
+    // The withdrawn image cannot be put back, nor its reason rewritten.
+    await expect(
+      testDb.updateTable("label_images").set({ state: "stored" }).where("id", "=", imageId).execute(),
+    ).rejects.toThrow(/never changed/);
+    await expect(
+      testDb
+        .updateTable("label_images")
+        .set({ withdrawn_reason: "other" })
+        .where("id", "=", imageId)
+        .execute(),
+    ).rejects.toThrow(/never changed/);
+    await expect(testDb.deleteFrom("label_images").where("id", "=", imageId).execute()).rejects.toThrow(
+      /never deleted/,
+    );
+    // A stored image's hash or file cannot be changed, and it cannot be withdrawn without a reason.
+    const stored = await testDb
+      .selectFrom("label_images")
+      .select("id")
+      .where("disc_id", "=", discId)
+      .where("state", "=", "stored")
+      .executeTakeFirstOrThrow();
+    await expect(
+      testDb
+        .updateTable("label_images")
+        .set({ sha256: "0".repeat(64) })
+        .where("id", "=", stored.id)
+        .execute(),
+    ).rejects.toThrow(/may only be withdrawn/);
+    await expect(
+      testDb
+        .updateTable("label_images")
+        .set({ state: "withdrawn", withdrawn_at: new Date() })
+        .where("id", "=", stored.id)
+        .execute(),
+    ).rejects.toThrow(/label_images_withdrawn/);
+  });
+});

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { parseCodingHistory } from "@/lib/audio";
 import { captureCodingHistory, inChainOrder, itemText, tipText } from "@/lib/equipment/describe";
-import { equipmentItemSchema, tipMicrometres } from "@/lib/validation/equipment";
+import { equipmentItemSchema, findingSchema, tipMicrometres } from "@/lib/validation/equipment";
 
 const item = (kind: string, make: string, model: string, serial = "", extra: object = {}) =>
   ({ kind, make, model, serial, stylusTipUm: null, stylusShape: null, ...extra }) as Parameters<
@@ -38,6 +38,22 @@ describe("a stylus's tip", () => {
     expect(
       equipmentItemSchema.safeParse({ kind: "stylus", make: "V", inServiceOn: "2026-02-30" }).success,
     ).toBe(false);
+  });
+});
+
+describe("a day in the register", () => {
+  it("must be a day of the calendar: 29 February only in a leap year, with a sentence naming the field", () => {
+    const day = (foundOn: string) =>
+      findingSchema.safeParse({ foundOn, outcome: "good", description: "Sound." });
+    expect(day("2024-02-29").success).toBe(true);
+    expect(day(" 2026-11-30 ").success).toBe(true);
+    for (const bad of ["2025-02-29", "2026-04-31", "2026-13-01", "30/11/2026"]) {
+      const r = day(bad);
+      expect(r.success, bad).toBe(false);
+      expect(r.error!.issues[0].message, bad).toMatch(
+        /^Type the day it was found as a day of the calendar, YYYY-MM-DD/,
+      );
+    }
   });
 });
 

@@ -141,6 +141,34 @@ describe("event sentences", () => {
     expect(checks.map((c) => c.tone)).toEqual(["good", "good", "bad", "bad"]);
   });
 
+  it("name a label image's fixity check by what it shows, not by the name the server gave its object", () => {
+    const key = "labels/d1/l1/original.png";
+    const side = read(
+      ev(
+        "side.fixity_checked",
+        {
+          side: "A",
+          object: { kind: "label_image", id: "l1", key },
+          expectedSha256: sha("a"),
+          outcome: "pass",
+        },
+        null,
+      ),
+    );
+    const sleeve = read(
+      ev(
+        "disc.fixity_checked",
+        { object: { kind: "label_image", id: "l2", key }, expectedSha256: sha("b"), outcome: "missing" },
+        null,
+      ),
+    );
+    expect(side.sentence).toBe("A fixity check of the label image of side A (SHA-256 aaaaaaaa…) passed.");
+    expect(sleeve.sentence).toBe(
+      "A fixity check of the label image of the disc (SHA-256 bbbbbbbb…) found the file MISSING.",
+    );
+    expect(side.details).toContainEqual({ label: "Object", value: key, mono: true });
+  });
+
   it("name what an approval accepted: the transfer, the curve and the access copy", () => {
     const r = read(
       ev("side.approved", { side: "A", transferId: "t2", curveChoiceId: "c1", renderId: "r1" }, "Ines Varga"),

@@ -18,7 +18,12 @@ export default async function CampaignPage({ params }: { params: Promise<{ id: s
       <BackLink href="/campaigns" className="mb-2">
         Re-render campaigns
       </BackLink>
-      <CampaignView key={id} id={id} canRun={can(user.role, "campaigns:run")} />
+      <CampaignView
+        key={id}
+        id={id}
+        canRun={can(user.role, "campaigns:run")}
+        canReview={can(user.role, "review:decide")}
+      />
     </>
   );
 }

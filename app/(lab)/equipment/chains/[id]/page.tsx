@@ -4,6 +4,7 @@ import { when } from "@/components/catalogue/format";
 import { CalibrationView } from "@/components/equipment/calibration-view";
 import { CalibrationRecorder, ChainEditor } from "@/components/equipment/chain-editor";
 import { ageText, tipText } from "@/components/equipment/format";
+import { loadOr404 } from "@/components/equipment/load";
 import { Badge } from "@/components/ui/badge";
 import { PageHeader, Panel } from "@/components/ui/panel";
 import { requirePageAccess } from "@/lib/auth/page";
@@ -19,7 +20,7 @@ const daysSince = (day: string) => Math.round((Date.now() - Date.parse(`${day}T0
 
 export default async function ChainPage({ params }: { params: Promise<{ id: string }> }) {
   const user = await requirePageAccess("equipment:read");
-  const { chain, calibrations } = await getChain((await params).id);
+  const { chain, calibrations } = await loadOr404((await params).id, getChain);
   const editor = can(user.role, "equipment:edit");
   const calibrates = can(user.role, "equipment:calibrate");
   const today = new Date().toISOString().slice(0, 10);

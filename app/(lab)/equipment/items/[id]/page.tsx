@@ -4,6 +4,7 @@ import { when } from "@/components/catalogue/format";
 import { FindingForm } from "@/components/equipment/finding-form";
 import { hoursText, tipText } from "@/components/equipment/format";
 import { ItemEditor } from "@/components/equipment/item-editor";
+import { loadOr404 } from "@/components/equipment/load";
 import { Badge } from "@/components/ui/badge";
 import { LinkButton } from "@/components/ui/link-button";
 import { PageHeader, Panel } from "@/components/ui/panel";
@@ -28,7 +29,7 @@ function Fact({ k, v, testId }: { k: string; v: React.ReactNode; testId?: string
 
 export default async function ItemPage({ params }: { params: Promise<{ id: string }> }) {
   const user = await requirePageAccess("equipment:read");
-  const { item, chains, findings, calibrations } = await getItem((await params).id);
+  const { item, chains, findings, calibrations } = await loadOr404((await params).id, getItem);
   const editor = can(user.role, "equipment:edit");
   const recallHref = `/equipment/items/${item.id}/transfers`;
   return (

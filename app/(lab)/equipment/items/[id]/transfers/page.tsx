@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import { RecallView } from "@/components/equipment/recall-view";
+import { loadOr404 } from "@/components/equipment/load";
 import { PageHeader } from "@/components/ui/panel";
 import { requirePageAccess } from "@/lib/auth/page";
 import { itemName } from "@/lib/equipment/describe";
@@ -10,7 +11,7 @@ export const metadata: Metadata = { title: "Recall" };
 
 export default async function RecallPage({ params }: { params: Promise<{ id: string }> }) {
   await requirePageAccess("equipment:read");
-  const { item } = await getItem((await params).id);
+  const { item } = await loadOr404((await params).id, getItem);
   return (
     <>
       <PageHeader

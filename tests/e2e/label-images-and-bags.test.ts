@@ -105,10 +105,13 @@ describe("label images and bags in the browser", () => {
     await expect.poll(() => panel.getByTestId("label-image").count(), { timeout: 30_000 }).toBe(2);
     const mistaken = panel.getByTestId("label-image").last();
     await mistaken.getByTestId("label-image-withdraw-open").click();
-    await expect(mistaken.getByTestId("label-image-withdraw").isDisabled()).resolves.toBe(true);
-    await mistaken.getByTestId("label-image-withdraw-reason").fill("The label of the next disc on the cart.");
+    const withdraw = panel.getByTestId("label-image-withdraw-form");
+    await expect(withdraw.innerText()).resolves.toMatch(/next-disc-label\.png/);
+    await expect(withdraw.getByTestId("label-image-withdraw").isDisabled()).resolves.toBe(true);
+    await withdraw.getByTestId("label-image-withdraw-reason").fill("The label of the next disc on the cart.");
     await screenshot(page, "label-image-withdraw");
-    await mistaken.getByTestId("label-image-withdraw").click();
+    await withdraw.getByTestId("label-image-withdraw").click();
+    await expect.poll(() => panel.getByTestId("label-image-said").innerText()).toMatch(/is withdrawn/);
     await expect.poll(() => panel.getByTestId("label-image").count()).toBe(1);
     await expect.poll(() => panel.getByTestId("label-image").first().innerText()).toMatch(/Side A label/);
     await page.close();

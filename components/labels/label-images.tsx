@@ -87,7 +87,7 @@ function WithdrawForm({
       data-testid="label-image-withdraw-form"
     >
       <p className="text-sm font-medium">
-        Withdraw {caption(img).toLowerCase()} “{img.fileName}”
+        Withdraw “{img.fileName}” ({caption(img)})
       </p>
       <p className="text-xs text-ink-soft">
         For an image added by mistake. It leaves this disc&rsquo;s page, its record and its packages; the file

@@ -56,26 +56,22 @@ function caption(img: LabelImageJson): string {
 }
 
 /** Withdrawing an image added by mistake: a reason, then the server's answer. */
-function WithdrawImage({ img, onWithdrawn }: { img: LabelImageJson; onWithdrawn: () => Promise<void> }) {
+function WithdrawForm({
+  img,
+  onWithdrawn,
+  onCancel,
+}: {
+  img: LabelImageJson;
+  onWithdrawn: () => Promise<void>;
+  onCancel: () => void;
+}) {
   const uid = useId();
-  const [open, setOpen] = useState(false);
   const [reason, setReason] = useState("");
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
-  if (!open)
-    return (
-      <button
-        type="button"
-        className="text-[0.7rem] text-ink-faint underline underline-offset-2 hover:text-alarm"
-        onClick={() => setOpen(true)}
-        data-testid="label-image-withdraw-open"
-      >
-        Withdraw…
-      </button>
-    );
   return (
     <form
-      className="space-y-1.5 rounded-md border border-alarm/30 bg-white p-2"
+      className="space-y-2 rounded-lg border border-alarm/30 bg-white p-3"
       onSubmit={(e) => {
         e.preventDefault();
         setBusy(true);
@@ -90,7 +86,15 @@ function WithdrawImage({ img, onWithdrawn }: { img: LabelImageJson; onWithdrawn:
       }}
       data-testid="label-image-withdraw-form"
     >
-      <label htmlFor={`${uid}-reason`} className="block text-[0.7rem] font-medium">
+      <p className="text-sm font-medium">
+        Withdraw “{img.fileName}” ({caption(img)})
+      </p>
+      <p className="text-xs text-ink-soft">
+        For an image added by mistake. It leaves this disc&rsquo;s page, its record and its packages; the file
+        stays on record with its SHA-256, and the timeline keeps your reason. This cannot be undone: add the
+        right image afterwards.
+      </p>
+      <label htmlFor={`${uid}-reason`} className="block text-sm font-medium">
         Why is it withdrawn?
       </label>
       <textarea
@@ -98,19 +102,16 @@ function WithdrawImage({ img, onWithdrawn }: { img: LabelImageJson; onWithdrawn:
         rows={2}
         value={reason}
         onChange={(e) => setReason(e.target.value)}
-        placeholder="Another disc's label"
-        className={controlClass(!!error, "px-2 py-1 text-xs")}
+        placeholder="The label of another disc of the accession"
+        className={controlClass(!!error)}
         data-testid="label-image-withdraw-reason"
       />
-      <p className="text-[0.65rem] text-ink-faint">
-        It leaves this disc&rsquo;s page, record and packages; the file stays on record.
-      </p>
       {error ? (
-        <p role="alert" className="text-[0.7rem] font-medium text-alarm">
+        <p role="alert" className="text-xs font-medium text-alarm">
           {error}
         </p>
       ) : null}
-      <div className="flex gap-1.5">
+      <div className="flex gap-2">
         <Button
           type="submit"
           variant="danger"
@@ -118,10 +119,10 @@ function WithdrawImage({ img, onWithdrawn }: { img: LabelImageJson; onWithdrawn:
           disabled={busy || !reason.trim()}
           data-testid="label-image-withdraw"
         >
-          {busy ? "Withdrawing…" : "Withdraw"}
+          {busy ? "Withdrawing…" : "Withdraw the image"}
         </Button>
-        <Button type="button" variant="quiet" size="sm" onClick={() => setOpen(false)}>
-          Keep
+        <Button type="button" variant="quiet" size="sm" onClick={onCancel}>
+          Keep it
         </Button>
       </div>
     </form>
@@ -150,6 +151,7 @@ export function LabelImages({
   const [file, setFile] = useState<File | null>(null);
   const [busy, setBusy] = useState(false);
   const [said, setSaid] = useState<{ ok: boolean; text: string } | null>(null);
+  const [withdrawing, setWithdrawing] = useState<LabelImageJson | null>(null);
 
   const all = list.data?.labelImages ?? [];
   const shown = onlySideId ? all.filter((i) => i.kind === "sleeve" || i.sideId === onlySideId) : all;
@@ -220,13 +222,14 @@ export function LabelImages({
                 </span>
               </p>
               {canAdd ? (
-                <WithdrawImage
-                  img={img}
-                  onWithdrawn={async () => {
-                    await queryClient.invalidateQueries({ queryKey: ["label-images", discId] });
-                    void queryClient.invalidateQueries({ queryKey: ["disc-events", discId] });
-                  }}
-                />
+                <button
+                  type="button"
+                  className="text-[0.7rem] text-ink-faint underline underline-offset-2 hover:text-alarm"
+                  onClick={() => setWithdrawing(img)}
+                  data-testid="label-image-withdraw-open"
+                >
+                  Withdraw…
+                </button>
               ) : null}
             </li>
           ))}
@@ -237,6 +240,20 @@ export function LabelImages({
           {canAdd ? "" : " An archivist adds photographs or scans of the labels and the sleeve."}
         </p>
       )}
+
+      {canAdd && withdrawing ? (
+        <WithdrawForm
+          key={withdrawing.id}
+          img={withdrawing}
+          onCancel={() => setWithdrawing(null)}
+          onWithdrawn={async () => {
+            setWithdrawing(null);
+            setSaid({ ok: true, text: `“${withdrawing.fileName}” is withdrawn; the timeline keeps why.` });
+            await queryClient.invalidateQueries({ queryKey: ["label-images", discId] });
+            void queryClient.invalidateQueries({ queryKey: ["disc-events", discId] });
+          }}
+        />
+      ) : null}
 
       {canAdd ? (
         <form

@@ -3,8 +3,8 @@
 // the side's label on the disc page (straight to the bucket); the engineer sees it on the
 // bench and the curator on the review page; after approval the admin sets the lab's contact
 // and the curator writes the bag into the delivery bucket from the audit page, then the bag
-// downloaded from the page's link is validated (RFC 8493). A second image, of the wrong
-// sleeve, is withdrawn with a reason. Screenshots "disc-label-images", "label-image-withdraw",
+// downloaded from the page's link is validated (RFC 8493). A second image, of another
+// disc's label, is withdrawn with a reason. Screenshots "disc-label-images", "label-image-withdraw",
 // "bench-label", "review-label", "audit-contact" and "audit-bag" land in storage/test/screenshots.
 import { execFile } from "node:child_process";
 import { promises as fs } from "node:fs";
@@ -97,19 +97,21 @@ describe("label images and bags in the browser", () => {
     await panel.scrollIntoViewIfNeeded();
     await screenshot(page, "disc-label-images");
 
-    // A second picture, taken of the wrong sleeve: the archivist withdraws it, saying why.
-    const wrong = path.join(tmp, "wrong-sleeve.png");
+    // A second picture, of the next disc's label on the cart: the archivist withdraws it, saying why.
+    const wrong = path.join(tmp, "next-disc-label.png");
     await fs.writeFile(wrong, await labelPicture("png", 400));
-    await panel.locator("select").selectOption("sleeve");
     await panel.getByTestId("label-image-file").setInputFiles(wrong);
     await panel.getByTestId("label-image-add").click();
     await expect.poll(() => panel.getByTestId("label-image").count(), { timeout: 30_000 }).toBe(2);
-    const sleeve = panel.getByTestId("label-image").filter({ hasText: "Sleeve" });
-    await sleeve.getByTestId("label-image-withdraw-open").click();
-    await expect(sleeve.getByTestId("label-image-withdraw").isDisabled()).resolves.toBe(true);
-    await sleeve.getByTestId("label-image-withdraw-reason").fill("The sleeve of the next disc on the cart.");
+    const mistaken = panel.getByTestId("label-image").last();
+    await mistaken.getByTestId("label-image-withdraw-open").click();
+    const withdraw = panel.getByTestId("label-image-withdraw-form");
+    await expect(withdraw.innerText()).resolves.toMatch(/next-disc-label\.png/);
+    await expect(withdraw.getByTestId("label-image-withdraw").isDisabled()).resolves.toBe(true);
+    await withdraw.getByTestId("label-image-withdraw-reason").fill("The label of the next disc on the cart.");
     await screenshot(page, "label-image-withdraw");
-    await sleeve.getByTestId("label-image-withdraw").click();
+    await withdraw.getByTestId("label-image-withdraw").click();
+    await expect.poll(() => panel.getByTestId("label-image-said").innerText()).toMatch(/is withdrawn/);
     await expect.poll(() => panel.getByTestId("label-image").count()).toBe(1);
     await expect.poll(() => panel.getByTestId("label-image").first().innerText()).toMatch(/Side A label/);
     await page.close();

@@ -1,7 +1,9 @@
 // Storage, tried as a hostile insider would: nobody can claim or delete another side's
 // preservation master, an upload is named by the id the server gave it and nothing
 // else, its declared size holds, it completes once, and download names are safe for
-// any stored text. Against the running app, worker, PostgreSQL and s3rver.
+// any stored text. Against the running app, worker, PostgreSQL and s3rver. Its test
+// signals (seeds 1021–1029) are its own: were another file to store the same bytes for a
+// side first, a completion here would answer the duplicate-file question instead.
 import { createHash } from "node:crypto";
 import { GetObjectCommand, HeadObjectCommand } from "@aws-sdk/client-s3";
 import { sql } from "kysely";
@@ -79,7 +81,7 @@ beforeAll(async () => {
 
   const theirs = await assignedDisc(c, `SS-THEIRS-${tag}`, ["A", "B"], email);
   await chooseCurve(colleague, theirs.sideIds);
-  const bytes = flatTransfer(1, 21);
+  const bytes = flatTransfer(1, 1021);
   const up = await uploadTransfer(colleague, theirs.sideIds[0], bytes, "theirs-A.wav");
   expect(up.done.status).toBe(201);
   victim = { sideId: theirs.sideIds[0], key: up.key, sha256: sha256Of(bytes), bytes };
@@ -107,7 +109,7 @@ describe("a preservation master cannot be claimed or lost", () => {
     const sideId = own[0];
     const traversal = `transfers/${sideId}/00000000-0000-4000-8000-000000000000/../../${victim.key.split("/").slice(1).join("/")}`;
     // The attacker's own file, the same length as the victim's master, with the victim's size and SHA-256.
-    const mine = flatTransfer(1, 22);
+    const mine = flatTransfer(1, 1022);
     expect(mine.length).toBe(victim.bytes.length);
     const { uploadId, partSize, urls, key } = await startUpload(
       c.engineer,
@@ -188,7 +190,7 @@ describe("a preservation master cannot be claimed or lost", () => {
     "a colleague's upload id cannot be used: listing, signing, completing and cancelling " +
       "it answer 404, and the colleague's own upload still completes",
     async () => {
-      const bytes = flatTransfer(1, 23);
+      const bytes = flatTransfer(1, 1023);
       const theirs = await startUpload(
         colleague.engineer,
         (
@@ -269,7 +271,7 @@ describe("a preservation master cannot be claimed or lost", () => {
 
   it("the declared size is enforced: 1000 bytes declared and more sent is refused, and the object removed", async () => {
     const sideId = own[2];
-    const bytes = flatTransfer(1, 24);
+    const bytes = flatTransfer(1, 1024);
     expect(bytes.length).toBeGreaterThan(1000);
     const { uploadId, urls, key } = await startUpload(c.engineer, sideId, "small.wav", 1000);
     expect(urls.map((u) => u.partNumber)).toEqual([1]);
@@ -298,7 +300,7 @@ describe("a preservation master cannot be claimed or lost", () => {
 
   it("the declared size is enforced: no part beyond what it needs is signed, and a completion naming more parts or another size is refused", async () => {
     const sideId = own[3];
-    const bytes = flatTransfer(1, 25);
+    const bytes = flatTransfer(1, 1025);
     const { uploadId, partSize, urls, key } = await startUpload(
       c.engineer,
       sideId,
@@ -350,7 +352,7 @@ describe("a preservation master cannot be claimed or lost", () => {
 
   it("a second completion answers 409 with a clear message and leaves the accepted transfer as it was", async () => {
     const sideId = own[4];
-    const bytes = flatTransfer(1, 26);
+    const bytes = flatTransfer(1, 1026);
     const { uploadId, partSize, urls, key } = await startUpload(
       c.engineer,
       sideId,
@@ -493,7 +495,7 @@ describe("a preservation master cannot be claimed or lost", () => {
   });
 
   it("an expired upload is refused and cancelled, with what it stored dropped", async () => {
-    const bytes = flatTransfer(1, 28);
+    const bytes = flatTransfer(1, 1028);
     const { uploadId, partSize, urls, key } = await startUpload(c.engineer, own[6], "late.wav", bytes.length);
     const parts = await sendParts(bytes, partSize, urls);
     await testDb
@@ -521,7 +523,7 @@ describe("a preservation master cannot be claimed or lost", () => {
 
   it("a completion the storage cannot carry out answers a clear error, not 500, and the same upload completes when the storage is back", async () => {
     const sideId = own[7];
-    const bytes = flatTransfer(1, 29);
+    const bytes = flatTransfer(1, 1029);
     const { uploadId, partSize, urls } = await startUpload(c.engineer, sideId, "early.wav", bytes.length);
     const parts = await sendParts(bytes, partSize, urls);
     const body = { uploadId, parts, sha256: sha256Of(bytes), bytes: bytes.length, ...transferDetails };

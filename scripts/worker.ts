@@ -4,9 +4,10 @@
 // it after a crash or a failure.
 import "./lib/demo-env";
 import { createDb } from "../db/client";
+import { sql } from "kysely";
 import { defaultDsp } from "../lib/audio/dsp";
 import { env } from "../lib/env";
-import { dueObjects, checkObject, fixityCycleDays, type StoredObjectKind } from "../lib/fixity";
+import { dueObjects, fixityCycleDays, type FixityJob, runFixityJob } from "../lib/fixity";
 import {
   CHAIN_CHECKPOINT_CRON,
   CHAIN_CHECKPOINT_QUEUE,
@@ -111,21 +112,27 @@ async function main(): Promise<void> {
   // lab's cycle; each object is one job (singleton per object), so several workers
   // share the work and never check an object twice at once.
   await boss.schedule(FIXITY_SWEEP_QUEUE, FIXITY_SWEEP_CRON);
+  // The database's time before reading what is due: a check recorded after it (a curator's,
+  // running meanwhile) stands, and the sweep's job for that object is then not run again.
   await boss.work(FIXITY_SWEEP_QUEUE, async () => {
+    const { rows } = await sql<{ now: Date }>`SELECT now() AS now`.execute(db);
+    const dueSince = rows[0].now.toISOString();
     const due = await dueObjects(db, await fixityCycleDays(db));
     for (const o of due)
-      await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id }, { singletonKey: fixityJobKey(o) });
+      await boss.send(FIXITY_QUEUE, { kind: o.kind, id: o.id, dueSince } satisfies FixityJob, {
+        singletonKey: fixityJobKey(o),
+      });
     if (due.length) console.log(`[worker] fixity sweep queued ${due.length} objects`);
   });
   // Checks are taken a batch at a time (pg-boss fetches once a second per worker), each
   // recorded on its own: one that fails is handed back for its retry alone, the others complete.
-  await boss.work<{ kind: StoredObjectKind; id: string }>(
+  await boss.work<FixityJob>(
     FIXITY_QUEUE,
     { batchSize: FIXITY_BATCH, pollingIntervalSeconds: 1 },
     async (jobs) => {
       for (const job of jobs) {
         try {
-          const outcome = await checkObject(db, job.data.kind, job.data.id, { worker: workerIdentity });
+          const outcome = await runFixityJob(db, job.data, { worker: workerIdentity });
           console.log(`[worker] fixity ${job.data.kind} ${job.data.id}: ${outcome}`);
         } catch (err) {
           // An unreachable store is not a fixity result: nothing recorded, no one alarmed;

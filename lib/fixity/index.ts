@@ -147,6 +147,38 @@ async function findObject(
  * throws StoreUnreachableError, records nothing, and the queue tries the check again.
  * `worker` names the worker process that read it, recorded with the result.
  */
+/** What a fixity job carries: the object and, for a sweep's job, when the sweep found it due. */
+export interface FixityJob {
+  kind: StoredObjectKind;
+  id: string;
+  /** The database's time when the hourly sweep found the object due (an ISO string). */
+  dueSince?: string;
+}
+
+/**
+ * Runs one fixity job. A sweep's job whose object was checked after the sweep found it due
+ * (a curator's "check this disc now" queued and done meanwhile) is not read again: a check
+ * already stands for that moment, and a second would only repeat it.
+ */
+export async function runFixityJob(
+  db: Kysely<Database>,
+  job: FixityJob,
+  opts: { worker?: string } = {},
+): Promise<FixityOutcome | "already checked"> {
+  if (job.dueSince) {
+    const since = await db
+      .selectFrom("fixity_checks")
+      .select("id")
+      .where("object_kind", "=", job.kind)
+      .where("object_id", "=", job.id)
+      .where("checked_at", ">=", new Date(job.dueSince))
+      .limit(1)
+      .executeTakeFirst();
+    if (since) return "already checked";
+  }
+  return checkObject(db, job.kind, job.id, opts);
+}
+
 export async function checkObject(
   db: Kysely<Database>,
   kind: StoredObjectKind,

@@ -7,6 +7,7 @@ import os from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
 import { afterAll, beforeAll, describe, expect, it, onTestFinished } from "vitest";
+import { runFixityJob } from "@/lib/fixity";
 import { api, appUrl, waitForMail } from "../support/app";
 import { damageStoredObject } from "../support/bucket";
 import { testDb } from "../support/db";
@@ -39,6 +40,30 @@ afterAll(async () => {
 });
 
 describe("fixity", () => {
+  it("does not check again, for the hourly sweep, an object checked since the sweep found it due", async () => {
+    const { sideIds } = await assignedDisc(c, `FS-${tag}`, ["A"]);
+    await chooseCurve(c, sideIds);
+    expect((await uploadTransfer(c, sideIds[0], flatTransfer(1, 4), "fs.wav")).done.status).toBe(201);
+    const { id } = await testDb
+      .selectFrom("transfers")
+      .select("id")
+      .where("side_id", "=", sideIds[0])
+      .executeTakeFirstOrThrow();
+    const checks = async () =>
+      (await testDb.selectFrom("fixity_checks").select("id").where("object_id", "=", id).execute()).length;
+    // The sweep finds the transfer due (never checked); a curator's check of the disc runs first.
+    const sweptAt = new Date(Date.now() - 1000).toISOString();
+    expect(await runFixityJob(testDb, { kind: "transfer", id })).toBe("pass");
+    expect(await checks()).toBe(1);
+    // The sweep's own job for it then stands on that check, and reads nothing again.
+    expect(await runFixityJob(testDb, { kind: "transfer", id, dueSince: sweptAt })).toBe("already checked");
+    expect(await checks()).toBe(1);
+    // A sweep that found it due after that check does read it again.
+    const later = new Date(Date.now() + 1000).toISOString();
+    expect(await runFixityJob(testDb, { kind: "transfer", id, dueSince: later })).toBe("pass");
+    expect(await checks()).toBe(2);
+  });
+
   it("finds an object altered in the bucket, raises an alert and mails the curators", async () => {
     const { discId, sideIds } = await assignedDisc(c, `FX-${tag}`, ["A"]);
     await chooseCurve(c, sideIds);

@@ -8,6 +8,7 @@
 import { useId, useMemo } from "react";
 import { useDropzone } from "react-dropzone";
 import { MeasurementEvidence } from "@/components/curves/measurement-evidence";
+import { FitParameterChoice, PointsKindChoice } from "@/components/curves/fit-choices";
 import {
   atCutSpeed,
   type CurveSpec,
@@ -30,14 +31,7 @@ export const emptyMeasurement: MeasurementDraft = {
   fit: ["turnover", "rolloff", "levelOffset"],
 };
 
-const FIT_CHOICES: [FitParameter, string][] = [
-  ["turnover", "Bass turnover"],
-  ["shelf", "Low-frequency shelf"],
-  ["rolloff", "Treble rolloff"],
-  ["highpass", "Rumble high-pass"],
-  ["ultrasonic", "Ultrasonic zero"],
-  ["levelOffset", "Level offset"],
-];
+const FIT_CHOICES: FitParameter[] = ["turnover", "shelf", "rolloff", "highpass", "ultrasonic", "levelOffset"];
 
 /** The fit as the browser works it out, shaped as the server will keep it; or why it cannot be made. */
 function tryFit(
@@ -126,45 +120,19 @@ export function MeasurementField({
         }
         data-testid="measurement-points"
       />
-      <div className="flex flex-wrap gap-4 text-sm">
-        {(
-          [
-            ["recording", "The recording characteristic"],
-            ["playback", "The playback curve"],
-          ] as const
-        ).map(([k, words]) => (
-          <label key={k} className="inline-flex items-center gap-2">
-            <input
-              type="radio"
-              name={`${uid}-kind`}
-              checked={value.pointsKind === k}
-              onChange={() => onChange({ ...value, pointsKind: k })}
-              className="accent-[#2f6f6a]"
-              data-testid={`measurement-kind-${k}`}
-            />
-            {words}
-          </label>
-        ))}
-      </div>
-      <div className="grid grid-cols-2 gap-x-4 gap-y-1 text-sm">
-        {FIT_CHOICES.map(([p, words]) => (
-          <label key={p} className="inline-flex items-center gap-2">
-            <input
-              type="checkbox"
-              checked={value.fit.includes(p)}
-              onChange={(e) =>
-                onChange({
-                  ...value,
-                  fit: e.target.checked ? [...value.fit, p] : value.fit.filter((x) => x !== p),
-                })
-              }
-              className="h-4 w-4 accent-[#2f6f6a]"
-              data-testid={`measurement-fit-${p}`}
-            />
-            {words}
-          </label>
-        ))}
-      </div>
+      <PointsKindChoice
+        name={`${uid}-kind`}
+        value={value.pointsKind}
+        onChange={(pointsKind) => onChange({ ...value, pointsKind })}
+        words={{ recording: "The recording characteristic", playback: "The playback curve" }}
+        testId={(k) => `measurement-kind-${k}`}
+      />
+      <FitParameterChoice
+        parameters={FIT_CHOICES}
+        value={value.fit}
+        onChange={(fit) => onChange({ ...value, fit })}
+        testId={(p) => `measurement-fit-${p}`}
+      />
       {errors.length ? <p className="text-xs font-medium text-alarm">{errors.join(" ")}</p> : null}
       {problem ? (
         <p className="text-xs font-medium text-alarm" data-testid="measurement-problem">

@@ -22,17 +22,10 @@ import {
   PointsParseError,
   RIAA_SPEC,
 } from "@/lib/curves";
+import { FitParameterChoice, fitParameterLabels, PointsKindChoice } from "./fit-choices";
 import { formatHz, formatNumber, formatSigned } from "./plot-format";
 import { SmallPlotGrid } from "./small-plot-grid";
 
-const PARAM_LABEL: Record<FitParameter, string> = {
-  turnover: "Turnover",
-  shelf: "Shelf",
-  rolloff: "Rolloff",
-  highpass: "High-pass",
-  ultrasonic: "Ultrasonic zero",
-  levelOffset: "Level offset",
-};
 const PARAMS: FitParameter[] = ["turnover", "shelf", "rolloff", "highpass", "ultrasonic", "levelOffset"];
 
 /** A recording table worked out from the RIAA time constants, to show the format and try the fit. */
@@ -110,15 +103,12 @@ export function FitPanel({
       onPoints({ points: points.map((p) => ({ hz: p.hz, db: sign * p.db })), label: "Points (not fitted)" });
       const message = err instanceof Error ? err.message : String(err);
       const where =
-        err instanceof CurveError && err.parameter in PARAM_LABEL
-          ? ` (${PARAM_LABEL[err.parameter as FitParameter]})`
+        err instanceof CurveError && err.parameter in fitParameterLabels
+          ? ` (${fitParameterLabels[err.parameter as FitParameter]})`
           : "";
       setError({ title: `The fit cannot determine the curve${where}`, message });
     }
   };
-
-  const toggle = (p: FitParameter, on: boolean) =>
-    setParams((cur) => (on ? [...cur, p] : cur.filter((x) => x !== p)));
 
   return (
     <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,1.15fr)]" data-testid="fit-panel">
@@ -174,45 +164,24 @@ export function FitPanel({
 
         <fieldset>
           <legend className="mb-1.5 text-sm font-medium">The table gives</legend>
-          <div className="flex flex-wrap gap-4 text-sm">
-            {(
-              [
-                ["recording", "the recording characteristic (cut)"],
-                ["playback", "the playback curve"],
-              ] as const
-            ).map(([v, words]) => (
-              <label key={v} className="inline-flex items-center gap-2">
-                <input
-                  type="radio"
-                  name={`${id}-kind`}
-                  value={v}
-                  checked={kind === v}
-                  onChange={() => setKind(v)}
-                  className="accent-[#2f6f6a]"
-                  data-testid={`fit-kind-${v}`}
-                />
-                {words}
-              </label>
-            ))}
-          </div>
+          <PointsKindChoice
+            name={`${id}-kind`}
+            value={kind}
+            onChange={setKind}
+            words={{ recording: "the recording characteristic (cut)", playback: "the playback curve" }}
+            testId={(k) => `fit-kind-${k}`}
+          />
         </fieldset>
 
         <fieldset>
           <legend className="mb-1.5 text-sm font-medium">Fit these; keep the rest as in the editor</legend>
-          <div className="grid grid-cols-2 gap-x-4 gap-y-1.5 text-sm sm:grid-cols-3">
-            {PARAMS.map((p) => (
-              <label key={p} className="inline-flex items-center gap-2">
-                <input
-                  type="checkbox"
-                  checked={params.includes(p)}
-                  onChange={(e) => toggle(p, e.target.checked)}
-                  className="h-4 w-4 accent-[#2f6f6a]"
-                  data-testid={`fit-param-${p}`}
-                />
-                {PARAM_LABEL[p]}
-              </label>
-            ))}
-          </div>
+          <FitParameterChoice
+            parameters={PARAMS}
+            value={params}
+            onChange={setParams}
+            className="grid grid-cols-2 gap-x-4 gap-y-1.5 text-sm sm:grid-cols-3"
+            testId={(p) => `fit-param-${p}`}
+          />
         </fieldset>
 
         <Button type="button" onClick={run} disabled={!text.trim()} data-testid="fit-run">
@@ -289,7 +258,7 @@ function FitResultView({ result, onLoad }: { result: FitResult; onLoad: () => vo
         <tbody className="font-mono">
           {result.corners.map((c) => (
             <tr key={c.parameter} className="border-t border-paper-edge/70">
-              <td className="py-1 pr-2 font-sans">{PARAM_LABEL[c.parameter]}</td>
+              <td className="py-1 pr-2 font-sans">{fitParameterLabels[c.parameter]}</td>
               <td className="py-1 pr-2 text-right">{formatNumber(c.tauUs, 5)}</td>
               <td className="py-1 pr-2 text-right">{formatNumber(c.hz, 5)}</td>
               <td className="py-1 pr-2 text-right">{c.db10k !== undefined ? c.db10k.toFixed(2) : ""}</td>

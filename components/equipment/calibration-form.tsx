@@ -13,16 +13,11 @@ import { Notice } from "@/components/ui/notice";
 import { usePresets } from "@/hooks/use-presets";
 import { type CurvePoint, type CurveSpec, parsePointsCsv, RIAA_SPEC } from "@/lib/curves";
 import { calibrationFitParameters, RIAA_CALIBRATION_NAME } from "@/lib/validation/equipment";
+import { FitParameterChoice, PointsKindChoice } from "@/components/curves/fit-choices";
 import { CalibrationPlots, calibrationFits } from "./calibration-plots";
 import { useSave } from "./use-save";
 
 type Param = (typeof calibrationFitParameters)[number];
-const PARAM_LABEL: Record<Param, string> = {
-  turnover: "Turnover",
-  shelf: "Shelf",
-  rolloff: "Rolloff",
-  levelOffset: "Level offset",
-};
 const RIAA = "riaa";
 
 export function CalibrationForm({ chainId, onDone }: { chainId: string; onDone?: () => void }) {
@@ -133,41 +128,24 @@ export function CalibrationForm({ chainId, onDone }: { chainId: string; onDone?:
         <div className="space-y-3 text-sm">
           <fieldset>
             <legend className="mb-1 font-medium">The points give</legend>
-            {(
-              [
-                ["recording", "the chain's flat output (the disc's recording characteristic)"],
-                ["playback", "a playback curve"],
-              ] as const
-            ).map(([v, words]) => (
-              <label key={v} className="flex items-center gap-2">
-                <input
-                  type="radio"
-                  name={`${uid}-kind`}
-                  checked={pointsKind === v}
-                  onChange={() => setPointsKind(v)}
-                  className="accent-[#2f6f6a]"
-                />
-                {words}
-              </label>
-            ))}
+            <PointsKindChoice
+              name={`${uid}-kind`}
+              value={pointsKind}
+              onChange={setPointsKind}
+              words={{
+                recording: "the chain's flat output (the disc's recording characteristic)",
+                playback: "a playback curve",
+              }}
+            />
           </fieldset>
           <fieldset>
             <legend className="mb-1 font-medium">Fit these; keep the rest as the expected curve</legend>
-            <div className="flex flex-wrap gap-4">
-              {calibrationFitParameters.map((p) => (
-                <label key={p} className="inline-flex items-center gap-2">
-                  <input
-                    type="checkbox"
-                    checked={params.includes(p)}
-                    onChange={(e) =>
-                      setParams((cur) => (e.target.checked ? [...cur, p] : cur.filter((x) => x !== p)))
-                    }
-                    className="h-4 w-4 accent-[#2f6f6a]"
-                  />
-                  {PARAM_LABEL[p]}
-                </label>
-              ))}
-            </div>
+            <FitParameterChoice
+              parameters={calibrationFitParameters}
+              value={params}
+              onChange={setParams}
+              className="flex flex-wrap gap-4"
+            />
             {field("fit") ? <p className="text-xs font-medium text-alarm">{field("fit").join(" ")}</p> : null}
           </fieldset>
           <TextField

@@ -2,6 +2,7 @@
 // database and no framework, so the importer, the exporter and the unit tests share it.
 // The importer on the server (lib/catalogue/csv.ts) adds what needs the database:
 // accession identifiers and shelf marks already in the catalogue.
+import { hash } from "node:crypto";
 import Papa from "papaparse";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
@@ -102,6 +103,10 @@ export const catalogueColumnSpecs = [
     name: "version",
     hint: "The disc's version when it was exported: leave it as it is. Empty for a new disc.",
   },
+  {
+    name: "row_check",
+    hint: "Written by the export so an import knows the disc's rows were left as they were: leave it as it is. Empty for a new disc.",
+  },
 ] as const satisfies readonly ColumnSpec[];
 
 export type CatalogueColumn = (typeof catalogueColumnSpecs)[number]["name"];
@@ -145,6 +150,8 @@ export interface SheetRow {
   row: number;
   key: string;
   cells: string[];
+  /** The cells joined by `cellSeparator`, when the file's cells hold no separator (see `readCatalogueCsv`). */
+  text?: string;
 }
 
 /** A row's cells by column name. */
@@ -164,6 +171,8 @@ export interface ReadSheet {
   errors: ImportError[];
   /** The columns the header names (a column it leaves out reads as empty cells). */
   columns: CatalogueColumn[];
+  /** The accession identifiers the rows name (trimmed, lower case), each once. */
+  accessions: string[];
   delimiter: Delimiter;
 }
 
@@ -285,32 +294,166 @@ function csvParseProblem(e: Papa.ParseError, text: string): ImportError {
 const isBlank = (cells: string[]) => cells.every((c) => c.trim() === "");
 
 /**
+ * A row as read: its cells kept as one text, joined by `cellSeparator`, when no cell of
+ * the file can hold a separator; split into cells only when asked for. A file brought
+ * back as exported is then checked row by row against the check its export wrote
+ * (`checkedVersions`), without a cell of it being kept apart.
+ */
+class ReadRow implements SheetRow {
+  #cells: string[] | undefined;
+  constructor(
+    readonly row: number,
+    readonly key: string,
+    readonly text: string,
+  ) {}
+  get cells(): string[] {
+    return (this.#cells ??= this.text.split(cellSeparator));
+  }
+}
+
+/**
  * Reads the text of a catalogue CSV into rows keyed by column. Checks the header
  * (unknown, repeated and missing columns), the number of fields on each row and the
  * row limit; the values themselves are checked by `buildDiscs`. Blank rows are skipped
  * but still counted, so row numbers match what a spreadsheet shows.
+ *
+ * The parser hands the rows over a part of the file at a time, and each part's cells are
+ * let go once its rows are kept (see `ReadRow`): a file of thousands of rows never holds
+ * all of its cells apart at once.
  */
 export function readCatalogueCsv(text: string): ReadSheet {
   const delimiter = detectDelimiter(text);
-  const none = { rows: [], columns: [], delimiter };
+  const none = { rows: [], columns: [], accessions: [], delimiter };
   // RFC 4180 fields: quoted fields may hold separators, doubled quotes and line breaks.
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
-  const parsed = Papa.parse<string[]>(body, {
+  // A row is kept as one text only when no cell can hold the separators it is joined by.
+  const joinable = body.indexOf(cellSeparator) < 0 && body.indexOf(rowSeparator) < 0;
+
+  // Set from the parser's callback (kept in an object: the compiler does not follow the callback).
+  const state = { header: null as string[] | null, problem: null as ImportError | null };
+  let headerErrors: ImportError[] = [];
+  /** Unnamed header columns, and those of them a row has a value in. */
+  const unnamed: number[] = [];
+  const unnamedWithValues = new Set<number>();
+  let columnAt: number[] = [];
+  let inOrder = false;
+  let records = 0;
+  let filled = 0;
+  const rows: SheetRow[] = [];
+  const rowErrors: ImportError[] = [];
+  const accessions = new Set<string>();
+  const accessionAt = columnIndex.accession;
+
+  const takeHeader = (cells: string[]) => {
+    const header = cells.map((h) => h.trim().toLowerCase());
+    state.header = header;
+    const known = new Set<string>(catalogueColumns);
+    const at = new Map<string, number>();
+    const errors: ImportError[] = [];
+    header.forEach((name, i) => {
+      if (name === "") {
+        unnamed.push(i);
+        // Its place among the header's errors, kept once a row has a value in it.
+        errors.push({ row: 1, column: `column ${i + 1}`, message: "" });
+        return;
+      }
+      if (!known.has(name)) {
+        errors.push({
+          row: 1,
+          column: name,
+          message: `Unknown column “${name}”. The columns are: ${catalogueColumns.join(", ")}.`,
+        });
+      } else if (at.has(name)) {
+        errors.push({
+          row: 1,
+          column: name,
+          message: `Column ${name} appears twice in the header (columns ${at.get(name)! + 1} and ${i + 1}).`,
+        });
+      } else {
+        at.set(name, i);
+      }
+    });
+    for (const c of specs) {
+      if (c.required && !at.has(c.name))
+        errors.push({
+          row: 1,
+          column: c.name,
+          message: `The header has no ${c.name} column; it is required.`,
+        });
+    }
+    headerErrors = errors;
+    columnAt = catalogueColumns.map((name) => at.get(name) ?? -1);
+    // A header in the export's own order (the usual case: a file exported and brought back)
+    // lets each row keep the parser's array of cells rather than be copied into another.
+    inOrder = header.length >= columnAt.length && columnAt.every((at, i) => at === i);
+  };
+  const faultyHeader = () => headerErrors.some((e) => e.message !== "");
+
+  const takeRow = (cells: string[], row: number) => {
+    const width = state.header!.length;
+    for (const i of unnamed) if ((cells[i] ?? "").trim() !== "") unnamedWithValues.add(i);
+    // Rows past the limit are only counted; a faulty header keeps none.
+    if (++filled > maxImportRows || faultyHeader()) return;
+    if (cells.length > width && cells.slice(width).some((c) => c.trim() !== "")) {
+      rowErrors.push({
+        row,
+        column: "",
+        message:
+          `This row has ${cells.length} fields but the header names ${width} columns. ` +
+          `Check for an unquoted ${delimiter === "\t" ? "tab" : delimiter === ";" ? "semicolon" : "comma"}.`,
+      });
+      return;
+    }
+    let own: string[];
+    if (inOrder) {
+      own = cells;
+      own.length = columnAt.length;
+      for (let c = 0; c < own.length; c++) own[c] = unprotectFormula(own[c] ?? "");
+    } else {
+      own = new Array<string>(columnAt.length);
+      for (let c = 0; c < columnAt.length; c++)
+        own[c] = columnAt[c] < 0 ? "" : unprotectFormula(cells[columnAt[c]] ?? "");
+    }
+    const key = own[shelfMarkAt].trim().toLowerCase();
+    const accession = own[accessionAt].trim().toLowerCase();
+    if (accession) accessions.add(accession);
+    rows.push(joinable ? new ReadRow(row, key, own.join(cellSeparator)) : { row, key, cells: own });
+  };
+
+  Papa.parse<string[]>(body, {
     delimiter,
     quoteChar: '"',
     escapeChar: '"',
     skipEmptyLines: false,
+    chunkSize: readChunkChars,
+    chunk: (result: Papa.ParseResult<string[]>, parser: Papa.Parser) => {
+      // The parser numbers a part's rows from 0: its first is the file's record `records`.
+      const base = records;
+      const fault = result.errors[0];
+      const end = fault ? (fault.row ?? 0) : result.data.length;
+      for (let i = 0; i < end; i++) {
+        const cells = result.data[i];
+        const index = records++;
+        if (state.header === null) takeHeader(cells);
+        else if (!isBlank(cells)) takeRow(cells, index + 1);
+      }
+      if (fault) {
+        state.problem = csvParseProblem({ ...fault, row: base + (fault.row ?? 0) }, body);
+        parser.abort();
+      }
+    },
+    // Parsing a text is synchronous: the rows are all read when parse returns.
+    complete: () => undefined,
   });
-  if (parsed.errors.length) return { ...none, errors: [csvParseProblem(parsed.errors[0], body)] };
-  const records = parsed.data;
-  // A file that ends in blank lines has no rows there.
-  while (records.length && isBlank(records[records.length - 1])) records.pop();
-  if (!records.length)
+  const { header, problem } = state;
+  if (problem) return { ...none, errors: [problem] };
+  // Nothing but blank lines (or nothing at all).
+  if (header === null || (filled === 0 && isBlank(header)))
     return {
       ...none,
       errors: [{ row: 1, column: "", message: "The file is empty: the first row must name the columns." }],
     };
-  const other = records[0].length === 1 ? /[|:^]/.exec(records[0][0]) : null;
+  const other = header.length === 1 ? /[|:^]/.exec(header[0]) : null;
   if (other)
     return {
       ...none,
@@ -324,48 +467,14 @@ export function readCatalogueCsv(text: string): ReadSheet {
         },
       ],
     };
-
-  const errors: ImportError[] = [];
-  const header = records[0].map((h) => h.trim().toLowerCase());
-  const known = new Set<string>(catalogueColumns);
-  const at = new Map<string, number>();
-  header.forEach((name, i) => {
-    if (name === "") {
-      if (records.some((r, j) => j > 0 && (r[i] ?? "").trim() !== ""))
-        errors.push({
-          row: 1,
-          column: `column ${i + 1}`,
-          message: `Column ${i + 1} has values but no name in the header.`,
-        });
-      return;
-    }
-    if (!known.has(name)) {
-      errors.push({
-        row: 1,
-        column: name,
-        message: `Unknown column “${name}”. The columns are: ${catalogueColumns.join(", ")}.`,
-      });
-    } else if (at.has(name)) {
-      errors.push({
-        row: 1,
-        column: name,
-        message: `Column ${name} appears twice in the header (columns ${at.get(name)! + 1} and ${i + 1}).`,
-      });
-    } else {
-      at.set(name, i);
-    }
+  const errors = headerErrors.flatMap((e) => {
+    if (e.message) return [e];
+    const i = Number(e.column.slice("column ".length)) - 1;
+    return unnamedWithValues.has(i)
+      ? [{ ...e, message: `Column ${i + 1} has values but no name in the header.` }]
+      : [];
   });
-  for (const c of specs) {
-    if (c.required && !at.has(c.name))
-      errors.push({ row: 1, column: c.name, message: `The header has no ${c.name} column; it is required.` });
-  }
   if (errors.length) return { ...none, errors };
-
-  const dataRows = records.length - 1;
-  // Which rows are blank, worked out once: they are skipped but still counted.
-  const blank = records.map(isBlank);
-  let filled = 0;
-  for (let i = 1; i <= dataRows; i++) if (!blank[i]) filled++;
   if (filled > maxImportRows) {
     return {
       ...none,
@@ -385,40 +494,17 @@ export function readCatalogueCsv(text: string): ReadSheet {
       ...none,
       errors: [{ row: 2, column: "", message: "The file has a header but no rows under it." }],
     };
-
-  const columnAt = catalogueColumns.map((name) => at.get(name) ?? -1);
-  // A header in the export's own order (the usual case: a file exported and brought back)
-  // lets each row keep the parser's array of cells rather than be copied into another.
-  const inOrder = header.length >= columnAt.length && columnAt.every((at, i) => at === i);
-  const rows: SheetRow[] = [];
-  for (let i = 1; i <= dataRows; i++) {
-    const cells = records[i];
-    const row = i + 1;
-    if (blank[i]) continue;
-    if (cells.length > header.length && cells.slice(header.length).some((c) => c.trim() !== "")) {
-      errors.push({
-        row,
-        column: "",
-        message:
-          `This row has ${cells.length} fields but the header names ${header.length} columns. ` +
-          `Check for an unquoted ${delimiter === "\t" ? "tab" : delimiter === ";" ? "semicolon" : "comma"}.`,
-      });
-      continue;
-    }
-    let own: string[];
-    if (inOrder) {
-      own = cells;
-      own.length = columnAt.length;
-      for (let c = 0; c < own.length; c++) own[c] = unprotectFormula(own[c] ?? "");
-    } else {
-      own = new Array<string>(columnAt.length);
-      for (let c = 0; c < columnAt.length; c++)
-        own[c] = columnAt[c] < 0 ? "" : unprotectFormula(cells[columnAt[c]] ?? "");
-    }
-    rows.push({ row, key: own[shelfMarkAt].trim().toLowerCase(), cells: own });
-  }
-  return { rows, errors, columns: catalogueColumns.filter((c) => at.has(c)), delimiter };
+  return {
+    rows,
+    errors: rowErrors,
+    columns: catalogueColumns.filter((_, i) => columnAt[i] >= 0),
+    accessions: [...accessions],
+    delimiter,
+  };
 }
+
+/** How much of the file the parser reads at a time, in characters (`readCatalogueCsv`). */
+const readChunkChars = 64 * 1024;
 
 // ---------------------------------------------------------------------------------
 // Checking rows and grouping them into discs
@@ -785,29 +871,59 @@ export type ExportDisc = Omit<StoredDisc, "accessionId"> & {
 const cell = (v: unknown): string =>
   v === null || v === undefined ? "" : Array.isArray(v) ? v.join(";") : valueText(v);
 
-/** The cells of one disc's rows, by column: one row per side, or one with empty side columns. */
-function cellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
+/**
+ * The cells of one disc's rows, by column: one row per side, or one with empty side
+ * columns. A catalogued disc's rows carry its check (`rowCheckOf`); a template's do not.
+ */
+function cellsOf(d: ExportDisc, withCheck = true): Record<CatalogueColumn, string>[] {
   const sides: (StoredSide | null)[] = d.sides.length ? d.sides : [null];
-  return sides.map((side) => {
+  const rows = sides.map((side) => {
     const values = {} as Record<CatalogueColumn, string>;
     for (const c of specs) values[c.name as CatalogueColumn] = exportedCell(d, side, c);
     return values;
   });
+  if (withCheck && d.version !== null && d.version !== undefined) {
+    const check = rowCheckOf(rows.map(checkedText));
+    for (const r of rows) r.row_check = check;
+  }
+  return rows;
 }
 
 /** One cell as the export writes it: the disc's column, its side's (empty without a side), or the version. */
 function exportedCell(d: ExportDisc, side: StoredSide | null, c: ColumnSpec): string {
   if (c.disc) return c.disc === "accessionId" ? d.accessionIdentifier : cell(d[c.disc]);
   if (c.side) return side ? cell(side[c.side]) : "";
-  return cell(d.version);
+  return c.name === "version" ? cell(d.version) : "";
+}
+
+const rowCheckAt = columnIndex.row_check;
+
+/** A row's cells but its check, in the columns' order, joined by `cellSeparator`: what the check covers. */
+function checkedText(values: Record<CatalogueColumn, string>): string {
+  let text = values[catalogueColumns[0]];
+  for (let i = 1; i < catalogueColumns.length; i++)
+    if (i !== rowCheckAt) text += cellSeparator + values[catalogueColumns[i]];
+  return text;
+}
+
+/**
+ * A disc's row check: the first 96 bits of the SHA-256 of its rows' cells (the check's
+ * own aside), the rows joined by `rowSeparator`, in URL-safe base64 after a letter (so no
+ * spreadsheet reads it as a number or a date). The export writes it on each of the disc's
+ * rows; an import that finds it still matching the rows knows they were left as exported,
+ * and asks the database only whether the disc is still at that version (`checkedVersions`).
+ * It seals nothing: a person who rewrites it only keeps their own edit from being read.
+ */
+function rowCheckOf(rowTexts: readonly string[]): string {
+  return `k${hash("sha256", rowTexts.length === 1 ? rowTexts[0] : rowTexts.join(rowSeparator), "base64url").slice(0, 16)}`;
 }
 
 const storedCells = new WeakMap<ExportDisc, Record<CatalogueColumn, string>[]>();
 
-/** cellsOf for a catalogued disc, written out once however many of the file's rows update it. */
+/** cellsOf for a catalogued disc, written out once however many of the file's rows update it (its fields: no check). */
 function storedCellsOf(d: ExportDisc): Record<CatalogueColumn, string>[] {
   let cells = storedCells.get(d);
-  if (!cells) storedCells.set(d, (cells = cellsOf(d)));
+  if (!cells) storedCells.set(d, (cells = cellsOf(d, false)));
   return cells;
 }
 
@@ -834,7 +950,10 @@ export function setAsideUnchanged(
 ): UnchangedSplit {
   if (!columns.includes("version")) return { rows: sheet, discs: 0, rowCount: 0 };
   const present = new Set<string>(columns);
-  const compared = catalogueColumnSpecs.flatMap((c, i) => (present.has(c.name) ? [{ spec: c, at: i }] : []));
+  // The check is no field: a disc is as exported when its fields are, whatever the check says.
+  const compared = catalogueColumnSpecs.flatMap((c, i) =>
+    present.has(c.name) && c.name !== "row_check" ? [{ spec: c, at: i }] : [],
+  );
   return splitUnchanged(sheet, (first, end) => {
     const known = existing(sheet[first].key);
     if (known === undefined || Math.max(1, known.sides.length) !== end - first) return false;
@@ -851,7 +970,7 @@ export function setAsideUnchanged(
  * shelf mark: taking it out would join them, and their repeat would go unreported.
  */
 function splitUnchanged(
-  sheet: SheetRow[],
+  sheet: readonly SheetRow[],
   asExported: (first: number, end: number) => boolean,
 ): UnchangedSplit {
   // Groups as [first, end) ranges of `sheet`.
@@ -882,109 +1001,66 @@ function splitUnchanged(
   return split;
 }
 
-/**
- * A catalogued disc's cells as the export writes them, put together by the database
- * (lib/catalogue/records.ts's `readExportedCellsByShelfMarks`).
- */
-export interface ExportedCellsText {
-  /** The disc's columns (shelf_mark to handling_notes) separated by `cellSeparator`. */
-  disc: string;
-  /** The side columns of each side, separated by `cellSeparator`, the sides by `rowSeparator`; null without sides. */
-  sides: string | null;
-  sideCount: number;
-  version: string;
-}
 export const cellSeparator = "\x1f";
 export const rowSeparator = "\x1e";
-const cellSep = 0x1f;
-const rowSep = 0x1e;
-const discColumnCount = discColumnNames.length;
-const versionAt = columnIndex.version;
 
-/**
- * Where `cells[from..to)`, separated by `cellSeparator`, end in `text` when it holds
- * them from `at` on, followed by `end` (a separator's code, or -1 for the end of the
- * text); -1 when it does not.
- */
-function cellsEndIn(
-  cells: readonly string[],
-  from: number,
-  to: number,
-  text: string,
-  at: number,
-  end: number,
-): number {
-  for (let c = from; c < to; c++) {
-    const cell = cells[c];
-    if (!text.startsWith(cell, at)) return -1;
-    at += cell.length;
-    const next = c + 1 < to ? cellSep : end;
-    if (next < 0 ? at !== text.length : text.charCodeAt(at) !== next) return -1;
-    at++;
-  }
-  return at;
-}
-
-/** How many times a character's code occurs in a text. */
-function occurrences(text: string, code: number): number {
-  const ch = String.fromCharCode(code);
-  let n = 0;
-  for (let i = text.indexOf(ch); i !== -1; i = text.indexOf(ch, i + 1)) n++;
-  return n;
+/** What `checkedVersions` finds of a shelf mark: the version its rows were exported at, when they still match their check; else "". */
+export interface CheckedVersion {
+  key: string;
+  version: string;
 }
 
 /**
- * Whether a group of rows (every column present) is, cell for cell, the export of the
- * disc the database put together as text. The texts match only when each of the rows'
- * cells sits at its place between the separators; once they match, counting the
- * separators tells whether a stored cell holds one of them itself (then nothing is
- * said here, and the disc is compared field by field like any other).
+ * For a file whose rows carry the version and the check the export wrote: each shelf mark
+ * the file names, with the version its rows were exported at when they still match their
+ * row check (every row of the disc, in the exported order, none edited), or "" when not
+ * (edited, no check, a new disc, or a shelf mark in more than one group of rows, which
+ * `splitUnchanged` never sets aside). The database then says which discs are still at
+ * that version (records.ts's `readDiscFieldsUnlessAtVersion`): those changed nothing. Null
+ * for a file without the two columns or with a separator in a cell (`readCatalogueCsv`):
+ * its discs are compared field by field.
  */
-function groupAsExportedText(
+export function checkedVersions(
   sheet: readonly SheetRow[],
-  first: number,
-  end: number,
-  e: ExportedCellsText,
-): boolean {
-  const n = end - first;
-  if (n !== Math.max(1, e.sideCount)) return false;
-  let at = 0;
-  for (let i = first; i < end; i++) {
-    const cells = sheet[i].cells;
-    if (cells[versionAt] !== e.version) return false;
-    if (cellsEndIn(cells, 0, discColumnCount, e.disc, 0, -1) < 0) return false;
-    if (e.sides === null) {
-      for (let c = discColumnCount; c < versionAt; c++) if (cells[c] !== "") return false;
-    } else {
-      at = cellsEndIn(cells, discColumnCount, versionAt, e.sides, at, i + 1 < end ? rowSep : -1);
-      if (at < 0) return false;
-    }
-  }
-  const sideColumnCount = versionAt - discColumnCount;
-  return (
-    occurrences(e.disc, cellSep) === discColumnCount - 1 &&
-    (e.sides === null ||
-      (occurrences(e.sides, rowSep) === n - 1 && occurrences(e.sides, cellSep) === n * (sideColumnCount - 1)))
-  );
+  columns: readonly CatalogueColumn[],
+): CheckedVersion[] | null {
+  if (
+    !columns.includes("version") ||
+    !columns.includes("row_check") ||
+    !sheet.length ||
+    sheet[0].text === undefined
+  )
+    return null;
+  const versions = new Map<string, string>();
+  splitUnchanged(sheet, (first, end) => {
+    versions.set(sheet[first].key, versionIfUnedited(sheet, first, end));
+    return false;
+  });
+  for (const r of sheet) if (r.key && !versions.has(r.key)) versions.set(r.key, "");
+  return [...versions].map(([key, version]) => ({ key, version }));
 }
 
-/**
- * `setAsideUnchanged` for a file with every column, against the export's cells as the
- * database wrote them: nothing of a stored disc is read into fields. A disc whose
- * stored cells cannot be told apart this way (one holds a separator) stays in, for
- * `setAsideUnchanged` to compare field by field; so do discs that are not in the
- * catalogue, edited, or not as exported, and every shelf mark in more than one group.
- */
-export function setAsideAsExportedText(
-  sheet: SheetRow[],
-  exported: (shelfMarkKey: string) => ExportedCellsText | undefined,
-  columns: readonly CatalogueColumn[],
-): UnchangedSplit {
-  if (columns.length !== catalogueColumns.length) return { rows: sheet, discs: 0, rowCount: 0 };
-  return splitUnchanged(sheet, (first, end) => {
-    const e = exported(sheet[first].key);
-    return e !== undefined && groupAsExportedText(sheet, first, end, e);
-  });
+/** The version a disc's rows (kept as text, the check last) were exported at, when they match their check; else "". */
+function versionIfUnedited(sheet: readonly SheetRow[], first: number, end: number): string {
+  const head = sheet[first].text!;
+  const cut = head.lastIndexOf(cellSeparator);
+  const check = head.slice(cut + 1);
+  const version = head.slice(head.lastIndexOf(cellSeparator, cut - 1) + 1, cut);
+  if (check === "" || !/^[1-9][0-9]{0,9}$/.test(version)) return "";
+  // Every row ends in the same version and check (their own separators included).
+  const tail = head.slice(cut - version.length - 1);
+  const texts = [head.slice(0, cut)];
+  for (let i = first + 1; i < end; i++) {
+    const text = sheet[i].text!;
+    if (!text.endsWith(tail)) return "";
+    texts.push(text.slice(0, text.length - check.length - 1));
+  }
+  return rowCheckOf(texts) === check ? version : "";
+}
+
+/** Sets aside the discs the database found still at the version their unedited rows carry (`checkedVersions`). */
+export function setAsideAsExported(sheet: SheetRow[], asExported: ReadonlySet<string>): UnchangedSplit {
+  return splitUnchanged(sheet, (first) => asExported.has(sheet[first].key));
 }
 
 /**

@@ -15,8 +15,6 @@ import {
 import {
   type BuiltDisc,
   buildDiscs,
-  catalogueColumns,
-  columnIndex,
   decodeCsv,
   type DiscChanges,
   discChanges,
@@ -27,11 +25,11 @@ import {
   type ImportError,
   maxListedErrors,
   readCatalogueCsv,
-  setAsideAsExportedText,
+  checkedVersions,
+  setAsideAsExported,
   setAsideUnchanged,
   summariseDisc,
   toCatalogueCsv,
-  type UnchangedSplit,
 } from "./csv-format";
 import { insertDiscs, writeDiscEdit } from "./discs";
 import { listDiscIds } from "./list-query";
@@ -39,8 +37,8 @@ import {
   type DiscFieldsRecord,
   type DiscRecord,
   readDiscFieldsByShelfMarks,
+  readDiscFieldsUnlessAtVersion,
   readDiscs,
-  readExportedCellsByShelfMarks,
 } from "./records";
 
 // The catalogue's spreadsheet import and export against the database. The file's format
@@ -174,27 +172,22 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
 
   // The discs the file's shelf marks name (the unique index is on lower(shelf_mark)), asked
   // for as soon as the rows are read: the file's hash is worked out and the accessions are
-  // looked up while the database reads them. A file with every column (an export brought
-  // back) is first compared with the export's cells as the database writes them, and only
-  // the discs left over are read field by field; any other file reads them all so.
-  const marks: string[] = [];
-  for (const r of read.rows) if (r.key) marks.push(r.key);
-  const everyColumn = read.columns.length === catalogueColumns.length;
-  const reading = everyColumn
-    ? readExportedCellsByShelfMarks(db, marks)
-    : readDiscFieldsByShelfMarks(db, marks);
+  // looked up while the database reads them. In an export brought back, a disc whose rows
+  // still match the check the export wrote is only asked whether it is still at the version
+  // they carry (then it changed nothing); the rest are read, and compared field by field.
+  const versions = checkedVersions(read.rows, read.columns);
+  const reading = versions
+    ? readDiscFieldsUnlessAtVersion(db, versions)
+    : readDiscFieldsByShelfMarks(
+        db,
+        read.rows.flatMap((r) => (r.key ? [r.key] : [])),
+      ).then((records) => ({ atVersion: new Set<string>(), records }));
   // Settled either way, so a refusal below never leaves it unhandled.
   reading.catch(() => undefined);
   const sha256 = createHash("sha256").update(upload.bytes).digest("hex");
 
   // Accessions: the ones the file names, by identifier, and the default one.
-  const accessionAt = columnIndex.accession;
-  const identifierSet = new Set<string>();
-  for (const r of read.rows) {
-    const identifier = r.cells[accessionAt].trim().toLowerCase();
-    if (identifier) identifierSet.add(identifier);
-  }
-  const identifiers = [...identifierSet];
+  const identifiers = read.accessions;
   const known = new Map<string, { id: string; identifier: string }>();
   let defaultIdentifier = "";
   if (identifiers.length || defaultAccession) {
@@ -219,18 +212,10 @@ async function check(upload: Upload, options: ImportOptions): Promise<Checked> {
 
   // A disc brought back as exported changes nothing: it is counted, not checked again.
   // A stored disc's record reads as the rows an export of it writes (its ids aside).
-  const stored = await reading;
-  let records: DiscFieldsRecord[];
-  let asText: UnchangedSplit = { rows: read.rows, discs: 0, rowCount: 0 };
-  if (stored instanceof Map) {
-    asText = setAsideAsExportedText(read.rows, (key) => stored.get(key), read.columns);
-    // The rows set aside are done with: let them go before the rest is read and checked (a
-    // garbage collection meanwhile then has only the rows left over to keep).
-    read.rows = [];
-    const left: string[] = [];
-    for (const r of asText.rows) if (r.key) left.push(r.key);
-    records = await readDiscFieldsByShelfMarks(db, left);
-  } else records = stored;
+  const { atVersion, records } = await reading;
+  const asText = setAsideAsExported(read.rows, atVersion);
+  // The rows set aside are done with: let them go before the rest is checked.
+  read.rows = [];
   const byMark = new Map(records.map((d) => [d.shelfMark.toLowerCase(), d]));
   const asFields = setAsideUnchanged(asText.rows, (key) => byMark.get(key), read.columns);
   const asExported = {

@@ -62,82 +62,83 @@ export type DiscFieldsRecord = StoredDisc & {
 export async function readDiscFieldsByShelfMarks(db: Db, shelfMarks: string[]): Promise<DiscFieldsRecord[]> {
   const marks = [...new Set(shelfMarks.map((m) => m.toLowerCase()))];
   if (!marks.length) return [];
-  const discs = await selectDiscFields(db)
-    .select(
-      sql<DiscFieldsRecord["sides"]>`(
+  const discs = await selectDiscFieldsWithSides(db)
+    .where(sql<boolean>`lower(d.shelf_mark) = ANY(${marks}::text[])`)
+    .execute();
+  return discs.map(toFieldsRecord);
+}
+
+/** The fields of discs and, as one JSON list per disc, their sides' (in the order of their designations). */
+function selectDiscFieldsWithSides(db: Db) {
+  return selectDiscFields(db).select(
+    sql<DiscFieldsRecord["sides"]>`(
         SELECT coalesce(json_agg(json_build_object(
                  'id', s.id, 'designation', s.designation, 'matrixNumber', s.matrix_number, 'take', s.take,
                  'title', s.title, 'performers', s.performers, 'notes', s.notes) ORDER BY lower(s.designation)), '[]'::json)
         FROM sides s WHERE s.disc_id = d.id)`.as("sides"),
-    )
-    .where(sql<boolean>`lower(d.shelf_mark) = ANY(${marks}::text[])`)
-    .execute();
-  const out: DiscFieldsRecord[] = [];
-  for (const d of discs) {
-    const record = d as unknown as DiscFieldsRecord;
-    setNumbers(record, d);
-    out.push(record);
-  }
-  return out;
-}
-
-/**
- * A catalogued disc's cells as the export writes them (lib/catalogue/csv-format.ts's
- * `exportedCell`), put together by the database: what an import compares a disc brought
- * back unchanged with, without reading the disc's fields one by one.
- */
-export interface ExportedCells {
-  /** The disc's own columns, shelf_mark to handling_notes, separated by \x1f. */
-  disc: string;
-  /** Its sides' columns, side to side_notes, separated by \x1f, one side after another separated by \x1e; null without sides. */
-  sides: string | null;
-  sideCount: number;
-  version: string;
-}
-
-/** Text as the export writes it: a number without trailing zeros, a list joined by ";", nothing for null. */
-const exportedDiscCells = sql<string>`concat_ws(E'\x1f',
-    d.shelf_mark, a.identifier, d.label_name, d.catalogue_number, d.format, coalesce(d.base, ''),
-    coalesce(trim_scale(d.diameter_in)::text, ''), trim_scale(d.nominal_speed_rpm)::text, d.groove, d.cut,
-    coalesce(d.recording_date::text, ''), coalesce(d.recorded_from_year::text, ''), coalesce(d.recorded_to_year::text, ''),
-    d.condition_grade, array_to_string(d.condition_flags, ';', ''), d.condition_notes, d.handling_notes)`;
-
-/**
- * The export's cells of the discs with these shelf marks (in lower case), by shelf mark in
- * lower case: one row and four values per disc whatever its number of sides. A long list
- * is read in two halves at once, on two connections: the server works on both together.
- */
-export async function readExportedCellsByShelfMarks(
-  db: Db,
-  shelfMarkKeys: string[],
-): Promise<Map<string, ExportedCells>> {
-  const marks = [...new Set(shelfMarkKeys)];
-  const half = marks.length >= 2 * exportedCellsChunk ? Math.ceil(marks.length / 2) : marks.length;
-  const parts = await Promise.all(
-    [marks.slice(0, half), marks.slice(half)].filter((m) => m.length).map((m) => exportedCellsOf(db, m)),
   );
-  const out = new Map<string, ExportedCells>();
-  // Keyed as the import keys the other reading (readDiscFieldsByShelfMarks) by shelf mark.
-  for (const rows of parts) for (const r of rows) out.set(r.shelfMark.toLowerCase(), r);
-  return out;
 }
 
-/** The fewest shelf marks read in each half: fewer are read in one query. */
-const exportedCellsChunk = 250;
+type DiscFieldsRow = Awaited<ReturnType<ReturnType<typeof selectDiscFieldsWithSides>["execute"]>>[number];
 
-async function exportedCellsOf(db: Db, marks: string[]) {
-  const rows = await sql<ExportedCells & { shelfMark: string }>`
-    SELECT d.shelf_mark AS "shelfMark", ${exportedDiscCells} AS disc, d.version::text AS version,
-           s.sides, coalesce(s.n, 0)::int AS "sideCount"
-    FROM discs d
-    JOIN accessions a ON a.id = d.accession_id
-    LEFT JOIN LATERAL (
-      SELECT string_agg(concat_ws(E'\x1f', s.designation, s.matrix_number, s.take, s.title, s.performers, s.notes),
-                        E'\x1e' ORDER BY lower(s.designation)) AS sides,
-             count(*) AS n
-      FROM sides s WHERE s.disc_id = d.id
-    ) s ON true
-    WHERE lower(d.shelf_mark) = ANY(${marks}::text[])`.execute(db);
+/** A row read only to be turned into its record: its numbers made numbers in place. */
+function toFieldsRecord(row: DiscFieldsRow): DiscFieldsRecord {
+  const record = row as unknown as DiscFieldsRecord;
+  setNumbers(record, row);
+  return record;
+}
+
+/**
+ * Like `readDiscFieldsByShelfMarks`, for a file brought back whose rows of a disc were left
+ * as exported (csv-format.ts's `checkedVersions` says which, and at which version): the
+ * discs still at that version changed nothing since, and are only named (`atVersion`);
+ * the others (and every shelf mark asked with version "") are read. One round trip; a
+ * long list is read in two halves at once, on two connections, which the server works on
+ * together.
+ */
+export async function readDiscFieldsUnlessAtVersion(
+  db: Db,
+  asked: { key: string; version: string }[],
+): Promise<{ atVersion: Set<string>; records: DiscFieldsRecord[] }> {
+  const half = asked.length >= 2 * readTogether ? Math.ceil(asked.length / 2) : asked.length;
+  const parts = await Promise.all(
+    [asked.slice(0, half), asked.slice(half)].filter((a) => a.length).map((a) => unlessAtVersion(db, a)),
+  );
+  const atVersion = new Set<string>();
+  const records: DiscFieldsRecord[] = [];
+  for (const rows of parts)
+    for (const { mark, same, record } of rows) {
+      if (same) atVersion.add(mark);
+      else if (record) records.push(toFieldsRecord(record));
+    }
+  return { atVersion, records };
+}
+
+/** The fewest discs asked in each half: fewer are asked in one query. */
+const readTogether = 250;
+
+/**
+ * Joins the shelf marks, and the versions (digits, or "" for none), sent as one text each
+ * rather than as arrays; shelf marks are sent as an array when one holds it.
+ */
+const askSeparator = "\x1f";
+
+async function unlessAtVersion(db: Db, asked: { key: string; version: string }[]) {
+  const joinable = asked.every((a) => !a.key.includes(askSeparator));
+  const marks = joinable ? asked.map((a) => a.key).join(askSeparator) : asked.map((a) => a.key);
+  const versions = asked.map((a) => a.version).join(askSeparator);
+  const markList = joinable ? sql`string_to_array(${marks}, E'\x1f')` : sql`${marks}::text[]`;
+  // Each disc looked up once (materialised), and only the others read, as one JSON record
+  // each (the columns of selectDiscFieldsWithSides, under their names).
+  const fields = selectDiscFieldsWithSides(db).where(sql<boolean>`d.id = c.id`);
+  const rows = await sql<{ mark: string; same: boolean; record: DiscFieldsRow | null }>`
+    WITH c AS MATERIALIZED (
+      SELECT f.mark, d.id, coalesce(f.version <> '' AND f.version = d.version::text, false) AS same
+      FROM unnest(${markList}, string_to_array(${versions}, E'\x1f')) AS f(mark, version)
+      JOIN discs d ON lower(d.shelf_mark) = f.mark
+    )
+    SELECT c.mark, c.same, CASE WHEN c.same THEN NULL ELSE (SELECT row_to_json(x) FROM (${fields}) x) END AS record
+    FROM c`.execute(db);
   return rows.rows;
 }
 

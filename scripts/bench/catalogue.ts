@@ -314,16 +314,17 @@ const importRows = 2_000;
 
 /**
  * The update-import preview as the route makes it (lib/catalogue/csv.ts's previewImport):
- * an export of catalogued discs, 2 000 rows, with some edits made in the spreadsheet (a
- * condition grade on every tenth disc, a side's title on every fifteenth), read back.
+ * an export of catalogued discs, 2 000 rows, edited as a person edits it in a spreadsheet
+ * (a condition grade on every tenth disc, a side's title on every fifteenth), read back.
  */
 async function importPreview(db: ReturnType<typeof createDb>): Promise<() => Promise<unknown>> {
   // The app's pool is the benchmark database's (db/index.ts keeps one on globalThis).
   (globalThis as unknown as { rillbookDb?: typeof db }).rillbookDb = db;
   const { previewImport } = await import("../../lib/catalogue/csv");
-  const { toCatalogueCsv } = await import("../../lib/catalogue/csv-format");
+  const { catalogueColumns, toCatalogueCsv } = await import("../../lib/catalogue/csv-format");
   const { readDiscs } = await import("../../lib/catalogue/records");
-  const { toStoredSide } = await import("../../lib/validation/catalogue");
+  const { parse } = await import("csv-parse/sync");
+  const { stringify } = await import("csv-stringify/sync");
   const ids = await db
     .selectFrom("discs")
     .select("id")
@@ -340,17 +341,23 @@ async function importPreview(db: ReturnType<typeof createDb>): Promise<() => Pro
     const n = Math.max(1, d.sides.length);
     if (rows + n > importRows) break;
     rows += n;
-    const i = discs.length;
-    discs.push({
-      ...d,
-      conditionGrade: i % 10 === 0 ? (d.conditionGrade === "poor" ? "fair" : "poor") : d.conditionGrade,
-      sides: d.sides.map((s, j) => ({
-        ...toStoredSide(s),
-        title: i % 15 === 0 && j === 0 ? `${s.title} (retitled)` : s.title,
-      })),
-    });
+    discs.push(d);
   }
-  const upload = { bytes: new TextEncoder().encode(toCatalogueCsv(discs)), fields: {} };
+  // The export, edited cell by cell: the i-th disc's condition when i is a multiple of 10,
+  // its first row's title (when it has a side) when i is a multiple of 15.
+  const cells: string[][] = parse(toCatalogueCsv(discs), { bom: true });
+  const at = (c: string) => catalogueColumns.indexOf(c as (typeof catalogueColumns)[number]);
+  let disc = -1;
+  for (let r = 1; r < cells.length; r++) {
+    const first = r === 1 || cells[r][at("shelf_mark")] !== cells[r - 1][at("shelf_mark")];
+    if (first) disc++;
+    if (disc % 10 === 0) cells[r][at("condition")] = cells[r][at("condition")] === "poor" ? "fair" : "poor";
+    if (disc % 15 === 0 && first && cells[r][at("side")] !== "") cells[r][at("title")] += " (retitled)";
+  }
+  const upload = {
+    bytes: new TextEncoder().encode(stringify(cells, { bom: true, record_delimiter: "windows" })),
+    fields: {},
+  };
   const report = await previewImport(upload);
   if (
     report.rows !== rows ||

@@ -9,14 +9,16 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoAccounts } from "@/scripts/seed/demo-accounts";
 import {
   catalogueColumns,
-  cellSeparator,
+  checkedVersions,
   readCatalogueCsv,
-  rowSeparator,
   rowValues,
-  setAsideAsExportedText,
   toCatalogueCsv,
 } from "@/lib/catalogue/csv-format";
-import { readDiscs, readExportedCellsByShelfMarks } from "@/lib/catalogue/records";
+import {
+  readDiscFieldsByShelfMarks,
+  readDiscFieldsUnlessAtVersion,
+  readDiscs,
+} from "@/lib/catalogue/records";
 import { api, appUrl, type Json, sameOrigin, signInCookie } from "../support/app";
 import { testDb } from "../support/db";
 
@@ -130,6 +132,8 @@ const cellsOf = (text: string): string[][] => parse(text, { bom: true });
 /** Cells written back the way the export writes them (byte-order mark, CRLF). */
 const fileOf = (cells: string[][]) => stringify(cells, { bom: true, record_delimiter: "windows" });
 const versionAt = catalogueColumns.indexOf("version");
+/** An exported file with its row checks (the last cell of each row) emptied. */
+const withoutChecks = (text: string) => text.replace(/,k[A-Za-z0-9_-]{16}(?=\r\n|$)/g, ",");
 const at = (c: Column) => catalogueColumns.indexOf(c);
 
 /** An exported file with its version cells emptied: its discs read as new ones. */
@@ -478,7 +482,13 @@ describe("export and import again", () => {
     // Under new shelf marks these are new discs: their version cells go (a new disc has none).
     await importFile(withoutVersions(again));
     const second = await exportCsv({ accession: copy.id });
-    expect(second.text).toBe(again);
+    // The row check covers the shelf mark and the accession too: the new discs have their own.
+    expect(withoutChecks(second.text)).toBe(withoutChecks(again));
+    expect(second.text).not.toBe(again);
+    const read = readCatalogueCsv(second.text);
+    expect(checkedVersions(read.rows, read.columns)).toEqual([
+      { key: `=g${stamp}-1`.toLowerCase(), version: "1" },
+    ]);
   });
 
   it("exports a filtered view that imports again with every field the same", async () => {
@@ -566,7 +576,8 @@ describe("export and import again", () => {
     ).rows;
     expect(back).toHaveLength(rows.length);
     back.forEach((r, i) => {
-      for (const c of catalogueColumns) {
+      // (The row check covers the shelf mark and accession: the renamed discs have their own.)
+      for (const c of catalogueColumns.filter((c) => c !== "row_check")) {
         const expected =
           c === "shelf_mark"
             ? rowValues(rows[i])[c].replace(`V${stamp}-`, `W${stamp}-`)
@@ -594,8 +605,8 @@ describe("export and import again", () => {
   });
 });
 
-describe("a stored disc's export, as the database writes it", () => {
-  it("is cell for cell what the export writes, so a disc brought back unchanged is set aside", async () => {
+describe("a disc brought back with its rows as exported", () => {
+  it("is only asked whether it is still at its version; the others are read", async () => {
     const acc = await newAccession("CELLS");
     const disc = {
       shelf_mark: `CELLS${stamp}-1`,
@@ -629,28 +640,42 @@ describe("a stored disc's export, as the database writes it", () => {
       ids.map((r) => r.id),
     );
     expect(stored).toHaveLength(3);
+    // Exported and read back untouched: every disc's rows match their check.
     const read = readCatalogueCsv(toCatalogueCsv(stored));
-    const got = await readExportedCellsByShelfMarks(
-      testDb,
-      stored.map((d) => d.shelfMark.toLowerCase()),
+    const keys = [1, 2, 3].map((n) => `cells${stamp}-${n}`.toLowerCase());
+    expect(stored.map((d) => d.shelfMark.toLowerCase()).sort()).toEqual(keys);
+    expect(checkedVersions(read.rows, read.columns)).toEqual(
+      stored.map((d) => ({ key: d.shelfMark.toLowerCase(), version: "1" })),
     );
-    const side = catalogueColumns.indexOf("side");
-    for (const d of stored) {
-      const rows = read.rows.filter((r) => r.key === d.shelfMark.toLowerCase());
-      expect(got.get(d.shelfMark.toLowerCase())).toEqual({
-        shelfMark: d.shelfMark,
-        disc: rows[0].cells.slice(0, side).join(cellSeparator),
-        sides: d.sides.length
-          ? rows.map((r) => r.cells.slice(side, versionAt).join(cellSeparator)).join(rowSeparator)
-          : null,
-        sideCount: d.sides.length,
-        version: String(d.version),
-      });
-    }
-    expect(setAsideAsExportedText(read.rows, (key) => got.get(key), read.columns)).toEqual({
-      rows: [],
-      discs: 3,
-      rowCount: 4,
+    const asIs = await readDiscFieldsUnlessAtVersion(
+      testDb,
+      keys.map((key) => ({ key, version: "1" })),
+    );
+    expect([...asIs.atVersion].sort()).toEqual([...keys].sort());
+    expect(asIs.records).toEqual([]);
+
+    // At another version, with no version (an edited disc), or not catalogued: read in full,
+    // the fields as the field-by-field reading gives them.
+    const asked = await readDiscFieldsUnlessAtVersion(testDb, [
+      { key: keys[0], version: "2" },
+      { key: keys[1], version: "" },
+      { key: keys[2], version: "1" },
+      { key: `cells${stamp}-9`.toLowerCase(), version: "1" },
+    ]);
+    expect([...asked.atVersion]).toEqual([keys[2]]);
+    const byKey = (records: { shelfMark: string }[]) =>
+      [...records].sort((a, b) => a.shelfMark.localeCompare(b.shelfMark));
+    expect(byKey(asked.records)).toEqual(byKey(await readDiscFieldsByShelfMarks(testDb, keys.slice(0, 2))));
+    expect(asked.records.find((r) => r.shelfMark.toLowerCase() === keys[0])).toMatchObject({
+      labelName: 'Rillton, "Deluxe"',
+      diameterIn: 12.5,
+      nominalSpeedRpm: 33.33,
+      recordingDate: "1941-06-14",
+      conditionFlags: ["residue", "wear"],
+      sides: [
+        { designation: "A", matrixNumber: "W-1", take: "2", title: "First, part 1" },
+        { designation: "b", title: "Second", performers: "@Rillton band", notes: "Ends early" },
+      ],
     });
   });
 });
@@ -789,16 +814,32 @@ describe("the spreadsheet round trip: export, edit, import", () => {
     });
     expect(events[4].payload).toMatchObject({ discs: 1, updated: 3 });
 
-    // Exported again: the edited file, with the new versions (the new disc is at version 1).
+    // Exported again: the edited file, with the new versions (the new disc is at version 1)
+    // and the new discs' and edited discs' new row checks; the untouched disc keeps its own.
     const again = await exportCsv({ accession: acc.id });
+    const againCells = cellsOf(again.text);
+    const checkOf = (mark: string) => againCells.find((r) => r[at("shelf_mark")] === mark)![at("row_check")];
+    const changed = [m(1), m(2), m(3), m(5)];
+    for (const mark of changed.slice(0, 3))
+      expect(checkOf(mark)).not.toBe(cells[rowOf(mark, mark === m(3) ? "" : "A")][at("row_check")]);
     const expected = edited.map((r, i) => {
       if (i === 0) return r;
       const mark = r[at("shelf_mark")];
       const v = mark === m(5) ? "1" : [m(1), m(2), m(3)].includes(mark) ? "2" : "1";
-      return r.map((c, j) => (j === versionAt ? v : c));
+      return r.map((c, j) =>
+        j === versionAt ? v : j === at("row_check") && changed.includes(mark) ? checkOf(mark) : c,
+      );
     });
     // (fetch's text() drops the byte-order mark the file starts with.)
     expect(again.text).toBe(fileOf(expected).replace(/^\uFEFF/, ""));
+    // Those checks are right: read back, every disc's rows match them, at its new version.
+    const reread = readCatalogueCsv(again.text);
+    expect(checkedVersions(reread.rows, reread.columns)).toEqual(
+      [m(1), m(2), m(3), m(4), m(5)].map((mark) => ({
+        key: mark.toLowerCase(),
+        version: [m(1), m(2), m(3)].includes(mark) ? "2" : "1",
+      })),
+    );
   });
 
   it("reports a disc saved since the export as a conflict naming who changed what, and writes nothing", async () => {

@@ -1,9 +1,11 @@
 // The catalogue's spreadsheet format without a database: reading, checking, grouping
 // rows into discs, formula-looking fields, and writing back what was read.
+import { createHash } from "node:crypto";
 import { describe, expect, it } from "vitest";
 import {
   buildDiscs,
   type BuiltSheet,
+  checkedVersions,
   cellSeparator,
   catalogueColumns,
   catalogueTemplateCsv,
@@ -12,16 +14,14 @@ import {
   detectDelimiter,
   discChanges,
   type ExportDisc,
-  type ExportedCellsText,
   hasChanges,
   maxImportRows,
   protectFormula,
   readCatalogueCsv,
   rowSeparator,
   rowValues,
-  setAsideAsExportedText,
+  setAsideAsExported,
   setAsideUnchanged,
-  type SheetRow,
   toCatalogueCsv,
   unprotectFormula,
 } from "@/lib/catalogue/csv-format";
@@ -34,7 +34,6 @@ const accessions = new Map([
 const resolveAccession = (identifier: string) => accessions.get(identifier.toLowerCase());
 
 const header = catalogueColumns.join(",");
-const cellOfRow = (r: SheetRow, c: (typeof catalogueColumns)[number]) => r.cells[catalogueColumns.indexOf(c)];
 
 /** A row with the given columns set; the others empty. */
 function row(values: Partial<Record<(typeof catalogueColumns)[number], string>>): string {
@@ -613,7 +612,7 @@ describe("rows that update a catalogued disc", () => {
     const noVersion = readCatalogueCsv(
       exported
         .split("\r\n")
-        .map((l) => l.replace(/,[^,]*$/, ""))
+        .map((l) => l.replace(/,[^,]*,[^,]*$/, ""))
         .join("\n"),
     );
     expect(noVersion.columns).not.toContain("version");
@@ -670,88 +669,130 @@ describe("setting aside a disc brought back as the database writes its export", 
   };
   const sideless: ExportDisc = { ...stored, shelfMark: "LAC-0043", version: 1, sides: [] };
   const S = cellSeparator;
-  /** What the database writes for a disc: built here from the export's own cells. */
-  function textOf(d: ExportDisc): ExportedCellsText {
-    const rows = readCatalogueCsv(toCatalogueCsv([d])).rows;
-    const disc = catalogueColumns.indexOf("side");
-    const version = catalogueColumns.indexOf("version");
-    return {
-      disc: rows[0].cells.slice(0, disc).join(S),
-      sides: d.sides.length ? rows.map((r) => r.cells.slice(disc, version).join(S)).join(rowSeparator) : null,
-      sideCount: d.sides.length,
-      version: rows[0].cells[version],
-    };
-  }
-  const texts = new Map([stored, sideless].map((d) => [d.shelfMark.toLowerCase(), textOf(d)]));
-  const exported = (key: string) => texts.get(key);
   const file = toCatalogueCsv([stored, sideless], { bom: false });
+  const versionsOf = (text: string) =>
+    checkedVersions(readCatalogueCsv(text).rows, readCatalogueCsv(text).columns);
 
-  it("sets aside discs whose rows are their export, with or without sides", () => {
+  it("writes each disc's row check on its rows, as SHA-256 of the other cells says", () => {
+    const cells = readCatalogueCsv(file).rows.map((r) => r.cells);
+    const check = catalogueColumns.indexOf("row_check");
+    expect(check).toBe(catalogueColumns.length - 1);
+    // The construction, recomputed here with Node's SHA-256 (FIPS 180-4): each row's cells
+    // but the check, joined by U+001F, the disc's rows joined by U+001E, the first 16
+    // URL-safe base64 characters (RFC 4648 §5) after a "k".
+    const expected = (rows: string[][]) =>
+      `k${createHash("sha256")
+        .update(rows.map((r) => r.slice(0, check).join(S)).join(rowSeparator))
+        .digest("base64url")
+        .slice(0, 16)}`;
+    expect(cells[0][check]).toBe(expected(cells.slice(0, 2)));
+    expect(cells[1][check]).toBe(cells[0][check]);
+    expect(cells[2][check]).toBe(expected(cells.slice(2)));
+    expect(cells[2][check]).toMatch(/^k[A-Za-z0-9_-]{16}$/);
+    // The same disc exported again has the same check; any cell of it changed, another.
+    expect(toCatalogueCsv([stored], { bom: false })).toBe(toCatalogueCsv([{ ...stored }], { bom: false }));
+    const retitled = readCatalogueCsv(
+      toCatalogueCsv([{ ...stored, sides: [stored.sides[0], { ...stored.sides[1], title: "Jig." }] }], {
+        bom: false,
+      }),
+    );
+    expect(retitled.rows[0].cells[check]).not.toBe(cells[0][check]);
+    // A template's rows, and a disc not yet catalogued, have none.
+    const template = readCatalogueCsv(catalogueTemplateCsv());
+    expect(template.rows.map((r) => r.cells[check])).toEqual(template.rows.map(() => ""));
+  });
+
+  it("gives the exported version of each disc whose rows are left as exported, with or without sides", () => {
+    expect(versionsOf(file)).toEqual([
+      { key: "lac-0042", version: "7" },
+      { key: "lac-0043", version: "1" },
+    ]);
     const read = readCatalogueCsv(file);
-    expect(read.errors).toEqual([]);
-    expect(setAsideAsExportedText(read.rows, exported, read.columns)).toEqual({
+    expect(setAsideAsExported(read.rows, new Set(["lac-0042"]))).toMatchObject({ discs: 1, rowCount: 2 });
+    expect(setAsideAsExported(read.rows, new Set(["lac-0042", "lac-0043"]))).toEqual({
       rows: [],
       discs: 2,
       rowCount: 3,
     });
   });
 
-  it("keeps a disc with one cell changed, its sides in another order, or another version", () => {
-    for (const [edited, rows] of [
-      [file.replace("Ends early", "Ends early."), [2, 3]],
-      [file.replaceAll("=R 1", "=R 2"), [2, 3, 4]],
-      [file.replace(/,7\r\n/g, ",8\r\n"), [2, 3]],
-    ] as const) {
-      const read = readCatalogueCsv(edited);
-      const split = setAsideAsExportedText(read.rows, exported, read.columns);
-      expect(split.rows.map((r) => r.row)).toEqual(rows);
-      expect(split.discs).toBe(rows.length === 3 ? 0 : 1);
+  it("gives none for a disc with one cell changed, its sides in another order, another version or check", () => {
+    const check = readCatalogueCsv(file).rows[0].cells[catalogueColumns.indexOf("row_check")];
+    for (const edited of [
+      file.replace("Ends early", "Ends early."),
+      file.replaceAll("=R 1", "=R 2"),
+      file.replace(/,7,k/g, ",8,k"),
+      file.replaceAll(check, `${check.slice(0, -1)}${check.endsWith("A") ? "B" : "A"}`),
+      file.replaceAll(check, ""),
+    ]) {
+      expect(versionsOf(edited)?.find((v) => v.key === "lac-0042")?.version, edited).toBe("");
+      expect(versionsOf(edited)?.find((v) => v.key === "lac-0043")?.version).toBe(
+        edited.includes("=R 2") ? "" : "1",
+      );
     }
     const lines = file.trimEnd().split("\r\n");
-    const swapped = readCatalogueCsv([lines[0], lines[3], lines[2], lines[1]].join("\n"));
-    expect(swapped.rows).toHaveLength(3);
-    const split = setAsideAsExportedText(swapped.rows, exported, swapped.columns);
-    expect(split.discs).toBe(1);
-    expect(split.rows.map((r) => cellOfRow(r, "shelf_mark"))).toEqual(["LAC-0042", "LAC-0042"]);
+    const swapped = versionsOf([lines[0], lines[2], lines[1], lines[3]].join("\n"));
+    expect(swapped).toEqual([
+      { key: "lac-0042", version: "" },
+      { key: "lac-0043", version: "1" },
+    ]);
+    // A shelf mark in two groups of rows is never set aside, so its repeat is reported.
+    expect(versionsOf([lines[0], lines[1], lines[3], lines[2]].join("\n"))).toEqual([
+      { key: "lac-0042", version: "" },
+      { key: "lac-0043", version: "" },
+    ]);
   });
 
-  it("says nothing of a file without every column, a shelf mark not catalogued, or a stored cell that holds a separator", () => {
-    const noTake = readCatalogueCsv(
+  it("says nothing of a file without the version or the check, or with a separator in a cell", () => {
+    const without = (column: string) =>
       file
         .split("\r\n")
-        .map((l) =>
-          l
-            .split(",")
-            .filter((_, i) => i !== catalogueColumns.indexOf("take"))
-            .join(","),
-        )
-        .join("\n"),
-    );
-    expect(setAsideAsExportedText(noTake.rows, exported, noTake.columns).discs).toBe(0);
-    const read = readCatalogueCsv(file);
-    expect(setAsideAsExportedText(read.rows, () => undefined, read.columns).discs).toBe(0);
-
-    // The stored title holds a separator, the file's performers another: the texts are the same,
-    // the cells are not, and the disc is left to be compared field by field.
-    const tricky: ExportDisc = {
-      ...sideless,
-      shelfMark: "LAC-0044",
-      sides: [
-        { designation: "A", matrixNumber: "", take: "", title: `Reel${S}A`, performers: "band", notes: "" },
+        .map((l) => l.split(",").filter((_, i) => i !== catalogueColumns.indexOf(column as never)))
+        .map((cells) => cells.join(","))
+        .join("\n");
+    expect(versionsOf(without("row_check"))).toBeNull();
+    expect(versionsOf(without("version"))).toBeNull();
+    const tricky = toCatalogueCsv(
+      [
+        {
+          ...sideless,
+          sides: [
+            {
+              designation: "A",
+              matrixNumber: "",
+              take: "",
+              title: `Reel${S}A`,
+              performers: "band",
+              notes: "",
+            },
+          ],
+        },
       ],
-    };
-    const trickyText = textOf(tricky);
-    const shifted = readCatalogueCsv(
-      toCatalogueCsv([
-        { ...tricky, sides: [{ ...tricky.sides[0], title: "Reel", performers: `A${S}band` }] },
-      ]),
+      { bom: false },
     );
-    expect(trickyText.sides).toBe(shifted.rows[0].cells.slice(17, 23).join(S));
-    expect(setAsideAsExportedText(shifted.rows, () => trickyText, shifted.columns).discs).toBe(0);
-    // Brought back as it is, it is set aside by its fields instead.
-    const asIs = readCatalogueCsv(toCatalogueCsv([tricky]));
-    const left = setAsideAsExportedText(asIs.rows, () => trickyText, asIs.columns);
-    expect(left.discs).toBe(0);
-    expect(setAsideUnchanged(left.rows, () => tricky, asIs.columns).discs).toBe(1);
+    const read = readCatalogueCsv(tricky);
+    expect(read.rows[0].text).toBeUndefined();
+    expect(read.rows[0].cells[catalogueColumns.indexOf("title")]).toBe(`Reel${S}A`);
+    expect(checkedVersions(read.rows, read.columns)).toBeNull();
+    // Such a disc is still set aside by its fields.
+    expect(
+      setAsideUnchanged(
+        read.rows,
+        () => ({
+          ...sideless,
+          sides: [
+            {
+              designation: "A",
+              matrixNumber: "",
+              take: "",
+              title: `Reel${S}A`,
+              performers: "band",
+              notes: "",
+            },
+          ],
+        }),
+        read.columns,
+      ).discs,
+    ).toBe(1);
   });
 });

@@ -1,6 +1,7 @@
 // The catalogue's spreadsheet format without a database: reading, checking, grouping
 // rows into discs, formula-looking fields, and writing back what was read.
 import { createHash } from "node:crypto";
+import Papa from "papaparse";
 import { describe, expect, it } from "vitest";
 import {
   buildDiscs,
@@ -112,6 +113,35 @@ describe("reading the file", () => {
     expect(read.errors[0].row).toBe(3);
     expect(read.errors[0].message).toMatch(/quote/);
     expect(read.errors[0].message).toMatch(/text line 3\b/);
+  });
+
+  it("reads a file of many parts as papaparse reads it whole, with the row of a late broken quote", () => {
+    // Over 64 KB, so the parser hands it over in parts; multi-line quoted cells and CRLF line
+    // ends fall across the parts' edges. The reference: papaparse reading the whole text at once.
+    const lines = [header];
+    for (let i = 0; i < 2000; i++)
+      lines.push(
+        row({
+          ...shellac,
+          shelf_mark: `MH-${i}`,
+          side: "A",
+          title: `Song ${i}, "part" ${i % 7}`,
+          side_notes: i % 3 ? `Line one of ${i}.\r\nLine two, with a comma.` : "",
+        }),
+      );
+    const text = `${lines.join("\r\n")}\r\n`;
+    expect(text.length).toBeGreaterThan(3 * 64 * 1024);
+    const read = readCatalogueCsv(text);
+    expect(read.errors).toEqual([]);
+    const whole = Papa.parse<string[]>(text, { delimiter: ",", skipEmptyLines: true }).data.slice(1);
+    expect(read.rows.map((r) => r.cells)).toEqual(whole);
+    expect(read.rows.map((r) => r.row)).toEqual(whole.map((_, i) => i + 2));
+
+    const broken = `${lines.slice(0, 1801).join("\r\n")}\r\n${row({ ...shellac, shelf_mark: "LATE" }).replace("LATE", '"LATE')}\r\n${lines.slice(1801).join("\r\n")}`;
+    const late = readCatalogueCsv(broken);
+    expect(late.errors).toHaveLength(1);
+    expect(late.errors[0].row).toBe(1802);
+    expect(late.errors[0].message).toMatch(/quote/);
   });
 
   it("refuses a row with more fields than the header", () => {

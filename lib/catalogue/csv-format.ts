@@ -2,7 +2,7 @@
 // database and no framework, so the importer, the exporter and the unit tests share it.
 // The importer on the server (lib/catalogue/csv.ts) adds what needs the database:
 // accession identifiers and shelf marks already in the catalogue.
-import { hash } from "node:crypto";
+import crypto from "node:crypto";
 import Papa from "papaparse";
 import { stringify } from "csv-stringify/sync";
 import type { z } from "zod";
@@ -915,8 +915,15 @@ function checkedText(values: Record<CatalogueColumn, string>): string {
  * It seals nothing: a person who rewrites it only keeps their own edit from being read.
  */
 function rowCheckOf(rowTexts: readonly string[]): string {
-  return `k${hash("sha256", rowTexts.length === 1 ? rowTexts[0] : rowTexts.join(rowSeparator), "base64url").slice(0, 16)}`;
+  const text = rowTexts.length === 1 ? rowTexts[0] : rowTexts.join(rowSeparator);
+  return `k${sha256Base64url(text).slice(0, 16)}`;
 }
+
+/** SHA-256 in URL-safe base64: the one-shot `crypto.hash` where Node has it (20.12 on), else a Hash. */
+const sha256Base64url: (text: string) => string =
+  typeof crypto.hash === "function"
+    ? (text) => crypto.hash("sha256", text, "base64url")
+    : (text) => crypto.createHash("sha256").update(text).digest("base64url");
 
 const storedCells = new WeakMap<ExportDisc, Record<CatalogueColumn, string>[]>();
 

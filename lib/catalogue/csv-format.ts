@@ -331,7 +331,9 @@ export function readCatalogueCsv(text: string): ReadSheet {
 
   // Set from the parser's callback (kept in an object: the compiler does not follow the callback).
   const state = { header: null as string[] | null, problem: null as ImportError | null };
-  let headerErrors: ImportError[] = [];
+  /** The header's errors in column order; an unnamed column (by index) is one only if a row has a value in it. */
+  let headerErrors: (ImportError | number)[] = [];
+  let faultyHeader = false;
   /** Unnamed header columns, and those of them a row has a value in. */
   const unnamed: number[] = [];
   const unnamedWithValues = new Set<number>();
@@ -349,12 +351,11 @@ export function readCatalogueCsv(text: string): ReadSheet {
     state.header = header;
     const known = new Set<string>(catalogueColumns);
     const at = new Map<string, number>();
-    const errors: ImportError[] = [];
+    const errors: (ImportError | number)[] = [];
     header.forEach((name, i) => {
       if (name === "") {
         unnamed.push(i);
-        // Its place among the header's errors, kept once a row has a value in it.
-        errors.push({ row: 1, column: `column ${i + 1}`, message: "" });
+        errors.push(i);
         return;
       }
       if (!known.has(name)) {
@@ -382,18 +383,18 @@ export function readCatalogueCsv(text: string): ReadSheet {
         });
     }
     headerErrors = errors;
+    faultyHeader = errors.some((e) => typeof e !== "number");
     columnAt = catalogueColumns.map((name) => at.get(name) ?? -1);
     // A header in the export's own order (the usual case: a file exported and brought back)
     // lets each row keep the parser's array of cells rather than be copied into another.
     inOrder = header.length >= columnAt.length && columnAt.every((at, i) => at === i);
   };
-  const faultyHeader = () => headerErrors.some((e) => e.message !== "");
 
   const takeRow = (cells: string[], row: number) => {
     const width = state.header!.length;
     for (const i of unnamed) if ((cells[i] ?? "").trim() !== "") unnamedWithValues.add(i);
     // Rows past the limit are only counted; a faulty header keeps none.
-    if (++filled > maxImportRows || faultyHeader()) return;
+    if (++filled > maxImportRows || faultyHeader) return;
     if (cells.length > width && cells.slice(width).some((c) => c.trim() !== "")) {
       rowErrors.push({
         row,
@@ -468,10 +469,15 @@ export function readCatalogueCsv(text: string): ReadSheet {
       ],
     };
   const errors = headerErrors.flatMap((e) => {
-    if (e.message) return [e];
-    const i = Number(e.column.slice("column ".length)) - 1;
-    return unnamedWithValues.has(i)
-      ? [{ ...e, message: `Column ${i + 1} has values but no name in the header.` }]
+    if (typeof e !== "number") return [e];
+    return unnamedWithValues.has(e)
+      ? [
+          {
+            row: 1,
+            column: `column ${e + 1}`,
+            message: `Column ${e + 1} has values but no name in the header.`,
+          },
+        ]
       : [];
   });
   if (errors.length) return { ...none, errors };
@@ -1053,7 +1059,7 @@ function versionIfUnedited(sheet: readonly SheetRow[], first: number, end: numbe
   const cut = head.lastIndexOf(cellSeparator);
   const check = head.slice(cut + 1);
   const version = head.slice(head.lastIndexOf(cellSeparator, cut - 1) + 1, cut);
-  if (check === "" || !/^[1-9][0-9]{0,9}$/.test(version)) return "";
+  if (check === "" || typeof versionOf(version) !== "number") return "";
   // Every row ends in the same version and check (their own separators included).
   const tail = head.slice(cut - version.length - 1);
   const texts = [head.slice(0, cut)];

@@ -117,24 +117,22 @@ export async function readDiscFieldsUnlessAtVersion(
 /** The fewest discs asked in each half: fewer are asked in one query. */
 const readTogether = 250;
 
-/**
- * Joins the shelf marks, and the versions (digits, or "" for none), sent as one text each
- * rather than as arrays; shelf marks are sent as an array when one holds it.
- */
+/** Joins the shelf marks, and the versions (digits, or "" for none), sent as one text each. */
 const askSeparator = "\x1f";
 
 async function unlessAtVersion(db: Db, asked: { key: string; version: string }[]) {
-  const joinable = asked.every((a) => !a.key.includes(askSeparator));
-  const marks = joinable ? asked.map((a) => a.key).join(askSeparator) : asked.map((a) => a.key);
+  // The keys come from a file none of whose cells holds the separator (csv-format.ts's `checkedVersions`).
+  const odd = asked.find((a) => a.key.includes(askSeparator) || a.version.includes(askSeparator));
+  if (odd) throw new Error(`the shelf mark "${odd.key}" or its version holds U+001F, which joins them here`);
+  const marks = asked.map((a) => a.key).join(askSeparator);
   const versions = asked.map((a) => a.version).join(askSeparator);
-  const markList = joinable ? sql`string_to_array(${marks}, E'\x1f')` : sql`${marks}::text[]`;
   // Each disc looked up once (materialised), and only the others read, as one JSON record
   // each (the columns of selectDiscFieldsWithSides, under their names).
   const fields = selectDiscFieldsWithSides(db).where(sql<boolean>`d.id = c.id`);
   const rows = await sql<{ mark: string; same: boolean; record: DiscFieldsRow | null }>`
     WITH c AS MATERIALIZED (
       SELECT f.mark, d.id, coalesce(f.version <> '' AND f.version = d.version::text, false) AS same
-      FROM unnest(${markList}, string_to_array(${versions}, E'\x1f')) AS f(mark, version)
+      FROM unnest(string_to_array(${marks}, E'\x1f'), string_to_array(${versions}, E'\x1f')) AS f(mark, version)
       JOIN discs d ON lower(d.shelf_mark) = f.mark
     )
     SELECT c.mark, c.same, CASE WHEN c.same THEN NULL ELSE (SELECT row_to_json(x) FROM (${fields}) x) END AS record

@@ -58,9 +58,8 @@ async function correct(presetId: string, turnoverHz: number, corrects: number[])
   return res.body.preset;
 }
 
-/** Sides with a transfer and a curve from the preset's version 1, each rendered. */
-async function renderedSides(shelfMark: string, designations: string[], presetId: string) {
-  const { discId, sideIds } = await assignedDisc(c, shelfMark, designations);
+/** The engineer's choice of the preset's version 1 (the file's overrides, at 78 rpm) for these sides. */
+async function chooseVersionOne(sideIds: string[], presetId: string, evidence: Record<string, unknown>) {
   const chosen = await api("/api/curve-choices", {
     cookie: c.engineer,
     method: "POST",
@@ -71,11 +70,20 @@ async function renderedSides(shelfMark: string, designations: string[], presetId
       overrides,
       cutSpeedRpm: 78,
       transferSpeedRpm: 78,
-      rationale: "The label's leaflet for the series.",
-      evidenceKind: "disc_documentation",
+      ...evidence,
     },
   });
   expect(chosen.status).toBe(201);
+  return chosen;
+}
+
+/** Sides with a transfer and a curve from the preset's version 1, each rendered. */
+async function renderedSides(shelfMark: string, designations: string[], presetId: string) {
+  const { discId, sideIds } = await assignedDisc(c, shelfMark, designations);
+  await chooseVersionOne(sideIds, presetId, {
+    rationale: "The label's leaflet for the series.",
+    evidenceKind: "disc_documentation",
+  });
   for (const [i, sideId] of sideIds.entries()) {
     const up = await uploadTransfer(c, sideId, flatTransfer(1, 21 + i), `${shelfMark}-${i}.wav`);
     expect(up.done.status).toBe(201);
@@ -469,27 +477,11 @@ describe("a campaign over a side that rests on a test-disc measurement", () => {
     const fit: FitParameter[] = ["rolloff", "levelOffset"];
     const { sideIds } = await assignedDisc(c, `TDCAMP-${tag}`, ["A"]);
     const [sideId] = sideIds;
-    const chosen = await api("/api/curve-choices", {
-      cookie: c.engineer,
-      method: "POST",
-      body: {
-        sideIds,
-        presetId,
-        presetVersion: 1,
-        overrides,
-        cutSpeedRpm: 78,
-        transferSpeedRpm: 78,
-        rationale: "The house test disc, measured on the chain.",
-        evidenceKind: "test_disc",
-        measurement: {
-          pointsKind: "playback",
-          fit,
-          sourceText: pointsFile,
-          sourceFileName: "house-disc.csv",
-        },
-      },
+    const chosen = await chooseVersionOne(sideIds, presetId, {
+      rationale: "The house test disc, measured on the chain.",
+      evidenceKind: "test_disc",
+      measurement: { pointsKind: "playback", fit, sourceText: pointsFile, sourceFileName: "house-disc.csv" },
     });
-    expect(chosen.status).toBe(201);
     const oldChoiceId = chosen.body.choices[0].choiceId as string;
     const up = await uploadTransfer(c, sideId, flatTransfer(1, 31), `TDCAMP-${tag}.wav`);
     expect(up.done.status).toBe(201);
